@@ -1,0 +1,12 @@
+export * from './types';
+export { parseStl, isBinaryStlSize, baseName } from './stl';
+export { parseObj } from './obj';
+export { parse3mf, read3mfModel, readModelXml, composeTransforms, mergeMeshes, MM_PER_3MF_UNIT, CORE_NS, IDENTITY_12 } from './threemf';
+export type { ThreeMfModel, ThreeMfItem, ThreeMfObject, ThreeMfOptions } from './threemf';
+export { measureMesh, meshWarnings } from './metrics';
+export type { MeshMetrics, MeshWarning, MeshWarningCode, WarningOptions } from './metrics';
+export { measureMeshFile, parseMeshFile, measureParsedParts, formatFromFilename, hasZeroVolume, SUPPORTED_EXTENSIONS } from './measure';
+export type { MeasureOptions, MeasureResult, MeasuredPart, MeshFormat } from './measure';
+export { writeBinaryStl, writeAsciiStl, write3mf, write3mfModelXml, translation } from './write';
+export type { ThreeMfObjectInput, ThreeMfItemInput, ThreeMfUnit } from './write';
+export * from './generate';

@@ -1,0 +1,95 @@
+/**
+ * One entry point for an uploaded file: pick the reader by extension, parse,
+ * measure each part, and refuse parts that enclose no volume.
+ */
+import { parseStl } from './stl';
+import { parseObj } from './obj';
+import { parse3mf, DEFAULT_MAX_3MF_BYTES } from './threemf';
+import { measureMesh, meshWarnings, type MeshMetrics, type MeshWarning, type WarningOptions } from './metrics';
+import { quoteName, refuse, type LengthUnit, type ParseResult, type ParsedPart, type Problem } from './types';
+
+export type MeshFormat = 'stl' | 'obj' | '3mf';
+
+export const SUPPORTED_EXTENSIONS: readonly string[] = ['.stl', '.obj', '.3mf'];
+
+export interface MeasureOptions extends WarningOptions {
+  filename: string;
+  /** Unit of STL and OBJ coordinates (they carry none); a 3MF's own unit wins. */
+  unit?: LengthUnit;
+  /** A 3MF with several build items: one part each (true, the default) or one merged part. */
+  splitObjects?: boolean;
+  maxUncompressedBytes?: number;
+}
+
+export interface MeasuredPart {
+  name: string;
+  metrics: MeshMetrics;
+  warnings: MeshWarning[];
+}
+
+export type MeasureResult =
+  | { ok: true; format: MeshFormat; parts: MeasuredPart[] }
+  | { ok: false; problems: Problem[] };
+
+export function formatFromFilename(filename: string): MeshFormat | null {
+  const lower = filename.toLowerCase();
+  if (lower.endsWith('.stl')) return 'stl';
+  if (lower.endsWith('.obj')) return 'obj';
+  if (lower.endsWith('.3mf')) return '3mf';
+  return null;
+}
+
+/** Parses a file into parts in mm, choosing the reader by the file's extension. */
+export function parseMeshFile(bytes: Uint8Array, options: MeasureOptions): ParseResult & { format?: MeshFormat } {
+  const format = formatFromFilename(options.filename);
+  if (!format) {
+    return refuse(
+      'unsupported-extension',
+      `${quoteName(options.filename)} is not a supported mesh file: upload STL (.stl), OBJ (.obj) or 3MF (.3mf).`,
+    );
+  }
+  if (bytes.length === 0) return refuse('empty-file', `${quoteName(options.filename)} is empty (0 bytes).`);
+  const result =
+    format === 'stl'
+      ? parseStl(bytes, options)
+      : format === 'obj'
+        ? parseObj(bytes, options)
+        : parse3mf(bytes, { ...options, maxUncompressedBytes: options.maxUncompressedBytes ?? DEFAULT_MAX_3MF_BYTES });
+  return { ...result, format };
+}
+
+/**
+ * Measures every part of a file. A part whose volume is zero (a flat or empty
+ * surface) cannot be printed, so the file is refused; watertightness and the
+ * other findings are warnings.
+ */
+export function measureMeshFile(bytes: Uint8Array, options: MeasureOptions): MeasureResult {
+  const parsed = parseMeshFile(bytes, options);
+  if (!parsed.ok) return parsed;
+  return measureParsedParts(parsed.parts, parsed.format!, options);
+}
+
+export function measureParsedParts(parts: ParsedPart[], format: MeshFormat, options: MeasureOptions): MeasureResult {
+  const measured: MeasuredPart[] = [];
+  const problems: Problem[] = [];
+  for (const part of parts) {
+    const metrics = measureMesh(part);
+    if (hasZeroVolume(metrics)) {
+      problems.push({
+        code: 'zero-volume',
+        message: `${quoteName(options.filename)}${parts.length > 1 ? `, part "${part.name}"` : ''} encloses no volume (it is flat or only a surface), so it cannot be printed.`,
+      });
+      continue;
+    }
+    measured.push({ name: part.name, metrics, warnings: meshWarnings(metrics, options) });
+  }
+  if (problems.length > 0) return { ok: false, problems };
+  return { ok: true, format, parts: measured };
+}
+
+/** Zero when flat in some axis, or when the enclosed volume is a vanishing share of the bounding box. */
+export function hasZeroVolume(m: MeshMetrics): boolean {
+  const [x, y, z] = m.sizeMm;
+  const box = x * y * z;
+  return box === 0 || Math.abs(m.volumeMm3) <= box * 1e-9;
+}
