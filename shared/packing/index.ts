@@ -1,0 +1,8 @@
+export * from './types';
+export { parseInstance, MAX_TOTAL_QUANTITY, type ParseResult } from './parse';
+export { lowerBound, buildCountLowerBound, inflatedPartVolume } from './bounds';
+export { validateLayout } from './validate';
+export { orientedSize, usableRegion, layerCount, TOLERANCE_MM } from './geometry';
+export { createPacking, pack, packSync, type PackOptions, type PackPhase, type PackRunHooks, type Packing } from './engine';
+export { createRandom, type Random } from './prng';
+export { parseBischoffRatcliff } from './br';

@@ -1,0 +1,104 @@
+/**
+ * Packing instance and result, as exchanged by the command line, the server,
+ * the worker and the tests. Lengths in millimetres, times in milliseconds,
+ * build direction +z with z = 0 on the chamber floor (ISO/ASTM 52921).
+ */
+
+export const INSTANCE_FORMAT = 'pack-instance/1' as const;
+export const RESULT_FORMAT = 'pack-result/1' as const;
+
+/**
+ * A permutation of the part's own axes: the placed extent along chamber x, y, z
+ * is the part's extent along the first, second and third letter.
+ */
+export type Orientation = 'xyz' | 'xzy' | 'yxz' | 'yzx' | 'zxy' | 'zyx';
+export const ORIENTATIONS: readonly Orientation[] = ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'];
+
+export type Objective = 'min-height' | 'max-volume';
+export const OBJECTIVES: readonly Objective[] = ['min-height', 'max-volume'];
+
+export type Vec3 = [number, number, number];
+
+export interface PackMargin {
+  /** Keep-out from each side wall. */
+  xy: number;
+  /** Keep-out under the lowest part. */
+  bottom: number;
+  /** Keep-out over the highest part. */
+  top: number;
+}
+
+export interface PackPart {
+  /** Unique within the instance. */
+  id: string;
+  /** Bounding box in the part's own axes. */
+  size: Vec3;
+  quantity: number;
+  /** Allowed orientations; every one of the six when absent from the input. */
+  orientations: Orientation[];
+}
+
+/** An instance after parsing: every default applied. */
+export interface PackInstance {
+  format: typeof INSTANCE_FORMAT;
+  /** Inner build volume x, y, z. */
+  chamber: Vec3;
+  margin: PackMargin;
+  /** Minimum gap between any two parts. */
+  spacing: number;
+  layerHeight: number;
+  objective: Objective;
+  timeLimitMs: number;
+  seed: number;
+  parts: PackPart[];
+}
+
+/** What a caller may send: the optional fields of the instance may be left out. */
+export interface PackInstanceInput {
+  format: typeof INSTANCE_FORMAT;
+  chamber: Vec3;
+  margin?: Partial<PackMargin>;
+  spacing?: number;
+  layerHeight?: number;
+  objective?: Objective;
+  timeLimitMs?: number;
+  seed?: number;
+  parts: Array<{ id: string; size: Vec3; quantity: number; orientations?: Orientation[] }>;
+}
+
+export interface Placement {
+  id: string;
+  /** Minimum corner of the placed box. */
+  position: Vec3;
+  /** Placed extent along chamber x, y, z (after the orientation). */
+  size: Vec3;
+  orientation: Orientation;
+}
+
+export interface Unplaced {
+  id: string;
+  count: number;
+}
+
+export interface PackResult {
+  format: typeof RESULT_FORMAT;
+  placements: Placement[];
+  /** Only ids with count > 0. */
+  unplaced: Unplaced[];
+  /** Top of the highest placed part, from the floor (0 when nothing is placed). */
+  height: number;
+  /** ceil((height + margin.top) / layerHeight); 0 when nothing is placed. */
+  layers: number;
+  utilization: number;
+  elapsedMs: number;
+}
+
+/** A problem found at a boundary, naming the field, e.g. `parts[3].size[1]`. */
+export interface FieldProblem {
+  field: string;
+  message: string;
+}
+
+export function formatProblem(p: FieldProblem): string {
+  return `${p.field} ${p.message}`;
+}
