@@ -1,0 +1,94 @@
+import express, { type RequestHandler } from 'express';
+import { rateLimit } from 'express-rate-limit';
+import { existsSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type pg from 'pg';
+import type { Config } from './config';
+import type { Database } from './db';
+import type { Auth } from './auth/sessions';
+import type { Mailer } from './mail/mailer';
+import { AppError } from './errors';
+import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/errors';
+import { checkOrigin, loadSession } from './http/middleware/auth';
+import { authRoutes } from './http/routes/auth';
+import { labRoutes } from './http/routes/labs';
+import { labsService } from './services/labs';
+import { authService } from './services/auth';
+import { invitesService } from './services/invites';
+import { profilesService } from './services/profiles';
+import { machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
+
+export type Services = ReturnType<typeof createServices>;
+export type AppDeps = {
+  config: Config;
+  db: Database;
+  pool: pg.Pool;
+  auth: Auth;
+  mailer: Mailer;
+  services: Services;
+  log: (msg: string) => void;
+};
+
+export function createServices(db: Database, mailer: Mailer, config: Config) {
+  const labs = labsService(db);
+  const auth = authService(db, labs);
+  const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
+  const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine');
+  const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material');
+  return { labs, auth, invites, machines, materials };
+}
+
+/** The Express app, without listen(), so tests can drive it with supertest. */
+export function createApp(deps: AppDeps) {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+
+  const api = express.Router();
+  api.get('/health', async (_req, res) => {
+    try {
+      await deps.db.sequelize.query('SELECT 1');
+      res.json({ ok: true, db: true });
+    } catch {
+      res.status(503).json({ ok: false, db: false });
+    }
+  });
+  api.use(checkOrigin(deps.config.appUrl));
+  api.use(express.json({ limit: '20mb', strict: true }));
+  api.use(loadSession(deps.auth, deps.config.appUrl.startsWith('https:')));
+
+  const limiter: RequestHandler = rateLimit({
+    windowMs: deps.config.authRateWindowMs,
+    limit: deps.config.authRateLimit,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, _res, next) =>
+      next(new AppError(429, 'rate_limited', 'Too many attempts from this address; wait a few minutes and try again.')),
+  });
+  api.use(authRoutes(deps, limiter));
+  api.use(labRoutes(deps));
+  api.use(notFoundRoute);
+  api.use(errorHandler(deps.log));
+  app.use('/api', api);
+
+  // The exported web app: files as they are, every other path to index.html
+  // so that deep links (an invite link, a plan) open the app.
+  const dist = resolve(deps.config.webDist);
+  const index = join(dist, 'index.html');
+  app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: (res, path) => {
+    if (path.endsWith('.html')) res.setHeader('Cache-Control', 'no-cache');
+  } }));
+  app.get(/.*/, (_req, res) => {
+    if (existsSync(index)) {
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile(index);
+    } else {
+      res.status(503).type('text').send('The web app has not been exported yet: run `npm start`, which exports it.');
+    }
+  });
+  const final: express.ErrorRequestHandler = (err, _req, res, _next) => {
+    res.status(isDatabaseDown(err) ? 503 : 500).type('text').send('Server error');
+  };
+  app.use(final);
+  return app;
+}

@@ -1,0 +1,68 @@
+import pg from 'pg';
+import type { Server } from 'node:http';
+import type { Config } from './config';
+import { connectDatabase } from './db';
+import { createAuth } from './auth/sessions';
+import { createMailer } from './mail/mailer';
+import { createApp, createServices, type AppDeps } from './app';
+
+export type Running = AppDeps & { app: ReturnType<typeof createApp>; close(): Promise<void> };
+
+/** Everything the app needs, wired once: database, sessions, mail, services. */
+export async function boot(config: Config, log: (msg: string) => void = console.log): Promise<Running> {
+  const db = connectDatabase(config.databaseUrl);
+  const pool = new pg.Pool({ connectionString: config.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
+  // An idle client whose server went away must not take the process down;
+  // the next query gets a new connection (or a 503 while it is still down).
+  pool.on('error', () => {});
+  const auth = createAuth(pool);
+  const mailer = await createMailer(config);
+  const services = createServices(db, mailer, config);
+  const deps: AppDeps = { config, db, pool, auth, mailer, services, log };
+  const app = createApp(deps);
+  return {
+    ...deps,
+    app,
+    async close() {
+      await mailer.close();
+      await pool.end();
+      await db.close();
+    },
+  };
+}
+
+/** Listens, turning "port in use" into one clear line. */
+export function listen(app: Running['app'], port: number, host: string): Promise<Server> {
+  return new Promise((resolve, reject) => {
+    const server = app.listen(port, host);
+    server.once('listening', () => resolve(server));
+    server.once('error', (err: NodeJS.ErrnoException) => {
+      if (err.code === 'EADDRINUSE') reject(new Error(`port ${port} is already in use on ${host} (set PORT to choose another)`));
+      else if (err.code === 'EACCES') reject(new Error(`port ${port} needs privileges this user does not have (set PORT to choose another)`));
+      else reject(err);
+    });
+  });
+}
+
+/** Fails with one readable line when the database cannot be reached. */
+export async function checkDatabase(databaseUrl: string): Promise<void> {
+  const client = new pg.Client({ connectionString: databaseUrl, connectionTimeoutMillis: 5_000 });
+  const where = (() => {
+    try {
+      const u = new URL(databaseUrl);
+      return `${u.hostname}:${u.port || 5432}${u.pathname}`;
+    } catch {
+      return 'the configured address';
+    }
+  })();
+  try {
+    await client.connect();
+    await client.query('SELECT 1');
+  } catch (err) {
+    const e = err as NodeJS.ErrnoException;
+    const why = e.code === 'ECONNREFUSED' ? 'connection refused (is PostgreSQL running?)' : e.message;
+    throw new Error(`cannot reach the database at ${where}: ${why}`);
+  } finally {
+    await client.end().catch(() => {});
+  }
+}

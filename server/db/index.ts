@@ -1,0 +1,37 @@
+import { Sequelize } from 'sequelize';
+import { Umzug, SequelizeStorage } from 'umzug';
+import { migrations } from './migrations';
+import { initModels, type Models } from './models';
+
+export type Database = { sequelize: Sequelize; models: Models; close(): Promise<void> };
+
+/** One Sequelize instance per process; models are plain definitions on it. */
+export function connectDatabase(databaseUrl: string, opts: { logging?: boolean } = {}): Database {
+  const sequelize = new Sequelize(databaseUrl, {
+    dialect: 'postgres',
+    logging: opts.logging ? console.log : false,
+    pool: { max: 10, min: 0, idle: 10_000, acquire: 10_000 },
+    dialectOptions: { connectionTimeoutMillis: 5_000 },
+  });
+  const models = initModels(sequelize);
+  return { sequelize, models, close: () => sequelize.close() };
+}
+
+export function migrator(sequelize: Sequelize) {
+  return new Umzug({
+    migrations: migrations.map((m) => ({
+      name: m.name,
+      up: ({ context }) => m.up(context),
+      down: ({ context }) => m.down(context),
+    })),
+    context: sequelize.getQueryInterface(),
+    storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
+    logger: undefined,
+  });
+}
+
+/** Applies every pending migration; returns the names applied. */
+export async function migrate(sequelize: Sequelize): Promise<string[]> {
+  const applied = await migrator(sequelize).up();
+  return applied.map((m) => m.name);
+}

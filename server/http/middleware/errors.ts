@@ -1,0 +1,50 @@
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { AppError } from '../../errors';
+
+/** Errors that mean "the database is not there right now", whoever raised them. */
+export function isDatabaseDown(err: unknown): boolean {
+  const e = err as { name?: string; code?: string; parent?: unknown; original?: unknown; message?: string } | null;
+  if (!e) return false;
+  if (e.name && /^Sequelize(Connection\w*|HostNotReachable|HostNotFound|AccessDenied|ConnectionTimedOut)Error$/.test(e.name)) return true;
+  if (e.code && ['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', '57P01', '57P02', '57P03', '08000', '08003', '08006'].includes(e.code)) return true;
+  if (e.message && /Connection terminated|connection timeout|the database system is (starting up|shutting down)/i.test(e.message)) return true;
+  return isDatabaseDown(e.parent ?? e.original ?? null);
+}
+
+export const notFoundRoute: RequestHandler = (req, _res, next) => {
+  next(new AppError(404, 'not_found', `There is no route ${req.method} ${req.path}.`));
+};
+
+export function errorHandler(log: (msg: string) => void): ErrorRequestHandler {
+  return (err, _req, res, _next) => {
+    if (res.headersSent) return;
+    if (err instanceof AppError) {
+      const body: Record<string, unknown> = { code: err.code, message: err.message };
+      if (err.field) body.field = err.field;
+      if (err.details) Object.assign(body, err.details);
+      res.status(err.status).json({ error: body });
+      return;
+    }
+    // body-parser's own errors carry a status and a type.
+    const status = (err as { status?: number }).status;
+    const type = (err as { type?: string }).type;
+    if (type === 'entity.parse.failed') {
+      res.status(400).json({ error: { code: 'invalid_json', message: 'The request body is not valid JSON.' } });
+      return;
+    }
+    if (type === 'entity.too.large') {
+      res.status(413).json({ error: { code: 'too_large', message: 'The request body is too large.' } });
+      return;
+    }
+    if (status && status >= 400 && status < 500) {
+      res.status(status).json({ error: { code: 'bad_request', message: 'The request could not be read.' } });
+      return;
+    }
+    if (isDatabaseDown(err)) {
+      res.status(503).json({ error: { code: 'db_unavailable', message: 'The database is not reachable right now; try again shortly.' } });
+      return;
+    }
+    log(`unexpected error: ${(err as Error)?.stack ?? String(err)}`);
+    res.status(500).json({ error: { code: 'internal', message: 'Something went wrong on the server.' } });
+  };
+}

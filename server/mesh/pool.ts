@@ -1,0 +1,163 @@
+/**
+ * A small pool of worker threads that measure mesh files. Jobs queue when all
+ * workers are busy; a job that runs past its time limit (a crafted file can
+ * make inflating or parsing slow) has its worker replaced and is answered with
+ * a problem instead of hanging the upload.
+ */
+import { Worker } from 'node:worker_threads';
+import { availableParallelism } from 'node:os';
+import path from 'node:path';
+import { quoteName, type MeasureOptions } from '../../shared/geometry';
+import type { FileMeasureResult, MeasureReply, MeasureRequest } from './protocol';
+
+export interface MeshPoolOptions {
+  /** Worker threads (default: half the cores, at least 1, at most 4). */
+  size?: number;
+  /** Time limit per file (default 120 s). */
+  timeoutMs?: number;
+}
+
+interface Job {
+  request: Omit<MeasureRequest, 'id'>;
+  resolve: (result: FileMeasureResult) => void;
+  reject: (error: Error) => void;
+}
+
+interface Slot {
+  worker: Worker;
+  job: (Job & { id: number; timer: NodeJS.Timeout }) | null;
+}
+
+// Under tsx or jest the sources are TypeScript; the worker then registers tsx's loader itself.
+const WORKER_FILE = path.join(__dirname, __filename.endsWith('.ts') ? 'worker.ts' : 'worker.js');
+
+function spawnWorker(): Worker {
+  if (WORKER_FILE.endsWith('.ts')) {
+    const bootstrap = `require('tsx/cjs/api').register(); require(${JSON.stringify(WORKER_FILE)});`;
+    return new Worker(bootstrap, { eval: true });
+  }
+  return new Worker(WORKER_FILE);
+}
+
+export class MeshPool {
+  private readonly slots: Slot[] = [];
+  private readonly queue: Job[] = [];
+  private readonly timeoutMs: number;
+  private nextId = 1;
+  private closed = false;
+
+  constructor(options: MeshPoolOptions = {}) {
+    const size = options.size ?? Math.min(4, Math.max(1, Math.floor(availableParallelism() / 2)));
+    this.timeoutMs = options.timeoutMs ?? 120_000;
+    for (let i = 0; i < size; i++) this.slots.push(this.makeSlot());
+  }
+
+  /** Measures a file on disk (a path) or in memory (bytes). */
+  measure(input: string | Uint8Array, options: MeasureOptions): Promise<FileMeasureResult> {
+    if (this.closed) return Promise.reject(new Error('the mesh pool is closed'));
+    const request = typeof input === 'string' ? { path: input, options } : { bytes: input, options };
+    return new Promise((resolve, reject) => {
+      this.queue.push({ request, resolve, reject });
+      this.dispatch();
+    });
+  }
+
+  async close(): Promise<void> {
+    this.closed = true;
+    for (const job of this.queue.splice(0)) job.reject(new Error('the mesh pool is closed'));
+    await Promise.all(
+      this.slots.map(async (slot) => {
+        if (slot.job) {
+          clearTimeout(slot.job.timer);
+          slot.job.reject(new Error('the mesh pool is closed'));
+          slot.job = null;
+        }
+        await slot.worker.terminate();
+      }),
+    );
+  }
+
+  private makeSlot(): Slot {
+    const slot: Slot = { worker: spawnWorker(), job: null };
+    this.attach(slot);
+    return slot;
+  }
+
+  private attach(slot: Slot): void {
+    const worker = slot.worker;
+    worker.unref();
+    worker.on('message', (reply: MeasureReply) => {
+      const job = slot.job;
+      if (!job || job.id !== reply.id) return;
+      clearTimeout(job.timer);
+      slot.job = null;
+      if ('error' in reply) job.reject(new Error(`measuring ${job.request.options.filename} failed: ${reply.error}`));
+      else job.resolve(reply.result);
+      this.dispatch();
+    });
+    worker.on('error', (error) => this.replace(slot, { code: 'measure-failed', message: `${quoteName(slot.job?.request.options.filename ?? '')} could not be measured (${error.message}).` }));
+    worker.on('exit', () => {
+      if (!this.closed && slot.worker === worker) {
+        this.replace(slot, { code: 'measure-failed', message: `${quoteName(slot.job?.request.options.filename ?? '')} could not be measured: the measuring process stopped.` });
+      }
+    });
+  }
+
+  /** Answers the slot's job with a problem and starts a fresh worker in its place. */
+  private replace(slot: Slot, problem: { code: 'measure-timeout' | 'measure-failed'; message: string }): void {
+    const job = slot.job;
+    slot.job = null;
+    if (job) {
+      clearTimeout(job.timer);
+      job.resolve({ ok: false, problems: [problem] });
+    }
+    const old = slot.worker;
+    if (this.closed) return;
+    slot.worker = spawnWorker();
+    this.attach(slot);
+    void old.terminate();
+    this.dispatch();
+  }
+
+  private dispatch(): void {
+    for (const slot of this.slots) {
+      if (slot.job || this.queue.length === 0) continue;
+      const job = this.queue.shift()!;
+      const id = this.nextId++;
+      const timer = setTimeout(() => {
+        this.replace(slot, {
+          code: 'measure-timeout',
+          message: `${quoteName(job.request.options.filename)} took longer than ${Math.round(this.timeoutMs / 1000)} s to measure and was stopped. The file may be damaged or far larger than it looks.`,
+        });
+      }, this.timeoutMs);
+      timer.unref();
+      slot.job = { ...job, id, timer };
+      // A queued job keeps its worker referenced so the process waits for the answer.
+      slot.worker.ref();
+      slot.worker.postMessage({ id, ...job.request } satisfies MeasureRequest);
+    }
+    for (const slot of this.slots) if (!slot.job) slot.worker.unref();
+  }
+}
+
+let shared: MeshPool | null = null;
+
+/** The process-wide pool, created on first use. */
+export function meshPool(options?: MeshPoolOptions): MeshPool {
+  if (!shared) shared = new MeshPool(options);
+  return shared;
+}
+
+export async function closeMeshPool(): Promise<void> {
+  const pool = shared;
+  shared = null;
+  if (pool) await pool.close();
+}
+
+/**
+ * Measures an uploaded file in a worker thread: a path (multer's temp file) or
+ * the bytes. Resolves with the measured parts or the file's problems.
+ */
+export function measureFile(input: string | Uint8Array, options: MeasureOptions): Promise<FileMeasureResult> {
+  return meshPool().measure(input, options);
+}

@@ -1,0 +1,70 @@
+import type { z } from 'zod';
+import type { Database } from '../db';
+import { conflict, notFound } from '../errors';
+import { parseOrThrow } from '../http/validate';
+
+type ProfileModel = Database['models']['Machine'];
+export type Stored<P> = P & { id: string; labId: string; createdAt: string; updatedAt: string };
+
+function view<P>(row: any): Stored<P> {
+  return {
+    id: row.id,
+    labId: row.labId,
+    ...row.profile,
+    name: row.name,
+    createdAt: new Date(row.created_at ?? row.createdAt).toISOString(),
+    updatedAt: new Date(row.updated_at ?? row.updatedAt).toISOString(),
+  };
+}
+
+/**
+ * Machines and materials share one shape: a name unique in the lab plus a
+ * profile checked by its shared schema. `what` names the thing in messages.
+ */
+export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string) {
+  type P = z.infer<S>;
+  const partial = schema.partial();
+
+  async function save(labId: string, row: any | null, profile: P) {
+    const { name, ...rest } = profile as P & { name: string };
+    try {
+      if (row) return view<P>((await row.update({ name, profile: rest })).get({ plain: true }));
+      return view<P>((await model.create({ labId, name, profile: rest })).get({ plain: true }));
+    } catch (err) {
+      if ((err as { name?: string }).name === 'SequelizeUniqueConstraintError') {
+        throw conflict('name_taken', `This lab already has a ${what} named "${name}".`, 'name');
+      }
+      throw err;
+    }
+  }
+
+  async function find(labId: string, id: string) {
+    const row = await model.findOne({ where: { id, labId } });
+    if (!row) throw notFound(`That ${what}`);
+    return row;
+  }
+
+  return {
+    async list(labId: string): Promise<Stored<P>[]> {
+      const rows = await model.findAll({ where: { labId }, order: [['name', 'ASC']], raw: true });
+      return rows.map((r) => view<P>(r));
+    },
+    async get(labId: string, id: string): Promise<Stored<P>> {
+      return view<P>((await find(labId, id)).get({ plain: true }));
+    },
+    async create(labId: string, body: unknown): Promise<Stored<P>> {
+      return save(labId, null, parseOrThrow(schema, body));
+    },
+    async update(labId: string, id: string, body: unknown): Promise<Stored<P>> {
+      const patch = parseOrThrow(partial, body);
+      const row: any = await find(labId, id);
+      const current = { name: row.name, ...row.profile };
+      return save(labId, row, parseOrThrow(schema, { ...current, ...patch }));
+    },
+    async remove(labId: string, id: string): Promise<void> {
+      const row = await find(labId, id);
+      await row.destroy();
+    },
+  };
+}
+export type ProfilesService = ReturnType<typeof profilesService>;

@@ -1,0 +1,49 @@
+import { z } from 'zod';
+
+export const ROLES = ['designer', 'planner', 'lead', 'operator'] as const;
+export type Role = (typeof ROLES)[number];
+export const roleSchema = z.enum(ROLES);
+export const rolesSchema = z
+  .array(roleSchema)
+  .min(1, 'choose at least one role')
+  .max(4)
+  .transform((roles) => ROLES.filter((r) => roles.includes(r)));
+
+export const PASSWORD_MIN = 10;
+export const emailSchema = z
+  .string()
+  .trim()
+  .max(254, 'must be at most 254 characters')
+  .pipe(z.email('must be an e-mail address'))
+  .transform((e) => e.toLowerCase());
+export const passwordSchema = z
+  .string()
+  .min(PASSWORD_MIN, `must be at least ${PASSWORD_MIN} characters`)
+  .max(200, 'must be at most 200 characters');
+export const personNameSchema = z.string().trim().min(1, 'is required').max(120, 'must be at most 120 characters');
+export const labNameSchema = z.string().trim().min(1, 'is required').max(120, 'must be at most 120 characters');
+
+export const signUpSchema = z.strictObject({
+  email: emailSchema,
+  password: passwordSchema,
+  name: personNameSchema,
+  labName: labNameSchema,
+});
+export const signInSchema = z.strictObject({
+  email: emailSchema,
+  password: z.string().min(1, 'is required').max(200),
+});
+export const inviteCreateSchema = z.strictObject({ email: emailSchema, roles: rolesSchema });
+export const inviteAcceptSchema = z.strictObject({
+  name: personNameSchema.optional(),
+  password: passwordSchema.optional(),
+});
+export const memberUpdateSchema = z.strictObject({ roles: rolesSchema });
+
+export type SignUpInput = z.infer<typeof signUpSchema>;
+export type SignInInput = z.infer<typeof signInSchema>;
+
+export type MeResponse = {
+  user: { id: string; email: string; name: string };
+  labs: { id: string; name: string; roles: Role[] }[];
+};
