@@ -1,0 +1,92 @@
+/**
+ * Measuring benchmark: writes a 1,000,000-triangle binary STL (a finely
+ * tessellated torus, 48 MB), then reads and measures it in-process and through
+ * the server's worker pool, printing milliseconds and the process's peak RSS.
+ * Also times the alternative edge count (a JS Map keyed on vertex pairs)
+ * against the adjacency-list count the metrics use.
+ *
+ *   npm run bench:mesh            (target: under 3 s for the file)
+ */
+import { mkdtempSync, readFileSync, rmSync, writeFileSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { performance } from 'node:perf_hooks';
+import { measureMeshFile, measureMesh, parseStl, torus, writeBinaryStl } from '../shared/geometry';
+import { closeMeshPool, measureFile } from '../server/mesh';
+
+const MAJOR = 1000;
+const MINOR = 500; // 2 x 1000 x 500 = 1,000,000 triangles
+
+function peakRssMb(): number {
+  return process.resourceUsage().maxRSS / 1024;
+}
+
+function mapEdgeCount(indices: Uint32Array, vertexCount: number): number {
+  const uses = new Map<number, number>();
+  for (let f = 0; f < indices.length; f += 3) {
+    for (let k = 0; k < 3; k++) {
+      const a = indices[f + k];
+      const b = indices[f + (k + 1) % 3];
+      const key = a < b ? a * vertexCount + b : b * vertexCount + a;
+      uses.set(key, (uses.get(key) ?? 0) + 1);
+    }
+  }
+  let open = 0;
+  for (const n of uses.values()) if (n === 1) open++;
+  return open;
+}
+
+async function main(): Promise<void> {
+  const dir = mkdtempSync(path.join(tmpdir(), 'bench-mesh-'));
+  const file = path.join(dir, 'torus-1m.stl');
+  try {
+    const rssAtStart = peakRssMb();
+    let t0 = performance.now();
+    writeFileSync(file, writeBinaryStl(torus(60, 20, MAJOR, MINOR), 'benchmark torus'));
+    const fileMb = statSync(file).size / 1e6;
+    console.log(`generated ${MAJOR * MINOR * 2} triangles, ${fileMb.toFixed(1)} MB binary STL in ${(performance.now() - t0).toFixed(0)} ms`);
+    const rssAfterGenerate = peakRssMb();
+
+    // The server's path first, so the peak RSS it reaches is not hidden by the in-process runs below.
+    // A cold worker pays for starting the thread and loading the sources; the second file shows the steady state.
+    for (const label of ['worker pool, first file (includes worker start)', 'worker pool, next file']) {
+      t0 = performance.now();
+      const result = await measureFile(file, { filename: 'torus-1m.stl' });
+      const ms = performance.now() - t0;
+      console.log(`${label}: ${ms.toFixed(0)} ms from the path on disk (${result.ok ? `${result.parts[0].metrics.triangles} triangles` : result.problems[0].code})`);
+    }
+    const rssAfterWorker = peakRssMb();
+    console.log(
+      `peak RSS: ${rssAtStart.toFixed(0)} MB at start, ${rssAfterGenerate.toFixed(0)} MB after generating, ` +
+        `${rssAfterWorker.toFixed(0)} MB after measuring in the worker (+${(rssAfterWorker - rssAfterGenerate).toFixed(0)} MB, ` +
+        `${((rssAfterWorker - rssAfterGenerate) / fileMb).toFixed(1)} x the file)`,
+    );
+
+    const stl = new Uint8Array(readFileSync(file));
+    t0 = performance.now();
+    const parsed = parseStl(stl, { filename: 'torus-1m.stl' });
+    const parseMs = performance.now() - t0;
+    if (!parsed.ok) throw new Error(parsed.problems[0].message);
+    t0 = performance.now();
+    const metrics = measureMesh(parsed.parts[0]);
+    const metricsMs = performance.now() - t0;
+    console.log(`in process: parse + weld ${parseMs.toFixed(0)} ms, metrics ${metricsMs.toFixed(0)} ms, total ${(parseMs + metricsMs).toFixed(0)} ms`);
+    console.log(
+      `  volume ${metrics.volumeMm3.toFixed(1)} mm3 (smooth torus 2 pi^2 R r^2 = ${(2 * Math.PI ** 2 * 60 * 400).toFixed(1)}), ` +
+        `area ${metrics.areaMm2.toFixed(1)} mm2, watertight ${metrics.watertight}, oriented ${metrics.oriented}, shells ${metrics.shells}`,
+    );
+
+    t0 = performance.now();
+    const whole = measureMeshFile(stl, { filename: 'torus-1m.stl' });
+    console.log(`in process, measureMeshFile: ${(performance.now() - t0).toFixed(0)} ms (${whole.ok ? 'ok' : whole.problems[0].code})`);
+
+    t0 = performance.now();
+    const open = mapEdgeCount(parsed.parts[0].indices, parsed.parts[0].positions.length / 3);
+    console.log(`alternative edge count with a JS Map: ${(performance.now() - t0).toFixed(0)} ms (${open} open edges), vs the whole metrics above`);
+  } finally {
+    await closeMeshPool();
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+void main();
