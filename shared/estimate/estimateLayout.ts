@@ -304,6 +304,11 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
     machineSeconds,
     powder,
     cost,
-    calibration: { ...factors },
+    calibration: {
+      printTimeScale: factors.printTimeScale,
+      coolingScale: factors.coolingScale,
+      runs: factors.runs,
+      calibrated: factors.calibrated,
+    },
   };
 }

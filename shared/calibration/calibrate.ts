@@ -1,0 +1,134 @@
+import type { CalibrationFactors } from '../estimate/estimateLayout';
+import { InvalidInputError, isFiniteNumber, type Problem } from '../estimate/problems';
+
+/** One finished run of a machine: what was estimated and what happened. Hours; null when not recorded. */
+export interface RecordedRun {
+  /** When the run finished (epoch ms); orders the runs when every one has it. */
+  finishedAtMs?: number;
+  estimatedPrintHours: number | null;
+  actualPrintHours: number | null;
+  /** In the machine and outside, together. */
+  estimatedCoolingHours: number | null;
+  actualCoolingHours: number | null;
+  /** Factors the run's estimate was made with (1 when left out), so a fit never compounds an earlier one. */
+  printTimeScaleUsed?: number;
+  coolingScaleUsed?: number;
+}
+
+export interface CalibrationOptions {
+  /** Fit over at most this many of the latest complete runs. Default 10. */
+  lastRuns?: number;
+  /** Below this many complete runs the factors stay 1 ("not calibrated"). Default 3. */
+  minRuns?: number;
+  /** Factors are kept within this band: outside it a recording mistake is likelier than a real machine. Default [0.5, 2]. */
+  band?: readonly [number, number];
+}
+
+export interface Calibration extends CalibrationFactors {
+  /** A factor hit the band and was held at its edge. */
+  printTimeClamped: boolean;
+  coolingClamped: boolean;
+}
+
+export const DEFAULT_LAST_RUNS = 10;
+export const DEFAULT_MIN_RUNS = 3;
+export const DEFAULT_BAND: readonly [number, number] = [0.5, 2];
+
+function validate(runs: readonly RecordedRun[], options: CalibrationOptions): Problem[] {
+  const problems: Problem[] = [];
+  if (!Array.isArray(runs)) return [{ field: 'runs', message: 'must be an array' }];
+  runs.forEach((run, i) => {
+    for (const key of ['estimatedPrintHours', 'actualPrintHours', 'estimatedCoolingHours', 'actualCoolingHours'] as const) {
+      const v = run?.[key];
+      if (v !== null && (!isFiniteNumber(v) || v < 0)) problems.push({ field: `runs[${i}].${key}`, message: 'must be a non-negative number or null' });
+    }
+    for (const key of ['printTimeScaleUsed', 'coolingScaleUsed'] as const) {
+      const v = run?.[key];
+      if (v !== undefined && (!isFiniteNumber(v) || v <= 0)) problems.push({ field: `runs[${i}].${key}`, message: 'must be a positive number' });
+    }
+    if (run?.finishedAtMs !== undefined && !isFiniteNumber(run.finishedAtMs)) {
+      problems.push({ field: `runs[${i}].finishedAtMs`, message: 'must be epoch milliseconds' });
+    }
+  });
+  if (options.lastRuns !== undefined && (!Number.isInteger(options.lastRuns) || options.lastRuns < 1)) {
+    problems.push({ field: 'options.lastRuns', message: 'must be a positive integer' });
+  }
+  if (options.minRuns !== undefined && (!Number.isInteger(options.minRuns) || options.minRuns < 1)) {
+    problems.push({ field: 'options.minRuns', message: 'must be a positive integer' });
+  }
+  if (options.band !== undefined) {
+    const [lo, hi] = options.band;
+    if (!isFiniteNumber(lo) || !isFiniteNumber(hi) || lo <= 0 || hi < lo) {
+      problems.push({ field: 'options.band', message: 'must be [low, high] with 0 < low <= high' });
+    }
+  }
+  return problems;
+}
+
+/** Least squares through the origin for actual = s x estimate: s = sum(a e) / sum(e e). */
+export function scaleThroughOrigin(estimates: ArrayLike<number>, actuals: ArrayLike<number>): number {
+  let ae = 0;
+  let ee = 0;
+  for (let i = 0; i < estimates.length; i++) {
+    ae += actuals[i] * estimates[i];
+    ee += estimates[i] * estimates[i];
+  }
+  return ee > 0 ? ae / ee : 1;
+}
+
+function clamp(value: number, band: readonly [number, number]): { value: number; clamped: boolean } {
+  const v = Math.min(band[1], Math.max(band[0], value));
+  return { value: v, clamped: v !== value };
+}
+
+/**
+ * A machine's estimate factors from its recorded runs. Only complete runs count (all four hours recorded and
+ * positive; an aborted run has no meaningful actual). Over the latest `lastRuns` of them:
+ *
+ * - print-time scale: the least-squares s in actual print = s x estimated print;
+ * - cooling scale: the same fit c for cooling time, inverted, because the scale multiplies the Newton cooling
+ *   constant k and the time to a temperature goes as 1 / k.
+ *
+ * Each estimate is first brought back to factors 1 with the factors it was made with. The cake's size needs no
+ * separate term: the estimates already scale k with the cake's surface-to-volume ratio.
+ */
+export function calibrateMachine(runs: readonly RecordedRun[], options: CalibrationOptions = {}): Calibration {
+  const problems = validate(runs, options);
+  if (problems.length > 0) throw new InvalidInputError(problems);
+  const lastRuns = options.lastRuns ?? DEFAULT_LAST_RUNS;
+  const minRuns = options.minRuns ?? DEFAULT_MIN_RUNS;
+  const band = options.band ?? DEFAULT_BAND;
+
+  const complete = runs.filter(
+    (r) =>
+      (r.estimatedPrintHours ?? 0) > 0 &&
+      (r.actualPrintHours ?? 0) > 0 &&
+      (r.estimatedCoolingHours ?? 0) > 0 &&
+      (r.actualCoolingHours ?? 0) > 0,
+  );
+  const ordered = complete.every((r) => r.finishedAtMs !== undefined)
+    ? [...complete].sort((a, b) => a.finishedAtMs! - b.finishedAtMs!)
+    : complete;
+  const used = ordered.slice(Math.max(0, ordered.length - lastRuns));
+
+  if (used.length < minRuns) {
+    return { printTimeScale: 1, coolingScale: 1, runs: used.length, calibrated: false, printTimeClamped: false, coolingClamped: false };
+  }
+
+  const printEstimates = used.map((r) => r.estimatedPrintHours! / (r.printTimeScaleUsed ?? 1));
+  const printActuals = used.map((r) => r.actualPrintHours!);
+  // The cooling estimate was the unscaled time divided by the scale used: multiply it back.
+  const coolingEstimates = used.map((r) => r.estimatedCoolingHours! * (r.coolingScaleUsed ?? 1));
+  const coolingActuals = used.map((r) => r.actualCoolingHours!);
+
+  const print = clamp(scaleThroughOrigin(printEstimates, printActuals), band);
+  const cooling = clamp(1 / scaleThroughOrigin(coolingEstimates, coolingActuals), band);
+  return {
+    printTimeScale: print.value,
+    coolingScale: cooling.value,
+    runs: used.length,
+    calibrated: true,
+    printTimeClamped: print.clamped,
+    coolingClamped: cooling.clamped,
+  };
+}
