@@ -435,25 +435,23 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   const usedHeight = () => (ctx.best ? ctx.best.height - bottom : full);
   let lo = Math.max(0, lowerBound(inst) - bottom);
   const step = () => Math.max(inst.layerHeight, 1e-3 * usedHeight());
-  const tryHeight = function* (h: number, useBeam: boolean): Generator<void, boolean, void> {
+  const tryHeight = function* (h: number, level: number): Generator<void, boolean, void> {
     for (const floorFirst of [true, false]) {
       for (const w of [1, 0.3]) {
-        const problem = problemFor(model, h, floorFirst, w);
-        if (!useBeam) {
+        const jitter = level >= SCHEDULE.length ? 0.6 * ctx.random() : 0;
+        const problem = problemFor(model, h, floorFirst, w + jitter);
+        if (level < 0) {
           const s = greedy(ctx, problem);
           if (s.boxesLeft === 0) {
             offer(ctx, expand(model, s));
             return true;
           }
         } else {
-          for (let round = 0; round < 3; round++) {
-            const [width, branching] = SCHEDULE[round];
-            const s = yield* beam(ctx, problem, width, branching, (x) => x.boxesLeft === 0);
-            if (s && s.boxesLeft === 0) {
-              offer(ctx, expand(model, s));
-              return true;
-            }
-            if (outOfBudget(ctx)) return false;
+          const [width, branching] = SCHEDULE[Math.min(level, SCHEDULE.length - 1)];
+          const s = yield* beam(ctx, problem, width, branching, (x) => x.boxesLeft === 0);
+          if (s && s.boxesLeft === 0) {
+            offer(ctx, expand(model, s));
+            return true;
           }
         }
         if (outOfBudget(ctx)) return false;
@@ -466,19 +464,23 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   let hi = usedHeight();
   while (hi - lo > step() && !outOfBudget(ctx)) {
     const mid = (lo + hi) / 2;
-    if (yield* tryHeight(mid, false)) hi = Math.min(mid, usedHeight());
+    if (yield* tryHeight(mid, -1)) hi = Math.min(mid, usedHeight());
     else lo = mid;
   }
   ctx.phase = 'search';
-  // Beam search just under the best height; a failure raises the floor of the search.
+  // Beam searches under the best height, wider each time the gap closes without success.
+  const bound = Math.max(0, lowerBound(inst) - bottom);
   let floorH = lo;
-  hi = usedHeight();
+  let level = 0;
   while (!outOfBudget(ctx)) {
+    hi = usedHeight();
+    if (hi - bound <= step()) break;
+    if (hi - floorH <= step()) {
+      level++;
+      floorH = bound;
+    }
     const target = Math.max(floorH, hi - Math.max(step(), (hi - floorH) / 2));
-    if (target >= hi - 1e-9) break;
-    if (yield* tryHeight(target, true)) hi = usedHeight();
-    else floorH = target;
-    if (hi - floorH <= step()) break;
+    if (!(yield* tryHeight(target, level))) floorH = target;
   }
 }
 

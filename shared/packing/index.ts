@@ -6,3 +6,4 @@ export { orientedSize, usableRegion, layerCount, TOLERANCE_MM } from './geometry
 export { createPacking, pack, packSync, type PackOptions, type PackPhase, type PackRunHooks, type Packing } from './engine';
 export { createRandom, type Random } from './prng';
 export { parseBischoffRatcliff } from './br';
+export { generatePowderBed, type PowderBedOptions } from './generate';
