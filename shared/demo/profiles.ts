@@ -15,7 +15,7 @@ const LAYER_HEIGHTS_MM = [0.08, 0.1, 0.11, 0.12, 0.15];
  */
 export const demoMachines: readonly MachineProfile[] = [
   {
-    name: 'Wren 30',
+    name: 'Wren',
     chamberMm: [300, 300, 380],
     layerHeightsMm: LAYER_HEIGHTS_MM,
     laserPowerW: 30,
@@ -33,7 +33,7 @@ export const demoMachines: readonly MachineProfile[] = [
     chamberCount: 1,
   },
   {
-    name: 'Heron 60',
+    name: 'Heron',
     chamberMm: [340, 340, 600],
     layerHeightsMm: LAYER_HEIGHTS_MM,
     laserPowerW: 60,

@@ -142,24 +142,26 @@ function validate(input: EstimateInput): { problems: Problem[]; boxes: BoxArrays
     if (!Array.isArray(layout.placements)) {
       problems.push({ field: 'layout.placements', message: 'must be an array' });
     } else {
+      const before = problems.length;
       layout.placements.forEach((p, i) => {
         for (const key of ['position', 'size'] as const) {
           const v = p?.[key];
-          if (!Array.isArray(v) || v.length !== 3) {
+          if (v === null || typeof v !== 'object' || v.length !== 3) {
             problems.push({ field: `layout.placements[${i}].${key}`, message: 'must be three numbers' });
             continue;
           }
-          v.forEach((x, a) => {
+          Array.from(v).forEach((x, a) => {
             if (!isFiniteNumber(x) || (key === 'size' ? x <= 0 : false)) {
               problems.push({ field: `layout.placements[${i}].${key}[${a}]`, message: key === 'size' ? 'must be a positive number' : 'must be a finite number' });
             }
           });
         }
       });
-      if (problems.length === 0) boxes = boxArraysFromPlacements(layout.placements);
+      if (problems.length === before) boxes = boxArraysFromPlacements(layout.placements);
     }
   } else if (layout.positionsMm !== undefined && layout.sizesMm !== undefined) {
     const { positionsMm, sizesMm } = layout;
+    const before = problems.length;
     if (positionsMm.length % 3 !== 0) problems.push({ field: 'layout.positionsMm', message: 'length must be a multiple of 3' });
     if (sizesMm.length !== positionsMm.length) problems.push({ field: 'layout.sizesMm', message: 'must have the same length as layout.positionsMm' });
     for (let i = 0; i < positionsMm.length; i++) {
@@ -168,7 +170,7 @@ function validate(input: EstimateInput): { problems: Problem[]; boxes: BoxArrays
     for (let i = 0; i < sizesMm.length; i++) {
       if (!isFiniteNumber(sizesMm[i]) || sizesMm[i] <= 0) problems.push({ field: `layout.sizesMm[${i}]`, message: 'must be a positive number' });
     }
-    boxes = { positionsMm, sizesMm };
+    if (problems.length === before) boxes = { positionsMm, sizesMm };
   } else {
     problems.push({ field: 'layout', message: 'needs placements, or positionsMm and sizesMm' });
   }
@@ -176,7 +178,7 @@ function validate(input: EstimateInput): { problems: Problem[]; boxes: BoxArrays
   if (layout && typeof layout === 'object') {
     if (layout.heightMm !== undefined && (!isFiniteNumber(layout.heightMm) || layout.heightMm < 0)) {
       problems.push({ field: 'layout.heightMm', message: 'must be a non-negative number' });
-    } else if (layout.heightMm !== undefined && boxes && problems.length === 0 && boxesTopMm(boxes) > layout.heightMm + LENGTH_TOLERANCE_MM) {
+    } else if (layout.heightMm !== undefined && boxes && boxesTopMm(boxes) > layout.heightMm + LENGTH_TOLERANCE_MM) {
       problems.push({ field: 'layout.heightMm', message: `is below the top of the highest box (${boxesTopMm(boxes)})` });
     }
     if (layout.margin !== undefined) {

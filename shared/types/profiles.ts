@@ -13,9 +13,12 @@ export const machineProfileSchema = z.strictObject({
   laserPowerW: z.number().positive().max(10000),
   recoatSeconds: z.number().min(0).max(600),
   preheatSeconds: z.number().min(0).max(86400),
-  /** Newton cooling constant inside the machine for the reference cake volume (1/hour). */
+  /**
+   * Newton cooling constant inside the machine for the reference cake, a full chamber (1/hour);
+   * the estimates scale it for other cakes by their surface-to-volume ratio.
+   */
   coolingInMachinePerHour: z.number().positive().max(100),
-  /** Newton cooling constant outside the machine for the reference cake volume (1/hour). */
+  /** Newton cooling constant outside the machine for the reference cake, a full chamber (1/hour). */
   coolingOutsidePerHour: z.number().positive().max(100),
   /** Temperature at which the chamber may leave the machine. */
   removalTempC: z.number().min(-50).max(400),
