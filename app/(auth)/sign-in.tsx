@@ -1,0 +1,5 @@
+import { SignInForm } from '@/components/auth/SignInForm';
+
+export default function SignInRoute() {
+  return <SignInForm />;
+}

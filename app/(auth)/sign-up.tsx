@@ -1,0 +1,5 @@
+import { SignUpForm } from '@/components/auth/SignUpForm';
+
+export default function SignUpRoute() {
+  return <SignUpForm />;
+}

@@ -1,0 +1,175 @@
+import { Link, usePathname } from 'expo-router';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { useSafeAreaInsets } from 'react-native-safe-area-context';
+import { useMeQuery, useSignOutMutation } from '../queries/me';
+import { colors, radius, spacing, useIsWide } from '../theme';
+import { Icon, Text } from '../ui';
+import { LabSwitcher } from './LabSwitcher';
+import { isActive, visibleNavItems, type NavItem } from './navItems';
+import { useLab } from './useCurrentLab';
+import { Wordmark } from './Wordmark';
+
+/** The frame around every lab screen: a side rail on wide screens, a top bar and tab bar on phones. */
+export function LabShell({ children }: { children: React.ReactNode }) {
+  const wide = useIsWide();
+  const lab = useLab();
+  const items = visibleNavItems(lab.has);
+  return wide ? <RailFrame items={items}>{children}</RailFrame> : <TabFrame items={items}>{children}</TabFrame>;
+}
+
+function RailFrame({ items, children }: { items: NavItem[]; children: React.ReactNode }) {
+  const pathname = usePathname();
+  const { data: me } = useMeQuery();
+  const signOut = useSignOutMutation();
+  return (
+    <View style={styles.wideRoot}>
+      <View style={styles.rail} role="navigation" testID="nav-rail">
+        <View style={styles.railTop}>
+          <Wordmark tone="dark" />
+          <LabSwitcher tone="dark" />
+        </View>
+        <View style={styles.railItems}>
+          {items.map((item) => {
+            const active = isActive(item, pathname);
+            return (
+              <Link key={item.key} href={item.href} asChild>
+                <Pressable
+                  testID={`nav-${item.key}`}
+                  accessibilityRole="link"
+                  accessibilityLabel={item.label}
+                  accessibilityState={{ selected: active }}
+                  style={({ pressed, hovered }: { pressed: boolean; hovered?: boolean }) => [
+                    styles.railItem,
+                    (pressed || hovered) && styles.railItemHover,
+                    active && styles.railItemActive,
+                  ]}
+                >
+                  <View style={[styles.railMarker, active && styles.railMarkerActive]} />
+                  <Icon name={item.icon} color={active ? colors.ember : colors.onGraphiteMuted} />
+                  <Text variant="bodyStrong" style={{ color: active ? colors.onGraphite : colors.onGraphiteMuted }}>
+                    {item.label}
+                  </Text>
+                </Pressable>
+              </Link>
+            );
+          })}
+        </View>
+        <View style={styles.railFoot}>
+          <View style={styles.userBlock}>
+            <Text variant="label" style={{ color: colors.onGraphite }} numberOfLines={1}>
+              {me?.user.name}
+            </Text>
+            <Text variant="caption" style={{ color: colors.onGraphiteMuted }} numberOfLines={1}>
+              {me?.user.email}
+            </Text>
+          </View>
+          <Pressable
+            testID="sign-out"
+            accessibilityRole="button"
+            accessibilityLabel="Sign out"
+            onPress={() => signOut.mutate()}
+            style={({ pressed }) => [styles.signOut, pressed && styles.railItemHover]}
+          >
+            <Icon name="signOut" size={20} color={colors.onGraphiteMuted} />
+            <Text variant="label" style={{ color: colors.onGraphiteMuted }}>
+              Sign out
+            </Text>
+          </Pressable>
+        </View>
+      </View>
+      <View style={styles.main}>{children}</View>
+    </View>
+  );
+}
+
+function TabFrame({ items, children }: { items: NavItem[]; children: React.ReactNode }) {
+  const pathname = usePathname();
+  const insets = useSafeAreaInsets();
+  return (
+    <View style={[styles.narrowRoot, { paddingTop: insets.top }]}>
+      <View style={styles.topBar}>
+        <Wordmark />
+        <View style={styles.topLab}>
+          <LabSwitcher tone="light" />
+        </View>
+      </View>
+      <View style={styles.main}>{children}</View>
+      <View style={[styles.tabBar, { paddingBottom: Math.max(insets.bottom, spacing.xs) }]} accessibilityRole="tablist" testID="nav-tabs">
+        {items.map((item) => {
+          const active = isActive(item, pathname);
+          return (
+            <Link key={item.key} href={item.href} asChild>
+              <Pressable
+                testID={`nav-${item.key}`}
+                accessibilityRole="tab"
+                accessibilityLabel={item.label}
+                accessibilityState={{ selected: active }}
+                style={({ pressed }) => [styles.tab, pressed && { backgroundColor: colors.powderDeep }]}
+              >
+                <View style={[styles.tabMarker, active && styles.tabMarkerActive]} />
+                <Icon name={item.icon} size={22} color={active ? colors.ember : colors.inkMuted} />
+                <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: active ? colors.ink : colors.inkMuted }]}>
+                  {item.label}
+                </Text>
+              </Pressable>
+            </Link>
+          );
+        })}
+      </View>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  wideRoot: { flex: 1, flexDirection: 'row', backgroundColor: colors.powder },
+  rail: {
+    width: 248,
+    backgroundColor: colors.graphite,
+    paddingVertical: spacing.xl,
+    paddingHorizontal: spacing.md,
+    gap: spacing.xl,
+  },
+  railTop: { gap: spacing.lg, paddingHorizontal: spacing.sm, zIndex: 10 },
+  railItems: { gap: spacing.xxs, flex: 1 },
+  railItem: {
+    flexDirection: 'row',
+    alignItems: 'center',
+    gap: spacing.md,
+    minHeight: 48,
+    paddingHorizontal: spacing.md,
+    borderRadius: radius.md,
+  },
+  railItemHover: { backgroundColor: colors.graphiteRaised },
+  railItemActive: { backgroundColor: colors.graphiteRaised },
+  railMarker: { position: 'absolute', left: 0, top: 12, bottom: 12, width: 3, borderRadius: 2, backgroundColor: 'transparent' },
+  railMarkerActive: { backgroundColor: colors.ember },
+  railFoot: { gap: spacing.sm, borderTopWidth: 1, borderTopColor: colors.graphiteRaised, paddingTop: spacing.lg },
+  userBlock: { paddingHorizontal: spacing.md, gap: 2 },
+  signOut: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, minHeight: 44, paddingHorizontal: spacing.md, borderRadius: radius.md },
+  main: { flex: 1, minWidth: 0 },
+  narrowRoot: { flex: 1, backgroundColor: colors.powder },
+  topBar: {
+    flexDirection: 'row',
+    alignItems: 'center',
+    justifyContent: 'space-between',
+    gap: spacing.md,
+    minHeight: 56,
+    paddingHorizontal: spacing.lg,
+    paddingVertical: spacing.xs,
+    backgroundColor: colors.surface,
+    borderBottomWidth: 1,
+    borderBottomColor: colors.line,
+    zIndex: 10,
+  },
+  topLab: { flexShrink: 1, maxWidth: '60%', alignItems: 'flex-end' },
+  tabBar: {
+    flexDirection: 'row',
+    backgroundColor: colors.surface,
+    borderTopWidth: 1,
+    borderTopColor: colors.line,
+  },
+  tab: { flex: 1, alignItems: 'center', justifyContent: 'center', minHeight: 56, paddingTop: spacing.xs, gap: 2 },
+  tabMarker: { position: 'absolute', top: 0, left: '25%', right: '25%', height: 3, borderRadius: 2, backgroundColor: 'transparent' },
+  tabMarkerActive: { backgroundColor: colors.ember },
+  tabLabel: { fontSize: 11, lineHeight: 14 },
+});

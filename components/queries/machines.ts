@@ -1,0 +1,12 @@
+import type { MachineProfile } from '../../shared/types/profiles';
+import { machineSchema } from '../api/schemas';
+import { labResource } from './labResource';
+
+const machines = labResource<typeof machineSchema, MachineProfile>('machines', machineSchema);
+
+export const machineKeys = machines.keys;
+export const useMachinesQuery = machines.useListQuery;
+export const useMachineQuery = machines.useOneQuery;
+export const useCreateMachineMutation = machines.useCreateMutation;
+export const useUpdateMachineMutation = machines.useUpdateMutation;
+export const useDeleteMachineMutation = machines.useDeleteMutation;

@@ -1,0 +1,12 @@
+import type { MaterialProfile } from '../../shared/types/profiles';
+import { materialSchema } from '../api/schemas';
+import { labResource } from './labResource';
+
+const materials = labResource<typeof materialSchema, MaterialProfile>('materials', materialSchema);
+
+export const materialKeys = materials.keys;
+export const useMaterialsQuery = materials.useListQuery;
+export const useMaterialQuery = materials.useOneQuery;
+export const useCreateMaterialMutation = materials.useCreateMutation;
+export const useUpdateMaterialMutation = materials.useUpdateMutation;
+export const useDeleteMaterialMutation = materials.useDeleteMutation;

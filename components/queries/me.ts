@@ -1,0 +1,67 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
+import { api, isApiError } from '../api/client';
+import { meSchema, type Me } from '../api/schemas';
+
+export const meKeys = {
+  all: ['me'] as const,
+};
+
+/** The signed-in user and their labs; null when signed out (401). */
+export async function fetchMe(): Promise<Me | null> {
+  try {
+    return await api('/me', { schema: meSchema });
+  } catch (e) {
+    if (isApiError(e) && e.status === 401) return null;
+    throw e;
+  }
+}
+
+export function useMeQuery() {
+  return useQuery({ queryKey: meKeys.all, queryFn: fetchMe });
+}
+
+export const signInInputSchema = z.object({
+  email: z.string().trim().email('Enter an e-mail address.'),
+  password: z.string().min(1, 'Enter your password.'),
+});
+export type SignInInput = z.infer<typeof signInInputSchema>;
+
+export const signUpInputSchema = z.object({
+  email: z.string().trim().email('Enter an e-mail address.').max(254),
+  password: z.string().min(10, 'At least 10 characters.').max(200, 'At most 200 characters.'),
+  name: z.string().trim().min(1, 'Enter your name.').max(120),
+  labName: z.string().trim().min(1, 'Name the lab.').max(120),
+});
+export type SignUpInput = z.infer<typeof signUpInputSchema>;
+
+function useSessionMutation<I>(path: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: I) => api(path, { method: 'POST', body: input, schema: meSchema }),
+    onSuccess: (me) => {
+      // A new session: drop whatever another user's session may have cached.
+      qc.clear();
+      qc.setQueryData(meKeys.all, me);
+    },
+  });
+}
+
+export function useSignInMutation() {
+  return useSessionMutation<SignInInput>('/auth/sign-in');
+}
+
+export function useSignUpMutation() {
+  return useSessionMutation<SignUpInput>('/auth/sign-up');
+}
+
+export function useSignOutMutation() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api('/auth/sign-out', { method: 'POST' }),
+    onSuccess: () => {
+      qc.clear();
+      qc.setQueryData(meKeys.all, null);
+    },
+  });
+}

@@ -1,0 +1,148 @@
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import type { Member, Role } from '../api/schemas';
+import { roleLabels, roles, roleTones, sortRoles } from '../lab/roles';
+import { useLab } from '../lab/useCurrentLab';
+import { useMeQuery } from '../queries/me';
+import { useMembersQuery, useRemoveMemberMutation, useUpdateMemberRolesMutation } from '../queries/members';
+import { spacing, useIsWide } from '../theme';
+import { Badge, ConfirmAction, ErrorState, Figure, LoadingState, Notice, Table, Text, ToggleChip, type Column } from '../ui';
+import { formatDate } from './format';
+import { SettingsScreen } from './SettingsScreen';
+
+export function MembersSection() {
+  const lab = useLab();
+  const members = useMembersQuery(lab.id);
+  const { data: me } = useMeQuery();
+  const wide = useIsWide();
+
+  const columns: Column<Member>[] = [
+    {
+      key: 'member',
+      title: 'Member',
+      flex: 2,
+      render: (m) => (
+        <View style={styles.who}>
+          <View style={styles.nameRow}>
+            <Text variant="bodyStrong">{m.name}</Text>
+            {m.userId === me?.user.id ? <Badge label="You" tone="ember" /> : null}
+          </View>
+          <Text variant="caption" color="inkMuted">
+            {m.email}
+          </Text>
+        </View>
+      ),
+    },
+    {
+      key: 'roles',
+      title: 'Roles',
+      flex: 3,
+      render: (m) => (lab.isLead ? <RoleEditor member={m} compact={wide} /> : <RoleBadges roles={m.roles} />),
+    },
+    { key: 'joined', title: 'Joined', width: 120, render: (m) => <Figure>{formatDate(m.joinedAt)}</Figure> },
+  ];
+  if (lab.isLead) {
+    columns.push({ key: 'actions', title: '', width: 200, align: 'right', render: (m) => <RemoveMember member={m} isSelf={m.userId === me?.user.id} /> });
+  }
+
+  return (
+    <SettingsScreen
+      title="Members and roles"
+      subtitle={lab.isLead ? 'Turn roles on and off per member. Every lab keeps at least one lead.' : 'Who works in this lab and what they do. Leads change roles.'}
+      testID="settings-members"
+    >
+      {members.isPending ? (
+        <LoadingState label="Loading members…" />
+      ) : members.isError ? (
+        <ErrorState error={members.error} onRetry={() => members.refetch()} />
+      ) : (
+        <Table
+          testID="members-table"
+          columns={columns}
+          rows={members.data}
+          rowKey={(m) => m.userId}
+          rowTestID={(m) => `member-row-${m.userId}`}
+        />
+      )}
+    </SettingsScreen>
+  );
+}
+
+function RoleBadges({ roles: list }: { roles: Role[] }) {
+  return (
+    <View style={styles.chips}>
+      {sortRoles(list).map((r) => (
+        <Badge key={r} label={roleLabels[r]} tone={roleTones[r]} />
+      ))}
+    </View>
+  );
+}
+
+function RoleEditor({ member, compact }: { member: Member; compact: boolean }) {
+  const lab = useLab();
+  const update = useUpdateMemberRolesMutation(lab.id);
+  const [localError, setLocalError] = useState<string | null>(null);
+  // While the change is on its way the chips show where it is going.
+  const shown = update.isPending && update.variables ? update.variables.roles : member.roles;
+
+  const toggle = (role: Role, on: boolean) => {
+    const next = on ? sortRoles([...shown, role]) : shown.filter((r) => r !== role);
+    if (next.length === 0) {
+      setLocalError('A member holds at least one role. Remove the member instead.');
+      return;
+    }
+    setLocalError(null);
+    update.mutate({ userId: member.userId, roles: next });
+  };
+
+  const error = localError ?? (update.isError ? update.error.message : null);
+  return (
+    <View style={styles.editor}>
+      <View style={styles.chips}>
+        {roles.map((r) => (
+          <ToggleChip
+            key={r}
+            compact={compact}
+            label={roleLabels[r]}
+            value={shown.includes(r)}
+            onChange={(on) => toggle(r, on)}
+            disabled={update.isPending}
+            testID={`member-role-${member.userId}-${r}`}
+            accessibilityLabel={`${roleLabels[r]} role for ${member.name}`}
+          />
+        ))}
+      </View>
+      {error ? (
+        <Text variant="caption" color="danger" testID={`member-error-${member.userId}`} accessibilityRole="alert">
+          {error}
+        </Text>
+      ) : null}
+    </View>
+  );
+}
+
+function RemoveMember({ member, isSelf }: { member: Member; isSelf: boolean }) {
+  const lab = useLab();
+  const remove = useRemoveMemberMutation(lab.id);
+  return (
+    <View style={styles.remove}>
+      <ConfirmAction
+        label={isSelf ? 'Leave lab' : 'Remove'}
+        question={isSelf ? `Leave ${lab.name}?` : `Remove ${member.name}?`}
+        confirmLabel={isSelf ? 'Leave' : 'Remove'}
+        onConfirm={() => remove.mutate(member.userId)}
+        loading={remove.isPending}
+        testID={`member-remove-${member.userId}`}
+      />
+      {remove.isError ? <Notice tone="danger">{remove.error.message}</Notice> : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  who: { gap: 2, flexShrink: 1 },
+  nameRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs },
+  editor: { gap: spacing.xs },
+  remove: { gap: spacing.xs, alignItems: 'flex-end' },
+});

@@ -1,0 +1,13 @@
+export { Text, Figure, type TextProps } from './Text';
+export { Button, type ButtonProps } from './Button';
+export { Field, TextInput, type FieldProps } from './Field';
+export { Card } from './Card';
+export { Badge, type BadgeTone } from './Badge';
+export { EmptyState } from './EmptyState';
+export { Screen, Stack, Row } from './Screen';
+export { Table, type Column } from './Table';
+export { ToggleChip } from './Toggle';
+export { Notice, LoadingState, ErrorState } from './Notice';
+export { ConfirmAction } from './ConfirmAction';
+export { Icon, type IconName } from './Icon';
+export { zodFieldErrors } from './formErrors';
