@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import {
   arealEnergyDensityJPerMm2,
   boxAreaProfile,
@@ -137,6 +138,26 @@ describe('area per layer', () => {
     expect(profile[150]).toBe(0);
     const volume = profile.reduce((s, a) => s + a * 0.1, 0);
     expect(volume).toBeCloseTo(2000 + 50, 2);
+  });
+
+  test('for boxes on layer boundaries, the profile summed over layers times the layer height is their volume', () => {
+    const layerHeightMm = 0.1;
+    const box = fc.record({
+      x: fc.integer({ min: 1, max: 200 }),
+      y: fc.integer({ min: 1, max: 200 }),
+      zLayer: fc.integer({ min: 0, max: 300 }),
+      layers: fc.integer({ min: 1, max: 300 }),
+    });
+    fc.assert(
+      fc.property(fc.array(box, { minLength: 1, maxLength: 40 }), (list) => {
+        const placements = list.map((b) => ({ position: [0, 0, b.zLayer * layerHeightMm], size: [b.x, b.y, b.layers * layerHeightMm] }));
+        const profile = boxAreaProfile(boxArraysFromPlacements(placements), layerHeightMm, 600);
+        const integral = profile.reduce((sum, a) => sum + a * layerHeightMm, 0);
+        const volume = list.reduce((sum, b) => sum + b.x * b.y * b.layers * layerHeightMm, 0);
+        // The profile is single precision: compare relatively.
+        expect(Math.abs(integral - volume)).toBeLessThanOrEqual(1e-6 * volume);
+      }),
+    );
   });
 
   test('a part thinner than one layer is still drawn on one layer', () => {
