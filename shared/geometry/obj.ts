@@ -56,12 +56,12 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
     const keyword = fields[0];
     if (keyword === 'v') {
       if (fields.length < 4) return refuse('obj-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
-      const x = Number(fields[1]);
-      const y = Number(fields[2]);
-      const z = Number(fields[3]);
-      const w = fields.length > 4 ? Number(fields[4]) : 1;
+      const x = readNumber(fields[1]);
+      const y = readNumber(fields[2]);
+      const z = readNumber(fields[3]);
+      const w = fields.length > 4 ? readNumber(fields[4]) : 1;
       for (const [value, text] of [[x, fields[1]], [y, fields[2]], [z, fields[3]], [w, fields[4]]] as const) {
-        if (Number.isNaN(value) && !/^[-+]?nan$/i.test(text)) {
+        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(text)) {
           return refuse('obj-syntax', `${name}, line ${line}: "${text.slice(0, 40)}" is not a number.`);
         }
       }
@@ -113,4 +113,14 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
   if (corners === 0) return refuse('no-triangles', `${name} holds no faces.`);
   const welded = weldExact(positions.slice(0, vertexCount * 3), indices.subarray(0, corners));
   return { ok: true, parts: [{ name: baseName(options.filename), ...welded }] };
+}
+
+/** Like Number(), but reads the words C libraries print for non-finite values ("inf", "-inf", "nan") as such. */
+function readNumber(text: string): number {
+  const value = Number(text);
+  if (!Number.isNaN(value)) return value;
+  const word = text.toLowerCase();
+  if (word === 'inf' || word === '+inf' || word === 'infinity' || word === '+infinity') return Infinity;
+  if (word === '-inf' || word === '-infinity') return -Infinity;
+  return NaN;
 }

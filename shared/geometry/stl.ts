@@ -113,8 +113,8 @@ function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseRe
       if (!inLoop) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex outside an "outer loop".`);
       if (fields.length < 4) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
       for (let k = 0; k < 3; k++) {
-        const value = Number(fields[k + 1]);
-        if (Number.isNaN(value) && !/^[-+]?nan$/i.test(fields[k + 1])) {
+        const value = readNumber(fields[k + 1]);
+        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(fields[k + 1])) {
           return refuse('stl-ascii-syntax', `${name}, line ${line}: "${fields[k + 1].slice(0, 40)}" is not a number.`);
         }
         if (!Number.isFinite(value)) {
@@ -157,4 +157,14 @@ export function baseName(filename: string): string {
   const last = filename.split(/[\\/]/).pop() ?? filename;
   const dot = last.lastIndexOf('.');
   return (dot > 0 ? last.slice(0, dot) : last) || 'part';
+}
+
+/** Like Number(), but reads the words C libraries print for non-finite values ("inf", "-inf", "nan") as such. */
+function readNumber(text: string): number {
+  const value = Number(text);
+  if (!Number.isNaN(value)) return value;
+  const word = text.toLowerCase();
+  if (word === 'inf' || word === '+inf' || word === 'infinity' || word === '+infinity') return Infinity;
+  if (word === '-inf' || word === '-infinity') return -Infinity;
+  return NaN;
 }

@@ -220,7 +220,7 @@ export function readModelXml(xml: string, filename: string): ThreeMfModelResult 
           const y = Number(a.y);
           const z = Number(a.z);
           if (a.x === undefined || a.y === undefined || a.z === undefined || Number.isNaN(x) || Number.isNaN(y) || Number.isNaN(z)) {
-            if ([a.x, a.y, a.z].some((s) => s !== undefined && /^\s*[-+]?nan\s*$/i.test(s))) {
+            if ([a.x, a.y, a.z].some((s) => s !== undefined && /^\s*[-+]?(nan|inf|infinity)\s*$/i.test(s))) {
               return fail('non-finite-coordinate', `object ${current.id.slice(0, 20)} has a coordinate that is not a number.`);
             }
             return fail('3mf-bad-model', `object ${current.id.slice(0, 20)} has a vertex without three numeric coordinates.`);
