@@ -558,3 +558,9 @@ export function pack(instance: PackInstance, options?: PackOptions): Promise<Pac
 }
 
 export { ORIENTATIONS };
+
+/** The result record (unplaced counts, height, layers, utilisation) for given placements of an instance. */
+export function summariseLayout(instance: PackInstance, placements: Placement[], elapsedMs = 0): PackResult {
+  const { extent } = usableRegion(instance);
+  return summarise({ inst: instance, extent } as Model, placements, elapsedMs);
+}

@@ -7,3 +7,6 @@ export { createPacking, pack, packSync, type PackOptions, type PackPhase, type P
 export { createRandom, type Random } from './prng';
 export { parseBischoffRatcliff } from './br';
 export { generatePowderBed, type PowderBedOptions } from './generate';
+export { splitIntoBuilds, type BuildLine, type BuildSettings, type PlannedBuild, type SplitOutcome } from './split';
+export { summariseLayout } from './engine';
+export { encodeLayout, decodeLayout, layoutTransferables, type EncodedLayout } from './codec';
