@@ -9,7 +9,14 @@ export function createAuth(pool: pg.Pool) {
   return new Lucia(adapter, {
     sessionExpiresIn: new TimeSpan(30, 'd'),
     sessionCookie: { name: SESSION_COOKIE, expires: true, attributes: { sameSite: 'lax' } },
-    getUserAttributes: (row: Record<string, unknown>) => ({ email: String(row.email), name: String(row.name) }),
+    getUserAttributes: (row) => ({ email: String(row.email), name: String(row.name) }),
   });
 }
 export type Auth = ReturnType<typeof createAuth>;
+
+declare module 'lucia' {
+  interface Register {
+    Lucia: Auth;
+    DatabaseUserAttributes: { email: string; name: string };
+  }
+}

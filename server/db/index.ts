@@ -1,4 +1,4 @@
-import { Sequelize } from 'sequelize';
+import { Sequelize, type QueryInterface } from 'sequelize';
 import { Umzug, SequelizeStorage } from 'umzug';
 import { migrations } from './migrations';
 import { initModels, type Models } from './models';
@@ -18,11 +18,11 @@ export function connectDatabase(databaseUrl: string, opts: { logging?: boolean }
 }
 
 export function migrator(sequelize: Sequelize) {
-  return new Umzug({
+  return new Umzug<QueryInterface>({
     migrations: migrations.map((m) => ({
       name: m.name,
-      up: ({ context }) => m.up(context),
-      down: ({ context }) => m.down(context),
+      up: ({ context }: { context: QueryInterface }) => m.up(context),
+      down: ({ context }: { context: QueryInterface }) => m.down(context),
     })),
     context: sequelize.getQueryInterface(),
     storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
