@@ -6,15 +6,14 @@ import { api } from '../api/client';
  * The five routes a lab-owned profile resource has (list, create, read,
  * patch, delete) as react-query hooks. Machines and materials share them.
  */
-export function labResource<S extends z.ZodType<{ id: string }>, Input>(segment: string, schema: S) {
-  type Item = z.infer<S>;
+export function labResource<Item extends { id: string }, Input>(segment: string, schema: z.ZodType<Item>) {
   const keys = {
     all: (labId: string) => ['labs', labId, segment] as const,
     one: (labId: string, id: string) => ['labs', labId, segment, id] as const,
   };
 
   function useListQuery(labId: string | undefined) {
-    return useQuery({
+    return useQuery<Item[]>({
       queryKey: keys.all(labId ?? ''),
       queryFn: () => api(`/labs/${labId}/${segment}`, { schema: z.array(schema) }) as Promise<Item[]>,
       enabled: !!labId,
@@ -23,7 +22,7 @@ export function labResource<S extends z.ZodType<{ id: string }>, Input>(segment:
 
   function useOneQuery(labId: string | undefined, id: string | undefined) {
     const qc = useQueryClient();
-    return useQuery({
+    return useQuery<Item>({
       queryKey: keys.one(labId ?? '', id ?? ''),
       queryFn: () => api(`/labs/${labId}/${segment}/${id}`, { schema }) as Promise<Item>,
       enabled: !!labId && !!id,

@@ -1,8 +1,8 @@
 import type { MachineProfile } from '../../shared/types/profiles';
-import { machineSchema } from '../api/schemas';
+import { machineSchema, type Machine } from '../api/schemas';
 import { labResource } from './labResource';
 
-const machines = labResource<typeof machineSchema, MachineProfile>('machines', machineSchema);
+const machines = labResource<Machine, MachineProfile>('machines', machineSchema);
 
 export const machineKeys = machines.keys;
 export const useMachinesQuery = machines.useListQuery;

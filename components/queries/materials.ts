@@ -1,8 +1,8 @@
 import type { MaterialProfile } from '../../shared/types/profiles';
-import { materialSchema } from '../api/schemas';
+import { materialSchema, type Material } from '../api/schemas';
 import { labResource } from './labResource';
 
-const materials = labResource<typeof materialSchema, MaterialProfile>('materials', materialSchema);
+const materials = labResource<Material, MaterialProfile>('materials', materialSchema);
 
 export const materialKeys = materials.keys;
 export const useMaterialsQuery = materials.useListQuery;

@@ -1,0 +1,5 @@
+import { AccountSection } from '@/components/settings/AccountSection';
+
+export default function AccountRoute() {
+  return <AccountSection />;
+}

@@ -1,0 +1,5 @@
+import { InvitesSection } from '@/components/settings/InvitesSection';
+
+export default function InvitesRoute() {
+  return <InvitesSection />;
+}

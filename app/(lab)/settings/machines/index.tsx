@@ -1,0 +1,5 @@
+import { MachinesSection } from '@/components/settings/MachinesSection';
+
+export default function MachinesRoute() {
+  return <MachinesSection />;
+}

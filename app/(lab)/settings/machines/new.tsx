@@ -1,0 +1,5 @@
+import { NewMachine } from '@/components/settings/MachinesSection';
+
+export default function NewMachineRoute() {
+  return <NewMachine />;
+}

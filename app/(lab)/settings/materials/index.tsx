@@ -1,0 +1,5 @@
+import { MaterialsSection } from '@/components/settings/MaterialsSection';
+
+export default function MaterialsRoute() {
+  return <MaterialsSection />;
+}

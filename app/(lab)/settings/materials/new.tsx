@@ -1,0 +1,5 @@
+import { NewMaterial } from '@/components/settings/MaterialsSection';
+
+export default function NewMaterialRoute() {
+  return <NewMaterial />;
+}

@@ -1,0 +1,5 @@
+import { MembersSection } from '@/components/settings/MembersSection';
+
+export default function MembersRoute() {
+  return <MembersSection />;
+}
