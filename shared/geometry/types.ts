@@ -55,7 +55,6 @@ export function refuse(code: ProblemCode, message: string): { ok: false; problem
 
 /** Quotes a file name for a message, keeping control characters out of it. */
 export function quoteName(filename: string): string {
-  // eslint-disable-next-line no-control-regex
   const clean = filename.replace(/[\u0000-\u001f\u007f]/g, '').slice(0, 200);
   return `"${clean || 'unnamed file'}"`;
 }
