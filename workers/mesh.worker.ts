@@ -1,0 +1,115 @@
+/**
+ * Parses a mesh file off the main thread for the 3D views. The shared readers
+ * do the parsing; this adapter checks the message, flattens the parts into
+ * one drawable mesh (or picks one by name) and hands the numbers back as
+ * transferred typed arrays, so nothing large is copied between threads.
+ *
+ * API (through comlink):
+ *   parseMesh(bytes: ArrayBuffer, filename: string, unit: 'mm' | 'cm' | 'inch', options?: { partName?: string })
+ *     -> { ok: true, mesh: ViewMesh } | { ok: false, problems: MeshProblem[] }
+ */
+import * as Comlink from 'comlink';
+import { MM_PER_UNIT, mergeMeshes, parseMeshFile, type LengthUnit, type ProblemCode } from '../shared/geometry';
+
+export interface ViewMesh {
+  /** xyz triples in millimetres, in the file's own coordinates (z is the build direction). */
+  positions: Float32Array;
+  /** Three vertex indices a triangle. */
+  indices: Uint32Array;
+  bboxMinMm: [number, number, number];
+  bboxMaxMm: [number, number, number];
+  sizeMm: [number, number, number];
+  triangles: number;
+  /** Parts found in the file (a 3MF may hold several); the mesh holds them all unless one was asked for. */
+  partNames: string[];
+}
+
+export interface MeshProblem {
+  code: ProblemCode | 'bad-request' | 'part-not-found';
+  message: string;
+  /** The argument at fault, for a malformed request. */
+  field?: string;
+}
+
+export type ParseMeshResult = { ok: true; mesh: ViewMesh } | { ok: false; problems: MeshProblem[] };
+
+export interface ParseMeshOptions {
+  /** Draw only the part of this name (a 3MF with several objects). */
+  partName?: string;
+}
+
+const UNITS = Object.keys(MM_PER_UNIT) as LengthUnit[];
+
+/** The work itself, without the thread: exported so it can be tested in node. */
+export function parseMeshForView(bytes: unknown, filename: unknown, unit: unknown, options: ParseMeshOptions = {}): ParseMeshResult {
+  const problems: MeshProblem[] = [];
+  if (!(bytes instanceof ArrayBuffer)) problems.push({ code: 'bad-request', field: 'bytes', message: 'must be an ArrayBuffer holding the file' });
+  if (typeof filename !== 'string' || filename.length === 0) problems.push({ code: 'bad-request', field: 'filename', message: 'must be the file name with its extension' });
+  if (!UNITS.includes(unit as LengthUnit)) problems.push({ code: 'bad-request', field: 'unit', message: `must be one of ${UNITS.join(', ')}` });
+  if (options.partName !== undefined && typeof options.partName !== 'string') problems.push({ code: 'bad-request', field: 'options.partName', message: 'must be a string' });
+  if (problems.length > 0) return { ok: false, problems };
+
+  const parsed = parseMeshFile(new Uint8Array(bytes as ArrayBuffer), { filename: filename as string, unit: unit as LengthUnit });
+  if (!parsed.ok) return { ok: false, problems: parsed.problems };
+
+  let parts = parsed.parts;
+  if (options.partName !== undefined) {
+    parts = parts.filter((p) => p.name === options.partName);
+    if (parts.length === 0) {
+      return {
+        ok: false,
+        problems: [{ code: 'part-not-found', field: 'options.partName', message: `"${filename as string}" has no part named "${options.partName}".` }],
+      };
+    }
+  }
+  const merged = parts.length === 1 ? parts[0] : mergeMeshes(parts);
+
+  const n = merged.positions.length / 3;
+  const positions = new Float32Array(merged.positions.length);
+  const min: [number, number, number] = [Infinity, Infinity, Infinity];
+  const max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
+  for (let i = 0; i < n; i++) {
+    for (let a = 0; a < 3; a++) {
+      const v = merged.positions[3 * i + a];
+      positions[3 * i + a] = v;
+      if (v < min[a]) min[a] = v;
+      if (v > max[a]) max[a] = v;
+    }
+  }
+  // The parser may share its index buffer with a part; copy so the transfer cannot detach anything else.
+  const indices = merged.indices.slice();
+  return {
+    ok: true,
+    mesh: {
+      positions,
+      indices,
+      bboxMinMm: min,
+      bboxMaxMm: max,
+      sizeMm: [max[0] - min[0], max[1] - min[1], max[2] - min[2]],
+      triangles: indices.length / 3,
+      partNames: parsed.parts.map((p) => p.name),
+    },
+  };
+}
+
+const api = {
+  parseMesh(bytes: ArrayBuffer, filename: string, unit: LengthUnit, options?: ParseMeshOptions): ParseMeshResult {
+    let result: ParseMeshResult;
+    try {
+      result = parseMeshForView(bytes, filename, unit, options ?? {});
+    } catch (err) {
+      // A reader should refuse with problems, never throw; if one does, the view still gets words, not a stack.
+      result = { ok: false, problems: [{ code: 'bad-request', message: `"${String(filename)}" could not be read: ${err instanceof Error ? err.message : String(err)}` }] };
+    }
+    if (!result.ok) return result;
+    return Comlink.transfer(result, [result.mesh.positions.buffer as ArrayBuffer, result.mesh.indices.buffer as ArrayBuffer]);
+  },
+};
+
+export type MeshWorkerApi = typeof api;
+
+// Only expose inside a worker (self without a document); importing this file in tests must not listen on anything.
+declare const self: unknown;
+if (typeof self !== 'undefined' && typeof (globalThis as { document?: unknown }).document === 'undefined' && typeof (self as { postMessage?: unknown }).postMessage === 'function') {
+  Comlink.expose(api);
+}
