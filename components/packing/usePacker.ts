@@ -1,0 +1,160 @@
+/**
+ * React hook running the packing engine for a screen: in a web worker where
+ * the platform has one, otherwise on the main thread (the engine yields often,
+ * so the screen stays responsive either way).
+ */
+import * as Comlink from 'comlink';
+import { useCallback, useEffect, useRef, useState } from 'react';
+import {
+  createPacking,
+  decodeLayout,
+  encodeLayout,
+  parseInstance,
+  type FieldProblem,
+  type PackPhase,
+  type PackResult,
+} from '../../shared/packing';
+import type { PackerApi, PackerOutcome, PackerProgressCallback } from '../../workers/protocol';
+
+export type PackerStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
+
+export interface UsePacker {
+  status: PackerStatus;
+  phase: PackPhase | null;
+  /** 0 to 1: share of the time budget spent. */
+  progress: number;
+  /** Best layout so far while running; the final one when done or cancelled. */
+  best: PackResult | null;
+  /** A message for the screen when the run failed. */
+  error: string | null;
+  /** The fields that made the instance unusable, when that is why it failed. */
+  problems: FieldProblem[];
+  start(instance: unknown): void;
+  cancel(): void;
+}
+
+/** The one place the worker is created, so tests or other platforms can swap it. */
+export function createPackerWorker(): Worker {
+  return new Worker(new URL('../../workers/packer.worker.ts', window.location.href));
+}
+
+interface PackerClient {
+  api: PackerApi;
+  dispose(): void;
+}
+
+function createClient(): PackerClient {
+  if (typeof Worker !== 'undefined' && typeof window !== 'undefined') {
+    const worker = createPackerWorker();
+    const remote = Comlink.wrap<PackerApi>(worker);
+    return {
+      api: {
+        start: (runId, instance, onProgress, options) => remote.start(runId, instance, Comlink.proxy(onProgress), options),
+        cancel: (runId) => void remote.cancel(runId),
+      },
+      dispose: () => {
+        remote[Comlink.releaseProxy]();
+        worker.terminate();
+      },
+    };
+  }
+  return { api: createInlineApi(), dispose: () => undefined };
+}
+
+/** The same API on the main thread, for platforms without web workers. */
+function createInlineApi(): PackerApi {
+  const cancelled = new Set<number>();
+  return {
+    async start(runId, instance, onProgress) {
+      const parsed = parseInstance(instance);
+      if (!parsed.ok) return { ok: false, runId, problems: parsed.problems };
+      let sent: PackResult | null = null;
+      const result = await createPacking(parsed.instance).run({
+        shouldStop: () => cancelled.has(runId),
+        onProgress(phase, shareDone, best) {
+          const changed = best && best !== sent;
+          if (changed) sent = best;
+          onProgress({ phase, shareDone, best: changed && best ? encodeLayout(best) : undefined });
+        },
+      });
+      const wasCancelled = cancelled.delete(runId);
+      return { ok: true, runId, cancelled: wasCancelled, layout: encodeLayout(result) };
+    },
+    cancel(runId) {
+      cancelled.add(runId);
+    },
+  };
+}
+
+export function usePacker(): UsePacker {
+  const clientRef = useRef<PackerClient | null>(null);
+  const runRef = useRef(0);
+  const [status, setStatus] = useState<PackerStatus>('idle');
+  const [phase, setPhase] = useState<PackPhase | null>(null);
+  const [progress, setProgress] = useState(0);
+  const [best, setBest] = useState<PackResult | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [problems, setProblems] = useState<FieldProblem[]>([]);
+
+  useEffect(
+    () => () => {
+      clientRef.current?.dispose();
+      clientRef.current = null;
+    },
+    [],
+  );
+
+  const start = useCallback((instance: unknown) => {
+    if (!clientRef.current) clientRef.current = createClient();
+    const client = clientRef.current;
+    if (status === 'running') client.api.cancel(runRef.current);
+    const runId = ++runRef.current;
+    setStatus('running');
+    setPhase(null);
+    setProgress(0);
+    setBest(null);
+    setError(null);
+    setProblems([]);
+    const onProgress: PackerProgressCallback = (message) => {
+      if (runRef.current !== runId) return;
+      setPhase(message.phase);
+      setProgress(message.shareDone);
+      if (message.best) {
+        const decoded = decodeLayout(message.best);
+        if (decoded.ok) setBest(decoded.result);
+      }
+    };
+    client.api
+      .start(runId, instance, onProgress)
+      .then((outcome: PackerOutcome) => {
+        if (runRef.current !== runId) return;
+        if (!outcome.ok) {
+          setProblems(outcome.problems);
+          setError(outcome.problems.map((p) => `${p.field} ${p.message}`).join('; '));
+          setStatus('error');
+          return;
+        }
+        const decoded = decodeLayout(outcome.layout);
+        if (!decoded.ok) {
+          setError('The packing worker sent a layout that could not be read.');
+          setStatus('error');
+          return;
+        }
+        setBest(decoded.result);
+        setProgress(1);
+        setPhase('done');
+        setStatus(outcome.cancelled ? 'cancelled' : 'done');
+      })
+      .catch((e: unknown) => {
+        if (runRef.current !== runId) return;
+        setError(e instanceof Error ? e.message : String(e));
+        setStatus('error');
+      });
+  }, [status]);
+
+  const cancel = useCallback(() => {
+    clientRef.current?.api.cancel(runRef.current);
+  }, []);
+
+  return { status, phase, progress, best, error, problems, start, cancel };
+}
