@@ -9,12 +9,13 @@ import type { PackerApi, PackerProgress } from '@/workers/protocol';
 const opened: Array<{ close(): void }> = [];
 const NativeChannel = globalThis.MessageChannel;
 beforeAll(() => {
-  globalThis.MessageChannel = class extends NativeChannel {
+  const Tracked = class extends NativeChannel {
     constructor() {
       super();
       opened.push(this.port1, this.port2);
     }
-  } as typeof MessageChannel;
+  };
+  (globalThis as { MessageChannel: unknown }).MessageChannel = Tracked;
 });
 afterAll(() => {
   opened.forEach((p) => p.close());
