@@ -17,8 +17,6 @@ export interface XmlHandler {
   close(name: XmlName): void;
 }
 
-const ATTR = /([^\s=/>]+)\s*=\s*(?:"([^"]*)"|'([^']*)')/g;
-
 /** Reads the document, calling the handler; returns an error message, or null when the document is well formed. */
 export function readXml(text: string, handler: XmlHandler): string | null {
   const stack: { qname: string; name: XmlName; scope: Map<string, string> }[] = [];
@@ -60,9 +58,9 @@ export function readXml(text: string, handler: XmlHandler): string | null {
       } else pos = gt + 1;
       continue;
     }
-    const gt = findTagEnd(text, lt + 1);
-    if (gt < 0) return 'a tag is not closed';
     if (text.charCodeAt(lt + 1) === 47 /* / */) {
+      const gt = text.indexOf('>', lt + 2);
+      if (gt < 0) return 'a tag is not closed';
       const qname = text.slice(lt + 2, gt).trim();
       const top = stack.pop();
       if (!top || top.qname !== qname) return `closing tag </${qname.slice(0, 60)}> does not match`;
@@ -71,29 +69,48 @@ export function readXml(text: string, handler: XmlHandler): string | null {
       pos = gt + 1;
       continue;
     }
-    let body = text.slice(lt + 1, gt);
-    const selfClosing = body.endsWith('/');
-    if (selfClosing) body = body.slice(0, -1);
-    const space = body.search(/\s/);
-    const qname = space < 0 ? body : body.slice(0, space);
-    if (qname === '' || !/^[A-Za-z_][\w.\-:]*$/.test(qname)) return `"<${qname.slice(0, 60)}" is not a valid tag`;
+    // Start tag, scanned in place: name, then key="value" pairs, then '>' or '/>'.
+    let i = lt + 1;
+    while (i < n && !isNameEnd(text.charCodeAt(i))) i++;
+    const qname = text.slice(lt + 1, i);
+    if (qname === '' || !isNameStart(qname.charCodeAt(0))) return `"<${qname.slice(0, 60)}" is not a valid tag`;
     if (stack.length === 0 && sawRoot) return 'more than one root element';
     sawRoot = true;
     const attrs: Record<string, string> = {};
     let elementScope = scope;
-    if (space >= 0) {
-      const rest = body.slice(space);
-      ATTR.lastIndex = 0;
-      let m: RegExpExecArray | null;
-      while ((m = ATTR.exec(rest)) !== null) {
-        const key = m[1];
-        const value = decodeEntities(m[2] ?? m[3]);
-        if (key === 'xmlns' || key.startsWith('xmlns:')) {
-          if (elementScope === scope) elementScope = new Map(scope);
-          elementScope.set(key === 'xmlns' ? '' : key.slice(6), value);
-        }
-        attrs[key] = value;
+    let selfClosing = false;
+    for (;;) {
+      while (i < n && isSpace(text.charCodeAt(i))) i++;
+      if (i >= n) return `the tag <${qname.slice(0, 60)}> is not closed`;
+      const c = text.charCodeAt(i);
+      if (c === 62 /* > */) {
+        i++;
+        break;
       }
+      if (c === 47 /* / */) {
+        if (text.charCodeAt(i + 1) !== 62) return `the tag <${qname.slice(0, 60)}> is malformed`;
+        selfClosing = true;
+        i += 2;
+        break;
+      }
+      const keyStart = i;
+      while (i < n && !isNameEnd(text.charCodeAt(i)) && text.charCodeAt(i) !== 61 /* = */) i++;
+      const key = text.slice(keyStart, i);
+      while (i < n && isSpace(text.charCodeAt(i))) i++;
+      if (key === '' || text.charCodeAt(i) !== 61) return `an attribute of <${qname.slice(0, 60)}> has no value`;
+      i++;
+      while (i < n && isSpace(text.charCodeAt(i))) i++;
+      const quote = text.charCodeAt(i);
+      if (quote !== 34 && quote !== 39) return `an attribute of <${qname.slice(0, 60)}> is not quoted`;
+      const close = text.indexOf(quote === 34 ? '"' : "'", i + 1);
+      if (close < 0) return `an attribute of <${qname.slice(0, 60)}> is not closed`;
+      const value = decodeEntities(text.slice(i + 1, close));
+      i = close + 1;
+      if (key === 'xmlns' || key.startsWith('xmlns:')) {
+        if (elementScope === scope) elementScope = new Map(scope);
+        elementScope.set(key === 'xmlns' ? '' : key.slice(6), value);
+      }
+      attrs[key] = value;
     }
     const colon = qname.indexOf(':');
     const prefix = colon < 0 ? '' : qname.slice(0, colon);
@@ -106,25 +123,23 @@ export function readXml(text: string, handler: XmlHandler): string | null {
       stack.push({ qname, name, scope });
       scope = elementScope;
     }
-    pos = gt + 1;
+    pos = i;
   }
   if (stack.length > 0) return `the element <${stack[stack.length - 1].qname.slice(0, 60)}> is not closed`;
   if (!sawRoot) return 'no root element';
   return null;
 }
 
-/** The position of the '>' that ends a tag, skipping '>' inside quoted attribute values. */
-function findTagEnd(text: string, from: number): number {
-  let quote = 0;
-  for (let i = from; i < text.length; i++) {
-    const c = text.charCodeAt(i);
-    if (quote) {
-      if (c === quote) quote = 0;
-    } else if (c === 34 || c === 39) quote = c;
-    else if (c === 62) return i;
-    else if (c === 60) return -1;
-  }
-  return -1;
+function isSpace(c: number): boolean {
+  return c === 32 || c === 10 || c === 13 || c === 9;
+}
+
+function isNameEnd(c: number): boolean {
+  return c === 32 || c === 10 || c === 13 || c === 9 || c === 47 || c === 62 || c === 60;
+}
+
+function isNameStart(c: number): boolean {
+  return (c >= 65 && c <= 90) || (c >= 97 && c <= 122) || c === 95 || c === 58 || c > 127;
 }
 
 const NAMED: Record<string, string> = { lt: '<', gt: '>', amp: '&', quot: '"', apos: "'" };
