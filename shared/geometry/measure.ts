@@ -6,7 +6,7 @@ import { parseStl } from './stl';
 import { parseObj } from './obj';
 import { parse3mf, DEFAULT_MAX_3MF_BYTES } from './threemf';
 import { measureMesh, meshWarnings, type MeshMetrics, type MeshWarning, type WarningOptions } from './metrics';
-import { quoteName, refuse, type LengthUnit, type ParseResult, type ParsedPart, type Problem } from './types';
+import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult, type ParsedPart, type Problem } from './types';
 
 export type MeshFormat = 'stl' | 'obj' | '3mf';
 
@@ -47,6 +47,10 @@ export function parseMeshFile(bytes: Uint8Array, options: MeasureOptions): Parse
       'unsupported-extension',
       `${quoteName(options.filename)} is not a supported mesh file: upload STL (.stl), OBJ (.obj) or 3MF (.3mf).`,
     );
+  }
+  if (options.unit !== undefined && !(options.unit in MM_PER_UNIT)) {
+    // The caller's form field, not the file, is wrong: the route validates it before measuring.
+    throw new RangeError(`unit must be one of ${Object.keys(MM_PER_UNIT).join(', ')}`);
   }
   if (bytes.length === 0) return refuse('empty-file', `${quoteName(options.filename)} is empty (0 bytes).`);
   const result =

@@ -129,6 +129,10 @@ describe('files that are refused, each with a message naming the file', () => {
     if (result.ok) expect(result.parts[0].warnings.map((w) => w.code)).toContain('not-watertight');
   });
 
+  test('an upload unit other than mm, cm or inch is a programming error of the caller, not a file problem', () => {
+    expect(() => measureMeshFile(writeBinaryStl(box()), { filename: 'a.stl', unit: 'm' as never })).toThrow(RangeError);
+  });
+
   test('file names with control characters are cleaned in messages', () => {
     const result = measureMeshFile(new Uint8Array(0), { filename: 'a\u0007b.stl' });
     expect(!result.ok && result.problems[0].message).toBe('"ab.stl" is empty (0 bytes).');
