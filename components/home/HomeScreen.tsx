@@ -1,4 +1,4 @@
-import { Link, type Href } from 'expo-router';
+import { type Href } from 'expo-router';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { Role } from '../api/schemas';
 import { roleLabels, roleTones, sortRoles } from '../lab/roles';
@@ -8,7 +8,7 @@ import { useMaterialsQuery } from '../queries/materials';
 import { useMeQuery } from '../queries/me';
 import { useMembersQuery } from '../queries/members';
 import { colors, radius, spacing, useIsWide } from '../theme';
-import { Badge, EmptyState, Figure, Icon, Screen, Text } from '../ui';
+import { Badge, EmptyState, Figure, Icon, LinkPressable, Screen, Text } from '../ui';
 
 type Section = {
   key: string;
@@ -121,8 +121,7 @@ function LabFigures() {
   return (
     <View style={styles.figures} testID="home-section-lab">
       {items.map((it) => (
-        <Link key={it.key} href={it.href} asChild>
-          <Pressable
+        <LinkPressable key={it.key} href={it.href}
             testID={`home-${it.key}`}
             accessibilityRole="link"
             accessibilityLabel={`${it.label}: ${it.q.data?.length ?? 'loading'}`}
@@ -140,8 +139,7 @@ function LabFigures() {
               </Text>
               <Icon name="chevron" size={16} color={colors.inkFaint} />
             </View>
-          </Pressable>
-        </Link>
+          </LinkPressable>
       ))}
     </View>
   );

@@ -1,13 +1,13 @@
-import { Link, usePathname } from 'expo-router';
+import { usePathname } from 'expo-router';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
 import { colors, radius, spacing, useIsWide } from '../theme';
-import { Icon, Text } from '../ui';
+import { Icon, LinkPressable, Text } from '../ui';
 import { LabSwitcher } from './LabSwitcher';
 import { isActive, visibleNavItems, type NavItem } from './navItems';
 import { useLab } from './useCurrentLab';
-import { Wordmark } from './Wordmark';
+import { LogoMark, Wordmark } from './Wordmark';
 
 /** The frame around every lab screen: a side rail on wide screens, a top bar and tab bar on phones. */
 export function LabShell({ children }: { children: React.ReactNode }) {
@@ -32,8 +32,7 @@ function RailFrame({ items, children }: { items: NavItem[]; children: React.Reac
           {items.map((item) => {
             const active = isActive(item, pathname);
             return (
-              <Link key={item.key} href={item.href} asChild>
-                <Pressable
+              <LinkPressable key={item.key} href={item.href}
                   testID={`nav-${item.key}`}
                   accessibilityRole="link"
                   accessibilityLabel={item.label}
@@ -49,8 +48,7 @@ function RailFrame({ items, children }: { items: NavItem[]; children: React.Reac
                   <Text variant="bodyStrong" style={{ color: active ? colors.onGraphite : colors.onGraphiteMuted }}>
                     {item.label}
                   </Text>
-                </Pressable>
-              </Link>
+                </LinkPressable>
             );
           })}
         </View>
@@ -88,7 +86,7 @@ function TabFrame({ items, children }: { items: NavItem[]; children: React.React
   return (
     <View style={[styles.narrowRoot, { paddingTop: insets.top }]}>
       <View style={styles.topBar}>
-        <Wordmark />
+        <LogoMark size={26} />
         <View style={styles.topLab}>
           <LabSwitcher tone="light" />
         </View>
@@ -98,8 +96,7 @@ function TabFrame({ items, children }: { items: NavItem[]; children: React.React
         {items.map((item) => {
           const active = isActive(item, pathname);
           return (
-            <Link key={item.key} href={item.href} asChild>
-              <Pressable
+            <LinkPressable key={item.key} href={item.href}
                 testID={`nav-${item.key}`}
                 accessibilityRole="tab"
                 accessibilityLabel={item.label}
@@ -111,8 +108,7 @@ function TabFrame({ items, children }: { items: NavItem[]; children: React.React
                 <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: active ? colors.ink : colors.inkMuted }]}>
                   {item.label}
                 </Text>
-              </Pressable>
-            </Link>
+              </LinkPressable>
           );
         })}
       </View>
@@ -161,7 +157,7 @@ const styles = StyleSheet.create({
     borderBottomColor: colors.line,
     zIndex: 10,
   },
-  topLab: { flexShrink: 1, maxWidth: '60%', alignItems: 'flex-end' },
+  topLab: { flex: 1, minWidth: 0 },
   tabBar: {
     flexDirection: 'row',
     backgroundColor: colors.surface,

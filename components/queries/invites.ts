@@ -2,8 +2,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api } from '../api/client';
 import { invitePreviewSchema, inviteSchema, meSchema, roleSchema } from '../api/schemas';
-import { meKeys } from './me';
-import { memberKeys } from './members';
+import { dropSessionData, meKeys } from './me';
 
 export const inviteKeys = {
   all: (labId: string) => ['labs', labId, 'invites'] as const,
@@ -58,9 +57,8 @@ export function useAcceptInviteMutation(token: string) {
     mutationFn: (input: AcceptInviteInput) =>
       api(`/invites/${encodeURIComponent(token)}/accept`, { method: 'POST', body: input, schema: meSchema }),
     onSuccess: (me) => {
-      qc.clear();
+      dropSessionData(qc);
       qc.setQueryData(meKeys.all, me);
-      for (const lab of me.labs) qc.invalidateQueries({ queryKey: memberKeys.all(lab.id) });
     },
   });
 }

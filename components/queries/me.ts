@@ -1,4 +1,4 @@
-import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api, isApiError } from '../api/client';
 import { meSchema, type Me } from '../api/schemas';
@@ -15,6 +15,14 @@ export async function fetchMe(): Promise<Me | null> {
     if (isApiError(e) && e.status === 401) return null;
     throw e;
   }
+}
+
+/**
+ * Forget every other user's data at a session change. The me entry itself is
+ * kept (and overwritten by the caller) so mounted observers keep watching it.
+ */
+export function dropSessionData(qc: QueryClient): void {
+  qc.removeQueries({ predicate: (q) => q.queryKey[0] !== meKeys.all[0] });
 }
 
 export function useMeQuery() {
@@ -40,8 +48,7 @@ function useSessionMutation<I>(path: string) {
   return useMutation({
     mutationFn: (input: I) => api(path, { method: 'POST', body: input, schema: meSchema }),
     onSuccess: (me) => {
-      // A new session: drop whatever another user's session may have cached.
-      qc.clear();
+      dropSessionData(qc);
       qc.setQueryData(meKeys.all, me);
     },
   });
@@ -60,7 +67,7 @@ export function useSignOutMutation() {
   return useMutation({
     mutationFn: () => api('/auth/sign-out', { method: 'POST' }),
     onSuccess: () => {
-      qc.clear();
+      dropSessionData(qc);
       qc.setQueryData(meKeys.all, null);
     },
   });

@@ -191,7 +191,7 @@ function InviteList() {
 const styles = StyleSheet.create({
   roles: { gap: spacing.sm },
   chips: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
-  roleOption: { gap: spacing.xxs, maxWidth: 180 },
+  roleOption: { gap: spacing.xxs, flexBasis: 150, flexGrow: 1, maxWidth: 220 },
   roleHint: { paddingHorizontal: spacing.xs },
   list: { gap: spacing.md },
 });

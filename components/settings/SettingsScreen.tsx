@@ -1,8 +1,8 @@
-import { Link, usePathname, type Href } from 'expo-router';
+import { usePathname, type Href } from 'expo-router';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { colors, radius, spacing } from '../theme';
-import { Screen, Text } from '../ui';
+import { LinkPressable, Screen, Text } from '../ui';
 
 const sections: { key: string; label: string; href: Href; path: string }[] = [
   { key: 'members', label: 'Members', href: '/settings/members', path: '/settings/members' },
@@ -45,8 +45,7 @@ function SettingsNav() {
         {sections.map((s) => {
           const active = pathname === s.path || pathname.startsWith(`${s.path}/`);
           return (
-            <Link key={s.key} href={s.href} asChild>
-              <Pressable
+            <LinkPressable key={s.key} href={s.href}
                 testID={`settings-section-${s.key}`}
                 accessibilityRole="tab"
                 accessibilityLabel={s.label}
@@ -60,8 +59,7 @@ function SettingsNav() {
                 <Text variant="label" color={active ? 'onGraphite' : 'ink'}>
                   {s.label}
                 </Text>
-              </Pressable>
-            </Link>
+              </LinkPressable>
           );
         })}
       </ScrollView>

@@ -70,7 +70,7 @@ export function Field({ label, unit, hint, error, testID, ...input }: FieldProps
 }
 
 const styles = StyleSheet.create({
-  field: { gap: spacing.xs, flexGrow: 1, flexBasis: 0, minWidth: 160 },
+  field: { gap: spacing.xs },
   input: {
     minHeight: touchTarget,
     borderWidth: 1,

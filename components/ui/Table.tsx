@@ -160,5 +160,5 @@ const styles = StyleSheet.create({
   pressed: { backgroundColor: colors.emberSoft },
   cardTitle: {},
   cardGrid: { flexDirection: 'row', flexWrap: 'wrap', rowGap: spacing.md, columnGap: spacing.xl },
-  cardItem: { gap: spacing.xxs, minWidth: 120 },
+  cardItem: { gap: spacing.xxs, minWidth: 120, maxWidth: '100%', flexShrink: 1 },
 });

@@ -1,4 +1,5 @@
 import { Pressable, StyleSheet, View } from 'react-native';
+import Svg, { Path } from 'react-native-svg';
 import { colors, radius, spacing } from '../theme';
 import { Text } from './Text';
 
@@ -34,7 +35,11 @@ export function ToggleChip({ label, value, onChange, disabled, testID, accessibi
         disabled && styles.disabled,
       ]}
     >
-      <View style={[styles.box, value && styles.boxOn]}>{value ? <View style={styles.tick} /> : null}</View>
+      <View style={[styles.box, value && styles.boxOn]}>{value ? (
+          <Svg width={12} height={12} viewBox="0 0 12 12">
+            <Path d="M2.5 6.2 5 8.6 9.6 3.6" stroke={colors.surface} strokeWidth={1.8} fill="none" strokeLinecap="round" strokeLinejoin="round" />
+          </Svg>
+        ) : null}</View>
       <Text variant="label" color={value ? 'teal' : 'inkMuted'}>
         {label}
       </Text>
@@ -68,5 +73,4 @@ const styles = StyleSheet.create({
     justifyContent: 'center',
   },
   boxOn: { backgroundColor: colors.teal, borderColor: colors.teal },
-  tick: { width: 6, height: 6, borderRadius: 1, backgroundColor: colors.surface },
 });

@@ -11,3 +11,4 @@ export { Notice, LoadingState, ErrorState } from './Notice';
 export { ConfirmAction } from './ConfirmAction';
 export { Icon, type IconName } from './Icon';
 export { zodFieldErrors } from './formErrors';
+export { LinkPressable } from './LinkPressable';

@@ -298,12 +298,15 @@ export interface CameraPose {
 
 /**
  * Where the camera looks from, relative to the target. Front looks along +y
- * (from the operator's side of the chamber), side along -x, top straight down
- * with +y up on screen; fit is a three-quarter view from the front right.
+ * (from the operator's side of the chamber), side along -x, top down with +y
+ * up on screen; fit is a three-quarter view from the front right. Up stays +z
+ * in every view: orbit controls are built around the up vector they start
+ * with, so the top view leans a hair towards the front instead of looking
+ * exactly along z (where "up" would be undefined).
  */
 const VIEW_DIRECTIONS: Record<ViewName, { dir: Vec3; up: Vec3 }> = {
   fit: { dir: [0.62, -0.78, 0.55], up: [0, 0, 1] },
-  top: { dir: [0, 0, 1], up: [0, 1, 0] },
+  top: { dir: [0, -1e-4, 1], up: [0, 0, 1] },
   front: { dir: [0, -1, 0], up: [0, 0, 1] },
   side: { dir: [1, 0, 0], up: [0, 0, 1] },
 };

@@ -1,0 +1,505 @@
+/**
+ * The build chamber in 3D: every placement drawn through instancing (one
+ * InstancedMesh, so one draw call, per distinct part), coloured by request
+ * line, with the chamber and its usable region outlined, a cut at a layer
+ * height and that layer's cross-section, and picking.
+ *
+ * Thousands of placements stay interactive because nothing here sets React
+ * state per frame: instance matrices are written into the instanced
+ * buffers in a layout effect when the layout changes, the cut moves a
+ * clipping plane and refills the section buffer through refs, and the canvas
+ * only renders on demand (orbit, hover, a new cut).
+ *
+ * Time to interactive: on the first rendered frame the view sets
+ * `window.__chamberReady = performance.now()` (ms since navigation) and
+ * `window.__chamberStats = { placements, parts, drawCalls, triangles }`, and
+ * calls `onFirstFrame(ms)`, so a browser test can read the figure.
+ *
+ *        z (build direction)
+ *        ^        cut plane at cutHeightMm: above it is clipped away,
+ *        |  +------------------+  on it the boxes that span it are
+ *        |  | . . . usable . . |  drawn as flat rectangles
+ *        |  | .  [] []  [] . . |
+ *        |  | .[]  [] []  [] . |
+ *        +--+------------------+--> x   chamber outline, floor grid
+ */
+import { Html, OrbitControls } from '@react-three/drei';
+import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
+import { forwardRef, memo, useEffect, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState } from 'react';
+import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
+import * as THREE from 'three';
+import { colors } from '../theme';
+import { BVH_MIN_TRIANGLES, installBvh } from './bvh';
+import {
+  LINE_PALETTE,
+  UNIT_CUBE,
+  boundsOf,
+  groupByPart,
+  instanceColours,
+  instanceMatrices,
+  sectionMatrices,
+  spanningAt,
+  type Bounds,
+  type LocalBounds,
+  type Vec3,
+  type ViewName,
+} from './math';
+import { BoxOutline, FloorGrid, Lights, VIEW_FOV_DEG, applyView, labelStyle, sceneColours } from './scene';
+import { ViewToolbar } from './ViewToolbar';
+import type { ChamberPlacements, PartMesh } from './types';
+
+installBvh();
+
+export interface ChamberViewHandle {
+  /** Moves the camera to a named view of the chamber. */
+  setView(view: ViewName): void;
+  /** Moves the cut without a React render (for a slider being dragged); null removes it. */
+  setCutHeight(heightMm: number | null): void;
+}
+
+export interface ChamberViewProps {
+  /** Inner build volume x, y, z in mm. */
+  chamberMm: Vec3;
+  /** Keep-out from the walls, under the lowest part and over the highest, in mm. */
+  margin: { xy: number; bottom: number; top: number };
+  placements: ChamberPlacements;
+  /** Meshes by part index, in the part's own axes; a part without one is drawn as its box. */
+  meshesByPart?: ReadonlyMap<number, PartMesh>;
+  /** Hex colour by line index; the Sinterstack line palette when left out. */
+  lineColours?: readonly string[];
+  /** Cut height in mm: what lies above is clipped and the layer under it is drawn in section. Null or absent: no cut. */
+  cutHeightMm?: number | null;
+  /** Placement under the pointer (null when it leaves the parts). */
+  onHover?: (placementIndex: number | null) => void;
+  /** Placement clicked or tapped (null for a click on empty space). */
+  onPick?: (placementIndex: number | null) => void;
+  /** Text for the label shown at the hovered placement, e.g. its line and part. */
+  describePlacement?: (placementIndex: number) => string;
+  /** Called once, on the first rendered frame, with performance.now(). */
+  onFirstFrame?: (msSinceNavigation: number) => void;
+  /** The fit / top / front / side buttons; shown unless false. */
+  showToolbar?: boolean;
+  style?: StyleProp<ViewStyle>;
+}
+
+declare global {
+  interface Window {
+    __chamberReady?: number;
+    __chamberStats?: { placements: number; parts: number; drawCalls: number; triangles: number };
+  }
+}
+
+const HIGHLIGHT = new THREE.Color(colors.ember);
+const NO_CUT = 1e9;
+
+interface Controller {
+  setView: (view: ViewName) => void;
+  applyCut: (heightMm: number | null) => void;
+}
+
+/** Shared hover state, mutated by events, never by frames. */
+interface HoverState {
+  mesh: THREE.InstancedMesh | null;
+  instanceId: number;
+  placement: number | null;
+  saved: THREE.Color;
+}
+
+export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView(props, ref) {
+  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, style } = props;
+  const controller = useRef<Controller | null>(null);
+  const cutRef = useRef<number | null>(cutHeightMm ?? null);
+
+  useImperativeHandle(ref, () => ({
+    setView: (view) => controller.current?.setView(view),
+    setCutHeight: (h) => {
+      cutRef.current = h;
+      controller.current?.applyCut(h);
+    },
+  }));
+
+  // The latest callbacks, read by event handlers without re-rendering the scene when a parent passes new closures.
+  const callbacks = useRef({ onHover, onPick, describePlacement, onFirstFrame });
+  callbacks.current = { onHover, onPick, describePlacement, onFirstFrame };
+
+  const span = Math.max(chamberMm[0], chamberMm[1], chamberMm[2]);
+  return (
+    <View style={[styles.frame, style]} testID="chamber-view">
+      <Canvas
+        frameloop="demand"
+        dpr={[1, 1.5]}
+        camera={{ up: [0, 0, 1], fov: VIEW_FOV_DEG, position: [span, -span, span], near: 1, far: span * 20 }}
+        gl={{ antialias: true, powerPreference: 'high-performance' }}
+        style={{ width: '100%', height: '100%' }}
+        onCreated={({ gl, scene }) => {
+          gl.localClippingEnabled = true;
+          scene.background = new THREE.Color(sceneColours.background);
+        }}
+        onPointerMissed={() => callbacks.current.onPick?.(null)}
+      >
+        <ChamberScene
+          chamberMm={chamberMm}
+          margin={margin}
+          placements={placements}
+          meshesByPart={meshesByPart}
+          lineColours={lineColours}
+          cutHeightMm={cutHeightMm ?? null}
+          cutRef={cutRef}
+          controller={controller}
+          callbacks={callbacks}
+        />
+      </Canvas>
+      {showToolbar ? <ViewToolbar onView={(v) => controller.current?.setView(v)} style={styles.toolbar} /> : null}
+    </View>
+  );
+});
+
+interface SceneProps {
+  chamberMm: Vec3;
+  margin: { xy: number; bottom: number; top: number };
+  placements: ChamberPlacements;
+  meshesByPart?: ReadonlyMap<number, PartMesh>;
+  lineColours?: readonly string[];
+  cutHeightMm: number | null;
+  cutRef: React.MutableRefObject<number | null>;
+  controller: React.MutableRefObject<Controller | null>;
+  callbacks: React.MutableRefObject<Pick<ChamberViewProps, 'onHover' | 'onPick' | 'describePlacement' | 'onFirstFrame'>>;
+}
+
+function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, cutRef, controller, callbacks }: SceneProps) {
+  const camera = useThree((s) => s.camera);
+  const controls = useThree((s) => s.controls) as unknown as { target: THREE.Vector3; update(): void } | null;
+  const size = useThree((s) => s.size);
+  const invalidate = useThree((s) => s.invalidate);
+  const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
+
+  const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]); // eslint-disable-line react-hooks/exhaustive-deps
+  const usable: Bounds = { min: [margin.xy, margin.xy, margin.bottom], max: [chamberMm[0] - margin.xy, chamberMm[1] - margin.xy, chamberMm[2] - margin.top] };
+  const groups = useMemo(() => groupByPart(placements.partIndex), [placements.partIndex]);
+  // Views made once per layout, so a new cut does not look like new instances to the memoised parts.
+  const lists = useMemo(() => Array.from(groups.parts, (_, k) => groups.order.subarray(groups.offsets[k], groups.offsets[k + 1])), [groups]);
+
+  // One clipping plane, one material for every part, one unit box, one section square: shared, never per placement.
+  const clipPlane = useMemo(() => new THREE.Plane(new THREE.Vector3(0, 0, -1), NO_CUT), []);
+  const partMaterial = useMemo(
+    () => new THREE.MeshStandardMaterial({ color: '#ffffff', roughness: 0.7, metalness: 0.02, flatShading: true, side: THREE.DoubleSide, clippingPlanes: [clipPlane] }),
+    [clipPlane],
+  );
+  const boxGeometry = useMemo(() => new THREE.BoxGeometry(1, 1, 1).translate(0.5, 0.5, 0.5), []);
+  useEffect(
+    () => () => {
+      partMaterial.dispose();
+      boxGeometry.dispose();
+    },
+    [partMaterial, boxGeometry],
+  );
+
+  const hover = useRef<HoverState>({ mesh: null, instanceId: -1, placement: null, saved: new THREE.Color() });
+  const label = useRef<{ show(at: Vec3 | null, text: string): void } | null>(null);
+  const section = useRef<SectionHandle | null>(null);
+
+  const applyCut = (h: number | null) => {
+    const active = h !== null && Number.isFinite(h);
+    clipPlane.constant = active ? (h as number) : NO_CUT;
+    section.current?.show(active ? (h as number) : null);
+    invalidate();
+  };
+  controller.current = {
+    setView: (view) => {
+      applyView(camera, controls, chamberBounds, view, size.width / Math.max(size.height, 1));
+      invalidate();
+    },
+    applyCut,
+  };
+
+  useLayoutEffect(() => {
+    cutRef.current = cutHeightMm;
+    applyCut(cutHeightMm);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [cutHeightMm, placements]);
+
+  // Fit once the orbit controls exist, and again for a different chamber.
+  useEffect(() => {
+    if (!controls) return;
+    applyView(camera, controls, chamberBounds, 'fit', size.width / Math.max(size.height, 1));
+    invalidate();
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [controls, chamberBounds]);
+
+  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);
+
+  const parts: React.ReactNode[] = [];
+  for (let k = 0; k < groups.parts.length; k++) {
+    const part = groups.parts[k];
+    const list = lists[k];
+    const mesh = meshesByPart?.get(part);
+    parts.push(
+      <PartInstances
+        key={`${part}:${list.length}:${mesh ? 'mesh' : 'box'}`}
+        list={list}
+        placements={placements}
+        mesh={mesh}
+        boxGeometry={boxGeometry}
+        material={partMaterial}
+        palette={palette}
+        events={events}
+      />,
+    );
+  }
+
+  const gridStep = span10(Math.max(chamberMm[0], chamberMm[1]));
+  return (
+    <>
+      <Lights span={Math.max(...chamberMm)} />
+      {parts}
+      <SectionRects placements={placements} palette={palette} handle={section} />
+      <BoxOutline min={chamberBounds.min} max={chamberBounds.max} colour={sceneColours.outline} opacity={0.9} />
+      <BoxOutline min={usable.min} max={usable.max} colour={sceneColours.usable} opacity={0.55} />
+      <FloorGrid sizeMm={Math.max(chamberMm[0], chamberMm[1])} centre={[chamberMm[0] / 2, chamberMm[1] / 2]} stepMm={gridStep} />
+      <HoverLabel handle={label} />
+      <OrbitControls makeDefault enableDamping={false} />
+      <FirstFrame callbacks={callbacks} placements={placements.partIndex.length} parts={groups.parts.length} />
+    </>
+  );
+}
+
+/** Grid step: 10 mm on a bench-top chamber, coarser on a big one so the lines stay apart. */
+function span10(sizeMm: number): number {
+  return sizeMm > 600 ? 50 : sizeMm > 300 ? 20 : 10;
+}
+
+interface PartEvents {
+  onPointerMove(e: ThreeEvent<PointerEvent>): void;
+  onPointerOut(e: ThreeEvent<PointerEvent>): void;
+  onClick(e: ThreeEvent<MouseEvent>): void;
+}
+
+function placementOf(e: ThreeEvent<PointerEvent | MouseEvent>): number | null {
+  const list = (e.object.userData as { list?: Uint32Array }).list;
+  return list && e.instanceId !== undefined ? list[e.instanceId] : null;
+}
+
+function makeEvents(
+  hover: React.MutableRefObject<HoverState>,
+  cutRef: React.MutableRefObject<number | null>,
+  callbacks: SceneProps['callbacks'],
+  label: React.MutableRefObject<{ show(at: Vec3 | null, text: string): void } | null>,
+  invalidate: () => void,
+  placements: ChamberPlacements,
+): PartEvents {
+  // A ray ignores clipping: a hit above the cut lands on a part that is not drawn, so let the event pass to the next hit.
+  const clipped = (e: ThreeEvent<PointerEvent | MouseEvent>) => cutRef.current !== null && e.point.z > cutRef.current + 1e-3;
+
+  const restore = () => {
+    const h = hover.current;
+    if (h.mesh && h.instanceId >= 0 && h.mesh.instanceColor) {
+      h.mesh.setColorAt(h.instanceId, h.saved);
+      h.mesh.instanceColor.needsUpdate = true;
+    }
+    h.mesh = null;
+    h.instanceId = -1;
+  };
+
+  const setHover = (mesh: THREE.InstancedMesh | null, instanceId: number, placement: number | null) => {
+    const h = hover.current;
+    if (h.placement === placement) return;
+    restore();
+    h.placement = placement;
+    if (mesh && placement !== null && mesh.instanceColor) {
+      mesh.getColorAt(instanceId, h.saved);
+      mesh.setColorAt(instanceId, HIGHLIGHT);
+      mesh.instanceColor.needsUpdate = true;
+      h.mesh = mesh;
+      h.instanceId = instanceId;
+      const describe = callbacks.current.describePlacement;
+      if (describe) {
+        const p = placements.positions;
+        const s = placements.sizes;
+        const i = placement;
+        label.current?.show([p[3 * i] + s[3 * i] / 2, p[3 * i + 1] + s[3 * i + 1] / 2, p[3 * i + 2] + s[3 * i + 2]], describe(i));
+      }
+    } else {
+      label.current?.show(null, '');
+    }
+    callbacks.current.onHover?.(placement);
+    invalidate();
+  };
+
+  return {
+    onPointerMove(e) {
+      if (clipped(e)) return;
+      e.stopPropagation();
+      setHover(e.object as THREE.InstancedMesh, e.instanceId ?? -1, placementOf(e));
+    },
+    onPointerOut() {
+      setHover(null, -1, null);
+    },
+    onClick(e) {
+      if (clipped(e)) return;
+      e.stopPropagation();
+      callbacks.current.onPick?.(placementOf(e));
+    },
+  };
+}
+
+interface PartInstancesProps {
+  list: Uint32Array;
+  placements: ChamberPlacements;
+  mesh?: PartMesh;
+  boxGeometry: THREE.BufferGeometry;
+  material: THREE.Material;
+  palette: readonly string[];
+  events: PartEvents;
+}
+
+/** All placements of one part: one InstancedMesh, one draw call. */
+const PartInstances = memo(function PartInstances({ list, placements, mesh, boxGeometry, material, palette, events }: PartInstancesProps) {
+  const ref = useRef<THREE.InstancedMesh>(null);
+  const invalidate = useThree((s) => s.invalidate);
+  const { geometry, local } = useMemo(() => {
+    if (!mesh) return { geometry: boxGeometry, local: UNIT_CUBE as LocalBounds };
+    const g = new THREE.BufferGeometry();
+    g.setAttribute('position', new THREE.BufferAttribute(mesh.positions, 3));
+    g.setIndex(new THREE.BufferAttribute(mesh.indices, 1));
+    g.computeBoundingBox();
+    g.computeBoundingSphere();
+    if (mesh.indices.length / 3 >= BVH_MIN_TRIANGLES) g.computeBoundsTree();
+    return { geometry: g, local: boundsOf(mesh.positions) as LocalBounds };
+  }, [mesh, boxGeometry]);
+  useEffect(
+    () => () => {
+      if (geometry !== boxGeometry) {
+        geometry.disposeBoundsTree?.();
+        geometry.dispose();
+      }
+    },
+    [geometry, boxGeometry],
+  );
+
+  useLayoutEffect(() => {
+    const im = ref.current;
+    if (!im) return;
+    instanceMatrices(placements.positions, placements.sizes, list, local, mesh ? placements.orientations : undefined, im.instanceMatrix.array as Float32Array);
+    im.instanceMatrix.needsUpdate = true;
+    im.instanceColor = new THREE.InstancedBufferAttribute(instanceColours(placements.lineIndex, list, palette), 3);
+    im.userData.list = list;
+    // Bounds over every instance: frustum culling and the raycast's first test use them.
+    im.computeBoundingBox();
+    im.computeBoundingSphere();
+    invalidate();
+  }, [list, placements, local, mesh, palette, invalidate]);
+
+  return (
+    <instancedMesh
+      ref={ref}
+      args={[geometry, material, list.length]}
+      onPointerMove={events.onPointerMove}
+      onPointerOut={events.onPointerOut}
+      onClick={events.onClick}
+    />
+  );
+});
+
+interface SectionHandle {
+  show(heightMm: number | null): void;
+}
+
+/**
+ * The cross-section at the cut: a flat rectangle over each box that spans
+ * the layer, in its line's colour. One instanced mesh sized for every
+ * placement; a new cut only rewrites the buffers and the count.
+ */
+function SectionRects({ placements, palette, handle }: { placements: ChamberPlacements; palette: readonly string[]; handle: React.MutableRefObject<SectionHandle | null> }) {
+  const ref = useRef<THREE.InstancedMesh>(null);
+  const n = placements.partIndex.length;
+  const geometry = useMemo(() => new THREE.PlaneGeometry(1, 1).translate(0.5, 0.5, 0), []);
+  const material = useMemo(
+    () =>
+      new THREE.MeshBasicMaterial({
+        color: '#ffffff',
+        side: THREE.DoubleSide,
+        // drawn on the cut, where the clipped parts' faces end: pull it forward so it wins the depth test
+        polygonOffset: true,
+        polygonOffsetFactor: -2,
+        polygonOffsetUnits: -2,
+      }),
+    [],
+  );
+  useEffect(
+    () => () => {
+      geometry.dispose();
+      material.dispose();
+    },
+    [geometry, material],
+  );
+
+  useLayoutEffect(() => {
+    handle.current = {
+      show(h) {
+        const im = ref.current;
+        if (!im) return;
+        if (h === null) {
+          im.count = 0;
+          im.visible = false;
+          return;
+        }
+        const list = spanningAt(placements.positions, placements.sizes, h);
+        sectionMatrices(placements.positions, placements.sizes, list, h, im.instanceMatrix.array as Float32Array);
+        if (!im.instanceColor) im.instanceColor = new THREE.InstancedBufferAttribute(new Float32Array(Math.max(n, 1) * 3), 3);
+        instanceColours(placements.lineIndex, list, palette, im.instanceColor.array as Float32Array);
+        im.count = list.length;
+        im.visible = list.length > 0;
+        im.instanceMatrix.needsUpdate = true;
+        im.instanceColor.needsUpdate = true;
+        im.computeBoundingSphere();
+      },
+    };
+    return () => {
+      handle.current = null;
+    };
+  }, [handle, placements, palette, n]);
+
+  return <instancedMesh ref={ref} key={n} args={[geometry, material, Math.max(n, 1)]} visible={false} renderOrder={2} />;
+}
+
+/** The hovered placement's label: its own small state, set by pointer events, never per frame. */
+function HoverLabel({ handle }: { handle: React.MutableRefObject<{ show(at: Vec3 | null, text: string): void } | null> }) {
+  const [shown, setShown] = useState<{ at: Vec3; text: string } | null>(null);
+  useLayoutEffect(() => {
+    handle.current = { show: (at, text) => setShown(at ? { at, text } : null) };
+    return () => {
+      handle.current = null;
+    };
+  }, [handle]);
+  if (!shown) return null;
+  return (
+    <Html position={shown.at} center zIndexRange={[20, 0]} style={{ transform: 'translateY(-18px)' }}>
+      <div style={labelStyle}>{shown.text}</div>
+    </Html>
+  );
+}
+
+/** Reports the first rendered frame (see the file comment). */
+function FirstFrame({ callbacks, placements, parts }: { callbacks: SceneProps['callbacks']; placements: number; parts: number }) {
+  const done = useRef(false);
+  const gl = useThree((s) => s.gl);
+  useFrame(() => {
+    if (done.current) return;
+    done.current = true;
+    // useFrame runs just before the render of this frame; the next animation frame comes after it.
+    requestAnimationFrame(() => {
+      const t = performance.now();
+      if (typeof window !== 'undefined') {
+        window.__chamberReady = t;
+        window.__chamberStats = { placements, parts, drawCalls: gl.info.render.calls, triangles: gl.info.render.triangles };
+      }
+      callbacks.current.onFirstFrame?.(t);
+    });
+  });
+  return null;
+}
+
+const styles = StyleSheet.create({
+  frame: { width: '100%', height: '100%', minHeight: 320, borderRadius: 8, overflow: 'hidden', backgroundColor: colors.powderDeep },
+  toolbar: { position: 'absolute', top: 8, right: 8 },
+});
