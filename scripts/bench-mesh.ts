@@ -3,7 +3,8 @@
  * tessellated torus, 48 MB), then reads and measures it in-process and through
  * the server's worker pool, printing milliseconds and the process's peak RSS.
  * Also times the alternative edge count (a JS Map keyed on vertex pairs)
- * against the adjacency-list count the metrics use.
+ * against the adjacency-list count the metrics use, and reads the same mesh
+ * as a 3MF package.
  *
  *   npm run bench:mesh            (target: under 3 s for the file)
  */
@@ -11,7 +12,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync, statSync } from 'node
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { performance } from 'node:perf_hooks';
-import { measureMeshFile, measureMesh, parseStl, torus, writeBinaryStl } from '../shared/geometry';
+import { measureMeshFile, measureMesh, parseStl, torus, translation, write3mf, writeBinaryStl } from '../shared/geometry';
 import { closeMeshPool, measureFile } from '../server/mesh';
 
 const MAJOR = 1000;
@@ -83,6 +84,15 @@ async function main(): Promise<void> {
     t0 = performance.now();
     const open = mapEdgeCount(parsed.parts[0].indices, parsed.parts[0].positions.length / 3);
     console.log(`alternative edge count with a JS Map: ${(performance.now() - t0).toFixed(0)} ms (${open} open edges), vs the whole metrics above`);
+
+    // The same solid as a 3MF package (XML in a ZIP) for comparison with the binary STL.
+    const threeMf = write3mf([{ name: 'torus', ...parsed.parts[0] }], [{ objectIndex: 0, transform: translation(0, 0, 0) }]);
+    t0 = performance.now();
+    const fromThreeMf = measureMeshFile(threeMf, { filename: 'torus-1m.3mf' });
+    console.log(
+      `3MF of the same mesh (${(threeMf.length / 1e6).toFixed(1)} MB zipped): measureMeshFile ${(performance.now() - t0).toFixed(0)} ms ` +
+        `(${fromThreeMf.ok ? `${fromThreeMf.parts[0].metrics.triangles} triangles` : fromThreeMf.problems[0].code})`,
+    );
   } finally {
     await closeMeshPool();
     rmSync(dir, { recursive: true, force: true });
