@@ -169,7 +169,7 @@ const styles = StyleSheet.create({
   form: { gap: spacing.lg },
   fields: { gap: spacing.lg },
   fieldsWide: { flexDirection: 'row', flexWrap: 'wrap', columnGap: spacing.xl },
-  cell: { flexBasis: '100%' },
+  cell: {},
   cellWide: { flexBasis: 300, flexGrow: 1, maxWidth: 520 },
   triple: { gap: spacing.xs },
   tripleRow: { flexDirection: 'row', gap: spacing.sm },
