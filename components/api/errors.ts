@@ -27,12 +27,17 @@ export function errorFieldRoot(field: string | undefined): string | undefined {
   return m ? m[0] : undefined;
 }
 
+/** Server messages about a field may start lower-case ("must be ..."): shown alone they read as a sentence. */
+function sentence(message: string): string {
+  return message ? message[0].toUpperCase() + message.slice(1) : message;
+}
+
 /** Errors keyed by form field, and the one that belongs to no field shown above the form. */
 export function fieldErrorsOf(error: unknown, knownFields: readonly string[]): { fields: Record<string, string>; form?: string } {
   if (!error) return { fields: {} };
   if (isApiError(error)) {
     const root = errorFieldRoot(error.field);
-    if (root && knownFields.includes(root)) return { fields: { [root]: error.message } };
+    if (root && knownFields.includes(root)) return { fields: { [root]: sentence(error.message) } };
     return { fields: {}, form: error.message };
   }
   return { fields: {}, form: error instanceof Error ? error.message : String(error) };

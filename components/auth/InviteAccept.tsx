@@ -2,6 +2,7 @@ import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { z } from 'zod';
+import { PASSWORD_MIN } from '../../shared/schemas/auth';
 import { fieldErrorsOf, isApiError } from '../api/client';
 import type { InvitePreview } from '../api/schemas';
 import { roleHints, roleLabels, roleTones, sortRoles } from '../lab/roles';
@@ -11,10 +12,11 @@ import { useMeQuery, useSignOutMutation } from '../queries/me';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, ErrorState, Field, Figure, LoadingState, Notice, Text, zodFieldErrors } from '../ui';
 import { AuthFrame } from './AuthFrame';
+import { formatDateTime } from '../ui/format';
 
 const newUserSchema = z.object({
   name: z.string().trim().min(1, 'Enter your name.').max(120),
-  password: z.string().min(10, 'At least 10 characters.').max(200, 'At most 200 characters.'),
+  password: z.string().min(PASSWORD_MIN, `At least ${PASSWORD_MIN} characters.`).max(200, 'At most 200 characters.'),
 });
 const existingUserSchema = z.object({ password: z.string().min(1, 'Enter your password.') });
 
@@ -52,7 +54,6 @@ export function InviteAccept({ token }: { token: string }) {
 }
 
 function InviteSummary({ invite }: { invite: InvitePreview }) {
-  const expires = new Date(invite.expiresAt);
   return (
     <View style={styles.summary} testID="invite-accept-lab">
       <View style={styles.summaryRow}>
@@ -86,7 +87,7 @@ function InviteSummary({ invite }: { invite: InvitePreview }) {
         <Text variant="overline" color="inkFaint">
           Valid until
         </Text>
-        <Figure variant="figure">{Number.isNaN(expires.getTime()) ? invite.expiresAt : expires.toLocaleString()}</Figure>
+        <Figure variant="figure">{formatDateTime(invite.expiresAt)}</Figure>
       </View>
     </View>
   );

@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { PASSWORD_MIN } from '../../shared/schemas/auth';
 import { api, isApiError } from '../api/client';
 import { meSchema, type Me } from '../api/schemas';
 
@@ -37,7 +38,7 @@ export type SignInInput = z.infer<typeof signInInputSchema>;
 
 export const signUpInputSchema = z.object({
   email: z.string().trim().email('Enter an e-mail address.').max(254),
-  password: z.string().min(10, 'At least 10 characters.').max(200, 'At most 200 characters.'),
+  password: z.string().min(PASSWORD_MIN, `At least ${PASSWORD_MIN} characters.`).max(200, 'At most 200 characters.'),
   name: z.string().trim().min(1, 'Enter your name.').max(120),
   labName: z.string().trim().min(1, 'Name the lab.').max(120),
 });

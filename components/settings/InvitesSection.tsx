@@ -7,7 +7,7 @@ import { useLab } from '../lab/useCurrentLab';
 import { inviteInputSchema, useCreateInviteMutation, useInvitesQuery, useRevokeInviteMutation } from '../queries/invites';
 import { spacing } from '../theme';
 import { Badge, Button, Card, ConfirmAction, EmptyState, ErrorState, Field, Figure, LoadingState, Notice, Table, Text, ToggleChip, zodFieldErrors, type BadgeTone, type Column } from '../ui';
-import { formatDate } from './format';
+import { formatDate } from '../ui/format';
 import { SettingsScreen } from './SettingsScreen';
 
 export function InvitesSection() {

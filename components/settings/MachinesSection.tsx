@@ -10,7 +10,7 @@ import {
   useUpdateMachineMutation,
 } from '../queries/machines';
 import { Button, EmptyState, ErrorState, Figure, LoadingState, Table, Text, type Column } from '../ui';
-import { formatNumber } from './format';
+import { formatNumber } from '../ui/format';
 import { profileFields } from './pickProfile';
 import { machineFieldGroups } from './profileFields';
 import { emptyValues, valuesFrom } from './profileForm';

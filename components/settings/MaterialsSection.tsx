@@ -10,7 +10,7 @@ import {
   useUpdateMaterialMutation,
 } from '../queries/materials';
 import { Button, EmptyState, ErrorState, Figure, LoadingState, Table, Text, type Column } from '../ui';
-import { formatNumber } from './format';
+import { formatNumber } from '../ui/format';
 import { profileFields } from './pickProfile';
 import { materialFieldGroups } from './profileFields';
 import { emptyValues, valuesFrom } from './profileForm';

@@ -7,7 +7,7 @@ import { useMeQuery } from '../queries/me';
 import { useMembersQuery, useRemoveMemberMutation, useUpdateMemberRolesMutation } from '../queries/members';
 import { spacing, useIsWide } from '../theme';
 import { Badge, ConfirmAction, ErrorState, Figure, LoadingState, Notice, Table, Text, ToggleChip, type Column } from '../ui';
-import { formatDate } from './format';
+import { formatDate } from '../ui/format';
 import { SettingsScreen } from './SettingsScreen';
 
 export function MembersSection() {

@@ -1,5 +1,5 @@
 import type { z } from 'zod';
-import { formatNumber } from './format';
+import { formatNumber } from '../ui/format';
 
 /**
  * A profile form holds what the user typed as strings; these specs turn the
