@@ -173,7 +173,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const invalidate = useThree((s) => s.invalidate);
   const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
 
-  const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]); // eslint-disable-line react-hooks/exhaustive-deps
+  const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]);
   const usable: Bounds = { min: [margin.xy, margin.xy, margin.bottom], max: [chamberMm[0] - margin.xy, chamberMm[1] - margin.xy, chamberMm[2] - margin.top] };
   const groups = useMemo(() => groupByPart(placements.partIndex), [placements.partIndex]);
   // Views made once per layout, so a new cut does not look like new instances to the memoised parts.
@@ -215,7 +215,6 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   useLayoutEffect(() => {
     cutRef.current = cutHeightMm;
     applyCut(cutHeightMm);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [cutHeightMm, placements]);
 
   // Fit once the orbit controls exist, and again for a different chamber.
@@ -223,7 +222,6 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     if (!controls) return;
     applyView(camera, controls, chamberBounds, 'fit', size.width / Math.max(size.height, 1));
     invalidate();
-    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [controls, chamberBounds]);
 
   const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);

@@ -271,7 +271,7 @@ export function srgbToLinear(c: number): number {
  * Linear-RGB colour triples, one per listed placement, by its line: what
  * InstancedMesh.instanceColor holds (three.js shades in linear light).
  */
-export function instanceColours(lineIndex: ArrayLike<number>, list: ArrayLike<number>, palette: readonly string[] = LINE_PALETTE, out = new Float32Array(list.length * 3)): Float32Array {
+export function instanceColours(lineIndex: ArrayLike<number>, list: ArrayLike<number>, palette: readonly string[] = LINE_PALETTE, out: Float32Array = new Float32Array(list.length * 3)): Float32Array {
   const linear = palette.map((hex) => hexToRgb(hex).map(srgbToLinear));
   const n = linear.length;
   for (let k = 0; k < list.length; k++) {

@@ -71,7 +71,6 @@ export function FitOnLoad({ bounds, view = 'fit' }: { bounds: Bounds; view?: Vie
     applyView(camera, controls, bounds, view, size.width / Math.max(size.height, 1));
     invalidate();
     // Refit when the bounds or the controls change, not on every resize (the user may have orbited).
-    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [key]);
   return null;
 }
@@ -97,7 +96,7 @@ export function BoxOutline({ min, max, colour, opacity = 1 }: { min: readonly nu
     const edges = new THREE.EdgesGeometry(box);
     box.dispose();
     return edges;
-  }, [min[0], min[1], min[2], max[0], max[1], max[2]]); // eslint-disable-line react-hooks/exhaustive-deps
+  }, [min[0], min[1], min[2], max[0], max[1], max[2]]);
   useEffect(() => () => geometry.dispose(), [geometry]);
   return (
     <lineSegments geometry={geometry} position={[(min[0] + max[0]) / 2, (min[1] + max[1]) / 2, (min[2] + max[2]) / 2]}>
@@ -110,7 +109,7 @@ export function BoxOutline({ min, max, colour, opacity = 1 }: { min: readonly nu
 export function BuildArrow({ origin, lengthMm }: { origin: [number, number, number]; lengthMm: number }) {
   const arrow = useMemo(
     () => new THREE.ArrowHelper(new THREE.Vector3(0, 0, 1), new THREE.Vector3(...origin), lengthMm, sceneColours.arrow, lengthMm * 0.22, lengthMm * 0.12),
-    [origin[0], origin[1], origin[2], lengthMm], // eslint-disable-line react-hooks/exhaustive-deps
+    [origin[0], origin[1], origin[2], lengthMm],
   );
   useEffect(() => () => arrow.dispose(), [arrow]);
   return <primitive object={arrow} />;
