@@ -63,7 +63,15 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
     },
     async remove(labId: string, id: string): Promise<void> {
       const row = await find(labId, id);
-      await row.destroy();
+      try {
+        await row.destroy();
+      } catch (err) {
+        // Build plans keep their machine and material for good (their history and estimates name them).
+        if ((err as { name?: string }).name === 'SequelizeForeignKeyConstraintError') {
+          throw conflict('in_use', `This ${what} is used by build plans, so it cannot be deleted; keep it, or rename it to show it is retired.`);
+        }
+        throw err;
+      }
     },
   };
 }

@@ -1,0 +1,361 @@
+import { QueryTypes } from 'sequelize';
+import type { Database } from '../db';
+import { AppError, conflict, notFound } from '../errors';
+import { parseOrThrow } from '../http/validate';
+import {
+  checkPlanId,
+  effectiveRule,
+  layoutSummary,
+  linesKey,
+  lockPlan,
+  planLines,
+  profileRow,
+  readOnly,
+  reopenIfSentBack,
+  type Actor,
+  type LineRow,
+} from './plans';
+import { isEditable } from '../../shared/plans/status';
+import {
+  ORIENTATIONS,
+  parseInstance,
+  validateLayout,
+  orientedSize,
+  type FieldProblem,
+  type Orientation,
+  type PackInstance,
+  type PackResult,
+  type Placement,
+  type Vec3,
+} from '../../shared/packing';
+import { estimateLayout, InvalidInputError, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
+import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
+import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView, type PlanOrientationRule } from '../../shared/schemas/plans';
+
+/**
+ * Placement bytes, format 1 (little-endian), n placements:
+ *
+ *   [ x0 y0 z0 x1 y1 z1 ... ]  Float64 x 3n   minimum corners (64-bit: the layout rules compare to 1e-6 mm)
+ *   [ k0 k1 ... ]              Uint32 x n     index into the layout's part ids
+ *   [ o0 o1 ... ]              Uint8 x n      orientation code, 0..5 = xyz xzy yxz yzx zxy zyx
+ *
+ * Sizes are not stored: they follow from the part's size and the orientation.
+ * 29 bytes a placement, about 145 kB for 5,000.
+ */
+export const PLACEMENTS_FORMAT = 1;
+
+export function encodePlacements(placements: readonly Placement[], partIds: string[]): Buffer {
+  const n = placements.length;
+  const index = new Map(partIds.map((id, k) => [id, k]));
+  const buf = Buffer.alloc(29 * n);
+  const view = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
+  const kAt = 24 * n;
+  const oAt = 28 * n;
+  for (let i = 0; i < n; i++) {
+    const p = placements[i];
+    view.setFloat64(24 * i, p.position[0], true);
+    view.setFloat64(24 * i + 8, p.position[1], true);
+    view.setFloat64(24 * i + 16, p.position[2], true);
+    view.setUint32(kAt + 4 * i, index.get(p.id)!, true);
+    view.setUint8(oAt + i, ORIENTATIONS.indexOf(p.orientation));
+  }
+  return buf;
+}
+
+/** Rebuilds the placements of any stored format; sizes from the part sizes of the layout's own instance. */
+export function decodePlacements(
+  format: number,
+  bytes: Buffer,
+  count: number,
+  partIds: string[],
+  sizeOf: (id: string) => Vec3 | undefined,
+): Placement[] {
+  if (format !== 1) throw new AppError(500, 'unknown_layout_format', `This layout was stored in placement format ${format}, which this server cannot read.`);
+  if (bytes.length !== 29 * count) throw new AppError(500, 'corrupt_layout', 'This layout\'s stored placements are damaged.');
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const out: Placement[] = new Array(count);
+  const kAt = 24 * count;
+  const oAt = 28 * count;
+  for (let i = 0; i < count; i++) {
+    const id = partIds[view.getUint32(kAt + 4 * i, true)];
+    const orientation = ORIENTATIONS[view.getUint8(oAt + i)] ?? 'xyz';
+    const size = sizeOf(id);
+    out[i] = {
+      id,
+      position: [view.getFloat64(24 * i, true), view.getFloat64(24 * i + 8, true), view.getFloat64(24 * i + 16, true)],
+      size: size ? orientedSize(size, orientation) : [0, 0, 0],
+      orientation,
+    };
+  }
+  return out;
+}
+
+const RULE_ORIENTATIONS: Record<PlanOrientationRule, readonly Orientation[]> = {
+  any: ORIENTATIONS,
+  // A turn about the vertical axis keeps the part's own z up.
+  keep_up: ['xyz', 'yxz'],
+  fixed: ['xyz'],
+};
+
+const close = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.max(1, Math.abs(a), Math.abs(b));
+
+/**
+ * The instance must be the plan's own build: the machine's chamber and one of
+ * its layer heights, at least the material's spacing and margins, and one
+ * part per plan line (id = the request line id) with the line's quantity, the
+ * part's size and only orientations the line's rule allows.
+ */
+export function instanceProblems(instance: PackInstance, machine: MachineProfile, material: MaterialProfile, lines: LineRow[]): FieldProblem[] {
+  const problems: FieldProblem[] = [];
+  const bad = (field: string, message: string) => problems.push({ field: `instance.${field}`, message });
+  for (let a = 0; a < 3; a++) {
+    if (!close(instance.chamber[a], machine.chamberMm[a])) bad(`chamber[${a}]`, `must be the machine's chamber, ${machine.chamberMm[a]} mm`);
+  }
+  if (!machine.layerHeightsMm.some((h) => close(h, instance.layerHeight))) {
+    bad('layerHeight', `must be one of the machine's layer heights (${machine.layerHeightsMm.join(', ')} mm)`);
+  }
+  const tol = 1e-6;
+  if (instance.spacing < material.spacingMm - tol) bad('spacing', `must be at least the material's spacing, ${material.spacingMm} mm`);
+  if (instance.margin.xy < material.marginXyMm - tol) bad('margin.xy', `must be at least the material's wall margin, ${material.marginXyMm} mm`);
+  if (instance.margin.bottom < material.marginBottomMm - tol) bad('margin.bottom', `must be at least the material's bottom margin, ${material.marginBottomMm} mm`);
+  if (instance.margin.top < material.marginTopMm - tol) bad('margin.top', `must be at least the material's top margin, ${material.marginTopMm} mm`);
+
+  const byLine = new Map(lines.map((l) => [l.request_line_id, l]));
+  const seen = new Set<string>();
+  instance.parts.forEach((part, i) => {
+    const line = byLine.get(part.id);
+    if (!line) {
+      bad(`parts[${i}].id`, `"${part.id}" is not a line of this plan (part ids are the plan's request line ids)`);
+      return;
+    }
+    seen.add(part.id);
+    if (part.quantity !== line.quantity) bad(`parts[${i}].quantity`, `must be ${line.quantity}, the plan's quantity of "${line.part_name}"`);
+    const size: Vec3 = [line.size_x_mm, line.size_y_mm, line.size_z_mm];
+    for (let a = 0; a < 3; a++) {
+      if (!close(part.size[a], size[a])) bad(`parts[${i}].size[${a}]`, `must be ${size[a]} mm, the size of "${line.part_name}"`);
+    }
+    const rule = effectiveRule(line);
+    const allowed = RULE_ORIENTATIONS[rule];
+    const extra = part.orientations.filter((o) => !allowed.includes(o));
+    if (extra.length > 0) {
+      bad(`parts[${i}].orientations`, `allows ${extra.join(', ')}, which the rule "${rule}" of "${line.part_name}" forbids (allowed: ${allowed.join(', ')})`);
+    }
+  });
+  for (const line of lines) {
+    if (!seen.has(line.request_line_id)) bad('parts', `has no part for the plan's line "${line.part_name}" (id ${line.request_line_id})`);
+  }
+  return problems;
+}
+
+function refuse(problems: FieldProblem[], root = ''): never {
+  const withRoot = problems.map((p) => ({ field: root ? `${root}.${p.field}` : p.field, message: p.message }));
+  const first = withRoot[0];
+  const more = withRoot.length > 1 ? ` (and ${withRoot.length - 1} more problem${withRoot.length > 2 ? 's' : ''})` : '';
+  throw new AppError(400, 'invalid_input', `${first.field} ${first.message}${more}`, first.field, { problems: withRoot.slice(0, 50) });
+}
+
+/** An estimate as JSON: the per-layer profile as a plain array. */
+function estimateJson(e: LayoutEstimate) {
+  return { ...e, areaPerLayerMm2: Array.from(e.areaPerLayerMm2) };
+}
+
+/** Estimate factors fitted from the machine's recorded runs, once runs are recorded. */
+export type CalibrationLookup = (labId: string, machineId: string) => Promise<CalibrationFactors | undefined>;
+
+export type LayoutsDeps = { calibrationFor?: CalibrationLookup };
+
+/** A plan's layouts: saving a packing (checked and estimated), reading it back, choosing, labelling, deleting. */
+export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
+  const { sequelize } = db;
+
+  async function layoutRow(labId: string, planId: string, layoutId: string) {
+    if (!/^[0-9a-f-]{36}$/i.test(layoutId)) throw notFound('That layout');
+    const [row] = await sequelize.query<any>(
+      `SELECT l.*, u.name AS created_by_name, p.chosen_layout_id
+         FROM layouts l JOIN plans p ON p.id = l.plan_id LEFT JOIN users u ON u.id = l.created_by
+        WHERE l.id = $1 AND l.plan_id = $2 AND p.lab_id = $3`,
+      { bind: [layoutId, checkPlanId(planId), labId], type: QueryTypes.SELECT },
+    );
+    if (!row) throw notFound('That layout');
+    return row;
+  }
+
+  return {
+    /**
+     * Checks the packing against the engine's rules and the plan, estimates it
+     * on the plan's machine and material, and stores it with its placements packed as bytes.
+     */
+    async add(labId: string, planId: string, user: Actor, body: unknown) {
+      const input = parseOrThrow(layoutCreateSchema, body);
+      const parsed = parseInstance(input.instance);
+      if (!parsed.ok) refuse(parsed.problems, 'instance');
+      const instance = parsed.instance;
+      const result = input.result as PackResult;
+
+      return sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!isEditable(plan.status)) throw readOnly(plan.status);
+        const machine = await profileRow(db, 'machines', labId, plan.machine_id, transaction);
+        const material = await profileRow(db, 'materials', labId, plan.material_id, transaction);
+        if (!machine || !material) throw notFound("That plan's machine or material");
+        const lines = await planLines(db, plan.id, transaction);
+
+        const mismatch = instanceProblems(instance, machine as unknown as MachineProfile, material as unknown as MaterialProfile, lines);
+        if (mismatch.length > 0) refuse(mismatch);
+        const invalid = validateLayout(instance, result);
+        if (invalid.length > 0) refuse(invalid, 'result');
+
+        const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, plan.machine_id) : undefined;
+        const volumeOf = new Map(lines.map((l) => [l.request_line_id, l.volume_mm3]));
+        let partsVolumeMm3 = 0;
+        for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
+        let estimate: LayoutEstimate;
+        try {
+          const { id: _m, ...machineProfile } = machine;
+          const { id: _t, ...materialProfile } = material;
+          estimate = estimateLayout({
+            layout: { placements: result.placements, heightMm: result.height, margin: instance.margin },
+            machine: machineProfile as MachineProfile,
+            material: materialProfile as MaterialProfile,
+            layerHeightMm: instance.layerHeight,
+            calibration,
+            partsVolumeMm3,
+            partCount: result.placements.length,
+          });
+        } catch (err) {
+          if (err instanceof InvalidInputError) refuse(err.problems);
+          throw err;
+        }
+
+        const partIds = instance.parts.map((p) => p.id);
+        const settings = {
+          seed: instance.seed,
+          spacingMm: instance.spacing,
+          layerHeightMm: instance.layerHeight,
+          timeLimitMs: instance.timeLimitMs,
+          objective: instance.objective,
+          margin: instance.margin,
+        };
+        const summary = { unplaced: result.unplaced, height: result.height, layers: result.layers, utilization: result.utilization, elapsedMs: result.elapsedMs };
+        const [count] = await sequelize.query<{ n: string }>('SELECT COUNT(*) AS n FROM layouts WHERE plan_id = $1', {
+          bind: [plan.id],
+          type: QueryTypes.SELECT,
+          transaction,
+        });
+        const label = input.label ?? `Layout ${Number(count.n) + 1}`;
+        const json = estimateJson(estimate);
+        const [rows] = (await sequelize.query(
+          `INSERT INTO layouts (id, plan_id, label, settings, instance, lines_key, result_format, placements_format, placement_count,
+                                part_ids, placements, summary, estimate, locked, created_by, created_at)
+           VALUES (gen_random_uuid(), $1, $2, $3::jsonb, $4::jsonb, $5, $6, $7, $8, $9::text[], $10, $11::jsonb, $12::jsonb, $13, $14, now())
+           RETURNING id, created_at`,
+          {
+            bind: [
+              plan.id,
+              label,
+              JSON.stringify(settings),
+              JSON.stringify(instance),
+              linesKey(lines),
+              result.format,
+              PLACEMENTS_FORMAT,
+              result.placements.length,
+              partIds,
+              encodePlacements(result.placements, partIds),
+              JSON.stringify(summary),
+              JSON.stringify(json),
+              input.locked ?? false,
+              user.id,
+            ],
+            transaction,
+          },
+        )) as [Array<{ id: string }>, unknown];
+        await reopenIfSentBack(db, plan, user.id, transaction);
+        await sequelize.query('UPDATE plans SET updated_at = now() WHERE id = $1', { bind: [plan.id], transaction });
+        return { id: rows[0].id, label, estimate: json };
+      });
+    },
+
+    /** The whole layout, placements as the packing contract's objects; read as stored, whatever engine wrote it. */
+    async get(labId: string, planId: string, layoutId: string) {
+      const row = await layoutRow(labId, planId, layoutId);
+      const instance = row.instance as PackInstance;
+      const sizes = new Map<string, Vec3>((instance.parts ?? []).map((p) => [p.id, p.size]));
+      const placements = decodePlacements(row.placements_format, row.placements, row.placement_count, row.part_ids, (id) => sizes.get(id));
+      const lines = await planLines(db, row.plan_id);
+      const summary: LayoutSummaryView = layoutSummary({ ...row, estimate_summary: {} }, row, linesKey(lines));
+      return {
+        ...summary,
+        planId: row.plan_id,
+        instance,
+        result: {
+          format: row.result_format,
+          placements,
+          unplaced: row.summary.unplaced ?? [],
+          height: row.summary.height,
+          layers: row.summary.layers,
+          utilization: row.summary.utilization,
+          elapsedMs: row.summary.elapsedMs,
+        },
+        estimate: row.estimate,
+      };
+    },
+
+    /** Marks the layout as the one to review; one packed for other lines is refused. */
+    async choose(labId: string, planId: string, layoutId: string, user: Actor) {
+      return sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!isEditable(plan.status)) throw readOnly(plan.status);
+        const [layout] = await sequelize.query<{ id: string; lines_key: string }>(
+          'SELECT id, lines_key FROM layouts WHERE id = $1 AND plan_id = $2',
+          { bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id], type: QueryTypes.SELECT, transaction },
+        );
+        if (!layout) throw notFound('That layout');
+        if (layout.lines_key !== linesKey(await planLines(db, plan.id, transaction))) {
+          throw conflict('layout_stale', "This layout was packed before the plan's lines changed; pack again to get one that fits them.");
+        }
+        await reopenIfSentBack(db, plan, user.id, transaction);
+        const [rows] = (await sequelize.query(
+          'UPDATE plans SET chosen_layout_id = $2, version = version + 1, updated_at = now() WHERE id = $1 RETURNING version',
+          { bind: [plan.id, layout.id], transaction },
+        )) as [Array<{ version: number }>, unknown];
+        return { id: plan.id, chosenLayoutId: layout.id, version: rows[0].version, status: plan.status };
+      });
+    },
+
+    async update(labId: string, planId: string, layoutId: string, body: unknown) {
+      const input = parseOrThrow(layoutPatchSchema, body);
+      await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!isEditable(plan.status)) throw readOnly(plan.status);
+        const [, meta] = (await sequelize.query(
+          'UPDATE layouts SET label = COALESCE($3, label), locked = COALESCE($4, locked) WHERE id = $1 AND plan_id = $2',
+          { bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id, input.label ?? null, input.locked ?? null], transaction },
+        )) as [unknown, { rowCount?: number }];
+        if (!meta?.rowCount) throw notFound('That layout');
+      });
+      return this.get(labId, planId, layoutId);
+    },
+
+    /** A locked layout stays until unlocked; deleting the chosen one leaves the plan without a choice. */
+    async remove(labId: string, planId: string, layoutId: string, user: Actor) {
+      await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!isEditable(plan.status)) throw readOnly(plan.status);
+        const [layout] = await sequelize.query<{ id: string; locked: boolean }>('SELECT id, locked FROM layouts WHERE id = $1 AND plan_id = $2', {
+          bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id],
+          type: QueryTypes.SELECT,
+          transaction,
+        });
+        if (!layout) throw notFound('That layout');
+        if (layout.locked) throw conflict('locked', 'This layout is locked; unlock it before deleting it.');
+        await sequelize.query('DELETE FROM layouts WHERE id = $1', { bind: [layout.id], transaction });
+        if (plan.chosen_layout_id === layout.id) {
+          await sequelize.query('UPDATE plans SET version = version + 1, updated_at = now() WHERE id = $1', { bind: [plan.id], transaction });
+        }
+        await reopenIfSentBack(db, plan, user.id, transaction);
+      });
+    },
+  };
+}
+export type LayoutsService = ReturnType<typeof layoutsService>;
+

@@ -1,0 +1,579 @@
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Database } from '../db';
+import type { Mailer } from '../mail/mailer';
+import { AppError, badRequest, conflict, notFound } from '../errors';
+import { parseOrThrow } from '../http/validate';
+import type { LabsService } from './labs';
+import {
+  allowedNext,
+  canTransition,
+  isEditable,
+  STATUS_LABELS,
+  type PlanStatus,
+} from '../../shared/plans/status';
+import {
+  planCreateSchema,
+  planListQuerySchema,
+  planUpdateSchema,
+  type LayoutSummaryView,
+  type PlanEventView,
+  type PlanLineView,
+  type PlanListItem,
+  type PlanOrientationRule,
+  type PlanView,
+} from '../../shared/schemas/plans';
+
+export type Actor = { id: string; name: string; email?: string };
+
+/** Statuses whose lines no longer hold request quantities: nothing of them is (or will be) printed. */
+export const INACTIVE_STATUSES: readonly PlanStatus[] = ['cancelled', 'aborted'];
+const INACTIVE_SQL = `('cancelled', 'aborted')`;
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export function checkPlanId(id: string): string {
+  if (!UUID.test(id)) throw notFound('That plan');
+  return id;
+}
+
+export type PlanRow = {
+  id: string;
+  lab_id: string;
+  name: string;
+  machine_id: string;
+  material_id: string;
+  status: PlanStatus;
+  version: number;
+  chosen_layout_id: string | null;
+  queue_position: number | null;
+  draft: unknown;
+  created_by: string | null;
+  created_at: Date;
+  updated_at: Date;
+};
+
+/** A line of a plan with what the packing and the checks need. */
+export type LineRow = {
+  id: string;
+  request_line_id: string;
+  position: number;
+  quantity: number;
+  orientation: PlanOrientationRule | null;
+  part_id: string;
+  part_name: string;
+  size_x_mm: number;
+  size_y_mm: number;
+  size_z_mm: number;
+  volume_mm3: number;
+  part_orientation: PlanOrientationRule;
+  request_id: string;
+  request_title: string;
+  due_date: string;
+  priority: string;
+  request_status: string;
+  line_quantity: number;
+  printed_count: number;
+};
+
+export function invalidTransition(from: PlanStatus, to: PlanStatus): AppError {
+  const allowed = allowedNext(from);
+  const can = allowed.length ? allowed.map((s) => STATUS_LABELS[s].toLowerCase()).join(', ') : 'nothing else';
+  return conflict(
+    'invalid_transition',
+    `A plan that is ${STATUS_LABELS[from].toLowerCase()} cannot become ${STATUS_LABELS[to].toLowerCase()}; from here it can become: ${can}.`,
+    undefined,
+    { status: from, allowed: [...allowed] },
+  );
+}
+
+export function readOnly(status: PlanStatus): AppError {
+  return conflict(
+    'read_only',
+    `This plan is ${STATUS_LABELS[status].toLowerCase()}, so it can no longer be changed` +
+      (status === 'in_review' ? ' until a lead sends it back.' : '.'),
+    undefined,
+    { status },
+  );
+}
+
+/** The plan row, locked for the rest of the transaction; another lab's plan is not found. */
+export async function lockPlan(db: Database, labId: string, planId: string, transaction: Transaction): Promise<PlanRow> {
+  const [row] = await db.sequelize.query<PlanRow>('SELECT * FROM plans WHERE id = $1 AND lab_id = $2 FOR UPDATE', {
+    bind: [checkPlanId(planId), labId],
+    type: QueryTypes.SELECT,
+    transaction,
+  });
+  if (!row) throw notFound('That plan');
+  return row;
+}
+
+/**
+ * Moves the plan to `to` if the status machine allows it, records who and
+ * when, and bumps the version; returns the new version.
+ */
+export async function applyTransition(
+  db: Database,
+  plan: PlanRow,
+  to: PlanStatus,
+  userId: string | null,
+  comment: string | null,
+  transaction: Transaction,
+): Promise<number> {
+  if (!canTransition(plan.status, to)) throw invalidTransition(plan.status, to);
+  await recordEvent(db, plan.id, plan.status, to, userId, comment, transaction);
+  const [rows] = (await db.sequelize.query(
+    'UPDATE plans SET status = $2, version = version + 1, updated_at = now() WHERE id = $1 RETURNING version',
+    { bind: [plan.id, to], transaction },
+  )) as [Array<{ version: number }>, unknown];
+  plan.status = to;
+  plan.version = rows[0].version;
+  return plan.version;
+}
+
+export async function recordEvent(
+  db: Database,
+  planId: string,
+  from: PlanStatus | null,
+  to: PlanStatus,
+  userId: string | null,
+  comment: string | null,
+  transaction: Transaction,
+): Promise<void> {
+  // clock_timestamp, not now(): two changes in one transaction (approved, then queued) keep their order.
+  await db.sequelize.query(
+    `INSERT INTO plan_events (id, plan_id, from_status, to_status, user_id, comment, created_at)
+     VALUES (gen_random_uuid(), $1, $2, $3, $4, $5, clock_timestamp())`,
+    { bind: [planId, from, to, userId, comment], transaction },
+  );
+}
+
+/**
+ * Request lines' planned counts, recomputed from every plan that still holds
+ * them, in the caller's transaction so a count never disagrees with the plans.
+ */
+export async function recountPlanned(db: Database, requestLineIds: string[], transaction: Transaction): Promise<void> {
+  if (requestLineIds.length === 0) return;
+  await db.sequelize.query(
+    `UPDATE request_lines rl SET planned_count = COALESCE((
+       SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id
+        WHERE pl.request_line_id = rl.id AND p.status NOT IN ${INACTIVE_SQL}), 0), updated_at = now()
+     WHERE rl.id = ANY($1::uuid[])`,
+    { bind: [[...new Set(requestLineIds)]], transaction },
+  );
+}
+
+/** A planner's edit of a plan that was sent back reopens it as a draft (recorded like any other change). */
+export async function reopenIfSentBack(db: Database, plan: PlanRow, userId: string, transaction: Transaction): Promise<void> {
+  if (plan.status === 'changes_requested') await applyTransition(db, plan, 'draft', userId, null, transaction);
+}
+
+export function effectiveRule(line: Pick<LineRow, 'orientation' | 'part_orientation'>): PlanOrientationRule {
+  return line.orientation ?? line.part_orientation;
+}
+
+/** Which lines, how many and how they may turn: a layout packed for another key no longer fits the plan. */
+export function linesKey(lines: Array<Pick<LineRow, 'request_line_id' | 'quantity' | 'orientation' | 'part_orientation'>>): string {
+  return lines
+    .map((l) => `${l.request_line_id}:${l.quantity}:${effectiveRule(l)}`)
+    .sort()
+    .join(',');
+}
+
+export async function planLines(db: Database, planId: string, transaction?: Transaction): Promise<LineRow[]> {
+  return db.sequelize.query<LineRow>(
+    `SELECT pl.id, pl.request_line_id, pl.position, pl.quantity, pl.orientation,
+            p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
+            p.orientation AS part_orientation, r.id AS request_id, r.title AS request_title,
+            to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.status AS request_status,
+            rl.quantity AS line_quantity, rl.printed_count
+       FROM plan_lines pl
+       JOIN request_lines rl ON rl.id = pl.request_line_id
+       JOIN requests r ON r.id = rl.request_id
+       JOIN parts p ON p.id = rl.part_id
+      WHERE pl.plan_id = $1
+      ORDER BY pl.position`,
+    { bind: [planId], type: QueryTypes.SELECT, transaction },
+  );
+}
+
+/** A machine or material of the lab with its profile flattened, as the profile routes show it. */
+export async function profileRow(
+  db: Database,
+  table: 'machines' | 'materials',
+  labId: string,
+  id: string,
+  transaction?: Transaction,
+): Promise<(Record<string, any> & { id: string; name: string }) | null> {
+  const [row] = await db.sequelize.query<{ id: string; name: string; profile: Record<string, unknown> }>(
+    `SELECT id, name, profile FROM ${table} WHERE id = $1 AND lab_id = $2${transaction ? ' FOR SHARE' : ''}`,
+    { bind: [id, labId], type: QueryTypes.SELECT, transaction },
+  );
+  return row ? { id: row.id, ...row.profile, name: row.name } : null;
+}
+
+type LineInput = { requestLineId: string; quantity: number; orientation?: PlanOrientationRule | null };
+
+/**
+ * Checks the lines a planner picked: each a request line of this lab, its
+ * request open and in the plan's material, and no more than it still needs
+ * (its quantity less what other active plans hold). Locks the request lines
+ * so two plans cannot both take the last of one.
+ */
+async function checkLines(db: Database, labId: string, materialId: string, lines: LineInput[], planId: string | null, transaction: Transaction) {
+  const ids = lines.map((l) => l.requestLineId);
+  const rows = await db.sequelize.query<{
+    id: string;
+    quantity: number;
+    status: string;
+    material_id: string | null;
+    title: string;
+    part_name: string;
+  }>(
+    `SELECT rl.id, rl.quantity, r.status, r.material_id, r.title, p.name AS part_name
+       FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
+      WHERE rl.id = ANY($1::uuid[]) AND r.lab_id = $2
+      FOR UPDATE OF rl`,
+    { bind: [ids, labId], type: QueryTypes.SELECT, transaction },
+  );
+  const held = await db.sequelize.query<{ request_line_id: string; held: string }>(
+    `SELECT pl.request_line_id, SUM(pl.quantity) AS held FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id
+      WHERE pl.request_line_id = ANY($1::uuid[]) AND p.status NOT IN ${INACTIVE_SQL} AND ($2::uuid IS NULL OR p.id <> $2::uuid)
+      GROUP BY pl.request_line_id`,
+    { bind: [ids, planId], type: QueryTypes.SELECT, transaction },
+  );
+  const byId = new Map(rows.map((r) => [r.id, r]));
+  const heldBy = new Map(held.map((h) => [h.request_line_id, Number(h.held)]));
+  const problems: Array<{ field: string; message: string }> = [];
+  lines.forEach((line, i) => {
+    const row = byId.get(line.requestLineId);
+    if (!row) {
+      problems.push({ field: `lines[${i}].requestLineId`, message: 'is not a request line of this lab' });
+      return;
+    }
+    const what = `"${row.part_name}" of request "${row.title}"`;
+    if (row.status !== 'open') {
+      problems.push({ field: `lines[${i}].requestLineId`, message: `is ${what}, which is ${row.status}, not open` });
+      return;
+    }
+    if (row.material_id !== materialId) {
+      problems.push({ field: `lines[${i}].requestLineId`, message: `is ${what}, which asks for another material than this plan's` });
+      return;
+    }
+    const need = row.quantity - (heldBy.get(row.id) ?? 0);
+    if (line.quantity > need) {
+      problems.push({
+        field: `lines[${i}].quantity`,
+        message:
+          need > 0
+            ? `is ${line.quantity}, but ${what} still needs only ${need} (${row.quantity} asked, ${row.quantity - need} in other plans)`
+            : `is ${line.quantity}, but ${what} needs no more: all ${row.quantity} are in other plans`,
+      });
+    }
+  });
+  if (problems.length > 0) {
+    const first = problems[0];
+    throw new AppError(400, 'invalid_input', `${first.field} ${first.message}`, first.field, { problems });
+  }
+}
+
+async function insertLines(db: Database, planId: string, lines: LineInput[], transaction: Transaction) {
+  if (lines.length === 0) return;
+  const values: string[] = [];
+  const bind: unknown[] = [planId];
+  lines.forEach((l, i) => {
+    bind.push(l.requestLineId, i, l.quantity, l.orientation ?? null);
+    const k = bind.length;
+    values.push(`(gen_random_uuid(), $1, $${k - 3}, $${k - 2}, $${k - 1}, $${k})`);
+  });
+  await db.sequelize.query(
+    `INSERT INTO plan_lines (id, plan_id, request_line_id, position, quantity, orientation) VALUES ${values.join(', ')}`,
+    { bind, transaction },
+  );
+}
+
+const iso = (d: Date | string) => new Date(d).toISOString();
+const person = (id: string | null, name: string | null) => (id ? { id, name: name ?? '' } : null);
+
+/** The layout row's numbers without the placements and the per-layer profile. */
+export function layoutSummary(row: any, plan: { chosen_layout_id: string | null }, currentKey: string): LayoutSummaryView {
+  return {
+    id: row.id,
+    label: row.label,
+    locked: row.locked,
+    chosen: plan.chosen_layout_id === row.id,
+    matchesPlan: row.lines_key === currentKey,
+    settings: row.settings,
+    placedCount: row.placement_count,
+    unplacedCount: (row.summary.unplaced ?? []).reduce((s: number, u: { count: number }) => s + u.count, 0),
+    heightMm: row.summary.height,
+    layers: row.summary.layers,
+    utilization: row.summary.utilization,
+    elapsedMs: row.summary.elapsedMs,
+    resultFormat: row.result_format,
+    estimate: row.estimate_summary ?? {},
+    createdBy: person(row.created_by, row.created_by_name),
+    createdAt: iso(row.created_at),
+  };
+}
+
+export type PlansDeps = { labs: LabsService; mailer: Mailer; appUrl: string; log?: (msg: string) => void };
+
+/** Build plans: creating them from request lines, listing, reading, saving with a version, sending for review, cancelling. */
+export function plansService(db: Database, deps: PlansDeps) {
+  const { sequelize } = db;
+
+  async function get(labId: string, planId: string): Promise<PlanView> {
+    const [plan] = await sequelize.query<PlanRow & { created_by_name: string | null }>(
+      `SELECT p.*, u.name AS created_by_name FROM plans p LEFT JOIN users u ON u.id = p.created_by WHERE p.id = $1 AND p.lab_id = $2`,
+      { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
+    );
+    if (!plan) throw notFound('That plan');
+    const [machine, material, lines, layouts, events, held] = await Promise.all([
+      profileRow(db, 'machines', labId, plan.machine_id),
+      profileRow(db, 'materials', labId, plan.material_id),
+      planLines(db, plan.id),
+      sequelize.query<any>(
+        `SELECT l.id, l.label, l.locked, l.settings, l.lines_key, l.result_format, l.placement_count, l.summary,
+                l.estimate - 'areaPerLayerMm2' AS estimate_summary, l.created_by, l.created_at, u.name AS created_by_name
+           FROM layouts l LEFT JOIN users u ON u.id = l.created_by WHERE l.plan_id = $1 ORDER BY l.created_at`,
+        { bind: [plan.id], type: QueryTypes.SELECT },
+      ),
+      sequelize.query<any>(
+        `SELECT e.id, e.from_status, e.to_status, e.user_id, u.name AS user_name, e.comment, e.created_at
+           FROM plan_events e LEFT JOIN users u ON u.id = e.user_id WHERE e.plan_id = $1 ORDER BY e.created_at, e.id`,
+        { bind: [plan.id], type: QueryTypes.SELECT },
+      ),
+      sequelize.query<{ request_line_id: string; held: string }>(
+        `SELECT pl2.request_line_id, SUM(pl2.quantity) AS held
+           FROM plan_lines pl JOIN plan_lines pl2 ON pl2.request_line_id = pl.request_line_id AND pl2.plan_id <> pl.plan_id
+           JOIN plans p2 ON p2.id = pl2.plan_id AND p2.status NOT IN ${INACTIVE_SQL}
+          WHERE pl.plan_id = $1 GROUP BY pl2.request_line_id`,
+        { bind: [plan.id], type: QueryTypes.SELECT },
+      ),
+    ]);
+    const heldBy = new Map(held.map((h) => [h.request_line_id, Number(h.held)]));
+    const key = linesKey(lines);
+    const lineViews: PlanLineView[] = lines.map((l) => ({
+      id: l.id,
+      requestLineId: l.request_line_id,
+      quantity: l.quantity,
+      orientation: effectiveRule(l),
+      orientationOverride: l.orientation,
+      part: {
+        id: l.part_id,
+        name: l.part_name,
+        sizeMm: [l.size_x_mm, l.size_y_mm, l.size_z_mm],
+        volumeMm3: l.volume_mm3,
+        orientation: l.part_orientation,
+      },
+      request: { id: l.request_id, title: l.request_title, dueDate: l.due_date, priority: l.priority, status: l.request_status },
+      lineQuantity: l.line_quantity,
+      plannedElsewhere: heldBy.get(l.request_line_id) ?? 0,
+      printedCount: l.printed_count,
+    }));
+    const eventViews: PlanEventView[] = events.map((e) => ({
+      id: e.id,
+      from: e.from_status,
+      to: e.to_status,
+      by: person(e.user_id, e.user_name),
+      at: iso(e.created_at),
+      comment: e.comment,
+    }));
+    return {
+      id: plan.id,
+      labId: plan.lab_id,
+      name: plan.name,
+      status: plan.status,
+      version: plan.version,
+      editable: isEditable(plan.status),
+      allowedTransitions: [...allowedNext(plan.status)],
+      machine: machine ?? { id: plan.machine_id, name: '' },
+      material: material ?? { id: plan.material_id, name: '' },
+      chosenLayoutId: plan.chosen_layout_id,
+      queuePosition: plan.queue_position,
+      draft: plan.draft ?? null,
+      createdBy: person(plan.created_by, plan.created_by_name),
+      createdAt: iso(plan.created_at),
+      updatedAt: iso(plan.updated_at),
+      lines: lineViews,
+      layouts: layouts.map((row) => layoutSummary(row, plan, key)),
+      events: eventViews,
+    };
+  }
+
+  async function notify(to: string[], subject: string, text: string): Promise<string[]> {
+    const sent: string[] = [];
+    for (const address of to) {
+      try {
+        await deps.mailer.send({ to: address, subject, text });
+        sent.push(address);
+      } catch (err) {
+        // The status change stands; the plan shows on home even when a message did not go out.
+        deps.log?.(`could not e-mail ${address}: ${(err as Error).message}`);
+      }
+    }
+    return sent;
+  }
+
+  return {
+    get,
+    notify,
+
+    async create(labId: string, user: Actor, body: unknown): Promise<{ id: string; version: number; status: PlanStatus }> {
+      const input = parseOrThrow(planCreateSchema, body);
+      return sequelize.transaction(async (transaction) => {
+        if (!(await profileRow(db, 'machines', labId, input.machineId, transaction))) {
+          throw badRequest('machineId is not a machine of this lab', 'machineId');
+        }
+        if (!(await profileRow(db, 'materials', labId, input.materialId, transaction))) {
+          throw badRequest('materialId is not a material of this lab', 'materialId');
+        }
+        await checkLines(db, labId, input.materialId, input.lines, null, transaction);
+        const [rows] = (await sequelize.query(
+          `INSERT INTO plans (id, lab_id, name, machine_id, material_id, status, version, created_by, created_at, updated_at)
+           VALUES (gen_random_uuid(), $1, $2, $3, $4, 'draft', 1, $5, now(), now()) RETURNING id`,
+          { bind: [labId, input.name, input.machineId, input.materialId, user.id], transaction },
+        )) as [Array<{ id: string }>, unknown];
+        const id = rows[0].id;
+        await insertLines(db, id, input.lines, transaction);
+        await recordEvent(db, id, null, 'draft', user.id, null, transaction);
+        await recountPlanned(db, input.lines.map((l) => l.requestLineId), transaction);
+        return { id, version: 1, status: 'draft' as const };
+      });
+    },
+
+    async list(labId: string, query: unknown): Promise<PlanListItem[]> {
+      const q = parseOrThrow(planListQuerySchema, query);
+      const rows = await sequelize.query<any>(
+        `SELECT p.id, p.name, p.status, p.version, p.chosen_layout_id, p.queue_position, p.created_at, p.updated_at,
+                p.machine_id, m.name AS machine_name, p.material_id, mt.name AS material_name,
+                p.created_by, u.name AS created_by_name,
+                (SELECT COUNT(*) FROM plan_lines pl WHERE pl.plan_id = p.id) AS line_count,
+                (SELECT COALESCE(SUM(pl.quantity), 0) FROM plan_lines pl WHERE pl.plan_id = p.id) AS part_count,
+                (SELECT to_char(MIN(r.due_date), 'YYYY-MM-DD') FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id
+                   JOIN requests r ON r.id = rl.request_id WHERE pl.plan_id = p.id) AS earliest_due_date,
+                (SELECT COUNT(*) FROM layouts l WHERE l.plan_id = p.id) AS layout_count
+           FROM plans p
+           JOIN machines m ON m.id = p.machine_id
+           JOIN materials mt ON mt.id = p.material_id
+           LEFT JOIN users u ON u.id = p.created_by
+          WHERE p.lab_id = $1 AND ($2::text[] IS NULL OR p.status = ANY($2::text[])) AND ($3::uuid IS NULL OR p.machine_id = $3::uuid)
+          ORDER BY p.updated_at DESC`,
+        { bind: [labId, q.status ?? null, q.machineId ?? null], type: QueryTypes.SELECT },
+      );
+      return rows.map((r) => ({
+        id: r.id,
+        name: r.name,
+        status: r.status,
+        version: r.version,
+        machine: { id: r.machine_id, name: r.machine_name },
+        material: { id: r.material_id, name: r.material_name },
+        chosenLayoutId: r.chosen_layout_id,
+        queuePosition: r.queue_position,
+        lineCount: Number(r.line_count),
+        partCount: Number(r.part_count),
+        earliestDueDate: r.earliest_due_date,
+        layoutCount: Number(r.layout_count),
+        createdBy: person(r.created_by, r.created_by_name),
+        createdAt: iso(r.created_at),
+        updatedAt: iso(r.updated_at),
+      }));
+    },
+
+    /**
+     * Saves the planner's changes if nobody saved since `version` was read;
+     * otherwise 409 version_conflict with the current version, and nothing changes.
+     */
+    async update(labId: string, planId: string, user: Actor, body: unknown): Promise<PlanView> {
+      const input = parseOrThrow(planUpdateSchema, body);
+      await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!isEditable(plan.status)) throw readOnly(plan.status);
+        if (plan.version !== input.version) {
+          throw conflict(
+            'version_conflict',
+            `Someone saved this plan after you opened it (you have version ${input.version}, the plan is at ${plan.version}). Reload it, or keep your changes and save them over the newer version.`,
+            'version',
+            { currentVersion: plan.version, yourVersion: input.version },
+          );
+        }
+        const read = plan.version;
+        if (input.lines) {
+          const before = await planLines(db, plan.id, transaction);
+          await checkLines(db, labId, plan.material_id, input.lines, plan.id, transaction);
+          await sequelize.query('DELETE FROM plan_lines WHERE plan_id = $1', { bind: [plan.id], transaction });
+          await insertLines(db, plan.id, input.lines, transaction);
+          await recountPlanned(db, [...before.map((l) => l.request_line_id), ...input.lines.map((l) => l.requestLineId)], transaction);
+        }
+        await reopenIfSentBack(db, plan, user.id, transaction);
+        const sets = ['version = version + 1', 'updated_at = now()'];
+        const bind: unknown[] = [plan.id, plan.version];
+        if (input.name !== undefined) {
+          bind.push(input.name);
+          sets.push(`name = $${bind.length}`);
+        }
+        if (input.draft !== undefined) {
+          bind.push(input.draft === null ? null : JSON.stringify(input.draft));
+          sets.push(`draft = $${bind.length}::jsonb`);
+        }
+        const [rows] = (await sequelize.query(`UPDATE plans SET ${sets.join(', ')} WHERE id = $1 AND version = $2 RETURNING version`, {
+          bind,
+          transaction,
+        })) as [Array<{ version: number }>, unknown];
+        if (rows.length === 0) {
+          throw conflict('version_conflict', 'Someone saved this plan at the same moment; reload it and try again.', 'version', {
+            yourVersion: read,
+          });
+        }
+      });
+      return get(labId, planId);
+    },
+
+    /** draft -> in_review with a chosen layout that still fits the lines; every lead of the lab is e-mailed. */
+    async submit(labId: string, planId: string, user: Actor, comment: string | null) {
+      const { plan, version } = await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        await reopenIfSentBack(db, plan, user.id, transaction);
+        if (!canTransition(plan.status, 'in_review')) throw invalidTransition(plan.status, 'in_review');
+        if (!plan.chosen_layout_id) {
+          throw conflict('no_chosen_layout', 'Choose one of the layouts before sending the plan for review.');
+        }
+        const [layout] = await sequelize.query<{ lines_key: string }>('SELECT lines_key FROM layouts WHERE id = $1', {
+          bind: [plan.chosen_layout_id],
+          type: QueryTypes.SELECT,
+          transaction,
+        });
+        if (layout.lines_key !== linesKey(await planLines(db, plan.id, transaction))) {
+          throw conflict('layout_stale', "The chosen layout was packed before the plan's lines changed; pack again and choose the new layout.");
+        }
+        const version = await applyTransition(db, plan, 'in_review', user.id, comment, transaction);
+        return { plan, version };
+      });
+      const leads = (await deps.labs.members(labId)).filter((m) => m.roles.includes('lead')).map((m) => m.email);
+      const notified = await notify(
+        leads,
+        `Plan "${plan.name}" is waiting for your review`,
+        [
+          `${user.name} sent the build plan "${plan.name}" for review.`,
+          ...(comment ? ['', `Their note: ${comment}`] : []),
+          '',
+          'Open it to approve it into its machine\'s queue or send it back with a comment:',
+          `${deps.appUrl}/plans/${plan.id}`,
+        ].join('\n'),
+      );
+      return { id: plan.id, status: plan.status, version, notified };
+    },
+
+    /** Any status before printing -> cancelled; the request lines' quantities are open again. */
+    async cancel(labId: string, planId: string, user: Actor, comment: string | null) {
+      return sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        const version = await applyTransition(db, plan, 'cancelled', user.id, comment, transaction);
+        await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [plan.id], transaction });
+        const lines = await planLines(db, plan.id, transaction);
+        await recountPlanned(db, lines.map((l) => l.request_line_id), transaction);
+        return { id: plan.id, status: plan.status, version };
+      });
+    },
+  };
+}
+export type PlansService = ReturnType<typeof plansService>;

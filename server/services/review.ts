@@ -1,0 +1,76 @@
+import { QueryTypes } from 'sequelize';
+import type { Database } from '../db';
+import { parseOrThrow } from '../http/validate';
+import { applyTransition, invalidTransition, lockPlan, type Actor, type PlansService } from './plans';
+import { canTransition } from '../../shared/plans/status';
+import { reviewSchema } from '../../shared/schemas/plans';
+
+export type ReviewDeps = { plans: PlansService; appUrl: string };
+
+/**
+ * A lead's decision on a plan in review. Approving records `approved` and
+ * then `queued`, at the end of the plan's machine's queue; sending back needs
+ * a comment. Either way the planner who sent it is e-mailed.
+ */
+export function reviewService(db: Database, deps: ReviewDeps) {
+  const { sequelize } = db;
+
+  return {
+    async review(labId: string, planId: string, user: Actor, body: unknown) {
+      const input = parseOrThrow(reviewSchema, body);
+      const comment = input.comment ? input.comment : null;
+      const done = await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        let queuePosition: number | null = null;
+        if (input.decision === 'approve') {
+          if (!canTransition(plan.status, 'approved')) throw invalidTransition(plan.status, 'approved');
+          await applyTransition(db, plan, 'approved', user.id, comment, transaction);
+          // Locking the machine row makes two approvals for one machine take positions one after the other.
+          await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [plan.machine_id], transaction });
+          const [max] = await sequelize.query<{ pos: number | null }>(
+            'SELECT MAX(queue_position) AS pos FROM plans WHERE machine_id = $1 AND queue_position IS NOT NULL',
+            { bind: [plan.machine_id], type: QueryTypes.SELECT, transaction },
+          );
+          queuePosition = (max?.pos ?? 0) + 1;
+          await applyTransition(db, plan, 'queued', user.id, null, transaction);
+          await sequelize.query('UPDATE plans SET queue_position = $2 WHERE id = $1', { bind: [plan.id, queuePosition], transaction });
+        } else {
+          if (!canTransition(plan.status, 'changes_requested')) throw invalidTransition(plan.status, 'changes_requested');
+          await applyTransition(db, plan, 'changes_requested', user.id, comment, transaction);
+        }
+        // Whoever sent it for review last; the plan's author when that is not known.
+        const [planner] = await sequelize.query<{ email: string; name: string }>(
+          `SELECT u.email, u.name FROM users u
+            WHERE u.id = COALESCE((SELECT e.user_id FROM plan_events e WHERE e.plan_id = $1 AND e.to_status = 'in_review'
+                                    ORDER BY e.created_at DESC LIMIT 1), $2)`,
+          { bind: [plan.id, plan.created_by], type: QueryTypes.SELECT, transaction },
+        );
+        return { plan, queuePosition, planner };
+      });
+      const { plan, queuePosition, planner } = done;
+      let notified: string[] = [];
+      if (planner) {
+        const link = `${deps.appUrl}/plans/${plan.id}`;
+        notified =
+          input.decision === 'approve'
+            ? await deps.plans.notify(
+                [planner.email],
+                `Plan "${plan.name}" was approved`,
+                [
+                  `${user.name} approved the build plan "${plan.name}". It is number ${queuePosition} in its machine's queue.`,
+                  ...(comment ? ['', `Comment: ${comment}`] : []),
+                  '',
+                  link,
+                ].join('\n'),
+              )
+            : await deps.plans.notify(
+                [planner.email],
+                `Plan "${plan.name}" needs changes`,
+                [`${user.name} sent the build plan "${plan.name}" back with this comment:`, '', comment ?? '', '', 'Open it to make the changes and send it again:', link].join('\n'),
+              );
+      }
+      return { id: plan.id, status: plan.status, version: plan.version, queuePosition, notified };
+    },
+  };
+}
+export type ReviewService = ReturnType<typeof reviewService>;
