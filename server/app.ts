@@ -12,10 +12,15 @@ import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/e
 import { checkOrigin, loadSession } from './http/middleware/auth';
 import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
+import { partRoutes } from './http/routes/parts';
+import { requestRoutes } from './http/routes/requests';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
 import { invitesService } from './services/invites';
 import { profilesService } from './services/profiles';
+import { partsService } from './services/parts';
+import { requestsService } from './services/requests';
+import { createStorage } from './storage';
 import { machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
 
 export type Services = ReturnType<typeof createServices>;
@@ -35,7 +40,10 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
   const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine');
   const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material');
-  return { labs, auth, invites, machines, materials };
+  const storage = createStorage(db, config.storage);
+  const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes });
+  const requests = requestsService(db, parts);
+  return { labs, auth, invites, machines, materials, storage, parts, requests };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -67,6 +75,8 @@ export function createApp(deps: AppDeps) {
   });
   api.use(authRoutes(deps, limiter));
   api.use(labRoutes(deps));
+  api.use(partRoutes(deps));
+  api.use(requestRoutes(deps));
   api.use(notFoundRoute);
   api.use(errorHandler(deps.log));
   app.use('/api', api);

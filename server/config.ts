@@ -1,3 +1,5 @@
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { z } from 'zod';
 
 /**
@@ -22,7 +24,31 @@ const envSchema = z.object({
   /** Folder of the exported web app. */
   WEB_DIST: z.string().default('dist'),
   UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
+  /** A 3MF (a ZIP) may expand to at most this much when read: past it, it is refused as a ZIP bomb. */
+  MAX_3MF_EXPANDED_MB: z.coerce.number().positive().default(1024),
+  /** Where uploads are streamed while they are measured; removed after each request. */
+  UPLOAD_TMP_DIR: z.string().optional(),
+  /** Where mesh files live: in PostgreSQL (default) or in S3-compatible object storage. */
+  STORAGE_DRIVER: z.enum(['postgres', 's3']).default('postgres'),
+  S3_ENDPOINT: z.string().url().optional(),
+  S3_REGION: z.string().default('us-east-1'),
+  S3_BUCKET: z.string().optional(),
+  S3_ACCESS_KEY_ID: z.string().optional(),
+  S3_SECRET_ACCESS_KEY: z.string().optional(),
+  /** Path-style addresses (endpoint/bucket/key), which most self-hosted object stores need. */
+  S3_FORCE_PATH_STYLE: z.enum(['true', 'false']).default('true'),
 });
+
+export type S3StorageConfig = {
+  driver: 's3';
+  endpoint?: string;
+  region: string;
+  bucket: string;
+  accessKeyId?: string;
+  secretAccessKey?: string;
+  forcePathStyle: boolean;
+};
+export type StorageConfig = { driver: 'postgres' } | S3StorageConfig;
 
 export type Config = {
   env: 'development' | 'test' | 'production';
@@ -37,6 +63,9 @@ export type Config = {
   mailCatchDir: string;
   webDist: string;
   uploadLimitBytes: number;
+  uploadTmpDir: string;
+  max3mfExpandedBytes: number;
+  storage: StorageConfig;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -46,6 +75,22 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     throw new Error(`configuration: ${issue.path.join('.')}: ${issue.message}`);
   }
   const e = parsed.data;
+  if (e.STORAGE_DRIVER === 's3' && !e.S3_BUCKET) throw new Error('configuration: S3_BUCKET: is required when STORAGE_DRIVER is s3');
+  if (e.STORAGE_DRIVER === 's3' && !!e.S3_ACCESS_KEY_ID !== !!e.S3_SECRET_ACCESS_KEY) {
+    throw new Error('configuration: S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY go together: set both or neither');
+  }
+  const storage: StorageConfig =
+    e.STORAGE_DRIVER === 's3'
+      ? {
+          driver: 's3',
+          endpoint: e.S3_ENDPOINT,
+          region: e.S3_REGION,
+          bucket: e.S3_BUCKET!,
+          accessKeyId: e.S3_ACCESS_KEY_ID,
+          secretAccessKey: e.S3_SECRET_ACCESS_KEY,
+          forcePathStyle: e.S3_FORCE_PATH_STYLE === 'true',
+        }
+      : { driver: 'postgres' };
   return {
     env: e.NODE_ENV,
     port: e.PORT,
@@ -59,5 +104,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mailCatchDir: e.MAIL_CATCH_DIR,
     webDist: e.WEB_DIST,
     uploadLimitBytes: Math.round(e.UPLOAD_LIMIT_MB * 1024 * 1024),
+    uploadTmpDir: e.UPLOAD_TMP_DIR ?? join(tmpdir(), 'sinterstack-uploads'),
+    max3mfExpandedBytes: Math.round(e.MAX_3MF_EXPANDED_MB * 1024 * 1024),
+    storage,
   };
 }

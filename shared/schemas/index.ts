@@ -1,1 +1,3 @@
 export * from './auth';
+export * from './parts';
+export * from './requests';

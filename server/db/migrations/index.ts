@@ -1,5 +1,6 @@
 import type { QueryInterface } from 'sequelize';
 import * as m0001 from './0001-auth-labs';
+import * as m0002 from './0002-parts-requests';
 
 export type Migration = {
   name: string;
@@ -8,4 +9,7 @@ export type Migration = {
 };
 
 /** In order. A new migration is a new file here and one more line below. */
-export const migrations: Migration[] = [{ name: '0001-auth-labs', ...m0001 }];
+export const migrations: Migration[] = [
+  { name: '0001-auth-labs', ...m0001 },
+  { name: '0002-parts-requests', ...m0002 },
+];

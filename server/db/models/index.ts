@@ -8,6 +8,10 @@ export type Models = {
   Invite: AnyModel;
   Machine: AnyModel;
   Material: AnyModel;
+  StoredFile: AnyModel;
+  Part: AnyModel;
+  Request: AnyModel;
+  RequestLine: AnyModel;
 };
 
 const base = { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' } as const;
@@ -75,5 +79,79 @@ export function initModels(sequelize: Sequelize): Models {
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Lab, { foreignKey: 'labId', as: 'lab' });
-  return { User, Lab, Membership, Invite, Machine, Material };
+  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize) };
+}
+
+/** Stored files, parts, requests and request lines. */
+function partModels(sequelize: Sequelize) {
+  const StoredFile = sequelize.define(
+    'StoredFile',
+    {
+      key: { type: DataTypes.TEXT, primaryKey: true },
+      sizeBytes: { type: DataTypes.BIGINT, allowNull: false, field: 'size_bytes' },
+      location: { type: DataTypes.TEXT, allowNull: false },
+      data: { type: DataTypes.BLOB },
+      refCount: { type: DataTypes.INTEGER, allowNull: false, field: 'ref_count' },
+    },
+    { ...base, updatedAt: false, tableName: 'files' },
+  );
+  const Part = sequelize.define(
+    'Part',
+    {
+      id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+      labId: { type: DataTypes.UUID, allowNull: false, field: 'lab_id' },
+      name: { type: DataTypes.TEXT, allowNull: false },
+      tags: { type: DataTypes.ARRAY(DataTypes.TEXT), allowNull: false },
+      fileKey: { type: DataTypes.TEXT, allowNull: false, field: 'file_key' },
+      fileName: { type: DataTypes.TEXT, allowNull: false, field: 'file_name' },
+      fileFormat: { type: DataTypes.TEXT, allowNull: false, field: 'file_format' },
+      fileUnit: { type: DataTypes.TEXT, allowNull: false, field: 'file_unit' },
+      fileSplit: { type: DataTypes.BOOLEAN, allowNull: false, field: 'file_split' },
+      filePartIndex: { type: DataTypes.INTEGER, allowNull: false, field: 'file_part_index' },
+      uploadedSizeMm: { type: DataTypes.ARRAY(DataTypes.DOUBLE), allowNull: false, field: 'uploaded_size_mm' },
+      rotationDeg: { type: DataTypes.ARRAY(DataTypes.INTEGER), allowNull: false, field: 'rotation_deg' },
+      sizeXMm: { type: DataTypes.DOUBLE, allowNull: false, field: 'size_x_mm' },
+      sizeYMm: { type: DataTypes.DOUBLE, allowNull: false, field: 'size_y_mm' },
+      sizeZMm: { type: DataTypes.DOUBLE, allowNull: false, field: 'size_z_mm' },
+      volumeMm3: { type: DataTypes.DOUBLE, allowNull: false, field: 'volume_mm3' },
+      areaMm2: { type: DataTypes.DOUBLE, allowNull: false, field: 'area_mm2' },
+      triangles: { type: DataTypes.INTEGER, allowNull: false },
+      watertight: { type: DataTypes.BOOLEAN, allowNull: false },
+      metrics: { type: DataTypes.JSONB, allowNull: false },
+      warnings: { type: DataTypes.JSONB, allowNull: false },
+      orientation: { type: DataTypes.TEXT, allowNull: false },
+      defaultMaterialId: { type: DataTypes.UUID, field: 'default_material_id' },
+      uploadedBy: { type: DataTypes.TEXT, field: 'uploaded_by' },
+    },
+    { ...base, tableName: 'parts' },
+  );
+  const Request = sequelize.define(
+    'Request',
+    {
+      id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+      labId: { type: DataTypes.UUID, allowNull: false, field: 'lab_id' },
+      title: { type: DataTypes.TEXT, allowNull: false },
+      materialId: { type: DataTypes.UUID, field: 'material_id' },
+      dueDate: { type: DataTypes.DATEONLY, allowNull: false, field: 'due_date' },
+      priority: { type: DataTypes.TEXT, allowNull: false },
+      notes: { type: DataTypes.TEXT, allowNull: false },
+      status: { type: DataTypes.TEXT, allowNull: false },
+      createdBy: { type: DataTypes.TEXT, field: 'created_by' },
+    },
+    { ...base, tableName: 'requests' },
+  );
+  const RequestLine = sequelize.define(
+    'RequestLine',
+    {
+      id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+      requestId: { type: DataTypes.UUID, allowNull: false, field: 'request_id' },
+      partId: { type: DataTypes.UUID, allowNull: false, field: 'part_id' },
+      position: { type: DataTypes.INTEGER, allowNull: false },
+      quantity: { type: DataTypes.INTEGER, allowNull: false },
+      plannedCount: { type: DataTypes.INTEGER, allowNull: false, field: 'planned_count' },
+      printedCount: { type: DataTypes.INTEGER, allowNull: false, field: 'printed_count' },
+    },
+    { ...base, tableName: 'request_lines' },
+  );
+  return { StoredFile, Part, Request, RequestLine };
 }

@@ -1,0 +1,386 @@
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Database } from '../db';
+import { badRequest, conflict, forbidden, notFound } from '../errors';
+import { parseOrThrow } from '../http/validate';
+import { measureFile, type FileMeasureResult } from '../mesh';
+import { sha256Bytes, sha256File, type FileSource, type FileStorage } from '../storage';
+import { formatFromFilename, quoteName, type MeasureOptions, type MeshMetrics } from '../../shared/geometry';
+import {
+  partListQuerySchema,
+  partPatchSchema,
+  type PartListResponse,
+  type PartView,
+  type RejectedFile,
+} from '../../shared/schemas/parts';
+
+/** Why a part cannot be deleted right now (a message for the user), or null when nothing uses it. */
+export type PartUsageCheck = (labId: string, partId: string, transaction: Transaction) => Promise<string | null>;
+
+export type PartsDeps = {
+  storage: FileStorage;
+  /** Expanded-size cap for a 3MF (ZIP bomb defence). */
+  max3mfExpandedBytes?: number;
+  /** Measuring in worker threads; replaceable so a test can count or slow it. */
+  measure?: (input: string | Uint8Array, options: MeasureOptions) => Promise<FileMeasureResult>;
+};
+
+export type ImportInput = {
+  labId: string;
+  userId: string | null;
+  /** The name the file had on the designer's computer. */
+  filename: string;
+  source: FileSource;
+  unit: 'mm' | 'cm' | 'inch';
+  split: boolean;
+};
+
+export type ImportResult = { ok: true; parts: PartView[] } | { ok: false; rejected: RejectedFile; serverError?: unknown };
+
+const FILE_CONTENT_TYPES = { stl: 'model/stl', obj: 'model/obj', '3mf': 'model/3mf' } as const;
+
+/** The file name without any folders a browser or tool may have sent along. */
+export function plainFileName(name: string): string {
+  const last = name.split(/[\\/]/).pop() ?? '';
+  // eslint-disable-next-line no-control-regex
+  return last.replace(/[\u0000-\u001f\u007f]/g, '').slice(0, 255) || 'unnamed';
+}
+
+type Vec3 = [number, number, number];
+
+/**
+ * Size after turning the part by quarter turns about x, then y, then z (fixed
+ * axes). For quarter turns the rotation matrix R = Rz · Ry · Rx has one ±1 per
+ * row, so the box's size is |R| · size: a permutation of the uploaded size.
+ */
+export function rotatedSizeMm(size: Vec3, rotationDeg: Vec3): Vec3 {
+  const cos = (d: number) => [1, 0, -1, 0][((d / 90) % 4 + 4) % 4];
+  const sin = (d: number) => [0, 1, 0, -1][((d / 90) % 4 + 4) % 4];
+  const [ax, ay, az] = rotationDeg;
+  const rx = [[1, 0, 0], [0, cos(ax), -sin(ax)], [0, sin(ax), cos(ax)]];
+  const ry = [[cos(ay), 0, sin(ay)], [0, 1, 0], [-sin(ay), 0, cos(ay)]];
+  const rz = [[cos(az), -sin(az), 0], [sin(az), cos(az), 0], [0, 0, 1]];
+  const mul = (a: number[][], b: number[][]) => a.map((row) => [0, 1, 2].map((j) => row.reduce((s, v, k) => s + v * b[k][j], 0)));
+  const r = mul(rz, mul(ry, rx));
+  return r.map((row) => row.reduce((s, v, j) => s + Math.abs(v) * size[j], 0)) as Vec3;
+}
+
+type PartRow = {
+  id: string;
+  lab_id: string;
+  name: string;
+  tags: string[];
+  file_key: string;
+  file_name: string;
+  file_format: 'stl' | 'obj' | '3mf';
+  file_unit: 'mm' | 'cm' | 'inch';
+  file_split: boolean;
+  file_part_index: number;
+  uploaded_size_mm: number[];
+  rotation_deg: number[];
+  size_x_mm: number;
+  size_y_mm: number;
+  size_z_mm: number;
+  volume_mm3: number;
+  area_mm2: number;
+  triangles: number;
+  watertight: boolean;
+  metrics: MeshMetrics;
+  warnings: { code: string; message: string }[];
+  orientation: PartView['orientation'];
+  default_material_id: string | null;
+  material_name: string | null;
+  uploaded_by: string | null;
+  uploader_name: string | null;
+  file_size_bytes: string | number;
+  times_used: string | number;
+  created_at: Date;
+  updated_at: Date;
+};
+
+function view(r: PartRow): PartView {
+  return {
+    id: r.id,
+    labId: r.lab_id,
+    name: r.name,
+    tags: r.tags,
+    sizeMm: [r.size_x_mm, r.size_y_mm, r.size_z_mm],
+    uploadedSizeMm: r.uploaded_size_mm as Vec3,
+    rotationDeg: r.rotation_deg as Vec3,
+    orientation: r.orientation,
+    volumeMm3: r.volume_mm3,
+    areaMm2: r.area_mm2,
+    triangles: r.triangles,
+    watertight: r.watertight,
+    shells: r.metrics.shells,
+    openEdges: r.metrics.openEdges,
+    nonManifoldEdges: r.metrics.nonManifoldEdges,
+    oriented: r.metrics.oriented,
+    warnings: r.warnings,
+    materialId: r.default_material_id,
+    materialName: r.material_name,
+    timesUsed: Number(r.times_used),
+    uploadedBy: r.uploaded_by ? { id: r.uploaded_by, name: r.uploader_name ?? '' } : null,
+    createdAt: new Date(r.created_at).toISOString(),
+    updatedAt: new Date(r.updated_at).toISOString(),
+    file: {
+      name: r.file_name,
+      format: r.file_format,
+      unit: r.file_unit,
+      split: r.file_split,
+      partIndex: r.file_part_index,
+      sizeBytes: Number(r.file_size_bytes),
+      sha256: r.file_key,
+    },
+  };
+}
+
+// Builds are not recorded yet, so no part has been used; plans will count here.
+const TIMES_USED_SQL = '0';
+
+const SELECT_PARTS = `
+  SELECT p.*, m.name AS material_name, u.name AS uploader_name, f.size_bytes AS file_size_bytes,
+         ${TIMES_USED_SQL} AS times_used
+    FROM parts p
+    JOIN files f ON f.key = p.file_key
+    LEFT JOIN materials m ON m.id = p.default_material_id
+    LEFT JOIN users u ON u.id = p.uploaded_by`;
+
+const SORT_SQL: Record<string, string> = {
+  name: 'lower(p.name)',
+  sizeX: 'p.size_x_mm',
+  sizeY: 'p.size_y_mm',
+  sizeZ: 'p.size_z_mm',
+  volume: 'p.volume_mm3',
+  area: 'p.area_mm2',
+  triangles: 'p.triangles',
+  material: 'lower(m.name)',
+  timesUsed: 'times_used',
+  uploadedBy: 'lower(u.name)',
+  createdAt: 'p.created_at',
+};
+
+const likePattern = (s: string) => `%${s.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+
+/**
+ * The part library: importing (measure, store the file, write the rows in one
+ * transaction), listing, editing and deleting parts.
+ */
+export function partsService(db: Database, deps: PartsDeps) {
+  const { sequelize, models } = db;
+  const { storage } = deps;
+  const measure = deps.measure ?? measureFile;
+  const usageChecks: PartUsageCheck[] = [];
+
+  async function rowsById(labId: string, ids: string[], transaction?: Transaction): Promise<PartView[]> {
+    if (ids.length === 0) return [];
+    const rows = await sequelize.query<PartRow>(`${SELECT_PARTS} WHERE p.lab_id = $1 AND p.id = ANY($2::uuid[]) ORDER BY p.file_part_index`, {
+      bind: [labId, ids],
+      type: QueryTypes.SELECT,
+      transaction,
+    });
+    return rows.map(view);
+  }
+
+  async function get(labId: string, partId: string, transaction?: Transaction): Promise<PartView> {
+    if (!/^[0-9a-f-]{36}$/i.test(partId)) throw notFound('That part');
+    const [part] = await rowsById(labId, [partId], transaction);
+    if (!part) throw notFound('That part');
+    return part;
+  }
+
+  /** The largest chamber of the lab's machines, per sorted axis, for the "does not fit" warning. */
+  async function largestChamberMm(labId: string, transaction?: Transaction): Promise<[number, number, number] | undefined> {
+    const machines = await models.Machine.findAll({ where: { labId }, raw: true, transaction });
+    let best: number[] | undefined;
+    for (const m of machines as unknown as { profile: { chamberMm?: number[] } }[]) {
+      const c = m.profile.chamberMm;
+      if (!Array.isArray(c) || c.length !== 3) continue;
+      const sorted = [...c].sort((a, b) => a - b);
+      best = best ? best.map((v, i) => Math.max(v, sorted[i])) : sorted;
+    }
+    return best as [number, number, number] | undefined;
+  }
+
+  async function withTransaction<T>(outer: Transaction | undefined, fn: (t: Transaction) => Promise<T>): Promise<T> {
+    return outer ? fn(outer) : sequelize.transaction(fn);
+  }
+
+  return {
+    get,
+
+    /** Later features (build plans) add a check here; deleting a part in use answers 409. */
+    addUsageCheck(check: PartUsageCheck) {
+      usageChecks.push(check);
+    },
+
+    /**
+     * Measures one file and, when it is good, stores it and its parts. A bad
+     * file is answered as rejected and nothing of it is stored; a failure
+     * while storing rolls everything of this file back.
+     */
+    async importFile(input: ImportInput, outer?: Transaction): Promise<ImportResult> {
+      const file = plainFileName(input.filename);
+      if (!formatFromFilename(file)) {
+        return {
+          ok: false,
+          rejected: {
+            file,
+            code: 'unsupported-extension',
+            message: `${quoteName(file)} is not a supported mesh file: upload STL (.stl), OBJ (.obj) or 3MF (.3mf).`,
+          },
+        };
+      }
+      const chamber = await largestChamberMm(input.labId, outer);
+      const options: MeasureOptions = {
+        filename: file,
+        unit: input.unit,
+        splitObjects: input.split,
+        largestChamberMm: chamber,
+        maxUncompressedBytes: deps.max3mfExpandedBytes,
+      };
+      const measured = await measure('path' in input.source ? input.source.path : input.source.bytes, options);
+      if (!measured.ok) {
+        const [first] = measured.problems;
+        return { ok: false, rejected: { file, code: first.code, message: measured.problems.map((p) => p.message).join(' ') } };
+      }
+      const format = measured.format;
+      const key = 'path' in input.source ? await sha256File(input.source.path) : sha256Bytes(input.source.bytes);
+      let created = false;
+      try {
+        const ids = await withTransaction(outer, async (transaction) => {
+          created = (await storage.put(key, input.source, { transaction, refs: measured.parts.length })).created;
+          const ids: string[] = [];
+          for (const [index, part] of measured.parts.entries()) {
+            const m = part.metrics;
+            const row = await models.Part.create(
+              {
+                labId: input.labId,
+                name: part.name.slice(0, 200) || 'part',
+                tags: [],
+                fileKey: key,
+                fileName: file,
+                fileFormat: format,
+                // A 3MF carries its own unit, which the reader has applied.
+                fileUnit: format === '3mf' ? 'mm' : input.unit,
+                fileSplit: input.split,
+                filePartIndex: index,
+                uploadedSizeMm: m.sizeMm,
+                rotationDeg: [0, 0, 0],
+                sizeXMm: m.sizeMm[0],
+                sizeYMm: m.sizeMm[1],
+                sizeZMm: m.sizeMm[2],
+                volumeMm3: m.volumeMm3,
+                areaMm2: m.areaMm2,
+                triangles: m.triangles,
+                watertight: m.watertight,
+                metrics: m,
+                warnings: part.warnings,
+                orientation: 'any',
+                defaultMaterialId: null,
+                uploadedBy: input.userId,
+              },
+              { transaction },
+            );
+            ids.push(row.get('id') as string);
+          }
+          return ids;
+        });
+        return { ok: true, parts: await rowsById(input.labId, ids, outer) };
+      } catch (err) {
+        if (created && !outer) await storage.discard(key);
+        if (outer) throw err;
+        return {
+          ok: false,
+          rejected: { file, code: 'not_saved', message: `${quoteName(file)} was measured but could not be saved; nothing of it was kept. Try again shortly.` },
+          serverError: err,
+        };
+      }
+    },
+
+    async list(labId: string, query: unknown): Promise<PartListResponse> {
+      const q = parseOrThrow(partListQuerySchema, query);
+      const where = ['p.lab_id = $1'];
+      const bind: unknown[] = [labId];
+      const param = (v: unknown) => {
+        bind.push(v);
+        return `$${bind.length}`;
+      };
+      if (q.search) {
+        const s = param(likePattern(q.search));
+        where.push(`(p.name ILIKE ${s} OR EXISTS (SELECT 1 FROM unnest(p.tags) AS tag WHERE tag ILIKE ${s}))`);
+      }
+      if (q.materialId === 'none') where.push('p.default_material_id IS NULL');
+      else if (q.materialId) where.push(`p.default_material_id = ${param(q.materialId)}`);
+      if (q.warnings === 'any') where.push('jsonb_array_length(p.warnings) > 0');
+      else if (q.warnings === 'none') where.push('jsonb_array_length(p.warnings) = 0');
+      else if (q.warnings) where.push(`p.warnings @> jsonb_build_array(jsonb_build_object('code', ${param(q.warnings)}::text))`);
+      const desc = q.sort.startsWith('-');
+      const key = desc ? q.sort.slice(1) : q.sort;
+      const order = `${SORT_SQL[key]} ${desc ? 'DESC' : 'ASC'} NULLS LAST, p.created_at DESC, p.id`;
+      const whereSql = where.join(' AND ');
+      const [{ total }] = await sequelize.query<{ total: string }>(
+        `SELECT count(*) AS total FROM parts p WHERE ${whereSql}`,
+        { bind, type: QueryTypes.SELECT },
+      );
+      const limit = param(q.pageSize);
+      const offset = param((q.page - 1) * q.pageSize);
+      const rows = await sequelize.query<PartRow>(`${SELECT_PARTS} WHERE ${whereSql} ORDER BY ${order} LIMIT ${limit} OFFSET ${offset}`, {
+        bind,
+        type: QueryTypes.SELECT,
+      });
+      return { items: rows.map(view), total: Number(total) };
+    },
+
+    async update(labId: string, partId: string, body: unknown): Promise<PartView> {
+      const patch = parseOrThrow(partPatchSchema, body);
+      await get(labId, partId);
+      const row = await models.Part.findOne({ where: { id: partId, labId } });
+      if (!row) throw notFound('That part');
+      const changes: Record<string, unknown> = {};
+      if (patch.name !== undefined) changes.name = patch.name;
+      if (patch.tags !== undefined) changes.tags = patch.tags;
+      if (patch.orientation !== undefined) changes.orientation = patch.orientation;
+      if (patch.defaultMaterialId !== undefined) {
+        if (patch.defaultMaterialId !== null) {
+          const material = await models.Material.findOne({ where: { id: patch.defaultMaterialId, labId } });
+          if (!material) throw badRequest('defaultMaterialId is not a material of this lab', 'defaultMaterialId');
+        }
+        changes.defaultMaterialId = patch.defaultMaterialId;
+      }
+      if (patch.rotationDeg !== undefined) {
+        const size = rotatedSizeMm(row.get('uploadedSizeMm') as Vec3, patch.rotationDeg);
+        Object.assign(changes, { rotationDeg: patch.rotationDeg, sizeXMm: size[0], sizeYMm: size[1], sizeZMm: size[2] });
+      }
+      if (Object.keys(changes).length > 0) await row.update(changes);
+      return get(labId, partId);
+    },
+
+    /** Only the uploader or a lead; never while something uses the part. */
+    async remove(labId: string, partId: string, caller: { userId: string; isLead: boolean }): Promise<void> {
+      const part = await get(labId, partId);
+      if (!caller.isLead && part.uploadedBy?.id !== caller.userId) {
+        throw forbidden('Only the person who uploaded this part or a lead of the lab may delete it.');
+      }
+      await sequelize.transaction(async (transaction) => {
+        // Lock the row so a plan or request cannot start using it while it goes.
+        const row = await models.Part.findOne({ where: { id: partId, labId }, transaction, lock: transaction.LOCK.UPDATE });
+        if (!row) throw notFound('That part');
+        for (const check of usageChecks) {
+          const why = await check(labId, partId, transaction);
+          if (why) throw conflict('in_use', why);
+        }
+        await row.destroy({ transaction });
+        await storage.delete(row.get('fileKey') as string, { transaction });
+      });
+    },
+
+    /** The stored bytes of the part's file, with a content type and the original name. */
+    async file(labId: string, partId: string): Promise<{ bytes: Buffer; contentType: string; filename: string }> {
+      const part = await get(labId, partId);
+      const bytes = await storage.get(part.file.sha256);
+      if (!bytes) throw notFound("That part's file");
+      return { bytes, contentType: FILE_CONTENT_TYPES[part.file.format], filename: part.file.name };
+    },
+  };
+}
+export type PartsService = ReturnType<typeof partsService>;

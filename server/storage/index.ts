@@ -1,0 +1,125 @@
+import { readFile } from 'node:fs/promises';
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Database } from '../db';
+import type { StorageConfig } from '../config';
+import { AppError } from '../errors';
+import { s3ObjectStore } from './s3';
+import { SHA256_HEX, type FileSource, type FileStorage, type ObjectStore } from './types';
+
+export type { FileSource, FileStorage, ObjectStore } from './types';
+export { sha256Bytes, sha256File } from './hash';
+
+/** The object store did not answer as it should: the upload is not kept. */
+export const storageUnavailable = (cause?: unknown) => {
+  const err = new AppError(503, 'storage_unavailable', 'The file store is not reachable right now; nothing was saved. Try again shortly.');
+  (err as Error & { cause?: unknown }).cause = cause;
+  return err;
+};
+
+function checkKey(key: string) {
+  if (!SHA256_HEX.test(key)) throw new RangeError(`storage key must be a lower-case SHA-256 hex digest, got "${key.slice(0, 80)}"`);
+}
+
+async function readSource(source: FileSource): Promise<Buffer> {
+  if ('bytes' in source) return Buffer.from(source.bytes.buffer, source.bytes.byteOffset, source.bytes.byteLength);
+  return readFile(source.path);
+}
+
+const sourceSize = (source: FileSource) => ('bytes' in source ? source.bytes.byteLength : source.sizeBytes);
+
+/**
+ * The `files` table is the index of every stored file and holds its reference
+ * count in both drivers; with the PostgreSQL driver it also holds the bytes.
+ * With the S3 driver the object is written before its row, inside the
+ * caller's transaction: when the store fails the transaction fails and no
+ * row that would point at a missing object is committed.
+ */
+export function createStorage(db: Database, config: StorageConfig, objects?: ObjectStore): FileStorage {
+  const sequelize = db.sequelize;
+  const store: ObjectStore | null = config.driver === 's3' ? (objects ?? s3ObjectStore(config)) : null;
+  const driver = config.driver;
+
+  async function addRefs(key: string, refs: number, transaction: Transaction): Promise<boolean> {
+    const rows = await sequelize.query('UPDATE files SET ref_count = ref_count + $1 WHERE key = $2 RETURNING key', {
+      bind: [refs, key],
+      type: QueryTypes.SELECT,
+      transaction,
+    });
+    return rows.length > 0;
+  }
+
+  return {
+    driver,
+
+    async put(key, source, { transaction, refs = 1 }) {
+      checkKey(key);
+      if (await addRefs(key, refs, transaction)) return { created: false };
+      const size = sourceSize(source);
+      if (store) {
+        try {
+          await store.putObject(key, source);
+        } catch (err) {
+          throw storageUnavailable(err);
+        }
+        // Another upload of the same bytes may have committed meanwhile: count its reference too.
+        await sequelize.query(
+          `INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, $2, 's3', NULL, $3, now())
+           ON CONFLICT (key) DO UPDATE SET ref_count = files.ref_count + EXCLUDED.ref_count`,
+          { bind: [key, size, refs], transaction },
+        );
+        return { created: true };
+      }
+      const bytes = await readSource(source);
+      await sequelize.query(
+        `INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, $2, 'postgres', $3, $4, now())
+         ON CONFLICT (key) DO UPDATE SET ref_count = files.ref_count + EXCLUDED.ref_count`,
+        { bind: [key, bytes.byteLength, bytes, refs], transaction },
+      );
+      return { created: true };
+    },
+
+    async get(key) {
+      if (!SHA256_HEX.test(key)) return null;
+      const rows = await sequelize.query<{ location: string; data: Buffer | null }>('SELECT location, data FROM files WHERE key = $1', {
+        bind: [key],
+        type: QueryTypes.SELECT,
+      });
+      const row = rows[0];
+      if (!row) return null;
+      if (row.location === 'postgres') return row.data;
+      if (!store) throw new AppError(503, 'storage_unavailable', 'This file is kept in object storage, which this server is not configured to reach.');
+      try {
+        return await store.getObject(key);
+      } catch (err) {
+        throw storageUnavailable(err);
+      }
+    },
+
+    async delete(key, { transaction, refs = 1 }) {
+      checkKey(key);
+      const rows = await sequelize.query<{ ref_count: number; location: string }>(
+        'UPDATE files SET ref_count = GREATEST(ref_count - $1, 0) WHERE key = $2 RETURNING ref_count, location',
+        { bind: [refs, key], type: QueryTypes.SELECT, transaction },
+      );
+      const row = rows[0];
+      if (!row || row.ref_count > 0) return;
+      await sequelize.query('DELETE FROM files WHERE key = $1 AND ref_count = 0', { bind: [key], transaction });
+      if (row.location === 's3' && store) {
+        // The object goes only once the row is gone for good, and only if no
+        // new upload of the same bytes has brought the row back.
+        transaction.afterCommit(() => {
+          void (async () => {
+            const again = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT });
+            if (again.length === 0) await store.deleteObject(key);
+          })().catch(() => {});
+        });
+      }
+    },
+
+    async discard(key) {
+      if (!store || !SHA256_HEX.test(key)) return;
+      const rows = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT });
+      if (rows.length === 0) await store.deleteObject(key).catch(() => {});
+    },
+  };
+}

@@ -1,0 +1,114 @@
+import { z } from 'zod';
+
+export const LENGTH_UNITS = ['mm', 'cm', 'inch'] as const;
+export const lengthUnitSchema = z.enum(LENGTH_UNITS);
+
+/** any: the planner may turn the part freely; keep_up: only about the vertical axis; fixed: as uploaded. */
+export const ORIENTATION_RULES = ['any', 'keep_up', 'fixed'] as const;
+export const orientationRuleSchema = z.enum(ORIENTATION_RULES);
+
+export const QUARTER_TURNS_DEG = [0, 90, 180, 270] as const;
+const quarterTurnSchema = z.union([z.literal(0), z.literal(90), z.literal(180), z.literal(270)], {
+  error: 'must be 0, 90, 180 or 270 (degrees)',
+});
+/** Degrees about x, then y, then z (fixed axes), in quarter turns, from the orientation as uploaded. */
+export const rotationDegSchema = z.tuple([quarterTurnSchema, quarterTurnSchema, quarterTurnSchema]);
+
+export const partNameSchema = z.string().trim().min(1, 'is required').max(200, 'must be at most 200 characters');
+export const tagSchema = z.string().trim().min(1, 'must not be empty').max(40, 'must be at most 40 characters');
+export const tagsSchema = z
+  .array(tagSchema)
+  .max(20, 'must be at most 20 tags')
+  .transform((tags) => [...new Set(tags)]);
+
+const uuid = z.uuid('must be an id');
+
+/** The multipart upload's text fields (the files come as `file` fields). */
+export const partUploadFieldsSchema = z.strictObject({
+  unit: lengthUnitSchema.default('mm'),
+  /** A 3MF with several build items: one part per item ("true", the default) or one merged part ("false"). */
+  split: z.enum(['true', 'false']).default('true').transform((s) => s === 'true'),
+});
+
+export const partPatchSchema = z.strictObject({
+  name: partNameSchema.optional(),
+  tags: tagsSchema.optional(),
+  defaultMaterialId: uuid.nullable().optional(),
+  orientation: orientationRuleSchema.optional(),
+  rotationDeg: rotationDegSchema.optional(),
+});
+
+export const PART_SORT_KEYS = ['name', 'sizeX', 'sizeY', 'sizeZ', 'volume', 'area', 'triangles', 'material', 'timesUsed', 'uploadedBy', 'createdAt'] as const;
+const partSortSchema = z
+  .string()
+  .regex(new RegExp(`^-?(${PART_SORT_KEYS.join('|')})$`), `must be one of ${PART_SORT_KEYS.join(', ')}, with "-" in front for descending`);
+
+export const pageSchema = z.coerce.number().int('must be a whole number').min(1, 'must be at least 1').max(100_000).default(1);
+export const pageSizeSchema = z.coerce.number().int('must be a whole number').min(1, 'must be at least 1').max(200, 'must be at most 200').default(50);
+
+export const partListQuerySchema = z.strictObject({
+  /** Matches the name or any tag, ignoring case. */
+  search: z.string().trim().max(200).optional(),
+  sort: partSortSchema.default('-createdAt'),
+  page: pageSchema,
+  pageSize: pageSizeSchema,
+  /** A material id, or "none" for parts without a default material. */
+  materialId: z.union([uuid, z.literal('none')]).optional(),
+  /** "any": parts with at least one warning; "none": parts without; or one warning code. */
+  warnings: z.string().regex(/^[a-z-]{1,40}$/, 'must be "any", "none" or a warning code').optional(),
+});
+
+export type PartPatch = z.infer<typeof partPatchSchema>;
+export type PartListQuery = z.infer<typeof partListQuerySchema>;
+export type OrientationRule = (typeof ORIENTATION_RULES)[number];
+
+export interface PartWarning {
+  code: string;
+  message: string;
+}
+
+/** A part as the API returns it. */
+export interface PartView {
+  id: string;
+  labId: string;
+  name: string;
+  tags: string[];
+  /** After the stored rotation. */
+  sizeMm: [number, number, number];
+  uploadedSizeMm: [number, number, number];
+  rotationDeg: [number, number, number];
+  orientation: OrientationRule;
+  volumeMm3: number;
+  areaMm2: number;
+  triangles: number;
+  watertight: boolean;
+  shells: number;
+  openEdges: number;
+  nonManifoldEdges: number;
+  oriented: boolean;
+  warnings: PartWarning[];
+  materialId: string | null;
+  materialName: string | null;
+  timesUsed: number;
+  uploadedBy: { id: string; name: string } | null;
+  createdAt: string;
+  updatedAt: string;
+  /** How to read the stored file for a preview: the same unit and split choice, then the part at `partIndex`. */
+  file: { name: string; format: 'stl' | 'obj' | '3mf'; unit: 'mm' | 'cm' | 'inch'; split: boolean; partIndex: number; sizeBytes: number; sha256: string };
+}
+
+export interface RejectedFile {
+  file: string;
+  code: string;
+  message: string;
+}
+
+export interface PartUploadResponse {
+  parts: PartView[];
+  rejected: RejectedFile[];
+}
+
+export interface PartListResponse {
+  items: PartView[];
+  total: number;
+}

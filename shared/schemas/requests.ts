@@ -1,0 +1,112 @@
+import { z } from 'zod';
+import { pageSchema, pageSizeSchema } from './parts';
+
+export const PRIORITIES = ['low', 'normal', 'high', 'urgent'] as const;
+export const prioritySchema = z.enum(PRIORITIES);
+export const REQUEST_STATUSES = ['open', 'cancelled', 'done'] as const;
+export const requestStatusSchema = z.enum(REQUEST_STATUSES);
+
+export const QUANTITY_MAX = 100_000;
+export const MAX_REQUEST_LINES = 500;
+
+const uuid = z.uuid('must be an id');
+
+/** A calendar date, YYYY-MM-DD; whether it is in the past is the server's call (it knows the date). */
+export const dueDateSchema = z.iso.date('must be a date (YYYY-MM-DD)');
+
+export const requestLineSchema = z.strictObject({
+  partId: uuid,
+  quantity: z
+    .number({ error: 'must be a number' })
+    .int('must be a whole number')
+    .min(1, 'must be at least 1')
+    .max(QUANTITY_MAX, `must be at most ${QUANTITY_MAX.toLocaleString('en-US')}`),
+});
+
+const linesSchema = z
+  .array(requestLineSchema)
+  .min(1, 'needs at least one part')
+  .max(MAX_REQUEST_LINES, `must be at most ${MAX_REQUEST_LINES} lines`)
+  .superRefine((lines, c) => {
+    const seen = new Set<string>();
+    lines.forEach((line, i) => {
+      if (seen.has(line.partId)) c.addIssue({ code: 'custom', path: [i, 'partId'], message: 'lists the same part twice; raise its quantity instead' });
+      seen.add(line.partId);
+    });
+  });
+
+const titleSchema = z.string().trim().min(1, 'is required').max(200, 'must be at most 200 characters');
+const notesSchema = z.string().max(5000, 'must be at most 5,000 characters');
+
+export const requestCreateSchema = z.strictObject({
+  title: titleSchema,
+  materialId: uuid,
+  dueDate: dueDateSchema,
+  priority: prioritySchema.default('normal'),
+  notes: notesSchema.default(''),
+  lines: linesSchema,
+});
+
+export const requestPatchSchema = z.strictObject({
+  title: titleSchema.optional(),
+  materialId: uuid.optional(),
+  dueDate: dueDateSchema.optional(),
+  priority: prioritySchema.optional(),
+  notes: notesSchema.optional(),
+  /** Replaces every line. */
+  lines: linesSchema.optional(),
+  /** A designer may cancel or reopen; "done" is set when the parts are printed. */
+  status: z.enum(['open', 'cancelled']).optional(),
+});
+
+export const REQUEST_SORT_KEYS = ['dueDate', 'priority', 'createdAt', 'title'] as const;
+
+export const requestListQuerySchema = z.strictObject({
+  status: z.union([requestStatusSchema, z.literal('all')]).default('all'),
+  /** dueDate: soonest first, then most urgent (the planner's order); priority: most urgent first, then soonest. */
+  sort: z
+    .string()
+    .regex(new RegExp(`^-?(${REQUEST_SORT_KEYS.join('|')})$`), `must be one of ${REQUEST_SORT_KEYS.join(', ')}, with "-" in front to reverse`)
+    .default('dueDate'),
+  search: z.string().trim().max(200).optional(),
+  page: pageSchema,
+  pageSize: pageSizeSchema,
+});
+
+export type RequestCreate = z.infer<typeof requestCreateSchema>;
+export type RequestPatch = z.infer<typeof requestPatchSchema>;
+export type RequestListQuery = z.infer<typeof requestListQuerySchema>;
+export type Priority = (typeof PRIORITIES)[number];
+
+export interface RequestLineView {
+  id: string;
+  partId: string;
+  partName: string;
+  quantity: number;
+  plannedCount: number;
+  printedCount: number;
+}
+
+export interface RequestView {
+  id: string;
+  labId: string;
+  title: string;
+  materialId: string | null;
+  materialName: string | null;
+  dueDate: string;
+  priority: Priority;
+  notes: string;
+  status: (typeof REQUEST_STATUSES)[number];
+  createdBy: { id: string; name: string } | null;
+  createdAt: string;
+  updatedAt: string;
+  lines: RequestLineView[];
+  totals: { quantity: number; planned: number; printed: number };
+  /** True once any line has a planned count: the request can no longer be edited. */
+  planned: boolean;
+}
+
+export interface RequestListResponse {
+  items: RequestView[];
+  total: number;
+}
