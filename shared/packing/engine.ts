@@ -35,6 +35,11 @@ export interface PackOptions {
   maxCompletions?: number;
   /** Parts already in the chamber (real coordinates), kept clear of; used when topping up a build. */
   obstacles?: ReadonlyArray<{ position: Vec3; size: Vec3 }>;
+  /**
+   * Relative worth of one copy of each part (by part index, default 1): with room
+   * for only some parts, the engine prefers the heavier ones. Used to favour urgent work.
+   */
+  partWeights?: readonly number[];
 }
 
 export interface Packing {
@@ -68,7 +73,7 @@ function defaultClock(): () => number {
   return () => Date.now();
 }
 
-function buildModel(inst: PackInstance): Model {
+function buildModel(inst: PackInstance, weights: readonly number[] = []): Model {
   const { min: origin, extent } = usableRegion(inst);
   const g = inst.spacing;
   const byKey = new Map<string, number>();
@@ -92,7 +97,8 @@ function buildModel(inst: PackInstance): Model {
       return;
     }
     totalBoxes += part.quantity;
-    const key = `${part.size.join(',')}|${orientations.join(',')}`;
+    const weight = weights[p] !== undefined && Number.isFinite(weights[p]) && weights[p] > 0 ? weights[p] : 1;
+    const key = `${part.size.join(',')}|${orientations.join(',')}|${weight}`;
     const existing = byKey.get(key);
     if (existing !== undefined) {
       types[existing].count += part.quantity;
@@ -110,7 +116,7 @@ function buildModel(inst: PackInstance): Model {
       dims,
       orientationCodes: Uint8Array.from(orientations.map(orientationCode)),
       count: part.quantity,
-      unitValue: part.size[0] * part.size[1] * part.size[2],
+      unitValue: part.size[0] * part.size[1] * part.size[2] * weight,
       minDim: Math.min(...dims),
     });
     info.push({ members: [{ part: p, count: part.quantity }], realDims, orientations });
@@ -256,7 +262,7 @@ interface Ctx {
   stopped: boolean;
   completionsLeft: number;
   best: PackResult | null;
-  bestScore: number;
+  bestValue: number;
   phase: PackPhase;
   random: Random;
   obstacles: number[][];
@@ -286,26 +292,28 @@ function shareDone(ctx: Ctx, t: number): number {
   return total > 0 ? Math.min(1, Math.max(0, (t - ctx.start) / total)) : 1;
 }
 
-/** Score of a layout for the objective: more parts first, then lower (min-height) or more volume. */
-function scoreOf(model: Model, r: PackResult): number {
-  let placedVolume = 0;
-  for (const p of r.placements) placedVolume += p.size[0] * p.size[1] * p.size[2];
-  if (model.inst.objective === 'max-volume') return placedVolume;
-  // Placing parts dominates; among equally complete layouts the lower wins.
-  return r.placements.length * 1e6 + placedVolume * 1e-12 - r.height;
+/**
+ * Is layout (value, height) better than the best so far? More (weighted) placed
+ * volume first; for min-height, among equal volumes the lower one.
+ */
+function better(ctx: Ctx, value: number, height: number): boolean {
+  if (!ctx.best) return true;
+  const relative = 1e-12 * Math.max(1, Math.abs(ctx.bestValue));
+  if (value > ctx.bestValue + relative) return true;
+  if (value < ctx.bestValue - relative) return false;
+  return ctx.model.inst.objective === 'min-height' && height < ctx.best.height - 1e-9;
 }
 
 /** Keeps a layout if it is better and passes the validator. */
-function offer(ctx: Ctx, placements: Placement[]): PackResult | null {
+function offer(ctx: Ctx, placements: Placement[], value: number): PackResult | null {
   const model = ctx.model;
   // Obstacles are not known to the fall, so layouts around them stay where the solver put them.
   if (model.inst.objective === 'min-height' && ctx.obstacles.length === 0) compactDown(model, placements);
   const result = summarise(model, placements, ctx.now() - ctx.start);
-  const score = scoreOf(model, result);
-  if (ctx.best && score <= ctx.bestScore) return null;
+  if (!better(ctx, value, result.height)) return null;
   if (validateLayout(model.inst, result).length > 0) return null;
   ctx.best = result;
-  ctx.bestScore = score;
+  ctx.bestValue = value;
   ctx.hooks.onProgress?.(ctx.phase, shareDone(ctx, ctx.now()), result);
   return result;
 }
@@ -391,7 +399,7 @@ function* maxVolume(ctx: Ctx): Generator<void, void, void> {
     const s = greedy(ctx, problem);
     if (s.value > bestValue) {
       bestValue = s.value;
-      offer(ctx, expand(model, s));
+      offer(ctx, expand(model, s), s.value);
     }
     if (s.boxesLeft === 0 || outOfBudget(ctx)) return;
     if (shouldYield(ctx)) yield;
@@ -403,7 +411,7 @@ function* maxVolume(ctx: Ctx): Generator<void, void, void> {
     const s = yield* beam(ctx, problem, width, branching, (x) => x.boxesLeft === 0);
     if (s && s.value > bestValue) {
       bestValue = s.value;
-      offer(ctx, expand(model, s));
+      offer(ctx, expand(model, s), s.value);
     }
     if ((s && s.boxesLeft === 0) || outOfBudget(ctx)) return;
     if (round >= SCHEDULE.length * 2 && ctx.completionsLeft === Infinity) {
@@ -425,7 +433,7 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   const full = model.extent[2];
   ctx.phase = 'greedy';
   const first = greedy(ctx, problemFor(model, full, true, 1));
-  offer(ctx, expand(model, first));
+  offer(ctx, expand(model, first), first.value);
   if (first.boxesLeft > 0) {
     // Not everything fits: the most volume in the whole chamber, lowered afterwards.
     yield* maxVolume(ctx);
@@ -443,14 +451,14 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
         if (level < 0) {
           const s = greedy(ctx, problem);
           if (s.boxesLeft === 0) {
-            offer(ctx, expand(model, s));
+            offer(ctx, expand(model, s), s.value);
             return true;
           }
         } else {
           const [width, branching] = SCHEDULE[Math.min(level, SCHEDULE.length - 1)];
           const s = yield* beam(ctx, problem, width, branching, (x) => x.boxesLeft === 0);
           if (s && s.boxesLeft === 0) {
-            offer(ctx, expand(model, s));
+            offer(ctx, expand(model, s), s.value);
             return true;
           }
         }
@@ -486,7 +494,7 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
 
 function* solve(ctx: Ctx): Generator<void, void, void> {
   if (ctx.model.totalBoxes === 0) {
-    offer(ctx, []);
+    offer(ctx, [], 0);
     return;
   }
   if (ctx.model.inst.objective === 'max-volume') yield* maxVolume(ctx);
@@ -501,7 +509,7 @@ function* solve(ctx: Ctx): Generator<void, void, void> {
 export function createPacking(instance: PackInstance, options: PackOptions = {}): Packing {
   const now = options.now ?? defaultClock();
   const makeCtx = (hooks: PackRunHooks): Ctx => {
-    const model = buildModel(instance);
+    const model = buildModel(instance, options.partWeights);
     const start = now();
     const ctx: Ctx = {
       model,
@@ -514,7 +522,7 @@ export function createPacking(instance: PackInstance, options: PackOptions = {})
       stopped: false,
       completionsLeft: options.maxCompletions ?? Infinity,
       best: null,
-      bestScore: -Infinity,
+      bestValue: -Infinity,
       phase: 'greedy',
       random: createRandom(instance.seed),
       obstacles: [],

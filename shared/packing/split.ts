@@ -118,11 +118,14 @@ export function splitIntoBuilds(lines: BuildLine[], settings: BuildSettings, opt
     return left;
   };
 
+  const carried = new Set<string>();
   while (queue.length > 0) {
     const [prefix, rest] = takeVolume(queue, capacity, (line) => inflatedPartVolume(parts[line], g));
     const firstTime = Math.round(base.timeLimitMs * (rest.length > 0 ? 0.7 : 1));
     const firstInstance = instanceOf(prefix, 'min-height', firstTime);
-    const first = packSync(firstInstance, options);
+    // Lines begun in an earlier build are the most overdue: they weigh most.
+    const weights = urgencyWeights(firstInstance.parts.length).map((w, i) => (carried.has(firstInstance.parts[i].id) ? 10 * w : w));
+    const first = packSync(firstInstance, { ...options, partWeights: weights });
     let placements = first.placements;
     let leftover = consume(prefix, placedPerId(first));
     let pending = rest;
@@ -134,7 +137,7 @@ export function splitIntoBuilds(lines: BuildLine[], settings: BuildSettings, opt
     }
     if (leftover.length === 0 && rest.length > 0) {
       const topUp = instanceOf(rest, 'max-volume', base.timeLimitMs - firstTime);
-      const more = packSync(topUp, { ...options, obstacles: placements });
+      const more = packSync(topUp, { ...options, obstacles: placements, partWeights: urgencyWeights(topUp.parts.length) });
       const merged = [...placements, ...more.placements];
       const check = instanceOf([...prefix, ...rest], 'min-height', 0);
       const mergedResult = summariseLayout(check, merged);
@@ -146,9 +149,20 @@ export function splitIntoBuilds(lines: BuildLine[], settings: BuildSettings, opt
     const placedRuns = countsOf(placements, lineOfId);
     const buildInstance = instanceOf(placedRuns, 'min-height', base.timeLimitMs);
     builds.push({ instance: buildInstance, result: { ...summariseLayout(buildInstance, placements), elapsedMs: first.elapsedMs } });
+    // Lines already started (partly placed, or offered first and left over) finish first.
+    for (const r of leftover) carried.add(parts[r.line].id);
+    for (const p of placements) carried.add(p.id);
     queue = [...leftover, ...pending];
   }
   return { ok: true, builds, unplaceable: mergeUnplaced(unplaceable), buildsLowerBound: buildCountLowerBound({ ...base, parts: parts.map((p, i) => ({ ...p, quantity: unplaceable.some((u) => u.id === p.id) ? 0 : lines[i].quantity })) }) };
+}
+
+/**
+ * Parts come in queue order; when not all fit, the earlier (more urgent) ones
+ * are worth up to four times as much per unit of volume as the last.
+ */
+function urgencyWeights(n: number): number[] {
+  return Array.from({ length: n }, (_, i) => 1 + 3 * (1 - i / Math.max(1, n - 1)));
 }
 
 function fitsSomehow(part: PackPart, extent: Vec3): boolean {
