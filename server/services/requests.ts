@@ -146,12 +146,23 @@ export function requestsService(db: Database, parts: PartsService) {
     if (i >= 0) throw badRequest(`lines[${i}].partId is not a part of this lab`, `lines[${i}].partId`);
   }
 
+  /**
+   * Writes the lines in the given order. A part already on the request keeps
+   * its line (and the line's id, which plans refer to); parts no longer listed
+   * lose theirs.
+   */
   async function writeLines(requestId: string, lines: { partId: string; quantity: number }[], transaction: Transaction) {
-    await models.RequestLine.destroy({ where: { requestId }, transaction });
-    await models.RequestLine.bulkCreate(
-      lines.map((l, position) => ({ requestId, partId: l.partId, quantity: l.quantity, position, plannedCount: 0, printedCount: 0 })),
-      { transaction },
-    );
+    const existing = await models.RequestLine.findAll({ where: { requestId }, transaction });
+    const byPart = new Map(existing.map((row) => [row.get('partId') as string, row]));
+    const keep = new Set(lines.map((l) => l.partId));
+    for (const row of existing) if (!keep.has(row.get('partId') as string)) await row.destroy({ transaction });
+    // Move the kept lines out of the way of the unique (request, position) index first.
+    await sequelize.query('UPDATE request_lines SET position = -1 - position WHERE request_id = $1', { bind: [requestId], transaction });
+    for (const [position, line] of lines.entries()) {
+      const row = byPart.get(line.partId);
+      if (row) await row.update({ quantity: line.quantity, position }, { transaction });
+      else await models.RequestLine.create({ requestId, partId: line.partId, quantity: line.quantity, position, plannedCount: 0, printedCount: 0 }, { transaction });
+    }
   }
 
   // A part named in a request stays until the request lets go of it.

@@ -50,7 +50,8 @@ const buf = (u: Uint8Array) => Buffer.from(u.buffer, u.byteOffset, u.byteLength)
 const uniqueStl = (mesh: MeshData) => writeBinaryStl(mesh, `test ${randomUUID()}`);
 
 /** Collects a response body as bytes whatever its content type. */
-const asBytes = (r: NodeJS.ReadableStream, cb: (err: Error | null, body: Buffer) => void) => {
+const asBytes = (res: unknown, cb: (err: Error | null, body: Buffer) => void) => {
+  const r = res as NodeJS.ReadableStream;
   const chunks: Buffer[] = [];
   r.on('data', (c: Buffer) => chunks.push(c));
   r.on('end', () => cb(null, Buffer.concat(chunks)));
