@@ -86,7 +86,7 @@ async function main(): Promise<void> {
     console.log(`alternative edge count with a JS Map: ${(performance.now() - t0).toFixed(0)} ms (${open} open edges), vs the whole metrics above`);
 
     // The same solid as a 3MF package (XML in a ZIP) for comparison with the binary STL.
-    const threeMf = write3mf([{ name: 'torus', ...parsed.parts[0] }], [{ objectIndex: 0, transform: translation(0, 0, 0) }]);
+    const threeMf = write3mf([{ ...parsed.parts[0], name: 'torus' }], [{ objectIndex: 0, transform: translation(0, 0, 0) }]);
     t0 = performance.now();
     const fromThreeMf = measureMeshFile(threeMf, { filename: 'torus-1m.3mf' });
     console.log(

@@ -76,6 +76,8 @@ export function triangulate(loop: Loop): [number, number, number][] {
       let inside = false;
       for (const p of remaining) {
         if (p === a || p === b || p === c) continue;
+        // A bridge repeats vertices: a copy of a corner is not inside the ear.
+        if (samePoint(loop[p], loop[a]) || samePoint(loop[p], loop[b]) || samePoint(loop[p], loop[c])) continue;
         if (cross(a, b, p) >= 0 && cross(b, c, p) >= 0 && cross(c, a, p) >= 0) {
           inside = true;
           break;
@@ -91,6 +93,114 @@ export function triangulate(loop: Loop): [number, number, number][] {
   }
   out.push([remaining[0], remaining[1], remaining[2]]);
   return out;
+}
+
+/**
+ * A straight extrusion of a polygon with holes: outer loop counter-clockwise,
+ * holes clockwise. Walls use the strip rule of `loft` (a clockwise hole's walls
+ * then face into the hole, away from the material); the caps triangulate the
+ * outer loop with each hole joined to it by a bridge edge, the usual way ear
+ * clipping handles holes.
+ */
+export function prismWithHoles(outer: Loop, holes: Loop[], z0: number, z1: number): MeshData {
+  const loops = [outer, ...holes];
+  const offsets: number[] = [];
+  let count = 0;
+  for (const loop of loops) {
+    offsets.push(count);
+    count += loop.length;
+  }
+  // Vertex ids: all loops at z0 (ids 0..count-1), then all loops at z1.
+  const positions = new Float64Array(count * 2 * 3);
+  loops.forEach((loop, l) => {
+    loop.forEach(([x, y], j) => {
+      const id = offsets[l] + j;
+      positions.set([x, y, z0], id * 3);
+      positions.set([x, y, z1], (count + id) * 3);
+    });
+  });
+  const tris: number[] = [];
+  loops.forEach((loop, l) => {
+    const n = loop.length;
+    for (let j = 0; j < n; j++) {
+      const a = offsets[l] + j;
+      const b = offsets[l] + ((j + 1) % n);
+      tris.push(a, b, count + b, a, count + b, count + a);
+    }
+  });
+  const { polygon, ids } = bridgeHoles(outer, holes, offsets);
+  for (const [p, q, r] of triangulate(polygon)) {
+    tris.push(ids[p], ids[r], ids[q]);
+    tris.push(count + ids[p], count + ids[q], count + ids[r]);
+  }
+  return { positions, indices: Uint32Array.from(tris) };
+}
+
+/** Joins each hole into the outer loop through an edge to a vertex it can see, giving one simple (weakly) polygon. */
+function bridgeHoles(outer: Loop, holes: Loop[], offsets: number[]): { polygon: Loop; ids: number[] } {
+  let polygon: Loop = outer.slice();
+  let ids = outer.map((_, j) => offsets[0] + j);
+  const order = holes.map((_, h) => h).sort((a, b) => maxX(holes[b]) - maxX(holes[a]));
+  for (const h of order) {
+    const hole = holes[h];
+    let m = 0;
+    for (let j = 1; j < hole.length; j++) if (hole[j][0] > hole[m][0]) m = j;
+    const from = hole[m];
+    const others = order.filter((o) => o !== h).map((o) => holes[o]);
+    // A vertex already used by a bridge appears twice; joining to the wrong copy would fold the outline, so skip those.
+    const uses = new Map<string, number>();
+    for (const q of polygon) uses.set(`${q[0]},${q[1]}`, (uses.get(`${q[0]},${q[1]}`) ?? 0) + 1);
+    const candidates = polygon
+      .map((_, i) => i)
+      .filter((i) => uses.get(`${polygon[i][0]},${polygon[i][1]}`) === 1)
+      .sort((a, b) => dist2(polygon[a], from) - dist2(polygon[b], from));
+    const visible = candidates.find((i) => !crossesAny(from, polygon[i], [polygon, hole, ...others]));
+    if (visible === undefined) throw new Error('prismWithHoles: a hole cannot be joined to the outline');
+    const holeIds = hole.map((_, j) => offsets[1 + h] + j);
+    const walk: Loop = [];
+    const walkIds: number[] = [];
+    for (let k = 0; k <= hole.length; k++) {
+      const j = (m + k) % hole.length;
+      walk.push(hole[j]);
+      walkIds.push(holeIds[j]);
+    }
+    polygon = [...polygon.slice(0, visible + 1), ...walk, polygon[visible], ...polygon.slice(visible + 1)];
+    ids = [...ids.slice(0, visible + 1), ...walkIds, ids[visible], ...ids.slice(visible + 1)];
+  }
+  return { polygon, ids };
+}
+
+function maxX(loop: Loop): number {
+  return Math.max(...loop.map((p) => p[0]));
+}
+
+function dist2(a: [number, number], b: [number, number]): number {
+  return (a[0] - b[0]) ** 2 + (a[1] - b[1]) ** 2;
+}
+
+function between(a: [number, number], b: [number, number], p: [number, number]): boolean {
+  return Math.min(a[0], b[0]) <= p[0] && p[0] <= Math.max(a[0], b[0]) && Math.min(a[1], b[1]) <= p[1] && p[1] <= Math.max(a[1], b[1]);
+}
+
+/** True when segment a-b properly crosses an edge of any loop (shared endpoints do not count). */
+function crossesAny(a: [number, number], b: [number, number], loops: Loop[]): boolean {
+  const orient = (p: [number, number], q: [number, number], r: [number, number]) => Math.sign((q[0] - p[0]) * (r[1] - p[1]) - (q[1] - p[1]) * (r[0] - p[0]));
+  const same = (p: [number, number], q: [number, number]) => p[0] === q[0] && p[1] === q[1];
+  for (const loop of loops) {
+    for (let i = 0; i < loop.length; i++) {
+      const c = loop[i];
+      const d = loop[(i + 1) % loop.length];
+      // A vertex lying on the bridge would make it touch another loop.
+      if (!same(c, a) && !same(c, b) && orient(a, b, c) === 0 && between(a, b, c)) return true;
+      if (same(a, c) || same(a, d) || same(b, c) || same(b, d)) continue;
+      if (orient(a, b, c) * orient(a, b, d) < 0 && orient(c, d, a) * orient(c, d, b) < 0) return true;
+    }
+  }
+  return false;
+}
+
+function samePoint(p: [number, number], q: [number, number]): boolean {
+  return p[0] === q[0] && p[1] === q[1];
 }
 
 function arc(cx: number, cy: number, r: number, from: number, to: number, segments: number): Loop {
@@ -149,6 +259,55 @@ export function bracket(p: BracketParams): MeshData {
     [0, p.legBMm],
   ];
   return prism(loop, 0, p.widthMm);
+}
+
+function circleLoop(cx: number, cy: number, r: number, segments: number, clockwise: boolean): Loop {
+  const out: Loop = [];
+  for (let i = 0; i < segments; i++) {
+    const a = ((clockwise ? -2 : 2) * Math.PI * i) / segments;
+    out.push([cx + r * Math.cos(a), cy + r * Math.sin(a)]);
+  }
+  return out;
+}
+
+export interface CornerPlateParams {
+  legMm: number;
+  widthMm: number;
+  thicknessMm: number;
+  holeRadiusMm: number;
+  holeSegments: number;
+}
+
+/** A flat corner plate: an L of two legs with a screw hole at each end and one in the corner. */
+export function cornerPlate(p: CornerPlateParams): MeshData {
+  const l = p.legMm;
+  const w = p.widthMm;
+  const outer: Loop = [[0, 0], [l, 0], [l, w], [w, w], [w, l], [0, l]];
+  const centres: [number, number][] = [[l - w / 2, w / 2], [w / 2, l - w / 2], [w / 2, w / 2]];
+  const holes = centres.map(([cx, cy]) => circleLoop(cx, cy, p.holeRadiusMm, p.holeSegments, true));
+  return prismWithHoles(outer, holes, 0, p.thicknessMm);
+}
+
+export interface MountPlateParams {
+  sizeMm: number;
+  thicknessMm: number;
+  cornerRadiusMm: number;
+  /** Distance between the four screw holes' centres. */
+  holeSpacingMm: number;
+  holeRadiusMm: number;
+  boreRadiusMm: number;
+  segments: number;
+}
+
+/** A square motor mount plate: rounded corners, four screw holes and a central bore for the shaft. */
+export function mountPlate(p: MountPlateParams): MeshData {
+  const outer = roundedRect(p.sizeMm, p.sizeMm, p.cornerRadiusMm, Math.max(2, Math.round(p.segments / 4)));
+  const h = p.holeSpacingMm / 2;
+  const holes = [
+    circleLoop(0, 0, p.boreRadiusMm, p.segments, true),
+    ...([[h, h], [-h, h], [-h, -h], [h, -h]] as [number, number][]).map(([cx, cy]) => circleLoop(cx, cy, p.holeRadiusMm, p.segments / 2, true)),
+  ];
+  return prismWithHoles(outer, holes, 0, p.thicknessMm);
 }
 
 export interface ClipParams {
@@ -336,23 +495,27 @@ export type DemoPartKind = 'bracket' | 'clip' | 'gear' | 'housing' | 'hinge' | '
 export interface DemoPart {
   name: string;
   kind: DemoPartKind;
+  /** Holes through the solid (its genus): V - E + F = 2 - 2 x holes. */
+  throughHoles: number;
   mesh: MeshData;
 }
 
 /** The demo lab's library: a few sizes of each invented shape. */
 export function demoLibrary(): DemoPart[] {
   return [
-    { name: 'Motor bracket 40', kind: 'bracket', mesh: bracket({ legAMm: 40, legBMm: 30, thicknessMm: 4, widthMm: 20, gussetMm: 6 }) },
-    { name: 'Sensor bracket 25', kind: 'bracket', mesh: bracket({ legAMm: 25, legBMm: 25, thicknessMm: 3, widthMm: 12, gussetMm: 4 }) },
-    { name: 'Tube clip 12', kind: 'clip', mesh: clip({ innerRadiusMm: 6, wallMm: 2, gapDeg: 70, widthMm: 10, segments: 48 }) },
-    { name: 'Tube clip 20', kind: 'clip', mesh: clip({ innerRadiusMm: 10, wallMm: 2.5, gapDeg: 60, widthMm: 14, segments: 64 }) },
-    { name: 'Drive gear 24T', kind: 'gear', mesh: gear({ teeth: 24, rootRadiusMm: 22, tipRadiusMm: 25, boreRadiusMm: 4, thicknessMm: 8, samplesPerTooth: 8 }) },
-    { name: 'Idler gear 16T', kind: 'gear', mesh: gear({ teeth: 16, rootRadiusMm: 13, tipRadiusMm: 15.5, boreRadiusMm: 3, thicknessMm: 6, samplesPerTooth: 8 }) },
-    { name: 'Controller housing', kind: 'housing', mesh: housing({ lengthMm: 90, widthMm: 60, heightMm: 30, wallMm: 2.5, floorMm: 3, cornerRadiusMm: 6, cornerSegments: 8 }) },
-    { name: 'Battery housing', kind: 'housing', mesh: housing({ lengthMm: 120, widthMm: 45, heightMm: 40, wallMm: 3, floorMm: 3, cornerRadiusMm: 5, cornerSegments: 8 }) },
-    { name: 'Lid hinge leaf', kind: 'hinge', mesh: hingeLeaf({ knuckleRadiusMm: 4, pinRadiusMm: 1.6, leafLengthMm: 30, leafThicknessMm: 3, widthMm: 18, segments: 96 }) },
-    { name: 'Arm hinge leaf', kind: 'hinge', mesh: hingeLeaf({ knuckleRadiusMm: 6, pinRadiusMm: 2.5, leafLengthMm: 45, leafThicknessMm: 4, widthMm: 24, segments: 128 }) },
-    { name: 'Cable guide 8', kind: 'cable-guide', mesh: cableGuide({ channelWidthMm: 8, channelDepthMm: 6, wallMm: 2, flangeMm: 8, lengthMm: 30 }) },
-    { name: 'Cable guide 16', kind: 'cable-guide', mesh: cableGuide({ channelWidthMm: 16, channelDepthMm: 10, wallMm: 2.5, flangeMm: 10, lengthMm: 40 }) },
+    { name: 'Motor bracket 40', kind: 'bracket', throughHoles: 0, mesh: bracket({ legAMm: 40, legBMm: 30, thicknessMm: 4, widthMm: 20, gussetMm: 6 }) },
+    { name: 'Corner plate 50', kind: 'bracket', throughHoles: 3, mesh: cornerPlate({ legMm: 50, widthMm: 14, thicknessMm: 3, holeRadiusMm: 2.2, holeSegments: 24 }) },
+    { name: 'Motor mount plate 42', kind: 'bracket', throughHoles: 5, mesh: mountPlate({ sizeMm: 42, thicknessMm: 4, cornerRadiusMm: 4, holeSpacingMm: 31, holeRadiusMm: 1.7, boreRadiusMm: 11, segments: 32 }) },
+    { name: 'Sensor bracket 25', kind: 'bracket', throughHoles: 0, mesh: bracket({ legAMm: 25, legBMm: 25, thicknessMm: 3, widthMm: 12, gussetMm: 4 }) },
+    { name: 'Tube clip 12', kind: 'clip', throughHoles: 0, mesh: clip({ innerRadiusMm: 6, wallMm: 2, gapDeg: 70, widthMm: 10, segments: 48 }) },
+    { name: 'Tube clip 20', kind: 'clip', throughHoles: 0, mesh: clip({ innerRadiusMm: 10, wallMm: 2.5, gapDeg: 60, widthMm: 14, segments: 64 }) },
+    { name: 'Drive gear 24T', kind: 'gear', throughHoles: 1, mesh: gear({ teeth: 24, rootRadiusMm: 22, tipRadiusMm: 25, boreRadiusMm: 4, thicknessMm: 8, samplesPerTooth: 8 }) },
+    { name: 'Idler gear 16T', kind: 'gear', throughHoles: 1, mesh: gear({ teeth: 16, rootRadiusMm: 13, tipRadiusMm: 15.5, boreRadiusMm: 3, thicknessMm: 6, samplesPerTooth: 8 }) },
+    { name: 'Controller housing', kind: 'housing', throughHoles: 0, mesh: housing({ lengthMm: 90, widthMm: 60, heightMm: 30, wallMm: 2.5, floorMm: 3, cornerRadiusMm: 6, cornerSegments: 8 }) },
+    { name: 'Battery housing', kind: 'housing', throughHoles: 0, mesh: housing({ lengthMm: 120, widthMm: 45, heightMm: 40, wallMm: 3, floorMm: 3, cornerRadiusMm: 5, cornerSegments: 8 }) },
+    { name: 'Lid hinge leaf', kind: 'hinge', throughHoles: 1, mesh: hingeLeaf({ knuckleRadiusMm: 4, pinRadiusMm: 1.6, leafLengthMm: 30, leafThicknessMm: 3, widthMm: 18, segments: 96 }) },
+    { name: 'Arm hinge leaf', kind: 'hinge', throughHoles: 1, mesh: hingeLeaf({ knuckleRadiusMm: 6, pinRadiusMm: 2.5, leafLengthMm: 45, leafThicknessMm: 4, widthMm: 24, segments: 128 }) },
+    { name: 'Cable guide 8', kind: 'cable-guide', throughHoles: 0, mesh: cableGuide({ channelWidthMm: 8, channelDepthMm: 6, wallMm: 2, flangeMm: 8, lengthMm: 30 }) },
+    { name: 'Cable guide 16', kind: 'cable-guide', throughHoles: 0, mesh: cableGuide({ channelWidthMm: 16, channelDepthMm: 10, wallMm: 2.5, flangeMm: 10, lengthMm: 40 }) },
   ];
 }

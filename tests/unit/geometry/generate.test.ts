@@ -1,5 +1,8 @@
+import fc from 'fast-check';
 import {
   bracket,
+  cornerPlate,
+  prismWithHoles,
   cableGuide,
   demoLibrary,
   gear,
@@ -31,8 +34,8 @@ describe('demo library meshes', () => {
     expect(m.oriented).toBe(true);
     expect(m.shells).toBe(1);
     expect(m.volumeMm3).toBeGreaterThan(0);
-    // Euler: V - E + F = 2 - 2g; gears and hinge leaves have one through hole, the rest none
-    expect(m.eulerCharacteristic).toBe(part.kind === 'gear' || part.kind === 'hinge' ? 0 : 2);
+    // Euler: V - E + F = 2 - 2g for a closed surface of genus g (one per through hole)
+    expect(m.eulerCharacteristic).toBe(2 - 2 * part.throughHoles);
   });
 
   test.each(library.map((p) => [p.name, p] as const))('%s survives binary STL, ASCII STL and 3MF unchanged', (_name, part) => {
@@ -66,6 +69,49 @@ describe('shape builders', () => {
     const m = measureMesh(bracket({ legAMm: 40, legBMm: 30, thicknessMm: 4, widthMm: 20, gussetMm: 6 }));
     expect(m.volumeMm3).toBeCloseTo((40 * 4 + 26 * 4 + 18) * 20, 9);
     expect(m.sizeMm).toEqual([40, 30, 20]);
+  });
+
+  test('a corner plate is its L outline less three polygonal holes, times its thickness (elementary)', () => {
+    const p = { legMm: 50, widthMm: 14, thicknessMm: 3, holeRadiusMm: 2.2, holeSegments: 24 };
+    // a regular n-gon inscribed in radius r has area (n / 2) r^2 sin(2 pi / n)
+    const hole = (p.holeSegments / 2) * p.holeRadiusMm ** 2 * Math.sin((2 * Math.PI) / p.holeSegments);
+    const outline = 2 * p.legMm * p.widthMm - p.widthMm ** 2;
+    const m = measureMesh(cornerPlate(p));
+    expect(m.volumeMm3).toBeCloseTo((outline - 3 * hole) * p.thicknessMm, 9);
+    expect(m.eulerCharacteristic).toBe(2 - 2 * 3);
+    expect(m.watertight && m.oriented).toBe(true);
+  });
+
+  test('holes joined to the outline in any order still give a closed plate', () => {
+    const outer: [number, number][] = [[0, 0], [60, 0], [60, 20], [0, 20]];
+    const square = (x: number, y: number): [number, number][] => [[x, y], [x, y + 4], [x + 4, y + 4], [x + 4, y]]; // clockwise
+    const m = measureMesh(prismWithHoles(outer, [square(5, 8), square(45, 8), square(25, 3), square(25, 13)], 0, 2));
+    expect(m.volumeMm3).toBeCloseTo((1200 - 4 * 16) * 2, 9);
+    expect(m.eulerCharacteristic).toBe(2 - 2 * 4);
+    expect(m.watertight && m.oriented).toBe(true);
+  });
+
+  test('any set of separate round holes in a plate gives a closed plate of genus equal to the hole count', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.record({ cell: fc.integer({ min: 0, max: 11 }), dx: fc.double({ min: -1, max: 1, noNaN: true }), dy: fc.double({ min: -1, max: 1, noNaN: true }), r: fc.double({ min: 0.5, max: 2.5, noNaN: true }), n: fc.integer({ min: 3, max: 16 }) }), { maxLength: 12 }),
+        (specs) => {
+          // one hole per cell of a 4 x 3 grid of 10 mm cells, so holes never touch
+          const unique = [...new Map(specs.map((h) => [h.cell, h])).values()];
+          const holes = unique.map((h) => {
+            const cx = 5 + 10 * (h.cell % 4) + h.dx;
+            const cy = 5 + 10 * Math.floor(h.cell / 4) + h.dy;
+            return Array.from({ length: h.n }, (_, i) => [cx + h.r * Math.cos((-2 * Math.PI * i) / h.n), cy + h.r * Math.sin((-2 * Math.PI * i) / h.n)] as [number, number]);
+          });
+          const holeArea = unique.reduce((sum, h) => sum + (h.n / 2) * h.r ** 2 * Math.sin((2 * Math.PI) / h.n), 0);
+          const m = measureMesh(prismWithHoles([[0, 0], [40, 0], [40, 30], [0, 30]], holes, 0, 2));
+          expect(m.watertight && m.oriented).toBe(true);
+          expect(m.eulerCharacteristic).toBe(2 - 2 * holes.length);
+          expect(m.volumeMm3).toBeCloseTo((1200 - holeArea) * 2, 6);
+        },
+      ),
+      { numRuns: 100 },
+    );
   });
 
   test('a cable guide matches its U-channel profile area times its length (elementary)', () => {
