@@ -25,6 +25,8 @@ interface Job {
 
 interface Slot {
   worker: Worker;
+  /** The worker has loaded its code (it says so once). */
+  ready: boolean;
   job: (Job & { id: number; timer: NodeJS.Timeout }) | null;
 }
 
@@ -45,6 +47,9 @@ export class MeshPool {
   private readonly timeoutMs: number;
   private nextId = 1;
   private closed = false;
+  /** Workers lost in a row before they loaded: a worker that cannot even start must not be respawned forever. */
+  private failuresInARow = 0;
+  private static readonly MAX_FAILURES_IN_A_ROW = 5;
 
   constructor(options: MeshPoolOptions = {}) {
     const size = options.size ?? Math.min(4, Math.max(1, Math.floor(availableParallelism() / 2)));
@@ -78,7 +83,7 @@ export class MeshPool {
   }
 
   private makeSlot(): Slot {
-    const slot: Slot = { worker: spawnWorker(), job: null };
+    const slot: Slot = { worker: spawnWorker(), ready: false, job: null };
     this.attach(slot);
     return slot;
   }
@@ -86,7 +91,12 @@ export class MeshPool {
   private attach(slot: Slot): void {
     const worker = slot.worker;
     worker.unref();
-    worker.on('message', (reply: MeasureReply) => {
+    worker.on('message', (reply: MeasureReply | { ready: true }) => {
+      if ('ready' in reply) {
+        slot.ready = true;
+        this.failuresInARow = 0;
+        return;
+      }
       const job = slot.job;
       if (!job || job.id !== reply.id) return;
       clearTimeout(job.timer);
@@ -113,7 +123,17 @@ export class MeshPool {
     }
     const old = slot.worker;
     if (this.closed) return;
+    // Only workers that died before loading count: a file that crashes a worker must not switch measuring off.
+    if (!slot.ready) this.failuresInARow++;
+    if (this.failuresInARow >= MeshPool.MAX_FAILURES_IN_A_ROW) {
+      this.closed = true;
+      const error = new Error('the mesh measuring workers keep failing to start; measuring is unavailable');
+      for (const waiting of this.queue.splice(0)) waiting.reject(error);
+      void Promise.all(this.slots.map((s) => s.worker.terminate()));
+      return;
+    }
     slot.worker = spawnWorker();
+    slot.ready = false;
     this.attach(slot);
     void old.terminate();
     this.dispatch();

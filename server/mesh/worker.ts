@@ -23,3 +23,5 @@ port.on('message', async (request: MeasureRequest) => {
   }
   port.postMessage(reply);
 });
+
+port.postMessage({ ready: true });
