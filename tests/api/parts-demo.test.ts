@@ -1,0 +1,42 @@
+import { agent, startTestApp } from '../helpers/app';
+import type { Running } from '../../server/boot';
+import { DEMO_LAB_NAME, DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { demoLibrary } from '../../shared/geometry';
+
+let running: Running;
+beforeAll(async () => {
+  running = await startTestApp();
+});
+afterAll(async () => {
+  await running.close();
+});
+
+// `npm test` seeds the demo lab into the fresh test database before the suite runs.
+describe('the demo lab', () => {
+  test('has the generated part library, measured as closed meshes, and the designer\'s requests', async () => {
+    const a = agent(running);
+    const me = await a.post('/api/auth/sign-in').send({ email: 'designer@tinkerfin.example', password: DEMO_PASSWORD });
+    expect(me.status).toBe(200);
+    const lab = me.body.labs.find((l: { name: string }) => l.name === DEMO_LAB_NAME);
+    expect(lab).toBeDefined();
+    const parts = await a.get(`/api/labs/${lab.id}/parts`).query({ pageSize: 200, sort: 'name' });
+    expect(parts.status).toBe(200);
+    const expected = demoLibrary().map((p) => p.name).sort((x, y) => x.toLowerCase().localeCompare(y.toLowerCase()));
+    expect(parts.body.items.map((p: { name: string }) => p.name)).toEqual(expected);
+    for (const p of parts.body.items) {
+      expect(p.watertight).toBe(true);
+      expect(p.volumeMm3).toBeGreaterThan(0);
+      expect(p.uploadedBy.name).toBe('Demo Designer');
+      expect(p.materialName).not.toBeNull();
+    }
+    const formats = new Set(parts.body.items.map((p: { file: { format: string } }) => p.file.format));
+    expect(formats).toEqual(new Set(['stl', '3mf']));
+    const hinges = parts.body.items.filter((p: { file: { name: string } }) => p.file.name === 'hinge-set.3mf');
+    expect(hinges).toHaveLength(2);
+
+    const requests = await a.get(`/api/labs/${lab.id}/requests`).query({ status: 'open' });
+    expect(requests.body.total).toBeGreaterThanOrEqual(3);
+    expect(requests.body.items[0].priority).toBe('urgent');
+    for (const r of requests.body.items) expect(r.lines.length).toBeGreaterThan(0);
+  });
+});
