@@ -41,7 +41,6 @@ const FILE_CONTENT_TYPES = { stl: 'model/stl', obj: 'model/obj', '3mf': 'model/3
 /** The file name without any folders a browser or tool may have sent along. */
 export function plainFileName(name: string): string {
   const last = name.split(/[\\/]/).pop() ?? '';
-  // eslint-disable-next-line no-control-regex
   return last.replace(/[\u0000-\u001f\u007f]/g, '').slice(0, 255) || 'unnamed';
 }
 

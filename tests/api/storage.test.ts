@@ -9,7 +9,6 @@ import type { S3StorageConfig } from '../../server/config';
 import { sha256Bytes } from '../../server/storage';
 import { prism, writeBinaryStl } from '../../shared/geometry';
 
-// eslint-disable-next-line @typescript-eslint/no-require-imports
 const S3rver = require('s3rver');
 
 const BUCKET = 'sinterstack-files';
