@@ -23,7 +23,7 @@
  *        |  | .[]  [] []  [] . |
  *        +--+------------------+--> x   chamber outline, floor grid
  */
-import { Html, OrbitControls } from '@react-three/drei';
+import { AdaptiveDpr, Html, OrbitControls } from '@react-three/drei';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
 import { forwardRef, memo, useEffect, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
@@ -79,6 +79,8 @@ export interface ChamberViewProps {
   onFirstFrame?: (msSinceNavigation: number) => void;
   /** The fit / top / front / side buttons; shown unless false. */
   showToolbar?: boolean;
+  /** Device pixel ratio range; the view drops to half of it while the camera moves. */
+  dpr?: number | [number, number];
   style?: StyleProp<ViewStyle>;
 }
 
@@ -106,7 +108,7 @@ interface HoverState {
 }
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView(props, ref) {
-  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, style } = props;
+  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, dpr = [1, 1.5], style } = props;
   const controller = useRef<Controller | null>(null);
   const cutRef = useRef<number | null>(cutHeightMm ?? null);
 
@@ -127,7 +129,10 @@ export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(funct
     <View style={[styles.frame, style]} testID="chamber-view">
       <Canvas
         frameloop="demand"
-        dpr={[1, 1.5]}
+        dpr={dpr}
+        // Thousands of parts fill many pixels: while the camera moves (or the hover changes) render at half
+        // resolution, then once more at full resolution when it settles.
+        performance={{ min: 0.5, debounce: 250 }}
         camera={{ up: [0, 0, 1], fov: VIEW_FOV_DEG, position: [span, -span, span], near: 1, far: span * 20 }}
         gl={{ antialias: true, powerPreference: 'high-performance' }}
         style={{ width: '100%', height: '100%' }}
@@ -171,6 +176,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const controls = useThree((s) => s.controls) as unknown as { target: THREE.Vector3; update(): void } | null;
   const size = useThree((s) => s.size);
   const invalidate = useThree((s) => s.invalidate);
+  const regress = useThree((s) => s.performance.regress);
   const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
 
   const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]);
@@ -224,7 +230,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     invalidate();
   }, [controls, chamberBounds]);
 
-  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);
+  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, regress, placements), [callbacks, cutRef, invalidate, regress, placements]);
 
   const parts: React.ReactNode[] = [];
   for (let k = 0; k < groups.parts.length; k++) {
@@ -255,7 +261,8 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
       <BoxOutline min={usable.min} max={usable.max} colour={sceneColours.usable} opacity={0.55} />
       <FloorGrid sizeMm={Math.max(chamberMm[0], chamberMm[1])} centre={[chamberMm[0] / 2, chamberMm[1] / 2]} stepMm={gridStep} />
       <HoverLabel handle={label} />
-      <OrbitControls makeDefault enableDamping={false} />
+      <OrbitControls makeDefault enableDamping={false} regress />
+      <AdaptiveDpr />
       <FirstFrame callbacks={callbacks} placements={placements.partIndex.length} parts={groups.parts.length} />
     </>
   );
@@ -283,6 +290,7 @@ function makeEvents(
   callbacks: SceneProps['callbacks'],
   label: React.MutableRefObject<{ show(at: Vec3 | null, text: string): void } | null>,
   invalidate: () => void,
+  regress: () => void,
   placements: ChamberPlacements,
 ): PartEvents {
   // A ray ignores clipping: a hit above the cut lands on a part that is not drawn, so let the event pass to the next hit.
@@ -320,6 +328,7 @@ function makeEvents(
       label.current?.show(null, '');
     }
     callbacks.current.onHover?.(placement);
+    regress();
     invalidate();
   };
 

@@ -20,7 +20,7 @@ import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
 import * as THREE from 'three';
 import { colors } from '../theme';
 import { boundsOf, formatMm, sizeOf, type Bounds, type Vec3 } from './math';
-import { BoxOutline, BuildArrow, FitOnLoad, FloorGrid, Lights, VIEW_FOV_DEG, labelStyle, sceneColours } from './scene';
+import { BoxOutline, BuildArrow, FitOnLoad, FloorGrid, Lights, VIEW_FOV_DEG, labelStyle, sceneColours, useMounted } from './scene';
 
 export interface PartPreviewProps {
   mesh: { positions: Float32Array; indices: Uint32Array };
@@ -75,24 +75,41 @@ export function PartPreview({ mesh, sizeMm, style, accessibilityLabel }: PartPre
           </mesh>
         </group>
         <BoxOutline min={box.min} max={box.max} colour={sceneColours.outline} opacity={0.8} />
-        <Html position={[0, box.min[1], 0]} center zIndexRange={[10, 0]}>
-          <div style={labelStyle}>x {formatMm(labelSize[0])}</div>
-        </Html>
-        <Html position={[box.max[0], 0, 0]} center zIndexRange={[10, 0]}>
-          <div style={labelStyle}>y {formatMm(labelSize[1])}</div>
-        </Html>
-        <Html position={[box.max[0], box.min[1], box.max[2] / 2]} center zIndexRange={[10, 0]}>
-          <div style={labelStyle}>z {formatMm(labelSize[2])}</div>
-        </Html>
+        <DimensionLabels box={box} labelSize={labelSize} />
         <BuildArrow origin={arrowAt} lengthMm={Math.max(span * 0.45, 1)} />
-        <Html position={[arrowAt[0], arrowAt[1], span * 0.5]} center zIndexRange={[10, 0]}>
-          <div style={{ ...labelStyle, color: colors.ember }}>build +z</div>
-        </Html>
+        <ArrowLabel at={[arrowAt[0], arrowAt[1], span * 0.5]} />
         <FloorGrid sizeMm={span * 2} centre={[0, 0]} stepMm={gridStep} />
         <OrbitControls makeDefault enableDamping={false} />
         <FitOnLoad bounds={{ min: [box.min[0] - span * 0.2, box.min[1] - span * 0.2, 0], max: box.max }} />
       </Canvas>
     </View>
+  );
+}
+
+/** The x, y and z extents, each at the middle of a bottom or upright edge of the box. */
+function DimensionLabels({ box, labelSize }: { box: Bounds; labelSize: Vec3 }) {
+  if (!useMounted()) return null;
+  return (
+    <>
+      <Html position={[0, box.min[1], 0]} center zIndexRange={[10, 0]}>
+        <div style={labelStyle}>x {formatMm(labelSize[0])}</div>
+      </Html>
+      <Html position={[box.max[0], 0, 0]} center zIndexRange={[10, 0]}>
+        <div style={labelStyle}>y {formatMm(labelSize[1])}</div>
+      </Html>
+      <Html position={[box.max[0], box.min[1], box.max[2] / 2]} center zIndexRange={[10, 0]}>
+        <div style={labelStyle}>z {formatMm(labelSize[2])}</div>
+      </Html>
+    </>
+  );
+}
+
+function ArrowLabel({ at }: { at: [number, number, number] }) {
+  if (!useMounted()) return null;
+  return (
+    <Html position={at} center zIndexRange={[10, 0]}>
+      <div style={{ ...labelStyle, color: colors.ember }}>build +z</div>
+    </Html>
   );
 }
 

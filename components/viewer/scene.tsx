@@ -4,7 +4,7 @@
  * direction of a powder bed.
  */
 import { useThree } from '@react-three/fiber';
-import { useEffect, useMemo } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import * as THREE from 'three';
 import { colors, fonts } from '../theme';
 import { fitCamera, type Bounds, type ViewName } from './math';
@@ -124,4 +124,16 @@ export function Lights({ span }: { span: number }) {
       <directionalLight position={[-span, span * 0.8, span * 0.6]} intensity={0.5} />
     </>
   );
+}
+
+/**
+ * True from the render after mount. drei's Html mounted in the canvas's very
+ * first commit can lose its content when the canvas connects its event
+ * target in that same commit (seen with three labels: the first stayed
+ * empty), so labels wait one render.
+ */
+export function useMounted(): boolean {
+  const [mounted, setMounted] = useState(false);
+  useEffect(() => setMounted(true), []);
+  return mounted;
 }
