@@ -46,9 +46,10 @@ export function ProfileForm<P>({ groups, schema, initial, readOnly, submitLabel,
   };
 
   const submit = () => {
-    const parsed = schema.safeParse(profileFrom(groups, values));
+    const input = profileFrom(groups, values);
+    const parsed = schema.safeParse(input);
     if (!parsed.success) {
-      setLocalErrors(profileErrors(groups, parsed.error));
+      setLocalErrors(profileErrors(groups, parsed.error, input));
       return;
     }
     setLocalErrors({});

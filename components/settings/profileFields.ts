@@ -24,7 +24,7 @@ export const machineFieldGroups: FieldGroup[] = [
       { key: 'coolingInMachinePerHour', label: 'Cooling constant in the machine', unit: '1/h', kind: 'number', hint: "Newton's law constant for the reference cake." },
       { key: 'coolingOutsidePerHour', label: 'Cooling constant outside', unit: '1/h', kind: 'number' },
       { key: 'removalTempC', label: 'Removal temperature', unit: '°C', kind: 'number', hint: 'The chamber may leave the machine below this.' },
-      { key: 'handlingTempC', label: 'Handling temperature', unit: '°C', kind: 'number', hint: 'The cake may be broken out by hand below this.' },
+      { key: 'handlingTempC', label: 'Handling temperature', unit: '°C', kind: 'number', hint: "The cake may be broken out by hand below this. Set it from the machine maker's instructions and the lab's local codes." },
       { key: 'ambientTempC', label: 'Room temperature', unit: '°C', kind: 'number' },
     ],
   },

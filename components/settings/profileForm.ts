@@ -70,12 +70,15 @@ export function profileFrom(groups: FieldGroup[], values: FormValues): Record<st
 const axes = ['X', 'Y', 'Z'];
 
 /** One readable message per issue, in the words of a lab form rather than a type checker. */
-export function describeIssue(issue: z.core.$ZodIssue, spec?: FieldSpec): string {
-  const i = issue as z.core.$ZodIssue & { minimum?: number | bigint; maximum?: number | bigint; inclusive?: boolean; origin?: string; expected?: string; input?: unknown };
+export function describeIssue(issue: z.core.$ZodIssue, spec?: FieldSpec, input?: Record<string, unknown>): string {
+  const i = issue as z.core.$ZodIssue & { minimum?: number | bigint; maximum?: number | bigint; inclusive?: boolean; origin?: string; expected?: string };
+  // Zod leaves the offending input out of its issues; read it from what was parsed.
+  let given: unknown = input;
+  for (const key of issue.path) given = (given as Record<PropertyKey, unknown> | undefined)?.[key as PropertyKey];
   let text: string;
   switch (i.code) {
     case 'invalid_type':
-      text = i.input === undefined ? 'Required.' : i.expected === 'int' ? 'Enter a whole number.' : i.expected === 'number' ? 'Enter a number.' : 'Not valid here.';
+      text = given === undefined || given === '' ? 'Required.' : i.expected === 'int' ? 'Enter a whole number.' : i.expected === 'number' ? 'Enter a number.' : 'Not valid here.';
       break;
     case 'too_small':
       if (i.origin === 'array') text = `Give at least ${i.minimum} value${Number(i.minimum) === 1 ? '' : 's'}.`;
@@ -96,12 +99,12 @@ export function describeIssue(issue: z.core.$ZodIssue, spec?: FieldSpec): string
   return text;
 }
 
-export function profileErrors(groups: FieldGroup[], error: z.ZodError): Record<string, string> {
+export function profileErrors(groups: FieldGroup[], error: z.ZodError, input?: Record<string, unknown>): Record<string, string> {
   const specs = new Map(groups.flatMap((g) => g.fields).map((f) => [f.key, f]));
   const out: Record<string, string> = {};
   for (const issue of error.issues) {
     const key = String(issue.path[0] ?? '');
-    if (!(key in out)) out[key] = describeIssue(issue, specs.get(key));
+    if (!(key in out)) out[key] = describeIssue(issue, specs.get(key), input);
   }
   return out;
 }
