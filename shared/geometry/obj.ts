@@ -13,6 +13,7 @@
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult } from './types';
 import { baseName } from './stl';
 import { weldExact } from './weld';
+import { decodeText } from './text';
 
 export interface ObjOptions {
   filename: string;
@@ -23,8 +24,7 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
   const name = quoteName(options.filename);
   const scale = MM_PER_UNIT[options.unit ?? 'mm'];
   if (bytes.length === 0) return refuse('empty-file', `${name} is empty (0 bytes).`);
-  let text = '';
-  for (let i = 0; i < bytes.length; i += 8192) text += String.fromCharCode(...bytes.subarray(i, i + 8192));
+  const text = decodeText(bytes);
 
   let positions = new Float64Array(3 * 1024);
   let vertexCount = 0;

@@ -13,6 +13,7 @@
  */
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult } from './types';
 import { VertexWelder } from './weld';
+import { decodeText } from './text';
 
 export interface StlOptions {
   filename: string;
@@ -87,9 +88,7 @@ function parseBinary(bytes: Uint8Array, count: number, filename: string, scale: 
 
 function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseResult {
   const name = quoteName(filename);
-  let text = '';
-  // Chunked decoding keeps String.fromCharCode's argument list short; STL keywords and numbers are ASCII.
-  for (let i = 0; i < bytes.length; i += 8192) text += String.fromCharCode(...bytes.subarray(i, i + 8192));
+  const text = decodeText(bytes);
   const welder = new VertexWelder(1024);
   const f32 = new Float32Array(3);
   const u32 = new Uint32Array(f32.buffer);
@@ -97,25 +96,44 @@ function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseRe
   let corners = 0;
   let inLoop = false;
   let loopCorners = 0;
-  let line = 0;
-  let pos = 0;
+  let line = 1;
+  let i = 0;
   const n = text.length;
-  while (pos < n) {
-    let end = text.indexOf('\n', pos);
-    if (end < 0) end = n;
-    line++;
-    const raw = text.slice(pos, end).trim();
-    pos = end + 1;
-    if (raw === '') continue;
-    const fields = raw.split(/\s+/);
-    const keyword = fields[0].toLowerCase();
+  // Scans words in place: whitespace (counting lines), then a keyword and its arguments.
+  const skipToLineEnd = () => {
+    const end = text.indexOf('\n', i);
+    i = end < 0 ? n : end;
+  };
+  const nextWord = (): string | null => {
+    while (i < n) {
+      const c = text.charCodeAt(i);
+      if (c === 10) {
+        if (wordsOnLine) return null;
+        line++;
+      } else if (c > 32) break;
+      i++;
+    }
+    if (i >= n) return null;
+    const from = i;
+    while (i < n && text.charCodeAt(i) > 32) i++;
+    return text.slice(from, i);
+  };
+  // Vertex arguments must stay on their line; keywords may follow any whitespace.
+  let wordsOnLine = false;
+  for (;;) {
+    wordsOnLine = false;
+    const word = nextWord();
+    if (word === null) break;
+    const keyword = word.toLowerCase();
     if (keyword === 'vertex') {
       if (!inLoop) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex outside an "outer loop".`);
-      if (fields.length < 4) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
+      wordsOnLine = true;
       for (let k = 0; k < 3; k++) {
-        const value = readNumber(fields[k + 1]);
-        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(fields[k + 1])) {
-          return refuse('stl-ascii-syntax', `${name}, line ${line}: "${fields[k + 1].slice(0, 40)}" is not a number.`);
+        const field = nextWord();
+        if (field === null) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
+        const value = readNumber(field);
+        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(field)) {
+          return refuse('stl-ascii-syntax', `${name}, line ${line}: "${field.slice(0, 40)}" is not a number.`);
         }
         if (!Number.isFinite(value)) {
           return refuse('non-finite-coordinate', `${name}, line ${line}: a coordinate is not a number or is infinite.`);
@@ -133,15 +151,17 @@ function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseRe
     } else if (keyword === 'outer') {
       inLoop = true;
       loopCorners = 0;
+      skipToLineEnd();
     } else if (keyword === 'endloop') {
       if (loopCorners !== 3) {
         return refuse('stl-ascii-syntax', `${name}, line ${line}: a facet has ${loopCorners} vertices instead of three.`);
       }
       inLoop = false;
-    } else if (keyword === 'solid' || keyword === 'facet' || keyword === 'endfacet' || keyword === 'endsolid') {
-      continue;
-    } else {
-      return refuse('stl-ascii-syntax', `${name}, line ${line}: unexpected "${fields[0].slice(0, 40)}".`);
+    } else if (keyword === 'solid' || keyword === 'facet' || keyword === 'endsolid') {
+      // a name or the facet normal follows: not needed, the normal comes from the corner order
+      skipToLineEnd();
+    } else if (keyword !== 'endfacet') {
+      return refuse('stl-ascii-syntax', `${name}, line ${line}: unexpected "${word.slice(0, 40)}".`);
     }
   }
   if (inLoop) return refuse('stl-ascii-syntax', `${name} ends inside a facet: the file may be truncated.`);
