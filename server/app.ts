@@ -14,12 +14,16 @@ import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
 import { partRoutes } from './http/routes/parts';
 import { requestRoutes } from './http/routes/requests';
+import { planRoutes } from './http/routes/plans';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
 import { invitesService } from './services/invites';
 import { profilesService } from './services/profiles';
 import { partsService } from './services/parts';
 import { requestsService } from './services/requests';
+import { plansService } from './services/plans';
+import { layoutsService } from './services/layouts';
+import { reviewService } from './services/review';
 import { createStorage } from './storage';
 import { machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
 
@@ -43,7 +47,11 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes });
   const requests = requestsService(db, parts);
-  return { labs, auth, invites, machines, materials, storage, parts, requests };
+  const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
+  // calibrationFor: the machine's fitted estimate factors, once recorded runs are kept.
+  const layouts = layoutsService(db, {});
+  const review = reviewService(db, { plans, appUrl: config.appUrl });
+  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -77,6 +85,7 @@ export function createApp(deps: AppDeps) {
   api.use(labRoutes(deps));
   api.use(partRoutes(deps));
   api.use(requestRoutes(deps));
+  api.use(planRoutes(deps.services));
   api.use(notFoundRoute);
   api.use(errorHandler(deps.log));
   app.use('/api', api);

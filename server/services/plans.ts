@@ -282,10 +282,10 @@ async function insertLines(db: Database, planId: string, lines: LineInput[], tra
   lines.forEach((l, i) => {
     bind.push(l.requestLineId, i, l.quantity, l.orientation ?? null);
     const k = bind.length;
-    values.push(`(gen_random_uuid(), $1, $${k - 3}, $${k - 2}, $${k - 1}, $${k})`);
+    values.push(`(gen_random_uuid(), $1, $${k - 3}, $${k - 2}, $${k - 1}, $${k}, now(), now())`);
   });
   await db.sequelize.query(
-    `INSERT INTO plan_lines (id, plan_id, request_line_id, position, quantity, orientation) VALUES ${values.join(', ')}`,
+    `INSERT INTO plan_lines (id, plan_id, request_line_id, position, quantity, orientation, created_at, updated_at) VALUES ${values.join(', ')}`,
     { bind, transaction },
   );
 }
@@ -551,7 +551,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       const leads = (await deps.labs.members(labId)).filter((m) => m.roles.includes('lead')).map((m) => m.email);
       const notified = await notify(
         leads,
-        `Plan "${plan.name}" is waiting for your review`,
+        `Waiting for your review: plan ${plan.name}`,
         [
           `${user.name} sent the build plan "${plan.name}" for review.`,
           ...(comment ? ['', `Their note: ${comment}`] : []),

@@ -55,7 +55,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
           input.decision === 'approve'
             ? await deps.plans.notify(
                 [planner.email],
-                `Plan "${plan.name}" was approved`,
+                `Approved: plan ${plan.name}`,
                 [
                   `${user.name} approved the build plan "${plan.name}". It is number ${queuePosition} in its machine's queue.`,
                   ...(comment ? ['', `Comment: ${comment}`] : []),
@@ -65,7 +65,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
               )
             : await deps.plans.notify(
                 [planner.email],
-                `Plan "${plan.name}" needs changes`,
+                `Needs changes: plan ${plan.name}`,
                 [`${user.name} sent the build plan "${plan.name}" back with this comment:`, '', comment ?? '', '', 'Open it to make the changes and send it again:', link].join('\n'),
               );
       }

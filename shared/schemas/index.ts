@@ -1,3 +1,4 @@
 export * from './auth';
 export * from './parts';
 export * from './requests';
+export * from './plans';

@@ -1,4 +1,5 @@
 import { DataTypes, type ModelStatic, type Model, type Sequelize } from 'sequelize';
+import { planModels, type PlanModels } from './plans';
 
 type AnyModel = ModelStatic<Model<any, any>>;
 export type Models = {
@@ -12,7 +13,7 @@ export type Models = {
   Part: AnyModel;
   Request: AnyModel;
   RequestLine: AnyModel;
-};
+} & PlanModels;
 
 const base = { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' } as const;
 
@@ -79,7 +80,7 @@ export function initModels(sequelize: Sequelize): Models {
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Lab, { foreignKey: 'labId', as: 'lab' });
-  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize) };
+  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize), ...planModels(sequelize) };
 }
 
 /** Stored files, parts, requests and request lines. */

@@ -1,0 +1,142 @@
+import { createHash, randomBytes } from 'node:crypto';
+import type { Running } from '../../server/boot';
+import { signUp } from './app';
+import { demoMachines, demoMaterials } from '../../shared/demo/profiles';
+import {
+  INSTANCE_FORMAT,
+  parseInstance,
+  summariseLayout,
+  usableRegion,
+  type Orientation,
+  type PackInstance,
+  type PackInstanceInput,
+  type PackResult,
+  type Placement,
+} from '../../shared/packing';
+
+type Agent = Awaited<ReturnType<typeof signUp>>['agent'];
+
+/** A lead's new lab with one machine and one material made through the API. */
+export async function labWithProfiles(running: Running, tag: string) {
+  const owner = await signUp(running, tag);
+  const machine = { ...demoMachines[1], name: `Machine of ${tag}` };
+  const material = { ...demoMaterials[0], name: `Powder of ${tag}` };
+  const m = await owner.agent.post(`/api/labs/${owner.labId}/machines`).send(machine);
+  const mt = await owner.agent.post(`/api/labs/${owner.labId}/materials`).send(material);
+  if (m.status !== 201 || mt.status !== 201) throw new Error(`profiles failed: ${m.status} ${mt.status}`);
+  return { ...owner, machineId: m.body.id as string, materialId: mt.body.id as string, machine, material };
+}
+
+export type FixturePart = { name: string; sizeMm: [number, number, number]; quantity: number; orientation?: 'any' | 'keep_up' | 'fixed' };
+
+/**
+ * A request with one line per part, written straight into the tables the
+ * part library and the requests use (the mesh bytes are a stand-in: plans
+ * read only the measured sizes and volumes).
+ */
+export async function makeRequest(
+  running: Running,
+  labId: string,
+  userId: string,
+  materialId: string,
+  parts: FixturePart[],
+  opts: { title?: string; dueDate?: string; priority?: string; status?: string } = {},
+) {
+  const q = (sql: string, bind: unknown[]) => running.db.sequelize.query(sql, { bind }) as Promise<[any[], unknown]>;
+  const [[req]] = await q(
+    `INSERT INTO requests (id, lab_id, title, material_id, due_date, priority, notes, status, created_by, created_at, updated_at)
+     VALUES (gen_random_uuid(), $1, $2, $3, $4, $5, '', $6, $7, now(), now()) RETURNING id`,
+    [labId, opts.title ?? 'Fixture request', materialId, opts.dueDate ?? '2027-03-01', opts.priority ?? 'normal', opts.status ?? 'open', userId],
+  );
+  const lines: Array<{ id: string; partId: string; quantity: number; sizeMm: [number, number, number]; name: string }> = [];
+  for (const [i, part] of parts.entries()) {
+    const bytes = randomBytes(32);
+    const key = createHash('sha256').update(bytes).digest('hex');
+    await q(`INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, 32, 'postgres', $2, 1, now())`, [key, bytes]);
+    const [x, y, z] = part.sizeMm;
+    const [[p]] = await q(
+      `INSERT INTO parts (id, lab_id, name, tags, file_key, file_name, file_format, file_unit, file_split, file_part_index,
+                          uploaded_size_mm, rotation_deg, size_x_mm, size_y_mm, size_z_mm, volume_mm3, area_mm2, triangles,
+                          watertight, metrics, warnings, orientation, default_material_id, uploaded_by, created_at, updated_at)
+       VALUES (gen_random_uuid(), $1, $2, '{}', $3, $4, 'stl', 'mm', false, 0, $5::double precision[], '{0,0,0}', $6, $7, $8, $9, $10, 12,
+               true, '{}'::jsonb, '[]'::jsonb, $11, $12, $13, now(), now()) RETURNING id`,
+      [labId, part.name, key, `${part.name}.stl`, [x, y, z], x, y, z, x * y * z, 2 * (x * y + y * z + x * z), part.orientation ?? 'any', materialId, userId],
+    );
+    const [[line]] = await q(
+      `INSERT INTO request_lines (id, request_id, part_id, position, quantity, planned_count, printed_count, created_at, updated_at)
+       VALUES (gen_random_uuid(), $1, $2, $3, $4, 0, 0, now(), now()) RETURNING id`,
+      [req.id, p.id, i, part.quantity],
+    );
+    lines.push({ id: line.id, partId: p.id, quantity: part.quantity, sizeMm: part.sizeMm, name: part.name });
+  }
+  return { requestId: req.id as string, lines };
+}
+
+const RULE: Record<string, Orientation[]> = { any: ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'], keep_up: ['xyz', 'yxz'], fixed: ['xyz'] };
+
+/** The packing instance of a plan as the editor builds it: machine chamber, material spacing and margins, one part per line. */
+export function planInstance(
+  plan: { lines: Array<{ requestLineId: string; quantity: number; orientation: string; part: { sizeMm: [number, number, number] } }> },
+  machine: { chamberMm: [number, number, number] },
+  material: { spacingMm: number; marginXyMm: number; marginBottomMm: number; marginTopMm: number; defaultLayerHeightMm: number },
+): PackInstanceInput {
+  return {
+    format: INSTANCE_FORMAT,
+    chamber: machine.chamberMm,
+    margin: { xy: material.marginXyMm, bottom: material.marginBottomMm, top: material.marginTopMm },
+    spacing: material.spacingMm,
+    layerHeight: material.defaultLayerHeightMm,
+    objective: 'min-height',
+    timeLimitMs: 1000,
+    seed: 7,
+    parts: plan.lines.map((l) => ({ id: l.requestLineId, size: l.part.sizeMm, quantity: l.quantity, orientations: RULE[l.orientation] })),
+  };
+}
+
+/**
+ * A valid layout without the engine: every box in its own orientation on a
+ * grid with the instance's spacing, layer after layer, counted by the same
+ * summary the engine uses.
+ */
+export function gridLayout(input: PackInstanceInput): PackResult {
+  const parsed = parseInstance(input);
+  if (!parsed.ok) throw new Error(parsed.problems.map((p) => `${p.field} ${p.message}`).join('; '));
+  const inst: PackInstance = parsed.instance;
+  const { min, max } = usableRegion(inst);
+  const g = inst.spacing;
+  const placements: Placement[] = [];
+  let x = min[0];
+  let y = min[1];
+  let z = min[2];
+  let rowDepth = 0;
+  let layerHeight = 0;
+  for (const part of inst.parts) {
+    const [sx, sy, sz] = part.size;
+    for (let k = 0; k < part.quantity; k++) {
+      if (x + sx > max[0]) {
+        x = min[0];
+        y += rowDepth + g;
+        rowDepth = 0;
+      }
+      if (y + sy > max[1]) {
+        y = min[1];
+        z += layerHeight + g;
+        layerHeight = 0;
+      }
+      if (z + sz > max[2]) throw new Error('the grid does not fit the chamber');
+      placements.push({ id: part.id, position: [x, y, z], size: [sx, sy, sz], orientation: 'xyz' });
+      x += sx + g;
+      rowDepth = Math.max(rowDepth, sy);
+      layerHeight = Math.max(layerHeight, sz);
+    }
+  }
+  return summariseLayout(inst, placements, 12);
+}
+
+/** Creates a plan of every line of a fixture request; returns its id and view. */
+export async function createPlan(lead: Agent, labId: string, machineId: string, materialId: string, lines: Array<{ id: string; quantity: number }>, name = 'Plan') {
+  const res = await lead.post(`/api/labs/${labId}/plans`).send({ name, machineId, materialId, lines: lines.map((l) => ({ requestLineId: l.id, quantity: l.quantity })) });
+  if (res.status !== 201) throw new Error(`plan create failed: ${res.status} ${JSON.stringify(res.body)}`);
+  const view = await lead.get(`/api/labs/${labId}/plans/${res.body.id}`);
+  return { id: res.body.id as string, view: view.body };
+}
