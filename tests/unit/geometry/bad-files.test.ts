@@ -65,6 +65,13 @@ describe('files that are refused, each with a message naming the file', () => {
       },
       'non-finite-coordinate',
     ],
+    [
+      'a truncated binary STL whose header starts with "solid" (common practice: binary headers often do)',
+      () => [handWrittenBinaryStl(box(), 'solid part').subarray(0, 84 + 50 * 12 - 20), 'solid-header.stl'],
+      'stl-size-not-facets',
+    ],
+    ['an ASCII STL vertex with two numbers', () => [enc('solid a\nfacet normal 0 0 0\nouter loop\nvertex 0 0\nvertex 1 0 0\nvertex 0 1 0\nendloop\nendfacet\nendsolid a\n'), 'short-vertex.stl'], 'stl-ascii-syntax'],
+    ['an ASCII STL with an unknown keyword', () => [enc('solid a\nfacet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 1 0 0\nvertex 0 1 0\nendloop\nendfacet\ncolor red\nendsolid a\n'), 'keyword.stl'], 'stl-ascii-syntax'],
     ['an ASCII STL with a NaN coordinate', () => [enc('solid a\nfacet normal 0 0 0\nouter loop\nvertex 0 0 nan\nvertex 1 0 0\nvertex 0 1 0\nendloop\nendfacet\nendsolid a\n'), 'nan-ascii.stl'], 'non-finite-coordinate'],
     ['an ASCII STL with a facet of two vertices', () => [enc('solid a\nfacet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 1 0 0\nendloop\nendfacet\nendsolid a\n'), 'two.stl'], 'stl-ascii-syntax'],
     ['an ASCII STL cut off inside a facet', () => [enc('solid a\nfacet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 1 0 0\n'), 'cut-ascii.stl'], 'stl-ascii-syntax'],

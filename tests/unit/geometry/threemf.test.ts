@@ -147,6 +147,18 @@ describe('3MF packages', () => {
     expect(parts(parse3mf(bytes, { filename: 't.3mf' }))).toHaveLength(1);
   });
 
+  test('a package whose relationships are missing still opens when the model sits at /3D/3dmodel.model', () => {
+    const bytes = zipSync({ '3D/3dmodel.model': strToU8(tetraModel('millimeter')) });
+    expect(parts(parse3mf(bytes, { filename: 't.3mf' }))).toHaveLength(1);
+  });
+
+  test('relationships pointing to a part that is not in the package leave no model', () => {
+    const bytes = zipSync({ '_rels/.rels': strToU8(rels('/3D/elsewhere.model')), 'other.model': strToU8(tetraModel('millimeter')) });
+    const result = parse3mf(bytes, { filename: 't.3mf' });
+    expect(!result.ok && result.problems[0].code).toBe('3mf-no-model');
+    expect(!result.ok && result.problems[0].message).toContain('/3D/elsewhere.model');
+  });
+
   test('several build items become several parts, or one merged part when asked', () => {
     const bytes = write3mf(
       [
