@@ -7,6 +7,7 @@ import { useMachinesQuery } from '../queries/machines';
 import { useMaterialsQuery } from '../queries/materials';
 import { useMeQuery } from '../queries/me';
 import { useMembersQuery } from '../queries/members';
+import { useInvitesQuery } from '../queries/invites';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Badge, EmptyState, Figure, Icon, LinkPressable, Screen, Text } from '../ui';
 
@@ -113,10 +114,17 @@ function LabFigures() {
   const machines = useMachinesQuery(lab.id);
   const materials = useMaterialsQuery(lab.id);
   const members = useMembersQuery(lab.id);
+  const invites = useInvitesQuery(lab.id, lab.isLead);
+  const pendingInvites = invites.data?.filter((i) => !i.acceptedAt && new Date(i.expiresAt).getTime() > Date.now()).length ?? 0;
+  const membersNote = !lab.isLead
+    ? 'people in the lab'
+    : pendingInvites > 0
+      ? `${pendingInvites} invite${pendingInvites === 1 ? '' : 's'} pending`
+      : 'manage roles and invites';
   const items: { key: string; label: string; q: { data?: unknown[]; isError: boolean }; href: Href; note: string }[] = [
     { key: 'machines', label: 'Machines', q: machines, href: '/settings/machines', note: 'powder-bed printers' },
     { key: 'materials', label: 'Materials', q: materials, href: '/settings/materials', note: 'powders in use' },
-    { key: 'members', label: 'Members', q: members, href: '/settings/members', note: lab.isLead ? 'manage roles and invites' : 'people in the lab' },
+    { key: 'members', label: 'Members', q: members, href: '/settings/members', note: membersNote },
   ];
   return (
     <View style={styles.figures} testID="home-section-lab">

@@ -4,6 +4,7 @@ import { fieldErrorsOf } from '../api/client';
 import type { Invite, Role } from '../api/schemas';
 import { roleHints, roleLabels, roles, roleTones, sortRoles } from '../lab/roles';
 import { useLab } from '../lab/useCurrentLab';
+import { useMembersQuery } from '../queries/members';
 import { inviteInputSchema, useCreateInviteMutation, useInvitesQuery, useRevokeInviteMutation } from '../queries/invites';
 import { spacing } from '../theme';
 import { Badge, Button, Card, ConfirmAction, EmptyState, ErrorState, Field, Figure, LoadingState, Notice, Table, Text, ToggleChip, zodFieldErrors, type BadgeTone, type Column } from '../ui';
@@ -122,7 +123,13 @@ function InviteList() {
   const lab = useLab();
   const invites = useInvitesQuery(lab.id, lab.isLead);
   const revoke = useRevokeInviteMutation(lab.id);
+  const members = useMembersQuery(lab.id);
   const now = Date.now();
+  // The server names the inviter by user id; members give the name.
+  const inviterName = (i: Invite) => {
+    const byId = typeof i.invitedBy === 'string' || typeof i.invitedBy === 'number' ? String(i.invitedBy) : undefined;
+    return members.data?.find((m) => m.userId === byId)?.name ?? '–';
+  };
 
   if (invites.isPending) return <LoadingState label="Loading invites…" />;
   if (invites.isError) return <ErrorState error={invites.error} onRetry={() => invites.refetch()} />;
@@ -141,6 +148,7 @@ function InviteList() {
         </View>
       ),
     },
+    { key: 'by', title: 'Invited by', flex: 1, value: inviterName },
     { key: 'sent', title: 'Sent', width: 110, render: (i) => <Figure>{formatDate(i.createdAt)}</Figure> },
     { key: 'expires', title: 'Expires', width: 110, render: (i) => <Figure>{formatDate(i.expiresAt)}</Figure> },
     {
