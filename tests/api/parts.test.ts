@@ -1,4 +1,4 @@
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { strToU8, zipSync } from 'fflate';
 import { addMember, signUp, startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
@@ -57,9 +57,12 @@ const asBytes = (res: unknown, cb: (err: Error | null, body: Buffer) => void) =>
   r.on('end', () => cb(null, Buffer.concat(chunks)));
 };
 
-async function counts() {
+/** Parts in the lab, and stored files holding any of `files`: other suites share the database, so count only this test's own. */
+async function counts(labId: string, files: Uint8Array[] = []) {
+  const keys = files.map((f) => createHash('sha256').update(f).digest('hex'));
   const [[row]] = (await running.db.sequelize.query(
-    'SELECT (SELECT count(*) FROM parts)::int AS parts, (SELECT count(*) FROM files)::int AS files',
+    'SELECT (SELECT count(*) FROM parts WHERE lab_id = $1)::int AS parts, (SELECT count(*) FROM files WHERE key = ANY($2::text[]))::int AS files',
+    { bind: [labId, keys] },
   )) as [{ parts: number; files: number }[], unknown];
   return row;
 }
@@ -186,20 +189,20 @@ describe('uploading parts', () => {
     ['a 3MF without a model', 'nomodel.3mf', () => zipSync({ '_rels/.rels': strToU8(RELS), 'readme.txt': strToU8('hello') }), '3mf-no-model'],
     ['a 3MF with an unknown unit', 'furlong.3mf', () => threeMfWithUnit('furlong'), '3mf-unknown-unit'],
     ['a 3MF that expands past the limit (ZIP bomb)', 'bomb.3mf', zipBomb, '3mf-too-large'],
-    ['a file with a wrong extension', 'drawing.dxf', () => writeBinaryStl(cube(10)), 'unsupported-extension'],
+    ['a file with a wrong extension', 'drawing.dxf', () => uniqueStl(cube(10)), 'unsupported-extension'],
     ['a flat mesh with zero volume', 'flat.stl', () => writeBinaryStl(block(10, 10, 0)), 'zero-volume'],
   ];
   test.each(badFiles)('when %s is uploaded it is refused with 400 naming the file, and nothing is stored', async (_what, name, make, code) => {
     const { agent, labId } = await signUp(running, 'bad');
-    const before = await counts();
-    const res = await agent.post(`/api/labs/${labId}/parts`).attach('file', buf(make()), name);
+    const bytes = make();
+    const res = await agent.post(`/api/labs/${labId}/parts`).attach('file', buf(bytes), name);
     expect(res.status).toBe(400);
     expect(res.body.error.code).toBe('invalid_file');
     expect(res.body.error.message).toContain(`"${name}"`);
     expect(res.body.error.rejected).toHaveLength(1);
     expect(res.body.error.rejected[0].file).toBe(name);
     expect(res.body.error.rejected[0].code.startsWith(code)).toBe(true);
-    expect(await counts()).toEqual(before);
+    expect(await counts(labId, [bytes])).toEqual({ parts: 0, files: 0 });
   });
 
   test('a mix of good and bad files stores the good ones and lists the bad ones as rejected', async () => {
@@ -220,22 +223,21 @@ describe('uploading parts', () => {
     const { agent, labId } = await signUp(running, 'dup');
     // Bytes no other test uploads, so the count is this test's own.
     const bytes = buf(uniqueStl(block(13.25, 7.5, 3.125)));
-    const before = await counts();
     const first = await agent.post(`/api/labs/${labId}/parts`).attach('file', bytes, 'dup-a.stl');
     const second = await agent.post(`/api/labs/${labId}/parts`).attach('file', bytes, 'dup-b.stl');
     expect(first.status).toBe(201);
     expect(second.status).toBe(201);
     expect(second.body.parts[0].file.sha256).toBe(first.body.parts[0].file.sha256);
-    expect(await counts()).toEqual({ parts: before.parts + 2, files: before.files + 1 });
+    expect(await counts(labId, [bytes])).toEqual({ parts: 2, files: 1 });
 
     expect((await agent.delete(`/api/labs/${labId}/parts/${first.body.parts[0].id}`)).status).toBe(204);
-    expect(await counts()).toEqual({ parts: before.parts + 1, files: before.files + 1 });
+    expect(await counts(labId, [bytes])).toEqual({ parts: 1, files: 1 });
     const file = await agent.get(`/api/labs/${labId}/parts/${second.body.parts[0].id}/file`).buffer(true).parse(asBytes);
     expect(file.status).toBe(200);
     expect(Buffer.compare(file.body as Buffer, bytes)).toBe(0);
 
     expect((await agent.delete(`/api/labs/${labId}/parts/${second.body.parts[0].id}`)).status).toBe(204);
-    expect(await counts()).toEqual(before);
+    expect(await counts(labId, [bytes])).toEqual({ parts: 0, files: 0 });
   });
 
   test('the stored file comes back byte for byte with a mesh content type and its name', async () => {
@@ -290,34 +292,35 @@ describe('uploading parts', () => {
 describe('the storage transaction', () => {
   test('when writing the part row fails after the file row, neither is kept', async () => {
     const { agent, labId } = await signUp(running, 'txn');
-    const before = await counts();
+    const bytes = uniqueStl(block(11, 12, 13.5));
     const create = jest.spyOn(running.db.models.Part, 'create').mockRejectedValueOnce(new Error('disk full (injected)'));
     try {
-      const res = await agent.post(`/api/labs/${labId}/parts`).attach('file', buf(uniqueStl(block(11, 12, 13.5))), 'fails.stl');
+      const res = await agent.post(`/api/labs/${labId}/parts`).attach('file', buf(bytes), 'fails.stl');
       expect(res.status).toBe(500);
       expect(create).toHaveBeenCalledTimes(1);
     } finally {
       create.mockRestore();
     }
-    expect(await counts()).toEqual(before);
+    expect(await counts(labId, [bytes])).toEqual({ parts: 0, files: 0 });
   });
 
   test('when one file of several fails to save, the others are kept and it is listed as not saved', async () => {
     const { agent, labId } = await signUp(running, 'txn2');
-    const before = await counts();
+    const first = uniqueStl(block(11, 12, 14.5));
+    const second = uniqueStl(block(11, 12, 15.5));
     const create = jest.spyOn(running.db.models.Part, 'create').mockRejectedValueOnce(new Error('injected'));
     try {
       const res = await agent
         .post(`/api/labs/${labId}/parts`)
-        .attach('file', buf(uniqueStl(block(11, 12, 14.5))), 'first.stl')
-        .attach('file', buf(uniqueStl(block(11, 12, 15.5))), 'second.stl');
+        .attach('file', buf(first), 'first.stl')
+        .attach('file', buf(second), 'second.stl');
       expect(res.status).toBe(201);
       expect(res.body.parts).toHaveLength(1);
       expect(res.body.rejected).toEqual([{ file: expect.any(String), code: 'not_saved', message: expect.stringContaining('could not be saved') }]);
     } finally {
       create.mockRestore();
     }
-    expect(await counts()).toEqual({ parts: before.parts + 1, files: before.files + 1 });
+    expect(await counts(labId, [first, second])).toEqual({ parts: 1, files: 1 });
   });
 });
 
@@ -325,11 +328,11 @@ describe('who may do what', () => {
   test('an operator reads the library but may not upload (403, nothing written)', async () => {
     const { agent: lead, labId } = await signUp(running, 'perm');
     const op = await addMember(running, lead, labId, ['operator'], 'op');
-    const before = await counts();
-    const res = await op.agent.post(`/api/labs/${labId}/parts`).attach('file', buf(writeBinaryStl(cube(10))), 'a.stl');
+    const bytes = uniqueStl(cube(10));
+    const res = await op.agent.post(`/api/labs/${labId}/parts`).attach('file', buf(bytes), 'a.stl');
     expect(res.status).toBe(403);
     expect(res.body.error.code).toBe('forbidden');
-    expect(await counts()).toEqual(before);
+    expect(await counts(labId, [bytes])).toEqual({ parts: 0, files: 0 });
     expect((await op.agent.get(`/api/labs/${labId}/parts`)).status).toBe(200);
   });
 
