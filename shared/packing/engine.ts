@@ -142,7 +142,7 @@ function problemFor(model: Model, usableHeight: number, floorFirst: boolean, was
     types: model.types,
     floorFirst,
     wasteWeight,
-    maxTypesPerSpace: model.types.length > 200 ? 24 : 1000,
+    maxTypesPerSpace: model.types.length > 48 ? 32 : 1000,
   };
 }
 
@@ -332,9 +332,11 @@ function obstacleBoxes(model: Model, obstacles: PackOptions['obstacles']): numbe
   ]);
 }
 
+/** A greedy fill; once a first layout exists it gives up (incomplete) when the budget runs out. */
 function greedy(ctx: Ctx, problem: ContainerProblem): SolverState {
   ctx.completionsLeft--;
-  return complete(problem, initialState(problem, ctx.obstacles));
+  const abort = ctx.best ? () => ctx.stopped || ctx.now() >= ctx.deadline || !!ctx.hooks.shouldStop?.() : undefined;
+  return complete(problem, initialState(problem, ctx.obstacles), abort);
 }
 
 /**
@@ -362,7 +364,7 @@ function* beam(
         if (shouldYield(ctx)) yield;
         const child = cloneState(node);
         applyChoice(problem, child, next.space, next.corner, c);
-        const finished = complete(problem, cloneState(child));
+        const finished = complete(problem, cloneState(child), () => ctx.now() >= ctx.deadline || ctx.stopped);
         ctx.completionsLeft--;
         if (!best || finished.value > best.value) {
           best = finished;
@@ -432,7 +434,19 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   const bottom = inst.margin.bottom;
   const full = model.extent[2];
   ctx.phase = 'greedy';
-  const first = greedy(ctx, problemFor(model, full, true, 1));
+  // Guesses just above the lower bound first: a fill of the whole chamber stacks columns needlessly high.
+  const bound0 = Math.max(0, lowerBound(inst) - bottom);
+  let first: SolverState | null = null;
+  for (const factor of [1.08, 1.2, 1.5]) {
+    const h = bound0 * factor;
+    if (h >= full || ctx.now() - ctx.start > 0.25 * (ctx.deadline - ctx.start)) break;
+    const s = greedy(ctx, problemFor(model, h, true, 1));
+    if (s.boxesLeft === 0) {
+      first = s;
+      break;
+    }
+  }
+  if (!first) first = greedy(ctx, problemFor(model, full, true, 1));
   offer(ctx, expand(model, first), first.value);
   if (first.boxesLeft > 0) {
     // Not everything fits: the most volume in the whole chamber, lowered afterwards.

@@ -228,20 +228,54 @@ function insertCandidate(out: Candidate[], k: number, c: Candidate): void {
   if (out.length > k) out.pop();
 }
 
-/** Removes the box [x0, x1] x [y0, y1] x [z0, z1] from the cover of maximal spaces. */
+/** Scratch for the pieces of one carve; grown on demand, never shared between calls in flight. */
+let scratch = new Float64Array(6 * 256);
+let scratchDrop = new Uint8Array(256);
+let touching = new Int32Array(1024);
+
+/** Removes the box [x0, x1] x [y0, y1] x [z0, z1] from the cover of maximal spaces, in place. */
 export function carve(s: SolverState, x0: number, y0: number, z0: number, x1: number, y1: number, z1: number): void {
   const sp = s.spaces;
-  const kept: number[] = [];
-  const pieces: number[] = [];
   const minDim = s.minDim;
+  let np = 0;
+  let w = 0;
+  let nt = 0;
   const push = (a: number, b: number, c: number, d: number, e: number, f: number) => {
     if (d - a + EPS < minDim || e - b + EPS < minDim || f - c + EPS < minDim) return;
-    pieces.push(a, b, c, d, e, f);
+    if (np + 6 > scratch.length) {
+      const bigger = new Float64Array(scratch.length * 2);
+      bigger.set(scratch);
+      scratch = bigger;
+    }
+    scratch[np] = a;
+    scratch[np + 1] = b;
+    scratch[np + 2] = c;
+    scratch[np + 3] = d;
+    scratch[np + 4] = e;
+    scratch[np + 5] = f;
+    np += 6;
   };
   for (let i = 0; i < sp.length; i += 6) {
     const a0 = sp[i], b0 = sp[i + 1], c0 = sp[i + 2], a1 = sp[i + 3], b1 = sp[i + 4], c1 = sp[i + 5];
     if (x0 >= a1 - EPS || x1 <= a0 + EPS || y0 >= b1 - EPS || y1 <= b0 + EPS || z0 >= c1 - EPS || z1 <= c0 + EPS) {
-      kept.push(a0, b0, c0, a1, b1, c1);
+      // Only a space touching the block can contain a new piece (every piece borders the block).
+      if (!(x0 > a1 + EPS || x1 < a0 - EPS || y0 > b1 + EPS || y1 < b0 - EPS || z0 > c1 + EPS || z1 < c0 - EPS)) {
+        if (nt >= touching.length) {
+          const bigger = new Int32Array(touching.length * 2);
+          bigger.set(touching);
+          touching = bigger;
+        }
+        touching[nt++] = w;
+      }
+      if (w !== i) {
+        sp[w] = a0;
+        sp[w + 1] = b0;
+        sp[w + 2] = c0;
+        sp[w + 3] = a1;
+        sp[w + 4] = b1;
+        sp[w + 5] = c1;
+      }
+      w += 6;
       continue;
     }
     if (x0 > a0 + EPS) push(a0, b0, c0, x0, b1, c1);
@@ -251,17 +285,22 @@ export function carve(s: SolverState, x0: number, y0: number, z0: number, x1: nu
     if (z0 > c0 + EPS) push(a0, b0, c0, a1, b1, z0);
     if (z1 < c1 - EPS) push(a0, b0, z1, a1, b1, c1);
   }
+  sp.length = w;
   // A new piece lies inside one old space; an untouched old space was maximal, so it cannot lie
-  // inside a piece. Only pieces need the containment test.
-  const np = pieces.length;
-  const drop = new Uint8Array(np / 6);
+  // inside a piece. Only pieces need the containment test, and only against spaces touching the block.
+  const pieces = scratch;
+  const count = np / 6;
+  if (scratchDrop.length < count) scratchDrop = new Uint8Array(2 * count);
+  const drop = scratchDrop;
+  drop.fill(0, 0, count);
   for (let i = 0; i < np; i += 6) {
     const a0 = pieces[i], b0 = pieces[i + 1], c0 = pieces[i + 2], a1 = pieces[i + 3], b1 = pieces[i + 4], c1 = pieces[i + 5];
     let inside = false;
-    for (let j = 0; j < kept.length && !inside; j += 6) {
+    for (let t = 0; t < nt && !inside; t++) {
+      const j = touching[t];
       inside =
-        kept[j] <= a0 + EPS && kept[j + 1] <= b0 + EPS && kept[j + 2] <= c0 + EPS &&
-        kept[j + 3] >= a1 - EPS && kept[j + 4] >= b1 - EPS && kept[j + 5] >= c1 - EPS;
+        sp[j] <= a0 + EPS && sp[j + 1] <= b0 + EPS && sp[j + 2] <= c0 + EPS &&
+        sp[j + 3] >= a1 - EPS && sp[j + 4] >= b1 - EPS && sp[j + 5] >= c1 - EPS;
     }
     for (let j = 0; j < np && !inside; j += 6) {
       if (j === i || drop[j / 6]) continue;
@@ -278,8 +317,9 @@ export function carve(s: SolverState, x0: number, y0: number, z0: number, x1: nu
     }
     if (inside) drop[i / 6] = 1;
   }
-  for (let i = 0; i < np; i += 6) if (!drop[i / 6]) kept.push(pieces[i], pieces[i + 1], pieces[i + 2], pieces[i + 3], pieces[i + 4], pieces[i + 5]);
-  s.spaces = kept;
+  for (let i = 0; i < np; i += 6) {
+    if (!drop[i / 6]) sp.push(pieces[i], pieces[i + 1], pieces[i + 2], pieces[i + 3], pieces[i + 4], pieces[i + 5]);
+  }
 }
 
 function place(problem: ContainerProblem, s: SolverState, si: number, corner: number, c: Candidate): void {
@@ -325,8 +365,10 @@ export function applyChoice(problem: ContainerProblem, s: SolverState, space: nu
 }
 
 /** Completes a state greedily, in place: the best-scored block into the chosen space until nothing fits. */
-export function complete(problem: ContainerProblem, s: SolverState): SolverState {
-  for (;;) {
+export function complete(problem: ContainerProblem, s: SolverState, abort?: () => boolean): SolverState {
+  for (let step = 1; ; step++) {
+    // Checked every few steps: a fill of thousands of parts must not overrun the time budget.
+    if (abort && (step & 15) === 0 && abort()) return s;
     const next = nextChoices(problem, s, 1);
     if (!next) return s;
     place(problem, s, next.space, next.corner, next.choices[0]);

@@ -1,0 +1,261 @@
+/**
+ * Packing benchmark: `npm run bench:pack`. Prints, side by side, our engine
+ * and the general-purpose binpackingjs library on
+ *  - BR1-BR3 container loading (Bischoff & Ratcliff, Omega 23(4), 1995), max-volume, no spacing;
+ *  - BR1-BR3 as strip packing (base 587 x 233, height open): used volume / (base x height);
+ *  - generated powder-bed builds (min-height, 3 mm spacing): height / lower bound;
+ *  - the time of the first valid layout as builds grow, and peak memory.
+ * Options: --problems N (per BR set, default 10), --ms T (our time per instance, default 2000).
+ */
+import { execSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import { cpus } from 'node:os';
+import { join } from 'node:path';
+import { pack3D, RotationType } from 'binpackingjs/3d';
+import {
+  createPacking,
+  generatePowderBed,
+  lowerBound,
+  parseBischoffRatcliff,
+  validateLayout,
+  type PackInstance,
+  type PackResult,
+} from '../shared/packing';
+
+const arg = (name: string, fallback: number) => {
+  const i = process.argv.indexOf(`--${name}`);
+  return i >= 0 ? Number(process.argv[i + 1]) : fallback;
+};
+const PROBLEMS = arg('problems', 10);
+const MS = arg('ms', 2000);
+
+let peakRss = 0;
+let peakHeap = 0;
+const sampleMemory = () => {
+  const m = process.memoryUsage();
+  peakRss = Math.max(peakRss, m.rss);
+  peakHeap = Math.max(peakHeap, m.heapUsed);
+};
+
+interface OurRun {
+  result: PackResult;
+  firstLayoutMs: number;
+  wallMs: number;
+  valid: boolean;
+}
+
+function ours(instance: PackInstance): OurRun {
+  let firstLayoutMs = -1;
+  const t0 = performance.now();
+  let lastSample = 0;
+  const result = createPacking(instance).runSync({
+    onProgress(_phase, _share, best) {
+      const t = performance.now() - t0;
+      if (best && firstLayoutMs < 0) firstLayoutMs = t;
+      if (t - lastSample > 100) {
+        lastSample = t;
+        sampleMemory();
+      }
+    },
+  });
+  const wallMs = performance.now() - t0;
+  sampleMemory();
+  return { result, firstLayoutMs, wallMs, valid: validateLayout(instance, result).length === 0 };
+}
+
+/**
+ * binpackingjs on an instance: boxes and container grown by the spacing (it has
+ * no spacing of its own); its height axis is our z. A rotation is allowed when
+ * the part axis it puts upright is one our orientations allow upright.
+ */
+function theirs(instance: PackInstance, usableHeight: number): { placedVolume: number; placed: number; topZ: number; ms: number } {
+  const g = instance.spacing;
+  const ux = instance.chamber[0] - 2 * instance.margin.xy;
+  const uy = instance.chamber[1] - 2 * instance.margin.xy;
+  // For binpackingjs an item is (width, height, depth) = our (x, z, y); which part axis each rotation stands upright:
+  const uprightOf: Record<number, number> = {
+    [RotationType.WHD]: 2,
+    [RotationType.HWD]: 0,
+    [RotationType.HDW]: 1,
+    [RotationType.DHW]: 2,
+    [RotationType.DWH]: 0,
+    [RotationType.WDH]: 1,
+  };
+  const items = [];
+  for (const part of instance.parts) {
+    const upright = new Set(part.orientations.map((o) => 'xyz'.indexOf(o[2])));
+    const allowedRotations = Object.entries(uprightOf)
+      .filter(([, axis]) => upright.has(axis))
+      .map(([r]) => Number(r) as RotationType);
+    for (let k = 0; k < part.quantity; k++) {
+      items.push({
+        name: part.id,
+        width: part.size[0] + g,
+        height: part.size[2] + g,
+        depth: part.size[1] + g,
+        weight: 0,
+        allowedRotations,
+      });
+    }
+  }
+  const t0 = performance.now();
+  const out = pack3D({ bins: [{ name: 'chamber', width: ux + g, height: usableHeight + g, depth: uy + g, maxWeight: 1e12 }], items });
+  const ms = performance.now() - t0;
+  let placedVolume = 0;
+  let topZ = 0;
+  const bin = out.packedBins[0];
+  for (const it of bin.items) {
+    const [a, b, c] = it.dimension;
+    placedVolume += (a - g) * (b - g) * (c - g);
+    topZ = Math.max(topZ, it.position[1] + b - g);
+  }
+  sampleMemory();
+  return { placedVolume, placed: bin.items.length, topZ, ms };
+}
+
+/** Smallest usable height at which binpackingjs places every part, by bisection. */
+function theirsLowest(instance: PackInstance, maxHeight: number, budgetMs: number): { height: number | null; ms: number } {
+  const total = instance.parts.reduce((s, p) => s + p.quantity, 0);
+  const t0 = performance.now();
+  const full = theirs(instance, maxHeight);
+  if (full.placed < total) return { height: null, ms: performance.now() - t0 };
+  let hi = full.topZ;
+  let lo = Math.max(0, lowerBound(instance) - instance.margin.bottom);
+  let best = hi;
+  while (hi - lo > 0.5 && performance.now() - t0 < budgetMs) {
+    const mid = (lo + hi) / 2;
+    const r = theirs(instance, mid);
+    if (r.placed === total) {
+      best = Math.min(best, r.topZ);
+      hi = Math.min(mid, r.topZ);
+    } else lo = mid;
+  }
+  return { height: instance.margin.bottom + best, ms: performance.now() - t0 };
+}
+
+const pct = (v: number) => `${(100 * v).toFixed(1)} %`;
+const pad = (s: string | number, n: number) => String(s).padStart(n);
+const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : NaN);
+
+function table(header: string[], rows: Array<Array<string | number>>): string {
+  const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => String(r[i]).length)));
+  const line = (cells: Array<string | number>) => `| ${cells.map((c, i) => String(c).padEnd(widths[i])).join(' | ')} |`;
+  return [line(header), `|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`, ...rows.map(line)].join('\n');
+}
+
+function machine(): string {
+  let model = cpus()[0]?.model ?? 'unknown';
+  try {
+    model = execSync("grep -m1 'model name' /proc/cpuinfo", { encoding: 'utf8' }).split(':')[1].trim();
+  } catch {
+    // not Linux: keep the os module's name
+  }
+  let nproc = String(cpus().length);
+  try {
+    nproc = execSync('nproc', { encoding: 'utf8' }).trim();
+  } catch {
+    // keep the count from the os module
+  }
+  return `node ${process.version}, ${nproc} CPUs (nproc), ${model}`;
+}
+
+function main(): void {
+  const started = performance.now();
+  console.log(`# Packing benchmark\n\nMachine: ${machine()}\nOur time limit: ${MS} ms per instance; BR sample: the first ${PROBLEMS} problems of each set.\n`);
+
+  // 1. Container loading.
+  const brDir = join(__dirname, '..', 'tests', 'unit', 'packing', 'fixtures');
+  const brRows: Array<Array<string | number>> = [];
+  const allOurs: number[] = [];
+  const allTheirs: number[] = [];
+  const sets = [1, 2, 3].map((set) => ({ set, problems: parseBischoffRatcliff(readFileSync(join(brDir, `br${set}.txt`), 'utf8'), MS).slice(0, PROBLEMS) }));
+  for (const { set, problems } of sets) {
+    const u: number[] = [];
+    const t: number[] = [];
+    const bu: number[] = [];
+    const bt: number[] = [];
+    let invalid = 0;
+    for (const { instance } of problems) {
+      const r = ours(instance);
+      if (!r.valid) invalid++;
+      u.push(r.result.utilization);
+      t.push(r.wallMs);
+      const b = theirs(instance, instance.chamber[2]);
+      bu.push(b.placedVolume / (instance.chamber[0] * instance.chamber[1] * instance.chamber[2]));
+      bt.push(b.ms);
+    }
+    allOurs.push(...u);
+    allTheirs.push(...bu);
+    brRows.push([`BR${set}`, problems.length, pct(mean(u)), pct(Math.min(...u)), `${mean(t).toFixed(0)} ms`, invalid, pct(mean(bu)), `${mean(bt).toFixed(0)} ms`]);
+  }
+  brRows.push(['BR1-3', allOurs.length, pct(mean(allOurs)), pct(Math.min(...allOurs)), '', '', pct(mean(allTheirs)), '']);
+  console.log('## Container loading (max-volume, no spacing): volume utilisation\n');
+  console.log(table(['set', 'problems', 'ours mean', 'ours min', 'ours time', 'invalid', 'binpackingjs mean', 'binpackingjs time'], brRows));
+
+  // 2. Strip packing: the same boxes, the base of the container, the height open.
+  const stripRows: Array<Array<string | number>> = [];
+  for (const { set, problems } of sets) {
+    const u: number[] = [];
+    const ratio: number[] = [];
+    const bu: number[] = [];
+    let invalid = 0;
+    for (const { instance } of problems) {
+      const boxVolume = instance.parts.reduce((s, p) => s + p.quantity * p.size[0] * p.size[1] * p.size[2], 0);
+      const open: PackInstance = { ...instance, objective: 'min-height', chamber: [587, 233, 4 * Math.ceil(boxVolume / (587 * 233)) + 400] };
+      const r = ours(open);
+      if (!r.valid || r.result.unplaced.length > 0) invalid++;
+      u.push(r.result.utilization);
+      ratio.push(r.result.height / lowerBound(open));
+      const b = theirsLowest(open, open.chamber[2], 20_000);
+      bu.push(b.height ? boxVolume / (587 * 233 * b.height) : 0);
+    }
+    stripRows.push([`BR${set}`, problems.length, pct(mean(u)), mean(ratio).toFixed(3), invalid, pct(mean(bu))]);
+  }
+  console.log('\n## Strip packing (base 587 x 233, height open): used volume / (base x height)\n');
+  console.log(table(['set', 'problems', 'ours', 'ours height / lower bound', 'invalid or unplaced', 'binpackingjs'], stripRows));
+
+  // 3. Powder-bed builds, lowest height.
+  const sizes: Array<[number, [number, number, number], number]> = [
+    [200, [300, 300, 380], 0.75],
+    [500, [300, 300, 380], 0.75],
+    [1000, [340, 340, 600], 0.75],
+    [2000, [340, 340, 600], 0.8],
+    [5000, [340, 340, 600], 0.95],
+  ];
+  const bedRows: Array<Array<string | number>> = [];
+  const growth: Array<Array<string | number>> = [];
+  for (const [count, chamber, clipShare] of sizes) {
+    const ratios: number[] = [];
+    const first: number[] = [];
+    const wall: number[] = [];
+    const theirsRatio: string[] = [];
+    let invalid = 0;
+    let unplaced = 0;
+    for (const seed of [1, 2, 3]) {
+      const instance = generatePowderBed({ parts: count, seed, chamber, timeLimitMs: MS, clipShare });
+      const lb = lowerBound(instance);
+      const r = ours(instance);
+      if (!r.valid) invalid++;
+      unplaced += r.result.unplaced.reduce((s, u) => s + u.count, 0);
+      ratios.push(r.result.height / lb);
+      first.push(r.firstLayoutMs);
+      wall.push(r.wallMs);
+      if (seed === 1 && count <= 2000) {
+        const b = theirsLowest(instance, chamber[2] - 10, 60_000);
+        theirsRatio.push(b.height ? `${(b.height / lb).toFixed(3)} (${(b.ms / 1000).toFixed(1)} s)` : 'does not fit');
+      }
+    }
+    bedRows.push([count, chamber.join(' x '), mean(ratios).toFixed(3), Math.max(...ratios).toFixed(3), `${mean(wall).toFixed(0)} ms`, unplaced, invalid, theirsRatio[0] ?? 'not run (too slow)']);
+    growth.push([count, `${mean(first).toFixed(0)} ms`, `${Math.max(...first).toFixed(0)} ms`]);
+  }
+  console.log('\n## Powder-bed builds (min-height, 3 mm spacing, margins xy 8 / bottom 5 / top 5; 3 seeds each): height / lower bound\n');
+  console.log(table(['parts', 'chamber', 'ours mean', 'ours worst', 'ours time', 'unplaced', 'invalid', 'binpackingjs (seed 1, lowest height by bisection)'], bedRows));
+  console.log('\n## Time to the first valid layout\n');
+  console.log(table(['parts', 'mean', 'worst'], growth));
+
+  sampleMemory();
+  console.log(`\nPeak memory: rss ${(peakRss / 1048576).toFixed(0)} MB, heapUsed ${(peakHeap / 1048576).toFixed(0)} MB`);
+  console.log(`Total benchmark time: ${((performance.now() - started) / 1000).toFixed(0)} s`);
+}
+
+main();
