@@ -25,7 +25,7 @@ export function LabSwitcher({ tone }: { tone: 'dark' | 'light' }) {
         <Text variant="overline" style={{ color: muted }}>
           Lab
         </Text>
-        <Text variant="bodyStrong" style={{ color: fg }} numberOfLines={1}>
+        <Text variant="bodyStrong" style={{ color: fg }} numberOfLines={dark ? 2 : 1}>
           {lab.name}
         </Text>
       </View>
@@ -46,7 +46,7 @@ export function LabSwitcher({ tone }: { tone: 'dark' | 'light' }) {
           <Text variant="overline" style={{ color: muted }}>
             {`Lab · ${labs.length}`}
           </Text>
-          <Text variant="bodyStrong" style={{ color: fg }} numberOfLines={1}>
+          <Text variant="bodyStrong" style={{ color: fg }} numberOfLines={dark ? 2 : 1}>
             {lab.name}
           </Text>
         </View>
