@@ -1,0 +1,57 @@
+import { chromium, type Browser, type Page } from 'playwright-core';
+import { mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Server } from 'node:http';
+import { listen, type Running } from '../../server/boot';
+import { startTestApp } from './app';
+
+export const CHROMIUM = '/usr/bin/chromium';
+export const ARTIFACTS = join(__dirname, '..', '..', 'test-artifacts');
+export const PHONE = { width: 390, height: 844 };
+export const WIDE = { width: 1440, height: 900 };
+
+export type Served = { running: Running; server: Server; baseUrl: string; browser: Browser; close(): Promise<void> };
+
+/**
+ * The real server (exported web app + API on the test database) on a free
+ * loopback port, and Debian's Chromium driven by playwright-core.
+ */
+export async function serveAndLaunch(): Promise<Served> {
+  const probe = await startTestApp();
+  // APP_URL must be the address the browser uses, for the Origin check and invite links.
+  const server0 = await listen(probe.app, 0, '127.0.0.1');
+  const port = (server0.address() as { port: number }).port;
+  await new Promise<void>((r) => server0.close(() => r()));
+  await probe.close();
+  const baseUrl = `http://127.0.0.1:${port}`;
+  const running = await startTestApp({ appUrl: baseUrl, webDist: 'dist' });
+  const server = await listen(running.app, port, '127.0.0.1');
+  const browser = await chromium.launch({
+    executablePath: CHROMIUM,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+  });
+  return {
+    running,
+    server,
+    baseUrl,
+    browser,
+    async close() {
+      await browser.close();
+      server.closeAllConnections();
+      await new Promise<void>((r) => server.close(() => r()));
+      await running.close();
+    },
+  };
+}
+
+export async function newPage(served: Served, viewport: { width: number; height: number }): Promise<Page> {
+  const context = await served.browser.newContext({ viewport, baseURL: served.baseUrl });
+  const page = await context.newPage();
+  page.setDefaultTimeout(20_000);
+  return page;
+}
+
+export async function screenshot(page: Page, name: string) {
+  mkdirSync(ARTIFACTS, { recursive: true });
+  await page.screenshot({ path: join(ARTIFACTS, `${name}.png`), fullPage: false });
+}
