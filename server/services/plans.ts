@@ -12,10 +12,12 @@ import {
   type PlanStatus,
 } from '../../shared/plans/status';
 import {
+  openLinesQuerySchema,
   planCreateSchema,
   planListQuerySchema,
   planUpdateSchema,
   type LayoutSummaryView,
+  type OpenLineView,
   type PlanEventView,
   type PlanLineView,
   type PlanListItem,
@@ -477,6 +479,35 @@ export function plansService(db: Database, deps: PlansDeps) {
         createdAt: iso(r.created_at),
         updatedAt: iso(r.updated_at),
       }));
+    },
+
+    /**
+     * Request lines of open requests that still need parts, most urgent first
+     * (priority, then due date): what a planner picks for a plan.
+     */
+    async openLines(labId: string, query: unknown): Promise<OpenLineView[]> {
+      const q = parseOrThrow(openLinesQuerySchema, query);
+      const rows = await sequelize.query<any>(
+        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
+                p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
+                COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
+                           WHERE pl.request_line_id = rl.id AND pp.status NOT IN ${INACTIVE_SQL}
+                             AND ($3::uuid IS NULL OR pp.id <> $3::uuid)), 0) AS held
+           FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
+          WHERE r.lab_id = $1 AND r.status = 'open' AND ($2::uuid IS NULL OR r.material_id = $2::uuid)
+          ORDER BY CASE r.priority WHEN 'urgent' THEN 0 WHEN 'high' THEN 1 WHEN 'normal' THEN 2 ELSE 3 END, r.due_date, r.created_at, rl.position`,
+        { bind: [labId, q.materialId ?? null, q.planId ?? null], type: QueryTypes.SELECT },
+      );
+      return rows
+        .map((r) => ({
+          requestLineId: r.id,
+          part: { id: r.part_id, name: r.part_name, sizeMm: [r.size_x_mm, r.size_y_mm, r.size_z_mm] as [number, number, number], volumeMm3: r.volume_mm3, orientation: r.orientation },
+          request: { id: r.request_id, title: r.title, dueDate: r.due_date, priority: r.priority, materialId: r.material_id },
+          quantity: r.quantity,
+          plannedCount: Number(r.held),
+          remaining: r.quantity - Number(r.held),
+        }))
+        .filter((l) => l.remaining > 0);
     },
 
     /**

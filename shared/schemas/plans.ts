@@ -76,6 +76,24 @@ export const planListQuerySchema = z.strictObject({
   machineId: uuid.optional(),
 });
 
+/** Open request lines a plan could take: for a new plan, or to fill the rest of one. */
+export const openLinesQuerySchema = z.strictObject({
+  materialId: uuid.optional(),
+  /** Counts this plan's own holdings as still open, as its editor sees them. */
+  planId: uuid.optional(),
+});
+
+export interface OpenLineView {
+  requestLineId: string;
+  part: { id: string; name: string; sizeMm: [number, number, number]; volumeMm3: number; orientation: PlanOrientationRule };
+  request: { id: string; title: string; dueDate: string; priority: string; materialId: string | null };
+  quantity: number;
+  /** Held by active plans (other than `planId`). */
+  plannedCount: number;
+  /** quantity - plannedCount: the most a plan may take. */
+  remaining: number;
+}
+
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite, finite, finite], { error: 'must be three numbers' });
 

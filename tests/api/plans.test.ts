@@ -90,6 +90,23 @@ describe('creating a plan', () => {
   });
 });
 
+describe('open request lines', () => {
+  test('the lines a plan can take list what each still needs, most urgent first, in the chosen material', async () => {
+    const { agent: lead, labId, machineId, materialId, userId, material } = await labWithProfiles(running, 'openlines');
+    const later = await makeRequest(running, labId, userId, materialId, [BRACKET], { title: 'Later', dueDate: '2027-05-01', priority: 'normal' });
+    await makeRequest(running, labId, userId, materialId, [CLIP], { title: 'Urgent', dueDate: '2027-06-01', priority: 'urgent' });
+    const other = await lead.post(`/api/labs/${labId}/materials`).send({ ...material, name: 'Other powder' });
+    await makeRequest(running, labId, userId, other.body.id, [BRACKET], { title: 'Other powder' });
+    const { id } = await createPlan(lead, labId, machineId, materialId, [{ id: later.lines[0].id, quantity: 25 }]);
+
+    const open = (await lead.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
+    expect(open.map((l: any) => [l.request.title, l.remaining, l.plannedCount])).toEqual([['Urgent', 50, 0], ['Later', 5, 25]]);
+    expect(open[1]).toMatchObject({ requestLineId: later.lines[0].id, part: { name: 'Bracket', sizeMm: [40, 20, 10] } });
+    const forThePlan = (await lead.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}&planId=${id}`)).body;
+    expect(forThePlan.find((l: any) => l.requestLineId === later.lines[0].id).remaining).toBe(30);
+  });
+});
+
 describe('permissions', () => {
   test('a designer cannot create plans; another lab\'s plan is not found', async () => {
     const { agent: lead, labId, machineId, materialId, userId } = await labWithProfiles(running, 'perm');
@@ -125,6 +142,15 @@ describe('saving with a version', () => {
     expect(stale.body.error).toMatchObject({ code: 'version_conflict', currentVersion: 2 });
     const now = (await agent.get(url)).body;
     expect(now).toMatchObject({ name: 'Renamed', version: 2 });
+  });
+
+  test('of two saves sent at once from the same version, one wins and the other answers 409', async () => {
+    const { agent, labId, plan } = await planReady('race');
+    const url = `/api/labs/${labId}/plans/${plan.id}`;
+    const answers = await Promise.all([agent.put(url).send({ version: 1, name: 'Tab A' }), agent.put(url).send({ version: 1, name: 'Tab B' })]);
+    expect(answers.map((r) => r.status).sort()).toEqual([200, 409]);
+    const winner = answers.find((r) => r.status === 200)!.body.name;
+    expect((await agent.get(url)).body).toMatchObject({ name: winner, version: 2 });
   });
 });
 

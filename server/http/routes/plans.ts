@@ -23,6 +23,9 @@ export function planRoutes({ labs, plans, layouts, review }: PlanRouteDeps): Rou
   r.get(base, member, async (req, res) => {
     res.json(await plans.list(requireLab(req).labId, req.query));
   });
+  r.get('/labs/:labId/plans/open-lines', member, async (req, res) => {
+    res.json(await plans.openLines(requireLab(req).labId, req.query));
+  });
   r.post(base, planner, async (req, res) => {
     const { labId, user } = requireLab(req);
     res.status(201).json(await plans.create(labId, user, req.body));
