@@ -6,28 +6,10 @@
 import { forwardRef, useImperativeHandle, useMemo, useState } from 'react';
 import { StyleSheet, Text, View, type StyleProp, type ViewStyle } from 'react-native';
 import { colors, fonts, radius, spacing, type } from '../theme';
-import { footprintAreaMm2, formatMm, groupByPart, spanningAt, type Vec3, type ViewName } from './math';
-import type { ChamberPlacements, PartMesh } from './types';
+import { footprintAreaMm2, formatMm, groupByPart, spanningAt } from './math';
+import type { ChamberViewHandle, ChamberViewProps } from './types';
 
-export interface ChamberViewHandle {
-  setView(view: ViewName): void;
-  setCutHeight(heightMm: number | null): void;
-}
-
-export interface ChamberViewProps {
-  chamberMm: Vec3;
-  margin: { xy: number; bottom: number; top: number };
-  placements: ChamberPlacements;
-  meshesByPart?: ReadonlyMap<number, PartMesh>;
-  lineColours?: readonly string[];
-  cutHeightMm?: number | null;
-  onHover?: (placementIndex: number | null) => void;
-  onPick?: (placementIndex: number | null) => void;
-  describePlacement?: (placementIndex: number) => string;
-  onFirstFrame?: (msSinceNavigation: number) => void;
-  showToolbar?: boolean;
-  style?: StyleProp<ViewStyle>;
-}
+export type { ChamberViewHandle, ChamberViewProps };
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView({ chamberMm, placements, cutHeightMm, style }, ref) {
   const [cut, setCut] = useState<number | null>(null);

@@ -23,7 +23,7 @@
  *        |  | .[]  [] []  [] . |
  *        +--+------------------+--> x   chamber outline, floor grid
  */
-import { AdaptiveDpr, Html, OrbitControls } from '@react-three/drei';
+import { Html, OrbitControls } from '@react-three/drei';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
 import { forwardRef, memo, useEffect, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
@@ -44,45 +44,13 @@ import {
   type Vec3,
   type ViewName,
 } from './math';
-import { BoxOutline, FloorGrid, Lights, VIEW_FOV_DEG, applyView, labelStyle, sceneColours } from './scene';
+import { BoxOutline, FloorGrid, Lights, VIEW_FOV_DEG, applyView, isSoftwareRenderer, labelStyle, sceneColours } from './scene';
 import { ViewToolbar } from './ViewToolbar';
-import type { ChamberPlacements, PartMesh } from './types';
+import type { ChamberPlacements, ChamberViewHandle, ChamberViewProps, PartMesh } from './types';
 
 installBvh();
 
-export interface ChamberViewHandle {
-  /** Moves the camera to a named view of the chamber. */
-  setView(view: ViewName): void;
-  /** Moves the cut without a React render (for a slider being dragged); null removes it. */
-  setCutHeight(heightMm: number | null): void;
-}
-
-export interface ChamberViewProps {
-  /** Inner build volume x, y, z in mm. */
-  chamberMm: Vec3;
-  /** Keep-out from the walls, under the lowest part and over the highest, in mm. */
-  margin: { xy: number; bottom: number; top: number };
-  placements: ChamberPlacements;
-  /** Meshes by part index, in the part's own axes; a part without one is drawn as its box. */
-  meshesByPart?: ReadonlyMap<number, PartMesh>;
-  /** Hex colour by line index; the Sinterstack line palette when left out. */
-  lineColours?: readonly string[];
-  /** Cut height in mm: what lies above is clipped and the layer under it is drawn in section. Null or absent: no cut. */
-  cutHeightMm?: number | null;
-  /** Placement under the pointer (null when it leaves the parts). */
-  onHover?: (placementIndex: number | null) => void;
-  /** Placement clicked or tapped (null for a click on empty space). */
-  onPick?: (placementIndex: number | null) => void;
-  /** Text for the label shown at the hovered placement, e.g. its line and part. */
-  describePlacement?: (placementIndex: number) => string;
-  /** Called once, on the first rendered frame, with performance.now(). */
-  onFirstFrame?: (msSinceNavigation: number) => void;
-  /** The fit / top / front / side buttons; shown unless false. */
-  showToolbar?: boolean;
-  /** Device pixel ratio range; the view drops to half of it while the camera moves. */
-  dpr?: number | [number, number];
-  style?: StyleProp<ViewStyle>;
-}
+export type { ChamberViewHandle, ChamberViewProps };
 
 declare global {
   interface Window {
@@ -108,7 +76,10 @@ interface HoverState {
 }
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView(props, ref) {
-  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, dpr = [1, 1.5], style } = props;
+  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, style } = props;
+  const [software] = useState(isSoftwareRenderer);
+  const dpr = props.dpr ?? (software ? 1 : [1, 1.5]);
+  const antialias = props.antialias ?? !software;
   const controller = useRef<Controller | null>(null);
   const cutRef = useRef<number | null>(cutHeightMm ?? null);
 
@@ -130,11 +101,8 @@ export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(funct
       <Canvas
         frameloop="demand"
         dpr={dpr}
-        // Thousands of parts fill many pixels: while the camera moves (or the hover changes) render at half
-        // resolution, then once more at full resolution when it settles.
-        performance={{ min: 0.5, debounce: 250 }}
         camera={{ up: [0, 0, 1], fov: VIEW_FOV_DEG, position: [span, -span, span], near: 1, far: span * 20 }}
-        gl={{ antialias: true, powerPreference: 'high-performance' }}
+        gl={{ antialias, powerPreference: 'high-performance' }}
         style={{ width: '100%', height: '100%' }}
         onCreated={({ gl, scene }) => {
           gl.localClippingEnabled = true;
@@ -176,7 +144,6 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const controls = useThree((s) => s.controls) as unknown as { target: THREE.Vector3; update(): void } | null;
   const size = useThree((s) => s.size);
   const invalidate = useThree((s) => s.invalidate);
-  const regress = useThree((s) => s.performance.regress);
   const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
 
   const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]);
@@ -186,9 +153,12 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const lists = useMemo(() => Array.from(groups.parts, (_, k) => groups.order.subarray(groups.offsets[k], groups.offsets[k + 1])), [groups]);
 
   // One clipping plane, one material for every part, one unit box, one section square: shared, never per placement.
+  // Lambert rather than physically based shading: thousands of parts cover most pixels several times over, and
+  // diffuse light reads a packed bed as well at a fraction of the fragment cost. Front faces only: a part cut
+  // open by the layer plane shows the section rectangle over its hole, not its inside.
   const clipPlane = useMemo(() => new THREE.Plane(new THREE.Vector3(0, 0, -1), NO_CUT), []);
   const partMaterial = useMemo(
-    () => new THREE.MeshStandardMaterial({ color: '#ffffff', roughness: 0.7, metalness: 0.02, flatShading: true, side: THREE.DoubleSide, clippingPlanes: [clipPlane] }),
+    () => new THREE.MeshLambertMaterial({ color: '#ffffff', flatShading: true, side: THREE.FrontSide, clippingPlanes: [clipPlane] }),
     [clipPlane],
   );
   const boxGeometry = useMemo(() => new THREE.BoxGeometry(1, 1, 1).translate(0.5, 0.5, 0.5), []);
@@ -218,6 +188,12 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     applyCut,
   };
 
+  // A new layout rewrites every instance colour: forget the highlighted one rather than restore a stale colour.
+  useLayoutEffect(() => {
+    hover.current = { mesh: null, instanceId: -1, placement: null, saved: new THREE.Color() };
+    label.current?.show(null, '');
+  }, [placements]);
+
   useLayoutEffect(() => {
     cutRef.current = cutHeightMm;
     applyCut(cutHeightMm);
@@ -230,7 +206,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     invalidate();
   }, [controls, chamberBounds]);
 
-  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, regress, placements), [callbacks, cutRef, invalidate, regress, placements]);
+  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);
 
   const parts: React.ReactNode[] = [];
   for (let k = 0; k < groups.parts.length; k++) {
@@ -261,8 +237,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
       <BoxOutline min={usable.min} max={usable.max} colour={sceneColours.usable} opacity={0.55} />
       <FloorGrid sizeMm={Math.max(chamberMm[0], chamberMm[1])} centre={[chamberMm[0] / 2, chamberMm[1] / 2]} stepMm={gridStep} />
       <HoverLabel handle={label} />
-      <OrbitControls makeDefault enableDamping={false} regress />
-      <AdaptiveDpr />
+      <OrbitControls makeDefault enableDamping={false} />
       <FirstFrame callbacks={callbacks} placements={placements.partIndex.length} parts={groups.parts.length} />
     </>
   );
@@ -290,7 +265,6 @@ function makeEvents(
   callbacks: SceneProps['callbacks'],
   label: React.MutableRefObject<{ show(at: Vec3 | null, text: string): void } | null>,
   invalidate: () => void,
-  regress: () => void,
   placements: ChamberPlacements,
 ): PartEvents {
   // A ray ignores clipping: a hit above the cut lands on a part that is not drawn, so let the event pass to the next hit.
@@ -328,7 +302,6 @@ function makeEvents(
       label.current?.show(null, '');
     }
     callbacks.current.onHover?.(placement);
-    regress();
     invalidate();
   };
 
@@ -441,6 +414,8 @@ function SectionRects({ placements, palette, handle }: { placements: ChamberPlac
   );
 
   useLayoutEffect(() => {
+    // Colours exist from the start so the material is built for per-instance colour once.
+    if (ref.current && !ref.current.instanceColor) ref.current.instanceColor = new THREE.InstancedBufferAttribute(new Float32Array(Math.max(n, 1) * 3), 3);
     handle.current = {
       show(h) {
         const im = ref.current;

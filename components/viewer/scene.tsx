@@ -137,3 +137,29 @@ export function useMounted(): boolean {
   useEffect(() => setMounted(true), []);
   return mounted;
 }
+
+let software: boolean | null = null;
+
+/**
+ * True when WebGL runs on a software rasteriser (a PC or virtual machine
+ * without graphics acceleration, or a headless browser). Every pixel then
+ * costs CPU time, so the views turn multisampling off and keep to one
+ * device pixel. Probed once with a throwaway context.
+ */
+export function isSoftwareRenderer(): boolean {
+  if (software !== null) return software;
+  software = false;
+  try {
+    const canvas = document.createElement('canvas');
+    const gl = (canvas.getContext('webgl2') ?? canvas.getContext('webgl')) as WebGLRenderingContext | null;
+    if (gl) {
+      const info = gl.getExtension('WEBGL_debug_renderer_info');
+      const renderer = String(info ? gl.getParameter(info.UNMASKED_RENDERER_WEBGL) : gl.getParameter(gl.RENDERER));
+      software = /swiftshader|llvmpipe|softpipe|software|basic render/i.test(renderer);
+      gl.getExtension('WEBGL_lose_context')?.loseContext();
+    }
+  } catch {
+    // no WebGL at all: the canvas will report its own error
+  }
+  return software;
+}

@@ -3,7 +3,8 @@
  * (components/ does not import workers/: the worker is started by URL, so its
  * answer is typed again here and checked when it arrives).
  */
-import type { Vec3 } from './math';
+import type { StyleProp, ViewStyle } from 'react-native';
+import type { Vec3, ViewName } from './math';
 
 /** A triangle mesh ready to draw: millimetres, z up (the build direction). */
 export interface ViewMesh {
@@ -52,3 +53,40 @@ export interface PartMesh {
   indices: Uint32Array;
   sizeMm: Vec3;
 }
+
+export interface ChamberViewHandle {
+  /** Moves the camera to a named view of the chamber. */
+  setView(view: ViewName): void;
+  /** Moves the cut without a React render (for a slider being dragged); null removes it. */
+  setCutHeight(heightMm: number | null): void;
+}
+
+export interface ChamberViewProps {
+  /** Inner build volume x, y, z in mm. */
+  chamberMm: Vec3;
+  /** Keep-out from the walls, under the lowest part and over the highest, in mm. */
+  margin: { xy: number; bottom: number; top: number };
+  placements: ChamberPlacements;
+  /** Meshes by part index, in the part's own axes; a part without one is drawn as its box. */
+  meshesByPart?: ReadonlyMap<number, PartMesh>;
+  /** Hex colour by line index; the Sinterstack line palette when left out. */
+  lineColours?: readonly string[];
+  /** Cut height in mm: what lies above is clipped and the layer under it is drawn in section. Null or absent: no cut. */
+  cutHeightMm?: number | null;
+  /** Placement under the pointer (null when it leaves the parts). */
+  onHover?: (placementIndex: number | null) => void;
+  /** Placement clicked or tapped (null for a click on empty space). */
+  onPick?: (placementIndex: number | null) => void;
+  /** Text for the label shown at the hovered placement, e.g. its line and part. */
+  describePlacement?: (placementIndex: number) => string;
+  /** Called once, on the first rendered frame, with performance.now(). */
+  onFirstFrame?: (msSinceNavigation: number) => void;
+  /** The fit / top / front / side buttons; shown unless false. */
+  showToolbar?: boolean;
+  /** Device pixel ratio range; [1, 1.5] by default, 1 on a software renderer. */
+  dpr?: number | [number, number];
+  /** Multisampled edges; on by default, off on a software renderer (see isSoftwareRenderer). */
+  antialias?: boolean;
+  style?: StyleProp<ViewStyle>;
+}
+
