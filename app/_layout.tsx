@@ -6,7 +6,7 @@ import { useState } from 'react';
 import { View } from 'react-native';
 import { SafeAreaProvider } from 'react-native-safe-area-context';
 import { createQueryClient } from '@/components/queries/queryClient';
-import { colors, fontAssets } from '@/components/theme';
+import { colors, fontAssets, ThemeProvider as TokensProvider } from '@/components/theme';
 
 const navTheme: NavTheme = {
   ...DefaultTheme,
@@ -20,11 +20,13 @@ export default function RootLayout() {
   return (
     <SafeAreaProvider>
       <QueryClientProvider client={queryClient}>
-        <ThemeProvider value={navTheme}>
-          <StatusBar style="dark" />
-          {/* A font that fails to load falls back to the system face rather than blocking the app. */}
-          {fontsLoaded || fontError ? <Slot /> : <View style={{ flex: 1, backgroundColor: colors.powder }} />}
-        </ThemeProvider>
+        <TokensProvider>
+          <ThemeProvider value={navTheme}>
+            <StatusBar style="dark" />
+            {/* A font that fails to load falls back to the system face rather than blocking the app. */}
+            {fontsLoaded || fontError ? <Slot /> : <View style={{ flex: 1, backgroundColor: colors.powder }} />}
+          </ThemeProvider>
+        </TokensProvider>
       </QueryClientProvider>
     </SafeAreaProvider>
   );

@@ -1,13 +1,10 @@
 import { useWindowDimensions } from 'react-native';
-import { theme, wideBreakpoint } from './tokens';
+import { wideBreakpoint } from './tokens';
 
 export * from './tokens';
 export { fontAssets } from './fontAssets';
 
-/** One theme for now; the hook keeps call sites ready for a second one. */
-export function useTheme() {
-  return theme;
-}
+export { ThemeProvider, useTheme } from './ThemeProvider';
 
 /** True at the wide layout (side rail, dense tables). */
 export function useIsWide(): boolean {
