@@ -158,6 +158,29 @@ const SORT_SQL: Record<string, string> = {
   createdAt: 'p.created_at',
 };
 
+/**
+ * Files stored at the same time. Measuring runs in parallel in the worker
+ * pool, but the PostgreSQL driver holds a file's bytes while it writes them,
+ * so a folder of large files is written a few at a time, not all at once.
+ */
+const STORE_CONCURRENCY = 2;
+
+function semaphore(slots: number) {
+  let free = slots;
+  const waiting: (() => void)[] = [];
+  return async <T>(fn: () => Promise<T>): Promise<T> => {
+    if (free > 0) free--;
+    else await new Promise<void>((resolve) => waiting.push(resolve));
+    try {
+      return await fn();
+    } finally {
+      const next = waiting.shift();
+      if (next) next();
+      else free++;
+    }
+  };
+}
+
 const likePattern = (s: string) => `%${s.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
 /**
@@ -169,6 +192,7 @@ export function partsService(db: Database, deps: PartsDeps) {
   const { storage } = deps;
   const measure = deps.measure ?? measureFile;
   const usageChecks: PartUsageCheck[] = [];
+  const storeSlots = semaphore(STORE_CONCURRENCY);
 
   async function rowsById(labId: string, ids: string[], transaction?: Transaction): Promise<PartView[]> {
     if (ids.length === 0) return [];
@@ -246,7 +270,7 @@ export function partsService(db: Database, deps: PartsDeps) {
       const key = 'path' in input.source ? await sha256File(input.source.path) : sha256Bytes(input.source.bytes);
       let created = false;
       try {
-        const ids = await withTransaction(outer, async (transaction) => {
+        const ids = await storeSlots(() => withTransaction(outer, async (transaction) => {
           created = (await storage.put(key, input.source, { transaction, refs: measured.parts.length })).created;
           const ids: string[] = [];
           for (const [index, part] of measured.parts.entries()) {
@@ -283,7 +307,7 @@ export function partsService(db: Database, deps: PartsDeps) {
             ids.push(row.get('id') as string);
           }
           return ids;
-        });
+        }));
         return { ok: true, parts: await rowsById(input.labId, ids, outer) };
       } catch (err) {
         if (created && !outer) await storage.discard(key);

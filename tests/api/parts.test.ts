@@ -1,5 +1,8 @@
 import { createHash, randomUUID } from 'node:crypto';
 import { strToU8, zipSync } from 'fflate';
+import { existsSync, mkdtempSync, readdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import { addMember, signUp, startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
 import { demoMaterials } from '../../shared/demo/profiles';
@@ -8,7 +11,8 @@ import { prism, write3mf, write3mfModelXml, writeAsciiStl, writeBinaryStl, trans
 let running: Running;
 beforeAll(async () => {
   // A small expansion cap so the ZIP bomb test needs only a few megabytes.
-  running = await startTestApp({ max3mfExpandedBytes: 8 * 1024 * 1024 });
+  // Its own temp folder, so the temp-file checks see only this suite's uploads.
+  running = await startTestApp({ max3mfExpandedBytes: 8 * 1024 * 1024, uploadTmpDir: mkdtempSync(path.join(tmpdir(), 'sinterstack-parts-test-')) });
 });
 afterAll(async () => {
   await running.close();
@@ -252,7 +256,7 @@ describe('uploading parts', () => {
   });
 
   test('a file over the upload limit is refused with 413 naming the file, and the temp file is gone', async () => {
-    const small = await startTestApp({ uploadLimitBytes: 1000, uploadTmpDir: `${require('node:os').tmpdir()}/sinterstack-limit-test` });
+    const small = await startTestApp({ uploadLimitBytes: 1000, uploadTmpDir: mkdtempSync(path.join(tmpdir(), 'sinterstack-limit-test-')) });
     try {
       const { agent, labId } = await signUp(small, 'limit');
       const wedge = writeBinaryStl(prism([[0, 0], [10, 0], [5, 8]], 0, 1));
@@ -261,7 +265,7 @@ describe('uploading parts', () => {
       expect(res.status).toBe(413);
       expect(res.body.error).toMatchObject({ code: 'file_too_large', field: 'file' });
       expect(res.body.error.message).toContain('"huge.stl"');
-      expect(require('node:fs').readdirSync(small.config.uploadTmpDir)).toEqual([]);
+      expect(readdirSync(small.config.uploadTmpDir)).toEqual([]);
     } finally {
       await small.close();
     }
@@ -279,13 +283,12 @@ describe('uploading parts', () => {
 
   test('upload temp files are removed after every request', async () => {
     const dir = running.config.uploadTmpDir;
-    const fs = require('node:fs') as typeof import('node:fs');
     const { agent, labId } = await signUp(running, 'tmp');
     await agent
       .post(`/api/labs/${labId}/parts`)
       .attach('file', buf(writeBinaryStl(cube(9))), 'ok.stl')
       .attach('file', buf(strToU8('nope')), 'bad.3mf');
-    expect(fs.existsSync(dir) ? fs.readdirSync(dir) : []).toEqual([]);
+    expect(existsSync(dir) ? readdirSync(dir) : []).toEqual([]);
   });
 });
 
