@@ -40,7 +40,10 @@ export function SignInForm() {
           label="E-mail"
           testID="sign-in-email"
           value={email}
-          onChangeText={setEmail}
+          onChangeText={(t) => {
+            setEmail(t);
+            setLocalErrors(({ email: _e, ...rest }) => rest);
+          }}
           error={errors.email}
           autoCapitalize="none"
           autoComplete="email"
@@ -52,7 +55,10 @@ export function SignInForm() {
           label="Password"
           testID="sign-in-password"
           value={password}
-          onChangeText={setPassword}
+          onChangeText={(t) => {
+            setPassword(t);
+            setLocalErrors(({ password: _p, ...rest }) => rest);
+          }}
           error={errors.password}
           secureTextEntry
           autoComplete="current-password"

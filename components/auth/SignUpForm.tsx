@@ -15,7 +15,10 @@ export function SignUpForm() {
   const signUp = useSignUpMutation();
   const server = fieldErrorsOf(signUp.error, fields);
   const errors = { ...server.fields, ...localErrors };
-  const set = (key: keyof SignUpInput) => (text: string) => setValues((v) => ({ ...v, [key]: text }));
+  const set = (key: keyof SignUpInput) => (text: string) => {
+    setValues((v) => ({ ...v, [key]: text }));
+    setLocalErrors(({ [key]: _gone, ...rest }) => rest);
+  };
 
   const submit = () => {
     const parsed = signUpInputSchema.safeParse(values);
