@@ -398,11 +398,11 @@ export function partsService(db: Database, deps: PartsDeps) {
     },
 
     /** The stored bytes of the part's file, with a content type and the original name. */
-    async file(labId: string, partId: string): Promise<{ bytes: Buffer; contentType: string; filename: string }> {
+    async file(labId: string, partId: string): Promise<{ bytes: Buffer; contentType: string; filename: string; sha256: string }> {
       const part = await get(labId, partId);
       const bytes = await storage.get(part.file.sha256);
       if (!bytes) throw notFound("That part's file");
-      return { bytes, contentType: FILE_CONTENT_TYPES[part.file.format], filename: part.file.name };
+      return { bytes, contentType: FILE_CONTENT_TYPES[part.file.format], filename: part.file.name, sha256: part.file.sha256 };
     },
   };
 }

@@ -23,6 +23,9 @@ export const tagsSchema = z
 
 const uuid = z.uuid('must be an id');
 
+/** Files per upload request: a folder's worth; larger sets go in several requests. */
+export const MAX_FILES_PER_UPLOAD = 100;
+
 /** The multipart upload's text fields (the files come as `file` fields). */
 export const partUploadFieldsSchema = z.strictObject({
   unit: lengthUnitSchema.default('mm'),

@@ -253,6 +253,10 @@ describe('uploading parts', () => {
     expect(res.headers['content-type']).toMatch(/^model\/obj/);
     expect(res.headers['content-disposition']).toContain('small box.obj');
     expect(Buffer.compare(res.body as Buffer, bytes)).toBe(0);
+    // The file never changes under its SHA-256, so a viewer that has it already is told so.
+    expect(res.headers.etag).toBe(`"${createHash('sha256').update(bytes).digest('hex')}"`);
+    const cached = await agent.get(`/api/labs/${labId}/parts/${up.body.parts[0].id}/file`).set('If-None-Match', res.headers.etag);
+    expect(cached.status).toBe(304);
   });
 
   test('a file over the upload limit is refused with 413 naming the file, and the temp file is gone', async () => {

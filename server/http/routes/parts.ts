@@ -2,7 +2,7 @@ import { Router, type RequestHandler } from 'express';
 import multer from 'multer';
 import { unlink } from 'node:fs/promises';
 import { AppError, badRequest } from '../../errors';
-import { partUploadFieldsSchema, type PartUploadResponse, type RejectedFile } from '../../../shared/schemas/parts';
+import { MAX_FILES_PER_UPLOAD, partUploadFieldsSchema, type PartUploadResponse, type RejectedFile } from '../../../shared/schemas/parts';
 import { quoteName } from '../../../shared/geometry';
 import { hasRole, labAccess } from '../middleware/auth';
 import { requireLab } from '../context';
@@ -10,8 +10,6 @@ import { parseOrThrow } from '../validate';
 import type { AppDeps } from '../../app';
 import { plainFileName } from '../../services/parts';
 
-/** Files per upload request: a folder's worth; larger sets go in several requests. */
-export const MAX_FILES_PER_UPLOAD = 100;
 
 /**
  * Multipart upload streamed to temp files on disk (never whole in memory),
@@ -110,7 +108,10 @@ export function partRoutes(deps: AppDeps): Router {
     const file = await parts.file(requireLab(req).labId, String(req.params.partId));
     res.type(file.contentType);
     res.attachment(file.filename);
-    res.setHeader('Cache-Control', 'private, max-age=3600');
+    // The bytes under a key never change, so the key is the entity tag.
+    res.setHeader('ETag', `"${file.sha256}"`);
+    res.setHeader('Cache-Control', 'private, max-age=86400');
+    res.setHeader('X-Content-Type-Options', 'nosniff');
     res.send(file.bytes);
   });
   return r;
