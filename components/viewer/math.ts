@@ -311,19 +311,41 @@ const VIEW_DIRECTIONS: Record<ViewName, { dir: Vec3; up: Vec3 }> = {
   side: { dir: [1, 0, 0], up: [0, 0, 1] },
 };
 
+/** For the axis views: which box axes run across the screen, up the screen, and into it. */
+const AXIS_VIEW_AXES: Record<Exclude<ViewName, 'fit'>, [number, number, number]> = {
+  top: [0, 1, 2],
+  front: [0, 2, 1],
+  side: [1, 2, 0],
+};
+
 /**
- * Camera pose that keeps a box's bounding sphere inside a perspective view.
- * A sphere of radius r seen through a cone of half-angle a just touches it
- * at distance r / sin(a); the narrower of the vertical and horizontal
- * half-angles decides (horizontal: tan(a_h) = aspect * tan(a_v)).
+ * Camera pose that keeps a box in view in a perspective camera.
+ *
+ * Fit (three-quarter view): the bounding sphere. A sphere of radius r seen
+ * through a cone of half-angle a just touches it at distance r / sin(a); the
+ * narrower of the vertical and horizontal half-angles decides
+ * (tan(a_h) = aspect * tan(a_v)).
+ *
+ * Top, front, side: the sphere would leave a tall chamber small in the top
+ * view, so the face towards the camera is fitted instead. The nearest face
+ * is at d - depth / 2 and must hold half-width w and half-height h:
+ * d = depth / 2 + max(w / tan(a_h), h / tan(a_v)).
  */
 export function fitCamera(bounds: Bounds, view: ViewName, verticalFovDeg: number, aspect: number, padding = 1.1): CameraPose {
   const size = sizeOf(bounds);
   const target: Vec3 = [(bounds.min[0] + bounds.max[0]) / 2, (bounds.min[1] + bounds.max[1]) / 2, (bounds.min[2] + bounds.max[2]) / 2];
-  const radius = Math.max(0.5 * Math.hypot(size[0], size[1], size[2]), 1e-3);
   const halfV = (verticalFovDeg * Math.PI) / 360;
   const halfH = Math.atan(Math.tan(halfV) * (aspect > 0 ? aspect : 1));
-  const distance = (padding * radius) / Math.sin(Math.min(halfV, halfH));
+  let distance: number;
+  if (view === 'fit') {
+    const radius = Math.max(0.5 * Math.hypot(size[0], size[1], size[2]), 1e-3);
+    distance = (padding * radius) / Math.sin(Math.min(halfV, halfH));
+  } else {
+    const [across, up, depth] = AXIS_VIEW_AXES[view];
+    const w = Math.max((padding * size[across]) / 2, 1e-3);
+    const h = Math.max((padding * size[up]) / 2, 1e-3);
+    distance = size[depth] / 2 + Math.max(w / Math.tan(halfH), h / Math.tan(halfV));
+  }
   const { dir, up } = VIEW_DIRECTIONS[view];
   const len = Math.hypot(dir[0], dir[1], dir[2]);
   const position: Vec3 = [target[0] + (dir[0] / len) * distance, target[1] + (dir[1] / len) * distance, target[2] + (dir[2] / len) * distance];

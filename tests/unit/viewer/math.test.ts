@@ -267,6 +267,26 @@ describe('camera fit', () => {
     }
   });
 
+  it('fills the top view with the chamber floor rather than its bounding sphere', () => {
+    const aspect = 1.5;
+    const pose = fitCamera(bounds, 'top', 45, aspect, 1);
+    const halfV = (45 * Math.PI) / 360;
+    // the top face (z = 600) is 300 mm nearer than the centre; its 340 mm depth (y) just fits the height
+    const toTop = pose.distance - 300;
+    expect(Math.atan(170 / toTop)).toBeCloseTo(halfV, 6);
+    expect(pose.distance).toBeLessThan(fitCamera(bounds, 'fit', 45, aspect, 1).distance);
+  });
+
+  it('keeps the whole front face in view on a narrow phone screen', () => {
+    const aspect = 390 / 500;
+    const pose = fitCamera(bounds, 'front', 45, aspect, 1);
+    const halfH = Math.atan(Math.tan((45 * Math.PI) / 360) * aspect);
+    const halfV = (45 * Math.PI) / 360;
+    const toFace = pose.distance - 170;
+    expect(Math.atan(170 / toFace)).toBeLessThanOrEqual(halfH + 1e-9);
+    expect(Math.atan(300 / toFace)).toBeLessThanOrEqual(halfV + 1e-9);
+  });
+
   it('looks at the centre of the box', () => {
     const pose = fitCamera(bounds, 'front', 45, 1.5);
     expect(pose.target).toEqual([170, 170, 300]);
