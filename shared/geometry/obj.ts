@@ -13,7 +13,7 @@
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult } from './types';
 import { baseName } from './stl';
 import { weldExact } from './weld';
-import { decodeText } from './text';
+import { decodeText, readNumberAt } from './text';
 
 export interface ObjOptions {
   filename: string;
@@ -31,41 +31,64 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
   let indices = new Uint32Array(3 * 1024);
   let corners = 0;
   const face: number[] = [];
-  let line = 0;
-  let pos = 0;
   const n = text.length;
-  while (pos < n) {
-    let end = text.indexOf('\n', pos);
-    if (end < 0) end = n;
-    line++;
-    let raw = text.slice(pos, end);
-    pos = end + 1;
-    // A trailing backslash continues the statement on the next line.
-    while (raw.endsWith('\\') && pos < n) {
-      let next = text.indexOf('\n', pos);
-      if (next < 0) next = n;
-      raw = raw.slice(0, -1) + ' ' + text.slice(pos, next);
-      pos = next + 1;
-      line++;
-    }
-    const hash = raw.indexOf('#');
-    if (hash >= 0) raw = raw.slice(0, hash);
-    raw = raw.trim();
-    if (raw === '') continue;
-    const fields = raw.split(/\s+/);
-    const keyword = fields[0];
-    if (keyword === 'v') {
-      if (fields.length < 4) return refuse('obj-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
-      const x = readNumber(fields[1]);
-      const y = readNumber(fields[2]);
-      const z = readNumber(fields[3]);
-      const w = fields.length > 4 ? readNumber(fields[4]) : 1;
-      for (const [value, text] of [[x, fields[1]], [y, fields[2]], [z, fields[3]], [w, fields[4]]] as const) {
-        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(text)) {
-          return refuse('obj-syntax', `${name}, line ${line}: "${text.slice(0, 40)}" is not a number.`);
-        }
+  let i = 0;
+  let line = 1;
+
+  // Words are scanned in place. A backslash before a line end joins the lines; '#' starts a comment.
+  const atLineEnd = (): boolean => {
+    for (;;) {
+      if (i >= n) return true;
+      const c = text.charCodeAt(i);
+      if (c === 10) return true;
+      if (c === 92 /* \ */ && (text.charCodeAt(i + 1) === 10 || (text.charCodeAt(i + 1) === 13 && text.charCodeAt(i + 2) === 10))) {
+        i += text.charCodeAt(i + 1) === 10 ? 2 : 3;
+        line++;
+        continue;
       }
-      if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z) || !Number.isFinite(w) || w === 0) {
+      if (c === 35 /* # */) {
+        const end = text.indexOf('\n', i);
+        i = end < 0 ? n : end;
+        return true;
+      }
+      if (c > 32) return false;
+      i++;
+    }
+  };
+  const word = (): string => {
+    const from = i;
+    while (i < n && text.charCodeAt(i) > 32) i++;
+    return text.slice(from, i);
+  };
+  const skipLine = () => {
+    const end = text.indexOf('\n', i);
+    i = end < 0 ? n : end;
+  };
+
+  while (i < n) {
+    if (atLineEnd()) {
+      if (i < n) {
+        i++;
+        line++;
+      }
+      continue;
+    }
+    const keyword = word();
+    if (keyword === 'v') {
+      const values: number[] = [];
+      while (!atLineEnd() && values.length < 4) {
+        const from = i;
+        const field = word();
+        const value = readNumberAt(text, from, i);
+        if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(field)) {
+          return refuse('obj-syntax', `${name}, line ${line}: "${field.slice(0, 40)}" is not a number.`);
+        }
+        values.push(value);
+      }
+      skipLine();
+      if (values.length < 3) return refuse('obj-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
+      const w = values.length > 3 ? values[3] : 1;
+      if (!values.every(Number.isFinite) || w === 0) {
         return refuse('non-finite-coordinate', `${name}, line ${line}: a coordinate is not a number or is infinite.`);
       }
       if ((vertexCount + 1) * 3 > positions.length) {
@@ -74,18 +97,19 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
         positions = grown;
       }
       const o = vertexCount * 3;
-      positions[o] = (x / w) * scale;
-      positions[o + 1] = (y / w) * scale;
-      positions[o + 2] = (z / w) * scale;
+      positions[o] = (values[0] / w) * scale;
+      positions[o + 1] = (values[1] / w) * scale;
+      positions[o + 2] = (values[2] / w) * scale;
       vertexCount++;
     } else if (keyword === 'f' || keyword === 'fo') {
       face.length = 0;
-      for (let k = 1; k < fields.length; k++) {
-        const slash = fields[k].indexOf('/');
-        const token = slash >= 0 ? fields[k].slice(0, slash) : fields[k];
+      while (!atLineEnd()) {
+        const field = word();
+        const slash = field.indexOf('/');
+        const token = slash >= 0 ? field.slice(0, slash) : field;
         const value = Number(token);
         if (!Number.isInteger(value) || value === 0 || token === '') {
-          return refuse('obj-syntax', `${name}, line ${line}: "${fields[k].slice(0, 40)}" is not a vertex reference.`);
+          return refuse('obj-syntax', `${name}, line ${line}: "${field.slice(0, 40)}" is not a vertex reference.`);
         }
         const index = value > 0 ? value - 1 : vertexCount + value;
         if (index < 0 || index >= vertexCount) {
@@ -108,19 +132,12 @@ export function parseObj(bytes: Uint8Array, options: ObjOptions): ParseResult {
         indices[corners++] = face[k];
         indices[corners++] = face[k + 1];
       }
+    } else {
+      // vt, vn, g, o, s, usemtl, mtllib, l, p, ...: no effect on the solid
+      skipLine();
     }
   }
   if (corners === 0) return refuse('no-triangles', `${name} holds no faces.`);
   const welded = weldExact(positions.slice(0, vertexCount * 3), indices.subarray(0, corners));
   return { ok: true, parts: [{ name: baseName(options.filename), ...welded }] };
-}
-
-/** Like Number(), but reads the words C libraries print for non-finite values ("inf", "-inf", "nan") as such. */
-function readNumber(text: string): number {
-  const value = Number(text);
-  if (!Number.isNaN(value)) return value;
-  const word = text.toLowerCase();
-  if (word === 'inf' || word === '+inf' || word === 'infinity' || word === '+infinity') return Infinity;
-  if (word === '-inf' || word === '-infinity') return -Infinity;
-  return NaN;
 }

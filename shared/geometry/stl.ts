@@ -13,7 +13,7 @@
  */
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult } from './types';
 import { VertexWelder } from './weld';
-import { decodeText } from './text';
+import { decodeText, readNumberAt } from './text';
 
 export interface StlOptions {
   filename: string;
@@ -114,10 +114,11 @@ function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseRe
       i++;
     }
     if (i >= n) return null;
-    const from = i;
+    wordStart = i;
     while (i < n && text.charCodeAt(i) > 32) i++;
-    return text.slice(from, i);
+    return text.slice(wordStart, i);
   };
+  let wordStart = 0;
   // Vertex arguments must stay on their line; keywords may follow any whitespace.
   let wordsOnLine = false;
   for (;;) {
@@ -131,7 +132,7 @@ function parseAscii(bytes: Uint8Array, filename: string, scale: number): ParseRe
       for (let k = 0; k < 3; k++) {
         const field = nextWord();
         if (field === null) return refuse('stl-ascii-syntax', `${name}, line ${line}: a vertex needs three numbers.`);
-        const value = readNumber(field);
+        const value = readNumberAt(text, wordStart, i);
         if (Number.isNaN(value) && !/^[-+]?(nan|inf|infinity)$/i.test(field)) {
           return refuse('stl-ascii-syntax', `${name}, line ${line}: "${field.slice(0, 40)}" is not a number.`);
         }
@@ -177,14 +178,4 @@ export function baseName(filename: string): string {
   const last = filename.split(/[\\/]/).pop() ?? filename;
   const dot = last.lastIndexOf('.');
   return (dot > 0 ? last.slice(0, dot) : last) || 'part';
-}
-
-/** Like Number(), but reads the words C libraries print for non-finite values ("inf", "-inf", "nan") as such. */
-function readNumber(text: string): number {
-  const value = Number(text);
-  if (!Number.isNaN(value)) return value;
-  const word = text.toLowerCase();
-  if (word === 'inf' || word === '+inf' || word === 'infinity' || word === '+infinity') return Infinity;
-  if (word === '-inf' || word === '-infinity') return -Infinity;
-  return NaN;
 }
