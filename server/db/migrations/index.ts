@@ -2,6 +2,7 @@ import type { QueryInterface } from 'sequelize';
 import * as m0001 from './0001-auth-labs';
 import * as m0002 from './0002-parts-requests';
 import * as m0003 from './0003-plans';
+import * as m0004 from './0004-runs';
 
 export type Migration = {
   name: string;
@@ -14,4 +15,5 @@ export const migrations: Migration[] = [
   { name: '0001-auth-labs', ...m0001 },
   { name: '0002-parts-requests', ...m0002 },
   { name: '0003-plans', ...m0003 },
+  { name: '0004-runs', ...m0004 },
 ];

@@ -1,5 +1,6 @@
 import { DataTypes, type ModelStatic, type Model, type Sequelize } from 'sequelize';
 import { planModels, type PlanModels } from './plans';
+import { runModels, type RunModels } from './runs';
 
 type AnyModel = ModelStatic<Model<any, any>>;
 export type Models = {
@@ -13,7 +14,8 @@ export type Models = {
   Part: AnyModel;
   Request: AnyModel;
   RequestLine: AnyModel;
-} & PlanModels;
+} & PlanModels &
+  RunModels;
 
 const base = { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' } as const;
 
@@ -80,7 +82,7 @@ export function initModels(sequelize: Sequelize): Models {
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Lab, { foreignKey: 'labId', as: 'lab' });
-  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize), ...planModels(sequelize) };
+  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize) };
 }
 
 /** Stored files, parts, requests and request lines. */

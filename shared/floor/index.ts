@@ -1,0 +1,4 @@
+export * from './cautions';
+export * from './checklist';
+export * from './timers';
+export * from './card';
