@@ -101,6 +101,10 @@ export function LayerSlider({ maxHeightMm, layerHeightMm, valueMm, onChange, onC
         accessibilityRole="adjustable"
         accessibilityLabel="Cut height"
         accessibilityValue={{ min: 0, max: layers, now: layer, text: `layer ${layer} of ${layers}, ${heightText}` }}
+        aria-valuemin={0}
+        aria-valuemax={layers}
+        aria-valuenow={layer}
+        aria-valuetext={`layer ${layer} of ${layers}, ${heightText}`}
         accessibilityActions={[{ name: 'increment' }, { name: 'decrement' }]}
         onAccessibilityAction={(e) => setLayer(layer + (e.nativeEvent.actionName === 'increment' ? 1 : -1), true)}
         {...webKeyProps}
