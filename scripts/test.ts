@@ -7,7 +7,7 @@
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
-import { ensureCluster, ensureDatabase, ROOT } from './lib/postgres';
+import { dropDatabase, dropStaleTestDatabases, ensureCluster, ensureDatabase, ROOT } from './lib/postgres';
 import { ensureWebBundle } from './lib/web';
 
 export const CHROMIUM = '/usr/bin/chromium';
@@ -23,7 +23,12 @@ async function main() {
   const log = (s: string) => console.log(s);
   const args = process.argv.slice(2);
   const cluster = await ensureCluster(log);
-  const databaseUrl = await ensureDatabase(cluster, 'sinterstack_test', { fresh: true });
+  // A database of this run's own, so that runs side by side (several
+  // contributors on one machine) never drop each other's data mid-test.
+  await dropStaleTestDatabases(cluster);
+  const dbName = `sinterstack_test_${process.pid}`;
+  const databaseUrl = await ensureDatabase(cluster, dbName, { fresh: true });
+
   process.env.DATABASE_URL = databaseUrl;
   process.env.NODE_ENV = 'test';
   const { loadConfig } = await import('../server/config');
@@ -46,6 +51,8 @@ async function main() {
     if (lint.status !== 0) process.exit(lint.status ?? 1);
   }
   const jest = spawnSync('npx', ['jest', ...args], { cwd: ROOT, stdio: 'inherit', env: process.env });
+  // A run that is interrupted leaves its database; the next run drops it.
+  await dropDatabase(cluster, dbName).catch(() => {});
   process.exit(jest.status ?? 1);
 }
 

@@ -155,3 +155,39 @@ export function startCluster(): void {
   if (!pgCtl) throw new Error('pg_ctl not found');
   run(pgCtl, ['start', '-w', '-t', '60', '-D', CLUSTER, '-l', LOG, '-o', `-p ${PG_PORT} -h 127.0.0.1 -k ${CLUSTER}`], { asPostgres: true });
 }
+
+/** Drops test databases left by runs whose process is gone. */
+export async function dropStaleTestDatabases(cluster: Cluster): Promise<void> {
+  const admin = new pg.Client({ connectionString: cluster.adminUrl });
+  await admin.connect();
+  try {
+    const { rows } = await admin.query("SELECT datname FROM pg_database WHERE datname ~ '^sinterstack_test(_[0-9]+)?$'");
+    for (const { datname } of rows as { datname: string }[]) {
+      const pid = Number(datname.split('_').pop());
+      let alive = false;
+      if (Number.isInteger(pid) && pid > 0) {
+        try {
+          process.kill(pid, 0);
+          alive = true;
+        } catch {
+          alive = false;
+        }
+      }
+      if (!alive) await admin.query(`DROP DATABASE IF EXISTS ${datname} WITH (FORCE)`);
+    }
+  } finally {
+    await admin.end();
+  }
+}
+
+/** Drops one database (the test runner's own, when it ends). */
+export async function dropDatabase(cluster: Cluster, name: string): Promise<void> {
+  if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`bad database name ${name}`);
+  const admin = new pg.Client({ connectionString: cluster.adminUrl });
+  await admin.connect();
+  try {
+    await admin.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+  } finally {
+    await admin.end();
+  }
+}
