@@ -1,6 +1,7 @@
 import { lowerBound } from './bounds';
 import { layerCount, orientationCode, orientedSize, usableRegion } from './geometry';
 import { createRandom, type Random } from './prng';
+import { shelfFill } from './shelf';
 import {
   applyChoice,
   cloneState,
@@ -143,6 +144,7 @@ function problemFor(model: Model, usableHeight: number, floorFirst: boolean, was
     floorFirst,
     wasteWeight,
     maxTypesPerSpace: model.types.length > 48 ? 32 : 1000,
+    maxSpaces: 1500,
   };
 }
 
@@ -391,9 +393,21 @@ const SCHEDULE: ReadonlyArray<readonly [number, number]> = [
   [64, 16],
 ];
 
+/**
+ * Thousands of distinct parts: a layer-and-row fill first, so that a valid layout exists
+ * within milliseconds whatever the block solver needs.
+ */
+function quickFirstLayout(ctx: Ctx): void {
+  // Only for many distinct parts (few copies each): blocks of copies then cannot speed the solver up.
+  if (ctx.best || ctx.model.totalBoxes < 1000 || ctx.model.types.length < 0.2 * ctx.model.totalBoxes) return;
+  const s = shelfFill(problemFor(ctx.model, ctx.model.extent[2], true, 1));
+  offer(ctx, expand(ctx.model, s), s.value);
+}
+
 function* maxVolume(ctx: Ctx): Generator<void, void, void> {
   const model = ctx.model;
   const h = model.extent[2];
+  quickFirstLayout(ctx);
   const variants = [problemFor(model, h, false, 1), problemFor(model, h, false, 0), problemFor(model, h, true, 1)];
   ctx.phase = 'greedy';
   let bestValue = -1;
@@ -434,6 +448,7 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   const bottom = inst.margin.bottom;
   const full = model.extent[2];
   ctx.phase = 'greedy';
+  quickFirstLayout(ctx);
   // Guesses just above the lower bound first: a fill of the whole chamber stacks columns needlessly high.
   const bound0 = Math.max(0, lowerBound(inst) - bottom);
   let first: SolverState | null = null;
@@ -448,6 +463,7 @@ function* minHeight(ctx: Ctx): Generator<void, void, void> {
   }
   if (!first) first = greedy(ctx, problemFor(model, full, true, 1));
   offer(ctx, expand(model, first), first.value);
+  if (first.boxesLeft > 0 && outOfBudget(ctx)) return;
   if (first.boxesLeft > 0) {
     // Not everything fits: the most volume in the whole chamber, lowered afterwards.
     yield* maxVolume(ctx);

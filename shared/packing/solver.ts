@@ -39,6 +39,11 @@ export interface ContainerProblem {
   wasteWeight: number;
   /** Look at no more than this many fitting box types per space (keeps thousands of distinct parts fast). */
   maxTypesPerSpace: number;
+  /**
+   * Keep at most about this many empty spaces, dropping the smallest: thousands of distinct
+   * parts otherwise fragment the free volume into thousands of spaces and every step slows down.
+   */
+  maxSpaces: number;
 }
 
 export interface BlockNode {
@@ -336,6 +341,24 @@ function place(problem: ContainerProblem, s: SolverState, si: number, corner: nu
   s.value += count * type.unitValue;
   if (s.remaining[c.type] === 0) s.minDim = smallestRemainingDim(problem, s.remaining);
   carve(s, x, y, z, x + B0, y + B1, z + B2);
+  if (s.spaces.length > 9 * problem.maxSpaces) trimSpaces(s, problem.maxSpaces);
+}
+
+/** Drops the smallest spaces down to `keep`: less room to use, but the layout stays valid. */
+function trimSpaces(s: SolverState, keep: number): void {
+  const sp = s.spaces;
+  const n = sp.length / 6;
+  const volume = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const j = 6 * i;
+    volume[i] = (sp[j + 3] - sp[j]) * (sp[j + 4] - sp[j + 1]) * (sp[j + 5] - sp[j + 2]);
+  }
+  const threshold = Float64Array.from(volume).sort()[n - keep];
+  const kept: number[] = [];
+  for (let i = 0; i < n && kept.length < 6 * keep; i++) {
+    if (volume[i] >= threshold) kept.push(sp[6 * i], sp[6 * i + 1], sp[6 * i + 2], sp[6 * i + 3], sp[6 * i + 4], sp[6 * i + 5]);
+  }
+  s.spaces = kept;
 }
 
 function removeSpace(s: SolverState, si: number): void {

@@ -1,6 +1,6 @@
 import { generatePowderBed, splitIntoBuilds, validateLayout, type BuildLine } from '@/shared/packing';
 
-const settings = { chamber: [260, 260, 150] as [number, number, number], margin: { xy: 8, bottom: 5, top: 5 }, spacing: 3, timeLimitMs: 150 };
+const settings = { chamber: [260, 260, 150] as [number, number, number], margin: { xy: 8, bottom: 5, top: 5 }, spacing: 3, timeLimitMs: 60_000 };
 
 describe('splitting request lines into builds', () => {
   const demand = generatePowderBed({ parts: 900, seed: 11 });
