@@ -9,7 +9,7 @@
  *     -> { ok: true, mesh: ViewMesh } | { ok: false, problems: MeshProblem[] }
  */
 import * as Comlink from 'comlink';
-import { MM_PER_UNIT, mergeMeshes, parseMeshFile, type LengthUnit, type ProblemCode } from '../shared/geometry';
+import { MM_PER_UNIT, formatFromFilename, isBinaryStlSize, mergeMeshes, parseMeshFile, type LengthUnit, type ProblemCode } from '../shared/geometry';
 
 export interface ViewMesh {
   /** xyz triples in millimetres, in the file's own coordinates (z is the build direction). */
@@ -49,7 +49,10 @@ export function parseMeshForView(bytes: unknown, filename: unknown, unit: unknow
   if (options.partName !== undefined && typeof options.partName !== 'string') problems.push({ code: 'bad-request', field: 'options.partName', message: 'must be a string' });
   if (problems.length > 0) return { ok: false, problems };
 
-  const parsed = parseMeshFile(new Uint8Array(bytes as ArrayBuffer), { filename: filename as string, unit: unit as LengthUnit });
+  const u8 = new Uint8Array(bytes as ArrayBuffer);
+  // A download URL such as /parts/7/file carries no extension; the bytes still say which reader they need.
+  const name = formatFromFilename(filename as string) ? (filename as string) : `${filename as string}${sniffExtension(u8) ?? ''}`;
+  const parsed = parseMeshFile(u8, { filename: name, unit: unit as LengthUnit });
   if (!parsed.ok) return { ok: false, problems: parsed.problems };
 
   let parts = parsed.parts;
@@ -90,6 +93,23 @@ export function parseMeshForView(bytes: unknown, filename: unknown, unit: unknow
       partNames: parsed.parts.map((p) => p.name),
     },
   };
+}
+
+/**
+ * The format from the first bytes: a ZIP local header ("PK\x03\x04", the
+ * 3MF package), a binary STL whose size is 84 + 50 n for its facet count n
+ * (the 1989 STL layout), ASCII STL's "solid" keyword, or OBJ's "v" lines.
+ */
+export function sniffExtension(bytes: Uint8Array): '.3mf' | '.stl' | '.obj' | null {
+  if (bytes.length >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return '.3mf';
+  if (bytes.length >= 84) {
+    const facets = new DataView(bytes.buffer, bytes.byteOffset + 80, 4).getUint32(0, true);
+    if (isBinaryStlSize(bytes.length, facets)) return '.stl';
+  }
+  const head = new TextDecoder().decode(bytes.subarray(0, 4096));
+  if (/^\s*solid\b/.test(head)) return '.stl';
+  if (/^\s*v\s+[-+.\d]/m.test(head)) return '.obj';
+  return null;
 }
 
 const api = {

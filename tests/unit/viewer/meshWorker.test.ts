@@ -1,5 +1,5 @@
-import { bracket, write3mf, writeBinaryStl, translation } from '../../../shared/geometry';
-import { parseMeshForView } from '../../../workers/mesh.worker';
+import { bracket, write3mf, writeAsciiStl, writeBinaryStl, translation } from '../../../shared/geometry';
+import { parseMeshForView, sniffExtension } from '../../../workers/mesh.worker';
 
 const buffer = (u8: Uint8Array) => u8.buffer.slice(u8.byteOffset, u8.byteOffset + u8.byteLength) as ArrayBuffer;
 // A 40 x 30 mm angle bracket, 20 mm wide (extruded along z).
@@ -62,5 +62,21 @@ describe('parsing a mesh for the 3D preview', () => {
   it('says which part is missing when the asked-for part is not in the file', () => {
     const result = parseMeshForView(buffer(writeBinaryStl(bracketMesh())), 'bracket.stl', 'mm', { partName: 'lid' });
     expect(result).toMatchObject({ ok: false, problems: [{ code: 'part-not-found', field: 'options.partName' }] });
+  });
+});
+
+describe('a download without a file extension', () => {
+  it('is read by its bytes: binary STL (84 + 50 n bytes), ASCII STL, 3MF (a ZIP) and OBJ', () => {
+    expect(sniffExtension(writeBinaryStl(bracketMesh()))).toBe('.stl');
+    expect(sniffExtension(writeAsciiStl(bracketMesh()))).toBe('.stl');
+    expect(sniffExtension(write3mf([{ name: 'a', ...bracketMesh() }], [{ objectIndex: 0, transform: translation(0, 0, 0) }]))).toBe('.3mf');
+    expect(sniffExtension(new TextEncoder().encode('# part\nv 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n'))).toBe('.obj');
+    expect(sniffExtension(new TextEncoder().encode('hello'))).toBeNull();
+  });
+
+  it('still parses, as the part page fetches /parts/:id/file', () => {
+    const result = parseMeshForView(buffer(writeBinaryStl(bracketMesh())), 'file', 'mm');
+    if (!result.ok) throw new Error(JSON.stringify(result.problems));
+    expect(result.mesh.sizeMm[0]).toBeCloseTo(40, 4);
   });
 });
