@@ -73,6 +73,7 @@ export type LineRow = {
   priority: string;
   request_status: string;
   line_quantity: number;
+  line_planned: number;
   printed_count: number;
 };
 
@@ -149,18 +150,24 @@ export async function recordEvent(
 }
 
 /**
- * Request lines' planned counts, recomputed from every plan that still holds
- * them, in the caller's transaction so a count never disagrees with the plans.
+ * Moves request lines' planned counts by what a plan change took or gave
+ * back, in the caller's transaction. By differences rather than recounted
+ * from the plans, so that parts a run gives back (failed at breakout) stay
+ * open whatever other plans do later.
  */
-export async function recountPlanned(db: Database, requestLineIds: string[], transaction: Transaction): Promise<void> {
-  if (requestLineIds.length === 0) return;
+export async function adjustPlanned(db: Database, deltas: Map<string, number>, transaction: Transaction): Promise<void> {
+  const changed = [...deltas].filter(([, d]) => d !== 0);
+  if (changed.length === 0) return;
   await db.sequelize.query(
-    `UPDATE request_lines rl SET planned_count = COALESCE((
-       SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id
-        WHERE pl.request_line_id = rl.id AND p.status NOT IN ${INACTIVE_SQL}), 0), updated_at = now()
-     WHERE rl.id = ANY($1::uuid[])`,
-    { bind: [[...new Set(requestLineIds)]], transaction },
+    `UPDATE request_lines rl SET planned_count = GREATEST(rl.planned_count + d.delta, 0), updated_at = now()
+       FROM (SELECT unnest($1::uuid[]) AS id, unnest($2::int[]) AS delta) d
+      WHERE rl.id = d.id`,
+    { bind: [changed.map(([id]) => id), changed.map(([, d]) => d)], transaction },
   );
+}
+
+function addDeltas(into: Map<string, number>, lines: Array<{ requestLineId: string; quantity: number }>, sign: 1 | -1) {
+  for (const l of lines) into.set(l.requestLineId, (into.get(l.requestLineId) ?? 0) + sign * l.quantity);
 }
 
 /** A planner's edit of a plan that was sent back reopens it as a draft (recorded like any other change). */
@@ -186,7 +193,7 @@ export async function planLines(db: Database, planId: string, transaction?: Tran
             p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
             p.orientation AS part_orientation, r.id AS request_id, r.title AS request_title,
             to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.status AS request_status,
-            rl.quantity AS line_quantity, rl.printed_count
+            rl.quantity AS line_quantity, rl.planned_count AS line_planned, rl.printed_count
        FROM plan_lines pl
        JOIN request_lines rl ON rl.id = pl.request_line_id
        JOIN requests r ON r.id = rl.request_id
@@ -217,33 +224,35 @@ type LineInput = { requestLineId: string; quantity: number; orientation?: PlanOr
 /**
  * Checks the lines a planner picked: each a request line of this lab, its
  * request open and in the plan's material, and no more than it still needs
- * (its quantity less what other active plans hold). Locks the request lines
- * so two plans cannot both take the last of one.
+ * (its quantity less its planned count, not counting what this plan itself
+ * holds). Locks the request lines so two plans cannot both take the last of one.
  */
 async function checkLines(db: Database, labId: string, materialId: string, lines: LineInput[], planId: string | null, transaction: Transaction) {
   const ids = lines.map((l) => l.requestLineId);
   const rows = await db.sequelize.query<{
     id: string;
     quantity: number;
+    planned_count: number;
     status: string;
     material_id: string | null;
     title: string;
     part_name: string;
   }>(
-    `SELECT rl.id, rl.quantity, r.status, r.material_id, r.title, p.name AS part_name
+    `SELECT rl.id, rl.quantity, rl.planned_count, r.status, r.material_id, r.title, p.name AS part_name
        FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
       WHERE rl.id = ANY($1::uuid[]) AND r.lab_id = $2
       FOR UPDATE OF rl`,
     { bind: [ids, labId], type: QueryTypes.SELECT, transaction },
   );
-  const held = await db.sequelize.query<{ request_line_id: string; held: string }>(
-    `SELECT pl.request_line_id, SUM(pl.quantity) AS held FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id
-      WHERE pl.request_line_id = ANY($1::uuid[]) AND p.status NOT IN ${INACTIVE_SQL} AND ($2::uuid IS NULL OR p.id <> $2::uuid)
-      GROUP BY pl.request_line_id`,
-    { bind: [ids, planId], type: QueryTypes.SELECT, transaction },
-  );
+  const own = planId
+    ? await db.sequelize.query<{ request_line_id: string; quantity: number }>('SELECT request_line_id, quantity FROM plan_lines WHERE plan_id = $1', {
+        bind: [planId],
+        type: QueryTypes.SELECT,
+        transaction,
+      })
+    : [];
   const byId = new Map(rows.map((r) => [r.id, r]));
-  const heldBy = new Map(held.map((h) => [h.request_line_id, Number(h.held)]));
+  const ownBy = new Map(own.map((o) => [o.request_line_id, o.quantity]));
   const problems: Array<{ field: string; message: string }> = [];
   lines.forEach((line, i) => {
     const row = byId.get(line.requestLineId);
@@ -260,7 +269,7 @@ async function checkLines(db: Database, labId: string, materialId: string, lines
       problems.push({ field: `lines[${i}].requestLineId`, message: `is ${what}, which asks for another material than this plan's` });
       return;
     }
-    const need = row.quantity - (heldBy.get(row.id) ?? 0);
+    const need = row.quantity - (row.planned_count - (ownBy.get(row.id) ?? 0));
     if (line.quantity > need) {
       problems.push({
         field: `lines[${i}].quantity`,
@@ -329,7 +338,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
     );
     if (!plan) throw notFound('That plan');
-    const [machine, material, lines, layouts, events, held] = await Promise.all([
+    const [machine, material, lines, layouts, events] = await Promise.all([
       profileRow(db, 'machines', labId, plan.machine_id),
       profileRow(db, 'materials', labId, plan.material_id),
       planLines(db, plan.id),
@@ -344,15 +353,8 @@ export function plansService(db: Database, deps: PlansDeps) {
            FROM plan_events e LEFT JOIN users u ON u.id = e.user_id WHERE e.plan_id = $1 ORDER BY e.created_at, e.id`,
         { bind: [plan.id], type: QueryTypes.SELECT },
       ),
-      sequelize.query<{ request_line_id: string; held: string }>(
-        `SELECT pl2.request_line_id, SUM(pl2.quantity) AS held
-           FROM plan_lines pl JOIN plan_lines pl2 ON pl2.request_line_id = pl.request_line_id AND pl2.plan_id <> pl.plan_id
-           JOIN plans p2 ON p2.id = pl2.plan_id AND p2.status NOT IN ${INACTIVE_SQL}
-          WHERE pl.plan_id = $1 GROUP BY pl2.request_line_id`,
-        { bind: [plan.id], type: QueryTypes.SELECT },
-      ),
     ]);
-    const heldBy = new Map(held.map((h) => [h.request_line_id, Number(h.held)]));
+    const holds = !INACTIVE_STATUSES.includes(plan.status);
     const key = linesKey(lines);
     const lineViews: PlanLineView[] = lines.map((l) => ({
       id: l.id,
@@ -369,7 +371,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       },
       request: { id: l.request_id, title: l.request_title, dueDate: l.due_date, priority: l.priority, status: l.request_status },
       lineQuantity: l.line_quantity,
-      plannedElsewhere: heldBy.get(l.request_line_id) ?? 0,
+      plannedElsewhere: Math.max(0, l.line_planned - (holds ? l.quantity : 0)),
       printedCount: l.printed_count,
     }));
     const eventViews: PlanEventView[] = events.map((e) => ({
@@ -438,7 +440,9 @@ export function plansService(db: Database, deps: PlansDeps) {
         const id = rows[0].id;
         await insertLines(db, id, input.lines, transaction);
         await recordEvent(db, id, null, 'draft', user.id, null, transaction);
-        await recountPlanned(db, input.lines.map((l) => l.requestLineId), transaction);
+        const deltas = new Map<string, number>();
+        addDeltas(deltas, input.lines, 1);
+        await adjustPlanned(db, deltas, transaction);
         return { id, version: 1, status: 'draft' as const };
       });
     },
@@ -490,9 +494,8 @@ export function plansService(db: Database, deps: PlansDeps) {
       const rows = await sequelize.query<any>(
         `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
                 p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
-                COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
-                           WHERE pl.request_line_id = rl.id AND pp.status NOT IN ${INACTIVE_SQL}
-                             AND ($3::uuid IS NULL OR pp.id <> $3::uuid)), 0) AS held
+                rl.planned_count - COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
+                           WHERE pl.request_line_id = rl.id AND pp.id = $3::uuid AND pp.status NOT IN ${INACTIVE_SQL}), 0) AS held
            FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
           WHERE r.lab_id = $1 AND r.status = 'open' AND ($2::uuid IS NULL OR r.material_id = $2::uuid)
           ORDER BY CASE r.priority WHEN 'urgent' THEN 0 WHEN 'high' THEN 1 WHEN 'normal' THEN 2 ELSE 3 END, r.due_date, r.created_at, rl.position`,
@@ -504,8 +507,8 @@ export function plansService(db: Database, deps: PlansDeps) {
           part: { id: r.part_id, name: r.part_name, sizeMm: [r.size_x_mm, r.size_y_mm, r.size_z_mm] as [number, number, number], volumeMm3: r.volume_mm3, orientation: r.orientation },
           request: { id: r.request_id, title: r.title, dueDate: r.due_date, priority: r.priority, materialId: r.material_id },
           quantity: r.quantity,
-          plannedCount: Number(r.held),
-          remaining: r.quantity - Number(r.held),
+          plannedCount: Math.max(0, Number(r.held)),
+          remaining: r.quantity - Math.max(0, Number(r.held)),
         }))
         .filter((l) => l.remaining > 0);
     },
@@ -533,7 +536,10 @@ export function plansService(db: Database, deps: PlansDeps) {
           await checkLines(db, labId, plan.material_id, input.lines, plan.id, transaction);
           await sequelize.query('DELETE FROM plan_lines WHERE plan_id = $1', { bind: [plan.id], transaction });
           await insertLines(db, plan.id, input.lines, transaction);
-          await recountPlanned(db, [...before.map((l) => l.request_line_id), ...input.lines.map((l) => l.requestLineId)], transaction);
+          const deltas = new Map<string, number>();
+          addDeltas(deltas, before.map((l) => ({ requestLineId: l.request_line_id, quantity: l.quantity })), -1);
+          addDeltas(deltas, input.lines, 1);
+          await adjustPlanned(db, deltas, transaction);
         }
         await reopenIfSentBack(db, plan, user.id, transaction);
         const sets = ['version = version + 1', 'updated_at = now()'];
@@ -601,7 +607,9 @@ export function plansService(db: Database, deps: PlansDeps) {
         const version = await applyTransition(db, plan, 'cancelled', user.id, comment, transaction);
         await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [plan.id], transaction });
         const lines = await planLines(db, plan.id, transaction);
-        await recountPlanned(db, lines.map((l) => l.request_line_id), transaction);
+        const deltas = new Map<string, number>();
+        addDeltas(deltas, lines.map((l) => ({ requestLineId: l.request_line_id, quantity: l.quantity })), -1);
+        await adjustPlanned(db, deltas, transaction);
         return { id: plan.id, status: plan.status, version };
       });
     },

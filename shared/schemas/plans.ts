@@ -88,7 +88,7 @@ export interface OpenLineView {
   part: { id: string; name: string; sizeMm: [number, number, number]; volumeMm3: number; orientation: PlanOrientationRule };
   request: { id: string; title: string; dueDate: string; priority: string; materialId: string | null };
   quantity: number;
-  /** Held by active plans (other than `planId`). */
+  /** The line's planned count, less what `planId` itself holds. */
   plannedCount: number;
   /** quantity - plannedCount: the most a plan may take. */
   remaining: number;

@@ -72,6 +72,22 @@ describe('creating a plan', () => {
     expect(await plannedCount(req.lines[0].id)).toBe(25);
   });
 
+  test('planned counts move by what each save takes or gives back, so parts given back by a run stay open', async () => {
+    const { agent: lead, labId, machineId, materialId, userId } = await labWithProfiles(running, 'delta');
+    const req = await makeRequest(running, labId, userId, materialId, [BRACKET]);
+    const a = await createPlan(lead, labId, machineId, materialId, [{ id: req.lines[0].id, quantity: 30 }]);
+    // As a run does at breakout: 4 failed parts go back to the request as open quantity.
+    await running.db.sequelize.query('UPDATE request_lines SET planned_count = planned_count - 4 WHERE id = $1', { bind: [req.lines[0].id] });
+    const b = await lead.post(`/api/labs/${labId}/plans`).send({ name: 'Reprint', machineId, materialId, lines: [{ requestLineId: req.lines[0].id, quantity: 4 }] });
+    expect(b.status).toBe(201);
+    expect(await plannedCount(req.lines[0].id)).toBe(30);
+    const lowered = await lead.put(`/api/labs/${labId}/plans/${a.id}`).send({ version: 1, lines: [{ requestLineId: req.lines[0].id, quantity: 20 }] });
+    expect(lowered.body.lines[0].quantity).toBe(20);
+    expect(await plannedCount(req.lines[0].id)).toBe(20);
+    const open = (await lead.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
+    expect(open.map((l: any) => l.remaining)).toEqual([10]);
+  });
+
   test('lines of another material, a closed request or another lab are refused', async () => {
     const { agent: lead, labId, machineId, materialId, userId, material } = await labWithProfiles(running, 'badlines');
     const other = await lead.post(`/api/labs/${labId}/materials`).send({ ...material, name: 'Other powder' });
