@@ -1,0 +1,5 @@
+import { NewRequest } from '@/components/requests/RequestPages';
+
+export default function NewRequestRoute() {
+  return <NewRequest />;
+}
