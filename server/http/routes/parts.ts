@@ -1,4 +1,4 @@
-import { Router, type RequestHandler } from 'express';
+import { Router, type Request, type RequestHandler } from 'express';
 import multer from 'multer';
 import { unlink } from 'node:fs/promises';
 import { AppError, badRequest } from '../../errors';
@@ -51,43 +51,14 @@ export function partRoutes(deps: AppDeps): Router {
 
   r.post('/labs/:labId/parts', uploader, uploadMiddleware(deps), async (req, res) => {
     const files = (req.files as Express.Multer.File[] | undefined) ?? [];
+    let out: PartUploadResponse;
     try {
-      const { labId, user } = requireLab(req);
-      const fields = parseOrThrow(partUploadFieldsSchema, { ...(req.body ?? {}) });
-      if (files.length === 0) throw badRequest('Choose at least one file to upload (fields named "file").', 'file');
-      // Measuring runs in parallel in the worker pool; each file stands alone.
-      const results = await Promise.all(
-        files.map((f) =>
-          parts.importFile({
-            labId,
-            userId: user.id,
-            filename: f.originalname,
-            source: { path: f.path, sizeBytes: f.size },
-            unit: fields.unit,
-            split: fields.split,
-          }),
-        ),
-      );
-      const out: PartUploadResponse = { parts: [], rejected: [] };
-      const serverErrors: unknown[] = [];
-      for (const result of results) {
-        if (result.ok) out.parts.push(...result.parts);
-        else {
-          out.rejected.push(result.rejected);
-          if (result.serverError) serverErrors.push(result.serverError);
-        }
-      }
-      if (out.parts.length > 0) {
-        for (const e of serverErrors) deps.log(`upload: a file was not saved: ${(e as Error)?.stack ?? String(e)}`);
-        res.status(201).json(out);
-        return;
-      }
-      // Nothing kept: a server-side failure is the server's answer, not the files' fault.
-      if (serverErrors.length > 0) throw serverErrors[0];
-      throw allRejected(out.rejected);
+      out = await importUploads(deps, req, files);
     } finally {
+      // Before answering, so a client that sees the answer never sees the temp files.
       await Promise.all(files.map((f) => unlink(f.path).catch(() => {})));
     }
+    res.status(201).json(out);
   });
 
   r.get('/labs/:labId/parts', member, async (req, res) => {
@@ -115,6 +86,42 @@ export function partRoutes(deps: AppDeps): Router {
     res.send(file.bytes);
   });
   return r;
+}
+
+/** Measures and stores every file; throws when none could be kept. */
+async function importUploads(deps: AppDeps, req: Request, files: Express.Multer.File[]): Promise<PartUploadResponse> {
+  const { labId, user } = requireLab(req);
+  const fields = parseOrThrow(partUploadFieldsSchema, { ...(req.body ?? {}) });
+  if (files.length === 0) throw badRequest('Choose at least one file to upload (fields named "file").', 'file');
+  // Measuring runs in parallel in the worker pool; each file stands alone.
+  const results = await Promise.all(
+    files.map((f) =>
+      deps.services.parts.importFile({
+        labId,
+        userId: user.id,
+        filename: f.originalname,
+        source: { path: f.path, sizeBytes: f.size },
+        unit: fields.unit,
+        split: fields.split,
+      }),
+    ),
+  );
+  const out: PartUploadResponse = { parts: [], rejected: [] };
+  const serverErrors: unknown[] = [];
+  for (const result of results) {
+    if (result.ok) out.parts.push(...result.parts);
+    else {
+      out.rejected.push(result.rejected);
+      if (result.serverError) serverErrors.push(result.serverError);
+    }
+  }
+  if (out.parts.length > 0) {
+    for (const e of serverErrors) deps.log(`upload: a file was not saved: ${(e as Error)?.stack ?? String(e)}`);
+    return out;
+  }
+  // Nothing kept: a server-side failure is the server's answer, not the files' fault.
+  if (serverErrors.length > 0) throw serverErrors[0];
+  throw allRejected(out.rejected);
 }
 
 function allRejected(rejected: RejectedFile[]): AppError {
