@@ -196,6 +196,8 @@ describe('layouts', () => {
     expect(back.status).toBe(200);
     expect(back.body).toMatchObject({ label: 'Grid', matchesPlan: true, chosen: false, placedCount: 70, layers: result.layers });
     expect(back.body.result.placements).toEqual(result.placements);
+    const stranger = await signUp(running, 'layoutstranger');
+    expect((await stranger.agent.get(`/api/labs/${stranger.labId}/plans/${plan.id}/layouts/${res.body.id}`)).status).toBe(404);
     const view = (await agent.get(`/api/labs/${labId}/plans/${plan.id}`)).body;
     expect(view.layouts).toEqual([expect.objectContaining({ id: res.body.id, label: 'Grid', placedCount: 70, unplacedCount: 0 })]);
     expect(view.layouts[0].estimate.areaPerLayerMm2).toBeUndefined();
