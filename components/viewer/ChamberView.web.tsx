@@ -173,11 +173,16 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const hover = useRef<HoverState>({ mesh: null, instanceId: -1, placement: null, saved: new THREE.Color() });
   const label = useRef<{ show(at: Vec3 | null, text: string): void } | null>(null);
   const section = useRef<SectionHandle | null>(null);
+  const cutOutline = useRef<THREE.LineLoop>(null);
 
   const applyCut = (h: number | null) => {
     const active = h !== null && Number.isFinite(h);
     clipPlane.constant = active ? (h as number) : NO_CUT;
     section.current?.show(active ? (h as number) : null);
+    if (cutOutline.current) {
+      cutOutline.current.visible = active;
+      if (active) cutOutline.current.position.z = h as number;
+    }
     invalidate();
   };
   controller.current = {
@@ -233,6 +238,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
       <Lights span={Math.max(...chamberMm)} />
       {parts}
       <SectionRects placements={placements} palette={palette} handle={section} />
+      <CutOutline ref={cutOutline} chamberMm={chamberMm} />
       <BoxOutline min={chamberBounds.min} max={chamberBounds.max} colour={sceneColours.outline} opacity={0.9} />
       <BoxOutline min={usable.min} max={usable.max} colour={sceneColours.usable} opacity={0.55} />
       <FloorGrid sizeMm={Math.max(chamberMm[0], chamberMm[1])} centre={[chamberMm[0] / 2, chamberMm[1] / 2]} stepMm={gridStep} />
@@ -377,6 +383,21 @@ const PartInstances = memo(function PartInstances({ list, placements, mesh, boxG
       onPointerOut={events.onPointerOut}
       onClick={events.onClick}
     />
+  );
+});
+
+/** The cut plane's edge around the chamber walls, so the cut reads at any camera angle. */
+const CutOutline = forwardRef<THREE.LineLoop, { chamberMm: Vec3 }>(function CutOutline({ chamberMm }, ref) {
+  const [x, y] = chamberMm;
+  const geometry = useMemo(
+    () => new THREE.BufferGeometry().setAttribute('position', new THREE.BufferAttribute(Float32Array.from([0, 0, 0, x, 0, 0, x, y, 0, 0, y, 0]), 3)),
+    [x, y],
+  );
+  useEffect(() => () => geometry.dispose(), [geometry]);
+  return (
+    <lineLoop ref={ref} geometry={geometry} visible={false}>
+      <lineBasicMaterial color={sceneColours.arrow} />
+    </lineLoop>
   );
 });
 
