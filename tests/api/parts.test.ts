@@ -283,6 +283,13 @@ describe('uploading parts', () => {
     const unit = await agent.post(`/api/labs/${labId}/parts`).field('unit', 'furlong').attach('file', buf(writeBinaryStl(cube(10))), 'a.stl');
     expect(unit.status).toBe(400);
     expect(unit.body.error.field).toBe('unit');
+    const wrongField = await agent.post(`/api/labs/${labId}/parts`).attach('mesh', buf(writeBinaryStl(cube(10))), 'a.stl');
+    expect(wrongField.status).toBe(400);
+    expect(wrongField.body.error.message).toContain('"file"');
+    const extra = await agent.post(`/api/labs/${labId}/parts`).field('colour', 'red').attach('file', buf(writeBinaryStl(cube(10))), 'a.stl');
+    expect(extra.status).toBe(400);
+    expect(extra.body.error.field).toBe('colour');
+    expect((await agent.get(`/api/labs/${labId}/parts`)).body.total).toBe(0);
   });
 
   test('upload temp files are removed after every request', async () => {
@@ -332,7 +339,7 @@ describe('the storage transaction', () => {
 });
 
 describe('who may do what', () => {
-  test('an operator reads the library but may not upload (403, nothing written)', async () => {
+  test('an operator reads the library but may not upload or edit parts (403, nothing written)', async () => {
     const { agent: lead, labId } = await signUp(running, 'perm');
     const op = await addMember(running, lead, labId, ['operator'], 'op');
     const bytes = uniqueStl(cube(10));
@@ -341,6 +348,9 @@ describe('who may do what', () => {
     expect(res.body.error.code).toBe('forbidden');
     expect(await counts(labId, [bytes])).toEqual({ parts: 0, files: 0 });
     expect((await op.agent.get(`/api/labs/${labId}/parts`)).status).toBe(200);
+    const up = await lead.post(`/api/labs/${labId}/parts`).attach('file', buf(uniqueStl(cube(10))), 'b.stl');
+    expect((await op.agent.get(`/api/labs/${labId}/parts/${up.body.parts[0].id}`)).status).toBe(200);
+    expect((await op.agent.patch(`/api/labs/${labId}/parts/${up.body.parts[0].id}`).send({ name: 'renamed' })).status).toBe(403);
   });
 
   test('only the uploader or a lead deletes a part', async () => {
