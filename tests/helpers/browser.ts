@@ -28,7 +28,8 @@ export async function serveAndLaunch(): Promise<Served> {
   const server = await listen(running.app, port, '127.0.0.1');
   const browser = await chromium.launch({
     executablePath: CHROMIUM,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+    // SwiftShader gives headless Chromium software WebGL for the 3D views.
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
   });
   return {
     running,
