@@ -1,0 +1,128 @@
+import type { Page } from 'playwright-core';
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
+import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { gear, measureMesh, writeBinaryStl } from '../../shared/geometry';
+
+jest.setTimeout(240_000);
+
+let served: Served;
+beforeAll(async () => {
+  served = await serveAndLaunch();
+});
+afterAll(async () => {
+  await served?.close();
+});
+
+async function signIn(page: Page, email: string) {
+  await page.goto('/');
+  await page.getByTestId('sign-in-email').fill(email);
+  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
+  await page.getByTestId('sign-in-submit').click();
+  await page.getByTestId('screen-home').waitFor();
+}
+
+/** A spur gear made by the project's own generator, written as binary STL. */
+function gearStl() {
+  const mesh = gear({ teeth: 18, rootRadiusMm: 14, tipRadiusMm: 17, boreRadiusMm: 4, thicknessMm: 6, samplesPerTooth: 6 });
+  return { bytes: writeBinaryStl(mesh, 'browser test gear'), metrics: measureMesh(mesh) };
+}
+
+/**
+ * Drops a file on an element the way a desktop drag does: a real DataTransfer
+ * holding a File, in a drop event. The page code is a string so the test's own
+ * transpiler does not rewrite it.
+ */
+async function dropFile(page: Page, testId: string, name: string, bytes: Uint8Array) {
+  const b64 = Buffer.from(bytes).toString('base64');
+  const dataTransfer = await page.evaluateHandle(`(() => {
+    const raw = atob(${JSON.stringify(b64)});
+    const u8 = new Uint8Array(raw.length);
+    for (let i = 0; i < raw.length; i++) u8[i] = raw.charCodeAt(i);
+    const dt = new DataTransfer();
+    dt.items.add(new File([u8], ${JSON.stringify(name)}, { type: 'model/stl' }));
+    return dt;
+  })()`);
+  const zone = page.getByTestId(testId);
+  await zone.dispatchEvent('dragenter', { dataTransfer });
+  await zone.dispatchEvent('dragover', { dataTransfer });
+  await zone.dispatchEvent('drop', { dataTransfer });
+}
+
+const oneDecimal = (v: number) => String(Number(v.toFixed(1)));
+
+describe.each([
+  ['phone', PHONE],
+  ['wide', WIDE],
+])('the demo designer on a %s', (name, viewport) => {
+  test('drops an STL on the parts screen, sees it measured in the library and opens its page with the 3D preview', async () => {
+    const page = await newPage(served, viewport);
+    await signIn(page, 'designer@tinkerfin.example');
+    await page.goto('/parts');
+    await page.getByTestId('parts-table').waitFor();
+    await screenshot(page, `parts-library-${name}`);
+
+    const { bytes, metrics } = gearStl();
+    const file = `drop-gear-${name}-${Date.now()}.stl`;
+    await dropFile(page, 'parts-drop', file, bytes);
+    await page.getByTestId(`upload-status-${file}`).getByText('Measured').waitFor();
+    const expectedSize = metrics.sizeMm.map(oneDecimal).join(' × ');
+    await screenshot(page, `parts-uploaded-${name}`);
+
+    // The library, searched by the new part's name, lists it with the size the server measured.
+    const partName = file.replace(/\.stl$/, '');
+    await page.getByTestId('parts-search').fill(partName);
+    await page.getByTestId('parts-total').getByText('1 part', { exact: true }).waitFor();
+    const row = page.locator('[data-testid^="part-row-"]').filter({ hasText: partName });
+    await row.waitFor();
+    expect(await row.innerText()).toContain(expectedSize);
+    await screenshot(page, `parts-search-${name}`);
+
+    await row.click();
+    await page.getByTestId('screen-part').waitFor();
+    await page.getByTestId('part-preview').locator('canvas').waitFor();
+    expect(await page.getByTestId('part-metric-triangles').innerText()).toBe(metrics.triangles.toLocaleString('en-US'));
+    expect(await page.getByTestId('part-metric-watertight').innerText()).toBe('yes');
+    // Give the software renderer a moment to draw the first frame before the picture is taken.
+    await page.waitForTimeout(1500);
+    await screenshot(page, `part-page-${name}`);
+
+    // A quarter turn about x swaps the part's y and z extents before it is saved.
+    await page.getByTestId('part-rotate-x').click();
+    const turned = [metrics.sizeMm[0], metrics.sizeMm[2], metrics.sizeMm[1]].map((v) => String(Number(v.toFixed(2)))).join(' × ');
+    expect(await page.getByTestId('part-rotated-size').innerText()).toContain(turned);
+    await page.context().close();
+  });
+
+  test('files a request for a library part, with an out-of-range quantity refused inline first', async () => {
+    const page = await newPage(served, viewport);
+    await signIn(page, 'designer@tinkerfin.example');
+    await page.goto('/requests');
+    await page.getByTestId('request-new').click();
+    await page.getByTestId('request-form').waitFor();
+    const title = `Browser request ${name} ${Date.now()}`;
+    await page.getByTestId('request-title').fill(title);
+    await page.getByTestId('request-material').getByRole('radio').first().click();
+    await page.getByTestId('request-part-search').fill('gear');
+    const add = page.locator('[data-testid^="request-add-part-"]').first();
+    await add.waitFor();
+    await add.click();
+    await page.getByTestId('request-line-0').waitFor();
+    await page.getByTestId('request-line-0-quantity').fill('0');
+    await page.getByTestId('request-submit').click();
+    await page.getByTestId('request-line-0-error').waitFor();
+    await screenshot(page, `request-new-${name}`);
+
+    await page.getByTestId('request-line-0-quantity').fill('12');
+    await page.getByTestId('request-priority-high').click();
+    await page.getByTestId('request-submit').click();
+    await page.getByTestId('screen-request').waitFor();
+    expect(await page.getByTestId('request-total-quantity').innerText()).toBe('12');
+    await page.getByText(title).first().waitFor();
+    await screenshot(page, `request-detail-${name}`);
+
+    await page.getByTestId('request-back').click();
+    await page.getByTestId('requests-table').getByText(title).waitFor();
+    await screenshot(page, `requests-list-${name}`);
+    await page.context().close();
+  });
+});
