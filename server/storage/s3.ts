@@ -1,7 +1,10 @@
 import { DeleteObjectCommand, GetObjectCommand, PutObjectCommand, S3Client } from '@aws-sdk/client-s3';
 import { createReadStream } from 'node:fs';
+import { readFile } from 'node:fs/promises';
 import type { S3StorageConfig } from '../config';
 import type { FileSource, ObjectStore } from './types';
+
+const STREAM_ABOVE_BYTES = 16 * 1024 * 1024;
 
 /** Objects under `files/<sha256>` in one bucket of an S3-compatible store. */
 export function s3ObjectStore(config: S3StorageConfig): ObjectStore & { client: S3Client } {
@@ -24,7 +27,10 @@ export function s3ObjectStore(config: S3StorageConfig): ObjectStore & { client: 
   return {
     client,
     async putObject(key: string, source: FileSource) {
-      const body = 'path' in source ? createReadStream(source.path) : source.bytes;
+      // A stream cannot be sent twice, so the SDK does not retry it: small
+      // files go as bytes (retried on a passing network fault), large ones stream.
+      const body =
+        'path' in source ? (source.sizeBytes <= STREAM_ABOVE_BYTES ? await readFile(source.path) : createReadStream(source.path)) : source.bytes;
       const length = 'path' in source ? source.sizeBytes : source.bytes.byteLength;
       await client.send(new PutObjectCommand({ Bucket, Key: objectKey(key), Body: body, ContentLength: length, ContentType: 'application/octet-stream' }));
     },
