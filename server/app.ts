@@ -15,6 +15,7 @@ import { labRoutes } from './http/routes/labs';
 import { partRoutes } from './http/routes/parts';
 import { requestRoutes } from './http/routes/requests';
 import { planRoutes } from './http/routes/plans';
+import { runRoutes } from './http/routes/runs';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
 import { invitesService } from './services/invites';
@@ -24,6 +25,11 @@ import { requestsService } from './services/requests';
 import { plansService } from './services/plans';
 import { layoutsService } from './services/layouts';
 import { reviewService } from './services/review';
+import { calibrationService } from './services/calibration';
+import { queueService } from './services/queue';
+import { runsService } from './services/runs';
+import { sheetService } from './services/sheet';
+import { export3mfService } from './services/export3mf';
 import { createStorage } from './storage';
 import { machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
 
@@ -48,10 +54,14 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes });
   const requests = requestsService(db, parts);
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
-  // calibrationFor: the machine's fitted estimate factors, once recorded runs are kept.
-  const layouts = layoutsService(db, {});
+  const calibration = calibrationService(db);
+  const layouts = layoutsService(db, { calibrationFor: calibration.lookup });
   const review = reviewService(db, { plans, appUrl: config.appUrl });
-  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review };
+  const queue = queueService(db, { calibration });
+  const runs = runsService(db);
+  const sheet = sheetService(db, { layouts });
+  const export3mf = export3mfService(db, { storage, layouts });
+  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -86,6 +96,7 @@ export function createApp(deps: AppDeps) {
   api.use(partRoutes(deps));
   api.use(requestRoutes(deps));
   api.use(planRoutes(deps.services));
+  api.use(runRoutes(deps.services));
   api.use(notFoundRoute);
   api.use(errorHandler(deps.log));
   app.use('/api', api);

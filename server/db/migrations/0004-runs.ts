@@ -79,7 +79,7 @@ export async function up(q: QueryInterface): Promise<void> {
         run_id: { type: DataTypes.UUID, primaryKey: true, references: { model: 'runs', key: 'id' }, onDelete: 'CASCADE' },
         plan_line_id: { type: DataTypes.UUID, primaryKey: true, references: { model: 'plan_lines', key: 'id' }, onDelete: 'CASCADE' },
         request_line_id: { type: DataTypes.UUID, allowNull: false },
-        // What the plan held before breakout; the plan line keeps only the good ones afterwards.
+        // What the plan held; the parts not counted good went back to the request as open quantity.
         planned_count: { type: DataTypes.INTEGER, allowNull: false },
         good_count: { type: DataTypes.INTEGER, allowNull: false },
         failed_count: { type: DataTypes.INTEGER, allowNull: false },
@@ -91,19 +91,9 @@ export async function up(q: QueryInterface): Promise<void> {
          CHECK (good_count >= 0 AND failed_count >= 0 AND good_count + failed_count <= planned_count)`,
       { transaction },
     );
-    // After breakout a plan line holds only its good parts, which may be none at all.
-    await q.sequelize.query(
-      `ALTER TABLE plan_lines DROP CONSTRAINT plan_lines_quantity,
-         ADD CONSTRAINT plan_lines_quantity CHECK (quantity BETWEEN 0 AND 100000)`,
-      { transaction },
-    );
   });
 }
 
 export async function down(q: QueryInterface): Promise<void> {
   for (const t of ['run_lines', 'run_readings', 'runs']) await q.dropTable(t);
-  await q.sequelize.query(
-    `ALTER TABLE plan_lines DROP CONSTRAINT plan_lines_quantity,
-       ADD CONSTRAINT plan_lines_quantity CHECK (quantity BETWEEN 1 AND 100000)`,
-  );
 }

@@ -1,0 +1,162 @@
+import PDFDocument from 'pdfkit';
+import { QueryTypes } from 'sequelize';
+import type { Database } from '../db';
+import { conflict, notFound } from '../errors';
+import type { LayoutsService } from './layouts';
+import { checkPlanId, planLines, profileRow } from './plans';
+import { checkExportable } from './export3mf';
+import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
+import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
+import type { Placement } from '../../shared/packing';
+
+const INK = '#222222';
+const MUTED = '#666666';
+const BOX_FILL = '#9bb7d4';
+
+const fmt = (n: number | undefined, digits = 1) => (typeof n === 'number' && Number.isFinite(n) ? n.toFixed(digits) : '-');
+const hours = (seconds: number | undefined) => (typeof seconds === 'number' ? `${fmt(seconds / 3600, 1)} h` : '-');
+
+/**
+ *   top view (x right, y up)        side view (x right, z up)
+ *   +-------------+                 +-------------+
+ *   |  []  []     |                 |             |
+ *   |  [] [ ]  [] |                 | [] [] []    |
+ *   +-------------+                 +-------------+
+ * The chamber's outline and every placed box projected on the view's plane;
+ * boxes drawn back to front so the nearer ones stay visible.
+ */
+function drawView(
+  doc: PDFKit.PDFDocument,
+  title: string,
+  chamber: readonly number[],
+  placements: readonly Placement[],
+  axes: [number, number],
+  depthAxis: number,
+  x: number,
+  y: number,
+  width: number,
+  height: number,
+) {
+  const [a, b] = axes;
+  const scale = Math.min(width / chamber[a], height / chamber[b]);
+  const w = chamber[a] * scale;
+  const h = chamber[b] * scale;
+  doc.fillColor(INK).fontSize(9).text(title, x, y - 12, { width, lineBreak: false });
+  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, w, h).stroke();
+  const sorted = [...placements].sort((p, q) => p.position[depthAxis] - q.position[depthAxis]);
+  doc.lineWidth(0.3);
+  for (const p of sorted) {
+    const px = x + p.position[a] * scale;
+    // PDF y grows downwards; the chamber's axis grows upwards.
+    const py = y + h - (p.position[b] + p.size[b]) * scale;
+    doc.rect(px, py, Math.max(0.3, p.size[a] * scale), Math.max(0.3, p.size[b] * scale)).fillAndStroke(BOX_FILL, '#34506e');
+  }
+  doc.fillColor(MUTED).fontSize(7).text(`${fmt(chamber[a], 0)} x ${fmt(chamber[b], 0)} mm`, x, y + h + 3, { width, lineBreak: false });
+  return h;
+}
+
+/** The operator's clipboard copy of an approved plan: views, part list, estimates, checklists and cautions, as a PDF. */
+export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
+  const { sequelize } = db;
+
+  return {
+    async build(labId: string, planId: string): Promise<{ name: string; bytes: Buffer }> {
+      const [plan] = await sequelize.query<{ id: string; name: string; status: PlanStatus; chosen_layout_id: string | null; machine_id: string; material_id: string; queue_position: number | null }>(
+        'SELECT id, name, status, chosen_layout_id, machine_id, material_id, queue_position FROM plans WHERE id = $1 AND lab_id = $2',
+        { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
+      );
+      if (!plan) throw notFound('That plan');
+      checkExportable(plan.status, 'build sheet');
+      if (!plan.chosen_layout_id) throw conflict('no_chosen_layout', 'This plan has no chosen layout.');
+      const [layout, lines, machine, material] = await Promise.all([
+        deps.layouts.get(labId, plan.id, plan.chosen_layout_id),
+        planLines(db, plan.id),
+        profileRow(db, 'machines', labId, plan.machine_id),
+        profileRow(db, 'materials', labId, plan.material_id),
+      ]);
+      const est = layout.estimate as any;
+      const chamber = (machine?.chamberMm ?? layout.instance.chamber) as number[];
+      const placements = layout.result.placements as Placement[];
+
+      const doc = new PDFDocument({
+        size: 'A4',
+        margin: 40,
+        info: { Title: `Build sheet: ${plan.name}`, Subject: plan.name, Creator: 'Sinterstack' },
+      });
+      const chunks: Buffer[] = [];
+      doc.on('data', (c: Buffer) => chunks.push(c));
+      const ended = new Promise<void>((resolve, reject) => {
+        doc.on('end', () => resolve());
+        doc.on('error', reject);
+      });
+      const left = doc.page.margins.left;
+      const usable = doc.page.width - left - doc.page.margins.right;
+
+      doc.fillColor(INK).font('Helvetica-Bold').fontSize(16).text(plan.name);
+      doc.font('Helvetica').fontSize(9).fillColor(MUTED);
+      doc.text(
+        `Machine ${machine?.name ?? ''} · material ${material?.name ?? ''} · ${STATUS_LABELS[plan.status]}` +
+          (plan.queue_position ? ` · number ${plan.queue_position} in the queue` : '') +
+          ` · layout "${layout.label}" · printed ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`,
+      );
+      doc.moveDown(1.5);
+
+      const viewTop = doc.y + 14;
+      const half = (usable - 20) / 2;
+      const hTop = drawView(doc, 'Top view (x, y)', chamber, placements, [0, 1], 2, left, viewTop, half, 210);
+      const hSide = drawView(doc, 'Side view (x, z)', chamber, placements, [0, 2], 1, left + half + 20, viewTop, half, 210);
+      doc.x = left;
+      doc.y = viewTop + Math.max(hTop, hSide) + 20;
+
+      doc.fillColor(INK).font('Helvetica-Bold').fontSize(11).text('Parts by request line');
+      doc.font('Helvetica').fontSize(9);
+      for (const l of lines) {
+        const placed = placements.filter((p) => p.id === l.request_line_id).length;
+        doc.text(`${l.quantity} x ${l.part_name}  ·  request "${l.request_title}", due ${l.due_date}  ·  ${placed} placed  ·  ${fmt(l.size_x_mm)} x ${fmt(l.size_y_mm)} x ${fmt(l.size_z_mm)} mm`);
+      }
+      doc.moveDown();
+
+      doc.font('Helvetica-Bold').fontSize(11).text('Estimates');
+      doc.font('Helvetica').fontSize(9);
+      const calib = est?.calibration?.calibrated ? `calibrated from ${est.calibration.runs} runs` : 'not calibrated yet';
+      for (const line of [
+        `${est?.layerCount ?? '-'} layers of ${fmt(est?.layerHeightMm, 2)} mm, parts up to ${fmt(est?.heightMm)} mm`,
+        `Print ${hours(est?.print?.printSeconds)} (preheat ${hours(est?.print?.preheatSeconds)}) · ${calib}`,
+        `Cooling ${hours(est?.cooling?.inMachineSeconds)} in the machine to ${machine?.removalTempC ?? '-'} °C, then ${hours(est?.cooling?.outsideSeconds)} outside to ${machine?.handlingTempC ?? '-'} °C`,
+        `Powder: ${fmt(est?.powder?.freshPowderKg, 2)} kg fresh + ${fmt(est?.powder?.reusedPowderKg, 2)} kg reused (cake ${fmt(est?.powder?.cakeMassKg, 2)} kg) · packing density ${fmt((est?.powder?.packingDensity ?? 0) * 100)} %`,
+        `Cost per part ${fmt(est?.cost?.costPerPart, 2)}`,
+      ]) {
+        doc.text(line);
+      }
+      doc.moveDown();
+
+      const checklist = (title: string, items: ReturnType<typeof stageChecklist>) => {
+        doc.font('Helvetica-Bold').fontSize(11).fillColor(INK).text(title);
+        doc.font('Helvetica').fontSize(9);
+        for (const item of items) {
+          const y = doc.y;
+          doc.lineWidth(0.6).rect(left, y + 1, 7, 7).stroke();
+          doc.text(item.label, left + 12, y);
+        }
+        doc.x = left;
+        doc.moveDown(0.5);
+      };
+      checklist(
+        'Before printing',
+        stageChecklist('queued', { freshPowderKg: est?.powder?.freshPowderKg, reusedPowderKg: est?.powder?.reusedPowderKg }),
+      );
+      checklist('Finishing', stageChecklist('finishing'));
+
+      doc.font('Helvetica-Bold').fontSize(11).fillColor(INK).text('Safety');
+      doc.font('Helvetica-Oblique').fontSize(8).fillColor(MUTED).text(CAUTION_DEFERRAL);
+      for (const caution of Object.values(CAUTIONS)) {
+        doc.font('Helvetica-Bold').fontSize(9).fillColor(INK).text(caution.title);
+        doc.font('Helvetica').fontSize(8).text(`${caution.points.join(' ')} (${caution.reference}.)`);
+      }
+      doc.end();
+      await ended;
+      return { name: plan.name, bytes: Buffer.concat(chunks) };
+    },
+  };
+}
+export type SheetService = ReturnType<typeof sheetService>;
