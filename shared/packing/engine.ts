@@ -12,7 +12,7 @@ import {
   type ContainerProblem,
   type SolverState,
 } from './solver';
-import { ORIENTATIONS, RESULT_FORMAT, type Orientation, type PackInstance, type PackResult, type Placement, type Vec3 } from './types';
+import { RESULT_FORMAT, type Orientation, type PackInstance, type PackResult, type Placement, type Vec3 } from './types';
 import { validateLayout } from './validate';
 
 export type PackPhase = 'greedy' | 'search' | 'done';
@@ -595,7 +595,6 @@ export function pack(instance: PackInstance, options?: PackOptions): Promise<Pac
   return createPacking(instance, options).run();
 }
 
-export { ORIENTATIONS };
 
 /** The result record (unplaced counts, height, layers, utilisation) for given placements of an instance. */
 export function summariseLayout(instance: PackInstance, placements: Placement[], elapsedMs = 0): PackResult {
