@@ -39,6 +39,26 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
   const store: ObjectStore | null = config.driver === 's3' ? (objects ?? s3ObjectStore(config)) : null;
   const driver = config.driver;
 
+  /**
+   * With an object store, the object and its row change in two places. Every
+   * step that writes or removes an object holds a transaction lock on its key
+   * until its row is settled, so a rolled-back upload cannot remove an object
+   * that a concurrent upload of the same bytes is about to commit.
+   */
+  async function lockKey(key: string, transaction: Transaction) {
+    await sequelize.query('SELECT pg_advisory_xact_lock(hashtextextended($1, 0))', { bind: [`files:${key}`], transaction });
+  }
+
+  /** Removes the object when no row points at it, under the key's lock. */
+  async function removeUnreferencedObject(key: string) {
+    if (!store) return;
+    await sequelize.transaction(async (transaction) => {
+      await lockKey(key, transaction);
+      const rows = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT, transaction });
+      if (rows.length === 0) await store.deleteObject(key);
+    });
+  }
+
   async function addRefs(key: string, refs: number, transaction: Transaction): Promise<boolean> {
     const rows = await sequelize.query('UPDATE files SET ref_count = ref_count + $1 WHERE key = $2 RETURNING key', {
       bind: [refs, key],
@@ -53,6 +73,7 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
 
     async put(key, source, { transaction, refs = 1 }) {
       checkKey(key);
+      if (store) await lockKey(key, transaction);
       if (await addRefs(key, refs, transaction)) return { created: false };
       const size = sourceSize(source);
       if (store) {
@@ -108,18 +129,14 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
         // The object goes only once the row is gone for good, and only if no
         // new upload of the same bytes has brought the row back.
         transaction.afterCommit(() => {
-          void (async () => {
-            const again = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT });
-            if (again.length === 0) await store.deleteObject(key);
-          })().catch(() => {});
+          void removeUnreferencedObject(key).catch(() => {});
         });
       }
     },
 
     async discard(key) {
       if (!store || !SHA256_HEX.test(key)) return;
-      const rows = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT });
-      if (rows.length === 0) await store.deleteObject(key).catch(() => {});
+      await removeUnreferencedObject(key).catch(() => {});
     },
   };
 }

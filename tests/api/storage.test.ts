@@ -158,6 +158,25 @@ describe('the S3 driver against a local S3-compatible server', () => {
     expect(await objectExists(key)).toBe(false);
   });
 
+  test('an upload rolled back while another upload of the same bytes commits leaves the object in place', async () => {
+    const bytes = stl(12);
+    const key = sha256Bytes(bytes);
+    const { sequelize } = running.db;
+    const storage = running.services.storage;
+    const first = await sequelize.transaction();
+    expect(await storage.put(key, { bytes }, { transaction: first })).toEqual({ created: true });
+    // The second upload waits for the first to settle, then writes the object again.
+    const second = sequelize.transaction((transaction) => storage.put(key, { bytes }, { transaction }));
+    await new Promise((r) => setTimeout(r, 100));
+    await first.rollback();
+    await storage.discard(key);
+    await second;
+    expect(await rowCounts(running, key)).toEqual({ parts: 0, files: 1 });
+    expect(await objectExists(key)).toBe(true);
+    expect(Buffer.compare((await storage.get(key))!, bytes)).toBe(0);
+    await sequelize.transaction((transaction) => storage.delete(key, { transaction }));
+  });
+
   test('when the object store fails, the upload answers 503 and leaves no part or file row', async () => {
     // A bucket that does not exist makes every write fail, as a broken store would.
     const broken = await startTestApp({ storage: s3Config('no-such-bucket') });
