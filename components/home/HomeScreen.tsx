@@ -8,6 +8,7 @@ import { useMaterialsQuery } from '../queries/materials';
 import { useMeQuery } from '../queries/me';
 import { useMembersQuery } from '../queries/members';
 import { useInvitesQuery } from '../queries/invites';
+import { ReviewList } from '../review/ReviewList';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Badge, EmptyState, Figure, Icon, LinkPressable, Screen, Text } from '../ui';
 
@@ -100,7 +101,7 @@ export function HomeScreen() {
               </Text>
               {s.role ? <Badge label={roleLabels[s.role]} tone={roleTones[s.role]} /> : <Badge label="Everyone" />}
             </View>
-            <EmptyState title={s.empty.title} body={s.empty.body} who={s.empty.who} />
+            {s.key === 'lead' ? <ReviewList compact /> : <EmptyState title={s.empty.title} body={s.empty.body} who={s.empty.who} />}
           </View>
         ))}
       </View>

@@ -1,0 +1,88 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
+import { api } from '../api/client';
+import type { PlanStatus } from '../../shared/plans/status';
+import type { ReadingInput, RunView } from '../../shared/schemas/runs';
+import { planKeys, planListSchema } from './plans';
+import { queueKeys } from './queue';
+
+/** The floor's cards must show a change made on another phone within 5 s. */
+export const FLOOR_REFRESH_MS = 4000;
+
+const runSchema = z.looseObject({
+  planId: z.string(),
+  planName: z.string(),
+  status: z.string(),
+  allowedTransitions: z.array(z.string()),
+  machine: z.looseObject({ id: z.string(), name: z.string() }),
+  lines: z.array(z.looseObject({ requestLineId: z.string(), plannedCount: z.number() })),
+  readings: z.array(z.looseObject({ tempC: z.number(), where: z.string(), at: z.string() })),
+  thresholds: z.looseObject({ removalTempC: z.number(), handlingTempC: z.number(), ambientTempC: z.number(), startTempC: z.number() }),
+  timers: z.looseObject({}),
+  card: z.looseObject({ status: z.string(), checklist: z.array(z.looseObject({})), cautions: z.array(z.looseObject({})), deferral: z.string() }),
+  now: z.string(),
+}) as unknown as z.ZodType<RunView>;
+
+/** Statuses whose run belongs on a machine's floor: the next queued build and every one under way. */
+export const FLOOR_STATUSES: readonly PlanStatus[] = ['queued', 'printing', 'cooling', 'breakout', 'finishing'];
+
+export const runKeys = {
+  all: (labId: string) => ['labs', labId, 'runs'] as const,
+  one: (labId: string, planId: string) => ['labs', labId, 'runs', planId] as const,
+  machine: (labId: string, machineId: string) => ['labs', labId, 'runs', 'machine', machineId] as const,
+};
+
+export function useRunQuery(labId: string, planId: string) {
+  return useQuery({
+    queryKey: runKeys.one(labId, planId),
+    queryFn: ({ signal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runSchema, signal }),
+    refetchInterval: FLOOR_REFRESH_MS,
+    refetchIntervalInBackground: false,
+    staleTime: 0,
+  });
+}
+
+/** A machine's plans that are queued or under way, as the floor lists them. */
+export function useMachineRunsQuery(labId: string, machineId: string) {
+  return useQuery({
+    queryKey: runKeys.machine(labId, machineId),
+    queryFn: ({ signal }) => api(`/labs/${labId}/plans?status=${FLOOR_STATUSES.join(',')}&machineId=${machineId}`, { schema: planListSchema, signal }),
+    refetchInterval: FLOOR_REFRESH_MS,
+    staleTime: 0,
+  });
+}
+
+function refreshAfterStep(qc: ReturnType<typeof useQueryClient>, labId: string, run: RunView) {
+  qc.setQueryData(runKeys.one(labId, run.planId), run);
+  return Promise.all([
+    qc.invalidateQueries({ queryKey: runKeys.machine(labId, run.machine.id) }),
+    qc.invalidateQueries({ queryKey: queueKeys.machine(labId, run.machine.id) }),
+    qc.invalidateQueries({ queryKey: planKeys.one(labId, run.planId), exact: true }),
+  ]);
+}
+
+/** Moves the run to its next stage with that stage's fields; a 409 or 400 comes back as the ApiError to show. */
+export function useAdvanceRunMutation(labId: string, planId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: { to: PlanStatus } & Record<string, unknown>) =>
+      api(`/labs/${labId}/plans/${planId}/run/advance`, { method: 'POST', body, schema: runSchema }),
+    onSuccess: (run) => refreshAfterStep(qc, labId, run),
+    // Someone else may have moved the run: show it as it is now.
+    onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
+  });
+}
+
+export function useAddReadingMutation(labId: string, planId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: ReadingInput) => api(`/labs/${labId}/plans/${planId}/run/readings`, { method: 'POST', body, schema: runSchema }),
+    onSuccess: (run) => refreshAfterStep(qc, labId, run),
+    onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
+  });
+}
+
+/** Where the build sheet and the build file of a plan are downloaded (same origin as the app). */
+export function planFileUrl(labId: string, planId: string, file: 'sheet.pdf' | 'build.3mf'): string {
+  return `${process.env.EXPO_PUBLIC_API_URL ?? ''}/api/labs/${labId}/plans/${planId}/${file}`;
+}

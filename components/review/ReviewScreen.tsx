@@ -1,0 +1,262 @@
+import { useMemo, useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { isApiError } from '../api/client';
+import { useLab } from '../lab/useCurrentLab';
+import { NumbersPane } from '../plans/NumbersPane';
+import { PlanHistory } from '../plans/PlanHistory';
+import { numbersFromEstimate } from '../plans/estimate';
+import { STATUS_TONES } from '../plans/format';
+import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
+import { useLayoutQuery, usePlanQuery } from '../queries/plans';
+import { useReviewMutation, type ReviewDecision } from '../queries/review';
+import { colors, radius, spacing, useIsWide } from '../theme';
+import { Badge, Button, Card, ErrorState, Field, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
+import { formatDate } from '../ui/format';
+import { ChamberView, LayerSlider, lineColour, type Vec3 } from '../viewer';
+import { STATUS_LABELS } from '../../shared/plans/status';
+import type { PlanView } from '../../shared/schemas/plans';
+import { BuildFileLinks } from './BuildFileLinks';
+import { calibrationNote } from './calibration';
+
+/** The lead's review of one plan: its chosen layout in 3D, its numbers, its lines and history, and the decision. */
+export function ReviewScreen({ planId }: { planId: string }) {
+  const lab = useLab();
+  const plan = usePlanQuery(lab.id, planId);
+  const back = (
+    <LinkPressable href="/review" testID="review-back" style={{ minHeight: 32, justifyContent: 'center' }}>
+      <Text variant="label" color="emberPressed">
+        ‹ Plans to review
+      </Text>
+    </LinkPressable>
+  );
+  if (plan.isPending) {
+    return (
+      <Screen title="Review" above={back} testID="screen-review">
+        <LoadingState label="Loading the plan…" />
+      </Screen>
+    );
+  }
+  if (plan.isError) {
+    return (
+      <Screen title="Review" above={back} testID="screen-review">
+        <ErrorState error={plan.error} onRetry={() => plan.refetch()} />
+      </Screen>
+    );
+  }
+  return <ReviewBody plan={plan.data as PlanView} back={back} />;
+}
+
+function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
+  const lab = useLab();
+  const wide = useIsWide();
+  const layout = useLayoutQuery(lab.id, plan.id, plan.chosenLayoutId);
+  const chamberMm = plan.machine.chamberMm as Vec3;
+  const lineIds = useMemo(() => plan.lines.map((l) => l.requestLineId), [plan.lines]);
+  const placements = useMemo(() => (layout.data ? toChamberPlacements(layout.data.result, lineIds) : EMPTY_PLACEMENTS), [layout.data, lineIds]);
+  const numbers = useMemo(() => (layout.data ? numbersFromEstimate(layout.data.estimate, layout.data.result) : null), [layout.data]);
+  const [cutMm, setCutMm] = useState<number | null>(null);
+  const calibration = (layout.data?.estimate as { calibration?: { runs: number; calibrated: boolean } } | undefined)?.calibration;
+  const margin = layout.data?.instance.margin ?? { xy: 0, bottom: 0, top: 0 };
+  const heightMm = layout.data?.result.height ?? 0;
+  const layerHeightMm = numbers?.layerHeightMm ?? (plan.material.defaultLayerHeightMm as number) ?? 0.1;
+  const top = Math.max(heightMm, layerHeightMm);
+  const chosen = plan.layouts.find((l) => l.chosen);
+
+  const view3d = (
+    <View style={[styles.build, { height: wide ? 440 : 320 }]} testID="review-build">
+      {plan.chosenLayoutId == null ? (
+        <Notice tone="caution" title="No chosen layout">
+          The planner has not chosen a layout; send the plan back.
+        </Notice>
+      ) : layout.isPending ? (
+        <LoadingState label="Loading the chosen layout…" />
+      ) : layout.isError ? (
+        <ErrorState error={layout.error} onRetry={() => layout.refetch()} />
+      ) : (
+        <View style={styles.buildBody}>
+          <View style={styles.canvasBox}>
+            <ChamberView
+              chamberMm={chamberMm}
+              margin={{ xy: margin.xy ?? 0, bottom: margin.bottom ?? 0, top: margin.top ?? 0 }}
+              placements={placements}
+              lineColours={lineIds.map((_, i) => lineColour(i))}
+              cutHeightMm={cutMm}
+              describePlacement={(i) => {
+                const line = plan.lines[placements.lineIndex[i]];
+                return line ? `${line.part.name} · ${line.request.title}` : 'Part';
+              }}
+              style={{ flex: 1 }}
+            />
+          </View>
+          <View style={{ width: 64 }}>
+            <LayerSlider maxHeightMm={top} layerHeightMm={layerHeightMm} valueMm={cutMm ?? top} onChange={(h) => setCutMm(h >= top ? null : h)} testID="review-layer-slider" />
+          </View>
+        </View>
+      )}
+    </View>
+  );
+
+  const lines = (
+    <Card title="Lines" subtitle={`${plan.lines.reduce((s, l) => s + l.quantity, 0)} parts for ${new Set(plan.lines.map((l) => l.request.id)).size} requests`} testID="review-lines">
+      {plan.lines.map((l, i) => (
+        <View key={l.id} style={styles.line}>
+          <View style={[styles.swatch, { backgroundColor: lineColour(i) }]} />
+          <View style={{ flex: 1 }}>
+            <Text variant="label">
+              {l.quantity} × {l.part.name}
+            </Text>
+            <Text variant="caption" color="inkMuted">
+              {l.request.title} · due {formatDate(l.request.dueDate)} · {l.request.priority}
+            </Text>
+          </View>
+        </View>
+      ))}
+    </Card>
+  );
+
+  const side = (
+    <View style={{ gap: spacing.lg }}>
+      <Decision plan={plan} />
+      <NumbersPane
+        numbers={numbers}
+        title={chosen ? `Chosen layout: ${chosen.label}` : 'No chosen layout'}
+        bedAreaMm2={chamberMm[0] * chamberMm[1]}
+        cutLayer={cutMm == null ? null : Math.round(cutMm / layerHeightMm)}
+        note={calibrationNote(calibration)}
+      />
+      <Card title="History" testID="review-history">
+        <PlanHistory events={plan.events} />
+      </Card>
+    </View>
+  );
+
+  return (
+    <Screen
+      title={plan.name}
+      subtitle={`${plan.machine.name} · ${plan.material.name}${plan.createdBy ? ` · planned by ${plan.createdBy.name}` : ''}`}
+      above={back}
+      actions={<Badge label={STATUS_LABELS[plan.status]} tone={STATUS_TONES[plan.status]} testID="review-status" />}
+      testID="screen-review"
+      maxWidth={1320}
+    >
+      {wide ? (
+        <View style={styles.columns}>
+          <View style={{ flex: 3, gap: spacing.lg, minWidth: 0 }}>
+            {view3d}
+            {lines}
+          </View>
+          <View style={{ flex: 2, minWidth: 360 }}>{side}</View>
+        </View>
+      ) : (
+        <View style={{ gap: spacing.lg }}>
+          {view3d}
+          {side}
+          {lines}
+        </View>
+      )}
+    </Screen>
+  );
+}
+
+/** Approve into the machine's queue, or send back with the comment the planner will read. */
+function Decision({ plan }: { plan: PlanView }) {
+  const lab = useLab();
+  const review = useReviewMutation(lab.id, plan.id, plan.machine.id);
+  const [comment, setComment] = useState('');
+  const [commentError, setCommentError] = useState<string | null>(null);
+  const [done, setDone] = useState<{ decision: ReviewDecision; position?: number | null; notified: number } | null>(null);
+
+  const decide = (decision: ReviewDecision) => {
+    setCommentError(null);
+    if (decision === 'changes_requested' && comment.trim() === '') {
+      setCommentError('Say what the planner should change: a comment is required to send a plan back.');
+      return;
+    }
+    review.mutate(
+      { decision, ...(comment.trim() ? { comment: comment.trim() } : {}) },
+      {
+        onSuccess: (res) => {
+          setDone({ decision, position: res.queuePosition, notified: res.notified?.length ?? 0 });
+          setComment('');
+        },
+        onError: (e) => {
+          if (isApiError(e) && e.field === 'comment') setCommentError(e.message);
+        },
+      },
+    );
+  };
+
+  const err = review.error && !(isApiError(review.error) && review.error.field === 'comment') ? review.error : null;
+  const told = (n: number) => (n > 0 ? ` The planner was e-mailed.` : '');
+
+  if (plan.status !== 'in_review') {
+    return (
+      <Card title="Decision" testID="review-decided">
+        {done ? (
+          <Notice tone="success" title={done.decision === 'approve' ? 'Approved and queued' : 'Sent back'} testID="review-result">
+            {done.decision === 'approve'
+              ? `The plan is number ${done.position ?? '–'} in the queue of ${plan.machine.name}.${told(done.notified)}`
+              : `The plan is editable again for the planner.${told(done.notified)}`}
+          </Notice>
+        ) : (
+          <Text color="inkMuted">This plan is {STATUS_LABELS[plan.status].toLowerCase()}: there is nothing to decide.</Text>
+        )}
+        {plan.status === 'queued' || plan.status === 'approved' ? (
+          <View style={{ gap: spacing.sm }}>
+            <LinkPressable href={`/queue?machine=${plan.machine.id}`} testID="review-to-queue" style={styles.queueLink}>
+              <Text variant="bodyStrong" color="emberPressed">
+                See the queue of {plan.machine.name} ›
+              </Text>
+            </LinkPressable>
+            <BuildFileLinks labId={lab.id} planId={plan.id} testID="review-files" />
+          </View>
+        ) : null}
+      </Card>
+    );
+  }
+
+  return (
+    <Card title="Decision" subtitle="Approving puts the plan at the end of its machine's queue." testID="review-decision">
+      <Field
+        label="Comment for the planner"
+        hint="Required when sending back; kept in the plan's history."
+        value={comment}
+        onChangeText={(t) => {
+          setComment(t);
+          if (commentError) setCommentError(null);
+        }}
+        error={commentError}
+        multiline
+        style={{ minHeight: 88, paddingTop: spacing.sm, textAlignVertical: 'top' }}
+        testID="review-comment"
+      />
+      {err ? (
+        <Notice tone="danger" title={isApiError(err) && err.status === 409 ? 'The plan has moved on' : 'Not saved'} testID="review-error">
+          {err.message}
+        </Notice>
+      ) : null}
+      <View style={styles.buttons}>
+        <Button label="Approve and queue" onPress={() => decide('approve')} loading={review.isPending && review.variables?.decision === 'approve'} disabled={review.isPending} testID="review-approve" />
+        <Button
+          label="Send back"
+          variant="secondary"
+          onPress={() => decide('changes_requested')}
+          loading={review.isPending && review.variables?.decision === 'changes_requested'}
+          disabled={review.isPending}
+          testID="review-send-back"
+        />
+      </View>
+    </Card>
+  );
+}
+
+const styles = StyleSheet.create({
+  columns: { flexDirection: 'row', gap: spacing.xl, alignItems: 'flex-start' },
+  build: { minHeight: 280 },
+  buildBody: { flex: 1, flexDirection: 'row', gap: spacing.sm },
+  canvasBox: { flex: 1, borderRadius: radius.lg, overflow: 'hidden', backgroundColor: colors.graphite },
+  line: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
+  swatch: { width: 12, height: 12, borderRadius: 3 },
+  buttons: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
+  queueLink: { minHeight: 48, justifyContent: 'center' },
+});
