@@ -1,0 +1,5 @@
+import { NewPlan } from '@/components/plans/NewPlan';
+
+export default function NewPlanRoute() {
+  return <NewPlan />;
+}

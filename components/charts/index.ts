@@ -1,0 +1,1 @@
+export { AreaPerLayerChart, binMax, type AreaPerLayerChartProps } from './AreaPerLayerChart';

@@ -1,0 +1,95 @@
+import { forwardRef, useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type Vec3 } from '../viewer';
+import { colors, radius, spacing } from '../theme';
+import { Button, Text } from '../ui';
+
+export interface BuildPaneProps {
+  chamberMm: Vec3;
+  margin: { xy: number; bottom: number; top: number };
+  placements: ChamberPlacements;
+  lineColours: readonly string[];
+  heightMm: number;
+  layerHeightMm: number;
+  cutMm: number | null;
+  onCut: (heightMm: number | null) => void;
+  describe: (index: number) => string;
+  onPick: (index: number | null) => void;
+  marked: number;
+  onRemoveMarked: () => void;
+  onClearMarked: () => void;
+  editable: boolean;
+  caption: string;
+  live: boolean;
+  heightPx: number;
+  /** A stored layout is on its way: the 3D view waits for it, so its first frame already holds every part. */
+  loading: boolean;
+}
+
+/** Centre pane: the chamber in 3D with the layer slider; clicking parts marks them for removal. */
+export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function BuildPane(p, ref) {
+  const [hovered, setHovered] = useState<number | null>(null);
+  const top = Math.max(p.heightMm, p.layerHeightMm);
+  return (
+    <View style={[styles.pane, { height: p.heightPx }]} testID="plan-build">
+      <View style={styles.caption}>
+        <Text variant="label" numberOfLines={1} testID="plan-build-caption">
+          {p.caption}
+        </Text>
+        {p.live ? <Text variant="caption" color="ember" testID="plan-build-live">Best so far, improving…</Text> : null}
+        <Text variant="caption" color="inkMuted" numberOfLines={1} style={{ marginLeft: 'auto' }} testID="plan-build-hover">
+          {hovered !== null ? p.describe(hovered) : p.editable ? 'Hover a part to see its line; click to mark it for removal.' : 'Hover a part to see its line.'}
+        </Text>
+      </View>
+      <View style={styles.body}>
+        <View style={styles.view}>
+          {p.loading ? (
+            <View style={styles.wait} testID="plan-build-loading">
+              <Text color="onGraphiteMuted">Loading the layout…</Text>
+            </View>
+          ) : (
+          <ChamberView
+            ref={ref}
+            chamberMm={p.chamberMm}
+            margin={p.margin}
+            placements={p.placements}
+            lineColours={p.lineColours}
+            cutHeightMm={p.cutMm}
+            onHover={setHovered}
+            onPick={p.onPick}
+            describePlacement={p.describe}
+            style={styles.canvas}
+          />
+          )}
+        </View>
+        <View style={styles.slider}>
+          <LayerSlider
+            maxHeightMm={top}
+            layerHeightMm={p.layerHeightMm}
+            valueMm={p.cutMm ?? top}
+            onChange={(h) => p.onCut(h >= top ? null : h)}
+            testID="plan-layer-slider"
+          />
+        </View>
+      </View>
+      {p.editable && p.marked > 0 ? (
+        <View style={styles.marked} testID="plan-marked">
+          <Text variant="label">{p.marked} part{p.marked === 1 ? '' : 's'} marked</Text>
+          <Button label="Remove from layout" size="sm" variant="danger" onPress={p.onRemoveMarked} testID="plan-remove-marked" />
+          <Button label="Clear" size="sm" variant="ghost" onPress={p.onClearMarked} />
+        </View>
+      ) : null}
+    </View>
+  );
+});
+
+const styles = StyleSheet.create({
+  pane: { gap: spacing.sm, minHeight: 320 },
+  caption: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
+  body: { flex: 1, flexDirection: 'row', gap: spacing.sm, minHeight: 0 },
+  view: { flex: 1, borderRadius: radius.lg, overflow: 'hidden', backgroundColor: colors.graphite },
+  canvas: { flex: 1 },
+  wait: { flex: 1, alignItems: 'center', justifyContent: 'center' },
+  slider: { width: 64 },
+  marked: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
+});

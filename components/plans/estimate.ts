@@ -1,0 +1,85 @@
+import { estimateLayout, type AreaJump, type LayoutEstimate } from '../../shared/estimate';
+import type { PackInstanceInput, PackResult } from '../../shared/packing';
+import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
+
+/** The numbers the editor shows, from the server's estimate of a kept layout or the shared estimate of one not kept yet. */
+export interface ShownNumbers {
+  layers: number;
+  heightMm: number;
+  printSeconds: number;
+  inMachineCoolingSeconds: number;
+  outsideCoolingSeconds: number;
+  cakeKg: number;
+  freshKg: number;
+  reusedKg: number;
+  packingDensity: number;
+  costPerPart: number | null;
+  totalCost: number;
+  placed: number;
+  unplaced: number;
+  areaPerLayerMm2: ArrayLike<number>;
+  areaJumps: AreaJump[] | undefined;
+  layerHeightMm: number;
+}
+
+function pick<T>(keys: string[], from: Record<string, unknown>): T {
+  return Object.fromEntries(keys.filter((k) => from[k] !== undefined).map((k) => [k, from[k]])) as T;
+}
+
+const MACHINE_KEYS = Object.keys(machineProfileSchema.shape);
+const MATERIAL_KEYS = Object.keys(materialProfileSchema.shape);
+
+/** The plan's machine and material as the estimate takes them: the stored record's id and dates left out. */
+export function profilesOf(machine: Record<string, unknown>, material: Record<string, unknown>): { machine: MachineProfile; material: MaterialProfile } {
+  return { machine: pick<MachineProfile>(MACHINE_KEYS, machine), material: pick<MaterialProfile>(MATERIAL_KEYS, material) };
+}
+
+export function numbersFromEstimate(e: LayoutEstimate | Record<string, unknown>, result: Pick<PackResult, 'placements' | 'unplaced'> | { placedCount: number; unplacedCount: number }): ShownNumbers {
+  const est = e as LayoutEstimate & { areaPerLayerMm2?: ArrayLike<number> };
+  const placed = 'placements' in result ? result.placements.length : result.placedCount;
+  const unplaced = 'placements' in result ? result.unplaced.reduce((s, u) => s + u.count, 0) : result.unplacedCount;
+  return {
+    layers: est.layerCount,
+    heightMm: est.heightMm,
+    printSeconds: est.print?.printSeconds,
+    inMachineCoolingSeconds: est.cooling?.inMachineSeconds,
+    outsideCoolingSeconds: est.cooling?.outsideSeconds,
+    cakeKg: est.powder?.cakeMassKg,
+    freshKg: est.powder?.freshPowderKg,
+    reusedKg: est.powder?.reusedPowderKg,
+    packingDensity: est.powder?.packingDensity,
+    costPerPart: est.cost?.costPerPart ?? null,
+    totalCost: est.cost?.totalCost,
+    placed,
+    unplaced,
+    areaPerLayerMm2: est.areaPerLayerMm2 ?? [],
+    areaJumps: Array.isArray(est.areaJumps) ? est.areaJumps : undefined,
+    layerHeightMm: est.layerHeightMm,
+  };
+}
+
+/** The same estimate the server makes, for a layout still on screen only; null when the profiles cannot be estimated. */
+export function estimateWorking(
+  instance: PackInstanceInput,
+  result: PackResult,
+  machine: Record<string, unknown>,
+  material: Record<string, unknown>,
+  volumeByLine: ReadonlyMap<string, number>,
+): ShownNumbers | null {
+  try {
+    const profiles = profilesOf(machine, material);
+    let partsVolumeMm3 = 0;
+    for (const p of result.placements) partsVolumeMm3 += volumeByLine.get(p.id) ?? p.size[0] * p.size[1] * p.size[2];
+    const e = estimateLayout({
+      layout: { placements: result.placements, heightMm: result.height, margin: { xy: instance.margin?.xy ?? 0, bottom: instance.margin?.bottom ?? 0, top: instance.margin?.top ?? 0 } },
+      machine: profiles.machine,
+      material: profiles.material,
+      layerHeightMm: instance.layerHeight,
+      partsVolumeMm3,
+      partCount: result.placements.length,
+    });
+    return numbersFromEstimate(e, result);
+  } catch {
+    return null;
+  }
+}

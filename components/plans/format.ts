@@ -1,0 +1,58 @@
+import type { PlanStatus } from '../../shared/plans/status';
+import type { BadgeTone } from '../ui';
+
+export const STATUS_LABELS: Record<PlanStatus, string> = {
+  draft: 'Draft',
+  in_review: 'In review',
+  changes_requested: 'Sent back',
+  approved: 'Approved',
+  queued: 'Queued',
+  printing: 'Printing',
+  cooling: 'Cooling',
+  breakout: 'Breakout',
+  finishing: 'Finishing',
+  done: 'Done',
+  cancelled: 'Cancelled',
+  aborted: 'Aborted',
+};
+
+export const STATUS_TONES: Record<PlanStatus, BadgeTone> = {
+  draft: 'neutral',
+  in_review: 'amber',
+  changes_requested: 'danger',
+  approved: 'teal',
+  queued: 'teal',
+  printing: 'ember',
+  cooling: 'ember',
+  breakout: 'ember',
+  finishing: 'ember',
+  done: 'teal',
+  cancelled: 'neutral',
+  aborted: 'danger',
+};
+
+export function hours(seconds: number | null | undefined): string {
+  if (seconds == null || !Number.isFinite(seconds)) return '–';
+  const h = seconds / 3600;
+  return `${h < 10 ? h.toFixed(1) : Math.round(h)} h`;
+}
+
+export function kg(value: number | null | undefined): string {
+  if (value == null || !Number.isFinite(value)) return '–';
+  return `${value < 10 ? value.toFixed(2) : value.toFixed(1)} kg`;
+}
+
+export function percent(share: number | null | undefined): string {
+  if (share == null || !Number.isFinite(share)) return '–';
+  return `${(share * 100).toFixed(1)} %`;
+}
+
+export function money(value: number | null | undefined): string {
+  if (value == null || !Number.isFinite(value)) return '–';
+  return value.toLocaleString('en-US', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
+}
+
+export function mm(value: number | null | undefined): string {
+  if (value == null || !Number.isFinite(value)) return '–';
+  return `${value.toFixed(1)} mm`;
+}

@@ -1,0 +1,157 @@
+/**
+ * From a plan (its machine, material and lines) to the packing engine's
+ * instance, and from layouts to the typed arrays the chamber view draws.
+ */
+import {
+  INSTANCE_FORMAT,
+  parseInstance,
+  summariseLayout,
+  validateLayout,
+  type Orientation,
+  type PackInstance,
+  type PackInstanceInput,
+  type PackResult,
+  type Placement,
+  type Vec3,
+} from '../../shared/packing';
+import type { PlanOrientationRule } from '../../shared/schemas/plans';
+import type { ChamberPlacements } from '../viewer';
+
+/** The orientations each rule allows: the server checks the same sets. */
+export const RULE_ORIENTATIONS: Record<PlanOrientationRule, Orientation[]> = {
+  any: ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'],
+  keep_up: ['xyz', 'yxz'],
+  fixed: ['xyz'],
+};
+
+export const RULE_LABELS: Record<PlanOrientationRule, string> = { any: 'Any way', keep_up: 'Keep up', fixed: 'As stored' };
+
+export interface InstanceLine {
+  requestLineId: string;
+  quantity: number;
+  orientation: PlanOrientationRule;
+  sizeMm: Vec3;
+}
+
+export interface MachineLike {
+  chamberMm: Vec3;
+  layerHeightsMm: number[];
+}
+
+export interface MaterialLike {
+  spacingMm: number;
+  marginXyMm: number;
+  marginBottomMm: number;
+  marginTopMm: number;
+  defaultLayerHeightMm: number;
+}
+
+export interface PackingOptions {
+  seed: number;
+  spacingMm: number;
+  timeLimitMs: number;
+  layerHeightMm: number;
+}
+
+/** The material's layer height when the machine prints it, else the machine's nearest. */
+export function defaultLayerHeight(machine: MachineLike, material: MaterialLike): number {
+  const heights = machine.layerHeightsMm;
+  if (heights.length === 0) return material.defaultLayerHeightMm;
+  return heights.reduce((best, h) => (Math.abs(h - material.defaultLayerHeightMm) < Math.abs(best - material.defaultLayerHeightMm) ? h : best), heights[0]);
+}
+
+export function defaultOptions(machine: MachineLike, material: MaterialLike): PackingOptions {
+  return { seed: 1, spacingMm: material.spacingMm, timeLimitMs: 4000, layerHeightMm: defaultLayerHeight(machine, material) };
+}
+
+/** One engine part per plan line, id = the request line's id, as the server expects. */
+export function buildInstance(lines: InstanceLine[], machine: MachineLike, material: MaterialLike, options: PackingOptions): PackInstanceInput {
+  return {
+    format: INSTANCE_FORMAT,
+    chamber: [...machine.chamberMm] as Vec3,
+    margin: { xy: material.marginXyMm, bottom: material.marginBottomMm, top: material.marginTopMm },
+    // The material's spacing is a floor: a planner may ask for more, never less.
+    spacing: Math.max(options.spacingMm, material.spacingMm),
+    layerHeight: options.layerHeightMm,
+    objective: 'min-height',
+    timeLimitMs: options.timeLimitMs,
+    seed: options.seed,
+    parts: lines
+      .filter((l) => l.quantity > 0)
+      .map((l) => ({ id: l.requestLineId, size: [...l.sizeMm] as Vec3, quantity: l.quantity, orientations: RULE_ORIENTATIONS[l.orientation] })),
+  };
+}
+
+/**
+ * The instance for packing new parts above what a kept layout already holds.
+ * The engine can keep clear of fixed boxes, but the packing worker takes only
+ * an instance, so the free space offered to it is the slab above the kept
+ * parts: raising the floor keep-out to their top plus the spacing leaves
+ * every kept part where it is.
+ *
+ *     z ^  +-----------------+ chamber top
+ *       |  |  new parts go   |
+ *       |  |  in this slab   |
+ *       |  +- - - - - - - - -+ kept top + spacing (new bottom keep-out)
+ *       |  | [kept] [kept]   |
+ *       +--+-----------------+--> x
+ */
+export function instanceAbove(full: PackInstanceInput, kept: Placement[], parts: PackInstanceInput['parts'], objective: 'min-height' | 'max-volume'): PackInstanceInput {
+  const top = kept.reduce((m, p) => Math.max(m, p.position[2] + p.size[2]), 0);
+  const spacing = full.spacing ?? 0;
+  const bottom = kept.length > 0 ? top + spacing : full.margin?.bottom ?? 0;
+  return { ...full, objective, margin: { ...full.margin, bottom: Math.max(full.margin?.bottom ?? 0, bottom) }, parts: parts.filter((p) => p.quantity > 0) };
+}
+
+export type MergeOutcome = { ok: true; result: PackResult } | { ok: false; message: string };
+
+/** Kept placements plus new ones, summarised and checked against the plan's full instance before it is sent. */
+export function mergeLayouts(full: PackInstanceInput, kept: Placement[], added: Placement[], elapsedMs: number): MergeOutcome {
+  const parsed = parseInstance(full);
+  if (!parsed.ok) return { ok: false, message: parsed.problems.map((p) => `${p.field} ${p.message}`).join('; ') };
+  const result = summariseLayout(parsed.instance, [...kept, ...added], elapsedMs);
+  const problems = validateLayout(parsed.instance, result);
+  if (problems.length > 0) return { ok: false, message: problems.slice(0, 3).map((p) => `${p.field} ${p.message}`).join('; ') };
+  return { ok: true, result };
+}
+
+/** A layout's placements without those at the given indices, summarised again. */
+export function withoutPlacements(instance: PackInstanceInput, result: PackResult, removed: ReadonlySet<number>): PackResult | null {
+  const parsed = parseInstance(instance);
+  if (!parsed.ok) return null;
+  const kept = result.placements.filter((_, i) => !removed.has(i));
+  return summariseLayout(parsed.instance as PackInstance, kept, result.elapsedMs);
+}
+
+const ORIENTATION_CODE: Record<string, number> = { xyz: 0, xzy: 1, yxz: 2, yzx: 3, zxy: 4, zyx: 5 };
+
+/** Placements as the chamber view's typed arrays; part and line index are the line's position in the plan. */
+export function toChamberPlacements(result: Pick<PackResult, 'placements'>, lineIds: readonly string[]): ChamberPlacements {
+  const n = result.placements.length;
+  const positions = new Float32Array(3 * n);
+  const sizes = new Float32Array(3 * n);
+  const partIndex = new Uint32Array(n);
+  const lineIndex = new Uint32Array(n);
+  const orientations = new Uint8Array(n);
+  const index = new Map(lineIds.map((id, i) => [id, i] as const));
+  result.placements.forEach((p, i) => {
+    positions[3 * i] = p.position[0];
+    positions[3 * i + 1] = p.position[1];
+    positions[3 * i + 2] = p.position[2];
+    sizes[3 * i] = p.size[0];
+    sizes[3 * i + 1] = p.size[1];
+    sizes[3 * i + 2] = p.size[2];
+    const k = index.get(p.id) ?? lineIds.length;
+    partIndex[i] = k;
+    lineIndex[i] = k;
+    orientations[i] = ORIENTATION_CODE[p.orientation] ?? 0;
+  });
+  return { positions, sizes, partIndex, lineIndex, orientations };
+}
+
+export const EMPTY_PLACEMENTS: ChamberPlacements = {
+  positions: new Float32Array(0),
+  sizes: new Float32Array(0),
+  partIndex: new Uint32Array(0),
+  lineIndex: new Uint32Array(0),
+};
