@@ -194,9 +194,13 @@ function compactDown(model: Model, placements: Placement[]): void {
   const g = model.g;
   const tol = 1e-9;
   const order = placements.map((_, i) => i).sort((a, b) => placements[a].position[2] - placements[b].position[2] || a - b);
-  const cells = Math.max(1, Math.min(48, Math.ceil(Math.sqrt(n / 2))));
+  const cells = Math.max(1, Math.min(64, Math.ceil(Math.sqrt(n / 2))));
   const cw = [model.extent[0] / cells, model.extent[1] / cells];
+  // Per cell the boxes over it, exactly while few; past the cap only the cell's highest top is kept,
+  // which may lift a box more than needed but never lets it sink into another.
+  const CAP = 48;
   const buckets: number[][] = Array.from({ length: cells * cells }, () => []);
+  const coarseTop = new Float64Array(cells * cells).fill(-Infinity);
   const cellOf = (v: number, a: number) => Math.min(cells - 1, Math.max(0, Math.floor((v - model.origin[a]) / cw[a])));
   const floor = model.origin[2];
   const stamp = new Int32Array(n).fill(-1);
@@ -206,8 +210,10 @@ function compactDown(model: Model, placements: Placement[]): void {
     const cx0 = cellOf(x0 - g, 0), cx1 = cellOf(x1 + g, 0), cy0 = cellOf(y0 - g, 1), cy1 = cellOf(y1 + g, 1);
     let z = floor;
     for (let cx = cx0; cx <= cx1; cx++)
-      for (let cy = cy0; cy <= cy1; cy++)
-        for (const j of buckets[cx * cells + cy]) {
+      for (let cy = cy0; cy <= cy1; cy++) {
+        const c = cx * cells + cy;
+        if (coarseTop[c] > z) z = coarseTop[c];
+        for (const j of buckets[c]) {
           if (stamp[j] === i) continue;
           stamp[j] = i;
           const q = placements[j];
@@ -216,9 +222,17 @@ function compactDown(model: Model, placements: Placement[]): void {
           if (q.position[1] >= y1 + g - tol || y0 >= q.position[1] + q.size[1] + g - tol) continue;
           z = Math.max(z, q.position[2] + q.size[2] + g);
         }
+      }
     if (z < p.position[2]) p.position[2] = z;
+    const top = p.position[2] + p.size[2] + g;
     const hx0 = cellOf(x0, 0), hx1 = cellOf(x1, 0), hy0 = cellOf(y0, 1), hy1 = cellOf(y1, 1);
-    for (let cx = hx0; cx <= hx1; cx++) for (let cy = hy0; cy <= hy1; cy++) buckets[cx * cells + cy].push(i);
+    for (let cx = hx0; cx <= hx1; cx++)
+      for (let cy = hy0; cy <= hy1; cy++) {
+        const c = cx * cells + cy;
+        const list = buckets[c];
+        if (list.length < CAP) list.push(i);
+        else if (top > coarseTop[c]) coarseTop[c] = top;
+      }
   }
 }
 
