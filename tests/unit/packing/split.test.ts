@@ -12,7 +12,7 @@ describe('splitting request lines into builds', () => {
     priority: i % 2 === 0 ? 2 : 1,
     dueDate: `2027-02-${String(1 + (i % 27)).padStart(2, '0')}`,
   }));
-  const outcome = splitIntoBuilds(lines, settings, { maxCompletions: 40 });
+  const outcome = splitIntoBuilds(lines, settings, { maxCompletions: 20 });
 
   test('every build is a valid layout and all parts are placed exactly once', () => {
     expect(outcome.ok).toBe(true);
