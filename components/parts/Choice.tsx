@@ -60,7 +60,7 @@ export function Choice<V extends string>({
 }
 
 const styles = StyleSheet.create({
-  field: { gap: spacing.xs },
+  field: { gap: spacing.xs, flexShrink: 1, maxWidth: '100%' },
   row: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs },
   option: { minHeight: 40, paddingHorizontal: spacing.md, borderRadius: radius.md, borderWidth: 1, justifyContent: 'center' },
   on: { backgroundColor: colors.graphite, borderColor: colors.graphite },

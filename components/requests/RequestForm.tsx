@@ -239,8 +239,8 @@ function PartPicker({ chosen, onPick }: { chosen: string[]; onPick: (p: { id: st
               <Text variant="body" style={styles.lineName} numberOfLines={1}>
                 + {p.name}
               </Text>
-              <Text variant="figure" color="inkMuted">
-                {formatSize(p.sizeMm.map((x) => Math.round(x * 10) / 10))} mm
+              <Text variant="figure" color="inkMuted" numberOfLines={1} style={styles.matchSize}>
+                {formatSize(p.sizeMm.map((x) => Math.round(x)))} mm
               </Text>
             </Pressable>
           ))}
@@ -257,8 +257,9 @@ const styles = StyleSheet.create({
   pairItem: { flexGrow: 1, flexBasis: 260 },
   notes: { minHeight: 88, paddingTop: spacing.sm, textAlignVertical: 'top' },
   line: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.md, borderBottomWidth: 1, borderBottomColor: colors.line, paddingBottom: spacing.sm },
-  lineName: { flexGrow: 1, flexShrink: 1, flexBasis: 160 },
-  qty: { width: 120 },
+  lineName: { flexGrow: 1, flexShrink: 1, flexBasis: 120, minWidth: 0 },
+  qty: { width: 96 },
+  matchSize: { fontSize: 13 },
   lineError: { flexBasis: '100%' },
   picker: { gap: spacing.sm, paddingTop: spacing.sm },
   matches: { borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, overflow: 'hidden' },

@@ -47,17 +47,12 @@ export function RequestList() {
         </View>
       ),
     },
-    { key: 'due', title: 'Due', width: 170, mono: true, value: (r) => dueText(r.dueDate, r.status) },
+    { key: 'due', title: 'Due', width: 200, mono: true, value: (r) => dueText(r.dueDate, r.status) },
     { key: 'priority', title: 'Priority', width: 96, render: (r) => <Badge label={PRIORITY_LABELS[r.priority]} tone={PRIORITY_TONES[r.priority]} /> },
-    { key: 'material', title: 'Material', flex: 1, value: (r) => r.materialName ?? '–' },
-    {
-      key: 'count',
-      title: 'Qty · planned · printed',
-      width: 190,
-      align: 'right',
-      mono: true,
-      value: (r) => `${r.totals.quantity.toLocaleString('en-US')} · ${r.totals.planned.toLocaleString('en-US')} · ${r.totals.printed.toLocaleString('en-US')}`,
-    },
+    { key: 'material', title: 'Material', flex: 1.2, value: (r) => r.materialName ?? '–' },
+    { key: 'qty', title: 'Qty', width: 80, align: 'right', mono: true, value: (r) => r.totals.quantity.toLocaleString('en-US') },
+    { key: 'planned', title: 'Planned', width: 90, align: 'right', mono: true, value: (r) => r.totals.planned.toLocaleString('en-US') },
+    { key: 'printed', title: 'Printed', width: 90, align: 'right', mono: true, value: (r) => r.totals.printed.toLocaleString('en-US') },
     { key: 'status', title: 'Status', width: 100, render: (r) => <Badge label={STATUS_LABELS[r.status]} tone={STATUS_TONES[r.status]} /> },
   ];
 

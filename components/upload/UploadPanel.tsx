@@ -1,6 +1,6 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useRef, useState } from 'react';
-import { StyleSheet, View } from 'react-native';
+import { StyleSheet, View, useWindowDimensions } from 'react-native';
 import { Choice } from '../parts/Choice';
 import { formatBytes, formatSize, formatVolume } from '../parts/format';
 import { invalidatePartLists, type Part, type RejectedFile } from '../queries/parts';
@@ -35,6 +35,10 @@ export function UploadPanel({ labId }: { labId: string }) {
   const [split, setSplit] = useState<'split' | 'merge'>('split');
   const [items, setItems] = useState<Item[]>([]);
   const running = useRef(new Map<string, () => void>());
+  const { width } = useWindowDimensions();
+  const narrow = width < 760;
+  // On a phone the two choices fold into one line, so the library stays in view.
+  const [showOptions, setShowOptions] = useState(false);
 
   const patch = useCallback((key: string, change: Partial<Item>) => {
     setItems((list) => list.map((it) => (it.key === key ? { ...it, ...change } : it)));
@@ -90,31 +94,44 @@ export function UploadPanel({ labId }: { labId: string }) {
 
   return (
     <Card title="Upload parts" subtitle="Each file is measured by the server: size, volume, surface area, shells and whether it is closed." testID="parts-upload">
-      <View style={styles.options}>
-        <Choice
-          label="Unit of STL and OBJ files"
-          testID="upload-unit"
-          value={unit}
-          onChange={setUnit}
-          options={[
-            { value: 'mm', label: 'mm' },
-            { value: 'cm', label: 'cm' },
-            { value: 'inch', label: 'inch' },
-          ]}
-          hint="STL and OBJ files carry no unit. A 3MF names its own unit, which wins."
-        />
-        <Choice
-          label="A 3MF with several objects"
-          testID="upload-split"
-          value={split}
-          onChange={setSplit}
-          options={[
-            { value: 'split', label: 'One part per object' },
-            { value: 'merge', label: 'One merged part' },
-          ]}
-        />
+      <View style={[styles.body, !narrow && styles.bodyWide]}>
+        <View style={[styles.drop, !narrow && styles.dropWide]}>
+          <FileDrop onFiles={add} accept={ACCEPT} testID="parts-drop" hint="Several at once is fine; each file is sent and measured on its own." />
+        </View>
+        {narrow && !showOptions ? (
+          <View style={styles.summary}>
+            <Text variant="label" color="inkMuted" style={styles.summaryText}>
+              Unit {unit} (a 3MF’s own unit wins) · 3MF: {split === 'split' ? 'one part per object' : 'one merged part'}
+            </Text>
+            <Button label="Change" variant="ghost" size="sm" testID="upload-options" onPress={() => setShowOptions(true)} />
+          </View>
+        ) : (
+          <View style={[styles.options, !narrow && styles.optionsWide]}>
+            <Choice
+              label="Unit of STL and OBJ files"
+              testID="upload-unit"
+              value={unit}
+              onChange={setUnit}
+              options={[
+                { value: 'mm', label: 'mm' },
+                { value: 'cm', label: 'cm' },
+                { value: 'inch', label: 'inch' },
+              ]}
+              hint="STL and OBJ files carry no unit. A 3MF names its own unit, which wins."
+            />
+            <Choice
+              label="A 3MF with several objects"
+              testID="upload-split"
+              value={split}
+              onChange={setSplit}
+              options={[
+                { value: 'split', label: 'One part per object' },
+                { value: 'merge', label: 'One merged part' },
+              ]}
+            />
+          </View>
+        )}
       </View>
-      <FileDrop onFiles={add} accept={ACCEPT} testID="parts-drop" hint="Several at once is fine; each file is sent and measured on its own." />
       {items.length > 0 ? (
         <View style={styles.list} testID="upload-list">
           {items.map((item) => (
@@ -190,7 +207,14 @@ function UploadRow({ item, onCancel }: { item: Item; onCancel: () => void }) {
 }
 
 const styles = StyleSheet.create({
-  options: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.lg },
+  body: { gap: spacing.md },
+  bodyWide: { flexDirection: 'row', alignItems: 'stretch', gap: spacing.xl },
+  drop: {},
+  dropWide: { flex: 1.3 },
+  options: { gap: spacing.md },
+  optionsWide: { flex: 1 },
+  summary: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
+  summaryText: { flexShrink: 1 },
   list: { gap: spacing.sm },
   row: { borderTopWidth: 1, borderTopColor: colors.line, paddingTop: spacing.sm, gap: spacing.xs },
   rowHead: { flexDirection: 'row', alignItems: 'center', gap: spacing.md, flexWrap: 'wrap' },

@@ -32,14 +32,16 @@ function gearStl() {
  * holding a File, in a drop event. The page code is a string so the test's own
  * transpiler does not rewrite it.
  */
-async function dropFile(page: Page, testId: string, name: string, bytes: Uint8Array) {
-  const b64 = Buffer.from(bytes).toString('base64');
+async function dropFiles(page: Page, testId: string, files: { name: string; bytes: Uint8Array }[]) {
+  const encoded = files.map((f) => ({ name: f.name, b64: Buffer.from(f.bytes).toString('base64') }));
   const dataTransfer = await page.evaluateHandle(`(() => {
-    const raw = atob(${JSON.stringify(b64)});
-    const u8 = new Uint8Array(raw.length);
-    for (let i = 0; i < raw.length; i++) u8[i] = raw.charCodeAt(i);
     const dt = new DataTransfer();
-    dt.items.add(new File([u8], ${JSON.stringify(name)}, { type: 'model/stl' }));
+    for (const f of ${JSON.stringify(encoded)}) {
+      const raw = atob(f.b64);
+      const u8 = new Uint8Array(raw.length);
+      for (let i = 0; i < raw.length; i++) u8[i] = raw.charCodeAt(i);
+      dt.items.add(new File([u8], f.name, { type: 'model/stl' }));
+    }
     return dt;
   })()`);
   const zone = page.getByTestId(testId);
@@ -49,6 +51,16 @@ async function dropFile(page: Page, testId: string, name: string, bytes: Uint8Ar
 }
 
 const oneDecimal = (v: number) => String(Number(v.toFixed(1)));
+
+test('a member without an uploading role reads the library without the drop zone', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'operator@tinkerfin.example');
+  await page.goto('/parts');
+  await page.getByTestId('parts-table').waitFor();
+  expect(await page.getByTestId('parts-drop').count()).toBe(0);
+  await page.getByText('Your roles in this lab let you read the library').waitFor();
+  await page.context().close();
+});
 
 describe.each([
   ['phone', PHONE],
@@ -63,8 +75,15 @@ describe.each([
 
     const { bytes, metrics } = gearStl();
     const file = `drop-gear-${name}-${Date.now()}.stl`;
-    await dropFile(page, 'parts-drop', file, bytes);
+    // A broken file dropped with it is refused on its own line, naming the file; the good one is still kept.
+    const broken = `broken-${name}-${Date.now()}.stl`;
+    await dropFiles(page, 'parts-drop', [
+      { name: file, bytes },
+      { name: broken, bytes: bytes.subarray(0, 84 + 50 * 3 + 17) },
+    ]);
     await page.getByTestId(`upload-status-${file}`).getByText('Measured').waitFor();
+    await page.getByTestId(`upload-status-${broken}`).getByText('Refused').waitFor();
+    expect(await page.getByTestId(`upload-error-${broken}`).first().innerText()).toContain(broken);
     const expectedSize = metrics.sizeMm.map(oneDecimal).join(' × ');
     await screenshot(page, `parts-uploaded-${name}`);
 
@@ -79,7 +98,13 @@ describe.each([
 
     await row.click();
     await page.getByTestId('screen-part').waitFor();
-    await page.getByTestId('part-preview').locator('canvas').waitFor();
+    try {
+      await page.getByTestId('part-preview').locator('canvas').waitFor();
+    } catch (e) {
+      // Keep what the page showed instead of the preview, to tell a stuck load from an error.
+      await screenshot(page, `parts-preview-missing-${name}`);
+      throw new Error(`no 3D preview; the page said: ${(await page.getByTestId('screen-part').innerText()).slice(0, 600)}\n${(e as Error).message}`);
+    }
     expect(await page.getByTestId('part-metric-triangles').innerText()).toBe(metrics.triangles.toLocaleString('en-US'));
     expect(await page.getByTestId('part-metric-watertight').innerText()).toBe('yes');
     // Give the software renderer a moment to draw the first frame before the picture is taken.
@@ -90,6 +115,21 @@ describe.each([
     await page.getByTestId('part-rotate-x').click();
     const turned = [metrics.sizeMm[0], metrics.sizeMm[2], metrics.sizeMm[1]].map((v) => String(Number(v.toFixed(2)))).join(' × ');
     expect(await page.getByTestId('part-rotated-size').innerText()).toContain(turned);
+    await page.context().close();
+  });
+
+  test('opens one part of a 3MF that holds several and sees its own 3D preview', async () => {
+    const page = await newPage(served, viewport);
+    await signIn(page, 'designer@tinkerfin.example');
+    await page.goto('/parts');
+    await page.getByTestId('parts-search').fill('Arm hinge leaf');
+    const row = page.locator('[data-testid^="part-row-"]').filter({ hasText: 'Arm hinge leaf' });
+    await row.first().click();
+    await page.getByTestId('screen-part').waitFor();
+    await page.getByTestId('part-preview').locator('canvas').waitFor();
+    expect(await page.getByTestId('part-preview-error').count()).toBe(0);
+    await page.waitForTimeout(1000);
+    await screenshot(page, `part-page-3mf-${name}`);
     await page.context().close();
   });
 
