@@ -1,6 +1,7 @@
 import type { Running } from '../../server/boot';
 import { addMember } from '../helpers/app';
 import { createPlan, gridLayout, labWithProfiles, makeRequest, planInstance, type FixturePart } from '../helpers/plans';
+import type { PackInstanceInput, PackResult } from '../../shared/packing';
 
 type Lab = Awaited<ReturnType<typeof labWithProfiles>>;
 
@@ -21,12 +22,12 @@ export async function labWithCrew(running: Running, tag: string, machine: Partia
  * A plan of `parts` packed on a grid, chosen, sent for review and approved by
  * the lead, so it is queued on the lab's machine.
  */
-export async function queuedPlan(running: Running, lab: Lab, parts: FixturePart[], opts: { name?: string; dueDate?: string; approve?: boolean } = {}) {
+export async function queuedPlan(running: Running, lab: Lab, parts: FixturePart[], opts: { name?: string; dueDate?: string; approve?: boolean; layout?: (instance: PackInstanceInput) => PackResult } = {}) {
   const req = await makeRequest(running, lab.labId, lab.userId, lab.materialId, parts, { dueDate: opts.dueDate });
   const plan = await createPlan(lab.agent, lab.labId, lab.machineId, lab.materialId, req.lines, opts.name ?? 'Run plan');
   const base = `/api/labs/${lab.labId}/plans/${plan.id}`;
   const instance = planInstance(plan.view, lab.machine, lab.material);
-  const layout = await lab.agent.post(`${base}/layouts`).send({ instance, result: gridLayout(instance) });
+  const layout = await lab.agent.post(`${base}/layouts`).send({ instance, result: (opts.layout ?? gridLayout)(instance) });
   if (layout.status !== 201) throw new Error(`layout failed: ${layout.status} ${JSON.stringify(layout.body)}`);
   await lab.agent.post(`${base}/layouts/${layout.body.id}/choose`);
   const sent = await lab.agent.post(`${base}/submit`);

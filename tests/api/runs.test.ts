@@ -3,6 +3,9 @@ import { labWithProfiles } from '../helpers/plans';
 import type { Running } from '../../server/boot';
 import { labWithCrew, queuedPlan, startBody, CHECKED } from './runs-fixtures';
 
+// Each test builds a lab, plans and layouts through the API: slower than the default 5 s on a busy machine.
+jest.setTimeout(30_000);
+
 let running: Running;
 beforeAll(async () => {
   running = await startTestApp();

@@ -1,0 +1,132 @@
+import { createHash } from 'node:crypto';
+import { startTestApp } from '../helpers/app';
+import { labWithProfiles } from '../helpers/plans';
+import type { Running } from '../../server/boot';
+import { labWithCrew, queuedPlan } from './runs-fixtures';
+import { parse3mf, read3mfModel, writeBinaryStl } from '../../shared/geometry';
+import { parseInstance, summariseLayout, type PackInstanceInput, type Placement } from '../../shared/packing';
+
+jest.setTimeout(30_000);
+
+let running: Running;
+beforeAll(async () => {
+  running = await startTestApp();
+});
+afterAll(async () => {
+  await running.close();
+});
+
+/** A closed box from the origin to `size`, triangles wound outwards. */
+function boxMesh([x, y, z]: [number, number, number]) {
+  const positions = new Float64Array([0, 0, 0, x, 0, 0, x, y, 0, 0, y, 0, 0, 0, z, x, 0, z, x, y, z, 0, y, z]);
+  const indices = new Uint32Array([0, 2, 1, 0, 3, 2, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 1, 2, 6, 1, 6, 5, 2, 3, 7, 2, 7, 6, 3, 0, 4, 3, 4, 7]);
+  return { positions, indices };
+}
+
+const binary = (res: any, cb: (err: Error | null, body: Buffer) => void) => {
+  const chunks: Buffer[] = [];
+  res.on('data', (c: Buffer) => chunks.push(c));
+  res.on('end', () => cb(null, Buffer.concat(chunks)));
+};
+
+// The part as uploaded is 30 x 8 x 20 mm and stored turned a quarter about x, so the plan packs it as 30 x 20 x 8.
+const BAR = { name: 'Bar', sizeMm: [30, 20, 8] as [number, number, number], quantity: 3 };
+
+/** Three bars side by side in three orientations, one of them an odd permutation of the axes. */
+function threeOrientations(input: PackInstanceInput) {
+  const parsed = parseInstance(input);
+  if (!parsed.ok) throw new Error('bad instance');
+  const id = parsed.instance.parts[0].id;
+  const placements: Placement[] = [
+    { id, position: [10, 10, 5], size: [30, 20, 8], orientation: 'xyz' },
+    { id, position: [50, 10, 5], size: [20, 30, 8], orientation: 'yxz' },
+    { id, position: [80, 10, 5], size: [8, 20, 30], orientation: 'zyx' },
+  ];
+  return summariseLayout(parsed.instance, placements, 5);
+}
+
+async function storeRealMesh(partId: string) {
+  const bytes = Buffer.from(writeBinaryStl(boxMesh([30, 8, 20])));
+  const key = createHash('sha256').update(bytes).digest('hex');
+  await running.db.sequelize.query(
+    `INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, $2, 'postgres', $3, 1, now())
+     ON CONFLICT (key) DO UPDATE SET ref_count = files.ref_count + 1`,
+    { bind: [key, bytes.length, bytes] },
+  );
+  await running.db.sequelize.query(
+    `UPDATE parts SET file_key = $2, file_name = 'bar.stl', rotation_deg = '{90,0,0}', uploaded_size_mm = '{30,8,20}' WHERE id = $1`,
+    { bind: [partId, key] },
+  );
+}
+
+describe('the packed build as a 3MF package', () => {
+  test('reading the export back finds every placement: each part turned by its stored rotation and its orientation, at its position', async () => {
+    const lab = await labWithCrew(running, 'export');
+    const plan = await queuedPlan(running, lab, [BAR], { name: 'Bars', layout: threeOrientations });
+    await storeRealMesh(plan.request.lines[0].partId);
+    const res = await lab.operator.agent.get(`${plan.base}/build.3mf`).buffer(true).parse(binary);
+    expect(res.status).toBe(200);
+    expect(res.headers['content-type']).toContain('model/3mf');
+    expect(res.headers['content-disposition']).toContain('Bars.3mf');
+    const bytes = new Uint8Array(res.body);
+
+    const model = read3mfModel(bytes, { filename: 'Bars.3mf' });
+    if (!model.ok) throw new Error(JSON.stringify(model.problems));
+    expect(model.model.unit).toBe('millimeter');
+    expect(model.model.objects.size).toBe(1);
+    expect(model.model.items).toHaveLength(3);
+    for (const item of model.model.items) {
+      const m = item.transform;
+      // A turn, never a mirror image: the 3 x 3 part of the transform has determinant +1.
+      const det = m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
+      expect(det).toBeCloseTo(1, 12);
+    }
+
+    const parsed = parse3mf(bytes, { filename: 'Bars.3mf', splitObjects: true });
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+    const boxes = parsed.parts.map((part) => {
+      const min = [Infinity, Infinity, Infinity];
+      const max = [-Infinity, -Infinity, -Infinity];
+      for (let v = 0; v < part.positions.length; v += 3) {
+        for (let k = 0; k < 3; k++) {
+          min[k] = Math.min(min[k], part.positions[v + k]);
+          max[k] = Math.max(max[k], part.positions[v + k]);
+        }
+      }
+      return { min, size: max.map((x, k) => x - min[k]) };
+    });
+    const expected = [
+      { min: [10, 10, 5], size: [30, 20, 8] },
+      { min: [50, 10, 5], size: [20, 30, 8] },
+      { min: [80, 10, 5], size: [8, 20, 30] },
+    ];
+    boxes.sort((a, b) => a.min[0] - b.min[0]);
+    boxes.forEach((box, i) => {
+      for (let k = 0; k < 3; k++) {
+        expect(box.min[k]).toBeCloseTo(expected[i].min[k], 9);
+        expect(box.size[k]).toBeCloseTo(expected[i].size[k], 9);
+      }
+    });
+  });
+
+  test('a plan that is not approved has no build file, and another lab\'s plan is not found', async () => {
+    const lab = await labWithCrew(running, 'exportdraft');
+    const plan = await queuedPlan(running, lab, [BAR], { approve: false, layout: threeOrientations });
+    const res = await lab.agent.get(`${plan.base}/build.3mf`);
+    expect(res.status).toBe(409);
+    expect(res.body.error).toMatchObject({ code: 'not_approved', status: 'in_review' });
+    const other = await labWithProfiles(running, 'exportother');
+    expect((await other.agent.get(`/api/labs/${other.labId}/plans/${plan.planId}/build.3mf`)).status).toBe(404);
+    expect((await other.agent.get(`/api/labs/${lab.labId}/plans/${plan.planId}/build.3mf`)).status).toBe(404);
+  });
+
+  test('a part whose stored file is not a mesh stops the export with a message naming the part', async () => {
+    const lab = await labWithCrew(running, 'exportbad');
+    // The fixture's parts carry stand-in bytes, not a mesh.
+    const plan = await queuedPlan(running, lab, [BAR], { layout: threeOrientations });
+    const res = await lab.agent.get(`${plan.base}/build.3mf`);
+    expect(res.status).toBe(409);
+    expect(res.body.error.code).toBe('part_file_unreadable');
+    expect(res.body.error.message).toContain('"Bar"');
+  });
+});

@@ -1,0 +1,53 @@
+import { startTestApp } from '../helpers/app';
+import { labWithProfiles } from '../helpers/plans';
+import type { Running } from '../../server/boot';
+import { labWithCrew, queuedPlan } from './runs-fixtures';
+
+jest.setTimeout(30_000);
+
+let running: Running;
+beforeAll(async () => {
+  running = await startTestApp();
+});
+afterAll(async () => {
+  await running.close();
+});
+
+const binary = (res: any, cb: (err: Error | null, body: Buffer) => void) => {
+  const chunks: Buffer[] = [];
+  res.on('data', (c: Buffer) => chunks.push(c));
+  res.on('end', () => cb(null, Buffer.concat(chunks)));
+};
+
+const GEAR = { name: 'Gear', sizeMm: [30, 30, 8] as [number, number, number], quantity: 40 };
+
+describe('the build sheet', () => {
+  test('an approved plan\'s sheet is a PDF titled with the plan\'s name', async () => {
+    const lab = await labWithCrew(running, 'sheet');
+    const plan = await queuedPlan(running, lab, [GEAR], { name: 'Gear batch 7' });
+    const res = await lab.operator.agent.get(`${plan.base}/sheet.pdf`).buffer(true).parse(binary);
+    expect(res.status).toBe(200);
+    expect(res.headers['content-type']).toContain('application/pdf');
+    expect(res.headers['content-disposition']).toContain('Gear batch 7 build sheet.pdf');
+    const pdf: Buffer = res.body;
+    // ISO 32000-1 §7.5: a PDF file starts with the %PDF- header and ends with the %%EOF marker.
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+    expect(pdf.toString('latin1').trimEnd().endsWith('%%EOF')).toBe(true);
+    // The document information's /Title (ISO 32000-1 §14.3.3), written as a reference to a string object.
+    const text = pdf.toString('latin1');
+    const ref = /\/Title (\d+) 0 R/.exec(text);
+    expect(ref).not.toBeNull();
+    expect(text).toContain(`${ref![1]} 0 obj\n(Build sheet: Gear batch 7)`);
+    expect(pdf.length).toBeGreaterThan(2000);
+  });
+
+  test('a plan still in review has no sheet yet (409), and another lab\'s plan is not found', async () => {
+    const lab = await labWithCrew(running, 'sheetdraft');
+    const plan = await queuedPlan(running, lab, [GEAR], { approve: false });
+    const res = await lab.agent.get(`${plan.base}/sheet.pdf`);
+    expect(res.status).toBe(409);
+    expect(res.body.error).toMatchObject({ code: 'not_approved', status: 'in_review' });
+    const other = await labWithProfiles(running, 'sheetother');
+    expect((await other.agent.get(`/api/labs/${other.labId}/plans/${plan.planId}/sheet.pdf`)).status).toBe(404);
+  });
+});
