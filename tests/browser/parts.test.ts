@@ -71,6 +71,7 @@ describe.each([
     await signIn(page, 'designer@tinkerfin.example');
     await page.goto('/parts');
     await page.getByTestId('parts-table').waitFor();
+    await page.getByTestId('parts-total').scrollIntoViewIfNeeded();
     await screenshot(page, `parts-library-${name}`);
 
     const { bytes, metrics } = gearStl();
@@ -94,6 +95,7 @@ describe.each([
     const row = page.locator('[data-testid^="part-row-"]').filter({ hasText: partName });
     await row.waitFor();
     expect(await row.innerText()).toContain(expectedSize);
+    await row.scrollIntoViewIfNeeded();
     await screenshot(page, `parts-search-${name}`);
 
     await row.click();
@@ -133,7 +135,7 @@ describe.each([
     await page.context().close();
   });
 
-  test('files a request for a library part, with an out-of-range quantity refused inline first', async () => {
+  test('files a request for a library part, with an out-of-range quantity refused inline first, then changes it while nothing is planned', async () => {
     const page = await newPage(served, viewport);
     await signIn(page, 'designer@tinkerfin.example');
     await page.goto('/requests');
@@ -159,6 +161,12 @@ describe.each([
     expect(await page.getByTestId('request-total-quantity').innerText()).toBe('12');
     await page.getByText(title).first().waitFor();
     await screenshot(page, `request-detail-${name}`);
+
+    // Nothing is planned yet, so the designer may still change it.
+    await page.getByTestId('request-edit').click();
+    await page.getByTestId('request-line-0-quantity').fill('20');
+    await page.getByTestId('request-submit').click();
+    await page.getByTestId('request-total-quantity').getByText('20', { exact: true }).waitFor();
 
     await page.getByTestId('request-back').click();
     await page.getByTestId('requests-table').getByText(title).waitFor();
