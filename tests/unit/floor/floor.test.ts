@@ -31,6 +31,24 @@ describe('cooling by Newton\'s law through the readings', () => {
   // T(t) = A + (T0 - A) e^(-k t) (Edwards & Penney, Differential Equations, §1.1).
   const curve = (t0: number, a: number, k: number, hours: number) => a + (t0 - a) * Math.exp(-k * hours);
 
+  test('without readings the cake reaches a target on the estimate\'s curve: 170 to 50 in a 25-degree room takes 1.7579 / k hours', () => {
+    // Edwards & Penney, Differential Equations, §1.1: t = ln((T0 - A) / (T* - A)) / k = ln(145 / 25) / k.
+    const k = 0.8;
+    const timer = coolingTimer({
+      printEndedAtMs: 0,
+      leftMachineAtMs: 0,
+      nowMs: 0,
+      startTempC: 170,
+      ambientTempC: 25,
+      removalTempC: 170,
+      handlingTempC: 50,
+      inMachinePerHour: 1,
+      outsidePerHour: k,
+      readings: [],
+    });
+    expect(timer.outside.handlingAtMs / HOUR * k).toBeCloseTo(1.7579, 4);
+  });
+
   test('readings on an exact Newton curve give back its cooling constant', () => {
     const readings: TemperatureReading[] = [0.5, 1, 1.5, 2].map((h) => ({ atMs: h * HOUR, tempC: curve(174, 25, 0.6, h), place: 'machine' }));
     const fit = fitNewton(readings, 25, { anchorMs: 0, anchorTempC: 174, kPerHour: 0.1 });
