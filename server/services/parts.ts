@@ -133,8 +133,12 @@ function view(r: PartRow): PartView {
   };
 }
 
-// Builds are not recorded yet, so no part has been used; plans will count here.
-const TIMES_USED_SQL = '0';
+// The builds a part is in: plans holding one of its request lines, cancelled ones aside.
+const TIMES_USED_SQL = `(SELECT count(DISTINCT pl.plan_id)
+     FROM plan_lines pl
+     JOIN request_lines rl ON rl.id = pl.request_line_id
+     JOIN plans pn ON pn.id = pl.plan_id
+    WHERE rl.part_id = p.id AND pn.status <> 'cancelled')`;
 
 const SELECT_PARTS = `
   SELECT p.*, m.name AS material_name, u.name AS uploader_name, f.size_bytes AS file_size_bytes,
