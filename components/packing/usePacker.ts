@@ -43,9 +43,11 @@ interface PackerClient {
   dispose(): void;
 }
 
-function createClient(): PackerClient {
+function createClient(onWorkerError: (message: string) => void): PackerClient {
   if (typeof Worker !== 'undefined' && typeof window !== 'undefined') {
     const worker = createPackerWorker();
+    // A worker that fails to load or crashes never answers: report it instead of waiting for ever.
+    worker.addEventListener('error', (e) => onWorkerError(e.message || 'The packing worker stopped.'));
     const remote = Comlink.wrap<PackerApi>(worker);
     return {
       api: {
@@ -105,7 +107,14 @@ export function usePacker(): UsePacker {
   );
 
   const start = useCallback((instance: unknown) => {
-    if (!clientRef.current) clientRef.current = createClient();
+    if (!clientRef.current) {
+      clientRef.current = createClient((message) => {
+        setError(message);
+        setStatus('error');
+        clientRef.current?.dispose();
+        clientRef.current = null;
+      });
+    }
     const client = clientRef.current;
     if (status === 'running') client.api.cancel(runRef.current);
     const runId = ++runRef.current;
