@@ -71,7 +71,7 @@ describe.each([
     await signIn(page, 'designer@tinkerfin.example');
     await page.goto('/parts');
     await page.getByTestId('parts-table').waitFor();
-    await page.getByTestId('parts-total').scrollIntoViewIfNeeded();
+    await page.locator('[data-testid^="part-row-"]').nth(1).scrollIntoViewIfNeeded();
     await screenshot(page, `parts-library-${name}`);
 
     const { bytes, metrics } = gearStl();
@@ -173,4 +173,36 @@ describe.each([
     await screenshot(page, `requests-list-${name}`);
     await page.context().close();
   });
+});
+
+test('on a wide screen, a click on a column header sorts the library by it, largest volume first', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'designer@tinkerfin.example');
+  await page.goto('/parts');
+  await page.getByTestId('parts-table').waitFor();
+  await page.getByTestId('parts-sort-volume').click();
+  await page.getByTestId('parts-sort-volume').getByText('↓').waitFor();
+  const lab = ((await page.evaluate("fetch('/api/me').then((r) => r.json())")) as { labs: { id: string }[] }).labs[0].id;
+  const largest = (await page.evaluate(`fetch('/api/labs/${lab}/parts?sort=-volume&pageSize=1').then((r) => r.json())`)) as { items: { id: string }[] };
+  await page.locator('[data-testid^="part-row-"]').first().and(page.getByTestId(`part-row-${largest.items[0].id}`)).waitFor();
+  await page.getByTestId('parts-filters-toggle').click();
+  await page.getByTestId('parts-filters').waitFor();
+  await screenshot(page, 'parts-sorted-filters-wide');
+  await page.context().close();
+});
+
+test('a designer deleting a part that a request names is told why it stays', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'designer@tinkerfin.example');
+  const lab = ((await page.evaluate("fetch('/api/me').then((r) => r.json())")) as { labs: { id: string }[] }).labs[0].id;
+  const requests = (await page.evaluate(`fetch('/api/labs/${lab}/requests?status=open').then((r) => r.json())`)) as { items: { lines: { partId: string }[] }[] };
+  const partId = requests.items[0].lines[0].partId;
+  await page.goto(`/parts/${partId}`);
+  await page.getByTestId('part-delete').click();
+  await page.getByTestId('part-delete-confirm').click();
+  await page.getByTestId('part-delete-error').waitFor();
+  expect(await page.getByTestId('part-delete-error').innerText()).toMatch(/request/i);
+  await page.getByTestId('part-delete-error').scrollIntoViewIfNeeded();
+  await screenshot(page, 'part-delete-in-use-wide');
+  await page.context().close();
 });
