@@ -3,7 +3,7 @@ import { Op } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
 import type { Mailer } from '../mail/mailer';
-import { ROLES, type Role } from '../../shared/schemas/auth';
+import { passwordSchema, ROLES, type Role } from '../../shared/schemas/auth';
 import type { AuthService } from './auth';
 import type { LabsService } from './labs';
 
@@ -121,6 +121,8 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
         } else {
           if (!input.name) throw new AppError(400, 'invalid_input', 'name is required', 'name');
           if (!input.password) throw new AppError(400, 'invalid_input', 'password is required', 'password');
+          const strong = passwordSchema.safeParse(input.password);
+          if (!strong.success) throw new AppError(400, 'invalid_input', `password ${strong.error.issues[0].message}`, 'password');
           userId = await deps.auth.createUser({ email: row.email, name: input.name, password: input.password }, t);
         }
         await deps.labs.addMember(row.labId, userId, row.roles, t);

@@ -34,9 +34,11 @@ export const signInSchema = z.strictObject({
   password: z.string().min(1, 'is required').max(200),
 });
 export const inviteCreateSchema = z.strictObject({ email: emailSchema, roles: rolesSchema });
+// An existing account proves itself with whatever its password is; the
+// length rule applies only when the invite makes a new account (checked there).
 export const inviteAcceptSchema = z.strictObject({
   name: personNameSchema.optional(),
-  password: passwordSchema.optional(),
+  password: z.string().min(1, 'is required').max(200, 'must be at most 200 characters').optional(),
 });
 export const memberUpdateSchema = z.strictObject({ roles: rolesSchema });
 

@@ -137,12 +137,25 @@ describe('invites', () => {
     expect((await request(running.app).get(`/api/invites/${token}`)).body.existingUser).toBe(true);
     const wrong = await agent(running).post(`/api/invites/${token}/accept`).send({ password: 'wrong-password-here' });
     expect(wrong.status).toBe(401);
+    // A short wrong password is still a wrong password, not a malformed request.
+    expect((await agent(running).post(`/api/invites/${token}/accept`).send({ password: 'short' })).status).toBe(401);
     const acc = await other.agent.post(`/api/invites/${token}/accept`).send({});
     expect(acc.status).toBe(200);
     expect(acc.body.labs.map((l: { id: string }) => l.id).sort()).toEqual([labId, other.labId].sort());
     const again = await lead.post(`/api/labs/${labId}/invites`).send({ email: other.email, roles: ['designer'] });
     expect(again.status).toBe(409);
     expect(again.body.error.code).toBe('already_member');
+  });
+
+  test('a new account made from an invite needs a password of at least 10 characters', async () => {
+    const { agent: lead, labId } = await signUp(running, 'weakpw');
+    const email = uniqueEmail('weak');
+    const before = running.mailer.caught!.length;
+    await lead.post(`/api/labs/${labId}/invites`).send({ email, roles: ['designer'] });
+    const token = /\/invite\/([A-Za-z0-9_-]+)/.exec((await waitForMail(running, before, email)).text)![1];
+    const res = await agent(running).post(`/api/invites/${token}/accept`).send({ name: 'Weak', password: 'short' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.field).toBe('password');
   });
 
   test('a revoked invite link stops working', async () => {
