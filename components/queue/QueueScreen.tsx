@@ -1,0 +1,299 @@
+import { router } from 'expo-router';
+import { useMemo } from 'react';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { isApiError } from '../api/client';
+import { useLab } from '../lab/useCurrentLab';
+import { useMachinesQuery } from '../queries/machines';
+import { useQueueQuery, useReorderQueueMutation } from '../queries/queue';
+import { BuildFileLinks } from '../review/BuildFileLinks';
+import { calibrationNote } from '../review/calibration';
+import { colors, radius, spacing, useIsWide, type ColorName } from '../theme';
+import { Badge, Button, EmptyState, ErrorState, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
+import { formatDate } from '../ui/format';
+import { STATUS_LABELS } from '../../shared/plans/status';
+import type { QueueItemView, QueueView } from '../../shared/schemas/runs';
+import { ReorderList } from './ReorderList';
+import { dueEndMs, moved } from './reschedule';
+
+/** The lab's machines as tabs, and the chosen machine's queue on a timeline. */
+export function QueueScreen({ machineId }: { machineId?: string }) {
+  const lab = useLab();
+  const machines = useMachinesQuery(lab.id);
+  const chosen = machines.data?.find((m) => m.id === machineId) ?? machines.data?.[0];
+  return (
+    <Screen title="Queue" subtitle={`Each machine of ${lab.name} with its approved builds in order and their predicted times.`} testID="screen-queue" maxWidth={1320}>
+      {machines.isPending ? (
+        <LoadingState label="Loading machines…" />
+      ) : machines.isError ? (
+        <ErrorState error={machines.error} onRetry={() => machines.refetch()} />
+      ) : !chosen ? (
+        <EmptyState testID="queue-empty" title="No machines yet" body="A lead adds the lab's machines in the settings; approved plans then line up here per machine." who="Ordered by leads." />
+      ) : (
+        <>
+          <View style={styles.tabs} accessibilityRole="tablist">
+            {machines.data.map((m) => (
+              <Pressable
+                key={m.id}
+                accessibilityRole="tab"
+                accessibilityState={{ selected: m.id === chosen.id }}
+                aria-selected={m.id === chosen.id}
+                testID={`queue-machine-${m.id}`}
+                onPress={() => router.setParams({ machine: m.id })}
+                style={[styles.tab, m.id === chosen.id && styles.tabOn]}
+              >
+                <Text variant="bodyStrong" color={m.id === chosen.id ? 'onEmber' : 'ink'}>
+                  {m.name}
+                </Text>
+              </Pressable>
+            ))}
+          </View>
+          <MachineQueue key={chosen.id} machineId={chosen.id} />
+        </>
+      )}
+    </Screen>
+  );
+}
+
+function MachineQueue({ machineId }: { machineId: string }) {
+  const lab = useLab();
+  const queue = useQueueQuery(lab.id, machineId);
+  const reorder = useReorderQueueMutation(lab.id, machineId);
+  if (queue.isPending) return <LoadingState label="Loading the queue…" />;
+  if (queue.isError && !queue.data) return <ErrorState error={queue.error} onRetry={() => queue.refetch()} />;
+  const view = queue.data as QueueView;
+  const ids = view.plans.map((p) => p.planId);
+  const byId = new Map(view.plans.map((p) => [p.planId, p]));
+  const canOrder = lab.isLead;
+  const move = (from: number, to: number) => {
+    if (!canOrder || reorder.isPending) return;
+    reorder.mutate(moved(ids, from, to));
+  };
+  const late = view.plans.filter((p) => p.late).length + (view.current?.late ? 1 : 0);
+
+  return (
+    <View style={{ gap: spacing.lg }} testID={`queue-${machineId}`}>
+      <View style={styles.summary}>
+        <Text variant="heading">{view.machine.name}</Text>
+        <Text variant="label" color="inkMuted">
+          {view.machine.chamberCount} chamber{view.machine.chamberCount === 1 ? '' : 's'}
+          {view.machine.chamberCount > 1 ? ': the next build starts while the last one cools outside' : ': the next build waits until the last one is broken out'}
+        </Text>
+        <Badge label={calibrationNote(view.calibration)} tone={view.calibration.calibrated ? 'teal' : 'neutral'} testID="queue-calibration" />
+        {late > 0 ? <Badge label={`${late} late`} tone="danger" testID="queue-late-count" /> : null}
+      </View>
+      {reorder.isError ? (
+        <Notice tone="danger" title="The new order was not saved" testID="queue-reorder-error">
+          {`${reorder.error.message}${isApiError(reorder.error) && reorder.error.status === 400 ? ' The queue is shown as the server has it.' : ''}`}
+        </Notice>
+      ) : null}
+      {view.current || view.plans.length > 0 ? <Timeline view={view} /> : null}
+      {view.current ? (
+        <View style={{ gap: spacing.sm }}>
+          <Text variant="overline" color="inkMuted">
+            At the machine now
+          </Text>
+          <QueueRow item={view.current} index={null} testID="queue-current" />
+        </View>
+      ) : null}
+      {view.plans.length === 0 ? (
+        <EmptyState
+          testID="queue-empty"
+          title="Nothing queued"
+          body="Plans a lead approves for this machine line up here with predicted start, finish and cooled times, and a flag on those that will be late."
+          who="Ordered by leads; followed by planners and operators."
+        />
+      ) : (
+        <View style={{ gap: spacing.sm }}>
+          <Text variant="overline" color="inkMuted">
+            Queued, in order{canOrder ? ' · drag a row or use its arrows to reorder' : ''}
+          </Text>
+          <ReorderList
+            ids={ids}
+            onMove={move}
+            disabled={!canOrder}
+            gap={spacing.sm}
+            testID="queue-list"
+            renderItem={(id, i) => (
+              <QueueRow
+                item={byId.get(id)!}
+                index={i}
+                testID={`queue-item-${i}`}
+                controls={
+                  canOrder ? (
+                    <View style={styles.arrows}>
+                      <Button label="↑" variant="secondary" accessibilityLabel={`Move ${byId.get(id)!.name} up`} disabled={i === 0} onPress={() => move(i, i - 1)} testID={`queue-up-${i}`} />
+                      <Button label="↓" variant="secondary" accessibilityLabel={`Move ${byId.get(id)!.name} down`} disabled={i === ids.length - 1} onPress={() => move(i, i + 1)} testID={`queue-down-${i}`} />
+                    </View>
+                  ) : null
+                }
+              />
+            )}
+          />
+        </View>
+      )}
+    </View>
+  );
+}
+
+const STAGE_COLOURS: Array<{ key: string; label: string; colour: ColorName }> = [
+  { key: 'preheat', label: 'Preheat', colour: 'amber' },
+  { key: 'print', label: 'Print', colour: 'ember' },
+  { key: 'inMachine', label: 'Cooling in the machine', colour: 'danger' },
+  { key: 'outside', label: 'Cooling outside', colour: 'teal' },
+  { key: 'breakout', label: 'Breakout', colour: 'graphiteRaised' },
+];
+
+function segments(item: QueueItemView): Array<{ from: number; to: number; colour: ColorName; key: string }> {
+  const start = Date.parse(item.startAt);
+  const preheatEnd = Math.min(Date.parse(item.printEndAt), start + item.durations.preheatSeconds * 1000);
+  const marks = [start, preheatEnd, Date.parse(item.printEndAt), Date.parse(item.leavesMachineAt), Date.parse(item.cooledAt), Date.parse(item.breakoutDoneAt)];
+  return STAGE_COLOURS.map((s, i) => ({ from: marks[i], to: marks[i + 1], colour: s.colour, key: s.key }));
+}
+
+/** Every build's stages on one time axis, one lane per build, with its due date marked. */
+function Timeline({ view }: { view: QueueView }) {
+  const items = [...(view.current ? [view.current] : []), ...view.plans];
+  const { from, to } = useMemo(() => {
+    const starts = items.map((p) => Date.parse(p.startAt));
+    const ends = items.map((p) => Math.max(Date.parse(p.breakoutDoneAt), p.earliestDueDate ? dueEndMs(p.earliestDueDate) : 0));
+    const f = Math.min(Date.parse(view.now), ...starts);
+    return { from: f, to: Math.max(f + 3_600_000, ...ends) };
+  }, [items, view.now]);
+  const pct = (ms: number) => `${(((Math.min(to, Math.max(from, ms)) - from) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
+  const widthPct = (a: number, b: number) => `${((Math.max(0, Math.min(to, b) - Math.max(from, a)) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
+  return (
+    <View style={styles.timeline} testID="queue-timeline" accessibilityLabel="Timeline of the queue">
+      {items.map((p) => (
+        <View key={p.planId} style={styles.lane}>
+          <Text variant="caption" numberOfLines={1} style={styles.laneLabel}>
+            {p.name}
+          </Text>
+          <View style={styles.laneTrack}>
+            {segments(p).map((s) => (
+              <View key={s.key} style={[styles.segment, { left: pct(s.from), width: widthPct(s.from, s.to), backgroundColor: colors[s.colour] }]} />
+            ))}
+            {p.earliestDueDate ? <View style={[styles.due, { left: pct(dueEndMs(p.earliestDueDate)) }, p.late && { backgroundColor: colors.danger }]} /> : null}
+          </View>
+        </View>
+      ))}
+      <View style={styles.axis}>
+        <Text variant="caption" color="inkMuted">
+          {formatWhen(new Date(from).toISOString())}
+        </Text>
+        <Text variant="caption" color="inkMuted">
+          {formatWhen(new Date((from + to) / 2).toISOString())}
+        </Text>
+        <Text variant="caption" color="inkMuted">
+          {formatWhen(new Date(to).toISOString())}
+        </Text>
+      </View>
+      <View style={styles.legend}>
+        {STAGE_COLOURS.map((s) => (
+          <View key={s.key} style={styles.legendItem}>
+            <View style={[styles.legendSwatch, { backgroundColor: colors[s.colour] }]} />
+            <Text variant="caption" color="inkMuted">
+              {s.label}
+            </Text>
+          </View>
+        ))}
+        <View style={styles.legendItem}>
+          <View style={[styles.legendSwatch, { width: 3, backgroundColor: colors.ink }]} />
+          <Text variant="caption" color="inkMuted">
+            Due (end of day, UTC)
+          </Text>
+        </View>
+      </View>
+    </View>
+  );
+}
+
+function formatWhen(iso: string): string {
+  const d = new Date(iso);
+  const pad = (n: number) => String(n).padStart(2, '0');
+  return `${formatDate(iso).slice(5)} ${pad(d.getHours())}:${pad(d.getMinutes())}`;
+}
+
+function QueueRow({ item, index, controls, testID }: { item: QueueItemView; index: number | null; controls?: React.ReactNode; testID?: string }) {
+  const lab = useLab();
+  const wide = useIsWide();
+  const times: Array<[string, string, string]> = [
+    ['Start', item.startAt, 'start'],
+    ['Print ends', item.printEndAt, 'print-end'],
+    ['Leaves machine', item.leavesMachineAt, 'leaves'],
+    ['Cooled', item.cooledAt, 'cooled'],
+    ['Parts out', item.breakoutDoneAt, 'out'],
+  ];
+  return (
+    <View style={[styles.row, item.late && styles.rowLate]} testID={testID}>
+      <View style={styles.rowHead}>
+        {index !== null ? (
+          <Text variant="title" color="inkFaint" style={{ minWidth: 32 }}>
+            {index + 1}
+          </Text>
+        ) : null}
+        <View style={{ flex: 1, gap: spacing.xxs, minWidth: 180 }}>
+          <LinkPressable href={`/plans/${item.planId}`} accessibilityLabel={`Open plan ${item.name}`}>
+            <Text variant="heading" testID={testID ? `${testID}-name` : undefined}>
+              {item.name}
+            </Text>
+          </LinkPressable>
+          <Text variant="caption" color="inkMuted">
+            {STATUS_LABELS[item.status]} · chamber {item.chamberIndex + 1}
+            {item.requests.length ? ` · ${item.requests.map((r) => `${r.title} (due ${formatDate(r.dueDate)})`).join(', ')}` : ''}
+          </Text>
+        </View>
+        {item.late ? (
+          <Badge label={`Late by ${item.lateByHours < 24 ? `${Math.ceil(item.lateByHours)} h` : `${(item.lateByHours / 24).toFixed(1)} days`}`} tone="danger" testID={testID ? `${testID}-late` : undefined} />
+        ) : item.earliestDueDate ? (
+          <Badge label="In time" tone="teal" testID={testID ? `${testID}-ontime` : undefined} />
+        ) : null}
+        {controls}
+      </View>
+      <View style={[styles.times, wide && styles.timesWide]}>
+        {times.map(([label, iso, key]) => (
+          <View key={key} style={styles.time}>
+            <Text variant="overline" color="inkMuted">
+              {label}
+            </Text>
+            <Text variant="figure" testID={testID ? `${testID}-${key}` : undefined}>
+              {formatWhen(iso)}
+            </Text>
+          </View>
+        ))}
+        <View style={styles.time}>
+          <Text variant="overline" color={item.late ? 'danger' : 'inkMuted'}>
+            Due
+          </Text>
+          <Text variant="figure" color={item.late ? 'danger' : 'ink'} testID={testID ? `${testID}-due` : undefined}>
+            {item.earliestDueDate ? formatDate(item.earliestDueDate) : '–'}
+          </Text>
+        </View>
+      </View>
+      {wide ? <BuildFileLinks labId={lab.id} planId={item.planId} testID={testID ? `${testID}-files` : undefined} /> : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  tabs: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
+  tab: { minHeight: 48, paddingHorizontal: spacing.lg, justifyContent: 'center', borderRadius: radius.pill, borderWidth: 1, borderColor: colors.lineStrong, backgroundColor: colors.surface },
+  tabOn: { backgroundColor: colors.ember, borderColor: colors.ember },
+  summary: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.md },
+  timeline: { gap: spacing.xs, padding: spacing.md, borderRadius: radius.lg, borderWidth: 1, borderColor: colors.line, backgroundColor: colors.surface },
+  lane: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
+  laneLabel: { width: 120 },
+  laneTrack: { flex: 1, height: 18, borderRadius: 4, backgroundColor: colors.powderDeep, overflow: 'hidden' },
+  segment: { position: 'absolute', top: 0, bottom: 0 },
+  due: { position: 'absolute', top: 0, bottom: 0, width: 3, backgroundColor: colors.ink },
+  axis: { flexDirection: 'row', justifyContent: 'space-between', marginLeft: 128 },
+  legend: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.md, marginTop: spacing.xs },
+  legendItem: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs },
+  legendSwatch: { width: 12, height: 12, borderRadius: 2 },
+  row: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, borderWidth: 1, borderColor: colors.line, backgroundColor: colors.surface },
+  rowLate: { borderColor: colors.danger, borderLeftWidth: 5 },
+  rowHead: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.md },
+  arrows: { flexDirection: 'row', gap: spacing.xs },
+  times: { flexDirection: 'row', flexWrap: 'wrap', rowGap: spacing.sm, columnGap: spacing.lg },
+  timesWide: { columnGap: spacing.xl },
+  time: { minWidth: 96, gap: 2 },
+});
