@@ -189,7 +189,14 @@ export function RequestForm({
         )}
         <PartPicker
           chosen={v.lines.map((l) => l.partId)}
-          onPick={(p) => set('lines', [...v.lines, { partId: p.id, partName: p.name, quantity: '1' }])}
+          onPick={(p) =>
+            setV((old) => ({
+              ...old,
+              // The first part's default material is the likely choice when none is picked yet.
+              materialId: old.materialId || p.materialId || '',
+              lines: [...old.lines, { partId: p.id, partName: p.name, quantity: '1' }],
+            }))
+          }
         />
       </Card>
 
@@ -207,7 +214,7 @@ export function RequestForm({
 }
 
 /** Finds parts of the library by name or tag to add as lines. */
-function PartPicker({ chosen, onPick }: { chosen: string[]; onPick: (p: { id: string; name: string }) => void }) {
+function PartPicker({ chosen, onPick }: { chosen: string[]; onPick: (p: { id: string; name: string; materialId: string | null }) => void }) {
   const lab = useLab();
   const [search, setSearch] = useState('');
   const parts = usePartsQuery(lab.id, { search: search.trim() || undefined, sort: 'name', pageSize: 8 });
