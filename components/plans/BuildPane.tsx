@@ -1,6 +1,6 @@
 import { forwardRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type Vec3 } from '../viewer';
+import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type PartMesh, type Vec3 } from '../viewer';
 import { colors, radius, spacing } from '../theme';
 import { Button, Text } from '../ui';
 
@@ -9,6 +9,7 @@ export interface BuildPaneProps {
   margin: { xy: number; bottom: number; top: number };
   placements: ChamberPlacements;
   lineColours: readonly string[];
+  meshesByPart?: ReadonlyMap<number, PartMesh>;
   heightMm: number;
   layerHeightMm: number;
   cutMm: number | null;
@@ -21,7 +22,8 @@ export interface BuildPaneProps {
   editable: boolean;
   caption: string;
   live: boolean;
-  heightPx: number;
+  /** Fixed height (phone); the pane fills its column when left out. */
+  heightPx?: number;
   /** A stored layout is on its way: the 3D view waits for it, so its first frame already holds every part. */
   loading: boolean;
 }
@@ -31,7 +33,7 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
   const [hovered, setHovered] = useState<number | null>(null);
   const top = Math.max(p.heightMm, p.layerHeightMm);
   return (
-    <View style={[styles.pane, { height: p.heightPx }]} testID="plan-build">
+    <View style={[styles.pane, p.heightPx ? { height: p.heightPx } : styles.fill]} testID="plan-build">
       <View style={styles.caption}>
         <Text variant="label" numberOfLines={1} testID="plan-build-caption">
           {p.caption}
@@ -54,6 +56,7 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
             margin={p.margin}
             placements={p.placements}
             lineColours={p.lineColours}
+            meshesByPart={p.meshesByPart}
             cutHeightMm={p.cutMm}
             onHover={setHovered}
             onPick={p.onPick}
@@ -85,11 +88,12 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
 
 const styles = StyleSheet.create({
   pane: { gap: spacing.sm, minHeight: 320 },
+  fill: { flex: 1 },
   caption: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
   body: { flex: 1, flexDirection: 'row', gap: spacing.sm, minHeight: 0 },
   view: { flex: 1, borderRadius: radius.lg, overflow: 'hidden', backgroundColor: colors.graphite },
   canvas: { flex: 1 },
   wait: { flex: 1, alignItems: 'center', justifyContent: 'center' },
-  slider: { width: 64 },
+  slider: { width: 84 },
   marked: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
 });

@@ -72,7 +72,7 @@ export function LayoutsTable({
   const best = new Map<string, number>();
   for (const m of METRICS) {
     const values = rows.map((r) => (r.numbers ? m.get(r.numbers) : null)).filter((v): v is number => v != null && Number.isFinite(v));
-    if (values.length > 1) best.set(m.key, m.better === 'low' ? Math.min(...values) : Math.max(...values));
+    if (values.length > 1 && Math.min(...values) !== Math.max(...values)) best.set(m.key, m.better === 'low' ? Math.min(...values) : Math.max(...values));
   }
   return (
     <View style={styles.wrap} testID="layouts-table">

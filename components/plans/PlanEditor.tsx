@@ -56,6 +56,7 @@ import { LinesPane, type EditorLine } from './LinesPane';
 import { NumbersPane } from './NumbersPane';
 import { PlanHistory } from './PlanHistory';
 import { ShortcutHelp } from './ShortcutHelp';
+import { useChamberMeshes } from './useChamberMeshes';
 import { useEditorShortcuts } from './useEditorShortcuts';
 
 /** Wide enough for three panes side by side. */
@@ -137,7 +138,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
 
   // Everything the editor knows about a line, whether saved in the plan or added from the open lines.
   const lineInfo = useMemo(() => {
-    const m = new Map<string, Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number }>();
+    const m = new Map<string, Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; partId: string }>();
     for (const o of openLines.data ?? []) {
       m.set(o.requestLineId, {
         requestLineId: o.requestLineId,
@@ -149,6 +150,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         maxQuantity: o.remaining,
         partRule: o.part.orientation,
         volumeMm3: o.part.volumeMm3,
+        partId: o.part.id,
       });
     }
     for (const l of plan.lines) {
@@ -162,6 +164,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         maxQuantity: l.lineQuantity - l.plannedElsewhere,
         partRule: l.part.orientation,
         volumeMm3: l.part.volumeMm3,
+        partId: l.part.id,
       });
     }
     return m;
@@ -287,7 +290,14 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
     for (const p of shownInstance?.parts ?? []) if (!ids.includes(p.id)) ids.push(p.id);
     return ids;
   }, [lineOrder, shownInstance]);
+  const partIdsInOrder = useMemo(() => colourOrder.map((id) => lineInfo.get(id)?.partId), [colourOrder, lineInfo]);
   const placements = useMemo(() => (shownResult ? toChamberPlacements(shownResult, colourOrder) : EMPTY_PLACEMENTS), [shownResult, colourOrder]);
+  const copiesByIndex = useMemo(() => {
+    const c = new Uint32Array(colourOrder.length + 1);
+    for (const k of placements.partIndex) c[k]++;
+    return c;
+  }, [placements, colourOrder.length]);
+  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, copiesByIndex);
   const partIds = useMemo(() => shownResult?.placements.map((p) => p.id) ?? [], [shownResult]);
   const describe = useCallback(
     (i: number) => {
@@ -317,6 +327,13 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       added: !plan.lines.some((p) => p.requestLineId === l.requestLineId),
     };
   });
+
+  const mx = fullInstance.margin?.xy ?? 0;
+  const mb = fullInstance.margin?.bottom ?? 0;
+  const mt = fullInstance.margin?.top ?? 0;
+  // Stable props, so that the 3D view does not redo its buffers when the editor draws again.
+  const viewMargin = useMemo(() => ({ xy: mx, bottom: mb, top: mt }), [mx, mb, mt]);
+  const viewColours = useMemo(() => colourOrder.map((_, i) => lineColour(i)), [colourOrder]);
 
   // ---- cut, marks ---------------------------------------------------------
   const chamberRef = useRef<ChamberViewHandle>(null);
@@ -593,14 +610,15 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       repack={{ available: repack.available, reason: repack.reason, onRepack }}
     />
   );
-  const buildHeight = wide ? Math.max(420, height - 190) : Math.max(360, Math.round(height * 0.62));
+  const buildHeight = wide ? undefined : Math.max(360, Math.round(height * 0.62));
   const buildPane = (
     <BuildPane
       ref={chamberRef}
       chamberMm={machine.chamberMm}
-      margin={{ xy: fullInstance.margin?.xy ?? 0, bottom: fullInstance.margin?.bottom ?? 0, top: fullInstance.margin?.top ?? 0 }}
+      margin={viewMargin}
       placements={placements}
-      lineColours={colourOrder.map((_, i) => lineColour(i))}
+      lineColours={viewColours}
+      meshesByPart={chamberMeshes.meshes}
       heightMm={usedHeight}
       layerHeightMm={layerHeightMm}
       cutMm={cutMm}
@@ -668,7 +686,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       <Badge label={STATUS_LABELS[plan.status]} tone={STATUS_TONES[plan.status]} testID="plan-status" />
       {dirty ? <Badge label="Unsaved changes" tone="amber" testID="plan-dirty" /> : null}
       <View style={styles.headerActions}>
-        {hasKeys ? <Button label="Shortcuts (?)" variant="ghost" size="sm" onPress={() => setHelpOpen(true)} testID="plan-shortcuts" /> : null}
+        {hasKeys && wide ? <Button label="Shortcuts (?)" variant="ghost" size="sm" onPress={() => setHelpOpen(true)} testID="plan-shortcuts" /> : null}
         {editable ? (
           <>
             <Button label="Save (S)" variant="secondary" size="sm" onPress={onSave} disabled={!draft} loading={save.isPending} testID="plan-save" />
@@ -729,6 +747,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
           </ScrollView>
         </View>
         {sheets}
+        {chamberMeshes.loaders}
       </View>
     );
   }
@@ -760,6 +779,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         ) : null}
       </ScrollView>
       {sheets}
+      {chamberMeshes.loaders}
     </View>
   );
 }
