@@ -163,6 +163,17 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
       },
       now: new Date(nowMs).toISOString(),
       current: schedule.current ? item(schedule.current) : null,
+      // Every build still holding a chamber (a machine with spare chambers may have one cooling outside), each predicted on its own.
+      active: started.map((row) => {
+        const d = durations.get(row.id)!;
+        const own = scheduleQueue({
+          startMs: nowMs,
+          machine: { chamberCount: 1 },
+          plans: [],
+          current: { plan: { planId: row.id, ...d, dueDatesMs: (requestsOf.get(row.id) ?? []).map((r) => dueEndMs(r.dueDate)) }, ...stageOf(row, d, nowMs) },
+        });
+        return item(own.current!);
+      }),
       plans: schedule.plans.map(item),
     };
   }

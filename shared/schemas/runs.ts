@@ -160,5 +160,7 @@ export interface QueueView {
   calibration: CalibrationView;
   now: string;
   current: QueueItemView | null;
+  /** Every started build that still holds a chamber (printing, cooling or in breakout), latest started first. */
+  active: QueueItemView[];
   plans: QueueItemView[];
 }

@@ -87,6 +87,7 @@ describe('a machine\'s queue', () => {
     await lab.operator.agent.post(`${c.base}/run/advance`).send(startBody(c.estimate));
     const after = (await lab.agent.get(url)).body;
     expect(after.current).toMatchObject({ planId: c.planId, status: 'printing' });
+    expect(after.active.map((p: any) => p.planId)).toEqual([c.planId]);
     expect(after.plans.map((p: any) => p.name)).toEqual(['A', 'B']);
     expect(ms(after.plans[0].startAt)).toBe(ms(after.current.breakoutDoneAt));
     expect((await lab.agent.put(url).send({ planIds: [c.planId, a.planId, b.planId] })).body.error.field).toBe('planIds[0]');

@@ -1,3 +1,5 @@
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { startTestApp } from '../helpers/app';
 import { labWithProfiles } from '../helpers/plans';
 import type { Running } from '../../server/boot';
@@ -39,6 +41,10 @@ describe('the build sheet', () => {
     expect(ref).not.toBeNull();
     expect(text).toContain(`${ref![1]} 0 obj\n(Build sheet: Gear batch 7)`);
     expect(pdf.length).toBeGreaterThan(2000);
+    // Kept for a look by eye: the sheet is for the operator's clipboard.
+    const dir = join(__dirname, '..', '..', 'test-artifacts', 'sheet');
+    mkdirSync(dir, { recursive: true });
+    writeFileSync(join(dir, 'build-sheet.pdf'), pdf);
   });
 
   test('a plan still in review has no sheet yet (409), and another lab\'s plan is not found', async () => {
