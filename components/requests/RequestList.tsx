@@ -72,7 +72,9 @@ export function RequestList() {
         <View style={styles.results}>
           {rows.length > 0 ? (
             <Text variant="label" color="inkMuted" testID="requests-total">
-              {view === 'mine' ? `${rows.length} of yours` : `${rows.length} shown of ${requests.data.total}`}
+              {view === 'mine'
+                ? `${rows.length} of yours`
+                : `${rows.length === requests.data.total ? rows.length : `${rows.length} of ${requests.data.total}`} ${view === 'open' ? 'open' : 'in all'}`}
               {view === 'open' ? ' · soonest due first, the most urgent first on the same day' : ''}
             </Text>
           ) : null}
