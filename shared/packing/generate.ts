@@ -21,15 +21,17 @@ export function generatePowderBed(options: PowderBedOptions): PackInstance {
   const random = createRandom(options.seed);
   const between = (a: number, b: number) => Math.round((a + (b - a) * random()) * 10) / 10;
   const clipShare = options.clipShare ?? 0.75;
-  const designs = Math.max(4, Math.round(options.parts / 12));
+  const wanted = Math.max(0, Math.floor(options.parts));
+  // Never more designs than parts: each design has at least one copy.
+  const designs = Math.min(wanted, Math.max(4, Math.round(wanted / 12)));
   const parts: PackPart[] = [];
   // Quantities: random weights scaled to the requested total, each design at least one copy.
   const weights = Array.from({ length: designs }, () => 0.3 + random());
   const sum = weights.reduce((a, b) => a + b, 0);
-  const quantities = weights.map((w) => Math.max(1, Math.floor((w / sum) * options.parts)));
+  const quantities = weights.map((w) => Math.max(1, Math.floor((w / sum) * wanted)));
   let total = quantities.reduce((a, b) => a + b, 0);
-  for (let i = 0; total < options.parts; i = (i + 1) % designs, total++) quantities[i]++;
-  for (let i = designs - 1; total > options.parts; i = (i - 1 + designs) % designs) {
+  for (let i = 0; designs > 0 && total < wanted; i = (i + 1) % designs, total++) quantities[i]++;
+  for (let i = designs - 1; total > wanted; i = (i - 1 + designs) % designs) {
     if (quantities[i] > 1) {
       quantities[i]--;
       total--;

@@ -100,3 +100,10 @@ describe('results', () => {
     expect(decoded.ok && decoded.result).toEqual(result);
   });
 });
+
+describe('generated powder-bed builds', () => {
+  test.each([0, 1, 3, 200])('hold exactly the %i parts asked for', (parts) => {
+    const inst = generatePowderBed({ parts, seed: 1 });
+    expect(inst.parts.reduce((s, p) => s + p.quantity, 0)).toBe(parts);
+  });
+});
