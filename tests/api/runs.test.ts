@@ -181,6 +181,24 @@ describe('a run at the machine', () => {
     expect((await op.get(`${base}/run`)).body.status).toBe('breakout');
   });
 
+  test('a step recorded late keeps its time, but not one in the future or before the stage it ends', async () => {
+    const lab = await labWithCrew(running, 'late-entry');
+    const { base, estimate } = await queuedPlan(running, lab, [GEAR]);
+    const op = lab.operator.agent;
+    const future = await op.post(`${base}/run/advance`).send(startBody(estimate, new Date(Date.now() + 3_600_000).toISOString()));
+    expect(future.status).toBe(400);
+    expect(future.body.error.field).toBe('at');
+    const startedAt = new Date(Date.now() - 2 * 3_600_000).toISOString();
+    const started = await op.post(`${base}/run/advance`).send(startBody(estimate, startedAt));
+    expect(started.body.startedAt).toBe(startedAt);
+    const beforeStart = await op.post(`${base}/run/advance`).send({ to: 'cooling', at: new Date(Date.parse(startedAt) - 60_000).toISOString() });
+    expect(beforeStart.status).toBe(400);
+    expect(beforeStart.body.error.field).toBe('at');
+    const ended = await op.post(`${base}/run/advance`).send({ to: 'cooling', at: new Date(Date.parse(startedAt) + 5_400_000).toISOString() });
+    expect(ended.body.actualPrintHours).toBeCloseTo(1.5, 9);
+    expect((await op.post(`${base}/run/advance`).send({ to: 'breakout', at: 'yesterday' })).body.error.field).toBe('at');
+  });
+
   test('an aborted print needs a reason and gives all its parts back to their request', async () => {
     const lab = await labWithCrew(running, 'abort');
     const { base, estimate, request } = await queuedPlan(running, lab, [GEAR]);
