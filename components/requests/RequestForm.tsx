@@ -10,6 +10,7 @@ import { usePartsQuery } from '../queries/parts';
 import type { RequestInput } from '../queries/requests';
 import { colors, radius, spacing } from '../theme';
 import { Button, Card, Field, LoadingState, Notice, Text, TextInput } from '../ui';
+import { DateField } from './DateField';
 import { PRIORITY_LABELS, addDaysIso, todayIso } from './labels';
 
 export type RequestFormLine = { partId: string; partName: string; quantity: string };
@@ -122,16 +123,7 @@ export function RequestForm({
       </View>
       <View style={styles.pair}>
         <View style={styles.pairItem}>
-          <Field
-            label="Due date"
-            unit="YYYY-MM-DD"
-            testID="request-due"
-            value={v.dueDate}
-            onChangeText={(t) => set('dueDate', t)}
-            error={errs.fields.dueDate}
-            autoCapitalize="none"
-            mono
-          />
+          <DateField label="Due date" testID="request-due" value={v.dueDate} onChange={(t) => set('dueDate', t)} error={errs.fields.dueDate} min={todayIso()} />
         </View>
         <View style={styles.pairItem}>
           <Choice

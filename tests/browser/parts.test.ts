@@ -135,7 +135,7 @@ describe.each([
     await page.context().close();
   });
 
-  test('files a request for a library part, with an out-of-range quantity refused inline first, then changes it while nothing is planned', async () => {
+  test('files a request for a library part, with an out-of-range quantity and a past due date refused inline first, then changes it while nothing is planned', async () => {
     const page = await newPage(served, viewport);
     await signIn(page, 'designer@tinkerfin.example');
     await page.goto('/requests');
@@ -150,15 +150,20 @@ describe.each([
     await add.click();
     await page.getByTestId('request-line-0').waitFor();
     await page.getByTestId('request-line-0-quantity').fill('0');
+    await page.getByTestId('request-due').fill('2020-03-02');
     await page.getByTestId('request-submit').click();
     await page.getByTestId('request-line-0-error').waitFor();
+    expect(await page.getByTestId('request-due-error').innerText()).toMatch(/past/);
     await screenshot(page, `request-new-${name}`);
 
+    const due = new Date(Date.now() + 21 * 86_400_000).toISOString().slice(0, 10);
+    await page.getByTestId('request-due').fill(due);
     await page.getByTestId('request-line-0-quantity').fill('12');
     await page.getByTestId('request-priority-high').click();
     await page.getByTestId('request-submit').click();
     await page.getByTestId('screen-request').waitFor();
     expect(await page.getByTestId('request-total-quantity').innerText()).toBe('12');
+    expect(await page.getByTestId('request-due-date').innerText()).toContain(due);
     await page.getByText(title).first().waitFor();
     await screenshot(page, `request-detail-${name}`);
 
