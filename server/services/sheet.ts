@@ -151,7 +151,8 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
       doc.font('Helvetica-Oblique').fontSize(8).fillColor(MUTED).text(CAUTION_DEFERRAL);
       for (const caution of Object.values(CAUTIONS)) {
         doc.font('Helvetica-Bold').fontSize(9).fillColor(INK).text(caution.title);
-        doc.font('Helvetica').fontSize(8).text(`${caution.points.join(' ')} (${caution.reference}.)`);
+        doc.font('Helvetica').fontSize(8).text(caution.points.join(' '));
+        doc.fillColor(MUTED).text(`See: ${caution.reference}.`).fillColor(INK);
       }
       doc.end();
       await ended;
