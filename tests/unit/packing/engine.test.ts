@@ -70,7 +70,7 @@ describe('results', () => {
   });
 
   test('min-height layouts are much lower than the chamber and not below the lower bound', () => {
-    const inst = generatePowderBed({ parts: 150, seed: 3, timeLimitMs: 300 });
+    const inst = generatePowderBed({ parts: 150, seed: 3, timeLimitMs: 60_000 });
     const result = packSync(inst, { maxCompletions: 30 });
     expect(result.unplaced).toEqual([]);
     expect(result.height).toBeGreaterThanOrEqual(lowerBound(inst) - 1e-9);
