@@ -1,83 +1,77 @@
 import { type Href } from 'expo-router';
-import { Pressable, StyleSheet, View } from 'react-native';
-import type { Role } from '../api/schemas';
+import { useEffect, useMemo, useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import type { PlanListItem } from '../../shared/schemas/plans';
 import { roleLabels, roleTones, sortRoles } from '../lab/roles';
 import { useLab } from '../lab/useCurrentLab';
+import { useLabQueuesQuery } from '../queries/home';
 import { useMachinesQuery } from '../queries/machines';
 import { useMaterialsQuery } from '../queries/materials';
 import { useMeQuery } from '../queries/me';
 import { useMembersQuery } from '../queries/members';
 import { useInvitesQuery } from '../queries/invites';
-import { ReviewList } from '../review/ReviewList';
+import { usePlansQuery } from '../queries/plans';
+import { useRequestsQuery, type RequestListParams } from '../queries/requests';
 import { colors, radius, spacing, useIsWide } from '../theme';
-import { Badge, EmptyState, Figure, Icon, LinkPressable, Screen, Text } from '../ui';
+import { Badge, Figure, Icon, LinkPressable, Screen, Text } from '../ui';
+import { DesignerSection } from './DesignerSection';
+import { LateSection } from './LateSection';
+import { LeadSection } from './LeadSection';
+import { OperatorSection } from './OperatorSection';
+import { PlannerSection } from './PlannerSection';
+import { findLateRequests } from './late';
 
-type Section = {
-  key: string;
-  role?: Role;
-  title: string;
-  empty: { title: string; body: string; who: string };
-};
+/** The open requests in the planner's order: soonest due, the most urgent first on the same day. */
+const OPEN_REQUESTS: RequestListParams = { status: 'open', sort: 'dueDate', pageSize: 200 };
+const FINISHING = ['finishing'] as const;
 
-/** What each role is waiting on; "late requests" concern everyone. */
-const sections: Section[] = [
-  {
-    key: 'designer',
-    role: 'designer',
-    title: 'My requests',
-    empty: {
-      title: 'No requests of yours are open',
-      body: 'Requests you file show here with how many of each part are planned and printed, and their due dates.',
-      who: 'You file them as a designer, from Requests.',
-    },
-  },
-  {
-    key: 'planner',
-    role: 'planner',
-    title: 'Requests to plan',
-    empty: {
-      title: 'No requests waiting for a build',
-      body: 'Open request lines that no plan covers yet show here, the earliest due date first.',
-      who: 'Designers file them; you pack them as a planner.',
-    },
-  },
-  {
-    key: 'lead',
-    role: 'lead',
-    title: 'Plans to review',
-    empty: {
-      title: 'No plans waiting for review',
-      body: 'Plans a planner sends for review show here with their chosen layout, to approve into a queue or send back with a comment.',
-      who: 'Planners send them; you review them as a lead.',
-    },
-  },
-  {
-    key: 'operator',
-    role: 'operator',
-    title: 'Next runs on my machines',
-    empty: {
-      title: 'No runs are due',
-      body: 'The next approved build of each machine shows here with its predicted start, so you can prepare powder and the chamber.',
-      who: 'Leads queue them; you run them as an operator.',
-    },
-  },
-  {
-    key: 'late',
-    title: 'Late requests',
-    empty: {
-      title: 'Nothing is late',
-      body: 'Requests whose predicted finish falls after their due date show here, so the lab can re-plan or tell the designer early.',
-      who: 'Flagged from the queue’s predicted times.',
-    },
-  },
-];
+/** The clock home's relative times and past-due checks follow, a minute at a time. */
+function useNowMs(stepMs = 60_000): number {
+  const [now, setNow] = useState(() => Date.now());
+  useEffect(() => {
+    const t = setInterval(() => setNow(Date.now()), stepMs);
+    return () => clearInterval(t);
+  }, [stepMs]);
+  return now;
+}
 
 export function HomeScreen() {
   const lab = useLab();
   const { data: me } = useMeQuery();
   const wide = useIsWide();
-  const mine = sections.filter((s) => !s.role || lab.has(s.role));
+  const nowMs = useNowMs();
   const firstName = me?.user.name.split(/\s+/)[0] ?? '';
+
+  const requests = useRequestsQuery(lab.id, OPEN_REQUESTS);
+  const machines = useMachinesQuery(lab.id);
+  const machineIds = useMemo(() => (machines.data ?? []).map((m) => m.id), [machines.data]);
+  const queues = useLabQueuesQuery(lab.id, machineIds);
+  const finishing = usePlansQuery(lab.has('operator') ? lab.id : undefined, FINISHING);
+
+  const openRequests = requests.data?.items ?? [];
+  const mine = openRequests.filter((r) => r.createdBy?.id === me?.user.id);
+  const late = findLateRequests(
+    queues.flatMap((q) => (q.data ? [q.data] : [])),
+    openRequests,
+    nowMs,
+  );
+  const machineNames = new Map((machines.data ?? []).map((m) => [m.id, m.name] as const));
+  const requestsState = { isPending: requests.isPending, error: requests.error, refetch: requests.refetch };
+  const requestsTruncated = !!requests.data && requests.data.total > requests.data.items.length;
+
+  const sections: { key: string; node: React.ReactNode }[] = [];
+  const lateNode = { key: 'late', node: <LateSection late={late} requests={requestsState} queues={machines.data ? queues : []} machineNames={machineNames} /> };
+  // Something late is what needs everyone first.
+  if (late.length > 0) sections.push(lateNode);
+  if (lab.has('designer')) sections.push({ key: 'designer', node: <DesignerSection requests={{ ...requestsState, data: requests.data ? mine : undefined }} /> });
+  if (lab.has('planner')) sections.push({ key: 'planner', node: <PlannerSection requests={{ ...requestsState, data: requests.data ? openRequests : undefined }} meId={me?.user.id} /> });
+  if (lab.has('lead')) sections.push({ key: 'lead', node: <LeadSection nowMs={nowMs} /> });
+  if (lab.has('operator'))
+    sections.push({
+      key: 'operator',
+      node: <OperatorSection machines={machines} queues={queues} finishing={(finishing.data as PlanListItem[] | undefined) ?? []} nowMs={nowMs} />,
+    });
+  if (late.length === 0) sections.push(lateNode);
 
   return (
     <Screen title={firstName ? `Hello, ${firstName}` : 'Home'} subtitle={`What needs you now in ${lab.name}.`} testID="screen-home">
@@ -92,19 +86,32 @@ export function HomeScreen() {
 
       <LabFigures />
 
-      <View style={[styles.grid, wide && styles.gridWide]}>
-        {mine.map((s) => (
-          <View key={s.key} style={[styles.section, wide && styles.sectionWide]} testID={`home-section-${s.key}`}>
-            <View style={styles.sectionHead}>
-              <Text variant="heading" accessibilityRole="header">
-                {s.title}
-              </Text>
-              {s.role ? <Badge label={roleLabels[s.role]} tone={roleTones[s.role]} /> : <Badge label="Everyone" />}
+      {requestsTruncated ? (
+        <Text variant="caption" color="inkFaint" testID="home-requests-truncated">
+          Showing the {requests.data!.items.length} soonest due of {requests.data!.total} open requests; Requests lists them all.
+        </Text>
+      ) : null}
+
+      {wide ? (
+        // Two columns filled in turn, so a long section does not leave a hole beside a short one.
+        <View style={styles.columns}>
+          {[0, 1].map((col) => (
+            <View key={col} style={styles.column}>
+              {sections
+                .filter((_, i) => i % 2 === col)
+                .map((s) => (
+                  <View key={s.key}>{s.node}</View>
+                ))}
             </View>
-            {s.key === 'lead' ? <ReviewList compact /> : <EmptyState title={s.empty.title} body={s.empty.body} who={s.empty.who} />}
-          </View>
-        ))}
-      </View>
+          ))}
+        </View>
+      ) : (
+        <View style={styles.grid}>
+          {sections.map((s) => (
+            <View key={s.key}>{s.node}</View>
+          ))}
+        </View>
+      )}
     </Screen>
   );
 }
@@ -130,25 +137,27 @@ function LabFigures() {
   return (
     <View style={styles.figures} testID="home-section-lab">
       {items.map((it) => (
-        <LinkPressable key={it.key} href={it.href}
-            testID={`home-${it.key}`}
-            accessibilityRole="link"
-            accessibilityLabel={`${it.label}: ${it.q.data?.length ?? 'loading'}`}
-            style={({ pressed, hovered }: { pressed: boolean; hovered?: boolean }) => [styles.figure, (pressed || hovered) && styles.figureHover]}
-          >
-            <Text variant="overline" color="inkMuted">
-              {it.label}
+        <LinkPressable
+          key={it.key}
+          href={it.href}
+          testID={`home-${it.key}`}
+          accessibilityRole="link"
+          accessibilityLabel={`${it.label}: ${it.q.data?.length ?? 'loading'}`}
+          style={({ pressed, hovered }: { pressed: boolean; hovered?: boolean }) => [styles.figure, (pressed || hovered) && styles.figureHover]}
+        >
+          <Text variant="overline" color="inkMuted">
+            {it.label}
+          </Text>
+          <Figure variant="figureLarge" testID={`home-${it.key}-count`} color={it.q.isError ? 'danger' : 'ink'}>
+            {it.q.isError ? '!' : it.q.data ? String(it.q.data.length) : '–'}
+          </Figure>
+          <View style={styles.figureFoot}>
+            <Text variant="caption" color="inkFaint" style={{ flexShrink: 1 }}>
+              {it.q.isError ? 'could not be loaded' : it.note}
             </Text>
-            <Figure variant="figureLarge" testID={`home-${it.key}-count`} color={it.q.isError ? 'danger' : 'ink'}>
-              {it.q.isError ? '!' : it.q.data ? String(it.q.data.length) : '–'}
-            </Figure>
-            <View style={styles.figureFoot}>
-              <Text variant="caption" color="inkFaint" style={{ flexShrink: 1 }}>
-                {it.q.isError ? 'could not be loaded' : it.note}
-              </Text>
-              <Icon name="chevron" size={16} color={colors.inkFaint} />
-            </View>
-          </LinkPressable>
+            <Icon name="chevron" size={16} color={colors.inkFaint} />
+          </View>
+        </LinkPressable>
       ))}
     </View>
   );
@@ -171,8 +180,6 @@ const styles = StyleSheet.create({
   figureHover: { borderColor: colors.ember },
   figureFoot: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.xs },
   grid: { gap: spacing.xl },
-  gridWide: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xl },
-  section: { gap: spacing.md },
-  sectionWide: { flexBasis: 420, flexGrow: 1 },
-  sectionHead: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.sm },
+  columns: { flexDirection: 'row', alignItems: 'flex-start', gap: spacing.xl },
+  column: { flex: 1, minWidth: 0, gap: spacing.xl },
 });
