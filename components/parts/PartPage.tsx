@@ -47,7 +47,8 @@ export function PartPage({ partId }: { partId: string }) {
       </Screen>
     );
   }
-  return <PartDetail part={part.data} back={back} />;
+  // A fresh detail per part, so an unsaved turn of one part never carries over to the next.
+  return <PartDetail key={part.data.id} part={part.data} back={back} />;
 }
 
 function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {

@@ -58,7 +58,7 @@ export function RequestDetail({ requestId }: { requestId: string }) {
       </Screen>
     );
   }
-  return <RequestView request={request.data} />;
+  return <RequestView key={request.data.id} request={request.data} />;
 }
 
 function valuesOf(r: LabRequest): RequestFormValues {
