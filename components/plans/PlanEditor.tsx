@@ -8,7 +8,7 @@
 import { router } from 'expo-router';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { ScrollView, StyleSheet, useWindowDimensions, View } from 'react-native';
-import type { PackInstanceInput, PackResult, Placement, Vec3 } from '../../shared/packing';
+import { buildCountLowerBound, parseInstance, type PackInstanceInput, type PackResult, type Placement, type Vec3 } from '../../shared/packing';
 import type { PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
@@ -72,8 +72,10 @@ interface Working {
   /** Placements carried over unchanged (a locked layout, or what a fill keeps). */
   kept: Placement[];
   result: PackResult | null;
-  /** The lines the instance was made from. */
+  /** The lines the instance was made from (for a fill: with what it added). */
   lines: DraftLine[];
+  /** The lines before the run began: a fill adds to these, however often its best layout changes. */
+  baseLines: DraftLine[];
   problem: string | null;
 }
 
@@ -201,6 +203,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   const workingRef = useRef<Working | null>(null);
   workingRef.current = working;
   const [lastRun, setLastRun] = useState<(() => void) | null>(null);
+  const [message, setMessage] = useState<{ tone: 'danger' | 'success' | 'info'; text: string } | null>(null);
 
   const merge = useCallback(
     (w: Working, best: PackResult, check: boolean): Working => {
@@ -210,7 +213,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       if (w.mode === 'fill') {
         // The plan takes what the fill placed: each added line's quantity becomes its placed count.
         const added = countById(best.placements);
-        const next = w.lines.map((l) => ({ ...l, quantity: l.quantity + (added.get(l.requestLineId) ?? 0) }));
+        const next = w.baseLines.map((l) => ({ ...l, quantity: l.quantity + (added.get(l.requestLineId) ?? 0) }));
         for (const [id, n] of added) if (!next.some((l) => l.requestLineId === id)) next.push({ requestLineId: id, quantity: n, orientation: null });
         wLines = next;
         instance = buildInstance(instanceLines(next), machine, material, options);
@@ -249,6 +252,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
 
   const run = useCallback(
     (w: Working, engineInstance: PackInstanceInput) => {
+      setMessage(null);
       setWorking(w);
       showLayout(planId, WORKING);
       const again = () => {
@@ -264,7 +268,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
 
   const onPack = () => {
     if (!editable || packer.status === 'running' || fullInstance.parts.length === 0) return;
-    run({ mode: 'pack', instance: fullInstance, kept: [], result: null, lines, problem: null }, fullInstance);
+    run({ mode: 'pack', instance: fullInstance, kept: [], result: null, lines, baseLines: lines, problem: null }, fullInstance);
   };
 
   // ---- the layout shown ----------------------------------------------------
@@ -350,7 +354,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
     const next = withoutPlacements(shownInstance, shownResult, new Set(marked));
     if (!next) return;
     clearMarked();
-    setWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, problem: null });
+    setWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
     showLayout(planId, WORKING);
   };
   const moveCut = (layers: number) => {
@@ -380,7 +384,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       }
     }
     const parts = fullInstance.parts.map((p) => ({ ...p, quantity: p.quantity - (taken.get(p.id) ?? 0) }));
-    run({ mode: 'repack', instance: fullInstance, kept, result: null, lines, problem: null }, instanceAbove(fullInstance, kept, parts, 'min-height'));
+    run({ mode: 'repack', instance: fullInstance, kept, result: null, lines, baseLines: lines, problem: null }, instanceAbove(fullInstance, kept, parts, 'min-height'));
   };
 
   const fillCandidates = useMemo(() => {
@@ -407,8 +411,12 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       sizeMm: c.line.part.sizeMm,
     }));
     const candidates = buildInstance(candidateLines, machine, material, options).parts;
-    const engine = instanceAbove(fullInstance, shownResult.placements, candidates, 'max-volume');
-    run({ mode: 'fill', instance: fullInstance, kept: shownResult.placements, result: null, lines, problem: null }, engine);
+    // When everything offered may fit the space left, pack it as low as it goes; when it cannot all fit, take the most volume.
+    const slab = instanceAbove(fullInstance, shownResult.placements, candidates, 'min-height');
+    const parsedSlab = parseInstance(slab);
+    const crowded = parsedSlab.ok && buildCountLowerBound(parsedSlab.instance) > 1;
+    const engine = crowded ? { ...slab, objective: 'max-volume' as const } : slab;
+    run({ mode: 'fill', instance: fullInstance, kept: shownResult.placements, result: null, lines, baseLines: lines, problem: null }, engine);
   };
 
   // ---- saving ---------------------------------------------------------------
@@ -419,7 +427,6 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   const deleteLayout = useDeleteLayoutMutation(lab.id, planId);
   const submit = useSubmitPlanMutation(lab.id, planId);
   const [conflict, setConflict] = useState<{ currentVersion: number | null } | null>(null);
-  const [message, setMessage] = useState<{ tone: 'danger' | 'success' | 'info'; text: string } | null>(null);
   const [busyLayout, setBusyLayout] = useState<string | null>(null);
 
   /** Saves the draft's name and lines; resolves false when the save did not happen. */

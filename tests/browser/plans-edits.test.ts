@@ -1,0 +1,104 @@
+import type { Page } from 'playwright-core';
+import { newPage, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
+import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+
+jest.setTimeout(300_000);
+
+let served: Served;
+beforeAll(async () => {
+  served = await serveAndLaunch();
+});
+afterAll(async () => {
+  await served?.close();
+});
+
+async function signIn(page: Page, email: string) {
+  await page.goto('/');
+  await page.getByTestId('sign-in-email').fill(email);
+  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
+  await page.getByTestId('sign-in-submit').click();
+  await page.getByTestId('screen-home').waitFor();
+}
+
+async function apiGet(page: Page, path: string) {
+  const r = await page.request.get(`/api${path}`);
+  return r.json();
+}
+
+async function packed(page: Page) {
+  await page.getByTestId('layout-col-working').waitFor();
+  await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
+}
+
+type Placement = { id: string; position: [number, number, number]; size: [number, number, number] };
+const key = (p: Placement) => `${p.id}@${p.position.map((v) => v.toFixed(6)).join(',')}`;
+
+test('a planner locks a layout, re-packs only the added parts, then fills the rest from other open lines without moving what is placed', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'planner@tinkerfin.example');
+  const me = await apiGet(page, '/me');
+  const labId = me.labs[0].id as string;
+  const materials = (await apiGet(page, `/labs/${labId}/materials`)) as Array<{ id: string; name: string }>;
+  const open = (await apiGet(page, `/labs/${labId}/plans/open-lines`)) as Array<{ requestLineId: string; remaining: number; request: { materialId: string } }>;
+  // The material with the most open lines: the plan takes part of one line, the others stay for filling.
+  const counts = new Map<string, number>();
+  for (const l of open) counts.set(l.request.materialId, (counts.get(l.request.materialId) ?? 0) + 1);
+  const materialId = [...counts].sort((a, b) => b[1] - a[1])[0][0];
+  const mine = open.filter((l) => l.request.materialId === materialId);
+  expect(mine.length).toBeGreaterThan(2);
+  const first = mine[0];
+
+  await page.goto('/plans/new');
+  await page.getByTestId(`new-plan-material-${materialId}`).click();
+  await page.getByTestId(`new-plan-line-${first.requestLineId}`).waitFor();
+  for (const l of mine.slice(1)) await page.getByTestId(`new-plan-pick-${l.requestLineId}`).click();
+  const half = Math.max(1, Math.floor(first.remaining / 2));
+  await page.getByTestId(`new-plan-qty-${first.requestLineId}`).fill(String(half));
+  await page.getByTestId('new-plan-create').click();
+  await page.getByTestId('screen-plan-editor').waitFor();
+  const planId = /\/plans\/([0-9a-f-]{36})/.exec(page.url())![1];
+
+  await page.getByTestId('pack-time').fill('1');
+  await page.getByTestId('pack-start').click();
+  await packed(page);
+  await page.getByTestId('layout-keep').click();
+  await page.getByText(/^Kept as/).waitFor();
+  let plan = await apiGet(page, `/labs/${labId}/plans/${planId}`);
+  const lockedId = plan.layouts[0].id as string;
+  await page.getByTestId(`layout-lock-${lockedId}`).click();
+  await page.waitForFunction(`document.querySelector('[data-testid="layout-lock-${lockedId}"]').textContent === 'Unlock'`);
+  const locked = await apiGet(page, `/labs/${labId}/plans/${planId}/layouts/${lockedId}`);
+
+  // More of the line: only the added copies are packed, above the locked ones.
+  await page.getByTestId(`plan-qty-${first.requestLineId}`).fill(String(first.remaining));
+  await page.getByTestId('plan-dirty').waitFor();
+  await page.getByTestId('pack-repack-new').click();
+  await packed(page);
+  await screenshot(page, 'plans-repacked-wide');
+  await page.getByTestId('layout-keep').click();
+  await page.getByText(/^Kept as/).waitFor();
+  plan = await apiGet(page, `/labs/${labId}/plans/${planId}`);
+  expect(plan.lines[0].quantity).toBe(first.remaining);
+  const repackedId = plan.layouts.find((l: { id: string }) => l.id !== lockedId).id as string;
+  const repacked = await apiGet(page, `/labs/${labId}/plans/${planId}/layouts/${repackedId}`);
+  const repackedKeys = new Set((repacked.result.placements as Placement[]).map(key));
+  for (const p of locked.result.placements as Placement[]) expect(repackedKeys.has(key(p))).toBe(true);
+  expect(repacked.result.placements).toHaveLength(first.remaining);
+
+  // Fill the rest: other open lines of the material go into the space left, the placed parts stay.
+  await page.getByTestId('pack-fill').click();
+  await packed(page);
+  await page.getByText('Added').first().waitFor();
+  await screenshot(page, 'plans-filled-wide');
+  await page.getByTestId('layout-keep').click();
+  await page.getByText(/^Kept as/).waitFor();
+  plan = await apiGet(page, `/labs/${labId}/plans/${planId}`);
+  expect(plan.lines.length).toBeGreaterThan(1);
+  const filledId = plan.layouts.find((l: { id: string }) => l.id !== lockedId && l.id !== repackedId).id as string;
+  const filled = await apiGet(page, `/labs/${labId}/plans/${planId}/layouts/${filledId}`);
+  const filledKeys = new Set((filled.result.placements as Placement[]).map(key));
+  for (const p of repacked.result.placements as Placement[]) expect(filledKeys.has(key(p))).toBe(true);
+  expect(filled.result.placements.length).toBeGreaterThan(repacked.result.placements.length);
+  expect(filled.matchesPlan).toBe(true);
+  await page.context().close();
+});
