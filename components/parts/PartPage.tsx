@@ -74,6 +74,7 @@ function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {
           <Text variant="caption" color="inkMuted">
             Drag to orbit, scroll or pinch to zoom. The arrow is the build direction (+z); the box shows the size the packer uses.
           </Text>
+          {canEdit ? <RotateControls part={part} rotationDeg={rotationDeg} setRotationDeg={setRotationDeg} size={size} /> : null}
         </View>
         <View style={[styles.side, wide && styles.sideWide]}>
           <Metrics part={part} />
@@ -81,7 +82,7 @@ function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {
         </View>
       </View>
       {canEdit ? (
-        <EditPart key={part.updatedAt} part={part} rotationDeg={rotationDeg} setRotationDeg={setRotationDeg} size={size} />
+        <EditPart key={part.updatedAt} part={part} rotationDeg={rotationDeg} />
       ) : (
         <Notice tone="info">Read only: designers, planners and leads edit parts.</Notice>
       )}
@@ -149,17 +150,7 @@ function Warnings({ part }: { part: Part }) {
 
 const FIELDS = ['name', 'tags', 'defaultMaterialId', 'orientation', 'rotationDeg'] as const;
 
-function EditPart({
-  part,
-  rotationDeg,
-  setRotationDeg,
-  size,
-}: {
-  part: Part;
-  rotationDeg: Rotation;
-  setRotationDeg: (r: Rotation) => void;
-  size: [number, number, number];
-}) {
+function EditPart({ part, rotationDeg }: { part: Part; rotationDeg: Rotation }) {
   const lab = useLab();
   const materials = useMaterialsQuery(lab.id);
   const update = useUpdatePartMutation(lab.id, part.id);
@@ -228,36 +219,16 @@ function EditPart({
           options={(Object.keys(ORIENTATION_LABELS) as OrientationRule[]).map((o) => ({ value: o, label: ORIENTATION_LABELS[o].label }))}
           hint={ORIENTATION_LABELS[orientation].hint}
         />
-        <View style={styles.rotate}>
-          <Text variant="label" color="inkMuted">
-            Turn before saving (quarter turns about x, then y, then z)
+        {errors.rotationDeg ? (
+          <Text variant="caption" color="danger">
+            Turn: {errors.rotationDeg}
           </Text>
-          <View style={styles.rotateRow}>
-            {(['x', 'y', 'z'] as const).map((axis, i) => (
-              <Button
-                key={axis}
-                label={`↻ ${axis}  ${rotationDeg[i]}°`}
-                variant="secondary"
-                size="sm"
-                testID={`part-rotate-${axis}`}
-                onPress={() => setRotationDeg(addQuarterTurn(rotationDeg, i as 0 | 1 | 2))}
-              />
-            ))}
-            <Button label="As uploaded" variant="ghost" size="sm" testID="part-rotate-reset" onPress={() => setRotationDeg([0, 0, 0])} />
-          </View>
-          <Text variant="figure" testID="part-rotated-size">
-            {formatSize(size)} mm
-            {turned ? '  (not saved yet)' : ''}
+        ) : null}
+        {turned ? (
+          <Text variant="caption" color="amber" testID="part-edit-turn-pending">
+            The turn shown in the preview is saved with these changes.
           </Text>
-          <Text variant="caption" color="inkFaint">
-            As uploaded: {formatSize(part.uploadedSizeMm)} mm. Volume and area do not change with a turn.
-          </Text>
-          {errors.rotationDeg ? (
-            <Text variant="caption" color="danger">
-              {errors.rotationDeg}
-            </Text>
-          ) : null}
-        </View>
+        ) : null}
         {server.form ? <Notice tone="danger">{server.form}</Notice> : null}
         {update.isSuccess && !update.isPending ? (
           <Notice tone="success" testID="part-edit-saved">
@@ -267,6 +238,47 @@ function EditPart({
         <Button label="Save changes" testID="part-edit-save" loading={update.isPending} onPress={save} />
       </View>
     </Card>
+  );
+}
+
+/** Quarter turns tried on the preview; they are stored with the edit form's save. */
+function RotateControls({
+  part,
+  rotationDeg,
+  setRotationDeg,
+  size,
+}: {
+  part: Part;
+  rotationDeg: Rotation;
+  setRotationDeg: (r: Rotation) => void;
+  size: [number, number, number];
+}) {
+  const turned = rotationDeg.some((d, i) => d !== part.rotationDeg[i]);
+  return (
+    <View style={styles.rotate} testID="part-rotate">
+      <Text variant="label" color="inkMuted">
+        Turn the part (quarter turns about x, then y, then z)
+      </Text>
+      <View style={styles.rotateRow}>
+        {(['x', 'y', 'z'] as const).map((axis, i) => (
+          <Button
+            key={axis}
+            label={`↻ ${axis}  ${rotationDeg[i]}°`}
+            variant="secondary"
+            size="sm"
+            testID={`part-rotate-${axis}`}
+            onPress={() => setRotationDeg(addQuarterTurn(rotationDeg, i as 0 | 1 | 2))}
+          />
+        ))}
+        <Button label="As uploaded" variant="ghost" size="sm" testID="part-rotate-reset" onPress={() => setRotationDeg([0, 0, 0])} />
+      </View>
+      <Text variant="figure" testID="part-rotated-size">
+        {formatSize(size)} mm
+      </Text>
+      <Text variant="caption" color={turned ? 'amber' : 'inkFaint'}>
+        {turned ? 'Not saved yet: save changes below to keep this turn. ' : ''}As uploaded: {formatSize(part.uploadedSizeMm)} mm. Volume and area do not change with a turn.
+      </Text>
+    </View>
   );
 }
 
@@ -303,7 +315,7 @@ const styles = StyleSheet.create({
   metric: { gap: spacing.xxs, minWidth: 130 },
   warnings: { gap: spacing.sm },
   form: { gap: spacing.lg, maxWidth: 720 },
-  rotate: { gap: spacing.xs, borderTopWidth: 1, borderTopColor: colors.line, paddingTop: spacing.md },
+  rotate: { gap: spacing.xs, paddingTop: spacing.sm },
   rotateRow: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
   tags: { flexDirection: 'row', gap: spacing.xs, flexWrap: 'wrap' },
 });

@@ -113,10 +113,16 @@ describe.each([
     await page.waitForTimeout(1500);
     await screenshot(page, `part-page-${name}`);
 
-    // A quarter turn about x swaps the part's y and z extents before it is saved.
+    // A quarter turn about x swaps the part's y and z extents, shown before it is saved and measured so after.
     await page.getByTestId('part-rotate-x').click();
     const turned = [metrics.sizeMm[0], metrics.sizeMm[2], metrics.sizeMm[1]].map((v) => String(Number(v.toFixed(2)))).join(' × ');
     expect(await page.getByTestId('part-rotated-size').innerText()).toContain(turned);
+    await page.getByTestId('part-rotate-x').scrollIntoViewIfNeeded();
+    await page.waitForTimeout(500);
+    await screenshot(page, `part-edit-${name}`);
+    await page.getByTestId('part-edit-save').click();
+    await page.getByTestId('part-edit-saved').waitFor();
+    expect(await page.getByTestId('part-metric-size').innerText()).toContain(turned);
     await page.context().close();
   });
 
