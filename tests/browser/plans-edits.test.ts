@@ -102,3 +102,38 @@ test('a planner locks a layout, re-packs only the added parts, then fills the re
   expect(filled.matchesPlan).toBe(true);
   await page.context().close();
 });
+
+test('parts too many for one chamber are offered as several plans, which are made with every part shared out', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'owner@tinkerfin.example');
+  const me = await apiGet(page, '/me');
+  const labId = me.labs[0].id as string;
+  const machines = (await apiGet(page, `/labs/${labId}/machines`)) as Array<{ id: string; chamberMm: [number, number, number] }>;
+  const small = machines.reduce((a, m) => (m.chamberMm[2] < a.chamberMm[2] ? m : a));
+  const materials = (await apiGet(page, `/labs/${labId}/materials`)) as Array<{ id: string; name: string }>;
+  const material = materials.find((m) => /glass/i.test(m.name)) ?? materials[0];
+  const parts = (await apiGet(page, `/labs/${labId}/parts?pageSize=200`)).items as Array<{ id: string; name: string; sizeMm: [number, number, number] }>;
+  const housing = [...parts].sort((a, b) => b.sizeMm[0] * b.sizeMm[1] * b.sizeMm[2] - a.sizeMm[0] * a.sizeMm[1] * a.sizeMm[2])[0];
+  const due = new Date(Date.now() + 40 * 86_400_000).toISOString().slice(0, 10);
+  const made = await page.request.post('/api/labs/' + labId + '/requests', {
+    data: { title: 'Housings for the fleet', materialId: material.id, dueDate: due, lines: [{ partId: housing.id, quantity: 400 }] },
+    headers: { Origin: served.baseUrl },
+  });
+  expect(made.status()).toBe(201);
+
+  await page.goto('/plans/new');
+  await page.getByTestId(`new-plan-material-${material.id}`).click();
+  await page.getByTestId(`new-plan-machine-${small.id}`).click();
+  await page.getByTestId('new-plan-too-big').waitFor();
+  await page.getByTestId('new-plan-split').click();
+  await page.getByTestId('new-plan-split-preview').waitFor({ timeout: 60_000 });
+  await screenshot(page, 'plans-split-wide');
+  await page.getByTestId('new-plan-create-split').click();
+  await page.getByTestId('screen-plan-editor').waitFor({ timeout: 60_000 });
+
+  const plans = (await apiGet(page, `/labs/${labId}/plans`)) as Array<{ id: string; name: string; partCount: number }>;
+  const split = plans.filter((p) => / of \d+\)$/.test(p.name));
+  expect(split.length).toBeGreaterThan(1);
+  expect(split.reduce((s, p) => s + p.partCount, 0)).toBe(400);
+  await page.context().close();
+});
