@@ -25,9 +25,15 @@ const kgText = (kg: number) => `${(Math.ceil(kg * 10) / 10).toFixed(1)} kg`;
 const parseNumber = (t: string) => (t.trim() === '' ? Number.NaN : Number(t.replace(',', '.')));
 
 type StepError = { message: string; field?: string; conflict: boolean } | null;
+/** The server names the field first ("tempC must be ..."); beside the field itself the name is noise. */
+function plainMessage(message: string, field: string | undefined): string {
+  const rest = field && message.startsWith(`${field} `) ? message.slice(field.length + 1) : message;
+  return rest ? rest[0].toUpperCase() + rest.slice(1) : message;
+}
+
 function stepError(e: unknown): StepError {
   if (!e) return null;
-  if (isApiError(e)) return { message: e.message, field: e.field, conflict: e.status === 409 };
+  if (isApiError(e)) return { message: plainMessage(e.message, e.field), field: e.field, conflict: e.status === 409 };
   return { message: e instanceof Error ? e.message : String(e), conflict: false };
 }
 
@@ -45,7 +51,7 @@ function RunCardBody({ run, offsetMs, stale }: { run: RunView; offsetMs: number;
   const lab = useLab();
   const advance = useAdvanceRunMutation(lab.id, run.planId);
   const err = stepError(advance.error);
-  const stageIndex = STAGES.findIndex((s) => s.status === run.status);
+  const stageIndex = run.status === 'done' ? STAGES.length : STAGES.findIndex((s) => s.status === run.status);
   const canAct = lab.has('operator') || lab.has('lead');
 
   return (
@@ -63,7 +69,7 @@ function RunCardBody({ run, offsetMs, stale }: { run: RunView; offsetMs: number;
           ))}
         </View>
         <Text variant="heading" color="onGraphite" testID="run-stage" style={{ fontSize: 20 }}>
-          {stageIndex >= 0 ? `${stageIndex + 1} of ${STAGES.length} · ${STAGES[stageIndex].label}` : STATUS_LABELS[run.status]}
+          {stageIndex >= 0 && stageIndex < STAGES.length ? `${stageIndex + 1} of ${STAGES.length} · ${STAGES[stageIndex].label}` : STATUS_LABELS[run.status]}
         </Text>
       </View>
       <View style={styles.body}>
@@ -300,7 +306,12 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
             </View>
           ))}
         </View>
-        <FloorInput label="Temperature" unit="°C" value={temp} onChangeText={setTemp} error={readingErr?.field === 'tempC' ? readingErr.message : null} hint="Reading outside marks the chamber as out of the machine." testID="reading-temp" />
+        <FloorInput label="Temperature" unit="°C" value={temp}
+          onChangeText={(v) => {
+            setTemp(v);
+            if (addReading.isError) addReading.reset();
+          }}
+          error={readingErr?.field === 'tempC' ? readingErr.message : null} hint="Reading outside marks the chamber as out of the machine." testID="reading-temp" />
         {readingErr && readingErr.field !== 'tempC' ? (
           <Notice tone="danger" title="Reading not recorded" testID="reading-error">
             {readingErr.message}

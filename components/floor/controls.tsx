@@ -194,7 +194,11 @@ const styles = StyleSheet.create({
   boxOn: { backgroundColor: colors.teal, borderColor: colors.teal },
   inputRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
   input: {
-    flex: 1,
+    // A web input has an intrinsic width; without a zero basis it pushes the unit and the steppers off a phone's screen.
+    flexGrow: 1,
+    flexShrink: 1,
+    flexBasis: 0,
+    minWidth: 0,
     minHeight: FLOOR_TARGET,
     borderWidth: 2,
     borderColor: colors.lineStrong,
