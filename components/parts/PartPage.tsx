@@ -82,7 +82,7 @@ function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {
         </View>
       </View>
       {canEdit ? (
-        <EditPart key={part.updatedAt} part={part} rotationDeg={rotationDeg} />
+        <EditPart part={part} rotationDeg={rotationDeg} />
       ) : (
         <Notice tone="info">Read only: designers, planners and leads edit parts.</Notice>
       )}
