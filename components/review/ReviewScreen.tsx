@@ -97,7 +97,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   );
 
   const lines = (
-    <Card title="Lines" subtitle={`${plan.lines.reduce((s, l) => s + l.quantity, 0)} parts for ${new Set(plan.lines.map((l) => l.request.id)).size} requests`} testID="review-lines">
+    <Card title="Lines" subtitle={partsFor(plan)} testID="review-lines">
       {plan.lines.map((l, i) => (
         <View key={l.id} style={styles.line}>
           <View style={[styles.swatch, { backgroundColor: lineColour(i) }]} />
@@ -156,6 +156,12 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
       )}
     </Screen>
   );
+}
+
+function partsFor(plan: PlanView): string {
+  const parts = plan.lines.reduce((s, l) => s + l.quantity, 0);
+  const requests = new Set(plan.lines.map((l) => l.request.id)).size;
+  return `${parts} part${parts === 1 ? '' : 's'} for ${requests} request${requests === 1 ? '' : 's'}`;
 }
 
 /** Approve into the machine's queue, or send back with the comment the planner will read. */
