@@ -1,8 +1,10 @@
 import { type Href } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
 import type { Role } from '../api/schemas';
-import { roleLabels, roleTones } from '../lab/roles';
-import { colors, radius, spacing } from '../theme';
+import { roleLabels } from '../lab/roles';
+import { colors, radius, spacing, type ColorName } from '../theme';
+
+const roleTextColors: Record<Role, ColorName> = { designer: 'inkMuted', planner: 'amber', lead: 'emberPressed', operator: 'teal' };
 import { Badge, Icon, LinkPressable, Text, type BadgeTone } from '../ui';
 
 /** One block of home: a heading with whose work it is, then its rows or its empty state. */
@@ -26,16 +28,18 @@ export function HomeSection({
   return (
     <View style={styles.section} testID={`home-section-${id}`}>
       <View style={styles.head}>
-        <View style={styles.headTitle}>
-          <Text variant="heading" accessibilityRole="header">
-            {title}
+        <View style={styles.headText}>
+          <Text variant="overline" color={role ? roleTextColors[role] : 'inkMuted'}>
+            {role ? `As ${roleLabels[role].toLowerCase()}` : 'For everyone'}
           </Text>
-          {count !== undefined ? <Badge label={String(count)} tone={count > 0 ? countTone : 'neutral'} testID={`home-${id}-count`} /> : null}
+          <View style={styles.headTitle}>
+            <Text variant="heading" accessibilityRole="header" style={{ flexShrink: 1 }}>
+              {title}
+            </Text>
+            {count !== undefined ? <Badge label={String(count)} tone={count > 0 ? countTone : 'neutral'} testID={`home-${id}-count`} /> : null}
+          </View>
         </View>
-        <View style={styles.headSide}>
-          {action}
-          {role ? <Badge label={roleLabels[role]} tone={roleTones[role]} /> : <Badge label="Everyone" />}
-        </View>
+        {action}
       </View>
       {children}
     </View>
@@ -128,7 +132,10 @@ export function Legend() {
       </Text>
       <View style={[styles.swatch, { backgroundColor: colors.powderDeep, borderWidth: 1, borderColor: colors.line }]} />
       <Text variant="caption" color="inkMuted">
-        open · figures: printed/planned/asked
+        open
+      </Text>
+      <Text variant="caption" color="inkFaint" style={styles.legendNote}>
+        figures: printed/planned/asked
       </Text>
     </View>
   );
@@ -142,9 +149,9 @@ export const homeStyles = StyleSheet.create({
 
 const styles = StyleSheet.create({
   section: { gap: spacing.md, minWidth: 0 },
-  head: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.sm, flexWrap: 'wrap' },
-  headTitle: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexShrink: 1 },
-  headSide: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
+  head: { flexDirection: 'row', alignItems: 'flex-end', justifyContent: 'space-between', gap: spacing.sm, minHeight: 44 },
+  headText: { flexShrink: 1, gap: spacing.xxs },
+  headTitle: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
   subHead: { gap: spacing.xxs, marginTop: spacing.xs },
   row: {
     flexDirection: 'row',
@@ -166,5 +173,6 @@ const styles = StyleSheet.create({
   fillPrinted: { backgroundColor: colors.teal },
   fillPlanned: { backgroundColor: colors.amber, opacity: 0.45 },
   legend: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs, flexWrap: 'wrap' },
+  legendNote: { marginLeft: spacing.sm },
   swatch: { width: 10, height: 10, borderRadius: 2, marginLeft: spacing.xs },
 });

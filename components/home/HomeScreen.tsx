@@ -119,6 +119,8 @@ export function HomeScreen() {
 /** The lab's machines, materials and members as counts that lead to their settings. */
 function LabFigures() {
   const lab = useLab();
+  // On a phone the three counts share one row, so the work below starts on the first screen.
+  const wide = useIsWide();
   const machines = useMachinesQuery(lab.id);
   const materials = useMaterialsQuery(lab.id);
   const members = useMembersQuery(lab.id);
@@ -143,20 +145,26 @@ function LabFigures() {
           testID={`home-${it.key}`}
           accessibilityRole="link"
           accessibilityLabel={`${it.label}: ${it.q.data?.length ?? 'loading'}`}
-          style={({ pressed, hovered }: { pressed: boolean; hovered?: boolean }) => [styles.figure, (pressed || hovered) && styles.figureHover]}
+          style={({ pressed, hovered }: { pressed: boolean; hovered?: boolean }) => [styles.figure, !wide && styles.figureNarrow, (pressed || hovered) && styles.figureHover]}
         >
           <Text variant="overline" color="inkMuted">
             {it.label}
           </Text>
-          <Figure variant="figureLarge" testID={`home-${it.key}-count`} color={it.q.isError ? 'danger' : 'ink'}>
+          <Figure variant={wide ? 'figureLarge' : 'title'} testID={`home-${it.key}-count`} color={it.q.isError ? 'danger' : 'ink'}>
             {it.q.isError ? '!' : it.q.data ? String(it.q.data.length) : '–'}
           </Figure>
-          <View style={styles.figureFoot}>
-            <Text variant="caption" color="inkFaint" style={{ flexShrink: 1 }}>
-              {it.q.isError ? 'could not be loaded' : it.note}
+          {wide ? (
+            <View style={styles.figureFoot}>
+              <Text variant="caption" color="inkFaint" style={{ flexShrink: 1 }}>
+                {it.q.isError ? 'could not be loaded' : it.note}
+              </Text>
+              <Icon name="chevron" size={16} color={colors.inkFaint} />
+            </View>
+          ) : it.q.isError ? (
+            <Text variant="caption" color="danger">
+              not loaded
             </Text>
-            <Icon name="chevron" size={16} color={colors.inkFaint} />
-          </View>
+          ) : null}
         </LinkPressable>
       ))}
     </View>
@@ -165,7 +173,7 @@ function LabFigures() {
 
 const styles = StyleSheet.create({
   roles: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.sm },
-  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.md },
+  figures: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
   figure: {
     flexGrow: 1,
     flexBasis: 150,
@@ -177,6 +185,7 @@ const styles = StyleSheet.create({
     padding: spacing.lg,
     gap: spacing.xs,
   },
+  figureNarrow: { flexBasis: 0, padding: spacing.md, borderRadius: radius.md, gap: 0 },
   figureHover: { borderColor: colors.ember },
   figureFoot: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.xs },
   grid: { gap: spacing.xl },

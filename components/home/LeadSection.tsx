@@ -39,9 +39,13 @@ export function LeadSection({ nowMs }: { nowMs: number }) {
               href={`/review/${p.id}`}
               testID={`home-review-${p.id}`}
               label={`Review ${p.name}`}
-              side={p.earliestDueDate ? <Badge label={`Due ${p.earliestDueDate}`} tone={daysUntil(p.earliestDueDate) <= 2 ? 'danger' : 'amber'} /> : null}
             >
-              <Text variant="bodyStrong">{p.name}</Text>
+              <View style={homeStyles.titleLine}>
+                <Text variant="bodyStrong" style={{ flexShrink: 1 }}>
+                  {p.name}
+                </Text>
+                {p.earliestDueDate ? <Badge label={`Due ${dueText(p.earliestDueDate, 'open')}`} tone={daysUntil(p.earliestDueDate) <= 2 ? 'danger' : 'amber'} /> : null}
+              </View>
               <View style={homeStyles.meta}>
                 <Text variant="caption" color="inkMuted">
                   by {p.createdBy?.name ?? 'a former member'} · {p.machine.name} · {p.material.name}
@@ -53,7 +57,6 @@ export function LeadSection({ nowMs }: { nowMs: number }) {
                 </Figure>
                 <Text variant="caption" color="inkFaint">
                   sent {relativeTime(p.updatedAt, nowMs)}
-                  {p.earliestDueDate ? ` · due ${dueText(p.earliestDueDate, 'open')}` : ''}
                 </Text>
               </View>
             </RowLink>

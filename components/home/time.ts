@@ -5,7 +5,7 @@ export function relativeTime(iso: string, nowMs: number): string {
   const minutes = Math.round((t - nowMs) / 60_000);
   const abs = Math.abs(minutes);
   let span: string;
-  if (abs < 1) return 'now';
+  if (abs < 1) return t <= nowMs ? 'just now' : 'now';
   if (abs < 60) span = `${abs} min`;
   else if (abs < 48 * 60) {
     const h = Math.floor(abs / 60);
