@@ -4,7 +4,7 @@ import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Serve
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 import { PASSWORD, startTestApp } from '../helpers/app';
 import { createPlan, labWithProfiles, makeRequest } from '../helpers/plans';
-import { queuedPlan } from '../api/runs-fixtures';
+import { queuedPlan, startBody } from '../api/runs-fixtures';
 
 jest.setTimeout(240_000);
 
@@ -147,6 +147,10 @@ test('a member with every role sees plans to review, plans sent back, drafts, th
     { name: 'Home clip', sizeMm: [12, 10, 6], quantity: 9 },
   ], { title: 'Hinges for the demo rover', dueDate: day(9), priority: 'high' });
   const late = await queuedPlan(running, lab, [{ name: 'Late bracket', sizeMm: [40, 30, 20], quantity: 4 }], { name: 'Bracket build', dueDate: day(-1) });
+  // The late build goes on the machine; the next one waits in the queue.
+  const started = await lab.agent.post(`${late.base}/run/advance`).send(startBody(late.estimate));
+  expect(started.status).toBe(200);
+  const next = await queuedPlan(running, lab, [{ name: 'Next clip', sizeMm: [12, 10, 6], quantity: 10 }], { name: 'Clip build', dueDate: day(20) });
   const review = await queuedPlan(running, lab, [{ name: 'Review gear', sizeMm: [24, 24, 10], quantity: 6 }], { name: 'Gear build', dueDate: day(6), approve: false });
   const back = await queuedPlan(running, lab, [{ name: 'Back housing', sizeMm: [60, 40, 30], quantity: 2 }], { name: 'Housing build', dueDate: day(8), approve: false });
   const sendBack = await lab.agent.post(`${back.base}/review`).send({ decision: 'changes_requested', comment: 'Turn the housings open side up.' });
@@ -179,10 +183,11 @@ test('a member with every role sees plans to review, plans sent back, drafts, th
     expect(await rowIds(page, 'lead', 'home-review-')).toEqual([review.planId]);
     await page.getByTestId('home-team-members').waitFor();
 
-    // Operator: the queued build is the machine's next, with a predicted start.
+    // Operator: the build under way with its stage, and the machine's next with its predicted start.
     const machineRow = page.getByTestId(`home-machine-${lab.machineId}`);
-    await machineRow.getByTestId(`home-next-${late.planId}`).waitFor();
-    expect(await machineRow.getByTestId(`home-next-${late.planId}`).textContent()).toMatch(/Bracket build.*starts \d{4}-\d\d-\d\d \d\d:\d\d/);
+    await machineRow.getByTestId(`home-run-${late.planId}`).waitFor();
+    expect(await machineRow.getByTestId(`home-run-${late.planId}`).textContent()).toMatch(/Printing.*Bracket build.*print ends \d{4}-\d\d-\d\d \d\d:\d\d/);
+    expect(await machineRow.getByTestId(`home-next-${next.planId}`).textContent()).toMatch(/Clip build.*starts \d{4}-\d\d-\d\d \d\d:\d\d \(in /);
 
     // Everyone: the request due yesterday is late twice over: its build finishes after the date, and it is unprinted.
     const lateRow = page.getByTestId(`home-late-${late.request.requestId}`);
