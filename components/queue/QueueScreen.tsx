@@ -68,7 +68,9 @@ function MachineQueue({ machineId }: { machineId: string }) {
     if (!canOrder || reorder.isPending) return;
     reorder.mutate(moved(ids, from, to));
   };
-  const late = view.plans.filter((p) => p.late).length + (view.current?.late ? 1 : 0);
+  // Every build still holding a chamber (two with a spare chamber: one printing, one cooling outside); older servers send only the one on the machine.
+  const underWay = (view as QueueView & { active?: QueueItemView[] }).active ?? (view.current ? [view.current] : []);
+  const late = view.plans.filter((p) => p.late).length + underWay.filter((p) => p.late).length;
 
   return (
     <View style={{ gap: spacing.lg }} testID={`queue-${machineId}`}>
@@ -86,13 +88,15 @@ function MachineQueue({ machineId }: { machineId: string }) {
           {`${reorder.error.message}${isApiError(reorder.error) && reorder.error.status === 400 ? ' The queue is shown as the server has it.' : ''}`}
         </Notice>
       ) : null}
-      {view.current || view.plans.length > 0 ? <Timeline view={view} /> : null}
-      {view.current ? (
+      {underWay.length > 0 || view.plans.length > 0 ? <Timeline underWay={underWay} plans={view.plans} nowIso={view.now} /> : null}
+      {underWay.length > 0 ? (
         <View style={{ gap: spacing.sm }}>
           <Text variant="overline" color="inkMuted">
-            At the machine now
+            Under way
           </Text>
-          <QueueRow item={view.current} index={null} testID="queue-current" />
+          {underWay.map((item, i) => (
+            <QueueRow key={item.planId} item={item} index={null} testID={i === 0 ? 'queue-current' : `queue-current-${i}`} />
+          ))}
         </View>
       ) : null}
       {view.plans.length === 0 ? (
@@ -151,14 +155,16 @@ function segments(item: QueueItemView): Array<{ from: number; to: number; colour
 }
 
 /** Every build's stages on one time axis, one lane per build, with its due date marked. */
-function Timeline({ view }: { view: QueueView }) {
-  const items = [...(view.current ? [view.current] : []), ...view.plans];
+function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plans: QueueItemView[]; nowIso: string }) {
+  const items = [...underWay, ...plans];
   const { from, to } = useMemo(() => {
     const starts = items.map((p) => Date.parse(p.startAt));
-    const ends = items.map((p) => Math.max(Date.parse(p.breakoutDoneAt), p.earliestDueDate ? dueEndMs(p.earliestDueDate) : 0));
-    const f = Math.min(Date.parse(view.now), ...starts);
-    return { from: f, to: Math.max(f + 3_600_000, ...ends) };
-  }, [items, view.now]);
+    const ends = items.map((p) => Date.parse(p.breakoutDoneAt));
+    const f = Math.min(Date.parse(nowIso), ...starts);
+    // The axis spans the work, not the due dates: a due date months away would squeeze every bar to a sliver.
+    const last = Math.max(f + 3_600_000, ...ends);
+    return { from: f, to: last + (last - f) * 0.05 };
+  }, [items, nowIso]);
   const pct = (ms: number) => `${(((Math.min(to, Math.max(from, ms)) - from) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
   const widthPct = (a: number, b: number) => `${((Math.max(0, Math.min(to, b) - Math.max(from, a)) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
   return (
@@ -172,7 +178,9 @@ function Timeline({ view }: { view: QueueView }) {
             {segments(p).map((s) => (
               <View key={s.key} style={[styles.segment, { left: pct(s.from), width: widthPct(s.from, s.to), backgroundColor: colors[s.colour] }]} />
             ))}
-            {p.earliestDueDate ? <View style={[styles.due, { left: pct(dueEndMs(p.earliestDueDate)) }, p.late && { backgroundColor: colors.danger }]} /> : null}
+            {p.earliestDueDate && dueEndMs(p.earliestDueDate) <= to ? (
+              <View style={[styles.due, { left: pct(dueEndMs(p.earliestDueDate)) }, p.late && { backgroundColor: colors.danger }]} />
+            ) : null}
           </View>
         </View>
       ))}
@@ -199,7 +207,7 @@ function Timeline({ view }: { view: QueueView }) {
         <View style={styles.legendItem}>
           <View style={[styles.legendSwatch, { width: 3, backgroundColor: colors.ink }]} />
           <Text variant="caption" color="inkMuted">
-            Due (end of day, UTC)
+            Due (end of day, UTC; at the left edge when already past)
           </Text>
         </View>
       </View>
