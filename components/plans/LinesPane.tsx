@@ -200,12 +200,6 @@ export function LinesPane(p: LinesPaneProps) {
             </View>
           )}
           {p.packer.status === 'cancelled' ? <Text variant="caption" color="inkMuted" testID="pack-cancelled">Stopped: the best layout found so far is shown.</Text> : null}
-          {p.packer.error ? (
-            <Notice tone="danger" title="Packing failed" testID="pack-error">
-              <Text>{p.packer.error} The plan is unchanged.</Text>
-              {p.onRetry ? <Button label="Try again" variant="secondary" onPress={p.onRetry} testID="pack-retry" /> : null}
-            </Notice>
-          ) : null}
         </View>
       ) : null}
     </View>

@@ -203,6 +203,8 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   const workingRef = useRef<Working | null>(null);
   workingRef.current = working;
   const [lastRun, setLastRun] = useState<(() => void) | null>(null);
+  // The message of a lost worker stays until the next packing starts.
+  const [lostShown, setLostShown] = useState(true);
   const [message, setMessage] = useState<{ tone: 'danger' | 'success' | 'info'; text: string } | null>(null);
 
   const merge = useCallback(
@@ -253,6 +255,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   const run = useCallback(
     (w: Working, engineInstance: PackInstanceInput) => {
       setMessage(null);
+      setLostShown(false);
       setWorking(w);
       showLayout(planId, WORKING);
       const again = () => {
@@ -582,7 +585,11 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   }, [plan.layouts, working, workingNumbers, packer.status, workingStale]);
 
   const shownLabel = showingWorking
-    ? packer.status === 'running'
+    ? !working?.result
+      ? packer.status === 'running'
+        ? 'Packing: waiting for the first layout'
+        : 'This packing gave no layout'
+      : packer.status === 'running'
       ? 'Packing: best layout so far'
       : workingStale
         ? 'Not kept · the lines changed since, pack again'
@@ -595,7 +602,8 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
 
   // ---- panes ----------------------------------------------------------------
   const tab = useEditorTab();
-  const packerError = lostWorker ?? packer.error ?? working?.problem ?? null;
+  const packerError = (lostShown ? lostWorker : null) ?? packer.error ?? working?.problem ?? null;
+  const retry = lastRun ?? (lostWorker && lostShown ? onPack : null);
   const linesPane = (
     <LinesPane
       lines={editorLines}
@@ -612,7 +620,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       packingWhat={working ? { pack: 'Packing every line', repack: 'Packing what is new above the locked parts', fill: 'Filling the free space above', edit: 'Packing' }[working.mode] : null}
       onPack={onPack}
       onCancel={packer.cancel}
-      onRetry={lastRun ?? (lostWorker ? onPack : null)}
+      onRetry={retry}
       fill={{ available: fillAvailable, reason: fillReason, onFill }}
       repack={{ available: repack.available, reason: repack.reason, onRepack }}
     />
@@ -677,21 +685,25 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
     </View>
   );
 
+  const titleBox = (
+    <View style={[styles.titleBox, !wide && styles.titleBoxPhone]}>
+      {editable ? (
+        <TextInput value={name} onChangeText={onName} accessibilityLabel="Plan name" style={styles.nameInput} testID="plan-name" />
+      ) : (
+        <Text variant="title" numberOfLines={wide ? 1 : 2} testID="plan-name-readonly">{plan.name}</Text>
+      )}
+      <Text variant="caption" color="inkMuted" numberOfLines={wide ? 1 : 2}>
+        {plan.machine.name} ({machine.chamberMm.join(' × ')} mm) · {plan.material.name} · version {plan.version}
+      </Text>
+    </View>
+  );
   const header = (
     <View style={styles.header}>
       <Button label="‹ Plans" variant="ghost" size="sm" onPress={() => router.navigate('/plans')} testID="plan-back" />
-      <View style={styles.titleBox}>
-        {editable ? (
-          <TextInput value={name} onChangeText={onName} accessibilityLabel="Plan name" style={styles.nameInput} testID="plan-name" />
-        ) : (
-          <Text variant="title" numberOfLines={1} testID="plan-name-readonly">{plan.name}</Text>
-        )}
-        <Text variant="caption" color="inkMuted" numberOfLines={1}>
-          {plan.machine.name} ({machine.chamberMm.join(' × ')} mm) · {plan.material.name} · version {plan.version}
-        </Text>
-      </View>
+      {wide ? titleBox : null}
       <Badge label={STATUS_LABELS[plan.status]} tone={STATUS_TONES[plan.status]} testID="plan-status" />
       {dirty ? <Badge label="Unsaved changes" tone="amber" testID="plan-dirty" /> : null}
+      {wide ? null : titleBox}
       <View style={styles.headerActions}>
         {hasKeys && wide ? <Button label="Shortcuts (?)" variant="ghost" size="sm" onPress={() => setHelpOpen(true)} testID="plan-shortcuts" /> : null}
         {editable ? (
@@ -714,6 +726,12 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       {plan.editable && !canPlan ? <Notice tone="info">Only planners and leads change plans.</Notice> : null}
       {plan.status === 'changes_requested' ? (
         <Notice tone="caution" title="Sent back" testID="plan-sent-back">{[...plan.events].reverse().find((e) => e.to === 'changes_requested')?.comment ?? ''}</Notice>
+      ) : null}
+      {packerError ? (
+        <Notice tone="danger" title="Packing failed" testID="pack-error">
+          <Text>{packerError} The plan is unchanged.</Text>
+          {retry ? <Button label="Try again" variant="secondary" size="sm" onPress={retry} testID="pack-retry" /> : null}
+        </Notice>
       ) : null}
       {message ? (
         <Notice tone={message.tone === 'success' ? 'success' : message.tone === 'danger' ? 'danger' : 'info'} testID="plan-message">
@@ -795,6 +813,7 @@ const styles = StyleSheet.create({
   screen: { flex: 1, backgroundColor: colors.powder, padding: spacing.lg, gap: spacing.md },
   header: { flexDirection: 'row', alignItems: 'center', gap: spacing.md, flexWrap: 'wrap' },
   titleBox: { flexGrow: 1, flexShrink: 1, flexBasis: 260, gap: 2 },
+  titleBoxPhone: { flexBasis: '100%' },
   nameInput: { fontSize: 20, fontWeight: '600', paddingVertical: 4 },
   headerActions: { flexDirection: 'row', gap: spacing.sm, flexWrap: 'wrap', marginLeft: 'auto' },
   panes: { flex: 1, flexDirection: 'row', gap: spacing.md, minHeight: 0 },

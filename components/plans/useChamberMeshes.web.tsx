@@ -21,6 +21,8 @@ const MESH_TRIANGLE_LIMIT = 60_000;
  * a build of thousands of parts keeps orbiting smoothly.
  */
 const SCENE_TRIANGLE_BUDGET = 1_500_000;
+/** Fewer triangles than this are rarely a printable part's mesh (a box has 12). */
+const MIN_MESH_TRIANGLES = 100;
 /** A renderer on the CPU draws far fewer triangles a frame. */
 const SOFTWARE_TRIANGLE_BUDGET = 150_000;
 
@@ -71,12 +73,15 @@ export function useChamberMeshes(
       return next;
     });
   }, []);
-  const key = partIdsInOrder.join(',');
+  // A part with so many copies that even a plain mesh would break the budget is not fetched at all.
+  const budget = isSoftwareRenderer() ? SOFTWARE_TRIANGLE_BUDGET : SCENE_TRIANGLE_BUDGET;
+  const worth = partIdsInOrder.map((id, i) => (id && (copiesByIndex[i] ?? 0) * MIN_MESH_TRIANGLES <= budget ? id : undefined));
+  const key = worth.join(',');
   const loaders = useMemo(
     () =>
-      partIdsInOrder.length > MESH_PART_LIMIT
+      worth.length > MESH_PART_LIMIT
         ? null
-        : partIdsInOrder.map((id, i) => (id ? <PartMeshLoader key={`${i}:${id}`} labId={labId} partId={id} index={i} onMesh={onMesh} /> : null)),
+        : worth.map((id, i) => (id ? <PartMeshLoader key={`${i}:${id}`} labId={labId} partId={id} index={i} onMesh={onMesh} /> : null)),
     [labId, key, onMesh],
   );
   return { meshes, loaders };

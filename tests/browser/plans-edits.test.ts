@@ -137,3 +137,33 @@ test('parts too many for one chamber are offered as several plans, which are mad
   expect(split.reduce((s, p) => s + p.partCount, 0)).toBe(400);
   await page.context().close();
 });
+
+test('when the packing worker dies, the editor says so and offers a retry, and the plan is untouched', async () => {
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'planner@tinkerfin.example');
+  const me = await apiGet(page, '/me');
+  const labId = me.labs[0].id as string;
+  await page.goto('/plans');
+  const plans = (await apiGet(page, `/labs/${labId}/plans?status=draft`)) as Array<{ id: string; version: number; layoutCount: number }>;
+  const plan = plans[0];
+  expect(plan).toBeDefined();
+
+  // A worker script that fails as it starts, as one that ran out of memory would.
+  await page.route(/\/packer-[0-9a-f]+\.js$/, (route) => route.fulfill({ contentType: 'text/javascript', body: "throw new Error('out of memory');" }));
+  await page.goto(`/plans/${plan.id}`);
+  await page.getByTestId('screen-plan-editor').waitFor();
+  await page.getByTestId('pack-time').fill('1');
+  await page.getByTestId('pack-start').click();
+  await page.getByTestId('pack-error').waitFor({ timeout: 60_000 });
+  await screenshot(page, 'plans-worker-lost-wide');
+  const after = await apiGet(page, `/labs/${labId}/plans/${plan.id}`);
+  expect(after.version).toBe(plan.version);
+  expect(after.layouts).toHaveLength(plan.layoutCount);
+
+  await page.unroute(/\/packer-[0-9a-f]+\.js$/);
+  await page.getByTestId('pack-retry').click();
+  await page.getByTestId('layout-col-working').waitFor({ timeout: 60_000 });
+  await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
+  expect(await page.getByTestId('pack-error').count()).toBe(0);
+  await page.context().close();
+});
