@@ -163,6 +163,12 @@ function EditPart({ part, rotationDeg }: { part: Part; rotationDeg: Rotation }) 
   const server = fieldErrorsOf(update.error, FIELDS);
   const errors = { ...server.fields, ...localErrors };
   const turned = rotationDeg.some((d, i) => d !== part.rotationDeg[i]);
+  // "Saved" stays only while the form still shows what was saved.
+  const dirty =
+    turned ||
+    name.trim() !== part.name ||
+    tagsText.split(',').map((t) => t.trim()).filter(Boolean).join('\n') !== part.tags.join('\n') ||
+    materialId !== (part.materialId ?? 'none') || orientation !== part.orientation;
 
   const save = () => {
     const tags = tagsText
@@ -230,7 +236,7 @@ function EditPart({ part, rotationDeg }: { part: Part; rotationDeg: Rotation }) 
           </Text>
         ) : null}
         {server.form ? <Notice tone="danger">{server.form}</Notice> : null}
-        {update.isSuccess && !update.isPending ? (
+        {update.isSuccess && !update.isPending && !dirty ? (
           <Notice tone="success" testID="part-edit-saved">
             Saved.
           </Notice>
