@@ -60,7 +60,7 @@ export function HomeScreen() {
   const requestsTruncated = !!requests.data && requests.data.total > requests.data.items.length;
 
   const sections: { key: string; node: React.ReactNode }[] = [];
-  const lateNode = { key: 'late', node: <LateSection late={late} requests={requestsState} queues={machines.data ? queues : []} machineNames={machineNames} /> };
+  const lateNode = { key: 'late', node: <LateSection late={late} requests={requestsState} machines={machines} queues={machines.data ? queues : []} machineNames={machineNames} /> };
   // Something late is what needs everyone first.
   if (late.length > 0) sections.push(lateNode);
   if (lab.has('designer')) sections.push({ key: 'designer', node: <DesignerSection requests={{ ...requestsState, data: requests.data ? mine : undefined }} /> });

@@ -13,11 +13,28 @@ type Q = { isPending: boolean; error: Error | null; refetch: () => unknown };
  * predicted finish (end of breakout) falls after it, and open requests past
  * it with parts not yet printed.
  */
-export function LateSection({ late, requests, queues, machineNames }: { late: LateRequest[]; requests: Q; queues: MachineQueueState[]; machineNames: Map<string, string> }) {
+export function LateSection({
+  late,
+  requests,
+  machines,
+  queues,
+  machineNames,
+}: {
+  late: LateRequest[];
+  requests: Q;
+  machines: Q;
+  queues: MachineQueueState[];
+  machineNames: Map<string, string>;
+}) {
   const failed = queues.filter((q) => q.error);
-  const loading = requests.isPending || queues.some((q) => q.isPending);
+  const loading = requests.isPending || machines.isPending || queues.some((q) => q.isPending);
   return (
     <HomeSection id="late" title="Late requests" countTone="danger" count={loading ? undefined : late.length}>
+      {machines.error ? (
+        <Notice tone="caution" title="Predictions are missing" testID="home-late-no-machines">
+          <Text variant="body">The lab’s machines could not be read, so no build is checked against its due date; only requests already past due show.</Text>
+        </Notice>
+      ) : null}
       {failed.length > 0 ? (
         <Notice tone="caution" title="Some predictions are missing" testID="home-late-partial">
           <Text variant="body">

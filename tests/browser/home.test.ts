@@ -220,3 +220,27 @@ test('a member with every role sees plans to review, plans sent back, drafts, th
     await page.context().close();
   }
 });
+
+test('when the requests cannot be read, home says so in each section that needs them and recovers on retry', async () => {
+  const page = await newPage(served, PHONE);
+  await page.route('**/api/labs/*/requests?**', (route) =>
+    route.fulfill({ status: 503, contentType: 'application/json', body: JSON.stringify({ error: { code: 'db_unavailable', message: 'The database is not reachable right now.' } }) }),
+  );
+  await signIn(page, 'owner@tinkerfin.example', DEMO_PASSWORD);
+  const designer = page.getByTestId('home-section-designer');
+  await designer.getByText('This could not be loaded').waitFor();
+  await designer.getByText('The database is not reachable right now.').waitFor();
+  await page.getByTestId('home-section-planner').getByText('This could not be loaded').waitFor();
+  await page.getByTestId('home-section-late').getByText('This could not be loaded').waitFor();
+  // Sections that do not need requests still show their work.
+  expect(await page.getByTestId('home-section-lead').getByText('This could not be loaded').count()).toBe(0);
+  await page.getByTestId('home-team-members').waitFor();
+  await designer.scrollIntoViewIfNeeded();
+  await screenshot(page, 'home-requests-error-phone');
+
+  await page.unroute('**/api/labs/*/requests?**');
+  await designer.getByText('Try again').click();
+  await page.getByTestId('home-designer-count').waitFor();
+  expect(await designer.getByText('This could not be loaded').count()).toBe(0);
+  await page.context().close();
+});
