@@ -246,6 +246,17 @@ describe('a layout of 5,000 placements', () => {
     );
     expect(interactiveMs).toBeLessThan(5000);
     expect(heapBytes).toBeLessThan(2 ** 30);
+
+    // Edits on the big layout: from the top, a click marks the part under it; removing it leaves one part unplaced.
+    await page.getByTestId('plan-status').click();
+    await page.keyboard.press('1');
+    await page.waitForTimeout(300);
+    await page.mouse.click(cx, cy);
+    await page.getByTestId('plan-marked').waitFor();
+    await page.getByTestId('plan-remove-marked').click();
+    await page.getByTestId('layout-col-working').waitFor();
+    await expect(page.getByTestId('num-unplaced').textContent()).resolves.toBe('1');
+    await expect(page.getByTestId('num-placed').textContent()).resolves.toBe('4999');
     await page.context().close();
   });
 });
