@@ -13,7 +13,9 @@ const common = {
 module.exports = {
   projects: [
     { ...common, displayName: 'unit', testMatch: ['<rootDir>/tests/unit/**/*.test.ts'] },
-    { ...common, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'] },
-    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'] },
+    // Real database and real browser: generous limits, so a busy machine
+    // slows these tests down instead of failing them.
+    { ...common, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'], testTimeout: 30_000 },
+    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'], testTimeout: 180_000 },
   ],
 };
