@@ -2,7 +2,8 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
-import { useAddReadingMutation, useAdvanceRunMutation, useRunQuery } from '../queries/runs';
+import { useAddReadingMutation, useAdvanceRunMutation, useCalibrationQuery, useRunQuery } from '../queries/runs';
+import { calibrationNote } from '../review/calibration';
 import { BuildFileLinks } from '../review/BuildFileLinks';
 import { colors, radius, spacing } from '../theme';
 import { ErrorState, Figure, LoadingState, Notice, Text } from '../ui';
@@ -160,6 +161,7 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
         <Big label="Reused powder needed" value={kgText(needReused)} testID="need-reused" />
         <Big label="Print, estimated" value={run.estimate ? formatDuration(run.estimate.printSeconds) : '–'} />
       </View>
+      <CalibrationLine machineId={run.machine.id} />
       <CheckRow label="The build chamber is in place" checked={checks.chamberInPlace} onToggle={() => setChecks((c) => ({ ...c, chamberInPlace: !c.chamberInPlace }))} testID="check-chamberInPlace" />
       <CheckRow label="The optical window is clean" checked={checks.opticalWindowClean} onToggle={() => setChecks((c) => ({ ...c, opticalWindowClean: !c.opticalWindowClean }))} testID="check-opticalWindowClean" />
       <FloorInput
@@ -225,6 +227,7 @@ function Printing({ run, offsetMs, advance, err, canAct }: StageProps) {
       ) : (
         <Text color="inkMuted">No estimate to time this print against.</Text>
       )}
+      <CalibrationLine machineId={run.machine.id} />
       <StageFoot run={run} err={err} fieldsShown={aborting ? ['reason'] : []}>
         {aborting ? (
           <View style={styles.abort} testID="abort-form">
@@ -454,6 +457,17 @@ function Done({ run }: { run: RunView }) {
         </Text>
       ))}
     </View>
+  );
+}
+
+function CalibrationLine({ machineId }: { machineId: string }) {
+  const lab = useLab();
+  const c = useCalibrationQuery(lab.id, machineId);
+  if (!c.data) return null;
+  return (
+    <Text variant="label" color="inkMuted" testID="run-calibration">
+      Estimates: {calibrationNote(c.data)}
+    </Text>
   );
 }
 

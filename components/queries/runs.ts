@@ -82,6 +82,17 @@ export function useAddReadingMutation(labId: string, planId: string) {
   });
 }
 
+const calibrationSchema = z.looseObject({ runs: z.number(), calibrated: z.boolean() });
+
+/** How far a machine's estimates rest on its recorded runs. */
+export function useCalibrationQuery(labId: string, machineId: string) {
+  return useQuery({
+    queryKey: [...runKeys.all(labId), 'calibration', machineId] as const,
+    queryFn: ({ signal }) => api(`/labs/${labId}/machines/${machineId}/calibration`, { schema: calibrationSchema, signal }),
+    staleTime: 60_000,
+  });
+}
+
 /** Where the build sheet and the build file of a plan are downloaded (same origin as the app). */
 export function planFileUrl(labId: string, planId: string, file: 'sheet.pdf' | 'build.3mf'): string {
   return `${process.env.EXPO_PUBLIC_API_URL ?? ''}/api/labs/${labId}/plans/${planId}/${file}`;

@@ -228,6 +228,8 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await card.getByTestId('floor-cautions-laser').waitFor();
     await card.getByTestId('print-remaining').waitFor();
     await card.getByTestId('print-end').waitFor();
+    await card.getByTestId('run-calibration').waitFor();
+    expect(await card.getByTestId('run-calibration').textContent()).toMatch(/no recorded runs/);
     await scrollToTop(page, 'run-stage');
     await screenshot(page, 'floor-printing-phone');
     await card.getByTestId('run-print-done').click();
@@ -289,6 +291,14 @@ describe('the demo operator on a phone (390 x 844)', () => {
     const calibration = await lead.get(`/api/labs/${labId}/machines/${machineId}/calibration`);
     expect(calibration.status).toBe(200);
     expect(calibration.body.runs).toBe(1);
+
+    // The operator follows the queue too, but only a lead orders it.
+    await page.getByTestId('nav-tabs').getByTestId('nav-queue').click();
+    await page.getByTestId(`queue-machine-${machineId}`).click();
+    await waitForText(page, 'queue-item-0-name', `Review me ${tag}`);
+    expect(await page.getByTestId('queue-up-0').count()).toBe(0);
+    await page.getByTestId('queue-timeline').waitFor();
+    await screenshot(page, 'queue-phone');
     await page.context().close();
   });
 });
