@@ -156,6 +156,7 @@ function segments(item: QueueItemView): Array<{ from: number; to: number; colour
 
 /** Every build's stages on one time axis, one lane per build, with its due date marked. */
 function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plans: QueueItemView[]; nowIso: string }) {
+  const wide = useIsWide();
   const items = [...underWay, ...plans];
   const { from, to } = useMemo(() => {
     const starts = items.map((p) => Date.parse(p.startAt));
@@ -170,8 +171,8 @@ function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plan
   return (
     <View style={styles.timeline} testID="queue-timeline" accessibilityLabel="Timeline of the queue">
       {items.map((p) => (
-        <View key={p.planId} style={styles.lane}>
-          <Text variant="caption" numberOfLines={1} style={styles.laneLabel}>
+        <View key={p.planId} style={wide ? styles.lane : styles.laneNarrow}>
+          <Text variant="caption" numberOfLines={1} style={wide ? styles.laneLabel : undefined}>
             {p.name}
           </Text>
           <View style={styles.laneTrack}>
@@ -184,13 +185,15 @@ function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plan
           </View>
         </View>
       ))}
-      <View style={styles.axis}>
+      <View style={[styles.axis, !wide && { marginLeft: 0 }]}>
         <Text variant="caption" color="inkMuted">
           {formatWhen(new Date(from).toISOString())}
         </Text>
-        <Text variant="caption" color="inkMuted">
-          {formatWhen(new Date((from + to) / 2).toISOString())}
-        </Text>
+        {wide ? (
+          <Text variant="caption" color="inkMuted">
+            {formatWhen(new Date((from + to) / 2).toISOString())}
+          </Text>
+        ) : null}
         <Text variant="caption" color="inkMuted">
           {formatWhen(new Date(to).toISOString())}
         </Text>
@@ -290,7 +293,8 @@ const styles = StyleSheet.create({
   timeline: { gap: spacing.xs, padding: spacing.md, borderRadius: radius.lg, borderWidth: 1, borderColor: colors.line, backgroundColor: colors.surface },
   lane: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
   laneLabel: { width: 120 },
-  laneTrack: { flex: 1, height: 18, borderRadius: 4, backgroundColor: colors.powderDeep, overflow: 'hidden' },
+  laneNarrow: { gap: 2 },
+  laneTrack: { flexGrow: 1, flexShrink: 1, height: 18, borderRadius: 4, backgroundColor: colors.powderDeep, overflow: 'hidden' },
   segment: { position: 'absolute', top: 0, bottom: 0 },
   due: { position: 'absolute', top: 0, bottom: 0, width: 3, backgroundColor: colors.ink },
   axis: { flexDirection: 'row', justifyContent: 'space-between', marginLeft: 128 },
