@@ -1,7 +1,7 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
 import type { LabRequest } from '../queries/requests';
-import { spacing } from '../theme';
+import { fonts, spacing } from '../theme';
 import { Badge, Button, EmptyState, ErrorState, Figure, LoadingState, Text } from '../ui';
 import { PRIORITY_LABELS, PRIORITY_TONES, daysUntil, dueText } from '../requests/labels';
 import { HomeSection, Legend, ProgressBar, RowLink, homeStyles } from './HomeParts';
@@ -98,5 +98,5 @@ const styles = StyleSheet.create({
   lines: { gap: spacing.xs, marginTop: spacing.xxs },
   line: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
   lineName: { width: 118, flexShrink: 0 },
-  lineFigures: { minWidth: 64, textAlign: 'right' },
+  lineFigures: { minWidth: 72, textAlign: 'right', fontFamily: fonts.mono },
 });

@@ -5,6 +5,7 @@ import { useLab } from '../lab/useCurrentLab';
 import { useInvitesQuery } from '../queries/invites';
 import { useMembersQuery } from '../queries/members';
 import { usePlansQuery } from '../queries/plans';
+import { fonts } from '../theme';
 import { Badge, EmptyState, ErrorState, Figure, LoadingState, Text } from '../ui';
 import { formatDateTime } from '../ui/format';
 import { daysUntil, dueText } from '../requests/labels';
@@ -83,10 +84,9 @@ function TeamSummary({ nowMs }: { nowMs: number }) {
         <ErrorState error={members.error} onRetry={() => members.refetch()} />
       ) : (
         <RowLink href="/settings/members" testID="home-team-members" label={`Members: ${members.data.length}`}>
-          <View style={homeStyles.titleLine}>
-            <Figure variant="bodyStrong">{members.data.length}</Figure>
-            <Text variant="bodyStrong">member{members.data.length === 1 ? '' : 's'}</Text>
-          </View>
+          <Text variant="bodyStrong">
+            <Figure variant="figure" style={{ fontFamily: fonts.monoMedium }}>{members.data.length}</Figure> member{members.data.length === 1 ? '' : 's'}
+          </Text>
           <Text variant="caption" color="inkMuted">
             {roles.map((r) => `${members.data.filter((m) => m.roles.includes(r)).length} ${roleLabels[r].toLowerCase()}`).join(' · ')}
           </Text>

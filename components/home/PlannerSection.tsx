@@ -4,6 +4,7 @@ import type { PlanListItem } from '../../shared/schemas/plans';
 import { useLab } from '../lab/useCurrentLab';
 import { usePlanQuery, usePlansQuery } from '../queries/plans';
 import type { LabRequest } from '../queries/requests';
+import { fonts } from '../theme';
 import { Badge, Button, EmptyState, ErrorState, Figure, LoadingState, Text } from '../ui';
 import { formatDateTime } from '../ui/format';
 import { PRIORITY_LABELS, PRIORITY_TONES, daysUntil, dueText } from '../requests/labels';
@@ -68,7 +69,7 @@ function ToPlanRow({ request: r }: { request: LabRequest }) {
       tone={days < 0 ? 'danger' : undefined}
       side={
         <>
-          <Figure variant="bodyStrong" testID={`home-toplan-${r.id}-open`}>
+          <Figure variant="heading" style={{ fontFamily: fonts.monoMedium }} testID={`home-toplan-${r.id}-open`}>
             {open.toLocaleString('en-US')}
           </Figure>
           <Text variant="caption" color="inkMuted">
