@@ -645,7 +645,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       onClearMarked={clearMarked}
       editable={editable}
       caption={shownLabel}
-      live={packer.status === 'running' && showingWorking}
+      live={packer.status === 'running' && showingWorking && !!working?.result}
       heightPx={buildHeight}
       loading={!showingWorking && !!storedId && !stored.data}
     />

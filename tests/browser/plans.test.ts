@@ -257,6 +257,17 @@ describe('a layout of 5,000 placements', () => {
     await page.getByTestId('layout-col-working').waitFor();
     await expect(page.getByTestId('num-unplaced').textContent()).resolves.toBe('1');
     await expect(page.getByTestId('num-placed').textContent()).resolves.toBe('4999');
+
+    // Packing 5,000 parts: the progress bar and the best layout so far show while the worker runs; Esc stops it and keeps that layout.
+    await page.getByTestId('pack-time').fill('60');
+    await page.getByTestId('pack-start').click();
+    await page.getByTestId('pack-progress').waitFor();
+    await page.getByTestId('plan-build-live').waitFor({ timeout: 60_000 });
+    await screenshot(page, 'plans-5000-packing-wide');
+    await page.getByTestId('plan-status').click();
+    await page.keyboard.press('Escape');
+    await page.getByTestId('pack-cancelled').waitFor({ timeout: 30_000 });
+    await expect(page.getByTestId('num-placed').textContent()).resolves.toMatch(/^[1-9]\d*$/);
     await page.context().close();
   });
 });
