@@ -195,9 +195,16 @@ function Decision({ plan }: { plan: PlanView }) {
   const err = review.error && !(isApiError(review.error) && review.error.field === 'comment') ? review.error : null;
   const told = (n: number) => (n > 0 ? ` The planner was e-mailed.` : '');
 
+  const errorNotice = err ? (
+    <Notice tone="danger" title={isApiError(err) && err.status === 409 ? 'The plan has moved on' : 'Not saved'} testID="review-error">
+      {err.message}
+    </Notice>
+  ) : null;
+
   if (plan.status !== 'in_review') {
     return (
       <Card title="Decision" testID="review-decided">
+        {errorNotice}
         {done ? (
           <Notice tone="success" title={done.decision === 'approve' ? 'Approved and queued' : 'Sent back'} testID="review-result">
             {done.decision === 'approve'
@@ -236,11 +243,7 @@ function Decision({ plan }: { plan: PlanView }) {
         style={{ minHeight: 88, paddingTop: spacing.sm, textAlignVertical: 'top' }}
         testID="review-comment"
       />
-      {err ? (
-        <Notice tone="danger" title={isApiError(err) && err.status === 409 ? 'The plan has moved on' : 'Not saved'} testID="review-error">
-          {err.message}
-        </Notice>
-      ) : null}
+      {errorNotice}
       <View style={styles.buttons}>
         <Button label="Approve and queue" onPress={() => decide('approve')} loading={review.isPending && review.variables?.decision === 'approve'} disabled={review.isPending} testID="review-approve" />
         <Button

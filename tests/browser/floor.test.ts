@@ -302,3 +302,23 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await page.context().close();
   });
 });
+
+describe('two leads on one plan', () => {
+  test('the second decision is refused plainly with where the plan is now', async () => {
+    const other = await planInReview(`Twice ${tag}`, [{ name: `Hinge ${tag}`, sizeMm: [25, 15, 6], quantity: 4 }], '2027-06-01');
+    const page = await newPage(served, WIDE);
+    await signIn(page, 'lead@tinkerfin.example');
+    await page.goto(`/review/${other.planId}`);
+    await page.getByTestId('review-decision').waitFor();
+    // Another lead approves it while this page is open.
+    const ok = await lead.post(`${other.base}/review`).send({ decision: 'approve' });
+    expect(ok.status).toBe(200);
+    await page.getByTestId('review-comment').fill('Fine by me');
+    await page.getByTestId('review-approve').click();
+    await page.getByTestId('review-error').waitFor();
+    expect(await page.getByTestId('review-error').textContent()).toMatch(/The plan has moved on.*queued cannot become approved/);
+    await waitForText(page, 'review-status', 'Queued');
+    await screenshot(page, 'review-conflict-wide');
+    await page.context().close();
+  });
+});
