@@ -1,20 +1,7 @@
 import type { PlanStatus } from '../../shared/plans/status';
 import type { BadgeTone } from '../ui';
 
-export const STATUS_LABELS: Record<PlanStatus, string> = {
-  draft: 'Draft',
-  in_review: 'In review',
-  changes_requested: 'Sent back',
-  approved: 'Approved',
-  queued: 'Queued',
-  printing: 'Printing',
-  cooling: 'Cooling',
-  breakout: 'Breakout',
-  finishing: 'Finishing',
-  done: 'Done',
-  cancelled: 'Cancelled',
-  aborted: 'Aborted',
-};
+export { STATUS_LABELS } from '../../shared/plans/status';
 
 export const STATUS_TONES: Record<PlanStatus, BadgeTone> = {
   draft: 'neutral',

@@ -65,7 +65,7 @@ export const RUN_STATUSES: readonly PlanStatus[] = ['queued', 'printing', 'cooli
 export const STATUS_LABELS: Record<PlanStatus, string> = {
   draft: 'Draft',
   in_review: 'In review',
-  changes_requested: 'Changes requested',
+  changes_requested: 'Sent back',
   approved: 'Approved',
   queued: 'Queued',
   printing: 'Printing',
