@@ -322,3 +322,36 @@ describe('two leads on one plan', () => {
     await page.context().close();
   });
 });
+
+describe('an operator who has to stop a print (390 x 844)', () => {
+  test('aborts it with a reason, and the card says so and why', async () => {
+    // Started on another phone: the operator's card follows it.
+    const operatorApi = await apiAs('operator@tinkerfin.example');
+    const run = (await operatorApi.get(`/api/labs/${labId}/plans/${reviewPlanId}/run`)).body;
+    const kg = (v: number) => Math.ceil(v * 10) / 10;
+    const started = await operatorApi.post(`/api/labs/${labId}/plans/${reviewPlanId}/run/advance`).send({
+      to: 'printing',
+      checklist: { chamberInPlace: true, opticalWindowClean: true },
+      freshPowderKg: kg(run.estimate.freshPowderKg),
+      reusedPowderKg: kg(run.estimate.reusedPowderKg),
+    });
+    expect(started.status).toBe(200);
+
+    const page = await newPage(served, PHONE);
+    await signIn(page, 'operator@tinkerfin.example');
+    await page.goto(`/floor/${machineId}`);
+    const card = page.getByTestId(`run-card-${reviewPlanId}`);
+    await card.getByTestId('stage-printing').waitFor();
+    await card.getByTestId('run-abort').click();
+    await page.waitForSelector(disabled('abort-confirm'));
+    await card.getByTestId('abort-reason').fill('Recoater blade caught a part edge at layer 40');
+    await scrollToTop(page, 'abort-form');
+    await screenshot(page, 'floor-abort-phone');
+    await card.getByTestId('abort-confirm').click();
+    await card.getByTestId('run-aborted').waitFor();
+    expect(await card.getByTestId('run-aborted').textContent()).toMatch(/Recoater blade caught a part edge/);
+    // The next queued build is up on the same machine.
+    await page.locator('[data-testid^="run-card-"]').filter({ hasText: `Twice ${tag}` }).waitFor();
+    await page.context().close();
+  });
+});
