@@ -1,7 +1,8 @@
 import { useLocalSearchParams } from 'expo-router';
-import { EditMachine } from '@/components/settings/MachinesSection';
+import { EditProfile } from '@/components/settings/ProfileSection';
+import { machineProfiles } from '@/components/settings/profileKinds';
 
 export default function EditMachineRoute() {
   const { machineId } = useLocalSearchParams<{ machineId: string }>();
-  return <EditMachine machineId={String(machineId)} />;
+  return <EditProfile kind={machineProfiles} id={String(machineId)} />;
 }

@@ -1,5 +1,6 @@
-import { MachinesSection } from '@/components/settings/MachinesSection';
+import { ProfileList } from '@/components/settings/ProfileSection';
+import { machineProfiles } from '@/components/settings/profileKinds';
 
 export default function MachinesRoute() {
-  return <MachinesSection />;
+  return <ProfileList kind={machineProfiles} />;
 }

@@ -1,5 +1,6 @@
-import { NewMachine } from '@/components/settings/MachinesSection';
+import { NewProfile } from '@/components/settings/ProfileSection';
+import { machineProfiles } from '@/components/settings/profileKinds';
 
 export default function NewMachineRoute() {
-  return <NewMachine />;
+  return <NewProfile kind={machineProfiles} />;
 }

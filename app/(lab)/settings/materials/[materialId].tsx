@@ -1,7 +1,8 @@
 import { useLocalSearchParams } from 'expo-router';
-import { EditMaterial } from '@/components/settings/MaterialsSection';
+import { EditProfile } from '@/components/settings/ProfileSection';
+import { materialProfiles } from '@/components/settings/profileKinds';
 
 export default function EditMaterialRoute() {
   const { materialId } = useLocalSearchParams<{ materialId: string }>();
-  return <EditMaterial materialId={String(materialId)} />;
+  return <EditProfile kind={materialProfiles} id={String(materialId)} />;
 }

@@ -1,5 +1,6 @@
-import { MaterialsSection } from '@/components/settings/MaterialsSection';
+import { ProfileList } from '@/components/settings/ProfileSection';
+import { materialProfiles } from '@/components/settings/profileKinds';
 
 export default function MaterialsRoute() {
-  return <MaterialsSection />;
+  return <ProfileList kind={materialProfiles} />;
 }

@@ -1,5 +1,6 @@
-import { NewMaterial } from '@/components/settings/MaterialsSection';
+import { NewProfile } from '@/components/settings/ProfileSection';
+import { materialProfiles } from '@/components/settings/profileKinds';
 
 export default function NewMaterialRoute() {
-  return <NewMaterial />;
+  return <NewProfile kind={materialProfiles} />;
 }
