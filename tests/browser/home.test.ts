@@ -1,6 +1,6 @@
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
-import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
+import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 import { PASSWORD, startTestApp } from '../helpers/app';
 import { createPlan, labWithProfiles, makeRequest } from '../helpers/plans';
@@ -26,13 +26,6 @@ type ApiRequest = {
   totals: { quantity: number; planned: number; printed: number };
 };
 
-async function signIn(page: Page, email: string, password: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(password);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
-}
 
 /** Reads the API as the signed-in page does (a string, so the test's transpiler leaves the page's code alone). */
 async function apiGet<T>(page: Page, path: string): Promise<T> {

@@ -1,6 +1,5 @@
 import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { gear, measureMesh, writeBinaryStl } from '../../shared/geometry';
 
 jest.setTimeout(240_000);
@@ -13,13 +12,6 @@ afterAll(async () => {
   await served?.close();
 });
 
-async function signIn(page: Page, email: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
-}
 
 /** A spur gear made by the project's own generator, written as binary STL. */
 function gearStl() {

@@ -1,6 +1,5 @@
 import type { Page } from 'playwright-core';
-import { newPage, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { newPage, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 
 jest.setTimeout(300_000);
 
@@ -12,13 +11,6 @@ afterAll(async () => {
   await served?.close();
 });
 
-async function signIn(page: Page, email: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
-}
 
 async function apiGet(page: Page, path: string) {
   const r = await page.request.get(`/api${path}`);

@@ -1,7 +1,6 @@
 import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { gridLayout, planInstance } from '../helpers/plans';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 
 jest.setTimeout(300_000);
 
@@ -13,13 +12,6 @@ afterAll(async () => {
   await served?.close();
 });
 
-async function signIn(page: Page, email: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
-}
 
 /** The API as the signed-in page's session, with the Origin header state changes need. */
 function apiOf(page: Page) {

@@ -1,6 +1,4 @@
-import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 
 jest.setTimeout(180_000);
 
@@ -12,13 +10,6 @@ afterAll(async () => {
   await served?.close();
 });
 
-async function signIn(page: Page, email: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
-}
 
 describe.each([
   ['phone', PHONE],

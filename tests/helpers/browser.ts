@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import type { Server } from 'node:http';
 import { listen, type Running } from '../../server/boot';
 import { startTestApp } from './app';
+import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 
 export const CHROMIUM = '/usr/bin/chromium';
 export const ARTIFACTS = join(__dirname, '..', '..', 'test-artifacts');
@@ -55,4 +56,13 @@ export async function newPage(served: Served, viewport: { width: number; height:
 export async function screenshot(page: Page, name: string) {
   mkdirSync(ARTIFACTS, { recursive: true });
   await page.screenshot({ path: join(ARTIFACTS, `${name}.png`), fullPage: false });
+}
+
+/** Signs in through the sign-in screen and waits for home (demo members share one password). */
+export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto('/');
+  await page.getByTestId('sign-in-email').fill(email);
+  await page.getByTestId('sign-in-password').fill(password);
+  await page.getByTestId('sign-in-submit').click();
+  await page.getByTestId('screen-home').waitFor();
 }
