@@ -191,6 +191,8 @@ describe('the demo operator on a phone (390 x 844)', () => {
     const page = await newPage(served, PHONE);
     await signIn(page, 'operator@tinkerfin.example');
     await page.getByTestId('nav-tabs').getByTestId('nav-floor').click();
+    await page.getByTestId(`floor-machine-${machineId}`).getByText(`Next: Floor run ${tag}`).waitFor();
+    await screenshot(page, 'floor-machines-phone');
     await page.getByTestId(`floor-machine-${machineId}`).click();
     const card = page.getByTestId(`run-card-${queuedPlanId}`);
     await card.waitFor();
@@ -320,6 +322,15 @@ describe('two leads on one plan', () => {
     await waitForText(page, 'review-status', 'Queued');
     await screenshot(page, 'review-conflict-wide');
     await page.context().close();
+
+    const phone = await newPage(served, PHONE);
+    await signIn(phone, 'lead@tinkerfin.example');
+    await phone.goto(`/review/${other.planId}`);
+    await phone.getByTestId('review-build').waitFor();
+    await phone.getByTestId('plan-numbers').waitFor();
+    await phone.waitForTimeout(1000);
+    await screenshot(phone, 'review-phone');
+    await phone.context().close();
   });
 });
 
