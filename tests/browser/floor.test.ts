@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import request from 'supertest';
 import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served } from '../helpers/browser';
+import { newPage, PHONE, screenshot, serveAndLaunch, signIn, WIDE, type Served } from '../helpers/browser';
 import { createPlan, gridLayout, makeRequest, planInstance } from '../helpers/plans';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 import { demoMachines } from '../../shared/demo/profiles';
@@ -58,14 +58,6 @@ async function giveBoxMesh(partId: string, name: string, [x, y, z]: [number, num
   const q = (sql: string, bind: unknown[]) => served.running.db.sequelize.query(sql, { bind });
   await q(`INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, $2, 'postgres', $3, 1, now()) ON CONFLICT (key) DO NOTHING`, [key, bytes.length, bytes]);
   await q(`UPDATE parts SET file_key = $2, file_name = $3 WHERE id = $1`, [partId, key, `${name}.stl`]);
-}
-
-async function signIn(page: Page, email: string) {
-  await page.goto('/');
-  await page.getByTestId('sign-in-email').fill(email);
-  await page.getByTestId('sign-in-password').fill(DEMO_PASSWORD);
-  await page.getByTestId('sign-in-submit').click();
-  await page.getByTestId('screen-home').waitFor();
 }
 
 /** Asks again until the answer is `expected` (the server's copy catches up with the page). */
