@@ -27,7 +27,7 @@ async function main() {
   const { runServer } = await import('../server/index');
   const { running } = await runServer(process.env);
   const { seedDemoIfEmpty, DEMO_MEMBERS, DEMO_PASSWORD, DEMO_LAB_NAME } = await import('../server/db/seeders/demo');
-  if (await seedDemoIfEmpty(running.db, running.services)) log(`Seeded the demo lab "${DEMO_LAB_NAME}".`);
+  if (await seedDemoIfEmpty(running.db, running.services, { planInReview: true })) log(`Seeded the demo lab "${DEMO_LAB_NAME}".`);
 
   log('');
   log(`Sinterstack is running at ${config.appUrl}`);

@@ -3,7 +3,6 @@
  * instance, and from layouts to the typed arrays the chamber view draws.
  */
 import {
-  INSTANCE_FORMAT,
   parseInstance,
   summariseLayout,
   validateLayout,
@@ -17,70 +16,18 @@ import {
 import type { PlanOrientationRule } from '../../shared/schemas/plans';
 import type { ChamberPlacements } from '../viewer';
 
-/** The orientations each rule allows: the server checks the same sets. */
-export const RULE_ORIENTATIONS: Record<PlanOrientationRule, Orientation[]> = {
-  any: ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'],
-  keep_up: ['xyz', 'yxz'],
-  fixed: ['xyz'],
-};
+export {
+  RULE_ORIENTATIONS,
+  buildInstance,
+  defaultLayerHeight,
+  defaultOptions,
+  type InstanceLine,
+  type MachineLike,
+  type MaterialLike,
+  type PackingOptions,
+} from '../../shared/plans/instance';
 
 export const RULE_LABELS: Record<PlanOrientationRule, string> = { any: 'Any way', keep_up: 'Keep up', fixed: 'As stored' };
-
-export interface InstanceLine {
-  requestLineId: string;
-  quantity: number;
-  orientation: PlanOrientationRule;
-  sizeMm: Vec3;
-}
-
-export interface MachineLike {
-  chamberMm: Vec3;
-  layerHeightsMm: number[];
-}
-
-export interface MaterialLike {
-  spacingMm: number;
-  marginXyMm: number;
-  marginBottomMm: number;
-  marginTopMm: number;
-  defaultLayerHeightMm: number;
-}
-
-export interface PackingOptions {
-  seed: number;
-  spacingMm: number;
-  timeLimitMs: number;
-  layerHeightMm: number;
-}
-
-/** The material's layer height when the machine prints it, else the machine's nearest. */
-export function defaultLayerHeight(machine: MachineLike, material: MaterialLike): number {
-  const heights = machine.layerHeightsMm;
-  if (heights.length === 0) return material.defaultLayerHeightMm;
-  return heights.reduce((best, h) => (Math.abs(h - material.defaultLayerHeightMm) < Math.abs(best - material.defaultLayerHeightMm) ? h : best), heights[0]);
-}
-
-export function defaultOptions(machine: MachineLike, material: MaterialLike): PackingOptions {
-  return { seed: 1, spacingMm: material.spacingMm, timeLimitMs: 4000, layerHeightMm: defaultLayerHeight(machine, material) };
-}
-
-/** One engine part per plan line, id = the request line's id, as the server expects. */
-export function buildInstance(lines: InstanceLine[], machine: MachineLike, material: MaterialLike, options: PackingOptions): PackInstanceInput {
-  return {
-    format: INSTANCE_FORMAT,
-    chamber: [...machine.chamberMm] as Vec3,
-    margin: { xy: material.marginXyMm, bottom: material.marginBottomMm, top: material.marginTopMm },
-    // The material's spacing is a floor: a planner may ask for more, never less.
-    spacing: Math.max(options.spacingMm, material.spacingMm),
-    layerHeight: options.layerHeightMm,
-    objective: 'min-height',
-    timeLimitMs: options.timeLimitMs,
-    seed: options.seed,
-    parts: lines
-      .filter((l) => l.quantity > 0)
-      .map((l) => ({ id: l.requestLineId, size: [...l.sizeMm] as Vec3, quantity: l.quantity, orientations: RULE_ORIENTATIONS[l.orientation] })),
-  };
-}
 
 /**
  * The instance for packing new parts above what a kept layout already holds.

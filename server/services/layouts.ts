@@ -1,3 +1,4 @@
+import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
@@ -90,12 +91,6 @@ export function decodePlacements(
   return out;
 }
 
-const RULE_ORIENTATIONS: Record<PlanOrientationRule, readonly Orientation[]> = {
-  any: ORIENTATIONS,
-  // A turn about the vertical axis keeps the part's own z up.
-  keep_up: ['xyz', 'yxz'],
-  fixed: ['xyz'],
-};
 
 const close = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.max(1, Math.abs(a), Math.abs(b));
 

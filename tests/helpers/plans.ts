@@ -1,3 +1,4 @@
+import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { createHash, randomBytes } from 'node:crypto';
 import type { Running } from '../../server/boot';
 import { signUp } from './app';
@@ -72,7 +73,6 @@ export async function makeRequest(
   return { requestId: req.id as string, lines };
 }
 
-const RULE: Record<string, Orientation[]> = { any: ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'], keep_up: ['xyz', 'yxz'], fixed: ['xyz'] };
 
 /** The packing instance of a plan as the editor builds it: machine chamber, material spacing and margins, one part per line. */
 export function planInstance(
@@ -89,7 +89,7 @@ export function planInstance(
     objective: 'min-height',
     timeLimitMs: 1000,
     seed: 7,
-    parts: plan.lines.map((l) => ({ id: l.requestLineId, size: l.part.sizeMm, quantity: l.quantity, orientations: RULE[l.orientation] })),
+    parts: plan.lines.map((l) => ({ id: l.requestLineId, size: l.part.sizeMm, quantity: l.quantity, orientations: [...RULE_ORIENTATIONS[l.orientation as keyof typeof RULE_ORIENTATIONS]] })),
   };
 }
 

@@ -1,6 +1,8 @@
 import type { Transaction } from 'sequelize';
 import type { Database } from '..';
 import type { Services } from '../../app';
+import { buildInstance, defaultOptions } from '../../../shared/plans/instance';
+import { packSync, parseInstance } from '../../../shared/packing';
 import { demoMachines, demoMaterials } from '../../../shared/demo/profiles';
 import { ROLES, type Role } from '../../../shared/schemas/auth';
 import { demoLibrary, translation, write3mf, writeAsciiStl, writeBinaryStl, type DemoPart } from '../../../shared/geometry';
@@ -21,7 +23,7 @@ export const DEMO_MEMBERS: { email: string; name: string; roles: Role[] }[] = [
 ];
 
 /** Seeds the demo lab when the database holds no lab yet; returns whether it did. */
-export async function seedDemoIfEmpty(db: Database, services: Services): Promise<boolean> {
+export async function seedDemoIfEmpty(db: Database, services: Services, opts: { planInReview?: boolean } = {}): Promise<boolean> {
   const labs = await db.models.Lab.count();
   if (labs > 0) return false;
   await db.sequelize.transaction(async (t) => {
@@ -48,7 +50,49 @@ export async function seedDemoIfEmpty(db: Database, services: Services): Promise
     const partIds = await seedPartLibrary(db, services, labId, designerId, materialIds[0], t);
     await seedRequests(db, labId, designerId, materialIds, partIds, t);
   });
+  // `npm start` adds a plan waiting for review; the test database leaves the
+  // requests open, because browser tests plan them themselves.
+  if (opts.planInReview) await seedPlanInReview(db, services);
   return true;
+}
+
+/**
+ * One plan waiting for the lead: the planner packed the most urgent request
+ * on the larger machine and sent it for review, so a fresh demo shows review,
+ * queue and the machine floor end to end. It goes through the same services
+ * (and the same layout checks) as the editor's requests.
+ */
+export async function seedPlanInReview(db: Database, services: Services) {
+  const lab: any = await db.models.Lab.findOne({ where: { name: DEMO_LAB_NAME }, raw: true });
+  const planner: any = await db.models.User.findOne({ where: { email: 'planner@tinkerfin.example' }, raw: true });
+  if (!lab || !planner) return;
+  const actor = { id: planner.id, name: planner.name, email: planner.email };
+  const machines = await services.machines.list(lab.id);
+  const machine = machines.find((m) => m.chamberCount > 1) ?? machines[0];
+  const open = await services.plans.openLines(lab.id, {});
+  const first = open[0];
+  if (!machine || !first || !first.request.materialId) return;
+  const lines = open.filter((l: any) => l.request.id === first.request.id);
+  const material = await services.materials.get(lab.id, first.request.materialId);
+  const created = await services.plans.create(lab.id, actor, {
+    name: `${first.request.title} on ${machine.name}`,
+    machineId: machine.id,
+    materialId: material.id,
+    lines: lines.map((l: any) => ({ requestLineId: l.requestLineId, quantity: l.remaining })),
+  });
+  const plan = await services.plans.get(lab.id, created.id);
+  const instance = buildInstance(
+    plan.lines.map((l) => ({ requestLineId: l.requestLineId, quantity: l.quantity, orientation: l.orientation, sizeMm: l.part.sizeMm })),
+    machine,
+    material,
+    { ...defaultOptions(machine, material), timeLimitMs: 1500 },
+  );
+  const parsed = parseInstance(instance);
+  if (!parsed.ok) throw new Error(`demo plan: ${parsed.problems[0].field} ${parsed.problems[0].message}`);
+  const result = packSync(parsed.instance);
+  const layout = await services.layouts.add(lab.id, created.id, actor, { instance: parsed.instance, result, label: 'Seed 1' });
+  await services.layouts.choose(lab.id, created.id, layout.id, actor);
+  await services.plans.submit(lab.id, created.id, actor, null);
 }
 
 /** How each demo shape is filed: the way a designer's tools would have written it. */
