@@ -594,7 +594,7 @@ export function plansService(db: Database, deps: PlansDeps) {
           ...(comment ? ['', `Their note: ${comment}`] : []),
           '',
           'Open it to approve it into its machine\'s queue or send it back with a comment:',
-          `${deps.appUrl}/plans/${plan.id}`,
+          `${deps.appUrl}/review/${plan.id}`,
         ].join('\n'),
       );
       return { id: plan.id, status: plan.status, version, notified };

@@ -288,7 +288,7 @@ describe('sending for review', () => {
     for (const to of [email, secondLead.email]) {
       const mail = await waitForMail(running, before, to);
       expect(mail.subject).toContain('Waiting for your review');
-      expect(mail.text).toContain(`/plans/${plan.id}`);
+      expect(mail.text).toContain(`/review/${plan.id}`);
     }
 
     const inReview = (await secondLead.agent.get(`/api/labs/${labId}/plans?status=in_review`)).body;
