@@ -94,7 +94,7 @@ describe('review', () => {
     const twice = await lead.post(`/api/labs/${labId}/plans/${ids[0]}/review`).send({ decision: 'changes_requested', comment: 'Too late' });
     expect(twice.status).toBe(409);
     expect(twice.body.error).toMatchObject({ code: 'invalid_transition', status: 'queued', allowed: ['printing', 'cancelled'] });
-    expect(twice.body.error.message).toMatch(/queued cannot become changes requested/);
+    expect(twice.body.error.message).toMatch(/queued cannot become sent back/);
   });
 
   test('only a lead decides: an operator or a planner may not approve', async () => {
