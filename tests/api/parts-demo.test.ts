@@ -38,8 +38,13 @@ describe('the demo lab', () => {
     expect(hinges).toHaveLength(2);
 
     const requests = await a.get(`/api/labs/${lab.id}/requests`).query({ status: 'open' });
-    expect(requests.body.total).toBeGreaterThanOrEqual(3);
-    expect(requests.body.items[0].priority).toBe('urgent');
-    for (const r of requests.body.items) expect(r.lines.length).toBeGreaterThan(0);
+    // Other tests file requests in the demo lab too: look at the seeded three.
+    const seeded = requests.body.items.filter((r: { title: string }) => ['Field repair kit', 'Gripper v3 prototypes', 'Sensor rig housings'].includes(r.title));
+    expect(seeded.map((r: { title: string; priority: string }) => [r.title, r.priority])).toEqual([
+      ['Field repair kit', 'urgent'],
+      ['Gripper v3 prototypes', 'high'],
+      ['Sensor rig housings', 'normal'],
+    ]);
+    for (const r of seeded) expect(r.lines.length).toBeGreaterThan(0);
   });
 });
