@@ -122,8 +122,12 @@ describe('the packed build as a 3MF package', () => {
 
   test('a part whose stored file is not a mesh stops the export with a message naming the part', async () => {
     const lab = await labWithCrew(running, 'exportbad');
-    // The fixture's parts carry stand-in bytes, not a mesh.
     const plan = await queuedPlan(running, lab, [BAR], { layout: threeOrientations });
+    // Its stored bytes replaced by something that is not a mesh.
+    await running.db.sequelize.query(
+      `UPDATE files SET data = $1, size_bytes = 32 WHERE key IN (SELECT file_key FROM parts WHERE lab_id = $2 AND name = 'Bar')`,
+      { bind: [Buffer.alloc(32, 7), lab.labId] },
+    );
     const res = await lab.agent.get(`${plan.base}/build.3mf`);
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('part_file_unreadable');

@@ -1,5 +1,6 @@
 import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { createHash, randomBytes } from 'node:crypto';
+import { measureMesh, prism, writeBinaryStl } from '../../shared/geometry';
 import type { Running } from '../../server/boot';
 import { signUp } from './app';
 import { demoMachines, demoMaterials } from '../../shared/demo/profiles';
@@ -51,17 +52,21 @@ export async function makeRequest(
   );
   const lines: Array<{ id: string; partId: string; quantity: number; sizeMm: [number, number, number]; name: string }> = [];
   for (const [i, part] of parts.entries()) {
-    const bytes = randomBytes(32);
-    const key = createHash('sha256').update(bytes).digest('hex');
-    await q(`INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, 32, 'postgres', $2, 1, now())`, [key, bytes]);
+    // A real box: its STL is what the 3D views and the 3MF export read, its
+    // measured metrics what the part library shows.
     const [x, y, z] = part.sizeMm;
+    const mesh = prism([[0, 0], [x, 0], [x, y], [0, y]], 0, z);
+    const bytes = Buffer.from(writeBinaryStl(mesh, part.name));
+    const metrics = measureMesh(mesh);
+    const key = createHash('sha256').update(bytes).update(randomBytes(8)).digest('hex');
+    await q(`INSERT INTO files (key, size_bytes, location, data, ref_count, created_at) VALUES ($1, $2, 'postgres', $3, 1, now())`, [key, bytes.length, bytes]);
     const [[p]] = await q(
       `INSERT INTO parts (id, lab_id, name, tags, file_key, file_name, file_format, file_unit, file_split, file_part_index,
                           uploaded_size_mm, rotation_deg, size_x_mm, size_y_mm, size_z_mm, volume_mm3, area_mm2, triangles,
                           watertight, metrics, warnings, orientation, default_material_id, uploaded_by, created_at, updated_at)
-       VALUES (gen_random_uuid(), $1, $2, '{}', $3, $4, 'stl', 'mm', false, 0, $5::double precision[], '{0,0,0}', $6, $7, $8, $9, $10, 12,
-               true, '{}'::jsonb, '[]'::jsonb, $11, $12, $13, now(), now()) RETURNING id`,
-      [labId, part.name, key, `${part.name}.stl`, [x, y, z], x, y, z, x * y * z, 2 * (x * y + y * z + x * z), part.orientation ?? 'any', materialId, userId],
+       VALUES (gen_random_uuid(), $1, $2, '{}', $3, $4, 'stl', 'mm', false, 0, $5::double precision[], '{0,0,0}', $6, $7, $8, $9, $10, $11,
+               true, $12::jsonb, '[]'::jsonb, $13, $14, $15, now(), now()) RETURNING id`,
+      [labId, part.name, key, `${part.name}.stl`, [x, y, z], x, y, z, metrics.volumeMm3, metrics.areaMm2, metrics.triangles, JSON.stringify(metrics), part.orientation ?? 'any', materialId, userId],
     );
     const [[line]] = await q(
       `INSERT INTO request_lines (id, request_id, part_id, position, quantity, planned_count, printed_count, created_at, updated_at)
