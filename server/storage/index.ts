@@ -46,7 +46,8 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
    * that a concurrent upload of the same bytes is about to commit.
    */
   async function lockKey(key: string, transaction: Transaction) {
-    await sequelize.query('SELECT pg_advisory_xact_lock(hashtextextended($1, 0))', { bind: [`files:${key}`], transaction });
+    await sequelize.query('INSERT INTO file_key_locks (key) VALUES ($1) ON CONFLICT DO NOTHING', { bind: [key], transaction });
+    await sequelize.query('SELECT key FROM file_key_locks WHERE key = $1 FOR UPDATE', { bind: [key], transaction });
   }
 
   /** Removes the object when no row points at it, under the key's lock. */

@@ -3,6 +3,7 @@ import * as m0001 from './0001-auth-labs';
 import * as m0002 from './0002-parts-requests';
 import * as m0003 from './0003-plans';
 import * as m0004 from './0004-runs';
+import * as m0005 from './0005-file-key-locks';
 
 export type Migration = {
   name: string;
@@ -16,4 +17,5 @@ export const migrations: Migration[] = [
   { name: '0002-parts-requests', ...m0002 },
   { name: '0003-plans', ...m0003 },
   { name: '0004-runs', ...m0004 },
+  { name: '0005-file-key-locks', ...m0005 },
 ];
