@@ -198,8 +198,9 @@ test('a designer deleting a part that a request names is told why it stays', asy
   const page = await newPage(served, WIDE);
   await signIn(page, 'designer@tinkerfin.example');
   const lab = ((await page.evaluate("fetch('/api/me').then((r) => r.json())")) as { labs: { id: string }[] }).labs[0].id;
-  const requests = (await page.evaluate(`fetch('/api/labs/${lab}/requests?status=open').then((r) => r.json())`)) as { items: { lines: { partId: string }[] }[] };
-  const partId = requests.items[0].lines[0].partId;
+  const requests = (await page.evaluate(`fetch('/api/labs/${lab}/requests?status=open&pageSize=100').then((r) => r.json())`)) as { items: { title: string; lines: { partId: string }[] }[] };
+  // A seeded request: its parts are the designer's own uploads (other tests file requests too).
+  const partId = requests.items.find((r) => r.title === 'Sensor rig housings')!.lines[0].partId;
   await page.goto(`/parts/${partId}`);
   await page.getByTestId('part-delete').click();
   await page.getByTestId('part-delete-confirm').click();
