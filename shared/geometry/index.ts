@@ -10,3 +10,4 @@ export type { MeasureOptions, MeasureResult, MeasuredPart, MeshFormat } from './
 export { writeBinaryStl, writeAsciiStl, write3mf, write3mfModelXml, translation } from './write';
 export type { ThreeMfObjectInput, ThreeMfItemInput, ThreeMfUnit } from './write';
 export * from './generate';
+export * from './rotations';
