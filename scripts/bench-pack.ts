@@ -139,7 +139,6 @@ function theirsLowest(instance: PackInstance, maxHeight: number, budgetMs: numbe
 }
 
 const pct = (v: number) => `${(100 * v).toFixed(1)} %`;
-const pad = (s: string | number, n: number) => String(s).padStart(n);
 const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : NaN);
 
 function table(header: string[], rows: Array<Array<string | number>>): string {

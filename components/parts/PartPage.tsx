@@ -7,7 +7,7 @@ import { useLab } from '../lab/useCurrentLab';
 import { useMaterialsQuery } from '../queries/materials';
 import { useMeQuery } from '../queries/me';
 import { useDeletePartMutation, usePartQuery, useUpdatePartMutation, type Part } from '../queries/parts';
-import { colors, spacing, useIsWide } from '../theme';
+import { spacing, useIsWide } from '../theme';
 import { Button, Card, ConfirmAction, ErrorState, Field, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
 import { formatDateTime } from '../ui/format';
 import { Choice } from './Choice';

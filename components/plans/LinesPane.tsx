@@ -4,7 +4,7 @@ import type { PlanOrientationRule } from '../../shared/schemas/plans';
 import type { PackerStatus } from '../packing/usePacker';
 import type { DraftOptions } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
-import { Badge, Button, Notice, Text, TextInput, ToggleChip } from '../ui';
+import { Badge, Button, Text, TextInput, ToggleChip } from '../ui';
 import { RULE_LABELS, RULE_ORIENTATIONS } from './instance';
 
 export interface EditorLine {

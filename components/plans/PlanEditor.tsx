@@ -6,7 +6,7 @@
  * Unsaved edits live in the editor's draft store, so a reload keeps them.
  */
 import { router } from 'expo-router';
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useEffect, useEffectEvent, useMemo, useRef, useState } from 'react';
 import { ScrollView, StyleSheet, useWindowDimensions, View } from 'react-native';
 import { buildCountLowerBound, parseInstance, type PackInstanceInput, type PackResult, type Placement, type Vec3 } from '../../shared/packing';
 import type { PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
@@ -229,17 +229,20 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
     [instanceLines, machine, material, options],
   );
 
-  useEffect(() => {
+  // Reads the latest plan and options; only the worker's answers make it run (below).
+  const takeBest = useEffectEvent((best: PackResult, final: boolean) => {
     const w = workingRef.current;
-    if (!w || !packer.best) return;
-    const final = packer.status === 'done' || packer.status === 'cancelled';
-    const next = merge(w, packer.best, final);
+    if (!w) return;
+    const next = merge(w, best, final);
     setWorking(next);
     if (final && next.mode === 'fill' && !next.problem) {
       // The plan's lines follow the fill, so keeping the layout saves both.
       editDraft(planId, startDraft, (d) => ({ ...d, lines: next.lines }));
     }
+  });
+  useEffect(() => {
     // Only a new layout from the worker (or its end) moves the working layout.
+    if (packer.best) takeBest(packer.best, packer.status === 'done' || packer.status === 'cancelled');
   }, [packer.best, packer.status]);
 
   // A worker that never answers (crashed, or out of memory) is replaced by remounting the editor.

@@ -6,12 +6,10 @@ import {
   parseInstance,
   summariseLayout,
   validateLayout,
-  type Orientation,
   type PackInstance,
   type PackInstanceInput,
   type PackResult,
   type Placement,
-  type Vec3,
 } from '../../shared/packing';
 import type { PlanOrientationRule } from '../../shared/schemas/plans';
 import type { ChamberPlacements } from '../viewer';

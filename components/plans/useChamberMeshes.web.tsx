@@ -75,14 +75,13 @@ export function useChamberMeshes(
   }, []);
   // A part with so many copies that even a plain mesh would break the budget is not fetched at all.
   const budget = isSoftwareRenderer() ? SOFTWARE_TRIANGLE_BUDGET : SCENE_TRIANGLE_BUDGET;
-  const worth = partIdsInOrder.map((id, i) => (id && (copiesByIndex[i] ?? 0) * MIN_MESH_TRIANGLES <= budget ? id : undefined));
-  const key = worth.join(',');
-  const loaders = useMemo(
-    () =>
-      worth.length > MESH_PART_LIMIT
-        ? null
-        : worth.map((id, i) => (id ? <PartMeshLoader key={`${i}:${id}`} labId={labId} partId={id} index={i} onMesh={onMesh} /> : null)),
-    [labId, key, onMesh],
-  );
+  // Keyed by a string (ids joined, '' for a part not worth fetching), so a new array of the same ids keeps the loaders.
+  const key = partIdsInOrder.map((id, i) => (id && (copiesByIndex[i] ?? 0) * MIN_MESH_TRIANGLES <= budget ? id : '')).join(',');
+  const loaders = useMemo(() => {
+    const worth = key === '' ? [] : key.split(',');
+    return worth.length > MESH_PART_LIMIT
+      ? null
+      : worth.map((id, i) => (id ? <PartMeshLoader key={`${i}:${id}`} labId={labId} partId={id} index={i} onMesh={onMesh} /> : null));
+  }, [labId, key, onMesh]);
   return { meshes, loaders };
 }

@@ -157,7 +157,7 @@ function segments(item: QueueItemView): Array<{ from: number; to: number; colour
 /** Every build's stages on one time axis, one lane per build, with its due date marked. */
 function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plans: QueueItemView[]; nowIso: string }) {
   const wide = useIsWide();
-  const items = [...underWay, ...plans];
+  const items = useMemo(() => [...underWay, ...plans], [underWay, plans]);
   const { from, to } = useMemo(() => {
     const starts = items.map((p) => Date.parse(p.startAt));
     const ends = items.map((p) => Date.parse(p.breakoutDoneAt));

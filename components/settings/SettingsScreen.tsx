@@ -1,5 +1,5 @@
 import { usePathname, type Href } from 'expo-router';
-import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
+import { ScrollView, StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { colors, radius, spacing } from '../theme';
 import { LinkPressable, Screen, Text } from '../ui';

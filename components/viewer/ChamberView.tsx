@@ -4,7 +4,7 @@
  * section at the cut (computed with the same maths as the 3D view).
  */
 import { forwardRef, useImperativeHandle, useMemo, useState } from 'react';
-import { StyleSheet, Text, View, type StyleProp, type ViewStyle } from 'react-native';
+import { StyleSheet, Text, View } from 'react-native';
 import { colors, fonts, radius, spacing, type } from '../theme';
 import { footprintAreaMm2, formatMm, groupByPart, spanningAt } from './math';
 import type { ChamberViewHandle, ChamberViewProps } from './types';

@@ -25,8 +25,8 @@
  */
 import { Html, OrbitControls } from '@react-three/drei';
 import { Canvas, useFrame, useThree, type ThreeEvent } from '@react-three/fiber';
-import { forwardRef, memo, useEffect, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState } from 'react';
-import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
+import { forwardRef, memo, useEffect, useEffectEvent, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState } from 'react';
+import { StyleSheet, View } from 'react-native';
 import * as THREE from 'three';
 import { colors } from '../theme';
 import { BVH_MIN_TRIANGLES, installBvh } from './bvh';
@@ -146,7 +146,8 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const invalidate = useThree((s) => s.invalidate);
   const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
 
-  const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [...chamberMm] as Vec3 }), [chamberMm[0], chamberMm[1], chamberMm[2]]);
+  const [cx, cy, cz] = chamberMm;
+  const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [cx, cy, cz] }), [cx, cy, cz]);
   const usable: Bounds = { min: [margin.xy, margin.xy, margin.bottom], max: [chamberMm[0] - margin.xy, chamberMm[1] - margin.xy, chamberMm[2] - margin.top] };
   const groups = useMemo(() => groupByPart(placements.partIndex), [placements.partIndex]);
   // Views made once per layout, so a new cut does not look like new instances to the memoised parts.
@@ -199,16 +200,21 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     label.current?.show(null, '');
   }, [placements]);
 
+  // The cut is reapplied for a new cut height or a new layout, with whatever the scene holds now.
+  const reapplyCut = useEffectEvent((h: number | null) => applyCut(h));
   useLayoutEffect(() => {
     cutRef.current = cutHeightMm;
-    applyCut(cutHeightMm);
-  }, [cutHeightMm, placements]);
+    reapplyCut(cutHeightMm);
+  }, [cutHeightMm, placements, cutRef]);
 
-  // Fit once the orbit controls exist, and again for a different chamber.
+  // Fit once the orbit controls exist, and again for a different chamber (not on resize: the user may have orbited).
+  const fit = useEffectEvent((target: NonNullable<typeof controls>, bounds: Bounds) => {
+    applyView(camera, target, bounds, 'fit', size.width / Math.max(size.height, 1));
+    invalidate();
+  });
   useEffect(() => {
     if (!controls) return;
-    applyView(camera, controls, chamberBounds, 'fit', size.width / Math.max(size.height, 1));
-    invalidate();
+    fit(controls, chamberBounds);
   }, [controls, chamberBounds]);
 
   const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);

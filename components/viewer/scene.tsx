@@ -4,7 +4,7 @@
  * direction of a powder bed.
  */
 import { useThree } from '@react-three/fiber';
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useEffectEvent, useMemo, useState } from 'react';
 import * as THREE from 'three';
 import { colors, fonts } from '../theme';
 import { fitCamera, type Bounds, type ViewName } from './math';
@@ -67,10 +67,14 @@ export function FitOnLoad({ bounds, view = 'fit' }: { bounds: Bounds; view?: Vie
   const size = useThree((s) => s.size);
   const invalidate = useThree((s) => s.invalidate);
   const key = `${bounds.min.join(',')}|${bounds.max.join(',')}|${controls ? 1 : 0}`;
-  useEffect(() => {
+  // Reads the latest camera, size and view without making them reasons to refit.
+  const fit = useEffectEvent(() => {
     applyView(camera, controls, bounds, view, size.width / Math.max(size.height, 1));
     invalidate();
+  });
+  useEffect(() => {
     // Refit when the bounds or the controls change, not on every resize (the user may have orbited).
+    fit();
   }, [key]);
   return null;
 }
@@ -91,12 +95,15 @@ export function FloorGrid({ sizeMm, centre, stepMm }: { sizeMm: number; centre: 
 
 /** Edges of an axis-aligned box, as line segments. */
 export function BoxOutline({ min, max, colour, opacity = 1 }: { min: readonly number[]; max: readonly number[]; colour: string; opacity?: number }) {
+  const [x0, y0, z0] = min;
+  const [x1, y1, z1] = max;
+  // Keyed by the numbers, not the arrays, which callers often build afresh.
   const geometry = useMemo(() => {
-    const box = new THREE.BoxGeometry(max[0] - min[0], max[1] - min[1], max[2] - min[2]);
+    const box = new THREE.BoxGeometry(x1 - x0, y1 - y0, z1 - z0);
     const edges = new THREE.EdgesGeometry(box);
     box.dispose();
     return edges;
-  }, [min[0], min[1], min[2], max[0], max[1], max[2]]);
+  }, [x0, y0, z0, x1, y1, z1]);
   useEffect(() => () => geometry.dispose(), [geometry]);
   return (
     <lineSegments geometry={geometry} position={[(min[0] + max[0]) / 2, (min[1] + max[1]) / 2, (min[2] + max[2]) / 2]}>
@@ -107,9 +114,10 @@ export function BoxOutline({ min, max, colour, opacity = 1 }: { min: readonly nu
 
 /** An arrow along +z: the build direction. */
 export function BuildArrow({ origin, lengthMm }: { origin: [number, number, number]; lengthMm: number }) {
+  const [ox, oy, oz] = origin;
   const arrow = useMemo(
-    () => new THREE.ArrowHelper(new THREE.Vector3(0, 0, 1), new THREE.Vector3(...origin), lengthMm, sceneColours.arrow, lengthMm * 0.22, lengthMm * 0.12),
-    [origin[0], origin[1], origin[2], lengthMm],
+    () => new THREE.ArrowHelper(new THREE.Vector3(0, 0, 1), new THREE.Vector3(ox, oy, oz), lengthMm, sceneColours.arrow, lengthMm * 0.22, lengthMm * 0.12),
+    [ox, oy, oz, lengthMm],
   );
   useEffect(() => () => arrow.dispose(), [arrow]);
   return <primitive object={arrow} />;

@@ -2,7 +2,7 @@ import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import {
   checkPlanId,
   effectiveRule,
@@ -23,7 +23,6 @@ import {
   validateLayout,
   orientedSize,
   type FieldProblem,
-  type Orientation,
   type PackInstance,
   type PackResult,
   type Placement,
@@ -31,7 +30,7 @@ import {
 } from '../../shared/packing';
 import { estimateLayout, InvalidInputError, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
-import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView, type PlanOrientationRule } from '../../shared/schemas/plans';
+import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView } from '../../shared/schemas/plans';
 
 /**
  * Placement bytes, format 1 (little-endian), n placements:

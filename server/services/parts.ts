@@ -1,7 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import { measureFile, type FileMeasureResult } from '../mesh';
 import { sha256Bytes, sha256File, type FileSource, type FileStorage } from '../storage';
 import { formatFromFilename, quoteName, type MeasureOptions, type MeshMetrics } from '../../shared/geometry';

@@ -2,7 +2,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import type { Mailer } from '../mail/mailer';
 import { AppError, badRequest, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import type { LabsService } from './labs';
 import {
   allowedNext,

@@ -1,7 +1,7 @@
 import type { z } from 'zod';
 import type { Database } from '../db';
 import { conflict, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 
 type ProfileModel = Database['models']['Machine'];
 export type Stored<P> = P & { id: string; labId: string; createdAt: string; updatedAt: string };

@@ -1,7 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import {
   requestCreateSchema,
   requestListQuerySchema,

@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlansService } from './plans';
 import { canTransition } from '../../shared/plans/status';
 import { reviewSchema } from '../../shared/schemas/plans';

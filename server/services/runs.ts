@@ -1,7 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, badRequest, conflict } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type PlanRow } from './plans';
 import { allowedNext, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import { coolingTimer, enoughPowder, printTimer, stageCard, type CoolingTimer, type TemperatureReading } from '../../shared/floor';

@@ -127,7 +127,7 @@ export function splitIntoBuilds(lines: BuildLine[], settings: BuildSettings, opt
     const weights = urgencyWeights(firstInstance.parts.length).map((w, i) => (carried.has(firstInstance.parts[i].id) ? 10 * w : w));
     const first = packSync(firstInstance, { ...options, partWeights: weights });
     let placements = first.placements;
-    let leftover = consume(prefix, placedPerId(first));
+    const leftover = consume(prefix, placedPerId(first));
     let pending = rest;
     if (placements.length === 0) {
       // Cannot happen for parts that fit an empty chamber; guard against looping for ever anyway.

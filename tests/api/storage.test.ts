@@ -9,6 +9,8 @@ import type { S3StorageConfig } from '../../server/config';
 import { sha256Bytes } from '../../server/storage';
 import { prism, writeBinaryStl } from '../../shared/geometry';
 
+// s3rver ships no type declarations, so it is loaded untyped.
+// eslint-disable-next-line @typescript-eslint/no-require-imports
 const S3rver = require('s3rver');
 
 const BUCKET = 'sinterstack-files';

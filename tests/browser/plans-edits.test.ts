@@ -30,7 +30,6 @@ test('a planner locks a layout, re-packs only the added parts, then fills the re
   await signIn(page, 'planner@tinkerfin.example');
   const me = await apiGet(page, '/me');
   const labId = me.labs[0].id as string;
-  const materials = (await apiGet(page, `/labs/${labId}/materials`)) as Array<{ id: string; name: string }>;
   const open = (await apiGet(page, `/labs/${labId}/plans/open-lines`)) as Array<{ requestLineId: string; remaining: number; request: { materialId: string } }>;
   // The material with the most open lines: the plan takes part of one line, the others stay for filling.
   const counts = new Map<string, number>();

@@ -9,7 +9,6 @@ import {
   parseInstance,
   summariseLayout,
   usableRegion,
-  type Orientation,
   type PackInstance,
   type PackInstanceInput,
   type PackResult,

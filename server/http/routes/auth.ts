@@ -1,6 +1,6 @@
 import { Router, type RequestHandler } from 'express';
 import { signInSchema, signUpSchema } from '../../../shared/schemas/auth';
-import { parseOrThrow } from '../validate';
+import { parseOrThrow } from '../../validation';
 import { clearSessionCookie, requireSession, setSessionCookie } from '../middleware/auth';
 import { ctx, requireUser } from '../context';
 import { unauthenticated } from '../../errors';

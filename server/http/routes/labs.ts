@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { inviteAcceptSchema, inviteCreateSchema, memberUpdateSchema } from '../../../shared/schemas/auth';
-import { parseOrThrow } from '../validate';
+import { parseOrThrow } from '../../validation';
 import { labAccess, setSessionCookie } from '../middleware/auth';
 import { ctx, requireLab } from '../context';
 import { notFound } from '../../errors';

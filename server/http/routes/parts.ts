@@ -6,7 +6,7 @@ import { MAX_FILES_PER_UPLOAD, partUploadFieldsSchema, type PartUploadResponse, 
 import { quoteName } from '../../../shared/geometry';
 import { hasRole, labAccess } from '../middleware/auth';
 import { requireLab } from '../context';
-import { parseOrThrow } from '../validate';
+import { parseOrThrow } from '../../validation';
 import type { AppDeps } from '../../app';
 import { plainFileName } from '../../services/parts';
 

@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import { labAccess } from '../middleware/auth';
 import { requireLab } from '../context';
-import { parseOrThrow } from '../validate';
+import { parseOrThrow } from '../../validation';
 import { planCommentSchema } from '../../../shared/schemas/plans';
 import type { PlansService } from '../../services/plans';
 import type { LayoutsService } from '../../services/layouts';

@@ -1,5 +1,9 @@
+/**
+ * A failed zod parse as the app's one error shape: a 400 that names the
+ * field. Outside the http folder, so that any layer may use it.
+ */
 import type { z } from 'zod';
-import { AppError } from '../errors';
+import { AppError } from './errors';
 
 /** `lines[2].quantity` from a zod path. */
 export function fieldPath(path: readonly PropertyKey[]): string {
