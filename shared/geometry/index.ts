@@ -11,3 +11,4 @@ export { writeBinaryStl, writeAsciiStl, write3mf, write3mfModelXml, translation 
 export type { ThreeMfObjectInput, ThreeMfItemInput, ThreeMfUnit } from './write';
 export * from './generate';
 export * from './rotations';
+export * from './slice';
