@@ -51,7 +51,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine');
   const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material');
   const storage = createStorage(db, config.storage);
-  const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes });
+  const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const requests = requestsService(db, parts);
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);

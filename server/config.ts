@@ -26,6 +26,8 @@ const envSchema = z.object({
   UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
   /** A 3MF (a ZIP) may expand to at most this much when read: past it, it is refused as a ZIP bomb. */
   MAX_3MF_EXPANDED_MB: z.coerce.number().positive().default(1024),
+  /** Triangles one uploaded file may hold once a 3MF's components are expanded. */
+  MAX_MESH_TRIANGLES: z.coerce.number().int().positive().default(5_000_000),
   /** Where uploads are streamed while they are measured; removed after each request. */
   UPLOAD_TMP_DIR: z.string().optional(),
   /** Where mesh files live: in PostgreSQL (default) or in S3-compatible object storage. */
@@ -65,6 +67,7 @@ export type Config = {
   uploadLimitBytes: number;
   uploadTmpDir: string;
   max3mfExpandedBytes: number;
+  maxMeshTriangles: number;
   storage: StorageConfig;
 };
 
@@ -106,6 +109,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     uploadLimitBytes: Math.round(e.UPLOAD_LIMIT_MB * 1024 * 1024),
     uploadTmpDir: e.UPLOAD_TMP_DIR ?? join(tmpdir(), 'sinterstack-uploads'),
     max3mfExpandedBytes: Math.round(e.MAX_3MF_EXPANDED_MB * 1024 * 1024),
+    maxMeshTriangles: e.MAX_MESH_TRIANGLES,
     storage,
   };
 }

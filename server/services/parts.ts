@@ -20,6 +20,8 @@ export type PartsDeps = {
   storage: FileStorage;
   /** Expanded-size cap for a 3MF (ZIP bomb defence). */
   max3mfExpandedBytes?: number;
+  /** Triangle cap per file, after a 3MF's components are expanded. */
+  maxMeshTriangles?: number;
   /** Measuring in worker threads; replaceable so a test can count or slow it. */
   measure?: (input: string | Uint8Array, options: MeasureOptions) => Promise<FileMeasureResult>;
 };
@@ -264,6 +266,7 @@ export function partsService(db: Database, deps: PartsDeps) {
         splitObjects: input.split,
         largestChamberMm: chamber,
         maxUncompressedBytes: deps.max3mfExpandedBytes,
+        maxTriangles: deps.maxMeshTriangles,
       };
       const measured = await measure('path' in input.source ? input.source.path : input.source.bytes, options);
       if (!measured.ok) {

@@ -4,7 +4,7 @@
  */
 import { parseStl } from './stl';
 import { parseObj } from './obj';
-import { parse3mf, DEFAULT_MAX_3MF_BYTES } from './threemf';
+import { parse3mf, DEFAULT_MAX_3MF_BYTES, DEFAULT_MAX_TRIANGLES } from './threemf';
 import { measureMesh, meshWarnings, type MeshMetrics, type MeshWarning, type WarningOptions } from './metrics';
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult, type ParsedPart, type Problem } from './types';
 
@@ -19,6 +19,10 @@ export interface MeasureOptions extends WarningOptions {
   /** A 3MF with several build items: one part each (true, the default) or one merged part. */
   splitObjects?: boolean;
   maxUncompressedBytes?: number;
+  /** Cap on a file's triangles (after a 3MF's components are expanded). */
+  maxTriangles?: number;
+  /** Cap on the inflated-to-compressed ratio of one 3MF (ZIP) entry. */
+  maxCompressionRatio?: number;
 }
 
 export interface MeasuredPart {
@@ -53,12 +57,23 @@ export function parseMeshFile(bytes: Uint8Array, options: MeasureOptions): Parse
     throw new RangeError(`unit must be one of ${Object.keys(MM_PER_UNIT).join(', ')}`);
   }
   if (bytes.length === 0) return refuse('empty-file', `${quoteName(options.filename)} is empty (0 bytes).`);
+  const maxTriangles = options.maxTriangles ?? DEFAULT_MAX_TRIANGLES;
   const result =
     format === 'stl'
       ? parseStl(bytes, options)
       : format === 'obj'
         ? parseObj(bytes, options)
-        : parse3mf(bytes, { ...options, maxUncompressedBytes: options.maxUncompressedBytes ?? DEFAULT_MAX_3MF_BYTES });
+        : parse3mf(bytes, { ...options, maxTriangles, maxUncompressedBytes: options.maxUncompressedBytes ?? DEFAULT_MAX_3MF_BYTES });
+  if (result.ok && format !== '3mf') {
+    // An STL or OBJ cannot expand past its own size, so the count is checked once read.
+    const triangles = result.parts.reduce((s, p) => s + p.indices.length / 3, 0);
+    if (triangles > maxTriangles) {
+      return {
+        ...refuse('too-many-triangles', `${quoteName(options.filename)} is refused: it holds ${triangles.toLocaleString('en-US')} triangles, past the limit of ${maxTriangles.toLocaleString('en-US')} triangles per file.`),
+        format,
+      };
+    }
+  }
   return { ...result, format };
 }
 
@@ -78,10 +93,18 @@ export function measureParsedParts(parts: ParsedPart[], format: MeshFormat, opti
   const problems: Problem[] = [];
   for (const part of parts) {
     const metrics = measureMesh(part);
+    const label = `${quoteName(options.filename)}${parts.length > 1 ? `, part "${part.name}"` : ''}`;
+    if (![...metrics.sizeMm, metrics.volumeMm3, metrics.areaMm2].every(Number.isFinite)) {
+      problems.push({
+        code: 'out-of-range',
+        message: `${label} is so large that its size, volume or area cannot be computed (a coordinate far past any build chamber, or a wrong unit).`,
+      });
+      continue;
+    }
     if (hasZeroVolume(metrics)) {
       problems.push({
         code: 'zero-volume',
-        message: `${quoteName(options.filename)}${parts.length > 1 ? `, part "${part.name}"` : ''} encloses no volume (it is flat or only a surface), so it cannot be printed.`,
+        message: `${label} encloses no volume (it is flat or only a surface), so it cannot be printed.`,
       });
       continue;
     }

@@ -10,13 +10,19 @@
  *   before its parent's, so a point of a nested object lands at p C M;
  * - meshes use 0-based vertex indices (§4.1).
  *
- * Sizes declared in the ZIP's central directory are checked before anything
- * is inflated, so a small upload cannot expand into gigabytes.
+ * What a package may expand to is capped while it is read, before the work is
+ * done: the inflated bytes of the whole package, the ratio of inflated to
+ * compressed bytes of each entry (both counted while inflating, see ./zip),
+ * and the triangles and object instances once components are expanded
+ * (counted from the object graph before any vertex is transformed). A small
+ * upload can thus neither inflate into gigabytes nor multiply one triangle
+ * into millions through components that reference each other.
  */
-import { unzipSync, strFromU8, type UnzipFileInfo } from 'fflate';
+import { strFromU8 } from 'fflate';
 import { quoteName, refuse, type ParseResult, type ParsedPart, type Problem } from './types';
 import { baseName } from './stl';
 import { readXml, type XmlName } from './xml';
+import { inflateEntry, readZipDirectory, type ZipEntry } from './zip';
 
 export const CORE_NS = 'http://schemas.microsoft.com/3dmanufacturing/core/2015/02';
 export const MODEL_REL_TYPE = 'http://schemas.microsoft.com/3dmanufacturing/2013/01/3dmodel';
@@ -40,9 +46,27 @@ export interface ThreeMfOptions {
   splitObjects?: boolean;
   /** Cap on the inflated bytes of the parts read (relationships and model). */
   maxUncompressedBytes?: number;
+  /** Cap on the triangles of the whole file once components and build items are expanded. */
+  maxTriangles?: number;
+  /** Cap on the inflated-to-compressed ratio of one ZIP entry. */
+  maxCompressionRatio?: number;
+  /** Cap on the object instances the build items expand to through components. */
+  maxInstances?: number;
 }
 
 export const DEFAULT_MAX_3MF_BYTES = 1024 * 1024 * 1024;
+/** Triangles a file may hold after expansion: five times a 1,000,000-triangle scan, far above a printable part's need. */
+export const DEFAULT_MAX_TRIANGLES = 5_000_000;
+/**
+ * DEFLATE cannot pass about 1032:1 (RFC 1951: 258 bytes per 2-bit code at
+ * best); a model's XML of decimal coordinates compresses some 3–10:1, so 200:1
+ * is reached only by padding built to inflate.
+ */
+export const DEFAULT_MAX_COMPRESSION_RATIO = 200;
+/** Entries below this inflate harmlessly whatever their ratio. */
+const RATIO_FLOOR_BYTES = 1024 * 1024;
+/** Object instances after components: a plate of a few thousand copies is real; 2^16 from a doubly-referenced chain is not. */
+export const DEFAULT_MAX_INSTANCES = 10_000;
 
 /** A build item as read: the object's flattened mesh in the file's unit, and the item's transform. */
 export interface ThreeMfItem {
@@ -78,28 +102,31 @@ export function read3mfModel(bytes: Uint8Array, options: ThreeMfOptions): ThreeM
   const notZip = () => refuse('3mf-not-zip', `${name} is not a 3MF package: a 3MF file is a ZIP archive, and this one could not be opened as one.`);
   if (bytes.length < 22 || bytes[0] !== 0x50 || bytes[1] !== 0x4b) return notZip();
 
-  const entries: UnzipFileInfo[] = [];
-  try {
-    unzipSync(bytes, { filter: (info) => (entries.push(info), false) });
-  } catch {
-    return notZip();
-  }
-  const byLowerName = new Map<string, UnzipFileInfo>();
+  const entries = readZipDirectory(bytes);
+  if (!entries) return notZip();
+  const byLowerName = new Map<string, ZipEntry>();
   for (const e of entries) byLowerName.set(normalisePartName(e.name), e);
 
+  const ratio = options.maxCompressionRatio ?? DEFAULT_MAX_COMPRESSION_RATIO;
   let budget = cap;
-  const tooLarge = (what: string, size: number) =>
-    refuse('3mf-too-large', `${name} would expand to more than the limit of ${formatBytes(cap)} (${what} alone is ${formatBytes(size)}). It may be damaged or built to overload the server.`);
-  const extract = (entry: UnzipFileInfo): Uint8Array | Problem[] => {
-    if (entry.originalSize > budget) return tooLarge(entry.name, entry.originalSize).problems;
-    budget -= entry.originalSize;
-    try {
-      const out = unzipSync(bytes, { filter: (info) => info.name === entry.name });
-      const data = out[entry.name];
-      if (!data) return notZip().problems;
-      return data;
-    } catch {
-      return notZip().problems;
+  const extract = (entry: ZipEntry): Uint8Array | Problem[] => {
+    const out = inflateEntry(bytes, entry, { maxBytes: budget, maxRatio: ratio, ratioFloorBytes: RATIO_FLOOR_BYTES });
+    if (out.ok) {
+      budget -= out.data.length;
+      return out.data;
+    }
+    const part = `"${entry.name.slice(0, 80)}"`;
+    switch (out.reason) {
+      case 'budget':
+        return refuse('3mf-too-large', `${name} would expand to more than the limit of ${formatBytes(cap)} of inflated data (${part} alone reaches ${formatBytes(out.bytes)}). It may be damaged or built to overload the server.`).problems;
+      case 'declared':
+        return refuse('3mf-too-large', `${name} is refused: ${part} inflates to more than the ${formatBytes(entry.size)} its ZIP header declares. It is damaged or built to overload the server.`).problems;
+      case 'ratio':
+        return refuse('3mf-too-large', `${name} is refused: ${part} expands more than ${ratio} times its compressed size, the limit of the compression ratio per entry. It is padded or built to overload the server.`).problems;
+      case 'unsupported':
+        return refuse('3mf-not-zip', `${name} cannot be read: ${part} ${out.detail}.`).problems;
+      default:
+        return notZip().problems;
     }
   };
 
@@ -121,7 +148,7 @@ export function read3mfModel(bytes: Uint8Array, options: ThreeMfOptions): ThreeM
   }
   const data = extract(modelEntry);
   if (!(data instanceof Uint8Array)) return { ok: false, problems: data };
-  return readModelXml(strFromU8(data), options.filename);
+  return readModelXml(strFromU8(data), options.filename, { maxTriangles: options.maxTriangles });
 }
 
 /** Parses a 3MF package into parts in millimetres, with build item and component transforms applied. */
@@ -131,10 +158,19 @@ export function parse3mf(bytes: Uint8Array, options: ThreeMfOptions): ParseResul
   const { model } = read;
   const name = quoteName(options.filename);
   if (model.items.length === 0) return refuse('no-triangles', `${name} has no build items, so there is nothing to print.`);
+  const expanded = expandedCounts(model, options);
+  if (typeof expanded === 'string') return refuse('3mf-bad-model', `${name}: ${expanded}`);
+  if (!expanded.ok) return refuse('too-many-triangles', `${name} is refused: ${expanded.message}`);
   const parts: ParsedPart[] = [];
   for (const item of model.items) {
     const flat = flatten(model, item.objectId, item.transform, model.mmPerUnit);
     if (typeof flat === 'string') return refuse('3mf-bad-model', `${name}: ${flat}`);
+    if (!flat.positions.every(Number.isFinite)) {
+      return refuse(
+        'non-finite-coordinate',
+        `${name}: part "${item.name.slice(0, 80)}" has coordinates too large to compute with once its unit (${model.unit}) and transforms are applied.`,
+      );
+    }
     parts.push({ name: item.name, ...flat });
   }
   const nonEmpty = parts.filter((p) => p.indices.length > 0);
@@ -173,8 +209,13 @@ function formatBytes(n: number): string {
 }
 
 /** Reads the model XML into objects and items; exported for tests and tools that hold the XML already. */
-export function readModelXml(xml: string, filename: string): ThreeMfModelResult {
+export function readModelXml(xml: string, filename: string, caps: { maxTriangles?: number } = {}): ThreeMfModelResult {
   const name = quoteName(filename);
+  const maxTriangles = caps.maxTriangles ?? DEFAULT_MAX_TRIANGLES;
+  // A closed mesh has about half as many vertices as triangles (Euler: V - E + F = 2).
+  const maxVertices = maxTriangles;
+  let vertexCount = 0;
+  let triangleCount = 0;
   const objects = new Map<string, ThreeMfObject>();
   const items: ThreeMfItem[] = [];
   let unit = 'millimeter';
@@ -228,6 +269,9 @@ export function readModelXml(xml: string, filename: string): ThreeMfModelResult 
           if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
             return fail('non-finite-coordinate', `object ${current.id.slice(0, 20)} has an infinite coordinate.`);
           }
+          if (++vertexCount > maxVertices) {
+            return fail('too-many-triangles', `it holds more than ${maxVertices.toLocaleString('en-US')} vertices, the limit per file.`);
+          }
           current.pos.push3(x, y, z);
           return;
         }
@@ -238,6 +282,9 @@ export function readModelXml(xml: string, filename: string): ThreeMfModelResult 
           const v3 = Number(a.v3);
           if (![v1, v2, v3].every((v) => Number.isInteger(v) && v >= 0)) {
             return fail('3mf-bad-model', `object ${current.id.slice(0, 20)} has a triangle whose vertex indices are not whole numbers.`);
+          }
+          if (++triangleCount > maxTriangles) {
+            return fail('too-many-triangles', `it holds more than ${maxTriangles.toLocaleString('en-US')} triangles, the limit per file.`);
           }
           // A triangle that repeats a vertex has no area and no edges of its own (3MF Core §4.1 forbids it): skip it.
           if (v1 !== v2 && v2 !== v3 && v1 !== v3) current.idx.push3(v1, v2, v3);
@@ -324,6 +371,60 @@ function determinant3(m: Transform12): number {
 
 const MAX_COMPONENT_DEPTH = 32;
 const SUPPORT_TYPES = new Set(['support', 'solidsupport']);
+
+/**
+ * Triangles and object instances the build items expand to, counted on the
+ * object graph (each object once, memoised) before any vertex is computed.
+ * A string is a broken graph (a loop, a missing object).
+ */
+function expandedCounts(model: ThreeMfModel, options: ThreeMfOptions): { ok: true; triangles: number } | { ok: false; message: string } | string {
+  const maxTriangles = options.maxTriangles ?? DEFAULT_MAX_TRIANGLES;
+  const maxInstances = options.maxInstances ?? DEFAULT_MAX_INSTANCES;
+  const memo = new Map<string, { triangles: number; instances: number }>();
+  const visiting = new Set<string>();
+  const count = (id: string, depth: number): { triangles: number; instances: number } | string => {
+    const known = memo.get(id);
+    if (known) return known;
+    const object = model.objects.get(id);
+    if (!object) return `a component refers to object ${id.slice(0, 20)}, which does not exist.`;
+    if (visiting.has(id) || depth > MAX_COMPONENT_DEPTH) return `object ${id.slice(0, 20)} contains itself through its components.`;
+    visiting.add(id);
+    let triangles = object.indices.length / 3;
+    let instances = 1;
+    for (const c of object.components) {
+      const sub = count(c.objectId, depth + 1);
+      if (typeof sub === 'string') return sub;
+      // Sums only grow; past the caps the exact figure no longer matters (and must not overflow).
+      triangles = Math.min(triangles + sub.triangles, Number.MAX_SAFE_INTEGER);
+      instances = Math.min(instances + sub.instances, Number.MAX_SAFE_INTEGER);
+    }
+    visiting.delete(id);
+    const out = { triangles, instances };
+    memo.set(id, out);
+    return out;
+  };
+  let triangles = 0;
+  let instances = 0;
+  for (const item of model.items) {
+    const c = count(item.objectId, 0);
+    if (typeof c === 'string') return c;
+    triangles += c.triangles;
+    instances += c.instances;
+  }
+  if (instances > maxInstances) {
+    return {
+      ok: false,
+      message: `its components expand to ${instances.toLocaleString('en-US')} object instances (${triangles.toLocaleString('en-US')} triangles), past the limit of ${maxInstances.toLocaleString('en-US')} instances per file.`,
+    };
+  }
+  if (triangles > maxTriangles) {
+    return {
+      ok: false,
+      message: `its build items and components expand to ${triangles.toLocaleString('en-US')} triangles, past the limit of ${maxTriangles.toLocaleString('en-US')} triangles per file.`,
+    };
+  }
+  return { ok: true, triangles };
+}
 
 function flatten(model: ThreeMfModel, rootId: string, transform: Transform12, scale: number): { positions: Float64Array; indices: Uint32Array } | string {
   const pos = new Grow64();

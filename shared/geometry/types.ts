@@ -40,6 +40,8 @@ export type ProblemCode =
   | '3mf-too-large'
   | '3mf-bad-xml'
   | '3mf-bad-model'
+  | 'too-many-triangles'
+  | 'out-of-range'
   | 'zero-volume';
 
 export interface Problem {

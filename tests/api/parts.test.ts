@@ -6,6 +6,7 @@ import path from 'node:path';
 import { addMember, signUp, startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
 import { demoMaterials } from '../../shared/demo/profiles';
+import { doublingChain3mf, hugeMetres3mf, lyingBomb3mf } from '../helpers/hostile3mf';
 import { prism, write3mf, write3mfModelXml, writeAsciiStl, writeBinaryStl, translation, type MeshData } from '../../shared/geometry';
 
 let running: Running;
@@ -123,6 +124,18 @@ describe('uploading parts', () => {
     expect(again.body.volumeMm3).toBeCloseTo(1000, 3);
   });
 
+  test('a file name outside ASCII is kept as the designer wrote it (UTF-8), in the part and in the download', async () => {
+    const { agent, labId } = await signUp(running, 'utf8name');
+    const res = await agent.post(`/api/labs/${labId}/parts`).attach('file', buf(uniqueStl(cube(12))), 'Halterung_ø12.stl');
+    expect(res.status).toBe(201);
+    const part = res.body.parts[0];
+    expect(part.name).toBe('Halterung_ø12');
+    expect(part.file.name).toBe('Halterung_ø12.stl');
+    const file = await agent.get(`/api/labs/${labId}/parts/${part.id}/file`).buffer(true).parse(asBytes);
+    // RFC 6266 / RFC 8187: the UTF-8 name travels percent-encoded in filename*.
+    expect(file.headers['content-disposition']).toContain("filename*=UTF-8''Halterung_%C3%B812.stl");
+  });
+
   test('an STL in inches is scaled to millimetres (1 in = 25.4 mm, NIST SP 811)', async () => {
     const { agent, labId } = await signUp(running, 'inch');
     const res = await agent.post(`/api/labs/${labId}/parts`).field('unit', 'inch').attach('file', buf(writeAsciiStl(cube(1))), 'inch-cube.stl');
@@ -193,6 +206,9 @@ describe('uploading parts', () => {
     ['a 3MF without a model', 'nomodel.3mf', () => zipSync({ '_rels/.rels': strToU8(RELS), 'readme.txt': strToU8('hello') }), '3mf-no-model'],
     ['a 3MF with an unknown unit', 'furlong.3mf', () => threeMfWithUnit('furlong'), '3mf-unknown-unit'],
     ['a 3MF that expands past the limit (ZIP bomb)', 'bomb.3mf', zipBomb, '3mf-too-large'],
+    ['a 3MF whose headers declare 4 kB but inflate to 16 MB', 'liar.3mf', () => lyingBomb3mf(16 * 1024 * 1024), '3mf-too-large'],
+    ['a kilobyte 3MF whose objects each hold the next twice, 16 levels deep (786,432 triangles)', 'chain.3mf', () => doublingChain3mf(16), 'too-many-triangles'],
+    ['a 3MF in metres with a coordinate of 1e306', 'metres.3mf', hugeMetres3mf, 'non-finite-coordinate'],
     ['a file with a wrong extension', 'drawing.dxf', () => uniqueStl(cube(10)), 'unsupported-extension'],
     ['a flat mesh with zero volume', 'flat.stl', () => writeBinaryStl(block(10, 10, 0)), 'zero-volume'],
   ];

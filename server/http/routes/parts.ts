@@ -19,6 +19,8 @@ function uploadMiddleware(deps: AppDeps): RequestHandler {
   const limitMb = Math.round((deps.config.uploadLimitBytes / (1024 * 1024)) * 10) / 10;
   const upload = multer({
     storage: multer.diskStorage({ destination: deps.config.uploadTmpDir }),
+    // Browsers send a file's name as UTF-8 bytes without saying so (WHATWG HTML, multipart/form-data encoding).
+    defParamCharset: 'utf8',
     limits: { fileSize: deps.config.uploadLimitBytes, files: MAX_FILES_PER_UPLOAD, fields: 10, fieldSize: 1024, parts: MAX_FILES_PER_UPLOAD + 10 },
   }).array('file', MAX_FILES_PER_UPLOAD);
   return (req, res, next) => {
