@@ -97,25 +97,23 @@ export function runsService(db: Database) {
       if (!row) throw new AppError(404, 'not_found', 'That plan was not found.');
       plan = row;
     }
-    const [machine, material, lines, [layout], [run]] = await Promise.all([
-      profileRow(db, 'machines', labId, plan.machine_id),
-      profileRow(db, 'materials', labId, plan.material_id),
-      planLines(db, plan.id, transaction),
-      plan.chosen_layout_id
-        ? q<{ estimate: RunEstimate }>(`SELECT estimate - 'areaPerLayerMm2' AS estimate FROM layouts WHERE id = $1`, [plan.chosen_layout_id])
-        : Promise.resolve([] as Array<{ estimate: RunEstimate }>),
-      q<RunRow>(`SELECT r.*, u.name AS started_by_name FROM runs r LEFT JOIN users u ON u.id = r.started_by WHERE r.plan_id = $1`, [plan.id]),
-    ]);
-    const [readings, runLines] = run
-      ? await Promise.all([
-          q<ReadingRow>(
-            `SELECT g.id, g.temp_c, g.place, g.taken_at, g.user_id, u.name AS user_name
-               FROM run_readings g LEFT JOIN users u ON u.id = g.user_id WHERE g.run_id = $1 ORDER BY g.taken_at, g.created_at`,
-            [run.id],
-          ),
-          q<RunLineRow>('SELECT plan_line_id, planned_count, good_count, failed_count FROM run_lines WHERE run_id = $1', [run.id]),
-        ])
-      : [[], []];
+    // One after another: queries on one transaction share its connection, and
+    // the driver does not allow them to run side by side there.
+    const machine = await profileRow(db, 'machines', labId, plan.machine_id);
+    const material = await profileRow(db, 'materials', labId, plan.material_id);
+    const lines = await planLines(db, plan.id, transaction);
+    const [layout] = plan.chosen_layout_id
+      ? await q<{ estimate: RunEstimate }>(`SELECT estimate - 'areaPerLayerMm2' AS estimate FROM layouts WHERE id = $1`, [plan.chosen_layout_id])
+      : [];
+    const [run] = await q<RunRow>(`SELECT r.*, u.name AS started_by_name FROM runs r LEFT JOIN users u ON u.id = r.started_by WHERE r.plan_id = $1`, [plan.id]);
+    const readings = run
+      ? await q<ReadingRow>(
+          `SELECT g.id, g.temp_c, g.place, g.taken_at, g.user_id, u.name AS user_name
+             FROM run_readings g LEFT JOIN users u ON u.id = g.user_id WHERE g.run_id = $1 ORDER BY g.taken_at, g.created_at`,
+          [run.id],
+        )
+      : [];
+    const runLines = run ? await q<RunLineRow>('SELECT plan_line_id, planned_count, good_count, failed_count FROM run_lines WHERE run_id = $1', [run.id]) : [];
     return {
       plan,
       machine: machine ?? { id: plan.machine_id, name: '' },
