@@ -5,6 +5,7 @@
 import {
   parseInstance,
   summariseLayout,
+  toPlacementArrays,
   validateLayout,
   type PackInstance,
   type PackInstanceInput,
@@ -68,30 +69,13 @@ export function withoutPlacements(instance: PackInstanceInput, result: PackResul
   return summariseLayout(parsed.instance as PackInstance, kept, result.elapsedMs);
 }
 
-const ORIENTATION_CODE: Record<string, number> = { xyz: 0, xzy: 1, yxz: 2, yzx: 3, zxy: 4, zyx: 5 };
-
-/** Placements as the chamber view's typed arrays; part and line index are the line's position in the plan. */
+/**
+ * Placements as the chamber view's typed arrays (the packing codec's, shared/packing/codec.ts);
+ * part and line index are the line's position in the plan.
+ */
 export function toChamberPlacements(result: Pick<PackResult, 'placements'>, lineIds: readonly string[]): ChamberPlacements {
-  const n = result.placements.length;
-  const positions = new Float32Array(3 * n);
-  const sizes = new Float32Array(3 * n);
-  const partIndex = new Uint32Array(n);
-  const lineIndex = new Uint32Array(n);
-  const orientations = new Uint8Array(n);
-  const index = new Map(lineIds.map((id, i) => [id, i] as const));
-  result.placements.forEach((p, i) => {
-    positions[3 * i] = p.position[0];
-    positions[3 * i + 1] = p.position[1];
-    positions[3 * i + 2] = p.position[2];
-    sizes[3 * i] = p.size[0];
-    sizes[3 * i + 1] = p.size[1];
-    sizes[3 * i + 2] = p.size[2];
-    const k = index.get(p.id) ?? lineIds.length;
-    partIndex[i] = k;
-    lineIndex[i] = k;
-    orientations[i] = ORIENTATION_CODE[p.orientation] ?? 0;
-  });
-  return { positions, sizes, partIndex, lineIndex, orientations };
+  const { positions, sizes, partIndex, rotations } = toPlacementArrays(result.placements, lineIds);
+  return { positions, sizes, partIndex, lineIndex: partIndex, rotations };
 }
 
 export const EMPTY_PLACEMENTS: ChamberPlacements = {

@@ -371,7 +371,7 @@ const PartInstances = memo(function PartInstances({ list, placements, mesh, boxG
   useLayoutEffect(() => {
     const im = ref.current;
     if (!im) return;
-    instanceMatrices(placements.positions, placements.sizes, list, local, mesh ? placements.orientations : undefined, im.instanceMatrix.array as Float32Array);
+    instanceMatrices(placements.positions, placements.sizes, list, local, mesh ? placements.rotations : undefined, im.instanceMatrix.array as Float32Array);
     im.instanceMatrix.needsUpdate = true;
     im.instanceColor = new THREE.InstancedBufferAttribute(instanceColours(placements.lineIndex, list, palette), 3);
     im.userData.list = list;

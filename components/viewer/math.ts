@@ -7,6 +7,7 @@
  * 4x4 matrices stored column-major in 16 floats, the layout three.js's
  * Matrix4.elements and InstancedMesh.instanceMatrix use (element [col * 4 + row]).
  */
+import { ROTATION_COUNT, rotationMatrix } from '../../shared/geometry/rotations';
 
 export type Vec3 = [number, number, number];
 
@@ -36,39 +37,7 @@ export function sizeOf(b: Bounds): Vec3 {
 }
 
 // ---------------------------------------------------------------------------
-// Orientations
-
-/**
- * Orientation codes as the packing layout stores them: index into
- * xyz, xzy, yxz, yzx, zxy, zyx. Letter i names the part's own axis that lies
- * along chamber axis i, so "zxy" on a part of size [a, b, c] is placed as [c, a, b].
- */
-export const ORIENTATION_AXES: readonly (readonly [number, number, number])[] = [
-  [0, 1, 2],
-  [0, 2, 1],
-  [1, 0, 2],
-  [1, 2, 0],
-  [2, 0, 1],
-  [2, 1, 0],
-];
-
-/**
- * A bare permutation of axes is a mirror for the three odd permutations
- * (determinant -1): drawing it would show a left-handed part where a
- * right-handed one will be printed. Negating chamber x turns each odd one
- * into a proper rotation with the same extents; z is never negated, so the
- * two upright orientations keep the part's own top up.
- */
-export function orientationSigns(code: number): Vec3 {
-  const p = ORIENTATION_AXES[code] ?? ORIENTATION_AXES[0];
-  return permutationParity(p) === 1 ? [1, 1, 1] : [-1, 1, 1];
-}
-
-function permutationParity(p: readonly number[]): 1 | -1 {
-  let inversions = 0;
-  for (let i = 0; i < p.length; i++) for (let j = i + 1; j < p.length; j++) if (p[i] > p[j]) inversions++;
-  return inversions % 2 === 0 ? 1 : -1;
-}
+// Placing a part's mesh
 
 /** The part's local bounds that each instance maps onto its placed box. */
 export interface LocalBounds {
@@ -81,14 +50,16 @@ export const UNIT_CUBE: LocalBounds = { min: [0, 0, 0], max: [1, 1, 1] };
 
 /**
  * Column-major matrices, one per listed placement, that carry the part's
- * local bounds exactly onto the placed box: rotate by the orientation, scale
- * each chamber axis so the rotated extent equals the placed extent (a
- * rounding of 1e-6 mm in the layout would otherwise show as a sliver), then
- * move the rotated minimum corner onto the placement's minimum corner.
+ * local bounds exactly onto the placed box: rotate by the placement's
+ * rotation (one of the 24 quarter turns of shared/geometry/rotations.ts, so a
+ * part is turned, never mirrored), scale each chamber axis so the rotated
+ * extent equals the placed extent (a rounding of 1e-6 mm in the layout would
+ * otherwise show as a sliver), then move the rotated minimum corner onto the
+ * placement's minimum corner.
  *
  *   chamber_i = scale_i * sign_i * local[axis_i] + t_i
  *
- * `order` lists which placements to build, in instance order; `orientations`
+ * `order` lists which placements to build, in instance order; `rotations`
  * may be left out for boxes (a box looks the same either way).
  */
 export function instanceMatrices(
@@ -96,24 +67,25 @@ export function instanceMatrices(
   sizes: ArrayLike<number>,
   order: ArrayLike<number>,
   local: LocalBounds = UNIT_CUBE,
-  orientations?: ArrayLike<number>,
+  rotations?: ArrayLike<number>,
   out: Float32Array = new Float32Array(order.length * 16),
 ): Float32Array {
   for (let k = 0; k < order.length; k++) {
     const i = order[k];
-    const code = orientations ? orientations[i] : 0;
-    const axes = ORIENTATION_AXES[code] ?? ORIENTATION_AXES[0];
-    const signs = orientationSigns(code);
+    const code = rotations ? rotations[i] : 0;
+    const m = rotationMatrix(code < ROTATION_COUNT ? code : 0);
     const o = 16 * k;
     out.fill(0, o, o + 16);
     for (let r = 0; r < 3; r++) {
-      const a = axes[r];
+      // Row r of the rotation picks the part's own axis a (with a sign) for chamber axis r.
+      const a = m[3 * r] !== 0 ? 0 : m[3 * r + 1] !== 0 ? 1 : 2;
+      const sign = m[3 * r + a];
       const extent = local.max[a] - local.min[a];
       const scale = extent > 0 ? sizes[3 * i + r] / extent : 1;
-      const factor = scale * signs[r];
+      const factor = scale * sign;
       // The rotated-and-scaled minimum along chamber axis r comes from the
       // local minimum, or from the local maximum when the axis is negated.
-      const rotatedMin = signs[r] > 0 ? factor * local.min[a] : factor * local.max[a];
+      const rotatedMin = sign > 0 ? factor * local.min[a] : factor * local.max[a];
       out[o + a * 4 + r] = factor;
       out[o + 12 + r] = positions[3 * i + r] - rotatedMin;
     }

@@ -43,8 +43,8 @@ export interface ChamberPlacements {
   sizes: Float32Array | Float64Array;
   partIndex: Uint32Array;
   lineIndex: Uint32Array;
-  /** Orientation codes (xyz, xzy, yxz, yzx, zxy, zyx = 0..5); a mesh is drawn as placed. Boxes need none. */
-  orientations?: Uint8Array;
+  /** Rotation of each placement, 0..23 (shared/geometry/rotations.ts; 0..5 = xyz, xzy, yxz, yzx, zxy, zyx); a mesh is drawn as placed. Boxes need none. */
+  rotations?: Uint8Array;
 }
 
 /** A part's mesh for the chamber view, in the part's own axes. */

@@ -18,11 +18,16 @@ import {
 } from './plans';
 import { isEditable } from '../../shared/plans/status';
 import {
-  ORIENTATIONS,
+  decodePlacementBytes,
+  encodePlacementBytes,
+  fromPlacementArrays,
   parseInstance,
+  PlacementBytesError,
+  PLACEMENTS_FORMAT,
+  toPlacementArrays,
   validateLayout,
-  orientedSize,
   type FieldProblem,
+  type LayoutProfiles,
   type PackInstance,
   type PackResult,
   type Placement,
@@ -32,64 +37,24 @@ import { estimateLayout, InvalidInputError, type CalibrationFactors, type Layout
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView } from '../../shared/schemas/plans';
 
-/**
- * Placement bytes, format 1 (little-endian), n placements:
- *
- *   [ x0 y0 z0 x1 y1 z1 ... ]  Float64 x 3n   minimum corners (64-bit: the layout rules compare to 1e-6 mm)
- *   [ k0 k1 ... ]              Uint32 x n     index into the layout's part ids
- *   [ o0 o1 ... ]              Uint8 x n      orientation code, 0..5 = xyz xzy yxz yzx zxy zyx
- *
- * Sizes are not stored: they follow from the part's size and the orientation.
- * 29 bytes a placement, about 145 kB for 5,000.
- */
-export const PLACEMENTS_FORMAT = 1;
-
-export function encodePlacements(placements: readonly Placement[], partIds: string[]): Buffer {
-  const n = placements.length;
-  const index = new Map(partIds.map((id, k) => [id, k]));
-  const buf = Buffer.alloc(29 * n);
-  const view = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
-  const kAt = 24 * n;
-  const oAt = 28 * n;
-  for (let i = 0; i < n; i++) {
-    const p = placements[i];
-    view.setFloat64(24 * i, p.position[0], true);
-    view.setFloat64(24 * i + 8, p.position[1], true);
-    view.setFloat64(24 * i + 16, p.position[2], true);
-    view.setUint32(kAt + 4 * i, index.get(p.id)!, true);
-    view.setUint8(oAt + i, ORIENTATIONS.indexOf(p.orientation));
-  }
-  return buf;
+/** Format-2 placement bytes (shared/packing/codec.ts) as the Buffer the database driver binds. */
+export function encodePlacements(placements: readonly Placement[], partIds: string[], profiles: LayoutProfiles = {}): Buffer {
+  const arrays = toPlacementArrays(placements, partIds);
+  if (arrays.ids.length !== partIds.length) throw new Error('a placement names a part that is not in the layout');
+  const bytes = encodePlacementBytes(arrays, profiles);
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }
 
 /** Rebuilds the placements of any stored format; sizes from the part sizes of the layout's own instance. */
-export function decodePlacements(
-  format: number,
-  bytes: Buffer,
-  count: number,
-  partIds: string[],
-  sizeOf: (id: string) => Vec3 | undefined,
-): Placement[] {
-  if (format !== 1) throw new AppError(500, 'unknown_layout_format', `This layout was stored in placement format ${format}, which this server cannot read.`);
-  if (bytes.length !== 29 * count) throw new AppError(500, 'corrupt_layout', 'This layout\'s stored placements are damaged.');
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const out: Placement[] = new Array(count);
-  const kAt = 24 * count;
-  const oAt = 28 * count;
-  for (let i = 0; i < count; i++) {
-    const id = partIds[view.getUint32(kAt + 4 * i, true)];
-    const orientation = ORIENTATIONS[view.getUint8(oAt + i)] ?? 'xyz';
-    const size = sizeOf(id);
-    out[i] = {
-      id,
-      position: [view.getFloat64(24 * i, true), view.getFloat64(24 * i + 8, true), view.getFloat64(24 * i + 16, true)],
-      size: size ? orientedSize(size, orientation) : [0, 0, 0],
-      orientation,
-    };
+export function decodePlacements(format: number, bytes: Uint8Array, count: number, partIds: string[], sizeOf: (id: string) => Vec3 | undefined) {
+  try {
+    const decoded = decodePlacementBytes(format, bytes, count, partIds, sizeOf);
+    return { placements: fromPlacementArrays(decoded), areaProfile: decoded.areaProfile, contourProfile: decoded.contourProfile };
+  } catch (err) {
+    if (err instanceof PlacementBytesError) throw new AppError(500, err.code, err.message);
+    throw err;
   }
-  return out;
 }
-
 
 const close = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.max(1, Math.abs(a), Math.abs(b));
 
@@ -254,7 +219,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
               PLACEMENTS_FORMAT,
               result.placements.length,
               partIds,
-              encodePlacements(result.placements, partIds),
+              encodePlacements(result.placements, partIds, result),
               JSON.stringify(summary),
               JSON.stringify(json),
               input.locked ?? false,
@@ -274,7 +239,9 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       const row = await layoutRow(labId, planId, layoutId);
       const instance = row.instance as PackInstance;
       const sizes = new Map<string, Vec3>((instance.parts ?? []).map((p) => [p.id, p.size]));
-      const placements = decodePlacements(row.placements_format, row.placements, row.placement_count, row.part_ids, (id) => sizes.get(id));
+      const { placements, areaProfile, contourProfile } = decodePlacements(row.placements_format, row.placements, row.placement_count, row.part_ids, (id) =>
+        sizes.get(id),
+      );
       const lines = await planLines(db, row.plan_id);
       const summary: LayoutSummaryView = layoutSummary({ ...row, estimate_summary: {} }, row, linesKey(lines));
       return {
@@ -289,6 +256,8 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
           layers: row.summary.layers,
           utilization: row.summary.utilization,
           elapsedMs: row.summary.elapsedMs,
+          ...(areaProfile ? { areaProfile: Array.from(areaProfile) } : {}),
+          ...(contourProfile ? { contourProfile: Array.from(contourProfile) } : {}),
         },
         estimate: row.estimate,
       };

@@ -9,4 +9,20 @@ export { parseBischoffRatcliff } from './br';
 export { generatePowderBed, type PowderBedOptions } from './generate';
 export { splitIntoBuilds, type BuildLine, type BuildSettings, type PlannedBuild, type SplitOutcome } from './split';
 export { summariseLayout } from './engine';
-export { encodeLayout, decodeLayout, layoutTransferables, type EncodedLayout } from './codec';
+export {
+  encodeLayout,
+  decodeLayout,
+  layoutTransferables,
+  toPlacementArrays,
+  fromPlacementArrays,
+  placementRotation,
+  transformAt,
+  encodePlacementBytes,
+  decodePlacementBytes,
+  PlacementBytesError,
+  PLACEMENTS_FORMAT,
+  type EncodedLayout,
+  type PlacementArrays,
+  type DecodedPlacementBytes,
+  type LayoutProfiles,
+} from './codec';

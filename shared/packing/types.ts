@@ -4,6 +4,11 @@
  * build direction +z with z = 0 on the chamber floor (ISO/ASTM 52921).
  */
 
+import type { Transform12 } from '../geometry/rotations';
+
+/** The 12 numbers of a 3MF transform (3MF Core §3.3, row vectors: p' = [x y z 1] M). */
+export type { Transform12 };
+
 export const INSTANCE_FORMAT = 'pack-instance/1' as const;
 export const RESULT_FORMAT = 'pack-result/1' as const;
 
@@ -73,6 +78,12 @@ export interface Placement {
   /** Placed extent along chamber x, y, z (after the orientation). */
   size: Vec3;
   orientation: Orientation;
+  /**
+   * Parts packed with their true shapes: the transform from the part's file
+   * coordinates to the chamber. Its 3x3 block is one of the 24 quarter-turn
+   * rotations (shared/geometry/rotations.ts), whose extents `orientation` names.
+   */
+  transform?: Transform12;
 }
 
 export interface Unplaced {
@@ -91,6 +102,10 @@ export interface PackResult {
   layers: number;
   utilization: number;
   elapsedMs: number;
+  /** Summed cross-section area (mm^2) of the placed parts at the middle of each layer from z = 0, when known from their shapes. */
+  areaProfile?: number[];
+  /** Summed contour length (mm) of the placed parts in each layer from z = 0, when known from their shapes. */
+  contourProfile?: number[];
 }
 
 /** A problem found at a boundary, naming the field, e.g. `parts[3].size[1]`. */

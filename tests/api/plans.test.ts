@@ -249,6 +249,26 @@ describe('layouts', () => {
     expect(back.body.result.placements).toEqual(result.placements);
   });
 
+  test('a layout stored in the first placement format (29 bytes a placement, no header) still opens', async () => {
+    const { agent, labId, plan, machine, material } = await planReady('format1');
+    const instance = planInstance(plan.view, machine, material);
+    const result = gridLayout(instance);
+    const { id } = (await agent.post(`/api/labs/${labId}/plans/${plan.id}/layouts`).send({ instance, result })).body;
+    // Written as the first format laid them out: Float64 corners, Uint32 part indices, Uint8 orientation codes, little-endian.
+    const partIds = instance.parts.map((p) => p.id);
+    const n = result.placements.length;
+    const bytes = Buffer.alloc(29 * n);
+    result.placements.forEach((p, i) => {
+      p.position.forEach((v, a) => bytes.writeDoubleLE(v, 24 * i + 8 * a));
+      bytes.writeUInt32LE(partIds.indexOf(p.id), 24 * n + 4 * i);
+      bytes.writeUInt8(['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'].indexOf(p.orientation), 28 * n + i);
+    });
+    await running.db.sequelize.query('UPDATE layouts SET placements_format = 1, placements = $2 WHERE id = $1', { bind: [id, bytes] });
+    const back = await agent.get(`/api/labs/${labId}/plans/${plan.id}/layouts/${id}`);
+    expect(back.status).toBe(200);
+    expect(back.body.result.placements).toEqual(result.placements);
+  });
+
   test('choosing, deleting and going stale when the lines change', async () => {
     const { agent, labId, plan, machine, material, req } = await planReady('choose');
     const base = `/api/labs/${labId}/plans/${plan.id}`;

@@ -1,7 +1,6 @@
 import fc from 'fast-check';
 import {
   LINE_PALETTE,
-  ORIENTATION_AXES,
   UNIT_CUBE,
   boundsOf,
   fitCamera,
@@ -19,6 +18,7 @@ import {
   transformPoint,
   type Vec3,
 } from '../../../components/viewer/math';
+import { ROTATION_COUNT, UPRIGHT_ROTATIONS, rotatedExtent } from '../../../shared/geometry/rotations';
 
 const corners = (min: ArrayLike<number>, max: ArrayLike<number>): Vec3[] => {
   const out: Vec3[] = [];
@@ -53,9 +53,8 @@ describe('instance matrices', () => {
     // The packing contract: "zxy" on a part of size [a, b, c] is placed as [c, a, b].
     const local = { min: [-3, 2, 1], max: [21, 14, 9] }; // size [24, 12, 8], off the origin on purpose
     const own = [24, 12, 8];
-    for (let code = 0; code < 6; code++) {
-      const axes = ORIENTATION_AXES[code];
-      const placed = [own[axes[0]], own[axes[1]], own[axes[2]]];
+    for (let code = 0; code < ROTATION_COUNT; code++) {
+      const placed = rotatedExtent(code, own);
       const m = instanceMatrices([7, 8, 9], placed, [0], local, [code]);
       const b = boundsOf(corners(local.min, local.max).flatMap((c) => transformPoint(m, 0, c)));
       for (let a = 0; a < 3; a++) {
@@ -63,21 +62,19 @@ describe('instance matrices', () => {
         expect(b.max[a] - b.min[a]).toBeCloseTo(placed[a], 4);
       }
     }
-    const zxy = ORIENTATION_AXES[4];
-    expect([own[zxy[0]], own[zxy[1]], own[zxy[2]]]).toEqual([8, 24, 12]);
+    expect(rotatedExtent(4, own)).toEqual([8, 24, 12]);
   });
 
   it('turn a part rather than mirror it, so a printed part is drawn with its own handedness', () => {
     const local = { min: [0, 0, 0], max: [24, 12, 8] };
-    for (let code = 0; code < 6; code++) {
-      const axes = ORIENTATION_AXES[code];
-      const m = instanceMatrices([0, 0, 0], [local.max[axes[0]], local.max[axes[1]], local.max[axes[2]]], [0], local, [code]);
+    for (let code = 0; code < ROTATION_COUNT; code++) {
+      const m = instanceMatrices([0, 0, 0], rotatedExtent(code, local.max), [0], local, [code]);
       expect(det3(m, 0)).toBeGreaterThan(0);
     }
   });
 
-  it('keep the part\u2019s own top up in the two upright orientations', () => {
-    for (const code of [0, 2]) {
+  it('keep the part\u2019s own top up in the two upright orientations and every upright turn', () => {
+    for (const code of [0, 2, ...UPRIGHT_ROTATIONS]) {
       const m = instanceMatrices([0, 0, 0], [10, 10, 10], [0], { min: [0, 0, 0], max: [10, 10, 10] }, [code]);
       // local +z maps to chamber +z
       expect(m[10]).toBeCloseTo(1, 6);

@@ -60,7 +60,7 @@ describe('packing worker protocol', () => {
       if (!outcome.ok) return;
       expect(outcome.cancelled).toBe(false);
       expect(Object.prototype.toString.call(outcome.layout.positions)).toBe('[object Float64Array]');
-      expect(Object.prototype.toString.call(outcome.layout.orientations)).toBe('[object Uint8Array]');
+      expect(Object.prototype.toString.call(outcome.layout.rotations)).toBe('[object Uint8Array]');
       expect(Object.prototype.toString.call(outcome.layout.partIndex)).toBe('[object Uint32Array]');
       const decoded = decodeLayout(outcome.layout);
       expect(decoded.ok).toBe(true);
