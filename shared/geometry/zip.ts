@@ -101,8 +101,14 @@ export function readZipDirectory(bytes: Uint8Array): ZipEntry[] | null {
       const len = u16(bytes, e + 2);
       if (id === 0x0001) {
         let f = e + 4;
-        if (size === 0xffffffff && f + 8 <= e + 4 + len) (size = u64(bytes, f)), (f += 8);
-        if (compressedSize === 0xffffffff && f + 8 <= e + 4 + len) (compressedSize = u64(bytes, f)), (f += 8);
+        if (size === 0xffffffff && f + 8 <= e + 4 + len) {
+          size = u64(bytes, f);
+          f += 8;
+        }
+        if (compressedSize === 0xffffffff && f + 8 <= e + 4 + len) {
+          compressedSize = u64(bytes, f);
+          f += 8;
+        }
         if (localOffset === 0xffffffff && f + 8 <= e + 4 + len) localOffset = u64(bytes, f);
       }
       e += 4 + len;
