@@ -24,6 +24,7 @@ import { partsService } from './services/parts';
 import { requestsService } from './services/requests';
 import { plansService } from './services/plans';
 import { layoutsService } from './services/layouts';
+import { layoutProfilesService } from './services/layoutProfiles';
 import { reviewService } from './services/review';
 import { calibrationService } from './services/calibration';
 import { queueService } from './services/queue';
@@ -55,7 +56,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const requests = requestsService(db, parts);
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);
-  const layouts = layoutsService(db, { calibrationFor: calibration.lookup });
+  const layouts = layoutsService(db, { calibrationFor: calibration.lookup, profilesFor: layoutProfilesService(db, { storage }) });
   const review = reviewService(db, { plans, appUrl: config.appUrl });
   const queue = queueService(db, { calibration });
   const runs = runsService(db);

@@ -8,6 +8,7 @@ import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
+import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
 import type { FileMeasureResult, MeasureReply, MeasureRequest } from './protocol';
 
 export interface MeshPoolOptions {
@@ -21,6 +22,8 @@ interface Job {
   request: Omit<MeasureRequest, 'id'>;
   resolve: (result: FileMeasureResult) => void;
   reject: (error: Error) => void;
+  /** Set for a layout profile job: its answer goes here instead. */
+  resolveProfile?: (result: ProfileLayoutResult) => void;
 }
 
 interface Slot {
@@ -67,6 +70,24 @@ export class MeshPool {
     });
   }
 
+  /**
+   * Slices a layout's parts from their files in a worker (the request thread
+   * only reads the files). A worker that fails or runs out of time rejects.
+   */
+  profile(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
+    if (this.closed) return Promise.reject(new Error('the mesh pool is closed'));
+    return new Promise((resolve, reject) => {
+      const request = { profile: job, options: { filename: 'layout profile' } };
+      this.queue.push({
+        request,
+        resolve: (r) => reject(new Error(r.ok ? 'unexpected measure result' : r.problems[0].message)),
+        resolveProfile: resolve,
+        reject,
+      });
+      this.dispatch();
+    });
+  }
+
   async close(): Promise<void> {
     this.closed = true;
     for (const job of this.queue.splice(0)) job.reject(new Error('the mesh pool is closed'));
@@ -102,7 +123,10 @@ export class MeshPool {
       clearTimeout(job.timer);
       slot.job = null;
       if ('error' in reply) job.reject(new Error(`measuring ${job.request.options.filename} failed: ${reply.error}`));
-      else job.resolve(reply.result);
+      else if ('profile' in reply) {
+        if (job.resolveProfile) job.resolveProfile(reply.profile);
+        else job.reject(new Error('a measuring job got a profile back'));
+      } else job.resolve(reply.result);
       this.dispatch();
     });
     worker.on('error', (error) => this.replace(slot, { code: 'measure-failed', message: `${quoteName(slot.job?.request.options.filename ?? '')} could not be measured (${error.message}).` }));
@@ -180,4 +204,9 @@ export async function closeMeshPool(): Promise<void> {
  */
 export function measureFile(input: string | Uint8Array, options: MeasureOptions): Promise<FileMeasureResult> {
   return meshPool().measure(input, options);
+}
+
+/** Slices a layout's parts from their files in a worker thread of the process-wide pool. */
+export function profileLayout(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
+  return meshPool().profile(job);
 }

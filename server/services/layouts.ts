@@ -33,7 +33,8 @@ import {
   type Placement,
   type Vec3,
 } from '../../shared/packing';
-import { estimateLayout, InvalidInputError, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
+import { estimateLayout, InvalidInputError, layerCount, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
+import type { MeshProfiles, ProfilesLookup } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView } from '../../shared/schemas/plans';
 
@@ -121,7 +122,16 @@ function estimateJson(e: LayoutEstimate) {
 /** Estimate factors fitted from the machine's recorded runs, once runs are recorded. */
 export type CalibrationLookup = (labId: string, machineId: string) => Promise<CalibrationFactors | undefined>;
 
-export type LayoutsDeps = { calibrationFor?: CalibrationLookup };
+/** Where the layout's per-layer areas came from, stored with its estimate for every screen that shows it. */
+export function profileInfo(profiles: MeshProfiles | null) {
+  return {
+    profileSource: profiles && profiles.meshPlacements > 0 ? ('mesh' as const) : ('box' as const),
+    profileBoxPlacements: profiles ? profiles.boxPlacements : null,
+    profileBoxParts: profiles ? profiles.boxParts : [],
+  };
+}
+
+export type LayoutsDeps = { calibrationFor?: CalibrationLookup; profilesFor?: ProfilesLookup };
 
 /** A plan's layouts: saving a packing (checked and estimated), reading it back, choosing, labelling, deleting. */
 export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
@@ -168,6 +178,9 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
         const volumeOf = new Map(lines.map((l) => [l.request_line_id, l.volume_mm3]));
         let partsVolumeMm3 = 0;
         for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
+        // Sections of the real meshes, sliced in the mesh workers; the boxes when they cannot be had.
+        const layers = layerCount(result.height, instance.margin.top, instance.layerHeight);
+        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction) : null;
         let estimate: LayoutEstimate;
         try {
           const { id: _m, ...machineProfile } = machine;
@@ -180,6 +193,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
             calibration,
             partsVolumeMm3,
             partCount: result.placements.length,
+            ...(profiles && profiles.meshPlacements > 0 ? { areaPerLayerMm2: profiles.areaPerLayerMm2 } : {}),
           });
         } catch (err) {
           if (err instanceof InvalidInputError) refuse(err.problems);
@@ -202,7 +216,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
           transaction,
         });
         const label = input.label ?? `Layout ${Number(count.n) + 1}`;
-        const json = estimateJson(estimate);
+        const json = { ...estimateJson(estimate), ...profileInfo(profiles) };
         const [rows] = (await sequelize.query(
           `INSERT INTO layouts (id, plan_id, label, settings, instance, lines_key, result_format, placements_format, placement_count,
                                 part_ids, placements, summary, estimate, locked, created_by, created_at)

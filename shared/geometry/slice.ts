@@ -517,9 +517,10 @@ export function layoutProfiles(input: {
     }
     boxPlacements++;
   });
-  // Sums of signed areas can leave a rounding residue where nothing is: an empty layer reads 0.
+  // Sums of signed areas can leave a rounding residue where nothing is: an empty layer reads 0. (An outward
+  // mesh's sections are never negative; callers turn inside-out meshes round first.)
   for (let L = 0; L < layers; L++) {
-    if (Math.abs(areaProfile[L]) < 1e-9) areaProfile[L] = 0;
+    if (areaProfile[L] < 1e-9) areaProfile[L] = 0;
     if (Math.abs(contourProfile[L]) < 1e-9) contourProfile[L] = 0;
   }
   return { areaProfile, contourProfile, meshPlacements, boxPlacements };

@@ -177,6 +177,16 @@ describe('layouts', () => {
     const result = gridLayout(instance);
     const res = await agent.post(`/api/labs/${labId}/plans/${plan.id}/layouts`).send({ instance, result, label: 'Grid' });
     expect(res.status).toBe(201);
+    // The parts' files are real boxes, so their sections are their footprints, in each layer whose middle lies inside them.
+    const footprints = new Array(result.layers).fill(0);
+    for (const p of result.placements) {
+      for (let L = 0; L < result.layers; L++) {
+        const z = (L + 0.5) * instance.layerHeight;
+        if (z > p.position[2] && z <= p.position[2] + p.size[2]) footprints[L] += p.size[0] * p.size[1];
+      }
+    }
+    expect(res.body.estimate.profileSource).toBe('mesh');
+    res.body.estimate.areaPerLayerMm2.forEach((a: number, L: number) => expect(a).toBeCloseTo(footprints[L], 3));
     // The same shared estimate the editor shows, on the plan's machine and material with the parts' own volumes.
     const expected = estimateLayout({
       layout: { placements: result.placements, heightMm: result.height, margin: instance.margin as any },
@@ -185,6 +195,7 @@ describe('layouts', () => {
       layerHeightMm: instance.layerHeight,
       partsVolumeMm3: 20 * 8000 + 50 * 480,
       partCount: 70,
+      areaPerLayerMm2: footprints,
     });
     expect(res.body.estimate.layerCount).toBe(result.layers);
     expect(res.body.estimate.partCount).toBe(70);

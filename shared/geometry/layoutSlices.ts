@@ -1,0 +1,172 @@
+/**
+ * A kept or working layout's per-layer area and contour from the parts' stored
+ * mesh files: the work a worker thread (server) or web worker (editor) does
+ * before the estimates.
+ *
+ * A part's own axes in a plan are its file's coordinates turned by the part's
+ * stored quarter turns (about x, then y, then z, fixed axes: R = Rz Ry Rx) and
+ * moved so its bounding box starts at the origin: the "resting" mesh, whose
+ * extent is the part's size in the plan. A box placement (orientation code and
+ * minimum corner) becomes the rotation of that code (the 24-rotation table's
+ * indices 0..5) moved to the corner; a placement with a 3MF transform (a shape
+ * layout) uses the transform, which applies to the resting mesh.
+ */
+import { parseMeshFile } from './measure';
+import { placementTransform, rotationIndex } from './rotations';
+import { layoutProfiles, SliceCache, type LayoutProfiles, type ProfilePlacement, type ProfileSource } from './slice';
+import type { LengthUnit, MeshData } from './types';
+
+/** R = Rz Ry Rx for quarter turns about x, then y, then z (fixed axes), as the parts store them. */
+export function quarterTurnMatrix(rotationDeg: readonly number[]): number[][] {
+  const q = (d: number) => ((Math.round(d / 90) % 4) + 4) % 4;
+  const cos = (d: number) => [1, 0, -1, 0][q(d)];
+  const sin = (d: number) => [0, 1, 0, -1][q(d)];
+  const [ax, ay, az] = rotationDeg;
+  const rx = [[1, 0, 0], [0, cos(ax), -sin(ax)], [0, sin(ax), cos(ax)]];
+  const ry = [[cos(ay), 0, sin(ay)], [0, 1, 0], [-sin(ay), 0, cos(ay)]];
+  const rz = [[cos(az), -sin(az), 0], [sin(az), cos(az), 0], [0, 0, 1]];
+  const mul = (a: number[][], b: number[][]) => a.map((row) => [0, 1, 2].map((j) => row.reduce((s, v, k) => s + v * b[k][j], 0)));
+  return mul(rz, mul(ry, rx));
+}
+
+/** The mesh turned by the part's stored quarter turns, its bounding box moved to start at the origin. */
+export function restingMesh(mesh: MeshData, rotationDeg: readonly number[]): MeshData & { extentMm: [number, number, number] } {
+  const r = quarterTurnMatrix(rotationDeg);
+  const p = mesh.positions;
+  const out = new Float64Array(p.length);
+  const min = [Infinity, Infinity, Infinity];
+  const max = [-Infinity, -Infinity, -Infinity];
+  for (let v = 0; v < p.length; v += 3) {
+    for (let k = 0; k < 3; k++) {
+      const c = r[k][0] * p[v] + r[k][1] * p[v + 1] + r[k][2] * p[v + 2];
+      out[v + k] = c;
+      if (c < min[k]) min[k] = c;
+      if (c > max[k]) max[k] = c;
+    }
+  }
+  for (let v = 0; v < out.length; v += 3) for (let k = 0; k < 3; k++) out[v + k] -= min[k];
+  return { positions: out, indices: mesh.indices, extentMm: [max[0] - min[0], max[1] - min[1], max[2] - min[2]] };
+}
+
+/** The same mesh with its triangles turned outward when they all face in (negative volume), so its sections count positive. */
+export function outwardFacing<M extends MeshData>(mesh: M): M {
+  const p = mesh.positions;
+  const idx = mesh.indices;
+  let six = 0;
+  for (let f = 0; f + 2 < idx.length; f += 3) {
+    const a = 3 * idx[f];
+    const b = 3 * idx[f + 1];
+    const c = 3 * idx[f + 2];
+    six +=
+      p[a] * (p[b + 1] * p[c + 2] - p[b + 2] * p[c + 1]) - p[a + 1] * (p[b] * p[c + 2] - p[b + 2] * p[c]) + p[a + 2] * (p[b] * p[c + 1] - p[b + 1] * p[c]);
+  }
+  if (six >= 0) return mesh;
+  const flipped = idx.slice();
+  for (let f = 0; f + 2 < flipped.length; f += 3) [flipped[f + 1], flipped[f + 2]] = [flipped[f + 2], flipped[f + 1]];
+  return { ...mesh, indices: flipped };
+}
+
+/** One distinct part of the layout and its stored file. */
+export interface ProfilePartFile {
+  /** Names the part's mesh for the caches: file hash, part index in the file and stored turns. */
+  key: string;
+  /** The file's bytes; null when the file could not be read (the part then counts as its box). */
+  bytes: Uint8Array | null;
+  filename: string;
+  unit: LengthUnit;
+  /** A 3MF read as one part per build item. */
+  split: boolean;
+  partIndex: number;
+  rotationDeg: readonly number[];
+  /** A mesh that is not watertight and consistently oriented has no well-defined sections: it counts as its box. */
+  watertight: boolean;
+}
+
+export interface ProfileLayoutPlacement {
+  part: number;
+  /** Box orientation code (xyz ... zyx) or a signed rotation code; ignored when `transform` is given. */
+  orientation?: string;
+  /** Minimum corner of the placed box (chamber mm). */
+  position: readonly number[];
+  /** Extent of the placed box (chamber mm). */
+  size: readonly number[];
+  /** 3MF transform taking the resting mesh to the chamber (shape layouts). */
+  transform?: readonly number[];
+}
+
+export interface ProfileLayoutJob {
+  parts: ProfilePartFile[];
+  placements: ProfileLayoutPlacement[];
+  layerHeightMm: number;
+  layers: number;
+}
+
+export interface ProfileLayoutResult extends LayoutProfiles {
+  /** Why a part counted as its box, one line a part. */
+  boxReasons: { part: number; reason: string }[];
+}
+
+/** Resting meshes already read, by key, so a repeated layout does not parse its files again. */
+export class RestingMeshCache {
+  private entries = new Map<string, (MeshData & { extentMm: [number, number, number] }) | null>();
+  private triangles = 0;
+
+  constructor(private readonly maxTriangles = 4_000_000) {}
+
+  get(key: string): (MeshData & { extentMm: [number, number, number] }) | null | undefined {
+    return this.entries.get(key);
+  }
+
+  set(key: string, mesh: (MeshData & { extentMm: [number, number, number] }) | null): void {
+    this.entries.set(key, mesh);
+    this.triangles += mesh ? mesh.indices.length / 3 : 0;
+    for (const [k, m] of this.entries) {
+      if (this.triangles <= this.maxTriangles || k === key) break;
+      this.entries.delete(k);
+      this.triangles -= m ? m.indices.length / 3 : 0;
+    }
+  }
+}
+
+/**
+ * Reads each part's file (once), slices the placed parts at the layout's layer
+ * middles and sums them. Parts whose file is missing, unreadable or not
+ * watertight count as their boxes, with the reason.
+ */
+export function profileLayoutFromFiles(
+  job: ProfileLayoutJob,
+  caches: { meshes?: RestingMeshCache; slices?: SliceCache } = {},
+): ProfileLayoutResult {
+  const meshes = caches.meshes ?? new RestingMeshCache();
+  const boxReasons: { part: number; reason: string }[] = [];
+  const sources: ProfileSource[] = job.parts.map((f, i) => {
+    if (!f.watertight) {
+      boxReasons.push({ part: i, reason: `"${f.filename}" is not a closed, consistently oriented mesh, so its sections are not defined` });
+      return { key: f.key, mesh: null };
+    }
+    let mesh = meshes.get(f.key);
+    if (mesh === undefined) {
+      if (!f.bytes) {
+        boxReasons.push({ part: i, reason: `the stored file "${f.filename}" could not be read` });
+        return { key: f.key, mesh: null };
+      }
+      const parsed = parseMeshFile(f.bytes, { filename: f.filename, unit: f.unit, splitObjects: f.split });
+      const part = parsed.ok ? parsed.parts[f.partIndex] : undefined;
+      mesh = part ? outwardFacing(restingMesh(part, f.rotationDeg)) : null;
+      meshes.set(f.key, mesh);
+    }
+    if (!mesh) boxReasons.push({ part: i, reason: `"${f.filename}" cannot be read as a mesh` });
+    return { key: f.key, mesh };
+  });
+  const placements: ProfilePlacement[] = job.placements.map((p) => {
+    const mesh = sources[p.part]?.mesh as (MeshData & { extentMm: number[] }) | null | undefined;
+    let transform: readonly number[] | null = p.transform ?? null;
+    if (!transform && mesh && p.orientation !== undefined) {
+      const r = rotationIndex(p.orientation);
+      if (r >= 0) transform = placementTransform(r, [0, 0, 0], mesh.extentMm, p.position);
+    }
+    return { part: p.part, transform, position: p.position, size: p.size };
+  });
+  const profiles = layoutProfiles({ parts: sources, placements, layerHeightMm: job.layerHeightMm, layers: job.layers, cache: caches.slices });
+  return { ...profiles, boxReasons };
+}
