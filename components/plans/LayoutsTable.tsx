@@ -93,6 +93,7 @@ export function LayoutsTable({
                 {r.working ? <Badge label="Not kept" tone="amber" /> : null}
                 {r.locked ? <Badge label="Locked" /> : null}
                 {!r.matchesPlan ? <Badge label="Lines changed" tone="danger" /> : null}
+                {r.numbers?.profileSource === 'box' ? <Badge label="Box estimate" tone="amber" testID={`layout-box-estimate-${r.working ? 'working' : r.id}`} /> : null}
               </View>
             </View>
             {METRICS.map((m) => {
@@ -120,7 +121,7 @@ export function LayoutsTable({
           </Pressable>
         ))}
       </View>
-      <Text variant="caption" color="inkFaint">Bold: the best of the layouts on that row. A layout whose lines changed can no longer be chosen.</Text>
+      <Text variant="caption" color="inkFaint">Bold: the best of the layouts on that row. A layout whose lines changed can no longer be chosen. Kept layouts are estimated from the parts' sliced shapes; a box estimate counts each part as its bounding box and reads high.</Text>
     </View>
   );
 }

@@ -2,7 +2,7 @@ import { StyleSheet, View } from 'react-native';
 import { AreaPerLayerChart } from '../charts';
 import { colors, radius, spacing } from '../theme';
 import { Figure, Text } from '../ui';
-import type { ShownNumbers } from './estimate';
+import { profileSourceText, type ShownNumbers } from './estimate';
 import { hours, kg, mm, money, percent } from './format';
 
 function Cell({ label, value, testID, tone }: { label: string; value: string; testID?: string; tone?: 'danger' }) {
@@ -48,6 +48,9 @@ export function NumbersPane({ numbers, title, bedAreaMm2, cutLayer, note }: { nu
       {note ? <Text variant="caption" color="inkFaint">{note}</Text> : null}
       <View style={{ gap: spacing.xs }}>
         <Text variant="label">Cross-section area per layer</Text>
+        <Text variant="caption" color={n.profileSource === 'box' ? 'amber' : 'inkMuted'} testID="num-profile-source">
+          {profileSourceText(n)}
+        </Text>
         <AreaPerLayerChart areaPerLayerMm2={n.areaPerLayerMm2} layerHeightMm={n.layerHeightMm} jumps={n.areaJumps} bedAreaMm2={bedAreaMm2} cutLayer={cutLayer} heightPx={110} />
       </View>
       <Text variant="caption" color="inkFaint">

@@ -20,6 +20,11 @@ export interface ShownNumbers {
   areaPerLayerMm2: ArrayLike<number>;
   areaJumps: AreaJump[] | undefined;
   layerHeightMm: number;
+  /** Where the per-layer areas (and so the scan time and the heat-load warnings) came from. */
+  profileSource: 'mesh' | 'box';
+  /** Placements counted by their box although the layout is estimated from the meshes, and which parts, why. */
+  boxPlacements: number;
+  boxParts: { name: string; reason: string }[];
 }
 
 function pick<T>(keys: string[], from: Record<string, unknown>): T {
@@ -55,7 +60,26 @@ export function numbersFromEstimate(e: LayoutEstimate | Record<string, unknown>,
     areaPerLayerMm2: est.areaPerLayerMm2 ?? [],
     areaJumps: Array.isArray(est.areaJumps) ? est.areaJumps : undefined,
     layerHeightMm: est.layerHeightMm,
+    ...profileOf(e as Record<string, unknown>),
   };
+}
+
+/** The estimate's profile source as stored with it; estimates made before the meshes were sliced are box estimates. */
+function profileOf(e: Record<string, unknown>): Pick<ShownNumbers, 'profileSource' | 'boxPlacements' | 'boxParts'> {
+  const source = e.profileSource === 'mesh' ? 'mesh' : 'box';
+  const boxPlacements = typeof e.profileBoxPlacements === 'number' ? e.profileBoxPlacements : 0;
+  const boxParts = Array.isArray(e.profileBoxParts)
+    ? (e.profileBoxParts as unknown[]).filter((p): p is { name: string; reason: string } => typeof (p as { name?: unknown })?.name === 'string' && typeof (p as { reason?: unknown })?.reason === 'string')
+    : [];
+  return { profileSource: source, boxPlacements, boxParts };
+}
+
+/** One line saying what the per-layer areas are made of, for every place that shows the estimate. */
+export function profileSourceText(n: Pick<ShownNumbers, 'profileSource' | 'boxPlacements' | 'boxParts'>): string {
+  if (n.profileSource === 'box') return 'Box estimate: every part counted as its bounding box (the parts\' shapes are not sliced for this layout), so scan time and heat load read high.';
+  if (n.boxPlacements === 0) return "From the parts' shapes: each part's mesh sliced at the middle of every layer.";
+  const which = n.boxParts.map((p) => `${p.name} (${p.reason})`).join('; ');
+  return `From the parts' shapes, except ${n.boxPlacements} placed ${n.boxPlacements === 1 ? 'part' : 'parts'} counted as boxes${which ? `: ${which}` : ''}.`;
 }
 
 /** The same estimate the server makes, for a layout still on screen only; null when the profiles cannot be estimated. */

@@ -76,7 +76,7 @@ test('a layout of open housings and gears is estimated from their sections, far 
   // a few layers' worth of area here), where the boxes would hold several times more.
   const area: number[] = res.body.estimate.areaPerLayerMm2;
   expect(area).toHaveLength(result.layers);
-  const h = instance.layerHeight;
+  const h = instance.layerHeight!;
   const sliced = area.reduce((s, a) => s + a, 0) * h;
   const volume = 4 * measureMesh(housing).volumeMm3 + 6 * measureMesh(gear).volumeMm3;
   expect(Math.abs(sliced - volume) / volume).toBeLessThan(0.01);

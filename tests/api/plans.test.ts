@@ -181,7 +181,7 @@ describe('layouts', () => {
     const footprints = new Array(result.layers).fill(0);
     for (const p of result.placements) {
       for (let L = 0; L < result.layers; L++) {
-        const z = (L + 0.5) * instance.layerHeight;
+        const z = (L + 0.5) * instance.layerHeight!;
         if (z > p.position[2] && z <= p.position[2] + p.size[2]) footprints[L] += p.size[0] * p.size[1];
       }
     }
