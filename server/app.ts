@@ -16,6 +16,7 @@ import { partRoutes } from './http/routes/parts';
 import { requestRoutes } from './http/routes/requests';
 import { planRoutes } from './http/routes/plans';
 import { runRoutes } from './http/routes/runs';
+import { powderRoutes } from './http/routes/powder';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
 import { invitesService } from './services/invites';
@@ -29,6 +30,7 @@ import { reviewService } from './services/review';
 import { calibrationService } from './services/calibration';
 import { queueService } from './services/queue';
 import { runsService } from './services/runs';
+import { powderService } from './services/powder';
 import { sheetService } from './services/sheet';
 import { export3mfService } from './services/export3mf';
 import { createStorage } from './storage';
@@ -59,10 +61,11 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const layouts = layoutsService(db, { calibrationFor: calibration.lookup, profilesFor: layoutProfilesService(db, { storage }) });
   const review = reviewService(db, { plans, appUrl: config.appUrl });
   const queue = queueService(db, { calibration });
-  const runs = runsService(db);
+  const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl });
+  const runs = runsService(db, { drawPowder: powder.drawForRun });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
-  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf };
+  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -98,6 +101,7 @@ export function createApp(deps: AppDeps) {
   api.use(requestRoutes(deps));
   api.use(planRoutes(deps.services));
   api.use(runRoutes(deps.services));
+  api.use(powderRoutes(deps.services));
   api.use(notFoundRoute);
   api.use(errorHandler(deps.log));
   app.use('/api', api);

@@ -87,7 +87,15 @@ type RunContext = {
  * plan's status, made under the plan's row lock, so two operators pressing
  * the same button at once cannot both move it.
  */
-export function runsService(db: Database) {
+/** What a start takes from the powder stock, in the start's transaction (it may refuse with a 409). */
+export type RunHooks = {
+  drawPowder?: (
+    d: { labId: string; planId: string; runId: string; materialId: string; freshKg: number; reusedKg: number; lots?: StartRunInput['lots']; at: Date; userId: string },
+    transaction: Transaction,
+  ) => Promise<void>;
+};
+
+export function runsService(db: Database, hooks: RunHooks = {}) {
   const { sequelize } = db;
 
   async function load(labId: string, planId: string, plan: PlanRow | null, transaction?: Transaction): Promise<RunContext> {
@@ -240,12 +248,13 @@ export function runsService(db: Database) {
         throw badRequest(`${field} is ${loaded} kg, but the build needs at least ${needed.toFixed(2)} kg of ${kind} powder: load more before starting`, field);
       }
     }
-    await sequelize.query(
+    const [inserted] = await sequelize.query<{ id: string }>(
       `INSERT INTO runs (id, plan_id, lab_id, machine_id, layout_id, checklist, fresh_powder_loaded_kg, reused_powder_loaded_kg,
                          started_at, started_by, estimated_print_hours, estimated_cooling_hours, print_time_scale_used,
                          cooling_scale_used, created_at, updated_at)
-       VALUES (gen_random_uuid(), $1, $2, $3, $4, $5::jsonb, $6, $7, $8, $9, $10, $11, $12, $13, now(), now())`,
+       VALUES (gen_random_uuid(), $1, $2, $3, $4, $5::jsonb, $6, $7, $8, $9, $10, $11, $12, $13, now(), now()) RETURNING id`,
       {
+        type: QueryTypes.SELECT,
         bind: [
           c.plan.id,
           c.plan.lab_id,
@@ -263,6 +272,10 @@ export function runsService(db: Database) {
         ],
         transaction,
       },
+    );
+    await hooks.drawPowder?.(
+      { labId: c.plan.lab_id, planId: c.plan.id, runId: inserted.id, materialId: c.plan.material_id, freshKg: input.freshPowderKg, reusedKg: input.reusedPowderKg, lots: input.lots, at: when, userId: user.id },
+      transaction,
     );
     // Started plans leave the queue; the queue's positions count only what waits.
     await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [c.plan.id], transaction });

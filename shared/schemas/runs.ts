@@ -20,6 +20,8 @@ export const startRunSchema = z.strictObject({
   checklist: z.strictObject({ chamberInPlace: confirmed, opticalWindowClean: confirmed }, { error: 'is required: confirm the chamber and the optical window' }),
   freshPowderKg: kg,
   reusedPowderKg: kg,
+  /** Fresh lots drawn and how much from each; left out, the stock's oldest lots first. */
+  lots: z.array(z.strictObject({ lotId: uuid, kg: kg.refine((v) => v > 0, 'must be more than 0 kg') })).max(50, 'must be at most 50 lots').optional(),
   at,
 });
 export const printEndSchema = z.strictObject({ to: z.literal('cooling'), at });

@@ -4,6 +4,7 @@ import * as m0002 from './0002-parts-requests';
 import * as m0003 from './0003-plans';
 import * as m0004 from './0004-runs';
 import * as m0005 from './0005-file-key-locks';
+import * as m0006 from './0006-powder';
 
 export type Migration = {
   name: string;
@@ -18,4 +19,5 @@ export const migrations: Migration[] = [
   { name: '0003-plans', ...m0003 },
   { name: '0004-runs', ...m0004 },
   { name: '0005-file-key-locks', ...m0005 },
+  { name: '0006-powder', ...m0006 },
 ];

@@ -1,6 +1,7 @@
 import { DataTypes, type ModelStatic, type Model, type Sequelize } from 'sequelize';
 import { planModels, type PlanModels } from './plans';
 import { runModels, type RunModels } from './runs';
+import { powderModels, type PowderModels } from './powder';
 
 type AnyModel = ModelStatic<Model<any, any>>;
 export type Models = {
@@ -15,7 +16,8 @@ export type Models = {
   Request: AnyModel;
   RequestLine: AnyModel;
 } & PlanModels &
-  RunModels;
+  RunModels &
+  PowderModels;
 
 const base = { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' } as const;
 
@@ -82,7 +84,7 @@ export function initModels(sequelize: Sequelize): Models {
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Lab, { foreignKey: 'labId', as: 'lab' });
-  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize) };
+  return { User, Lab, Membership, Invite, Machine, Material, ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize) };
 }
 
 /** Stored files, parts, requests and request lines. */

@@ -1,0 +1,5 @@
+export * from './age';
+export * from './stock';
+export * from './propose';
+export * from './forecast';
+export * from './policy';
