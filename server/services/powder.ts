@@ -3,7 +3,7 @@ import type { Database } from '../db';
 import { powderRepository, type Check, type Lot, type Movement } from '../db/repositories/powder';
 import type { Mailer } from '../mail/mailer';
 import { AppError, badRequest, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import type { LabsService } from './labs';
 import type { QueueService } from './queue';
 import type { Actor } from './plans';
@@ -54,8 +54,8 @@ const BROKEN_OUT = new Set(['breakout', 'finishing', 'done']);
  * The powder a layout's estimate asks for. The estimate is stored as the
  * estimate code wrote it; both the older and the newer field names are read.
  */
-export function plannedPowder(estimate: Record<string, any> | null): { freshKg: number; reusedKg: number } | null {
-  const p = estimate?.powder;
+export function plannedPowder(estimate: Record<string, unknown> | null): { freshKg: number; reusedKg: number } | null {
+  const p = estimate?.powder as Record<string, unknown> | undefined;
   if (!p) return null;
   const freshKg = p.freshPowderKg ?? p.freshKg;
   const reusedKg = p.reusedPowderKg ?? p.reusedKg;

@@ -1,6 +1,6 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../index';
-import type { PowderCheckRow, PowderMaterialRow, PowderMovementRow } from '../models/powder';
+import type { PowderCheckRow, PowderMaterialRow } from '../models/powder';
 import { DEFAULT_POLICY, clean, type MovementKind, type PowderPolicy, type ReusedPool } from '../../../shared/powder';
 
 /** Plain records the powder service works with (never ORM instances). */
@@ -320,8 +320,8 @@ export function powderRepository(db: Database) {
     },
 
     /** The stored estimate of a layout, as the layout service wrote it. */
-    async layoutEstimate(layoutId: string, transaction?: Transaction): Promise<Record<string, any> | null> {
-      const [row] = await select<{ estimate: Record<string, any> | null }>(`SELECT estimate - 'areaPerLayerMm2' AS estimate FROM layouts WHERE id = $1`, [layoutId], transaction);
+    async layoutEstimate(layoutId: string, transaction?: Transaction): Promise<Record<string, unknown> | null> {
+      const [row] = await select<{ estimate: Record<string, unknown> | null }>(`SELECT estimate - 'areaPerLayerMm2' AS estimate FROM layouts WHERE id = $1`, [layoutId], transaction);
       return row?.estimate ?? null;
     },
 
@@ -374,7 +374,7 @@ export function powderRepository(db: Database) {
 
     /** Queued and started-not-loaded plans with their chosen estimate, for the forecast. */
     async queuedPlans(labId: string) {
-      return select<{ id: string; name: string; machine_id: string; material_id: string; estimate: Record<string, any> | null }>(
+      return select<{ id: string; name: string; machine_id: string; material_id: string; estimate: Record<string, unknown> | null }>(
         `SELECT p.id, p.name, p.machine_id, p.material_id, l.estimate - 'areaPerLayerMm2' AS estimate
            FROM plans p LEFT JOIN layouts l ON l.id = p.chosen_layout_id WHERE p.lab_id = $1 AND p.status = 'queued'`,
         [labId],
