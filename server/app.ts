@@ -10,6 +10,7 @@ import type { Mailer } from './mail/mailer';
 import { AppError } from './errors';
 import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/errors';
 import { checkOrigin, loadSession } from './http/middleware/auth';
+import { checkInput, jsonBodies } from './http/middleware/input';
 import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
 import { partRoutes } from './http/routes/parts';
@@ -84,8 +85,10 @@ export function createApp(deps: AppDeps) {
     }
   });
   api.use(checkOrigin(deps.config.appUrl));
-  api.use(express.json({ limit: '20mb', strict: true }));
+  // The session first, so that no large body is read for someone who has not signed in.
   api.use(loadSession(deps.auth, deps.config.appUrl.startsWith('https:')));
+  api.use(jsonBodies());
+  api.use(checkInput);
 
   const limiter: RequestHandler = rateLimit({
     windowMs: deps.config.authRateWindowMs,

@@ -1,6 +1,6 @@
 import { Op, type Transaction } from 'sequelize';
 import type { Database } from '../db';
-import { conflict, notFound } from '../errors';
+import { conflict, forbidden, notFound } from '../errors';
 import { ROLES, type MeResponse, type Role } from '../../shared/schemas/auth';
 
 export type Member = { userId: string; email: string; name: string; roles: Role[]; joinedAt: string };
@@ -19,6 +19,19 @@ export function labsService(db: Database) {
       raw: true,
     });
     return rows.map((r: any) => r.userId);
+  }
+
+  /**
+   * Member changes of one lab run one at a time: the lab's row is locked
+   * first, so two leads changing each other's roles at once wait for each
+   * other instead of deadlocking on the member rows; the one who waited then
+   * sees the other's change (and may no longer be a lead).
+   */
+  async function lockLabForMemberChange(labId: string, actorId: string | undefined, t: Transaction): Promise<void> {
+    await Lab.findOne({ where: { id: labId }, attributes: ['id'], transaction: t, lock: t.LOCK.UPDATE });
+    if (actorId === undefined) return;
+    const actor: any = await Membership.findOne({ where: { labId, userId: actorId }, attributes: ['roles'], transaction: t, raw: true });
+    if (!actor || !actor.roles.includes('lead')) throw forbidden('Only a lead of this lab may change its members; your roles changed a moment ago.');
   }
 
   return {
@@ -78,8 +91,9 @@ export function labsService(db: Database) {
     },
 
     /** Changes roles; a lab always keeps at least one lead. */
-    async setRoles(labId: string, userId: string, roles: Role[]): Promise<Member> {
+    async setRoles(labId: string, userId: string, roles: Role[], actorId?: string): Promise<Member> {
       await db.sequelize.transaction(async (t) => {
+        await lockLabForMemberChange(labId, actorId, t);
         const row: any = await Membership.findOne({ where: { labId, userId }, transaction: t, lock: t.LOCK.UPDATE });
         if (!row) throw notFound('That member');
         const leads = await leadsOf(labId, t);
@@ -91,8 +105,9 @@ export function labsService(db: Database) {
       return this.member(labId, userId);
     },
 
-    async removeMember(labId: string, userId: string): Promise<void> {
+    async removeMember(labId: string, userId: string, actorId?: string): Promise<void> {
       await db.sequelize.transaction(async (t) => {
+        await lockLabForMemberChange(labId, actorId, t);
         const row: any = await Membership.findOne({ where: { labId, userId }, transaction: t, lock: t.LOCK.UPDATE });
         if (!row) throw notFound('That member');
         const leads = await leadsOf(labId, t);

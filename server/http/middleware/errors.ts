@@ -1,6 +1,21 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { AppError } from '../../errors';
 
+/**
+ * A transaction PostgreSQL gave up on because another one got in its way
+ * (SQLSTATE 40P01 deadlock_detected, 40001 serialization_failure, PostgreSQL
+ * manual, Appendix A): nothing of it was written and the same request may
+ * simply be sent again.
+ */
+export function isTransactionConflict(err: unknown): boolean {
+  let e = err as { code?: string; parent?: unknown; original?: unknown } | null;
+  for (let i = 0; e && i < 4; i++) {
+    if (e.code === '40P01' || e.code === '40001') return true;
+    e = (e.parent ?? e.original ?? null) as typeof e;
+  }
+  return false;
+}
+
 /** Errors that mean "the database is not there right now", whoever raised them. */
 export function isDatabaseDown(err: unknown): boolean {
   const e = err as { name?: string; code?: string; parent?: unknown; original?: unknown; message?: string } | null;
@@ -38,6 +53,10 @@ export function errorHandler(log: (msg: string) => void): ErrorRequestHandler {
     }
     if (status && status >= 400 && status < 500) {
       res.status(status).json({ error: { code: 'bad_request', message: 'The request could not be read.' } });
+      return;
+    }
+    if (isTransactionConflict(err)) {
+      res.status(409).json({ error: { code: 'busy_retry', message: 'Someone else changed the same thing at the same moment; nothing was saved. Try again.' } });
       return;
     }
     if (isDatabaseDown(err)) {

@@ -19,10 +19,12 @@ export function labRoutes(deps: AppDeps): Router {
   });
   r.patch('/labs/:labId/members/:userId', lead, async (req, res) => {
     const { roles } = parseOrThrow(memberUpdateSchema, req.body);
-    res.json(await labs.setRoles(requireLab(req).labId, String(req.params.userId), roles));
+    const { labId, user } = requireLab(req);
+    res.json(await labs.setRoles(labId, String(req.params.userId), roles, user.id));
   });
   r.delete('/labs/:labId/members/:userId', lead, async (req, res) => {
-    await labs.removeMember(requireLab(req).labId, String(req.params.userId));
+    const { labId, user } = requireLab(req);
+    await labs.removeMember(labId, String(req.params.userId), user.id);
     res.status(204).end();
   });
 

@@ -26,8 +26,13 @@ function uploadMiddleware(deps: AppDeps): RequestHandler {
   return (req, res, next) => {
     upload(req, res, (err: unknown) => {
       if (!err) return next();
-      const e = err as { name?: string; code?: string; field?: string; filename?: string };
-      if (e.name !== 'MulterError') return next(err);
+      const e = err as { name?: string; code?: string; field?: string; filename?: string; syscall?: string };
+      if (e.name !== 'MulterError') {
+        // The multipart reader's own errors (no boundary, a body cut short, a malformed part) are the request's fault;
+        // the disk's (a system call failed) are the server's.
+        if (e.syscall || err instanceof AppError) return next(err);
+        return next(new AppError(400, 'bad_upload', 'The upload could not be read: send the files as complete multipart/form-data (with its boundary) in fields named "file".'));
+      }
       const name = e.filename ? quoteName(plainFileName(e.filename)) : 'A file';
       switch (e.code) {
         case 'LIMIT_FILE_SIZE':
