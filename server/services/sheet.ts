@@ -125,6 +125,9 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
         `Cooling ${hours(est?.cooling?.inMachineSeconds)} in the machine to ${machine?.removalTempC ?? '-'} °C, then ${hours(est?.cooling?.outsideSeconds)} outside to ${machine?.handlingTempC ?? '-'} °C`,
         `Powder: ${fmt(est?.powder?.freshPowderKg, 2)} kg fresh + ${fmt(est?.powder?.reusedPowderKg, 2)} kg reused (cake ${fmt(est?.powder?.cakeMassKg, 2)} kg) · packing density ${fmt((est?.powder?.packingDensity ?? 0) * 100)} %`,
         `Cost per part ${fmt(est?.cost?.costPerPart, 2)}`,
+        est?.profileSource === 'mesh'
+          ? `Scan areas from the parts' sliced shapes${est.profileBoxPlacements ? ` (${est.profileBoxPlacements} placed parts counted as boxes)` : ''}`
+          : 'Box estimate: scan areas from the parts\' bounding boxes, which read high',
       ]) {
         doc.text(line);
       }
