@@ -1,5 +1,5 @@
 export * from './types';
-export { parseInstance, MAX_TOTAL_QUANTITY, type ParseResult } from './parse';
+export { parseInstance, parseInstanceV2, parseAnyInstance, MAX_TOTAL_QUANTITY, type ParseResult, type ParseResultV2 } from './parse';
 export { lowerBound, buildCountLowerBound, inflatedPartVolume } from './bounds';
 export { validateLayout } from './validate';
 export { orientedSize, usableRegion, layerCount, TOLERANCE_MM } from './geometry';
@@ -26,3 +26,4 @@ export {
   type DecodedPlacementBytes,
   type LayoutProfiles,
 } from './codec';
+export * from './shape';

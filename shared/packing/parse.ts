@@ -1,6 +1,13 @@
+import { rotationsAllowed, rotationIndex } from '../geometry/rotations';
 import { isOrientation } from './geometry';
 import {
+  FITS,
   INSTANCE_FORMAT,
+  INSTANCE_FORMAT_V2,
+  type Fit,
+  type PackInstanceV2,
+  type PackPartV2,
+  type PartMesh,
   OBJECTIVES,
   ORIENTATIONS,
   type FieldProblem,
@@ -153,4 +160,149 @@ function readOptionalNumber(
     return fallback;
   }
   return v;
+}
+
+export type ParseResultV2 = { ok: true; instance: PackInstanceV2 } | { ok: false; problems: FieldProblem[] };
+
+/** Every quarter-turn rotation, the default of a mesh part. */
+const ALL_ROTATIONS = Array.from({ length: 24 }, (_, k) => k);
+/** The six box orientations, the default of a part given by its size only. */
+const BOX_ROTATIONS = [0, 1, 2, 3, 4, 5];
+
+/**
+ * Checks a "pack-instance/2" object: version 1's fields, plus `fit`, a `mesh`
+ * per part (a file path, or the mesh itself as { positions, indices } when
+ * sent to a worker) and the 24 signed rotation codes or "upright". A mesh
+ * part may leave `size` out; its mesh is loaded by the caller
+ * (see `attachMesh`), since reading files is not this module's business.
+ */
+export function parseInstanceV2(input: unknown): ParseResultV2 {
+  if (!isObject(input)) return { ok: false, problems: [{ field: 'instance', message: 'must be a JSON object' }] };
+  if (input.format !== INSTANCE_FORMAT_V2) return { ok: false, problems: [{ field: 'format', message: `must be "${INSTANCE_FORMAT_V2}"` }] };
+  // The shared fields go through the version 1 reader with the parts held back.
+  const common = parseInstance({ ...input, format: INSTANCE_FORMAT, parts: [] });
+  const problems: FieldProblem[] = common.ok ? [] : [...common.problems];
+  const bad = (field: string, message: string) => problems.push({ field, message });
+
+  let fit: Fit = 'box';
+  if (input.fit !== undefined) {
+    if (typeof input.fit === 'string' && (FITS as readonly string[]).includes(input.fit)) fit = input.fit as Fit;
+    else bad('fit', `must be one of ${FITS.map((f) => `"${f}"`).join(', ')}`);
+  }
+
+  const parts: PackPartV2[] = [];
+  if (!Array.isArray(input.parts)) bad('parts', 'must be an array (possibly empty)');
+  else {
+    const seen = new Map<string, number>();
+    let total = 0;
+    input.parts.forEach((raw, i) => {
+      const at = `parts[${i}]`;
+      if (!isObject(raw)) {
+        bad(at, 'must be an object with id, quantity and a size or a mesh');
+        return;
+      }
+      let ok = true;
+      let id = '';
+      if (typeof raw.id !== 'string' || raw.id.length === 0) {
+        bad(`${at}.id`, 'must be a non-empty string');
+        ok = false;
+      } else if (seen.has(raw.id)) {
+        bad(`${at}.id`, `must be unique: "${raw.id}" is also parts[${seen.get(raw.id)}].id`);
+        ok = false;
+      } else {
+        id = raw.id;
+        seen.set(raw.id, i);
+      }
+      let meshPath: string | null = null;
+      let mesh: PartMesh | null = null;
+      if (raw.mesh !== undefined) {
+        if (typeof raw.mesh === 'string') {
+          if (raw.mesh.trim().length === 0) {
+            bad(`${at}.mesh`, 'must be a non-empty file path');
+            ok = false;
+          } else meshPath = raw.mesh;
+        } else {
+          const m = readInlineMesh(raw.mesh);
+          if (typeof m === 'string') {
+            bad(`${at}.mesh`, m);
+            ok = false;
+          } else mesh = m;
+        }
+      }
+      const hasMesh = meshPath !== null || mesh !== null;
+      let size: Vec3 | null = null;
+      if (raw.size !== undefined || !hasMesh) {
+        const v = readVec3(raw.size, `${at}.size`, bad);
+        if (!v) ok = false;
+        else size = v;
+      }
+      let quantity = 0;
+      if (!isFiniteNumber(raw.quantity) || !Number.isInteger(raw.quantity) || raw.quantity < 0) {
+        bad(`${at}.quantity`, 'must be an integer >= 0');
+        ok = false;
+      } else quantity = raw.quantity;
+      let rotations = hasMesh ? ALL_ROTATIONS : BOX_ROTATIONS;
+      if (raw.orientations !== undefined) {
+        const list = raw.orientations;
+        if (!Array.isArray(list) || list.length === 0) {
+          bad(`${at}.orientations`, 'must be a non-empty array of rotation codes (such as "xyz" or "-y+x+z") or "upright"');
+          ok = false;
+        } else {
+          list.forEach((o, k) => {
+            if (typeof o !== 'string' || (o !== 'upright' && rotationIndex(o) < 0)) {
+              bad(`${at}.orientations[${k}]`, 'must be a rotation code such as "xyz" or "-y+x+z", or "upright"');
+              ok = false;
+            }
+          });
+          if (ok) rotations = rotationsAllowed(list as string[]) ?? rotations;
+        }
+      }
+      total += quantity;
+      if (ok) parts.push({ id, size, quantity, rotations: [...rotations], meshPath, mesh });
+    });
+    if (total > MAX_TOTAL_QUANTITY) bad('parts', `must hold at most ${MAX_TOTAL_QUANTITY} parts in total (sum of quantity is ${total})`);
+  }
+  if (problems.length > 0 || !common.ok) return { ok: false, problems };
+  const c = common.instance;
+  return {
+    ok: true,
+    instance: {
+      format: INSTANCE_FORMAT_V2,
+      chamber: c.chamber,
+      margin: c.margin,
+      spacing: c.spacing,
+      layerHeight: c.layerHeight,
+      objective: c.objective,
+      timeLimitMs: c.timeLimitMs,
+      seed: c.seed,
+      fit,
+      parts,
+    },
+  };
+}
+
+/** A mesh sent inline: { positions: 3n finite numbers, indices: 3m vertex numbers below n }. */
+function readInlineMesh(v: unknown): PartMesh | string {
+  if (!isObject(v)) return 'must be a file path, or a mesh { positions, indices }';
+  const isNumbers = (a: unknown): a is ArrayLike<number> =>
+    Array.isArray(a) || Object.prototype.toString.call(a) === '[object Float64Array]' || Object.prototype.toString.call(a) === '[object Float32Array]' || Object.prototype.toString.call(a) === '[object Uint32Array]';
+  if (!isNumbers(v.positions) || v.positions.length % 3 !== 0) return 'positions must be 3 numbers a vertex';
+  if (!isNumbers(v.indices) || v.indices.length % 3 !== 0 || v.indices.length === 0) return 'indices must be 3 vertex numbers a triangle';
+  const positions = Float64Array.from(v.positions);
+  for (let i = 0; i < positions.length; i++) if (!Number.isFinite(positions[i])) return `positions[${i}] must be a finite number`;
+  const n = positions.length / 3;
+  const raw = v.indices;
+  const indices = new Uint32Array(raw.length);
+  for (let i = 0; i < raw.length; i++) {
+    const k = raw[i];
+    if (!Number.isInteger(k) || k < 0 || k >= n) return `indices[${i}] must be a vertex number below ${n}`;
+    indices[i] = k;
+  }
+  return { positions, indices };
+}
+
+/** Reads either version; the caller looks at `format` to tell them apart. */
+export function parseAnyInstance(input: unknown): ParseResult | ParseResultV2 {
+  if (isObject(input) && input.format === INSTANCE_FORMAT_V2) return parseInstanceV2(input);
+  return parseInstance(input);
 }

@@ -117,3 +117,82 @@ export interface FieldProblem {
 export function formatProblem(p: FieldProblem): string {
   return `${p.field} ${p.message}`;
 }
+
+// ---------------------------------------------------------------------------
+// Parts with their true shapes: "pack-instance/2" and "pack-result/2".
+
+export const INSTANCE_FORMAT_V2 = 'pack-instance/2' as const;
+export const RESULT_FORMAT_V2 = 'pack-result/2' as const;
+
+/** How every part of an instance is packed: by its bounding box, or by its shape. */
+export type Fit = 'box' | 'shape';
+export const FITS: readonly Fit[] = ['box', 'shape'];
+
+/** A triangle mesh in millimetres, in the part's own (file) coordinates. */
+export interface PartMesh {
+  positions: Float64Array;
+  indices: Uint32Array;
+}
+
+export interface PackPartV2 {
+  id: string;
+  /** Bounding box in the part's own axes (the mesh's, once the mesh is loaded). */
+  size: Vec3 | null;
+  quantity: number;
+  /** Allowed quarter-turn rotations, as indices 0..23 of shared/geometry/rotations. */
+  rotations: number[];
+  /** The mesh file as given, relative to the instance file (or the current directory for standard input). */
+  meshPath: string | null;
+  /** The mesh itself, once loaded (or when sent inline, e.g. to the worker). */
+  mesh: PartMesh | null;
+}
+
+/** A version 2 instance after parsing: every default applied; meshes possibly still to load. */
+export interface PackInstanceV2 {
+  format: typeof INSTANCE_FORMAT_V2;
+  chamber: Vec3;
+  margin: PackMargin;
+  spacing: number;
+  layerHeight: number;
+  objective: Objective;
+  timeLimitMs: number;
+  seed: number;
+  fit: Fit;
+  parts: PackPartV2[];
+}
+
+export interface PlacementV2 {
+  id: string;
+  /** Minimum corner of the placed part's bounding box. */
+  position: Vec3;
+  /** Extent of the placed part's bounding box along chamber x, y, z. */
+  size: Vec3;
+  /** The signed rotation code ("-y+x+z") of the transform. */
+  orientation: string;
+  /** 3MF transform (row vectors, p' = [x y z 1] M) from the part's file coordinates to the chamber; mesh parts only. */
+  transform?: number[];
+}
+
+/** A part packed otherwise than asked, and why (e.g. a mesh that is not watertight packed by its box). */
+export interface PackWarning {
+  id: string;
+  code: string;
+  message: string;
+}
+
+export interface PackResultV2 {
+  format: typeof RESULT_FORMAT_V2;
+  /** In lift-out order: in reverse, each can be lifted straight up clear of the ones listed before it. */
+  placements: PlacementV2[];
+  unplaced: Unplaced[];
+  height: number;
+  layers: number;
+  /** Placed meshes' volume (boxes for parts without a mesh) over the denominators of version 1. */
+  utilization: number;
+  elapsedMs: number;
+  /** mm^2 per layer from z = 0, ceil(height / layerHeight) numbers. */
+  areaProfile: number[];
+  /** mm of contour per layer, where known. */
+  contourProfile?: number[];
+  warnings?: PackWarning[];
+}

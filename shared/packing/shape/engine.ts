@@ -1,0 +1,457 @@
+/**
+ * Packing by shape: parts are dropped straight down, one after another, into
+ * a height map of the chamber (per plan cell, the top of what is already
+ * there), each at the place and rotation where its top ends lowest, bottom-
+ * left first (the bottom-left-lowest rule of Lamas-Fernandez, Bennell &
+ * Martinez-Sykora, Oper. Res. 2023, on column profiles). Because each part
+ * falls from above into the occupancy of the ones before it, it can be lifted
+ * straight out again with them present: the packing order is a lift-out order
+ * and no two parts interlock (the vertical-removal rule of Cui et al., ACM
+ * TOG 42(4), 2023).
+ *
+ * The spacing is kept by geometry, not by the grid: the height map is dilated
+ * by ceil(spacing / cell) cells and raised by the spacing, the part's column
+ * profile holds every point of its triangles (clipped per cell), so any two
+ * points of two parts are at least the spacing apart along some axis, hence
+ * in space. Every layout offered is checked exactly against the meshes first.
+ *
+ * A first layout comes from a fixed order (largest parts first); then, until
+ * the time limit, other orders and rotation choices are tried and the lowest
+ * layout kept.
+ */
+import { placementTransform, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
+import { usableRegion } from '../geometry';
+import { createRandom, type Random } from '../prng';
+import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2 } from '../types';
+import type { PlacedPart } from './area';
+import { codeFor, finishResult } from './result';
+import { shapeParts, type ShapePart } from './parts';
+import { boxInstance, fromBoxResult } from './boxfit';
+import { packSync } from '../engine';
+import { columnProfile, type Profile } from './profile';
+import { validateShapeLayout } from './validate';
+
+export type ShapePhase = 'greedy' | 'search' | 'done';
+
+export interface ShapeRunHooks {
+  onProgress?: (phase: ShapePhase, shareDone: number, best: PackResultV2 | null) => void;
+  shouldStop?: () => boolean;
+}
+
+export interface ShapeOptions {
+  now?: () => number;
+  yieldMs?: number;
+  /** Caps the number of full packings tried (reproducible tests). */
+  maxRuns?: number;
+  /** Plan cell size (mm); by default from the spacing and the chamber. */
+  cellMm?: number;
+}
+
+export interface ShapePacking {
+  run(hooks?: ShapeRunHooks): Promise<PackResultV2>;
+  runSync(hooks?: ShapeRunHooks): PackResultV2;
+}
+
+interface Kind {
+  part: ShapePart;
+  /** Candidate profiles, best (cheapest) first. */
+  profiles: Profile[];
+  /** Every allowed rotation's profile, for the search to draw other choices from. */
+  allProfiles: Profile[];
+  fits: boolean;
+}
+
+interface Placed {
+  kind: number;
+  profile: Profile;
+  /** Minimum corner of the placed bounding box. */
+  position: [number, number, number];
+}
+
+function defaultClock(): () => number {
+  const perf = (globalThis as { performance?: { now(): number } }).performance;
+  if (perf && typeof perf.now === 'function') return () => perf.now();
+  return () => Date.now();
+}
+
+/** Which part axis (with sign) a rotation stands upright: 0..5. */
+function upClass(rotation: number): number {
+  const m = rotationMatrix(rotation);
+  for (let c = 0; c < 3; c++) if (m[6 + c] !== 0) return 2 * c + (m[6 + c] > 0 ? 0 : 1);
+  return 0;
+}
+
+export function defaultCell(instance: PackInstanceV2): number {
+  const { extent } = usableRegion(instance);
+  const g = instance.spacing;
+  // Fine enough to follow the parts, coarse enough for a few hundred cells a side.
+  const byChamber = Math.max(extent[0], extent[1]) / 220;
+  let cell = Math.max(byChamber, 0.5);
+  if (g > 0) {
+    // A whole number of cells per spacing wastes least of it.
+    const k = Math.max(1, Math.floor(g / cell));
+    cell = g / k;
+  }
+  return cell;
+}
+
+function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number, warnings: PackWarning[]): Kind[] {
+  const { extent } = usableRegion(instance);
+  const g = instance.spacing;
+  return parts.map((part) => {
+    const asBox = part.hasMesh && !part.watertight;
+    if (asBox && part.quantity > 0) {
+      warnings.push({
+        id: part.id,
+        code: 'not-watertight',
+        message: `"${part.id}": the mesh is not watertight (it has open or non-manifold edges), so it was packed by its bounding box`,
+      });
+    }
+    const fitsIn = (p: Profile) => p.extent[0] <= extent[0] + 1e-9 && p.extent[1] <= extent[1] + 1e-9 && p.extent[2] <= extent[2] + 1e-9;
+    // One profile per upright axis first, to rank them; then every allowed turn about z of the best ones.
+    const classes = new Map<number, number[]>();
+    for (const r of part.rotations) {
+      // Rotations whose box cannot fit are dropped before any profile is drawn.
+      const e = rotatedExtent(r, part.size);
+      if (e[0] > extent[0] + 1e-9 || e[1] > extent[1] + 1e-9 || e[2] > extent[2] + 1e-9) continue;
+      const k = upClass(r);
+      if (!classes.has(k)) classes.set(k, []);
+      classes.get(k)!.push(r);
+    }
+    const cache = new Map<number, Profile>();
+    const profileOf = (r: number) => {
+      let p = cache.get(r);
+      if (!p) {
+        p = columnProfile(part, r, cell, g, asBox);
+        cache.set(r, p);
+      }
+      return p;
+    };
+    // Per upright axis, one turn probes the cost (turns about z cost about the same).
+    const ranked: Array<{ rots: number[]; probe: Profile }> = [];
+    for (const rots of classes.values()) {
+      // The first turn may not fit where another does: the others only then.
+      const first = profileOf(rots[0]);
+      const probe = fitsIn(first) ? first : rots.slice(1).map(profileOf).find(fitsIn);
+      if (probe) ranked.push({ rots, probe });
+    }
+    ranked.sort((a, b) => a.probe.cost - b.probe.cost);
+    if (ranked.length === 0) return { part, profiles: [], allProfiles: [], fits: false };
+    const chosen: Profile[] = [];
+    const all: Profile[] = [];
+    ranked.forEach(({ rots, probe }, i) => {
+      const full = i < 3;
+      for (const r of full ? rots : [probe.rotation]) {
+        const p = profileOf(r);
+        if (!fitsIn(p)) continue;
+        all.push(p);
+        if (i === 0 || (i <= 2 && ranked[i].probe.cost <= 1.6 * ranked[0].probe.cost)) chosen.push(p);
+      }
+    });
+    chosen.sort((a, b) => a.cost - b.cost);
+    return { part, profiles: chosen, allProfiles: all, fits: true };
+  });
+}
+
+interface Grid {
+  nx: number;
+  ny: number;
+  cell: number;
+  r: number;
+  g: number;
+  origin: [number, number, number];
+  extent: [number, number, number];
+  /** Top of the material per cell (-Infinity where empty). */
+  H: Float64Array;
+  /** Dilated: max of H over the (2r+1)^2 window, plus the spacing. */
+  D: Float64Array;
+}
+
+function newGrid(instance: PackInstanceV2, cell: number): Grid {
+  const { min, extent } = usableRegion(instance);
+  const nx = Math.max(1, Math.ceil(extent[0] / cell - 1e-9));
+  const ny = Math.max(1, Math.ceil(extent[1] / cell - 1e-9));
+  const g = instance.spacing;
+  return {
+    nx,
+    ny,
+    cell,
+    r: g > 0 ? Math.ceil(g / cell - 1e-9) : 0,
+    g,
+    origin: [min[0], min[1], min[2]],
+    extent: [extent[0], extent[1], extent[2]],
+    H: new Float64Array(nx * ny).fill(-Infinity),
+    D: new Float64Array(nx * ny).fill(-Infinity),
+  };
+}
+
+/** Best drop of one profile: the lowest top, then the lowest row, then the leftmost; `bound` is the best score so far. */
+function bestDrop(G: Grid, p: Profile, bound: number): { u: number; v: number; z: number; score: number } | null {
+  const { nx, D, cell, extent, origin } = G;
+  const umax = Math.floor((extent[0] - p.extent[0]) / cell + 1e-9);
+  const vmax = Math.floor((extent[1] - p.extent[1]) / cell + 1e-9);
+  if (umax < 0 || vmax < 0) return null;
+  const floor = origin[2];
+  const ceiling = origin[2] + extent[2] + 1e-9;
+  const ez = p.extent[2];
+  // The lowest this rotation can end: already no better than the bound, skip it.
+  if (floor + ez >= bound) return null;
+  const m = p.cellX.length;
+  const off = new Int32Array(m);
+  for (let k = 0; k < m; k++) off[k] = p.cellX[k] + nx * p.cellY[k];
+  const bot = p.bottom;
+  let best = Math.min(bound, ceiling);
+  let bu = -1, bv = -1, bz = 0;
+  for (let v = 0; v <= vmax; v++) {
+    for (let u = 0; u <= umax; u++) {
+      const base = u + nx * v;
+      let z = floor;
+      const limit = best - ez;
+      let k = 0;
+      for (; k < m; k++) {
+        const h = D[base + off[k]] - bot[k];
+        if (h > z) {
+          z = h;
+          if (z >= limit) break;
+        }
+      }
+      if (k < m) continue;
+      best = z + ez;
+      bu = u;
+      bv = v;
+      bz = z;
+      if (z <= floor) return { u, v, z, score: best };
+    }
+  }
+  return bu < 0 ? null : { u: bu, v: bv, z: bz, score: best };
+}
+
+function drop(G: Grid, p: Profile, u: number, v: number, z: number): void {
+  const { nx, ny, H, D, r, g } = G;
+  for (let k = 0; k < p.cellX.length; k++) {
+    const id = u + p.cellX[k] + nx * (v + p.cellY[k]);
+    const t = z + p.top[k];
+    if (t > H[id]) H[id] = t;
+  }
+  const x0 = Math.max(0, u - r), x1 = Math.min(nx - 1, u + p.nx - 1 + r);
+  const y0 = Math.max(0, v - r), y1 = Math.min(ny - 1, v + p.ny - 1 + r);
+  for (let y = y0; y <= y1; y++) {
+    for (let x = x0; x <= x1; x++) {
+      let h = -Infinity;
+      for (let yy = Math.max(0, y - r), ye = Math.min(ny - 1, y + r); yy <= ye; yy++) {
+        for (let xx = Math.max(0, x - r), xe = Math.min(nx - 1, x + r); xx <= xe; xx++) {
+          const val = H[xx + nx * yy];
+          if (val > h) h = val;
+        }
+      }
+      D[x + nx * y] = h + g;
+    }
+  }
+}
+
+/**
+ * One full packing. Copies come in `order` (kind indices), but before each
+ * one raises the top of the load, every part that can still drop in below
+ * that top (into a housing, between brackets' legs, beside taller parts) is
+ * dropped there first, larger kinds first: the hollows are filled before they
+ * are covered.
+ */
+function packOnce(instance: PackInstanceV2, kinds: Kind[], order: number[], choices: Profile[][], cell: number, abort: () => boolean): Placed[] | null {
+  const G = newGrid(instance, cell);
+  const placed: Placed[] = [];
+  const left = new Array<number>(kinds.length).fill(0);
+  for (const k of order) left[k]++;
+  // Kinds in the order of their first copy.
+  const fillOrder: number[] = [];
+  for (const k of order) if (!fillOrder.includes(k)) fillOrder.push(k);
+  /** The load's top when a kind last failed to drop in below it (it cannot fit under that top again). */
+  const failedAt = new Array<number>(kinds.length).fill(-Infinity);
+  let top = G.origin[2];
+  let steps = 0;
+  const place = (kind: number, bound: number): boolean => {
+    let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
+    for (const p of choices[kind]) {
+      const d = bestDrop(G, p, best ? best.score : bound);
+      if (d) best = { u: d.u, v: d.v, z: d.z, score: d.score, p };
+    }
+    if (!best) return false;
+    drop(G, best.p, best.u, best.v, best.z);
+    placed.push({ kind, profile: best.p, position: [G.origin[0] + best.u * cell, G.origin[1] + best.v * cell, best.z] });
+    left[kind]--;
+    if (best.score > top) top = best.score;
+    return true;
+  };
+  let next = 0;
+  for (;;) {
+    if ((steps++ & 7) === 0 && abort()) return null;
+    // Fill below the current top.
+    if (placed.length > 0) {
+      for (const k of fillOrder) {
+        while (left[k] > 0 && failedAt[k] < top) {
+          if (!place(k, top + 1e-9)) failedAt[k] = top;
+        }
+      }
+    }
+    while (next < order.length && left[order[next]] === 0) next++;
+    if (next >= order.length) break;
+    const kind = order[next];
+    if (!place(kind, Infinity)) {
+      // Fits nowhere any more: every copy left of this kind stays unplaced.
+      left[kind] = 0;
+    }
+  }
+  return placed;
+}
+
+function summarise(instance: PackInstanceV2, kinds: Kind[], placed: Placed[], elapsedMs: number, warnings: PackWarning[]): PackResultV2 {
+  const placements: PlacementV2[] = [];
+  const forArea: PlacedPart[] = [];
+  const count = new Array<number>(kinds.length).fill(0);
+  let top = 0;
+  let volume = 0;
+  for (const pl of placed) {
+    const part = kinds[pl.kind].part;
+    const rot = pl.profile.rotation;
+    const transform = placementTransform(rot, part.min, part.max, pl.position);
+    const size: [number, number, number] = [pl.profile.extent[0], pl.profile.extent[1], pl.profile.extent[2]];
+    const out: PlacementV2 = { id: part.id, position: [...pl.position], size, orientation: codeFor(part, rot) };
+    if (part.hasMesh) out.transform = [...transform];
+    placements.push(out);
+    forArea.push({ part, transform });
+    count[pl.kind]++;
+    top = Math.max(top, pl.position[2] + size[2]);
+    volume += part.volume;
+  }
+  return finishResult(instance, kinds.map((k) => k.part), placements, forArea, count, top, volume, elapsedMs, warnings);
+}
+
+function* solve(
+  instance: PackInstanceV2,
+  options: ShapeOptions,
+  hooks: ShapeRunHooks,
+  now: () => number,
+  out: { best: PackResultV2 | null },
+): Generator<void, void, void> {
+  const start = now();
+  const deadline = start + instance.timeLimitMs;
+  const yieldMs = options.yieldMs ?? 50;
+  let lastYield = start;
+  const share = () => (instance.timeLimitMs > 0 ? Math.min(1, (now() - start) / instance.timeLimitMs) : 1);
+  let stopped = false;
+  const stop = () => {
+    if (!stopped && hooks.shouldStop?.()) stopped = true;
+    return stopped;
+  };
+  const parts = shapeParts(instance);
+  const cell = options.cellMm ?? defaultCell(instance);
+  const warnings: PackWarning[] = [];
+  const kinds = prepareKinds(instance, parts, cell, warnings);
+  let phase: ShapePhase = 'greedy';
+  const random: Random = createRandom(instance.seed);
+
+  // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
+  const copies: number[] = [];
+  kinds.forEach((k, i) => {
+    if (k.fits) for (let c = 0; c < k.part.quantity; c++) copies.push(i);
+  });
+  const weight = kinds.map((k) => (k.fits ? k.profiles[0].cost : 0));
+  const firstOrder = [...copies].sort((a, b) => weight[b] - weight[a] || a - b);
+  let bestHeight = Infinity;
+  let bestPlacedCount = -1;
+  let runs = 0;
+  const maxRuns = options.maxRuns ?? Infinity;
+
+  const offer = (placed: Placed[]) => {
+    const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && heightOf(placed) < bestHeight - 1e-9);
+    if (!better) return;
+    const result = summarise(instance, kinds, placed, now() - start, warnings);
+    // Never hand out a layout that fails the exact check (it would be a bug of the drop, so it is dropped too).
+    if (validateShapeLayout(instance, result, parts).length > 0) return;
+    bestHeight = result.height;
+    bestPlacedCount = placed.length;
+    out.best = result;
+    hooks.onProgress?.(phase, share(), result);
+  };
+  const heightOf = (placed: Placed[]) => placed.reduce((h, p) => Math.max(h, p.position[2] + p.profile.extent[2]), 0);
+
+  const choices = kinds.map((k) => k.profiles);
+  const first = packOnce(instance, kinds, firstOrder, choices, cell, () => false);
+  runs++;
+  if (first) offer(first);
+  if (copies.length === 0) {
+    if (!out.best) offer([]);
+    return;
+  }
+  phase = 'search';
+  let order = firstOrder;
+  let current = first ? heightOf(first) : Infinity;
+  let currentCount = first ? first.length : -1;
+  let currentChoices = choices;
+  while (runs < maxRuns && now() < deadline && !stop()) {
+    // A neighbour: a few copies moved in the order, and now and then another set of rotations for one part.
+    const nextOrder = [...order];
+    const moves = 1 + Math.floor(random() * 4);
+    for (let m = 0; m < moves; m++) {
+      const i = Math.floor(random() * nextOrder.length);
+      const j = Math.max(0, Math.min(nextOrder.length - 1, i + Math.floor((random() - 0.5) * Math.max(4, nextOrder.length / 8))));
+      const [x] = nextOrder.splice(i, 1);
+      nextOrder.splice(j, 0, x);
+    }
+    let nextChoices = currentChoices;
+    if (random() < 0.3) {
+      const k = Math.floor(random() * kinds.length);
+      if (kinds[k].fits && kinds[k].allProfiles.length > 1) {
+        nextChoices = [...currentChoices];
+        const all = kinds[k].allProfiles;
+        const pick = all[Math.floor(random() * all.length)];
+        nextChoices[k] = random() < 0.5 ? [pick] : [...new Set([...kinds[k].profiles, pick])];
+      }
+    }
+    const placed = packOnce(instance, kinds, nextOrder, nextChoices, cell, () => now() >= deadline || stop());
+    runs++;
+    if (placed) {
+      const h = heightOf(placed);
+      if (placed.length > currentCount || (placed.length === currentCount && h <= current + 1e-9)) {
+        order = nextOrder;
+        currentChoices = nextChoices;
+        current = h;
+        currentCount = placed.length;
+        offer(placed);
+      }
+    }
+    if (now() - lastYield >= yieldMs) {
+      lastYield = now();
+      hooks.onProgress?.(phase, share(), out.best);
+      yield;
+    }
+  }
+}
+
+/** Prepares a packing by shape of a version 2 instance whose meshes are attached. */
+export function createShapePacking(instance: PackInstanceV2, options: ShapeOptions = {}): ShapePacking {
+  const now = options.now ?? defaultClock();
+  const finish = (out: { best: PackResultV2 | null }, start: number, hooks: ShapeRunHooks): PackResultV2 => {
+    // No layout passed the exact check (or the run was stopped before the first): the boxes, which always keep apart.
+    const best = out.best ?? fromBoxResult(instance, shapeParts(instance), packSync(boxInstance(instance, shapeParts(instance)), { now }));
+    const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
+    hooks.onProgress?.('done', 1, result);
+    return result;
+  };
+  return {
+    runSync(hooks = {}) {
+      const out = { best: null as PackResultV2 | null };
+      const start = now();
+      const it = solve(instance, options, hooks, now, out);
+      while (!it.next().done);
+      return finish(out, start, hooks);
+    },
+    async run(hooks = {}) {
+      const out = { best: null as PackResultV2 | null };
+      const start = now();
+      const it = solve(instance, options, hooks, now, out);
+      while (!it.next().done) await new Promise((resolve) => setTimeout(resolve, 0));
+      return finish(out, start, hooks);
+    },
+  };
+}
+

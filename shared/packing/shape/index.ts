@@ -1,0 +1,10 @@
+export { validateShapeLayout } from './validate';
+export { createShapePacking, defaultCell, type ShapeOptions, type ShapePacking, type ShapePhase, type ShapeRunHooks } from './engine';
+export { createBoxFitPacking, boxInstance, fromBoxResult } from './boxfit';
+export { shapeParts, boxMesh, type ShapePart } from './parts';
+export { areaProfile, type PlacedPart } from './area';
+export { buildBvh, PlacedBvh, surfaceDistance, blocksLift, containsPoint, type Bvh } from './bvh';
+export { columnProfile, type Profile } from './profile';
+export { packV2Sync, packV2, createPackingV2 } from './run';
+export { generateShapeMix, type ShapeMixOptions } from './mix';
+export { summariseShapeLayout, finishResult } from './result';

@@ -1,0 +1,76 @@
+/**
+ * Generated concave mixes for benchmarks and tests: brackets, channels, open
+ * housings, clips, rings and small solids from the project's own parametric
+ * builders, in random sizes (seeded), several copies of each design.
+ */
+import { bracket, cableGuide, clip, housing, prism, torus } from '../../geometry/generate';
+import { createRandom } from '../prng';
+import { INSTANCE_FORMAT_V2, type Fit, type PackInstanceV2, type PackPartV2, type PartMesh, type Vec3 } from '../types';
+import { measureMesh } from '../../geometry/metrics';
+
+export interface ShapeMixOptions {
+  /** Total number of parts (copies included). */
+  parts: number;
+  seed: number;
+  chamber?: Vec3;
+  spacing?: number;
+  timeLimitMs?: number;
+  fit?: Fit;
+  /** Distinct designs; about one per 12 parts by default. */
+  designs?: number;
+}
+
+function design(kind: number, r: () => number): { name: string; mesh: PartMesh } {
+  const between = (a: number, b: number) => a + (b - a) * r();
+  switch (kind) {
+    case 0:
+      return { name: 'bracket', mesh: bracket({ legAMm: between(25, 60), legBMm: between(20, 50), thicknessMm: between(3, 5), widthMm: between(12, 30), gussetMm: between(2, 6) }) };
+    case 1:
+      return { name: 'channel', mesh: cableGuide({ channelWidthMm: between(8, 20), channelDepthMm: between(6, 14), wallMm: between(2, 3), flangeMm: between(5, 10), lengthMm: between(25, 60) }) };
+    case 2: {
+      const l = between(50, 110);
+      return { name: 'housing', mesh: housing({ lengthMm: l, widthMm: between(35, Math.min(l, 70)), heightMm: between(20, 40), wallMm: between(2, 3), floorMm: between(2, 3), cornerRadiusMm: 5, cornerSegments: 6 }) };
+    }
+    case 3:
+      return { name: 'clip', mesh: clip({ innerRadiusMm: between(5, 12), wallMm: between(1.5, 3), gapDeg: between(50, 90), widthMm: between(6, 14), segments: 32 }) };
+    case 4: {
+      const major = between(10, 20);
+      return { name: 'ring', mesh: torus(major, between(2, Math.min(5, major / 3)), 32, 12) };
+    }
+    default: {
+      const a = between(6, 16), b = between(6, 16);
+      return { name: 'block', mesh: prism([[0, 0], [a, 0], [a, b], [0, b]], 0, between(4, 12)) };
+    }
+  }
+}
+
+/** A "pack-instance/2" of generated meshes, sent inline (no files). */
+export function generateShapeMix(o: ShapeMixOptions): PackInstanceV2 {
+  const r = createRandom(o.seed);
+  const designs = o.designs ?? Math.max(6, Math.round(o.parts / 12));
+  const parts: PackPartV2[] = [];
+  // Quantities: an even split with some spread, adding up to o.parts.
+  const weights = Array.from({ length: designs }, () => 0.5 + r());
+  const total = weights.reduce((a, b) => a + b, 0);
+  let left = o.parts;
+  for (let d = 0; d < designs; d++) {
+    const kind = d % 6;
+    const { name, mesh } = design(kind, r);
+    const quantity = d === designs - 1 ? left : Math.min(left, Math.max(1, Math.round((o.parts * weights[d]) / total)));
+    left -= quantity;
+    const m = measureMesh(mesh);
+    parts.push({ id: `${name}-${d + 1}`, size: [m.sizeMm[0], m.sizeMm[1], m.sizeMm[2]], quantity, rotations: Array.from({ length: 24 }, (_, k) => k), meshPath: null, mesh });
+  }
+  return {
+    format: INSTANCE_FORMAT_V2,
+    chamber: o.chamber ?? [300, 300, 380],
+    margin: { xy: 8, bottom: 5, top: 5 },
+    spacing: o.spacing ?? 3,
+    layerHeight: 0.12,
+    objective: 'min-height',
+    timeLimitMs: o.timeLimitMs ?? 2000,
+    seed: o.seed,
+    fit: o.fit ?? 'shape',
+    parts: parts.filter((p) => p.quantity > 0),
+  };
+}

@@ -1,0 +1,206 @@
+/**
+ * Checks a "pack-result/2" against the meshes themselves: every placed mesh
+ * inside the usable region; for any two, the smallest distance between their
+ * surfaces at least the spacing and neither inside the other; rotations the
+ * part allows and transforms that match position and size; counts that add
+ * up; and the lift-out order (in reverse, each part lifts straight up clear of
+ * the ones listed before it). Distances are exact triangle–triangle distances
+ * (see tri.ts), found through a box tree per part; nothing here samples.
+ */
+import { extentCode, rotationIndex, rotationOfTransform, rotatedBox, ROTATION_CODES } from '../../geometry/rotations';
+import { layerCount, TOLERANCE_MM, usableRegion } from '../geometry';
+import { RESULT_FORMAT_V2, type FieldProblem, type PackInstanceV2, type PackResultV2 } from '../types';
+import { blocksLift, containsPoint, PlacedBvh, surfaceDistance } from './bvh';
+import { shapeParts, type ShapePart } from './parts';
+
+/** At most this many problems of one kind are listed; one more line gives the total. */
+const MAX_REPORTS = 20;
+
+interface Placed {
+  at: number;
+  part: ShapePart;
+  rotation: number;
+  placed: PlacedBvh;
+}
+
+export function validateShapeLayout(instance: PackInstanceV2, result: PackResultV2, prepared?: ShapePart[]): FieldProblem[] {
+  const problems: FieldProblem[] = [];
+  const bad = (field: string, message: string) => problems.push({ field, message });
+  const tol = TOLERANCE_MM;
+  const g = instance.spacing;
+  const U = usableRegion(instance);
+  const parts = prepared ?? shapeParts(instance);
+  const byId = new Map(parts.map((p) => [p.id, p] as const));
+  const placedCount = new Array<number>(parts.length).fill(0);
+
+  if (result.format !== RESULT_FORMAT_V2) bad('format', `must be "${RESULT_FORMAT_V2}"`);
+  const list = Array.isArray(result.placements) ? result.placements : [];
+  if (!Array.isArray(result.placements)) bad('placements', 'must be an array');
+  const finite = (v: unknown, n: number): v is number[] => Array.isArray(v) && v.length === n && v.every((c) => typeof c === 'number' && Number.isFinite(c));
+
+  const placed: Placed[] = [];
+  let top = -Infinity;
+  let volume = 0;
+  list.forEach((p, i) => {
+    const at = `placements[${i}]`;
+    const part = byId.get(p.id);
+    if (!part) {
+      bad(`${at}.id`, `must name a part of the instance ("${p.id}" is unknown)`);
+      return;
+    }
+    placedCount[part.index]++;
+    if (!finite(p.position, 3)) return bad(`${at}.position`, 'must be 3 finite numbers');
+    if (!finite(p.size, 3)) return bad(`${at}.size`, 'must be 3 finite numbers');
+    let rotation: number;
+    let translation: number[];
+    if (part.hasMesh) {
+      if (!finite(p.transform, 12)) return bad(`${at}.transform`, 'must be the 12 numbers of a 3MF transform');
+      rotation = rotationOfTransform(p.transform);
+      if (rotation < 0) return bad(`${at}.transform`, 'must turn the part by one of the 24 quarter-turn rotations (no mirror images, no scaling)');
+      translation = [p.transform[9], p.transform[10], p.transform[11]];
+      if (p.orientation !== undefined) {
+        const k = typeof p.orientation === 'string' ? rotationIndex(p.orientation) : -1;
+        const agrees = k === rotation || (k >= 0 && k < 6 && p.orientation === extentCode(rotation));
+        if (!agrees) bad(`${at}.orientation`, `"${p.orientation}" does not agree with the transform (${ROTATION_CODES[rotation]})`);
+      }
+    } else {
+      rotation = typeof p.orientation === 'string' ? rotationIndex(p.orientation) : -1;
+      if (rotation < 0) return bad(`${at}.orientation`, `"${p.orientation}" is not a rotation code`);
+      const box = rotatedBox(rotation, part.min, part.max);
+      translation = [0, 1, 2].map((a) => p.position[a] - box.min[a]);
+    }
+    if (!part.rotations.includes(rotation) && !(!part.hasMesh && part.rotations.some((k) => extentCode(k) === extentCode(rotation)))) {
+      bad(`${at}.orientation`, `${ROTATION_CODES[rotation]} is not a rotation part "${p.id}" allows`);
+    }
+    // The placed mesh's bounding box: the rotated box of the part's, moved.
+    const box = rotatedBox(rotation, part.min, part.max);
+    for (let a = 0; a < 3; a++) {
+      const min = box.min[a] + translation[a];
+      const max = box.max[a] + translation[a];
+      if (Math.abs(min - p.position[a]) > tol) bad(`${at}.position[${a}]`, `must be ${min}, the placed part's lowest ${'xyz'[a]}, not ${p.position[a]}`);
+      if (Math.abs(max - min - p.size[a]) > tol) bad(`${at}.size[${a}]`, `must be ${max - min}, the placed part's extent along ${'xyz'[a]}, not ${p.size[a]}`);
+      if (min < U.min[a] - tol || max > U.max[a] + tol) {
+        bad(`${at}.position[${a}]`, `puts the part [${min}, ${max}] outside the usable region [${U.min[a]}, ${U.max[a]}] along ${'xyz'[a]}`);
+      }
+    }
+    top = Math.max(top, box.max[2] + translation[2]);
+    volume += part.volume;
+    placed.push({ at: i, part, rotation, placed: new PlacedBvh(part.bvh(), rotation, translation) });
+  });
+
+  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad);
+
+  const unplacedCount = new Array<number>(parts.length).fill(0);
+  const unplaced = Array.isArray(result.unplaced) ? result.unplaced : [];
+  if (!Array.isArray(result.unplaced)) bad('unplaced', 'must be an array');
+  const listed = new Set<string>();
+  unplaced.forEach((u, i) => {
+    const part = byId.get(u.id);
+    if (!part) bad(`unplaced[${i}].id`, `must name a part of the instance ("${u.id}" is unknown)`);
+    else if (listed.has(u.id)) bad(`unplaced[${i}].id`, `"${u.id}" is listed twice`);
+    else if (!Number.isInteger(u.count) || u.count <= 0) bad(`unplaced[${i}].count`, 'must be a positive integer');
+    else unplacedCount[part.index] = u.count;
+    listed.add(u.id);
+  });
+  parts.forEach((part, k) => {
+    if (placedCount[k] + unplacedCount[k] !== part.quantity) {
+      bad(`parts[${k}].quantity`, `is ${part.quantity} but "${part.id}" has ${placedCount[k]} placed and ${unplacedCount[k]} unplaced`);
+    }
+  });
+
+  const any = placed.length > 0;
+  const height = any ? top : 0;
+  if (typeof result.height !== 'number' || Math.abs(result.height - height) > tol) bad('height', `must be the top of the highest placed part, ${height}, not ${result.height}`);
+  const layers = layerCount(height, instance.margin.top, instance.layerHeight, any);
+  if (result.layers !== layers) bad('layers', `must be ${layers}, not ${result.layers}`);
+  const denominator =
+    instance.objective === 'min-height' ? U.extent[0] * U.extent[1] * (height - instance.margin.bottom) : U.extent[0] * U.extent[1] * U.extent[2];
+  const utilization = any && denominator > 0 ? volume / denominator : 0;
+  if (typeof result.utilization !== 'number' || Math.abs(result.utilization - utilization) > 1e-9 * Math.max(1, utilization)) {
+    bad('utilization', `must be ${utilization} (placed parts' volume over the denominator), not ${result.utilization}`);
+  }
+  const expectedLayers = any ? Math.ceil(height / instance.layerHeight - 1e-9) : 0;
+  if (!Array.isArray(result.areaProfile) || result.areaProfile.length !== expectedLayers) {
+    bad('areaProfile', `must hold ceil(height / layerHeight) = ${expectedLayers} numbers`);
+  } else if (any) {
+    const sum = result.areaProfile.reduce((s, a) => s + a, 0) * instance.layerHeight;
+    // Mid-layer sampling errs by at most about one layer's slab of the parts' outline; 10 % catches a wrong profile.
+    if (!(Math.abs(sum - volume) <= 0.1 * volume)) bad('areaProfile', `sums to ${sum.toFixed(1)} mm^3 times the layer height, far from the placed volume ${volume.toFixed(1)} mm^3`);
+  }
+  return problems;
+}
+
+function checkGapsAndLift(
+  placed: Placed[],
+  g: number,
+  tol: number,
+  origin: readonly number[],
+  extent: readonly number[],
+  bad: (field: string, message: string) => void,
+): void {
+  const n = placed.length;
+  if (n < 2) return;
+  // Broad phase: a plan-view grid; every pair sharing a cell (boxes grown by the spacing) is looked at.
+  const G = Math.max(1, Math.min(128, Math.ceil(Math.sqrt(n))));
+  const cell = [Math.max(extent[0] / G, 1e-9), Math.max(extent[1] / G, 1e-9)];
+  const cellOf = (v: number, a: number) => Math.min(G - 1, Math.max(0, Math.floor((v - origin[a]) / cell[a])));
+  const buckets: number[][] = Array.from({ length: G * G }, () => []);
+  const range = new Int32Array(4 * n);
+  for (let i = 0; i < n; i++) {
+    const P = placed[i].placed;
+    range[4 * i] = cellOf(P.min[0] - g, 0);
+    range[4 * i + 1] = cellOf(P.min[1] - g, 1);
+    range[4 * i + 2] = cellOf(P.max[0] + g, 0);
+    range[4 * i + 3] = cellOf(P.max[1] + g, 1);
+    for (let x = range[4 * i]; x <= range[4 * i + 2]; x++) for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) buckets[x * G + y].push(i);
+  }
+  const seenBy = new Int32Array(n).fill(-1);
+  let gapReports = 0, gapTotal = 0, liftReports = 0, liftTotal = 0;
+  for (let i = 0; i < n; i++) {
+    const A = placed[i].placed;
+    for (let x = range[4 * i]; x <= range[4 * i + 2]; x++)
+      for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) {
+        for (const j of buckets[x * G + y]) {
+          if (j === i || seenBy[j] === i) continue;
+          seenBy[j] = i;
+          const B = placed[j].placed;
+          // Lift-out: B listed before A must not block A's way up.
+          if (j < i && blocksLift(A, B, tol)) {
+            liftTotal++;
+            if (liftReports++ < MAX_REPORTS) {
+              bad(`placements[${placed[i].at}]`, `cannot be lifted straight up: placements[${placed[j].at}], listed before it, is above it`);
+            }
+          }
+          if (j < i) continue;
+          let boxGap2 = 0;
+          for (let a = 0; a < 3; a++) {
+            const d = Math.max(B.min[a] - A.max[a], A.min[a] - B.max[a], 0);
+            boxGap2 += d * d;
+          }
+          let overlap = true;
+          for (let a = 0; a < 3; a++) if (B.min[a] >= A.max[a] - tol || A.min[a] >= B.max[a] - tol) overlap = false;
+          // With no spacing, parts whose boxes only touch are apart; otherwise their surfaces must not meet.
+          if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) continue;
+          const need = g > tol ? g : 2 * tol;
+          const d = surfaceDistance(A, B, need, need - tol);
+          let problem: string | null = null;
+          if (d < need - tol) problem = `is only ${d.toFixed(6)} mm from`;
+          else if (inside(A, B) || inside(B, A)) problem = 'lies inside (or holds inside it)';
+          if (problem) {
+            gapTotal++;
+            if (gapReports++ < MAX_REPORTS) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
+          }
+        }
+      }
+  }
+  if (gapTotal > MAX_REPORTS) bad('placements', `${gapTotal - MAX_REPORTS} more pairs are closer than the spacing`);
+  if (liftTotal > MAX_REPORTS) bad('placements', `${liftTotal - MAX_REPORTS} more parts are blocked on their way up`);
+}
+
+/** Does B lie inside A? Only possible when A's box holds B's; then one vertex of B decides (their surfaces are apart). */
+function inside(A: PlacedBvh, B: PlacedBvh): boolean {
+  for (let a = 0; a < 3; a++) if (B.min[a] < A.min[a] || B.max[a] > A.max[a]) return false;
+  const v = new Float64Array(9);
+  B.triangle(0, v, 0);
+  return containsPoint(A, [v[0], v[1], v[2]]);
+}

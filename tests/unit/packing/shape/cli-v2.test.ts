@@ -1,0 +1,110 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, relative } from 'node:path';
+import { housing, parseMeshFile, writeBinaryStl, writeAsciiStl } from '@/shared/geometry';
+import { parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
+import { box } from '../../geometry/helpers';
+
+const root = join(__dirname, '..', '..', '..', '..');
+const dir = mkdtempSync(join(tmpdir(), 'pack-v2-'));
+const run = (args: string[], input?: string) => spawnSync('npx', ['tsx', 'scripts/pack.ts', ...args], { cwd: root, input, encoding: 'utf8', timeout: 120_000 });
+const write = (name: string, body: string | Uint8Array) => {
+  const file = join(dir, name);
+  writeFileSync(file, body);
+  return file;
+};
+
+// An open-topped housing and small cubes that fit inside it.
+const housingMesh = housing({ lengthMm: 60, widthMm: 40, heightMm: 25, wallMm: 2, floorMm: 2, cornerRadiusMm: 4, cornerSegments: 4 });
+write('housing.stl', writeBinaryStl(housingMesh));
+write('cube.stl', writeAsciiStl(box(8, 8, 8)));
+write('huge.stl', writeBinaryStl(box(500, 500, 500)));
+// A cube with one triangle missing: not watertight.
+const open = box(10, 10, 10);
+write('open.stl', writeBinaryStl({ positions: open.positions, indices: open.indices.slice(0, 33) }));
+
+const base = {
+  format: 'pack-instance/2',
+  chamber: [66, 46, 120],
+  margin: { xy: 2, bottom: 2, top: 2 },
+  spacing: 2,
+  layerHeight: 0.2,
+  timeLimitMs: 300,
+  fit: 'shape',
+};
+
+/** The instance as the checker sees it: parsed, meshes attached from the files. */
+function withMeshes(body: Record<string, unknown>): PackInstanceV2 {
+  const parsed = parseInstanceV2(body);
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  for (const part of parsed.instance.parts) {
+    if (part.meshPath === null) continue;
+    // Read back from the file, as the command line does (binary STL holds 32-bit coordinates).
+    const parsed = parseMeshFile(new Uint8Array(readFileSync(join(dir, part.meshPath))), { filename: part.meshPath });
+    if (!parsed.ok) throw new Error(parsed.problems[0].message);
+    part.mesh = parsed.parts[0];
+  }
+  return parsed.instance;
+}
+
+describe('pack command line, version 2 (meshes)', () => {
+  test('a missing mesh file exits 2 with one line naming parts[i].mesh', () => {
+    const body = { ...base, parts: [{ id: 'cube', mesh: 'cube.stl', quantity: 1 }, { id: 'gone', mesh: 'nope/missing.stl', quantity: 1 }] };
+    const r = run([write('missing.json', JSON.stringify(body))]);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe('');
+    expect(r.stderr.trimEnd().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/^parts\[1\]\.mesh: cannot read "nope\/missing\.stl" \(ENOENT\)/);
+  }, 120_000);
+
+  test('an unreadable mesh file exits 2 naming the part and the reason', () => {
+    write('garbage.stl', 'solid x\n facet normal 0 0 1\n outer loop\n vertex 1 2\n');
+    const body = { ...base, parts: [{ id: 'bad', mesh: 'garbage.stl', quantity: 1 }] };
+    const r = run([write('garbage.json', JSON.stringify(body))]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/^parts\[0\]\.mesh: /);
+  }, 120_000);
+
+  test('by shape: cubes nest inside the housing, the layout passes the independent check, listed in lift-out order', () => {
+    const body = { ...base, parts: [{ id: 'housing', mesh: 'housing.stl', quantity: 1, orientations: ['upright'] }, { id: 'cube', mesh: 'cube.stl', quantity: 6 }, { id: 'huge', mesh: 'huge.stl', quantity: 1 }] };
+    const r = run([write('nest.json', JSON.stringify(body))]);
+    expect(r.status).toBe(0);
+    const result = JSON.parse(r.stdout);
+    expect(result.format).toBe('pack-result/2');
+    expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
+    expect(result.unplaced).toEqual([{ id: 'huge', count: 1 }]);
+    expect(result.placements).toHaveLength(7);
+    for (const p of result.placements) expect(p.transform).toHaveLength(12);
+    // The housing (60 x 40 x 25) just fits the 62 x 42 usable floor: the cubes can only go inside it, under its rim.
+    expect(result.height).toBeLessThanOrEqual(2 + 25 + 1e-6);
+    expect(result.areaProfile).toHaveLength(Math.ceil(result.height / 0.2 - 1e-9));
+  }, 120_000);
+
+  test('by box: the cubes cannot go inside the housing\'s box, so they stack higher; valid by the same check', () => {
+    const body = { ...base, fit: 'box', parts: [{ id: 'housing', mesh: 'housing.stl', quantity: 1, orientations: ['upright'] }, { id: 'cube', mesh: 'cube.stl', quantity: 6 }] };
+    const r = run([write('box.json', JSON.stringify(body))]);
+    expect(r.status).toBe(0);
+    const result = JSON.parse(r.stdout);
+    expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
+    expect(result.height).toBeGreaterThan(2 + 25 + 1e-6);
+  }, 120_000);
+
+  test('a mesh that is not watertight is packed by its box, with the reason on standard error and in the result', () => {
+    const body = { ...base, parts: [{ id: 'open', mesh: 'open.stl', quantity: 2 }] };
+    const r = run([write('open.json', JSON.stringify(body))]);
+    expect(r.status).toBe(0);
+    expect(r.stderr).toMatch(/not watertight/);
+    const result = JSON.parse(r.stdout);
+    expect(result.warnings).toEqual([expect.objectContaining({ id: 'open', code: 'not-watertight' })]);
+    expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
+  }, 120_000);
+
+  test('from standard input, mesh paths are relative to the current directory', () => {
+    const rel = relative(root, join(dir, 'cube.stl'));
+    const body = { ...base, parts: [{ id: 'cube', mesh: rel, quantity: 2 }] };
+    const r = run(['-'], JSON.stringify(body));
+    expect(r.status).toBe(0);
+    expect(JSON.parse(r.stdout).placements).toHaveLength(2);
+  }, 120_000);
+});

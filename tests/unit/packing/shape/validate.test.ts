@@ -1,0 +1,112 @@
+import { readModelXml, mergeMeshes, torus } from '@/shared/geometry';
+import { decodeText } from '@/shared/geometry/text';
+import {
+  summariseShapeLayout,
+  parseInstanceV2,
+  validateShapeLayout,
+  type PackInstanceV2,
+  type PackResultV2,
+  type PartMesh,
+} from '@/shared/packing';
+import { box, fixture } from '../../geometry/helpers';
+
+function instance(parts: Array<{ id: string; mesh: PartMesh; quantity: number; orientations?: string[] }>, spacing: number): PackInstanceV2 {
+  const parsed = parseInstanceV2({
+    format: 'pack-instance/2',
+    chamber: [200, 200, 200],
+    spacing,
+    layerHeight: 0.1,
+    fit: 'shape',
+    parts: parts.map((p) => ({ id: p.id, mesh: { positions: p.mesh.positions, indices: p.mesh.indices }, quantity: p.quantity, orientations: p.orientations })),
+  });
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.instance;
+}
+
+/** A result for placements given as (id, rotation, minimum corner), listed in the given order. */
+function layout(inst: PackInstanceV2, items: Array<[string, number, [number, number, number]]>): PackResultV2 {
+  return summariseShapeLayout(inst, items.map(([id, rotation, position]) => ({ id, rotation, position })));
+}
+
+describe('shape validator against the meshes', () => {
+  // Two unit cubes (Euclidean geometry: the gap between parallel faces is the difference of their coordinates).
+  test('two unit cubes 2 mm apart face to face: valid at spacing 2, too close at spacing 2.5', () => {
+    for (const [spacing, ok] of [[2, true], [2.5, false]] as const) {
+      const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 2 }], spacing);
+      const r = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [13, 10, 0]]]);
+      const problems = validateShapeLayout(inst, r);
+      if (ok) expect(problems).toEqual([]);
+      else expect(problems.map((p) => p.message).join()).toMatch(/only 2\.000000 mm from/);
+    }
+  });
+
+  test('two unit cubes offset along x and y: their nearest edges are sqrt(2) apart (Pythagoras)', () => {
+    const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 2 }], 1.41);
+    const r = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [12, 12, 0]]]);
+    expect(validateShapeLayout(inst, r)).toEqual([]);
+    const tight = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 2 }], 1.42);
+    expect(validateShapeLayout(tight, layout(tight, [['cube', 0, [10, 10, 0]], ['cube', 0, [12, 12, 0]]])).map((p) => p.message).join()).toMatch(/only 1\.414214 mm/);
+  });
+
+  test('the 3MF specification example box (3MF Core, Appendix B.2): two copies 5 mm apart pass at 5, fail at 6', () => {
+    const model = readModelXml(decodeText(fixture('3mf-core-example-box.model')), 'box.model');
+    if (!model.ok) throw new Error('fixture must read');
+    const mesh = mergeMeshes([...model.model.objects.values()].filter((o) => o.indices.length > 0));
+    for (const [spacing, ok] of [[5, true], [6, false]] as const) {
+      const inst = instance([{ id: 'box', mesh, quantity: 2 }], spacing);
+      // The example box is 39.998 mm wide: the second copy starts 5 mm after the first ends.
+      const r = layout(inst, [['box', 0, [10, 10, 0]], ['box', 0, [10 + 39.998 + 5, 10, 0]]]);
+      expect(validateShapeLayout(inst, r).length === 0).toBe(ok);
+    }
+  });
+
+  test('lift-out order: a cube above another must be listed after it', () => {
+    const inst = instance([{ id: 'cube', mesh: box(4, 4, 4), quantity: 2 }], 1);
+    const up = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [11, 11, 6]]]);
+    expect(validateShapeLayout(inst, up)).toEqual([]);
+    const down = layout(inst, [['cube', 0, [11, 11, 6]], ['cube', 0, [10, 10, 0]]]);
+    expect(validateShapeLayout(inst, down).map((p) => p.message).join()).toMatch(/cannot be lifted straight up/);
+    // Beside each other (no overlap in plan view), either order lifts out.
+    const side = layout(inst, [['cube', 0, [20, 10, 6]], ['cube', 0, [10, 10, 0]]]);
+    expect(validateShapeLayout(inst, side)).toEqual([]);
+  });
+
+  test('a ring around a post slides off upwards past its side: not touching, so either order lifts out', () => {
+    // A torus (major radius 10, tube 2: hole radius 8) around a 4 x 4 post (half-diagonal 2.83): no overlap in plan view.
+    const ring = torus(10, 2, 32, 12);
+    const post = box(4, 4, 30);
+    const inst = instance([{ id: 'ring', mesh: ring, quantity: 1, orientations: ['xyz'] }, { id: 'post', mesh: post, quantity: 1, orientations: ['xyz'] }], 1);
+    const ringFirst = layout(inst, [['post', 0, [48, 48, 0]], ['ring', 0, [38, 38, 10]]]);
+    expect(validateShapeLayout(inst, ringFirst)).toEqual([]);
+    const postFirst = layout(inst, [['ring', 0, [38, 38, 10]], ['post', 0, [48, 48, 0]]]);
+    expect(validateShapeLayout(inst, postFirst)).toEqual([]);
+  });
+
+  test('a cube inside a larger hollow shell (surfaces far apart) is reported as inside', () => {
+    const big = box(20, 20, 20);
+    const inst = instance([{ id: 'big', mesh: big, quantity: 1 }, { id: 'small', mesh: box(2, 2, 2), quantity: 1 }], 1);
+    const r = layout(inst, [['big', 0, [10, 10, 0]], ['small', 0, [19, 19, 9]]]);
+    expect(validateShapeLayout(inst, r).map((p) => p.message).join()).toMatch(/lies inside/);
+  });
+
+  test('a rotation the part does not allow, and a transform that is not a quarter turn, are refused', () => {
+    const inst = instance([{ id: 'cube', mesh: box(1, 2, 3), quantity: 1, orientations: ['upright'] }], 1);
+    const r = layout(inst, [['cube', 1, [10, 10, 0]]]);
+    expect(validateShapeLayout(inst, r).map((p) => p.message).join()).toMatch(/is not a rotation part "cube" allows/);
+    const skew = layout(inst, [['cube', 0, [10, 10, 0]]]);
+    skew.placements[0].transform = [0.5, 0.5, 0, -0.5, 0.5, 0, 0, 0, 1, 10, 10, 0];
+    expect(validateShapeLayout(inst, skew).map((p) => p.field)).toContain('placements[0].transform');
+  });
+
+  test('counts must add up and the area profile must hold one number a layer', () => {
+    const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 2 }], 1);
+    const r = layout(inst, [['cube', 0, [10, 10, 0]]]);
+    expect(r.unplaced).toEqual([{ id: 'cube', count: 1 }]);
+    expect(validateShapeLayout(inst, { ...r, unplaced: [] }).map((p) => p.field)).toContain('parts[0].quantity');
+    const ok = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [15, 10, 0]]]);
+    expect(ok.areaProfile).toHaveLength(10);
+    // Each layer of two unit cubes has 2 mm^2 of section (sum x layer height = volume, 2 mm^3).
+    ok.areaProfile.forEach((a) => expect(a).toBeCloseTo(2, 9));
+    expect(validateShapeLayout(inst, { ...ok, areaProfile: ok.areaProfile.slice(1) }).map((p) => p.field)).toContain('areaProfile');
+  });
+});
