@@ -11,6 +11,7 @@ import { enoughPowder, printTimer } from '../../shared/floor';
 import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import type { RunView } from '../../shared/schemas/runs';
 import { Cautions } from './Cautions';
+import { PowderBeforeStart, PowderRecovery } from './PowderSection';
 import { CheckRow, CountStepper, FloorButton, FloorInput } from './controls';
 import { clockOffsetMs, formatClock, formatDuration, liveCooling, useNow } from './live';
 
@@ -162,6 +163,7 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
         <Big label="Print, estimated" value={run.estimate ? formatDuration(run.estimate.printSeconds) : '–'} />
       </View>
       <CalibrationLine machineId={run.machine.id} />
+      <PowderBeforeStart planId={run.planId} onUse={(f, r) => { setFresh(String(f)); setReused(String(r)); }} />
       <CheckRow label="The build chamber is in place" checked={checks.chamberInPlace} onToggle={() => setChecks((c) => ({ ...c, chamberInPlace: !c.chamberInPlace }))} testID="check-chamberInPlace" />
       <CheckRow label="The optical window is clean" checked={checks.opticalWindowClean} onToggle={() => setChecks((c) => ({ ...c, opticalWindowClean: !c.opticalWindowClean }))} testID="check-opticalWindowClean" />
       <FloorInput
@@ -386,6 +388,7 @@ function Breakout({ run, advance, err, canAct }: StageProps) {
           </View>
         );
       })}
+      <PowderRecovery planId={run.planId} canAct={canAct} />
       <StageFoot run={run} err={err} fieldsShown={['counts']}>
         <FloorButton
           label="Record counts: start finishing"

@@ -19,6 +19,7 @@ import { LateSection } from './LateSection';
 import { LeadSection } from './LeadSection';
 import { OperatorSection } from './OperatorSection';
 import { PlannerSection } from './PlannerSection';
+import { PowderHomeSection } from './PowderHomeSection';
 import { findLateRequests } from './late';
 
 /** The open requests in the planner's order: soonest due, the most urgent first on the same day. */
@@ -66,6 +67,7 @@ export function HomeScreen() {
   if (lab.has('designer')) sections.push({ key: 'designer', node: <DesignerSection requests={{ ...requestsState, data: requests.data ? mine : undefined }} /> });
   if (lab.has('planner')) sections.push({ key: 'planner', node: <PlannerSection requests={{ ...requestsState, data: requests.data ? openRequests : undefined }} meId={me?.user.id} /> });
   if (lab.has('lead')) sections.push({ key: 'lead', node: <LeadSection nowMs={nowMs} /> });
+  if (lab.has('lead')) sections.push({ key: 'powder', node: <PowderHomeSection /> });
   if (lab.has('operator'))
     sections.push({
       key: 'operator',

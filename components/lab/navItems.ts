@@ -3,7 +3,7 @@ import type { IconName } from '../ui';
 import type { Role } from '../api/schemas';
 
 export type NavItem = {
-  key: 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings';
+  key: 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'powder' | 'settings';
   label: string;
   href: Href;
   icon: IconName;
@@ -20,6 +20,7 @@ export const navItems: NavItem[] = [
   { key: 'plans', label: 'Plans', href: '/plans', icon: 'plans', roles: ['planner', 'lead'], match: '/plans' },
   { key: 'queue', label: 'Queue', href: '/queue', icon: 'queue', roles: ['planner', 'lead', 'operator'], match: '/queue' },
   { key: 'floor', label: 'Floor', href: '/floor', icon: 'floor', roles: ['operator', 'lead'], match: '/floor' },
+  { key: 'powder', label: 'Powder', href: '/powder', icon: 'powder', roles: ['planner', 'lead', 'operator'], match: '/powder' },
   { key: 'settings', label: 'Settings', href: '/settings', icon: 'settings', match: '/settings' },
 ];
 

@@ -1,6 +1,6 @@
 import Svg, { Circle, Path, Rect } from 'react-native-svg';
 
-export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'signOut' | 'chevron';
+export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'signOut' | 'chevron' | 'powder';
 
 /** Line icons drawn for Sinterstack on a 24 px grid. */
 export function Icon({ name, size = 22, color }: { name: IconName; size?: number; color: string }) {
@@ -60,6 +60,15 @@ export function Icon({ name, size = 22, color }: { name: IconName; size?: number
         <>
           <Path d="M10 5H6v14h4" {...stroke} />
           <Path d="M14 8l4 4-4 4M18 12H9.5" {...stroke} />
+        </>
+      ) : null}
+      {name === 'powder' ? (
+        <>
+          <Path d="M3.5 19.5h17" {...stroke} />
+          <Path d="M5 19.5c1.5-5 4-8 7-8s5.5 3 7 8" {...stroke} />
+          <Circle cx={12} cy={6} r={0.9} {...stroke} fill={color} />
+          <Circle cx={8.5} cy={8} r={0.9} {...stroke} fill={color} />
+          <Circle cx={15.5} cy={8} r={0.9} {...stroke} fill={color} />
         </>
       ) : null}
       {name === 'chevron' ? <Path d="M9 6l6 6-6 6" {...stroke} /> : null}

@@ -12,6 +12,8 @@ import type { Priority } from '../../../shared/schemas/requests';
  * The demo lab: an invented robotics start-up's prototyping lab. Every demo
  * member signs in with the same password; the README lists them.
  */
+import { seedPowderHistory } from './powder';
+
 export const DEMO_LAB_NAME = 'Tinkerfin Robotics – prototyping lab';
 export const DEMO_PASSWORD = 'sinter-demo-2026';
 export const DEMO_MEMBERS: { email: string; name: string; roles: Role[] }[] = [
@@ -52,7 +54,19 @@ export async function seedDemoIfEmpty(db: Database, services: Services, opts: { 
   });
   // `npm start` adds a plan waiting for review; the test database leaves the
   // requests open, because browser tests plan them themselves.
-  if (opts.planInReview) await seedPlanInReview(db, services);
+  if (opts.planInReview) {
+    await seedPlanInReview(db, services);
+    // A powder history for the lab `npm start` shows; the test database starts without one, so its builds check no stock.
+    const lead = await db.models.User.findOne({ where: { email: 'lead@tinkerfin.example' }, raw: true });
+    const operator = await db.models.User.findOne({ where: { email: 'operator@tinkerfin.example' }, raw: true });
+    const lab = await db.models.Lab.findOne({ where: { name: DEMO_LAB_NAME }, raw: true });
+    if (lead && operator && lab) {
+      await seedPowderHistory(db, (lab as unknown as { id: string }).id, {
+        lead: (lead as unknown as { id: string }).id,
+        operator: (operator as unknown as { id: string }).id,
+      });
+    }
+  }
   return true;
 }
 

@@ -1,0 +1,5 @@
+import { PowderScreen } from '@/components/powder/PowderScreen';
+
+export default function PowderRoute() {
+  return <PowderScreen />;
+}
