@@ -4,7 +4,7 @@ import { StyleSheet, View } from 'react-native';
 import { z } from 'zod';
 import { PASSWORD_MIN } from '../../shared/schemas/auth';
 import { fieldErrorsOf, isApiError } from '../api/client';
-import type { InvitePreview } from '../api/schemas';
+import type { InvitePreviewView as InvitePreview } from '../../shared/schemas/auth';
 import { roleHints, roleLabels, roleTones, sortRoles } from '../lab/roles';
 import { chooseLab } from '../lab/useCurrentLab';
 import { useAcceptInviteMutation, useInvitePreviewQuery } from '../queries/invites';

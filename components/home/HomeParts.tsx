@@ -1,6 +1,6 @@
 import { type Href } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
-import type { Role } from '../api/schemas';
+import type { Role } from '../../shared/schemas/auth';
 import { roleLabels } from '../lab/roles';
 import { colors, radius, spacing, type ColorName } from '../theme';
 

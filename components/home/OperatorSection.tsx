@@ -1,5 +1,5 @@
 import { View } from 'react-native';
-import type { Machine } from '../api/schemas';
+import type { MachineView as Machine } from '../../shared/schemas/profiles';
 import type { PlanListItem } from '../../shared/schemas/plans';
 import type { QueueItemView } from '../../shared/schemas/runs';
 import { STATUS_LABELS } from '../../shared/plans/status';

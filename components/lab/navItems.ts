@@ -1,6 +1,6 @@
 import type { Href } from 'expo-router';
 import type { IconName } from '../ui';
-import type { Role } from '../api/schemas';
+import type { Role } from '../../shared/schemas/auth';
 
 export type NavItem = {
   key: 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'powder' | 'settings';

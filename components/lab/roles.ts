@@ -1,4 +1,4 @@
-import { roles, type Role } from '../api/schemas';
+import { ROLES as roles, type Role } from '../../shared/schemas/auth';
 import type { BadgeTone } from '../ui';
 
 export { roles, type Role };

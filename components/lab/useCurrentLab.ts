@@ -1,6 +1,6 @@
 import { useMeQuery } from '../queries/me';
 import { setCurrentLabId, useCurrentLabId } from '../stores/labStore';
-import type { LabSummary, Role } from '../api/schemas';
+import type { LabSummaryView as LabSummary, Role } from '../../shared/schemas/auth';
 
 export type CurrentLab = LabSummary & {
   has: (role: Role) => boolean;

@@ -9,7 +9,7 @@ import { StyleSheet, View } from 'react-native';
 import { buildCountLowerBound, parseInstance, splitIntoBuilds, type PlannedBuild, type Vec3 } from '../../shared/packing';
 import type { OpenLineView, PlanOrientationRule } from '../../shared/schemas/plans';
 import { isApiError } from '../api/client';
-import type { Machine, Material } from '../api/schemas';
+import type { MachineView as Machine, MaterialView as Material } from '../../shared/schemas/profiles';
 import { useLab } from '../lab/useCurrentLab';
 import { useMachinesQuery } from '../queries/machines';
 import { useMaterialsQuery } from '../queries/materials';

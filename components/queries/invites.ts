@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api } from '../api/client';
-import { invitePreviewSchema, inviteSchema, meSchema, roleSchema } from '../api/schemas';
+import { invitePreviewViewSchema as invitePreviewSchema, inviteViewSchema as inviteSchema, meViewSchema as meSchema, roleSchema } from '../../shared/schemas/auth';
 import { dropSessionData, meKeys } from './me';
 
 export const inviteKeys = {

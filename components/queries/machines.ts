@@ -1,5 +1,5 @@
 import type { MachineProfile } from '../../shared/types/profiles';
-import { machineSchema, type Machine } from '../api/schemas';
+import { machineViewSchema as machineSchema, type MachineView as Machine } from '../../shared/schemas/profiles';
 import { labResource } from './labResource';
 
 const machines = labResource<Machine, MachineProfile>('machines', machineSchema);

@@ -1,5 +1,5 @@
 import type { MaterialProfile } from '../../shared/types/profiles';
-import { materialSchema, type Material } from '../api/schemas';
+import { materialViewSchema as materialSchema, type MaterialView as Material } from '../../shared/schemas/profiles';
 import { labResource } from './labResource';
 
 const materials = labResource<Material, MaterialProfile>('materials', materialSchema);

@@ -2,7 +2,7 @@ import { useMutation, useQuery, useQueryClient, type QueryClient } from '@tansta
 import { z } from 'zod';
 import { PASSWORD_MIN } from '../../shared/schemas/auth';
 import { api, isApiError } from '../api/client';
-import { meSchema, type Me } from '../api/schemas';
+import { meViewSchema as meSchema, type MeResponse as Me } from '../../shared/schemas/auth';
 
 export const meKeys = {
   all: ['me'] as const,

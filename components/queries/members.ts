@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api } from '../api/client';
-import { memberSchema, type Role } from '../api/schemas';
+import { memberViewSchema as memberSchema, type Role } from '../../shared/schemas/auth';
 import { meKeys } from './me';
 
 export const memberKeys = {

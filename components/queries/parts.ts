@@ -1,57 +1,27 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { z } from 'zod';
-import type { PartPatch } from '../../shared/schemas/parts';
+import {
+  partListResponseSchema,
+  partUploadResponseSchema,
+  partViewSchema,
+  partWarningSchema,
+  rejectedFileSchema,
+  type PartListResponse,
+  type PartPatch,
+  type PartUploadResponse,
+  type PartView,
+  type RejectedFile,
+} from '../../shared/schemas/parts';
 import { api } from '../api/client';
 
-/** Response shapes of the part routes, parsed at the client's edge. */
-const id = z.union([z.string(), z.number()]).transform((v) => String(v));
-const vec3 = z.tuple([z.number(), z.number(), z.number()]);
-
-export const partWarningSchema = z.object({ code: z.string(), message: z.string() });
-
-export const partSchema = z.object({
-  id,
-  labId: id,
-  name: z.string(),
-  tags: z.array(z.string()),
-  sizeMm: vec3,
-  uploadedSizeMm: vec3,
-  rotationDeg: vec3,
-  orientation: z.enum(['any', 'keep_up', 'fixed']),
-  volumeMm3: z.number(),
-  areaMm2: z.number(),
-  triangles: z.number(),
-  watertight: z.boolean(),
-  shells: z.number(),
-  openEdges: z.number(),
-  nonManifoldEdges: z.number(),
-  oriented: z.boolean(),
-  warnings: z.array(partWarningSchema),
-  materialId: id.nullable(),
-  materialName: z.string().nullable(),
-  timesUsed: z.number(),
-  uploadedBy: z.object({ id, name: z.string() }).nullable(),
-  createdAt: z.string(),
-  updatedAt: z.string(),
-  file: z.object({
-    name: z.string(),
-    format: z.enum(['stl', 'obj', '3mf']),
-    unit: z.enum(['mm', 'cm', 'inch']),
-    split: z.boolean(),
-    partIndex: z.number(),
-    sizeBytes: z.number(),
-    sha256: z.string(),
-  }),
-});
-export type Part = z.infer<typeof partSchema>;
-
-export const partListSchema = z.object({ items: z.array(partSchema), total: z.number() });
-export type PartList = z.infer<typeof partListSchema>;
-
-export const rejectedFileSchema = z.object({ file: z.string(), code: z.string(), message: z.string() });
-export const partUploadSchema = z.object({ parts: z.array(partSchema), rejected: z.array(rejectedFileSchema) });
-export type RejectedFile = z.infer<typeof rejectedFileSchema>;
-export type PartUploadResult = z.infer<typeof partUploadSchema>;
+/** Response shapes of the part routes: the server's own views, parsed at the client's edge. */
+export { partWarningSchema, rejectedFileSchema };
+export const partSchema = partViewSchema;
+export type Part = PartView;
+export const partListSchema = partListResponseSchema;
+export type PartList = PartListResponse;
+export const partUploadSchema = partUploadResponseSchema;
+export type { RejectedFile };
+export type PartUploadResult = PartUploadResponse;
 
 /** The list query as the library screen holds it; empty values are left out of the URL. */
 export type PartListParams = {

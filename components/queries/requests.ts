@@ -1,41 +1,20 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { z } from 'zod';
-import type { RequestPatch } from '../../shared/schemas/requests';
+import {
+  requestLineViewSchema,
+  requestListResponseSchema,
+  requestViewSchema,
+  type RequestLineView,
+  type RequestPatch,
+  type RequestView,
+} from '../../shared/schemas/requests';
 import { api } from '../api/client';
 
-/** Response shapes of the request routes, parsed at the client's edge. */
-const id = z.union([z.string(), z.number()]).transform((v) => String(v));
-
-export const requestLineSchema = z.object({
-  id,
-  partId: id,
-  partName: z.string(),
-  quantity: z.number(),
-  plannedCount: z.number(),
-  printedCount: z.number(),
-});
-
-export const requestSchema = z.object({
-  id,
-  labId: id,
-  title: z.string(),
-  materialId: id.nullable(),
-  materialName: z.string().nullable(),
-  dueDate: z.string(),
-  priority: z.enum(['low', 'normal', 'high', 'urgent']),
-  notes: z.string(),
-  status: z.enum(['open', 'cancelled', 'done']),
-  createdBy: z.object({ id, name: z.string() }).nullable(),
-  createdAt: z.string(),
-  updatedAt: z.string(),
-  lines: z.array(requestLineSchema),
-  totals: z.object({ quantity: z.number(), planned: z.number(), printed: z.number() }),
-  planned: z.boolean(),
-});
-export type LabRequest = z.infer<typeof requestSchema>;
-export type LabRequestLine = z.infer<typeof requestLineSchema>;
-
-export const requestListSchema = z.object({ items: z.array(requestSchema), total: z.number() });
+/** Response shapes of the request routes: the server's own views, parsed at the client's edge. */
+export const requestLineSchema = requestLineViewSchema;
+export const requestSchema = requestViewSchema;
+export type LabRequest = RequestView;
+export type LabRequestLine = RequestLineView;
+export const requestListSchema = requestListResponseSchema;
 
 export type RequestListParams = {
   status?: 'open' | 'cancelled' | 'done' | 'all';

@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { fieldErrorsOf } from '../api/client';
-import type { Invite, Role } from '../api/schemas';
+import type { InviteView as Invite, Role } from '../../shared/schemas/auth';
 import { roleHints, roleLabels, roles, roleTones, sortRoles } from '../lab/roles';
 import { useLab } from '../lab/useCurrentLab';
 import { useMembersQuery } from '../queries/members';

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import type { Member, Role } from '../api/schemas';
+import type { MemberView as Member, Role } from '../../shared/schemas/auth';
 import { roleLabels, roles, roleTones, sortRoles } from '../lab/roles';
 import { useLab } from '../lab/useCurrentLab';
 import { useMeQuery } from '../queries/me';

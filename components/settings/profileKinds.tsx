@@ -1,5 +1,5 @@
 import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
-import type { Machine, Material } from '../api/schemas';
+import type { MachineView as Machine, MaterialView as Material } from '../../shared/schemas/profiles';
 import {
   useCreateMachineMutation,
   useDeleteMachineMutation,

@@ -3,22 +3,14 @@ import { Op } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
 import type { Mailer } from '../mail/mailer';
-import { passwordSchema, ROLES, type Role } from '../../shared/schemas/auth';
+import { passwordSchema, ROLES, type InvitePreviewView, type InviteView, type Role } from '../../shared/schemas/auth';
 import type { AuthService } from './auth';
 import type { LabsService } from './labs';
 
 const INVITE_DAYS = 7;
 const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');
 
-export type InviteView = {
-  id: string;
-  email: string;
-  roles: Role[];
-  createdAt: string;
-  expiresAt: string;
-  acceptedAt: string | null;
-  invitedBy: string | null;
-};
+export type { InviteView };
 
 function view(row: any): InviteView {
   return {
@@ -90,13 +82,13 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
       if (!count) throw notFound('That invite');
     },
 
-    async lookup(token: string) {
+    async lookup(token: string): Promise<InvitePreviewView> {
       const row = await usable(token);
       const lab: any = await Lab.findByPk(row.labId, { raw: true });
       const existing = await deps.auth.findByEmail(row.email);
       return {
-        labName: lab.name as string,
-        email: row.email as string,
+        labName: lab.name,
+        email: row.email,
         roles: ROLES.filter((r) => row.roles.includes(r)),
         existingUser: !!existing,
         expiresAt: new Date(row.expiresAt).toISOString(),

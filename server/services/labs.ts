@@ -1,9 +1,9 @@
 import { Op, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { conflict, forbidden, notFound } from '../errors';
-import { ROLES, type MeResponse, type Role } from '../../shared/schemas/auth';
+import { ROLES, type MemberView, type MeResponse, type Role } from '../../shared/schemas/auth';
 
-export type Member = { userId: string; email: string; name: string; roles: Role[]; joinedAt: string };
+export type Member = MemberView;
 
 const sortRoles = (roles: string[]) => ROLES.filter((r) => roles.includes(r));
 

@@ -2,9 +2,10 @@ import type { z } from 'zod';
 import type { Database } from '../db';
 import { conflict, notFound } from '../errors';
 import { parseOrThrow } from '../validation';
+import type { Stored } from '../../shared/schemas/profiles';
 
 type ProfileModel = Database['models']['Machine'];
-export type Stored<P> = P & { id: string; labId: string; createdAt: string; updatedAt: string };
+export type { Stored };
 
 function view<P>(row: any): Stored<P> {
   return {

@@ -45,7 +45,40 @@ export const memberUpdateSchema = z.strictObject({ roles: rolesSchema });
 export type SignUpInput = z.infer<typeof signUpSchema>;
 export type SignInInput = z.infer<typeof signInSchema>;
 
-export type MeResponse = {
-  user: { id: string; email: string; name: string };
-  labs: { id: string; name: string; roles: Role[] }[];
-};
+// ---------------------------------------------------------------------------
+// Answers (the server is typed by them, the client parses with them)
+
+const isoTime = z.string();
+
+export const userViewSchema = z.object({ id: z.string(), email: z.string(), name: z.string() });
+export const labSummaryViewSchema = z.object({ id: z.string(), name: z.string(), roles: z.array(roleSchema) });
+/** The signed-in user and their labs. */
+export const meViewSchema = z.object({ user: userViewSchema, labs: z.array(labSummaryViewSchema) });
+export type UserView = z.infer<typeof userViewSchema>;
+export type LabSummaryView = z.infer<typeof labSummaryViewSchema>;
+export type MeResponse = z.infer<typeof meViewSchema>;
+
+export const memberViewSchema = z.object({ userId: z.string(), email: z.string(), name: z.string(), roles: z.array(roleSchema), joinedAt: isoTime });
+export type MemberView = z.infer<typeof memberViewSchema>;
+
+export const inviteViewSchema = z.object({
+  id: z.string(),
+  email: z.string(),
+  roles: z.array(roleSchema),
+  createdAt: isoTime,
+  expiresAt: isoTime,
+  acceptedAt: isoTime.nullable(),
+  /** The id of the member who sent it. */
+  invitedBy: z.string().nullable(),
+});
+export type InviteView = z.infer<typeof inviteViewSchema>;
+
+/** What an invite link offers, to anyone holding the token. */
+export const invitePreviewViewSchema = z.object({
+  labName: z.string(),
+  email: z.string(),
+  roles: z.array(roleSchema),
+  existingUser: z.boolean(),
+  expiresAt: isoTime,
+});
+export type InvitePreviewView = z.infer<typeof invitePreviewViewSchema>;

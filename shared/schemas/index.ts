@@ -2,3 +2,4 @@ export * from './auth';
 export * from './parts';
 export * from './requests';
 export * from './plans';
+export * from './profiles';

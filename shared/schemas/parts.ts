@@ -65,53 +65,58 @@ export type PartPatch = z.infer<typeof partPatchSchema>;
 export type PartListQuery = z.infer<typeof partListQuerySchema>;
 export type OrientationRule = (typeof ORIENTATION_RULES)[number];
 
-export interface PartWarning {
-  code: string;
-  message: string;
-}
+// ---------------------------------------------------------------------------
+// Answers (the server is typed by them, the client parses with them)
+
+const vec3 = z.tuple([z.number(), z.number(), z.number()]);
+
+export const partWarningSchema = z.object({ code: z.string(), message: z.string() });
+export type PartWarning = z.infer<typeof partWarningSchema>;
 
 /** A part as the API returns it. */
-export interface PartView {
-  id: string;
-  labId: string;
-  name: string;
-  tags: string[];
+export const partViewSchema = z.object({
+  id: z.string(),
+  labId: z.string(),
+  name: z.string(),
+  tags: z.array(z.string()),
   /** After the stored rotation. */
-  sizeMm: [number, number, number];
-  uploadedSizeMm: [number, number, number];
-  rotationDeg: [number, number, number];
-  orientation: OrientationRule;
-  volumeMm3: number;
-  areaMm2: number;
-  triangles: number;
-  watertight: boolean;
-  shells: number;
-  openEdges: number;
-  nonManifoldEdges: number;
-  oriented: boolean;
-  warnings: PartWarning[];
-  materialId: string | null;
-  materialName: string | null;
-  timesUsed: number;
-  uploadedBy: { id: string; name: string } | null;
-  createdAt: string;
-  updatedAt: string;
+  sizeMm: vec3,
+  uploadedSizeMm: vec3,
+  rotationDeg: vec3,
+  orientation: z.enum(ORIENTATION_RULES),
+  volumeMm3: z.number(),
+  areaMm2: z.number(),
+  triangles: z.number(),
+  watertight: z.boolean(),
+  shells: z.number(),
+  openEdges: z.number(),
+  nonManifoldEdges: z.number(),
+  oriented: z.boolean(),
+  warnings: z.array(partWarningSchema),
+  materialId: z.string().nullable(),
+  materialName: z.string().nullable(),
+  timesUsed: z.number(),
+  uploadedBy: z.object({ id: z.string(), name: z.string() }).nullable(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
   /** How to read the stored file for a preview: the same unit and split choice, then the part at `partIndex`. */
-  file: { name: string; format: 'stl' | 'obj' | '3mf'; unit: 'mm' | 'cm' | 'inch'; split: boolean; partIndex: number; sizeBytes: number; sha256: string };
-}
+  file: z.object({
+    name: z.string(),
+    format: z.enum(['stl', 'obj', '3mf']),
+    unit: z.enum(['mm', 'cm', 'inch']),
+    split: z.boolean(),
+    partIndex: z.number(),
+    sizeBytes: z.number(),
+    sha256: z.string(),
+  }),
+});
+export type PartView = z.infer<typeof partViewSchema>;
 
-export interface RejectedFile {
-  file: string;
-  code: string;
-  message: string;
-}
+export const rejectedFileSchema = z.object({ file: z.string(), code: z.string(), message: z.string() });
+export type RejectedFile = z.infer<typeof rejectedFileSchema>;
 
-export interface PartUploadResponse {
-  parts: PartView[];
-  rejected: RejectedFile[];
-}
+export const partUploadResponseSchema = z.object({ parts: z.array(partViewSchema), rejected: z.array(rejectedFileSchema) });
+export type PartUploadResponse = z.infer<typeof partUploadResponseSchema>;
 
-export interface PartListResponse {
-  items: PartView[];
-  total: number;
-}
+export const partListResponseSchema = z.object({ items: z.array(partViewSchema), total: z.number() });
+export type PartListResponse = z.infer<typeof partListResponseSchema>;

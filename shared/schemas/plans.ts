@@ -2,11 +2,12 @@ import { z } from 'zod';
 import { PLAN_STATUSES, type PlanStatus } from '../plans/status';
 import { MAX_TOTAL_QUANTITY } from '../packing/parse';
 import { ORIENTATIONS, RESULT_FORMAT } from '../packing/types';
+import { ORIENTATION_RULES } from './parts';
 
 const uuid = z.uuid('must be an id');
 
 /** any: turned freely; keep_up: only about the vertical axis; fixed: as stored on the part. */
-export const PLAN_ORIENTATION_RULES = ['any', 'keep_up', 'fixed'] as const;
+export const PLAN_ORIENTATION_RULES = ORIENTATION_RULES;
 export type PlanOrientationRule = (typeof PLAN_ORIENTATION_RULES)[number];
 export const planOrientationRuleSchema = z.enum(PLAN_ORIENTATION_RULES);
 

@@ -78,35 +78,38 @@ export type RequestPatch = z.infer<typeof requestPatchSchema>;
 export type RequestListQuery = z.infer<typeof requestListQuerySchema>;
 export type Priority = (typeof PRIORITIES)[number];
 
-export interface RequestLineView {
-  id: string;
-  partId: string;
-  partName: string;
-  quantity: number;
-  plannedCount: number;
-  printedCount: number;
-}
+// ---------------------------------------------------------------------------
+// Answers (the server is typed by them, the client parses with them)
 
-export interface RequestView {
-  id: string;
-  labId: string;
-  title: string;
-  materialId: string | null;
-  materialName: string | null;
-  dueDate: string;
-  priority: Priority;
-  notes: string;
-  status: (typeof REQUEST_STATUSES)[number];
-  createdBy: { id: string; name: string } | null;
-  createdAt: string;
-  updatedAt: string;
-  lines: RequestLineView[];
-  totals: { quantity: number; planned: number; printed: number };
+export const requestLineViewSchema = z.object({
+  id: z.string(),
+  partId: z.string(),
+  partName: z.string(),
+  quantity: z.number(),
+  plannedCount: z.number(),
+  printedCount: z.number(),
+});
+export type RequestLineView = z.infer<typeof requestLineViewSchema>;
+
+export const requestViewSchema = z.object({
+  id: z.string(),
+  labId: z.string(),
+  title: z.string(),
+  materialId: z.string().nullable(),
+  materialName: z.string().nullable(),
+  dueDate: z.string(),
+  priority: z.enum(PRIORITIES),
+  notes: z.string(),
+  status: z.enum(REQUEST_STATUSES),
+  createdBy: z.object({ id: z.string(), name: z.string() }).nullable(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+  lines: z.array(requestLineViewSchema),
+  totals: z.object({ quantity: z.number(), planned: z.number(), printed: z.number() }),
   /** True once any line has a planned count: the request can no longer be edited. */
-  planned: boolean;
-}
+  planned: z.boolean(),
+});
+export type RequestView = z.infer<typeof requestViewSchema>;
 
-export interface RequestListResponse {
-  items: RequestView[];
-  total: number;
-}
+export const requestListResponseSchema = z.object({ items: z.array(requestViewSchema), total: z.number() });
+export type RequestListResponse = z.infer<typeof requestListResponseSchema>;
