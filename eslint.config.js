@@ -32,7 +32,7 @@ module.exports = [
             { target: './shared', from: ['./app', './components', './workers', './server', './scripts', './tests'], message: 'shared/ is pure: it imports nothing from the other folders.' },
             { target: './components', from: ['./app', './server'], message: 'components/ may use shared/ only.' },
             // Workers are started by URL; only their protocol types may be imported.
-            { target: './components', from: './workers', except: ['./protocol.ts'], message: 'components/ start workers by URL and import only workers/protocol.ts.' },
+            { target: './components', from: './workers', except: ['./protocol.ts', './mesh.protocol.ts'], message: 'components/ start workers by URL and import only the workers\' protocol files (workers/protocol.ts, workers/mesh.protocol.ts).' },
             { target: './workers', from: ['./app', './components', './server'], message: 'workers/ call shared/ only.' },
             { target: './server', from: ['./app', './components', './workers'], message: 'server/ uses shared/ only.' },
             { target: './app', from: ['./server', './workers'], message: 'app/ composes components and shared code only.' },

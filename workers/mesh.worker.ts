@@ -9,34 +9,10 @@
  *     -> { ok: true, mesh: ViewMesh } | { ok: false, problems: MeshProblem[] }
  */
 import * as Comlink from 'comlink';
-import { MM_PER_UNIT, formatFromFilename, isBinaryStlSize, mergeMeshes, parseMeshFile, type LengthUnit, type ProblemCode } from '../shared/geometry';
+import { MM_PER_UNIT, formatFromFilename, isBinaryStlSize, mergeMeshes, parseMeshFile, type LengthUnit } from '../shared/geometry';
+import type { MeshProblem, MeshWorkerApi, ParseMeshOptions, ParseMeshResult, ViewMesh } from './mesh.protocol';
 
-export interface ViewMesh {
-  /** xyz triples in millimetres, in the file's own coordinates (z is the build direction). */
-  positions: Float32Array;
-  /** Three vertex indices a triangle. */
-  indices: Uint32Array;
-  bboxMinMm: [number, number, number];
-  bboxMaxMm: [number, number, number];
-  sizeMm: [number, number, number];
-  triangles: number;
-  /** Parts found in the file (a 3MF may hold several); the mesh holds them all unless one was asked for. */
-  partNames: string[];
-}
-
-export interface MeshProblem {
-  code: ProblemCode | 'bad-request' | 'part-not-found';
-  message: string;
-  /** The argument at fault, for a malformed request. */
-  field?: string;
-}
-
-export type ParseMeshResult = { ok: true; mesh: ViewMesh } | { ok: false; problems: MeshProblem[] };
-
-export interface ParseMeshOptions {
-  /** Draw only the part of this name (a 3MF with several objects). */
-  partName?: string;
-}
+export type { MeshProblem, ParseMeshOptions, ParseMeshResult, ViewMesh };
 
 const UNITS = Object.keys(MM_PER_UNIT) as LengthUnit[];
 
@@ -112,8 +88,11 @@ export function sniffExtension(bytes: Uint8Array): '.3mf' | '.stl' | '.obj' | nu
   return null;
 }
 
-const api = {
-  parseMesh(bytes: ArrayBuffer, filename: string, unit: LengthUnit, options?: ParseMeshOptions): ParseMeshResult {
+/** Comlink answers with promises; the worker's own calls are plain. */
+type Plain<A> = { [K in keyof A]: A[K] extends (...args: infer P) => Promise<infer R> ? (...args: P) => R : never };
+
+const api: Plain<MeshWorkerApi> = {
+  parseMesh(bytes, filename, unit, options) {
     let result: ParseMeshResult;
     try {
       result = parseMeshForView(bytes, filename, unit, options ?? {});
@@ -126,7 +105,7 @@ const api = {
   },
 };
 
-export type MeshWorkerApi = typeof api;
+export type { MeshWorkerApi };
 
 // Only expose inside a worker (self without a document); importing this file in tests must not listen on anything.
 declare const self: unknown;

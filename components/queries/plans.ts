@@ -1,62 +1,30 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import type { PackInstanceInput, PackResult } from '../../shared/packing';
-import type { LayoutSummaryView, OpenLineView, PlanListItem, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
+import {
+  layoutChosenSchema,
+  layoutCreatedSchema,
+  layoutViewSchema,
+  openLineViewSchema,
+  planCreatedSchema,
+  planListItemSchema,
+  planMovedSchema,
+  planViewSchema,
+  type LayoutView,
+  type PlanOrientationRule,
+} from '../../shared/schemas/plans';
 import type { PlanStatus } from '../../shared/plans/status';
 import { api } from '../api/client';
 
 /**
- * The plan, layout and review routes as react-query hooks. Answers are
- * checked for the fields the editor relies on; the rest passes through as the
- * shared view types describe it.
+ * The plan, layout and review routes as react-query hooks. Answers are parsed
+ * with the server's own views (shared/schemas/plans.ts).
  */
-const id = z.union([z.string(), z.number()]).transform((v) => String(v));
-const vec3 = z.tuple([z.number(), z.number(), z.number()]);
-const loose = <T>(shape: z.ZodRawShape) => z.looseObject(shape) as unknown as z.ZodType<T>;
-
-const partShape = z.looseObject({ id, name: z.string(), sizeMm: vec3, volumeMm3: z.number() });
-
-export const planListSchema = z.array(
-  loose<PlanListItem>({ id, name: z.string(), status: z.string(), version: z.number(), machine: z.looseObject({ id, name: z.string() }), material: z.looseObject({ id, name: z.string() }) }),
-);
-
-export const planSchema = loose<PlanView>({
-  id,
-  name: z.string(),
-  status: z.string(),
-  version: z.number(),
-  editable: z.boolean(),
-  machine: z.looseObject({ id, name: z.string(), chamberMm: vec3, layerHeightsMm: z.array(z.number()) }),
-  material: z.looseObject({ id, name: z.string(), spacingMm: z.number(), marginXyMm: z.number(), marginBottomMm: z.number(), marginTopMm: z.number(), defaultLayerHeightMm: z.number() }),
-  lines: z.array(z.looseObject({ id, requestLineId: id, quantity: z.number(), orientation: z.string(), part: partShape })),
-  layouts: z.array(z.looseObject({ id, label: z.string(), chosen: z.boolean(), placedCount: z.number() })),
-  events: z.array(z.looseObject({ to: z.string(), at: z.string() })),
-});
-
-export const openLinesSchema = z.array(
-  loose<OpenLineView>({ requestLineId: id, part: partShape, request: z.looseObject({ id, title: z.string(), dueDate: z.string(), priority: z.string() }), remaining: z.number() }),
-);
-
-/** A stored layout as read back: the engine's result plus the server's estimate. */
-export interface LayoutView extends LayoutSummaryView {
-  planId: string;
-  instance: PackInstanceInput;
-  result: PackResult;
-  estimate: Record<string, unknown> & { areaPerLayerMm2?: number[] };
-}
-
-export const layoutSchema = loose<LayoutView>({
-  id,
-  label: z.string(),
-  instance: z.looseObject({ chamber: vec3, parts: z.array(z.looseObject({ id: z.string() })) }),
-  result: z.looseObject({ placements: z.array(z.looseObject({ id: z.string(), position: vec3, size: vec3, orientation: z.string() })) }),
-  estimate: z.looseObject({}),
-});
-
-const createdSchema = z.looseObject({ id, version: z.number(), status: z.string() });
-const layoutCreatedSchema = z.looseObject({ id, label: z.string(), estimate: z.looseObject({}) });
-const choseSchema = z.looseObject({ id, chosenLayoutId: id.nullable(), version: z.number(), status: z.string() });
-const submittedSchema = z.looseObject({ id, status: z.string(), version: z.number(), notified: z.array(z.string()).optional() });
+export const planListSchema = z.array(planListItemSchema);
+export const planSchema = planViewSchema;
+export const openLinesSchema = z.array(openLineViewSchema);
+export const layoutSchema = layoutViewSchema;
+export type { LayoutView };
 
 export type PlanLineInput = { requestLineId: string; quantity: number; orientation?: PlanOrientationRule | null };
 export type PlanCreateInput = { name: string; machineId: string; materialId: string; lines: PlanLineInput[] };
@@ -113,7 +81,7 @@ export function useOpenLinesQuery(labId: string | undefined, materialId: string 
 export function useCreatePlanMutation(labId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: PlanCreateInput) => api(`/labs/${labId}/plans`, { method: 'POST', body: input, schema: createdSchema }),
+    mutationFn: (input: PlanCreateInput) => api(`/labs/${labId}/plans`, { method: 'POST', body: input, schema: planCreatedSchema }),
     onSuccess: () => qc.invalidateQueries({ queryKey: planKeys.all(labId) }),
   });
 }
@@ -152,7 +120,7 @@ export function usePatchLayoutMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ layoutId, ...patch }: { layoutId: string; label?: string; locked?: boolean }) =>
-      api(`/labs/${labId}/plans/${planId}/layouts/${layoutId}`, { method: 'PATCH', body: patch, schema: z.looseObject({ id }) }),
+      api(`/labs/${labId}/plans/${planId}/layouts/${layoutId}`, { method: 'PATCH', body: patch, schema: layoutViewSchema }),
     onSuccess: (_d, v) =>
       Promise.all([refreshPlan(qc, labId, planId), qc.invalidateQueries({ queryKey: planKeys.layout(labId, planId, v.layoutId) })]),
   });
@@ -169,7 +137,7 @@ export function useDeleteLayoutMutation(labId: string, planId: string) {
 export function useChooseLayoutMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (layoutId: string) => api(`/labs/${labId}/plans/${planId}/layouts/${layoutId}/choose`, { method: 'POST', schema: choseSchema }),
+    mutationFn: (layoutId: string) => api(`/labs/${labId}/plans/${planId}/layouts/${layoutId}/choose`, { method: 'POST', schema: layoutChosenSchema }),
     onSuccess: () => refreshPlan(qc, labId, planId),
   });
 }
@@ -177,7 +145,7 @@ export function useChooseLayoutMutation(labId: string, planId: string) {
 export function useSubmitPlanMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (comment?: string) => api(`/labs/${labId}/plans/${planId}/submit`, { method: 'POST', body: comment ? { comment } : {}, schema: submittedSchema }),
+    mutationFn: (comment?: string) => api(`/labs/${labId}/plans/${planId}/submit`, { method: 'POST', body: comment ? { comment } : {}, schema: planMovedSchema }),
     onSuccess: () => refreshPlan(qc, labId, planId),
   });
 }

@@ -1,35 +1,16 @@
 /**
- * Plain data the 3D views take. The mesh worker returns the same shapes
- * (components/ does not import workers/: the worker is started by URL, so its
- * answer is typed again here and checked when it arrives).
+ * Plain data the 3D views take. The mesh worker's answer is typed once, in
+ * workers/mesh.protocol.ts (components/ start the worker by URL and import
+ * only its protocol); it is still checked when it arrives.
  */
 import type { StyleProp, ViewStyle } from 'react-native';
+import type { MeshProblem, MeshWorkerApi, ParseMeshResult, ViewMesh as WorkerMesh } from '../../workers/mesh.protocol';
 import type { Vec3, ViewName } from './math';
 
-/** A triangle mesh ready to draw: millimetres, z up (the build direction). */
-export interface ViewMesh {
-  positions: Float32Array;
-  indices: Uint32Array;
-  /** Bounding box extent; computed from the positions when left out. */
-  sizeMm?: Vec3;
-  bboxMinMm?: Vec3;
-  bboxMaxMm?: Vec3;
-  triangles?: number;
-  partNames?: string[];
-}
+export type { MeshProblem, MeshWorkerApi, ParseMeshResult };
 
-export interface MeshProblem {
-  code: string;
-  message: string;
-  field?: string;
-}
-
-export type ParseMeshResult = { ok: true; mesh: Required<ViewMesh> } | { ok: false; problems: MeshProblem[] };
-
-/** The comlink-exposed API of workers/mesh.worker.ts. */
-export interface MeshWorkerApi {
-  parseMesh(bytes: ArrayBuffer, filename: string, unit: 'mm' | 'cm' | 'inch', options?: { partName?: string }): Promise<ParseMeshResult>;
-}
+/** A triangle mesh ready to draw: millimetres, z up (the build direction). The bounds are computed from the positions when left out. */
+export type ViewMesh = Pick<WorkerMesh, 'positions' | 'indices'> & Partial<Omit<WorkerMesh, 'positions' | 'indices'>>;
 
 /**
  * A layout as the chamber view draws it: typed arrays, one entry (or triple)

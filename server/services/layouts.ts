@@ -36,7 +36,7 @@ import {
 import { estimateLayout, InvalidInputError, layerCount, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
 import type { MeshProfiles, ProfilesLookup } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
-import { layoutCreateSchema, layoutPatchSchema, type LayoutSummaryView } from '../../shared/schemas/plans';
+import { layoutCreateSchema, layoutPatchSchema, type LayoutChosen, type LayoutCreated, type LayoutSummaryView, type LayoutViewAnswer } from '../../shared/schemas/plans';
 
 /** Format-2 placement bytes (shared/packing/codec.ts) as the Buffer the database driver binds. */
 export function encodePlacements(placements: readonly Placement[], partIds: string[], profiles: LayoutProfiles = {}): Buffer {
@@ -154,7 +154,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
      * Checks the packing against the engine's rules and the plan, estimates it
      * on the plan's machine and material, and stores it with its placements packed as bytes.
      */
-    async add(labId: string, planId: string, user: Actor, body: unknown) {
+    async add(labId: string, planId: string, user: Actor, body: unknown): Promise<LayoutCreated> {
       const input = parseOrThrow(layoutCreateSchema, body);
       const parsed = parseInstance(input.instance);
       if (!parsed.ok) refuse(parsed.problems, 'instance');
@@ -249,7 +249,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
     },
 
     /** The whole layout, placements as the packing contract's objects; read as stored, whatever engine wrote it. */
-    async get(labId: string, planId: string, layoutId: string) {
+    async get(labId: string, planId: string, layoutId: string): Promise<LayoutViewAnswer> {
       const row = await layoutRow(labId, planId, layoutId);
       const instance = row.instance as PackInstance;
       const sizes = new Map<string, Vec3>((instance.parts ?? []).map((p) => [p.id, p.size]));
@@ -278,7 +278,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
     },
 
     /** Marks the layout as the one to review; one packed for other lines is refused. */
-    async choose(labId: string, planId: string, layoutId: string, user: Actor) {
+    async choose(labId: string, planId: string, layoutId: string, user: Actor): Promise<LayoutChosen> {
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);

@@ -15,6 +15,8 @@ import {
   openLinesQuerySchema,
   planCreateSchema,
   planListQuerySchema,
+  planMachineViewSchema,
+  planMaterialViewSchema,
   planUpdateSchema,
   type LayoutSummaryView,
   type OpenLineView,
@@ -22,6 +24,8 @@ import {
   type PlanLineView,
   type PlanListItem,
   type PlanOrientationRule,
+  type PlanCreated,
+  type PlanMoved,
   type PlanView,
 } from '../../shared/schemas/plans';
 
@@ -390,8 +394,9 @@ export function plansService(db: Database, deps: PlansDeps) {
       version: plan.version,
       editable: isEditable(plan.status),
       allowedTransitions: [...allowedNext(plan.status)],
-      machine: machine ?? { id: plan.machine_id, name: '' },
-      material: material ?? { id: plan.material_id, name: '' },
+      // The stored profiles, shaped by the view (a plan's machine and material cannot be deleted while it exists).
+      machine: planMachineViewSchema.parse(machine),
+      material: planMaterialViewSchema.parse(material),
       chosenLayoutId: plan.chosen_layout_id,
       queuePosition: plan.queue_position,
       draft: plan.draft ?? null,
@@ -422,7 +427,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     get,
     notify,
 
-    async create(labId: string, user: Actor, body: unknown): Promise<{ id: string; version: number; status: PlanStatus }> {
+    async create(labId: string, user: Actor, body: unknown): Promise<PlanCreated> {
       const input = parseOrThrow(planCreateSchema, body);
       return sequelize.transaction(async (transaction) => {
         if (!(await profileRow(db, 'machines', labId, input.machineId, transaction))) {
@@ -566,7 +571,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     },
 
     /** draft -> in_review with a chosen layout that still fits the lines; every lead of the lab is e-mailed. */
-    async submit(labId: string, planId: string, user: Actor, comment: string | null) {
+    async submit(labId: string, planId: string, user: Actor, comment: string | null): Promise<PlanMoved> {
       const { plan, version } = await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         await reopenIfSentBack(db, plan, user.id, transaction);
@@ -601,7 +606,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     },
 
     /** Any status before printing -> cancelled; the request lines' quantities are open again. */
-    async cancel(labId: string, planId: string, user: Actor, comment: string | null) {
+    async cancel(labId: string, planId: string, user: Actor, comment: string | null): Promise<PlanMoved> {
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         const version = await applyTransition(db, plan, 'cancelled', user.id, comment, transaction);

@@ -3,7 +3,7 @@ import type { Database } from '../db';
 import { parseOrThrow } from '../validation';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlansService } from './plans';
 import { canTransition } from '../../shared/plans/status';
-import { reviewSchema } from '../../shared/schemas/plans';
+import { reviewSchema, type PlanReviewed } from '../../shared/schemas/plans';
 
 export type ReviewDeps = { plans: PlansService; appUrl: string };
 
@@ -16,7 +16,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
   const { sequelize } = db;
 
   return {
-    async review(labId: string, planId: string, user: Actor, body: unknown) {
+    async review(labId: string, planId: string, user: Actor, body: unknown): Promise<PlanReviewed> {
       const input = parseOrThrow(reviewSchema, body);
       const comment = input.comment ? input.comment : null;
       const done = await sequelize.transaction(async (transaction) => {

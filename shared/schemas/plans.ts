@@ -1,7 +1,9 @@
 import { z } from 'zod';
-import { PLAN_STATUSES, type PlanStatus } from '../plans/status';
+import { PLAN_STATUSES } from '../plans/status';
 import { MAX_TOTAL_QUANTITY } from '../packing/parse';
-import { ORIENTATIONS, RESULT_FORMAT } from '../packing/types';
+import { ORIENTATIONS, RESULT_FORMAT, type Orientation, type PackInstanceInput, type PackResult } from '../packing/types';
+import { parseInstance } from '../packing/parse';
+import { machineProfileSchema, materialProfileSchema } from '../types/profiles';
 import { ORIENTATION_RULES } from './parts';
 
 const uuid = z.uuid('must be an id');
@@ -84,17 +86,6 @@ export const openLinesQuerySchema = z.strictObject({
   planId: uuid.optional(),
 });
 
-export interface OpenLineView {
-  requestLineId: string;
-  part: { id: string; name: string; sizeMm: [number, number, number]; volumeMm3: number; orientation: PlanOrientationRule };
-  request: { id: string; title: string; dueDate: string; priority: string; materialId: string | null };
-  quantity: number;
-  /** The line's planned count, less what `planId` itself holds. */
-  plannedCount: number;
-  /** quantity - plannedCount: the most a plan may take. */
-  remaining: number;
-}
-
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite, finite, finite], { error: 'must be three numbers' });
 
@@ -154,96 +145,177 @@ export type PlanListQuery = z.infer<typeof planListQuerySchema>;
 export type LayoutCreate = z.infer<typeof layoutCreateSchema>;
 export type ReviewInput = z.infer<typeof reviewSchema>;
 
-export interface PlanEventView {
-  id: string;
-  from: PlanStatus | null;
-  to: PlanStatus;
-  by: { id: string; name: string } | null;
-  at: string;
-  comment: string | null;
-}
+// ---------------------------------------------------------------------------
+// Answers (the server is typed by them, the client parses with them)
 
-export interface PlanLineView {
-  id: string;
-  requestLineId: string;
-  quantity: number;
+const person = z.object({ id: z.string(), name: z.string() }).nullable();
+const vec3View = z.tuple([z.number(), z.number(), z.number()]);
+
+export const planEventViewSchema = z.object({
+  id: z.string(),
+  from: planStatusSchema.nullable(),
+  to: planStatusSchema,
+  by: person,
+  at: z.string(),
+  comment: z.string().nullable(),
+});
+export type PlanEventView = z.infer<typeof planEventViewSchema>;
+
+const planPartView = z.object({ id: z.string(), name: z.string(), sizeMm: vec3View, volumeMm3: z.number(), orientation: planOrientationRuleSchema });
+
+export const planLineViewSchema = z.object({
+  id: z.string(),
+  requestLineId: z.string(),
+  quantity: z.number(),
   /** The rule the packing must follow: the override when set, else the part's own. */
-  orientation: PlanOrientationRule;
-  orientationOverride: PlanOrientationRule | null;
-  part: { id: string; name: string; sizeMm: [number, number, number]; volumeMm3: number; orientation: PlanOrientationRule };
-  request: { id: string; title: string; dueDate: string; priority: string; status: string };
+  orientation: planOrientationRuleSchema,
+  orientationOverride: planOrientationRuleSchema.nullable(),
+  part: planPartView,
+  request: z.object({ id: z.string(), title: z.string(), dueDate: z.string(), priority: z.string(), status: z.string() }),
   /** The request line's quantity, and how many of it other active plans hold. */
-  lineQuantity: number;
-  plannedElsewhere: number;
-  printedCount: number;
-}
+  lineQuantity: z.number(),
+  plannedElsewhere: z.number(),
+  printedCount: z.number(),
+});
+export type PlanLineView = z.infer<typeof planLineViewSchema>;
+
+export const layoutSettingsSchema = z.object({
+  seed: z.number(),
+  spacingMm: z.number(),
+  layerHeightMm: z.number(),
+  timeLimitMs: z.number(),
+  objective: z.string(),
+  margin: z.object({ xy: z.number(), bottom: z.number(), top: z.number() }),
+});
+export type LayoutSettings = z.infer<typeof layoutSettingsSchema>;
 
 /** The numbers of a layout without its per-layer profile. */
-export interface LayoutSummaryView {
-  id: string;
-  label: string;
-  locked: boolean;
-  chosen: boolean;
+export const layoutSummaryViewSchema = z.object({
+  id: z.string(),
+  label: z.string(),
+  locked: z.boolean(),
+  chosen: z.boolean(),
   /** False once the plan's lines, quantities or orientation rules changed after this layout was packed. */
-  matchesPlan: boolean;
-  settings: LayoutSettings;
-  placedCount: number;
-  unplacedCount: number;
-  heightMm: number;
-  layers: number;
-  utilization: number;
-  elapsedMs: number;
-  resultFormat: string;
+  matchesPlan: z.boolean(),
+  settings: layoutSettingsSchema,
+  placedCount: z.number(),
+  unplacedCount: z.number(),
+  heightMm: z.number(),
+  layers: z.number(),
+  utilization: z.number(),
+  elapsedMs: z.number(),
+  resultFormat: z.string(),
   /** The estimate without `areaPerLayerMm2`. */
-  estimate: Record<string, unknown>;
-  createdBy: { id: string; name: string } | null;
-  createdAt: string;
-}
+  estimate: z.record(z.string(), z.unknown()),
+  createdBy: person,
+  createdAt: z.string(),
+});
+export type LayoutSummaryView = z.infer<typeof layoutSummaryViewSchema>;
 
-export interface LayoutSettings {
-  seed: number;
-  spacingMm: number;
-  layerHeightMm: number;
-  timeLimitMs: number;
-  objective: string;
-  margin: { xy: number; bottom: number; top: number };
-}
+/** A plan's machine and material: the stored profile with its id. */
+export const planMachineViewSchema = z.object({ id: z.string(), ...machineProfileSchema.shape });
+export const planMaterialViewSchema = z.object({ id: z.string(), ...materialProfileSchema.shape });
 
-export interface PlanView {
-  id: string;
-  labId: string;
-  name: string;
-  status: PlanStatus;
-  version: number;
-  editable: boolean;
-  allowedTransitions: PlanStatus[];
-  machine: Record<string, unknown> & { id: string; name: string };
-  material: Record<string, unknown> & { id: string; name: string };
-  chosenLayoutId: string | null;
-  queuePosition: number | null;
-  draft: unknown;
-  createdBy: { id: string; name: string } | null;
-  createdAt: string;
-  updatedAt: string;
-  lines: PlanLineView[];
-  layouts: LayoutSummaryView[];
-  events: PlanEventView[];
-}
+export const planViewSchema = z.object({
+  id: z.string(),
+  labId: z.string(),
+  name: z.string(),
+  status: planStatusSchema,
+  version: z.number(),
+  editable: z.boolean(),
+  allowedTransitions: z.array(planStatusSchema),
+  machine: planMachineViewSchema,
+  material: planMaterialViewSchema,
+  chosenLayoutId: z.string().nullable(),
+  queuePosition: z.number().nullable(),
+  /** The editor's unsaved work, as it saved it. */
+  draft: z.unknown(),
+  createdBy: person,
+  createdAt: z.string(),
+  updatedAt: z.string(),
+  lines: z.array(planLineViewSchema),
+  layouts: z.array(layoutSummaryViewSchema),
+  events: z.array(planEventViewSchema),
+});
+export type PlanView = z.infer<typeof planViewSchema>;
 
-export interface PlanListItem {
-  id: string;
-  name: string;
-  status: PlanStatus;
-  version: number;
-  machine: { id: string; name: string };
-  material: { id: string; name: string };
-  chosenLayoutId: string | null;
-  queuePosition: number | null;
-  lineCount: number;
-  partCount: number;
-  earliestDueDate: string | null;
-  layoutCount: number;
-  createdBy: { id: string; name: string } | null;
-  createdAt: string;
-  updatedAt: string;
-}
+const named = z.object({ id: z.string(), name: z.string() });
+
+export const planListItemSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  status: planStatusSchema,
+  version: z.number(),
+  machine: named,
+  material: named,
+  chosenLayoutId: z.string().nullable(),
+  queuePosition: z.number().nullable(),
+  lineCount: z.number(),
+  partCount: z.number(),
+  earliestDueDate: z.string().nullable(),
+  layoutCount: z.number(),
+  createdBy: person,
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type PlanListItem = z.infer<typeof planListItemSchema>;
+
+export const openLineViewSchema = z.object({
+  requestLineId: z.string(),
+  part: planPartView,
+  request: z.object({ id: z.string(), title: z.string(), dueDate: z.string(), priority: z.string(), materialId: z.string().nullable() }),
+  quantity: z.number(),
+  /** The line's planned count, less what `planId` itself holds. */
+  plannedCount: z.number(),
+  /** quantity - plannedCount: the most a plan may take. */
+  remaining: z.number(),
+});
+export type OpenLineView = z.infer<typeof openLineViewSchema>;
+
+/** A stored packing as read back: any result format it was saved in (an older engine's label included). */
+const storedResultSchema = z.object({
+  // The server sends the label the layout was saved with (also in `resultFormat`); its placements are
+  // decoded by the current codec, so the client holds them as a result of the current format.
+  format: z.string().transform((): PackResult['format'] => RESULT_FORMAT),
+  placements: z.array(
+    z.object({
+      id: z.string(),
+      position: vec3View,
+      size: vec3View,
+      orientation: z.enum(ORIENTATIONS as unknown as [Orientation, ...Orientation[]]),
+      transform: z.tuple([z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number(), z.number()]).optional(),
+    }),
+  ),
+  unplaced: z.array(z.object({ id: z.string(), count: z.number() })),
+  height: z.number(),
+  layers: z.number(),
+  utilization: z.number(),
+  elapsedMs: z.number(),
+  areaProfile: z.array(z.number()).optional(),
+  contourProfile: z.array(z.number()).optional(),
+});
+
+/** A stored layout as read back: the engine's instance and result plus the server's estimate. */
+export const layoutViewSchema = layoutSummaryViewSchema.extend({
+  planId: z.string(),
+  /** The instance as the engine's own parser accepts it. */
+  instance: z.custom<PackInstanceInput>((v) => parseInstance(v).ok, 'must be a packing instance'),
+  result: storedResultSchema,
+  estimate: z.record(z.string(), z.unknown()).and(z.object({ areaPerLayerMm2: z.array(z.number()).optional() })),
+});
+/** As the client holds it. */
+export type LayoutView = z.output<typeof layoutViewSchema>;
+/** As the server sends it. */
+export type LayoutViewAnswer = z.input<typeof layoutViewSchema>;
+
+/** Answers of the plan and layout actions. */
+export const planCreatedSchema = z.object({ id: z.string(), version: z.number(), status: planStatusSchema });
+export const layoutCreatedSchema = z.object({ id: z.string(), label: z.string(), estimate: z.record(z.string(), z.unknown()) });
+export const layoutChosenSchema = z.object({ id: z.string(), chosenLayoutId: z.string().nullable(), version: z.number(), status: planStatusSchema });
+export const planMovedSchema = z.object({ id: z.string(), status: planStatusSchema, version: z.number(), notified: z.array(z.string()).optional() });
+export const planReviewedSchema = planMovedSchema.extend({ queuePosition: z.number().nullable().optional() });
+export type PlanCreated = z.infer<typeof planCreatedSchema>;
+export type LayoutCreated = z.infer<typeof layoutCreatedSchema>;
+export type LayoutChosen = z.infer<typeof layoutChosenSchema>;
+export type PlanMoved = z.infer<typeof planMovedSchema>;
+export type PlanReviewed = z.infer<typeof planReviewedSchema>;
