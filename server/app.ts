@@ -35,7 +35,7 @@ import { powderService } from './services/powder';
 import { sheetService } from './services/sheet';
 import { export3mfService } from './services/export3mf';
 import { createStorage } from './storage';
-import { machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
+import { checkedMachineProfileSchema, checkedMaterialProfileSchema, machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
 
 export type Services = ReturnType<typeof createServices>;
 export type AppDeps = {
@@ -52,8 +52,8 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const labs = labsService(db);
   const auth = authService(db, labs);
   const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
-  const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine');
-  const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material');
+  const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine', checkedMachineProfileSchema);
+  const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material', checkedMaterialProfileSchema);
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const requests = requestsService(db, parts);

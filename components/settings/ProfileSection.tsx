@@ -25,6 +25,8 @@ export type ProfileKind<Item extends StoredProfile, P extends object> = {
   columns: Column<Item>[];
   groups: FieldGroup[];
   schema: z.ZodType<P>;
+  /** Values a new profile's form starts with (the rest start empty). */
+  defaults?: Partial<P>;
   queries: Omit<ReturnType<typeof labResource<Item, P>>, 'keys'>;
 };
 
@@ -83,7 +85,7 @@ export function NewProfile<Item extends StoredProfile, P extends object>({ kind:
         <ProfileForm<P>
           groups={profile.groups}
           schema={profile.schema}
-          initial={emptyValues(profile.groups)}
+          initial={profile.defaults ? { ...emptyValues(profile.groups), ...valuesFrom(profile.groups.map((g) => ({ ...g, fields: g.fields.filter((f) => f.key in profile.defaults!) })), profile.defaults) } : emptyValues(profile.groups)}
           submitLabel={`Add ${kind}`}
           testIDPrefix={kind}
           submitting={create.isPending}

@@ -1,4 +1,11 @@
-import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
+import {
+  checkedMachineProfileSchema,
+  checkedMaterialProfileSchema,
+  machineFieldDefaults,
+  materialFieldDefaults,
+  type MachineProfile,
+  type MaterialProfile,
+} from '../../shared/types/profiles';
 import type { MachineView as Machine, MaterialView as Material } from '../../shared/schemas/profiles';
 import {
   useCreateMachineMutation,
@@ -33,7 +40,8 @@ export const machineProfiles: ProfileKind<Machine, MachineProfile> = {
     { key: 'rate', title: 'Rate / h', width: 100, align: 'right', mono: true, value: (m) => n(m.hourlyRate, 2) },
   ],
   groups: machineFieldGroups,
-  schema: machineProfileSchema,
+  schema: checkedMachineProfileSchema,
+  defaults: machineFieldDefaults,
   queries: {
     useListQuery: useMachinesQuery,
     useOneQuery: useMachineQuery,
@@ -47,7 +55,7 @@ export const materialProfiles: ProfileKind<Material, MaterialProfile> = {
   kind: 'material',
   subtitle: 'The powders the lab prints with: densities, refresh ratio, spacing and margins, sintering figures and price.',
   emptyBody:
-    'Add each powder with its solid and bulk density, refresh ratio, layer height, spacing and margins, energy density and price. Planners pick one per build.',
+    'Add each powder with its solid and bulk density, refresh ratio, layer height, spacing and margins, energy density, thermal figures, losses and price. Planners pick one per build.',
   columns: [
     nameColumn(),
     { key: 'solid', title: 'Solid g/cm³', width: 110, align: 'right', mono: true, value: (m) => n(m.solidDensityGPerCm3, 3) },
@@ -59,7 +67,8 @@ export const materialProfiles: ProfileKind<Material, MaterialProfile> = {
     { key: 'price', title: 'Price / kg', width: 110, align: 'right', mono: true, value: (m) => n(m.pricePerKg, 2) },
   ],
   groups: materialFieldGroups,
-  schema: materialProfileSchema,
+  schema: checkedMaterialProfileSchema,
+  defaults: materialFieldDefaults,
   queries: {
     useListQuery: useMaterialsQuery,
     useOneQuery: useMaterialQuery,

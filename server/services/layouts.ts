@@ -33,7 +33,7 @@ import {
   type Placement,
   type Vec3,
 } from '../../shared/packing';
-import { estimateLayout, InvalidInputError, layerCount, type CalibrationFactors, type LayoutEstimate } from '../../shared/estimate';
+import { estimateLayout, InvalidInputError, layerCount, type CalibrationInput, type LayoutEstimate } from '../../shared/estimate';
 import type { MeshProfiles, ProfilesLookup } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 import { layoutCreateSchema, layoutPatchSchema, type LayoutChosen, type LayoutCreated, type LayoutSummaryView, type LayoutViewAnswer } from '../../shared/schemas/plans';
@@ -120,7 +120,7 @@ function estimateJson(e: LayoutEstimate) {
 }
 
 /** Estimate factors fitted from the machine's recorded runs, once runs are recorded. */
-export type CalibrationLookup = (labId: string, machineId: string) => Promise<CalibrationFactors | undefined>;
+export type CalibrationLookup = (labId: string, machineId: string) => Promise<CalibrationInput | undefined>;
 
 /** Where the layout's per-layer areas came from, stored with its estimate for every screen that shows it. */
 export function profileInfo(profiles: MeshProfiles | null) {

@@ -21,8 +21,10 @@ function view<P>(row: any): Stored<P> {
 /**
  * Machines and materials share one shape: a name unique in the lab plus a
  * profile checked by its shared schema. `what` names the thing in messages.
+ * `checked` is the schema with its physical-sense checks (a whole profile is
+ * checked by it; a patch first by the plain schema's partial, then merged).
  */
-export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string) {
+export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string, checked: z.ZodType = schema) {
   type P = z.infer<S>;
   const partial = schema.partial();
 
@@ -54,13 +56,13 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
       return view<P>((await find(labId, id)).get({ plain: true }));
     },
     async create(labId: string, body: unknown): Promise<Stored<P>> {
-      return save(labId, null, parseOrThrow(schema, body));
+      return save(labId, null, parseOrThrow(checked, body) as P);
     },
     async update(labId: string, id: string, body: unknown): Promise<Stored<P>> {
       const patch = parseOrThrow(partial, body);
       const row: any = await find(labId, id);
       const current = { name: row.name, ...row.profile };
-      return save(labId, row, parseOrThrow(schema, { ...current, ...patch }));
+      return save(labId, row, parseOrThrow(checked, { ...current, ...patch }) as P);
     },
     async remove(labId: string, id: string): Promise<void> {
       const row = await find(labId, id);

@@ -1,4 +1,4 @@
-import type { CalibrationFactors } from '../estimate/estimateLayout';
+import type { PrintScaleFactors as CalibrationFactors } from '../estimate/calibration';
 import { InvalidInputError, isFiniteNumber, type Problem } from '../estimate/problems';
 
 /** One finished run of a machine: what was estimated and what happened. Hours; null when not recorded. */

@@ -1,6 +1,9 @@
 import {
   machineProfileSchema,
+  machineSenseProblems,
   materialProfileSchema,
+  materialSenseProblems,
+  pairSenseProblems,
   type MachineProfile,
   type MaterialProfile,
 } from '../types/profiles';
@@ -16,22 +19,17 @@ import {
   type BoxArrays,
   type PlacedBox,
 } from './areaProfile';
+import { boxContourProfile } from './boxContour';
+import { calibrationFactors, NO_CALIBRATION, type CalibrationFactors, type CalibrationInput } from './calibration';
 import { coolingEstimate, type CoolingEstimate } from './cooling';
-import { costEstimate, type CostEstimate } from './cost';
+import { costEstimate, type CostEstimate, type CostPart } from './cost';
 import { layerCount, LENGTH_TOLERANCE_MM } from './layers';
 import { powderEstimate, type PowderEstimate } from './powder';
 import { printTimeEstimate, type PrintTimeEstimate } from './printTime';
 import { InvalidInputError, isFiniteNumber, problemsFromZod, type Problem } from './problems';
 
-/** Estimate factors fitted from a machine's recorded runs; 1 and 1 when not calibrated. */
-export interface CalibrationFactors {
-  printTimeScale: number;
-  coolingScale: number;
-  /** Recorded runs the factors were fitted from. */
-  runs: number;
-  /** False when there were too few runs and the factors are left at 1. */
-  calibrated: boolean;
-}
+export type { CalibrationFactors, CalibrationInput, PrintScaleFactors } from './calibration';
+export { NO_CALIBRATION, calibrationFactors } from './calibration';
 
 export interface LayoutMargins {
   xy: number;
@@ -39,7 +37,7 @@ export interface LayoutMargins {
   top: number;
 }
 
-/** A packed layout: boxes either as the packing result's placements or as flat typed arrays (3 numbers a box). */
+/** A packed layout: boxes either as the packing result's placements (with their part ids) or as flat typed arrays (3 numbers a box). */
 export interface EstimateLayout {
   placements?: readonly PlacedBox[];
   positionsMm?: ArrayLike<number>;
@@ -56,11 +54,21 @@ export interface EstimateInput {
   material: MaterialProfile;
   /** One of the machine's layer heights; the material's default when left out. */
   layerHeightMm?: number;
-  calibration?: CalibrationFactors;
-  /** Cross-section area per layer from real meshes; the bounding boxes' profile when left out. */
+  calibration?: CalibrationInput;
+  /** Cross-section area per layer from real meshes (from z = 0); the bounding boxes' profile when left out. */
   areaPerLayerMm2?: ArrayLike<number>;
-  /** Parts' true (mesh) volume; the boxes' volume when left out, which overstates it. */
+  /** Contour length per layer from real meshes (mm); the boxes' perimeters when left out. */
+  contourPerLayerMm?: ArrayLike<number>;
+  /** The layer height the profiles were sliced at, when it differs from the one printed; they are resampled. */
+  profileLayerHeightMm?: number;
+  /** Parts' true (mesh) volume; the sum of the parts' volumes (or their boxes') when left out. */
   partsVolumeMm3?: number;
+  /** A part's own (mesh) volume by its id, for the cost per part; its box's volume when missing. */
+  volumeById?: ReadonlyMap<string, number> | Readonly<Record<string, number>>;
+  /** The cake's base x, y (mm): the chamber the layout was packed for; the machine's chamber when left out. */
+  cakeBaseMm?: readonly [number, number];
+  /** The lab's recorded share of failed parts, 0 <= f < 1, for the scrap allowance. Default 0. */
+  failureRate?: number;
   /** Part count for the cost per part; the number of boxes when left out. */
   partCount?: number;
   jumpOptions?: AreaJumpOptions;
@@ -79,6 +87,8 @@ export interface LayoutEstimate {
   /** Area per layer (mm^2), layer 0 on the floor, for the per-layer chart. */
   areaPerLayerMm2: Float32Array;
   areaSource: 'boxes' | 'given';
+  /** Where hatch areas and contours came from: real slices ("mesh") or the parts' boxes ("box"). */
+  profileSource: 'mesh' | 'box';
   areaJumps: AreaJump[];
   print: PrintTimeEstimate;
   cooling: CoolingEstimate;
@@ -86,8 +96,11 @@ export interface LayoutEstimate {
   machineSeconds: number;
   powder: PowderEstimate;
   cost: CostEstimate;
-  /** The factors the estimate was made with. */
-  calibration: CalibrationFactors;
+  /**
+   * The factors the estimate was made with, and their overall effect on the print time (scaled / unscaled print
+   * seconds) for readers that rescale a stored estimate by one print factor.
+   */
+  calibration: CalibrationFactors & { printTimeScale: number };
 }
 
 /**
@@ -96,23 +109,15 @@ export interface LayoutEstimate {
  */
 export const AREA_JUMP_MIN_SHARE_OF_BED = 0.02;
 
-export const NO_CALIBRATION: CalibrationFactors = { printTimeScale: 1, coolingScale: 1, runs: 0, calibrated: false };
-
 function validate(input: EstimateInput): { problems: Problem[]; boxes: BoxArrays | null } {
   const problems: Problem[] = [];
   const machine = machineProfileSchema.safeParse(input.machine);
   if (!machine.success) problems.push(...problemsFromZod('machine', machine.error));
   const material = materialProfileSchema.safeParse(input.material);
   if (!material.success) problems.push(...problemsFromZod('material', material.error));
-  if (machine.success) {
-    const m = machine.data;
-    if (!(m.handlingTempC > m.ambientTempC)) {
-      problems.push({ field: 'machine.handlingTempC', message: 'must be above the ambient temperature, which cooling only approaches' });
-    }
-    if (!(m.removalTempC >= m.handlingTempC)) {
-      problems.push({ field: 'machine.removalTempC', message: 'must be at or above the handling temperature' });
-    }
-  }
+  if (machine.success) problems.push(...machineSenseProblems(machine.data).map((p) => ({ field: `machine.${p.field}`, message: p.message })));
+  if (material.success) problems.push(...materialSenseProblems(material.data).map((p) => ({ field: `material.${p.field}`, message: p.message })));
+  if (machine.success && material.success) problems.push(...pairSenseProblems(machine.data, material.data));
   // Checked against the machine's list even when other machine fields are wrong, so every problem shows at once.
   const machineHeights = Array.isArray(input.machine?.layerHeightsMm) && input.machine.layerHeightsMm.every(isFiniteNumber)
     ? input.machine.layerHeightsMm
@@ -195,29 +200,86 @@ function validate(input: EstimateInput): { problems: Problem[]; boxes: BoxArrays
     problems.push({ field: 'partCount', message: 'must be a non-negative integer' });
   }
   if (input.calibration !== undefined) {
-    for (const key of ['printTimeScale', 'coolingScale'] as const) {
-      const v = input.calibration?.[key];
+    const c = input.calibration as unknown as Record<string, unknown> | null;
+    const keys = c && 'layerTimeScale' in c ? ['layerTimeScale', 'scanTimeScale', 'coolingScale'] : ['printTimeScale', 'coolingScale'];
+    for (const key of keys) {
+      const v = c?.[key];
       if (!isFiniteNumber(v) || v <= 0) problems.push({ field: `calibration.${key}`, message: 'must be a positive number' });
     }
     const runs = input.calibration?.runs;
     if (!Number.isInteger(runs) || runs < 0) problems.push({ field: 'calibration.runs', message: 'must be a non-negative integer' });
     if (typeof input.calibration?.calibrated !== 'boolean') problems.push({ field: 'calibration.calibrated', message: 'must be true or false' });
   }
-  if (input.areaPerLayerMm2 !== undefined) {
-    const profile = input.areaPerLayerMm2;
+  for (const key of ['areaPerLayerMm2', 'contourPerLayerMm'] as const) {
+    const profile = input[key];
+    if (profile === undefined) continue;
+    if (profile === null || typeof profile !== 'object' || typeof profile.length !== 'number') {
+      problems.push({ field: key, message: 'must be an array of numbers' });
+      continue;
+    }
     for (let l = 0; l < profile.length; l++) {
       if (!isFiniteNumber(profile[l]) || profile[l] < 0) {
-        problems.push({ field: `areaPerLayerMm2[${l}]`, message: 'must be a non-negative number' });
+        problems.push({ field: `${key}[${l}]`, message: 'must be a non-negative number' });
         break;
       }
+    }
+  }
+  if (input.profileLayerHeightMm !== undefined && (!isFiniteNumber(input.profileLayerHeightMm) || input.profileLayerHeightMm <= 0)) {
+    problems.push({ field: 'profileLayerHeightMm', message: 'must be a positive number' });
+  }
+  if (input.failureRate !== undefined && (!isFiniteNumber(input.failureRate) || input.failureRate < 0 || input.failureRate >= 1)) {
+    problems.push({ field: 'failureRate', message: 'must be a share from 0 up to (not including) 1' });
+  }
+  if (input.cakeBaseMm !== undefined) {
+    const b = input.cakeBaseMm;
+    if (!Array.isArray(b) || b.length !== 2 || !b.every((x) => isFiniteNumber(x) && x > 0)) {
+      problems.push({ field: 'cakeBaseMm', message: 'must be two positive numbers' });
     }
   }
   return { problems, boxes };
 }
 
 /**
+ * A per-layer profile sliced at one layer height, resampled to another so that the integral (sum x layer height)
+ * is kept: the cumulative integral is interpolated linearly and differenced at the new layer boundaries.
+ */
+export function resampleProfile(profile: ArrayLike<number>, fromLayerMm: number, toLayerMm: number, layers: number): Float32Array {
+  const out = new Float32Array(layers);
+  const n = profile.length;
+  const cumulative = new Float64Array(n + 1);
+  for (let l = 0; l < n; l++) cumulative[l + 1] = cumulative[l] + profile[l] * fromLayerMm;
+  const at = (z: number) => {
+    const x = z / fromLayerMm;
+    if (x <= 0) return 0;
+    if (x >= n) return cumulative[n];
+    const i = Math.floor(x);
+    return cumulative[i] + (cumulative[i + 1] - cumulative[i]) * (x - i);
+  };
+  for (let j = 0; j < layers; j++) out[j] = Math.max(0, (at((j + 1) * toLayerMm) - at(j * toLayerMm)) / toLayerMm);
+  return out;
+}
+
+function fitProfile(field: string, profile: ArrayLike<number>, sourceLayerMm: number, layerHeightMm: number, layers: number): Float32Array {
+  if (Math.abs(sourceLayerMm - layerHeightMm) > LENGTH_TOLERANCE_MM) return resampleProfile(profile, sourceLayerMm, layerHeightMm, layers);
+  if (profile.length > layers) {
+    throw new InvalidInputError([{ field, message: `has ${profile.length} layers, the layout has ${layers}` }]);
+  }
+  // A sliced profile stops at the top of the highest part; the powder over it is layers with nothing to scan.
+  const out = new Float32Array(layers);
+  for (let l = 0; l < profile.length; l++) out[l] = profile[l];
+  return out;
+}
+
+function volumeOf(volumeById: EstimateInput['volumeById'], id: unknown): number | undefined {
+  if (volumeById === undefined || typeof id !== 'string') return undefined;
+  const v = volumeById instanceof Map ? volumeById.get(id) : (volumeById as Record<string, number>)[id];
+  return isFiniteNumber(v) && v >= 0 ? v : undefined;
+}
+
+/**
  * Everything a layout means on a machine and a material: layers, print time, cooling, powder, packing density
- * and cost. Validates the whole input first and throws InvalidInputError listing every problem with its field.
+ * and cost, the same in the plan editor, on the server and from the command line (docs/estimate.md). Validates
+ * the whole input first and throws InvalidInputError listing every problem with its field.
  */
 export function estimateLayout(input: EstimateInput): LayoutEstimate {
   const { problems, boxes: validBoxes } = validate(input);
@@ -228,62 +290,77 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
   const margin = input.layout.margin ?? { xy: material.marginXyMm, bottom: material.marginBottomMm, top: material.marginTopMm };
   const heightMm = input.layout.heightMm ?? boxesTopMm(boxes);
   const layers = layerCount(heightMm, margin.top, layerHeightMm);
+  const sourceLayerMm = input.profileLayerHeightMm ?? layerHeightMm;
 
-  let areaPerLayerMm2: Float32Array;
-  let areaSource: 'boxes' | 'given';
-  if (input.areaPerLayerMm2 !== undefined) {
-    if (input.areaPerLayerMm2.length !== layers) {
-      throw new InvalidInputError([
-        { field: 'areaPerLayerMm2', message: `has ${input.areaPerLayerMm2.length} layers, the layout has ${layers}` },
-      ]);
-    }
-    areaPerLayerMm2 = Float32Array.from(input.areaPerLayerMm2);
-    areaSource = 'given';
-  } else {
-    areaPerLayerMm2 = boxAreaProfile(boxes, layerHeightMm, layers);
-    areaSource = 'boxes';
-  }
+  const meshArea = input.areaPerLayerMm2 !== undefined;
+  const areaPerLayerMm2 = meshArea
+    ? fitProfile('areaPerLayerMm2', input.areaPerLayerMm2!, sourceLayerMm, layerHeightMm, layers)
+    : boxAreaProfile(boxes, layerHeightMm, layers);
+  const contourPerLayerMm =
+    input.contourPerLayerMm !== undefined
+      ? fitProfile('contourPerLayerMm', input.contourPerLayerMm, sourceLayerMm, layerHeightMm, layers)
+      : boxContourProfile(boxes, layerHeightMm, layers);
 
-  const factors = input.calibration ?? NO_CALIBRATION;
-  const print = printTimeEstimate(areaPerLayerMm2, machine, material, factors.printTimeScale);
+  const factors = calibrationFactors(input.calibration);
+  const print = printTimeEstimate(areaPerLayerMm2, contourPerLayerMm, layerHeightMm, machine, material, factors);
 
   // The powder fills the whole chamber floor, margins included: they are unsintered powder, not empty space.
-  const cakeMm: [number, number, number] = [machine.chamberMm[0], machine.chamberMm[1], layers * layerHeightMm];
+  const base = input.cakeBaseMm ?? [machine.chamberMm[0], machine.chamberMm[1]];
+  const cakeMm: [number, number, number] = [base[0], base[1], layers * layerHeightMm];
   const cakeVolumeMm3 = cakeMm[0] * cakeMm[1] * cakeMm[2];
   const cooling = coolingEstimate({
+    sizeMm: cakeMm,
+    conductivityWPerMK: material.powderConductivityWPerMK,
+    densityGPerCm3: material.bulkDensityGPerCm3,
+    heatCapacityJPerKgK: material.powderHeatCapacityJPerKgK,
+    surfaceWPerM2K: machine.coolingSurfaceWPerM2K,
     startTempC: material.bedTempC,
     ambientTempC: machine.ambientTempC,
     removalTempC: machine.removalTempC,
     handlingTempC: machine.handlingTempC,
-    inMachinePerHour: machine.coolingInMachinePerHour,
-    outsidePerHour: machine.coolingOutsidePerHour,
-    cakeMm,
-    referenceCakeMm: machine.chamberMm,
     coolingScale: factors.coolingScale,
   });
 
-  const partsVolumeMm3 = input.partsVolumeMm3 ?? boxesVolumeMm3(boxes);
+  // The parts one by one, for the cost allocation: their own volume where known, their box's otherwise.
+  const costParts: CostPart[] = [];
+  const placements = input.layout.placements;
+  for (let i = 0, n = boxCount(boxes); i < n; i++) {
+    const sx = boxes.sizesMm[3 * i];
+    const sy = boxes.sizesMm[3 * i + 1];
+    const sz = boxes.sizesMm[3 * i + 2];
+    const rawId = placements?.[i] ? (placements[i] as { id?: unknown }).id : undefined;
+    const id = typeof rawId === 'string' ? rawId : `#${i + 1}`;
+    costParts.push({ id, volumeMm3: volumeOf(input.volumeById, rawId) ?? sx * sy * sz, heightMm: sz });
+  }
+  const partsVolumeMm3 = input.partsVolumeMm3 ?? (input.volumeById !== undefined ? costParts.reduce((s, p) => s + p.volumeMm3, 0) : boxesVolumeMm3(boxes));
   const powder = powderEstimate({
     cakeVolumeMm3,
     partsVolumeMm3,
     solidDensityGPerCm3: material.solidDensityGPerCm3,
     bulkDensityGPerCm3: material.bulkDensityGPerCm3,
     refreshRatio: material.refreshRatio,
+    sievingLossShare: material.sievingLossShare,
+    crustLossShare: material.crustLossShare,
+    feedSurplusShare: material.feedSurplusShare,
   });
 
   const partCount = input.partCount ?? boxCount(boxes);
   const machineSeconds = print.printSeconds + cooling.inMachineSeconds;
   const cost = costEstimate({
-    machineSeconds,
-    hourlyRate: machine.hourlyRate,
-    freshPowderKg: powder.freshPowderKg,
+    parts: costParts,
+    preheatSeconds: print.preheatSeconds,
+    scanSeconds: print.scanSeconds + print.contourSeconds,
+    layerFixedSeconds: print.recoatSeconds + print.otherSeconds,
+    inMachineCoolingSeconds: cooling.inMachineSeconds,
+    outsideCoolingSeconds: cooling.outsideSeconds,
+    machine,
     pricePerKg: material.pricePerKg,
-    labourHoursPerBuild: machine.labourHoursPerBuild,
-    labourRate: machine.labourRate,
-    partCount,
+    freshPowderKg: powder.freshPowderKg,
+    partsPowderKg: powder.partsMassKg + powder.crustLossKg,
+    failureRate: input.failureRate ?? 0,
   });
 
-  const bedAreaMm2 = machine.chamberMm[0] * machine.chamberMm[1];
+  const bedAreaMm2 = cakeMm[0] * cakeMm[1];
   const areaJumps = findAreaJumps(areaPerLayerMm2, {
     minDeltaMm2: AREA_JUMP_MIN_SHARE_OF_BED * bedAreaMm2,
     ...input.jumpOptions,
@@ -297,20 +374,26 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
     cakeMm,
     cakeVolumeMm3,
     partsVolumeMm3,
-    partsVolumeSource: input.partsVolumeMm3 !== undefined ? 'given' : 'boxes',
+    partsVolumeSource: input.partsVolumeMm3 !== undefined || input.volumeById !== undefined ? 'given' : 'boxes',
     areaPerLayerMm2,
-    areaSource,
+    areaSource: meshArea ? 'given' : 'boxes',
+    profileSource: meshArea ? 'mesh' : 'box',
     areaJumps,
     print,
     cooling,
     machineSeconds,
     powder,
     cost,
-    calibration: {
-      printTimeScale: factors.printTimeScale,
-      coolingScale: factors.coolingScale,
-      runs: factors.runs,
-      calibrated: factors.calibrated,
-    },
+    calibration: { ...factors, printTimeScale: print.printSeconds > 0 ? print.printSeconds / unscaledPrintSeconds(areaPerLayerMm2, contourPerLayerMm, layerHeightMm, machine, material) : 1 },
   };
+}
+
+function unscaledPrintSeconds(
+  area: ArrayLike<number>,
+  contour: ArrayLike<number>,
+  layerHeightMm: number,
+  machine: MachineProfile,
+  material: MaterialProfile,
+): number {
+  return printTimeEstimate(area, contour, layerHeightMm, machine, material).printSeconds;
 }

@@ -6,4 +6,7 @@ export * from './printTime';
 export * from './cooling';
 export * from './powder';
 export * from './cost';
+export * from './conduction';
+export * from './boxContour';
+export * from './calibration';
 export * from './estimateLayout';

@@ -2,59 +2,90 @@ import { hatchSeconds, scanSpeedMmPerS } from './scan';
 
 export interface PrintTimeMachine {
   laserPowerW: number;
+  scannerMaxSpeedMmPerS: number;
   recoatSeconds: number;
+  minLayerSeconds: number;
   preheatSeconds: number;
 }
 
 export interface PrintTimeMaterial {
-  energyDensityJPerMm2: number;
+  volumetricEnergyDensityJPerMm3: number;
   hatchSpacingMm: number;
+  contourPasses: number;
+}
+
+export interface PrintTimeFactors {
+  layerTimeScale: number;
+  scanTimeScale: number;
 }
 
 export interface PrintTimeEstimate {
   layerCount: number;
   scanSpeedMmPerS: number;
-  /** All of the following are after the print-time scale. */
+  /** The speed E_V asks for was above the scanner's top speed and was held at it. */
+  scanSpeedCapped: boolean;
+  /** All of the following are after the calibration factors. */
   preheatSeconds: number;
   recoatSeconds: number;
+  /** Hatching the cross-sections. */
   scanSeconds: number;
-  /** Recoat plus scan over all layers: the time after preheat until the last layer is done. */
+  /** Drawing the contours. */
+  contourSeconds: number;
+  /** Waiting for the machine's minimum layer time. */
+  otherSeconds: number;
+  /** Recoat, scan, contour and waits over all layers: the time after preheat until the last layer is done. */
   layersSeconds: number;
   /** Preheat plus layers. */
   printSeconds: number;
-  printTimeScale: number;
 }
 
 /**
- * Print time = preheat + sum over layers of (recoat + scan), with the scan of a layer = its area / (v h) and
- * v = P / (E h). Takes the area per layer rather than the parts, so a profile sliced from real meshes
- * can replace the bounding-box one without changing this code. Every layer is recoated, empty or not.
- *
- * The print-time scale comes from calibration against recorded runs. Those record the hours from the start
- * of preheat to the end of the last layer, so the scale applies to the whole print time.
+ * Print time = preheat + sum over layers of max(recoat + hatch + contour, minimum layer time), with
+ * hatch = A / (v h), contour = passes x C / v and v = min(P / (E_V h t), top speed). The area A and contour length C
+ * of each layer come from the caller: real slices where they exist, the boxes otherwise. Every layer is recoated,
+ * empty or not. The layer factor multiplies preheat and recoat, the scan factor hatch and contour; the minimum layer
+ * time is the machine's setting and is not scaled.
  */
 export function printTimeEstimate(
   areaPerLayerMm2: ArrayLike<number>,
+  contourPerLayerMm: ArrayLike<number>,
+  layerHeightMm: number,
   machine: PrintTimeMachine,
   material: PrintTimeMaterial,
-  printTimeScale = 1,
+  factors: PrintTimeFactors = { layerTimeScale: 1, scanTimeScale: 1 },
 ): PrintTimeEstimate {
-  const speed = scanSpeedMmPerS(machine.laserPowerW, material.energyDensityJPerMm2, material.hatchSpacingMm);
-  let totalAreaMm2 = 0;
-  for (let l = 0; l < areaPerLayerMm2.length; l++) totalAreaMm2 += areaPerLayerMm2[l];
+  const { speedMmPerS, capped } = scanSpeedMmPerS(
+    machine.laserPowerW,
+    material.volumetricEnergyDensityJPerMm3,
+    material.hatchSpacingMm,
+    layerHeightMm,
+    machine.scannerMaxSpeedMmPerS,
+  );
   const layers = areaPerLayerMm2.length;
-  const preheatSeconds = machine.preheatSeconds * printTimeScale;
-  const recoatSeconds = layers * machine.recoatSeconds * printTimeScale;
-  const scanSeconds = hatchSeconds(totalAreaMm2, speed, material.hatchSpacingMm) * printTimeScale;
-  const layersSeconds = recoatSeconds + scanSeconds;
+  const recoat = machine.recoatSeconds * factors.layerTimeScale;
+  let scanSeconds = 0;
+  let contourSeconds = 0;
+  let otherSeconds = 0;
+  for (let l = 0; l < layers; l++) {
+    const hatch = hatchSeconds(areaPerLayerMm2[l], speedMmPerS, material.hatchSpacingMm) * factors.scanTimeScale;
+    const contour = ((material.contourPasses * (contourPerLayerMm[l] ?? 0)) / speedMmPerS) * factors.scanTimeScale;
+    scanSeconds += hatch;
+    contourSeconds += contour;
+    otherSeconds += Math.max(0, machine.minLayerSeconds - (recoat + hatch + contour));
+  }
+  const preheatSeconds = machine.preheatSeconds * factors.layerTimeScale;
+  const recoatSeconds = recoat * layers;
+  const layersSeconds = recoatSeconds + scanSeconds + contourSeconds + otherSeconds;
   return {
     layerCount: layers,
-    scanSpeedMmPerS: speed,
+    scanSpeedMmPerS: speedMmPerS,
+    scanSpeedCapped: capped,
     preheatSeconds,
     recoatSeconds,
     scanSeconds,
+    contourSeconds,
+    otherSeconds,
     layersSeconds,
     printSeconds: preheatSeconds + layersSeconds,
-    printTimeScale,
   };
 }

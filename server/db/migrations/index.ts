@@ -5,6 +5,7 @@ import * as m0003 from './0003-plans';
 import * as m0004 from './0004-runs';
 import * as m0005 from './0005-file-key-locks';
 import * as m0006 from './0006-powder';
+import * as m0007 from './0007-estimate-profile-fields';
 
 export type Migration = {
   name: string;
@@ -20,4 +21,5 @@ export const migrations: Migration[] = [
   { name: '0004-runs', ...m0004 },
   { name: '0005-file-key-locks', ...m0005 },
   { name: '0006-powder', ...m0006 },
+  { name: '0007-estimate-profile-fields', ...m0007 },
 ];
