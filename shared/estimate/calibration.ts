@@ -1,12 +1,12 @@
 /**
  * Estimate factors fitted from a machine's recorded runs; all 1 when not calibrated.
  *
- * - `layerTimeScale` multiplies the machine's fixed time: preheat and each layer's recoat.
+ * - `layerTimeScale` multiplies the machine's fixed time: preheat, each layer's recoat and its minimum layer time.
  * - `scanTimeScale` multiplies the laser's time: hatching and contours.
  * - `coolingScale` speeds the cooling model up: every cooling time is divided by it (above 1, the lab's cakes
  *   cool faster than modelled). It acts like a larger thermal diffusivity, so it keeps the model's shape.
  *
- * The minimum layer time is the machine's own setting and is not scaled.
+ * With the layer and scan factors equal, the whole print time scales by them.
  */
 export interface CalibrationFactors {
   layerTimeScale: number;

@@ -146,19 +146,20 @@ export function cakeCoreSecondsTo(cake: CakeThermal, targetC: number): number {
   if (cake.startTempC <= targetC) return 0;
   if (targetC <= cake.ambientTempC) return Infinity;
   const wanted = (targetC - cake.ambientTempC) / (cake.startTempC - cake.ambientTempC);
-  const curve = cakeCoreCurve(cake);
+  // Solved at factor 1 and divided by it, so calibrated times are exactly the model's over the factor.
+  const curve = cakeCoreCurve({ ...cake, coolingScale: 1 });
   let hi = 3600;
   while (curve(hi) > wanted) {
     hi *= 2;
     if (hi > 1e12) return Infinity;
   }
   let lo = 0;
-  for (let i = 0; i < 60 && hi - lo > 0.01; i++) {
+  for (let i = 0; i < 200 && hi - lo > 1e-9 * hi; i++) {
     const mid = 0.5 * (lo + hi);
     if (curve(mid) > wanted) lo = mid;
     else hi = mid;
   }
-  return hi;
+  return hi / (cake.coolingScale ?? 1);
 }
 
 /**

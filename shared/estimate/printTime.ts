@@ -43,8 +43,8 @@ export interface PrintTimeEstimate {
  * Print time = preheat + sum over layers of max(recoat + hatch + contour, minimum layer time), with
  * hatch = A / (v h), contour = passes x C / v and v = min(P / (E_V h t), top speed). The area A and contour length C
  * of each layer come from the caller: real slices where they exist, the boxes otherwise. Every layer is recoated,
- * empty or not. The layer factor multiplies preheat and recoat, the scan factor hatch and contour; the minimum layer
- * time is the machine's setting and is not scaled.
+ * empty or not. The layer factor multiplies preheat, recoat and the minimum layer time, the scan factor hatch and
+ * contour; with both equal the whole print time scales by it.
  */
 export function printTimeEstimate(
   areaPerLayerMm2: ArrayLike<number>,
@@ -63,6 +63,7 @@ export function printTimeEstimate(
   );
   const layers = areaPerLayerMm2.length;
   const recoat = machine.recoatSeconds * factors.layerTimeScale;
+  const minLayer = machine.minLayerSeconds * factors.layerTimeScale;
   let scanSeconds = 0;
   let contourSeconds = 0;
   let otherSeconds = 0;
@@ -71,7 +72,7 @@ export function printTimeEstimate(
     const contour = ((material.contourPasses * (contourPerLayerMm[l] ?? 0)) / speedMmPerS) * factors.scanTimeScale;
     scanSeconds += hatch;
     contourSeconds += contour;
-    otherSeconds += Math.max(0, machine.minLayerSeconds - (recoat + hatch + contour));
+    otherSeconds += Math.max(0, minLayer - (recoat + hatch + contour));
   }
   const preheatSeconds = machine.preheatSeconds * factors.layerTimeScale;
   const recoatSeconds = recoat * layers;

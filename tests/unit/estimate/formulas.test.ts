@@ -94,7 +94,7 @@ describe('laser scanning', () => {
     expect(waited.layersSeconds).toBeCloseTo(5 * 10, 9);
   });
 
-  test('the layer factor scales preheat and recoat, the scan factor hatch and contour', () => {
+  test('the layer factor scales preheat, recoat and the minimum layer time, the scan factor hatch and contour; equal factors scale the whole print', () => {
     const area = new Float32Array(10).fill(5000);
     const contour = new Float32Array(10).fill(300);
     const material = { volumetricEnergyDensityJPerMm3: 0.22, hatchSpacingMm: 0.25, contourPasses: 1 };
@@ -105,6 +105,9 @@ describe('laser scanning', () => {
     expect(scaled.recoatSeconds).toBeCloseTo(base.recoatSeconds * 1.5, 9);
     expect(scaled.scanSeconds).toBeCloseTo(base.scanSeconds * 0.8, 9);
     expect(scaled.contourSeconds).toBeCloseTo(base.contourSeconds * 0.8, 9);
+    const waiting = { ...machine, minLayerSeconds: 30 };
+    const same = printTimeEstimate(area, contour, 0.11, waiting, material, { layerTimeScale: 1.3, scanTimeScale: 1.3 });
+    expect(same.printSeconds).toBeCloseTo(printTimeEstimate(area, contour, 0.11, waiting, material).printSeconds * 1.3, 6);
   });
 });
 
