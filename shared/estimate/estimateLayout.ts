@@ -20,7 +20,7 @@ import {
   type PlacedBox,
 } from './areaProfile';
 import { boxContourProfile } from './boxContour';
-import { calibrationFactors, NO_CALIBRATION, type CalibrationFactors, type CalibrationInput } from './calibration';
+import { calibrationFactors, type CalibrationFactors, type CalibrationInput } from './calibration';
 import { coolingEstimate, type CoolingEstimate } from './cooling';
 import { costEstimate, type CostEstimate, type CostPart } from './cost';
 import { layerCount, LENGTH_TOLERANCE_MM } from './layers';

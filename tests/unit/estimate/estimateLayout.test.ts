@@ -3,7 +3,7 @@ import { estimateLayout, InvalidInputError, type PlacedBox } from '@/shared/esti
 import type { MachineProfile, MaterialProfile } from '@/shared/types/profiles';
 
 const [wren, heron] = demoMachines;
-const [nylon12, nylon11, glassNylon12] = demoMaterials;
+const [nylon12] = demoMaterials;
 
 /** Boxes in a regular grid inside the usable region, `spacing` apart, as a planner's dense packing would set them. */
 function gridLayout(machine: MachineProfile, material: MaterialProfile, size: [number, number, number], maxTopMm: number): PlacedBox[] {
