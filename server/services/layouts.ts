@@ -192,6 +192,8 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
             layerHeightMm: instance.layerHeight,
             calibration,
             partsVolumeMm3,
+            // Each part's own volume, for the cost per part (by volume and height, docs/estimate.md).
+            volumeById: new Map([...volumeOf].filter((e): e is [string, number] => typeof e[1] === 'number')),
             partCount: result.placements.length,
             ...(profiles && profiles.meshPlacements > 0 ? { areaPerLayerMm2: profiles.areaPerLayerMm2 } : {}),
           });
