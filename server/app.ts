@@ -56,14 +56,15 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material', checkedMaterialProfileSchema);
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
-  const requests = requestsService(db, parts);
+  // The queue is made below; a request asks it for its builds' ready dates only when read.
+  const requests = requestsService(db, parts, { readyDates: (labId, machineId) => queue.readyDates(labId, machineId) });
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);
   const layouts = layoutsService(db, { calibrationFor: calibration.lookup, profilesFor: layoutProfilesService(db, { storage }) });
   const review = reviewService(db, { plans, appUrl: config.appUrl });
   const queue = queueService(db, { calibration });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl });
-  const runs = runsService(db, { drawPowder: powder.drawForRun });
+  const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
   return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };

@@ -59,8 +59,8 @@ function RunCardBody({ run, offsetMs, stale }: { run: RunView; offsetMs: number;
   return (
     <View style={styles.card} testID={`run-card-${run.planId}`} accessibilityLabel={`${run.planName}: ${STATUS_LABELS[run.status]}`}>
       <View style={styles.head}>
-        <Text variant="overline" color="onGraphiteMuted">
-          {run.machine.name}
+        <Text variant="overline" color="onGraphiteMuted" testID="run-machine-material">
+          {run.machine.name} · {run.material.name}
         </Text>
         <Text variant="title" color="onGraphite" testID="run-plan-name">
           {run.planName}
@@ -191,11 +191,14 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
             To start: {blockers.join('; ')}.
           </Text>
         ) : null}
-        <FloorButton
+        <ConfirmButton
           label="Start the build"
           disabled={!canAct || blockers.length > 0}
           loading={advance.isPending}
-          onPress={() => advance.mutate({ to: 'printing', checklist: { chamberInPlace: true, opticalWindowClean: true }, freshPowderKg: freshKg, reusedPowderKg: reusedKg })}
+          question={`Start "${run.planName}" on ${run.machine.name} in ${run.material.name}?`}
+          detail="The laser and heaters start; a started build can only be finished or aborted."
+          confirmLabel={`Start "${run.planName}"`}
+          onConfirm={() => advance.mutate({ to: 'printing', checklist: { chamberInPlace: true, opticalWindowClean: true }, freshPowderKg: freshKg, reusedPowderKg: reusedKg })}
           testID="run-start"
         />
       </StageFoot>
@@ -234,12 +237,15 @@ function Printing({ run, offsetMs, advance, err, canAct }: StageProps) {
         {aborting ? (
           <View style={styles.abort} testID="abort-form">
             <FloorInput label="Why is the build stopped?" value={reason} onChangeText={setReason} keyboard="default" multiline error={fieldError(err, 'reason')} testID="abort-reason" />
+            <Text variant="bodyStrong" color="danger" testID="abort-question">
+              {`Abort "${run.planName}"? This stops the print for good; its parts go back to their requests.`}
+            </Text>
             <FloorButton
-              label="Abort the build"
+              label={`Abort "${run.planName}"`}
               tone="danger"
               disabled={!canAct || reason.trim() === ''}
               loading={advance.isPending && advance.variables?.to === 'aborted'}
-              onPress={() => advance.mutate({ to: 'aborted', reason: reason.trim() })}
+              onPress={() => advance.mutate({ to: 'aborted', runId: run.id, reason: reason.trim() })}
               testID="abort-confirm"
             />
             <FloorButton label="Keep printing" tone="secondary" onPress={() => setAborting(false)} testID="abort-cancel" />
@@ -247,11 +253,19 @@ function Printing({ run, offsetMs, advance, err, canAct }: StageProps) {
         ) : (
           <FloorButton label="Abort…" tone="danger" disabled={!canAct} onPress={() => setAborting(true)} testID="run-abort" />
         )}
-        <FloorButton
+        <ConfirmButton
           label="Print finished: start cooling"
           disabled={!canAct || aborting}
           loading={advance.isPending && advance.variables?.to === 'cooling'}
-          onPress={() => advance.mutate({ to: 'cooling' })}
+          question={`Record the end of the print of "${run.planName}"?`}
+          detail={
+            timer && timer.remainingSeconds > 60
+              ? `The estimate has ${formatDuration(timer.remainingSeconds)} still to go: only record the end if the last layer is really done. This cannot be undone.`
+              : 'Cooling starts now. This cannot be undone.'
+          }
+          early={!!timer && timer.remainingSeconds > 60}
+          confirmLabel={`End the print of "${run.planName}"`}
+          onConfirm={() => advance.mutate({ to: 'cooling', runId: run.id })}
           testID="run-print-done"
         />
       </StageFoot>
@@ -327,7 +341,7 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
           tone="secondary"
           disabled={!canAct || !Number.isFinite(tempC)}
           loading={addReading.isPending}
-          onPress={() => addReading.mutate({ tempC, where }, { onSuccess: () => setTemp('') })}
+          onPress={() => addReading.mutate({ tempC, where, runId: run.id! }, { onSuccess: () => setTemp('') })}
           testID="reading-submit"
         />
         {latest.length > 0 ? (
@@ -347,11 +361,14 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
             Breakout unlocks when the timer reaches {t.handlingTempC} °C, or when you record a reading at or below it.
           </Text>
         ) : null}
-        <FloorButton
+        <ConfirmButton
           label="Start breakout"
-          disabled={!canAct || (live ? !live.handlingReached : !run.readings.some((r) => r.tempC <= t.handlingTempC))}
+          disabled={!canAct || (live ? !live.handlingReached : !run.readings.some((r) => r.check.status !== 'unexplained' && r.tempC <= t.handlingTempC))}
           loading={advance.isPending}
-          onPress={() => advance.mutate({ to: 'breakout' })}
+          question={`Start breaking out "${run.planName}"?`}
+          detail={`Cooling ends; wear heat-resistant gloves and check the cake's core is at or below ${t.handlingTempC} °C. This cannot be undone.`}
+          confirmLabel={`Break out "${run.planName}"`}
+          onConfirm={() => advance.mutate({ to: 'breakout', runId: run.id })}
           testID="run-breakout"
         />
       </StageFoot>
@@ -390,11 +407,14 @@ function Breakout({ run, advance, err, canAct }: StageProps) {
       })}
       <PowderRecovery planId={run.planId} canAct={canAct} />
       <StageFoot run={run} err={err} fieldsShown={['counts']}>
-        <FloorButton
+        <ConfirmButton
           label="Record counts: start finishing"
           disabled={!canAct || over.length > 0}
           loading={advance.isPending}
-          onPress={() => advance.mutate({ to: 'finishing', counts: run.lines.map((l) => ({ requestLineId: l.requestLineId, ...counts[l.requestLineId] })) })}
+          question={`Record these counts for "${run.planName}"?`}
+          detail={`${run.lines.reduce((n, l) => n + counts[l.requestLineId].good, 0)} good, ${run.lines.reduce((n, l) => n + counts[l.requestLineId].failed, 0)} failed. Parts not counted good go back to their requests to be planned again; the counts cannot be changed afterwards.`}
+          confirmLabel={`Record the counts of "${run.planName}"`}
+          onConfirm={() => advance.mutate({ to: 'finishing', runId: run.id, counts: run.lines.map((l) => ({ requestLineId: l.requestLineId, ...counts[l.requestLineId] })) })}
           testID="run-counts"
         />
       </StageFoot>
@@ -427,12 +447,20 @@ function Finishing({ run, advance, err, canAct }: StageProps) {
         testID="powder-used"
       />
       <StageFoot run={run} err={err} fieldsShown={['powderUsedKg']}>
-        <FloorButton
+        <ConfirmButton
           label="Done"
           disabled={!canAct || !all || (powder.trim() !== '' && !Number.isFinite(powderKg))}
           loading={advance.isPending}
-          onPress={() =>
-            advance.mutate({ to: 'done', finishingChecklist: { powderRemoved: true, blasted: true, inspected: true }, ...(Number.isFinite(powderKg) ? { powderUsedKg: powderKg } : {}) })
+          question={`Mark "${run.planName}" done?`}
+          detail="The good parts count as printed in their requests and the run's hours go to the machine's calibration. This cannot be undone."
+          confirmLabel={`"${run.planName}" is done`}
+          onConfirm={() =>
+            advance.mutate({
+              to: 'done',
+              runId: run.id,
+              finishingChecklist: { powderRemoved: true, blasted: true, inspected: true },
+              ...(Number.isFinite(powderKg) ? { powderUsedKg: powderKg } : {}),
+            })
           }
           testID="run-done"
         />
@@ -459,6 +487,45 @@ function Done({ run }: { run: RunView }) {
           {l.part.name} ({l.request.title}): {l.goodCount ?? 0} good, {l.failedCount ?? 0} failed of {l.plannedCount}
         </Text>
       ))}
+    </View>
+  );
+}
+
+/**
+ * A step that cannot be undone: the first press asks, naming the build, and only the second moves it.
+ * The question stays on the card until answered, so a card that refreshes under a thumb cannot be confirmed blind.
+ */
+function ConfirmButton({
+  label,
+  question,
+  detail,
+  confirmLabel,
+  onConfirm,
+  disabled,
+  loading,
+  early,
+  testID,
+}: {
+  label: string;
+  question: string;
+  detail: string;
+  confirmLabel: string;
+  onConfirm: () => void;
+  disabled?: boolean;
+  loading?: boolean;
+  early?: boolean;
+  testID: string;
+}) {
+  const [asking, setAsking] = useState(false);
+  if (!asking) return <FloorButton label={label} disabled={disabled} loading={loading} onPress={() => setAsking(true)} testID={testID} />;
+  return (
+    <View style={[styles.confirm, early && styles.confirmEarly]} testID={`${testID}-ask`} accessibilityRole="alert">
+      <Text variant="heading">{question}</Text>
+      <Text variant="body" color={early ? 'danger' : 'inkMuted'}>
+        {detail}
+      </Text>
+      <FloorButton label={confirmLabel} tone={early ? 'danger' : 'primary'} disabled={disabled} loading={loading} onPress={onConfirm} testID={`${testID}-confirm`} />
+      <FloorButton label="Not yet" tone="secondary" onPress={() => setAsking(false)} testID={`${testID}-cancel`} />
     </View>
   );
 }
@@ -508,6 +575,8 @@ const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.md },
   big: { flexGrow: 1, flexBasis: 140, gap: spacing.xxs },
   actions: { gap: spacing.md },
+  confirm: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.powder, borderWidth: 2, borderColor: colors.ember },
+  confirmEarly: { backgroundColor: colors.dangerSoft, borderColor: colors.danger },
   abort: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.dangerSoft },
   reading: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.powder },
   segment: { flexDirection: 'row', gap: spacing.sm, flexWrap: 'wrap' },

@@ -160,6 +160,9 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
         calibrated: calibration.calibrated,
         printTimeClamped: calibration.printTimeClamped,
         coolingClamped: calibration.coolingClamped,
+        perLayerScale: calibration.perLayerScale,
+        scanScale: calibration.scanScale,
+        separate: calibration.separate,
       },
       now: new Date(nowMs).toISOString(),
       current: schedule.current ? item(schedule.current) : null,
@@ -180,6 +183,12 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
 
   return {
     get,
+
+    /** When each waiting or under-way plan of a machine is expected out of the powder (breakout done), ISO. */
+    async readyDates(labId: string, machineId: string): Promise<Map<string, string>> {
+      const q = await get(labId, machineId);
+      return new Map([...q.active, ...q.plans].map((p) => [p.planId, p.breakoutDoneAt]));
+    },
 
     /** The lead's new order: exactly the machine's queued plans, each once. */
     async reorder(labId: string, machineId: string, _user: Actor, body: unknown): Promise<QueueView> {

@@ -7,9 +7,11 @@ import {
   requestListQuerySchema,
   requestPatchSchema,
   type RequestListResponse,
+  type RequestBuildView,
   type RequestView,
 } from '../../shared/schemas/requests';
 import type { PartsService } from './parts';
+import type { PlanStatus } from '../../shared/plans/status';
 
 const isId = (s: string) => /^[0-9a-f-]{36}$/i.test(s);
 
@@ -58,7 +60,28 @@ type LineRow = {
   quantity: number;
   planned_count: number;
   printed_count: number;
+  failed_count: number;
 };
+
+type BuildRow = {
+  plan_id: string;
+  plan_name: string;
+  status: PlanStatus;
+  machine_id: string;
+  machine_name: string;
+  material_name: string | null;
+  request_line_id: string;
+  quantity: number;
+  good_count: number | null;
+  failed_count: number | null;
+  done_at: Date | null;
+};
+
+/** When a plan's parts are expected out of the powder, from its machine's queue; null when not in the queue. */
+export type ReadyDates = (labId: string, machineId: string) => Promise<Map<string, string>>;
+
+/** Statuses whose parts are expected from the queue: waiting, or under way on the machine. */
+const IN_QUEUE: readonly PlanStatus[] = ['queued', 'printing', 'cooling', 'breakout'];
 
 const SELECT_REQUESTS = `
   SELECT r.*, m.name AS material_name, u.name AS creator_name
@@ -67,13 +90,14 @@ const SELECT_REQUESTS = `
     LEFT JOIN users u ON u.id = r.created_by`;
 
 /** Designers' requests: which parts, how many, in what material, by when. */
-export function requestsService(db: Database, parts: PartsService) {
+export function requestsService(db: Database, parts: PartsService, deps: { readyDates?: ReadyDates } = {}) {
   const { sequelize, models } = db;
 
   async function views(rows: RequestRow[], transaction?: Transaction): Promise<RequestView[]> {
     if (rows.length === 0) return [];
     const lines = await sequelize.query<LineRow>(
-      `SELECT l.id, l.request_id, l.part_id, p.name AS part_name, l.quantity, l.planned_count, l.printed_count
+      `SELECT l.id, l.request_id, l.part_id, p.name AS part_name, l.quantity, l.planned_count, l.printed_count,
+              COALESCE((SELECT SUM(x.failed_count) FROM run_lines x WHERE x.request_line_id = l.id), 0)::int AS failed_count
          FROM request_lines l JOIN parts p ON p.id = l.part_id
         WHERE l.request_id = ANY($1::uuid[]) ORDER BY l.request_id, l.position`,
       { bind: [rows.map((r) => r.id)], type: QueryTypes.SELECT, transaction },
@@ -88,11 +112,16 @@ export function requestsService(db: Database, parts: PartsService) {
         quantity: l.quantity,
         plannedCount: l.planned_count,
         printedCount: l.printed_count,
+        failedCount: l.failed_count,
+        stillToMakeCount: Math.max(0, l.quantity - l.printed_count),
+        openCount: Math.max(0, l.quantity - l.planned_count),
       }));
       const totals = {
         quantity: ls.reduce((s, l) => s + l.quantity, 0),
         planned: ls.reduce((s, l) => s + l.plannedCount, 0),
         printed: ls.reduce((s, l) => s + l.printedCount, 0),
+        failed: ls.reduce((s, l) => s + l.failedCount, 0),
+        stillToMake: ls.reduce((s, l) => s + l.stillToMakeCount, 0),
       };
       return {
         id: r.id,
@@ -122,7 +151,41 @@ export function requestsService(db: Database, parts: PartsService) {
       transaction,
     });
     if (!rows[0]) throw notFound('That request');
-    return (await views(rows, transaction))[0];
+    const [view] = await views(rows, transaction);
+    return { ...view, builds: await builds(labId, requestId, transaction) };
+  }
+
+  /** The builds holding the request's parts, each with its lines' counts and when its parts are expected out of the powder. */
+  async function builds(labId: string, requestId: string, transaction?: Transaction): Promise<RequestBuildView[]> {
+    const rows = await sequelize.query<BuildRow>(
+      `SELECT p.id AS plan_id, p.name AS plan_name, p.status, p.machine_id, mc.name AS machine_name, mt.name AS material_name,
+              pl.request_line_id, pl.quantity, x.good_count, x.failed_count, r.done_at
+         FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id JOIN request_lines rl ON rl.id = pl.request_line_id
+         JOIN machines mc ON mc.id = p.machine_id LEFT JOIN materials mt ON mt.id = p.material_id
+         LEFT JOIN runs r ON r.plan_id = p.id LEFT JOIN run_lines x ON x.run_id = r.id AND x.plan_line_id = pl.id
+        WHERE rl.request_id = $1 AND p.lab_id = $2 AND p.status <> 'cancelled'
+        ORDER BY p.created_at, pl.position`,
+      { bind: [requestId, labId], type: QueryTypes.SELECT, transaction },
+    );
+    const ready = new Map<string, string>();
+    for (const machineId of new Set(rows.filter((r) => IN_QUEUE.includes(r.status)).map((r) => r.machine_id))) {
+      for (const [planId, at] of (await deps.readyDates?.(labId, machineId)) ?? []) ready.set(planId, at);
+    }
+    const byPlan = new Map<string, RequestBuildView>();
+    for (const r of rows) {
+      const b = byPlan.get(r.plan_id) ?? {
+        planId: r.plan_id,
+        planName: r.plan_name,
+        status: r.status,
+        machine: { id: r.machine_id, name: r.machine_name },
+        materialName: r.material_name,
+        readyAt: r.status === 'done' && r.done_at ? new Date(r.done_at).toISOString() : (ready.get(r.plan_id) ?? null),
+        lines: [],
+      };
+      b.lines.push({ requestLineId: r.request_line_id, quantity: r.quantity, goodCount: r.good_count, failedCount: r.failed_count });
+      byPlan.set(r.plan_id, b);
+    }
+    return [...byPlan.values()];
   }
 
   function checkDueDate(dueDate: string) {

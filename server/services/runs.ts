@@ -4,9 +4,24 @@ import { AppError, badRequest, conflict } from '../errors';
 import { parseOrThrow } from '../validation';
 import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type PlanRow } from './plans';
 import { allowedNext, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
-import { coolingTimer, enoughPowder, printTimer, stageCard, type CoolingTimer, type TemperatureReading } from '../../shared/floor';
+import {
+  checkReading,
+  confirmedBy,
+  coolingTimer,
+  enoughPowder,
+  printTimer,
+  readingCounts,
+  stageCard,
+  CONFIRM_AFTER_MINUTES,
+  type CoolingModel,
+  type CoolingTimer,
+  type ReadingCheckStatus,
+  type TemperatureReading,
+} from '../../shared/floor';
+import type { Mailer } from '../mail/mailer';
 import {
   ADVANCE_SCHEMAS,
+  acceptReadingSchema,
   advanceTargetSchema,
   readingSchema,
   type CountsInput,
@@ -45,18 +60,38 @@ export type RunRow = {
   actual_print_hours: number | null;
   actual_cooling_hours: number | null;
   powder_used_kg: number | null;
+  estimated_preheat_hours: number | null;
+  estimated_layer_hours: number | null;
+  estimated_scan_hours: number | null;
 };
 
 /** The parts of a layout's estimate a run needs. */
 export type RunEstimate = {
-  print: { preheatSeconds: number; layersSeconds: number; printSeconds: number };
+  print: { preheatSeconds: number; layersSeconds: number; printSeconds: number; recoatSeconds?: number; scanSeconds?: number };
   cooling: { inMachineSeconds: number; outsideSeconds: number; coolingSeconds: number; inMachinePerHour: number; outsidePerHour: number };
   powder: { freshPowderKg: number; reusedPowderKg: number; cakeMassKg: number };
   calibration?: { printTimeScale: number; coolingScale: number };
 };
 
-type ReadingRow = { id: string; temp_c: number; place: 'machine' | 'outside'; taken_at: Date; user_id: string | null; user_name: string | null };
+type ReadingRow = {
+  id: string;
+  temp_c: number;
+  place: 'machine' | 'outside';
+  taken_at: Date;
+  user_id: string | null;
+  user_name: string | null;
+  check_status: ReadingCheckStatus;
+  coolest_c: number | null;
+  confirmed_by_reading_id: string | null;
+  accepted_by: string | null;
+  accepted_by_name: string | null;
+  accepted_reason: string | null;
+  accepted_at: Date | null;
+};
 type RunLineRow = { plan_line_id: string; planned_count: number; good_count: number; failed_count: number };
+
+/** An e-mail to send once the step is committed. */
+type Notice = { to: string; subject: string; text: string };
 
 const iso = (d: Date | string | null) => (d ? new Date(d).toISOString() : null);
 const ms = (d: Date | string) => new Date(d).getTime();
@@ -95,7 +130,8 @@ export type RunHooks = {
   ) => Promise<void>;
 };
 
-export function runsService(db: Database, hooks: RunHooks = {}) {
+export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; appUrl?: string; log?: (msg: string) => void } = {}) {
+  const deps = hooks;
   const { sequelize } = db;
 
   async function load(labId: string, planId: string, plan: PlanRow | null, transaction?: Transaction): Promise<RunContext> {
@@ -116,8 +152,10 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
     const [run] = await q<RunRow>(`SELECT r.*, u.name AS started_by_name FROM runs r LEFT JOIN users u ON u.id = r.started_by WHERE r.plan_id = $1`, [plan.id]);
     const readings = run
       ? await q<ReadingRow>(
-          `SELECT g.id, g.temp_c, g.place, g.taken_at, g.user_id, u.name AS user_name
-             FROM run_readings g LEFT JOIN users u ON u.id = g.user_id WHERE g.run_id = $1 ORDER BY g.taken_at, g.created_at`,
+          `SELECT g.id, g.temp_c, g.place, g.taken_at, g.user_id, u.name AS user_name, g.check_status, g.coolest_c,
+                  g.confirmed_by_reading_id, g.accepted_by, a.name AS accepted_by_name, g.accepted_reason, g.accepted_at
+             FROM run_readings g LEFT JOIN users u ON u.id = g.user_id LEFT JOIN users a ON a.id = g.accepted_by
+            WHERE g.run_id = $1 ORDER BY g.taken_at, g.created_at`,
           [run.id],
         )
       : [];
@@ -134,9 +172,25 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
     };
   }
 
+  /** The cooling model a reading is checked against; null before the print ended or without an estimate. */
+  function coolingModel(c: RunContext, run: RunRow | null = c.run): CoolingModel | null {
+    if (!run?.print_ended_at || !c.estimate) return null;
+    return {
+      printEndedAtMs: ms(run.print_ended_at),
+      leftMachineAtMs: run.left_machine_at ? ms(run.left_machine_at) : null,
+      startTempC: c.material.bedTempC,
+      ambientTempC: c.machine.ambientTempC,
+      inMachinePerHour: c.estimate.cooling.inMachinePerHour,
+      outsidePerHour: c.estimate.cooling.outsidePerHour,
+    };
+  }
+
   function cooling(c: RunContext, nowMs: number): CoolingTimer | null {
     if (!c.run?.print_ended_at || !c.estimate) return null;
-    const readings: TemperatureReading[] = c.readings.map((r) => ({ atMs: ms(r.taken_at), tempC: r.temp_c, place: r.place }));
+    // A reading the model cannot explain moves no timer and unlocks nothing until it is confirmed or accepted.
+    const readings: TemperatureReading[] = c.readings
+      .filter((r) => readingCounts(r.check_status))
+      .map((r) => ({ atMs: ms(r.taken_at), tempC: r.temp_c, place: r.place }));
     return coolingTimer({
       printEndedAtMs: ms(c.run.print_ended_at),
       leftMachineAtMs: c.run.left_machine_at ? ms(c.run.left_machine_at) : null,
@@ -181,6 +235,7 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
       status: plan.status,
       allowedTransitions: [...allowedNext(plan.status)],
       machine: { id: c.machine.id, name: c.machine.name },
+      material: { id: c.material.id, name: c.material.name },
       id: run?.id ?? null,
       checklist: run?.checklist ?? null,
       freshPowderLoadedKg: run?.fresh_powder_loaded_kg ?? null,
@@ -211,7 +266,19 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
       actualPrintHours: run?.actual_print_hours ?? null,
       actualCoolingHours: run?.actual_cooling_hours ?? null,
       powderUsedKg: run?.powder_used_kg ?? null,
-      readings: c.readings.map((r) => ({ id: r.id, tempC: r.temp_c, where: r.place, at: iso(r.taken_at)!, by: person(r.user_id, r.user_name) })),
+      readings: c.readings.map((r) => ({
+        id: r.id,
+        tempC: r.temp_c,
+        where: r.place,
+        at: iso(r.taken_at)!,
+        by: person(r.user_id, r.user_name),
+        check: {
+          status: r.check_status,
+          coolestC: r.coolest_c,
+          confirmedBy: r.confirmed_by_reading_id,
+          accepted: r.accepted_by ? { by: person(r.accepted_by, r.accepted_by_name)!, reason: r.accepted_reason ?? '', at: iso(r.accepted_at)! } : null,
+        },
+      })),
       lines,
       thresholds: {
         startTempC: c.material.bedTempC,
@@ -225,13 +292,73 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
     };
   }
 
-  /** When the step happened: the body's `at` (not in the future, not before the stage it ends) or now. */
-  function stepTime(at: string | undefined, notBefore: Date | null, nowMs: number): Date {
+  /**
+   * When the step happened: the body's `at` or now. Never in the future (beyond a phone clock's drift) and never
+   * before `notBefore`: the start of the stage it ends, or for a start the plan's approval.
+   */
+  function stepTime(at: string | undefined, notBefore: Date | null, nowMs: number, what = 'the stage began'): Date {
     if (at === undefined) return new Date(Math.max(nowMs, notBefore ? ms(notBefore) : 0));
     const t = new Date(at);
-    if (t.getTime() > nowMs + FUTURE_SLACK_MS) throw badRequest('at is in the future', 'at');
-    if (notBefore && t.getTime() < ms(notBefore)) throw badRequest(`at is before the stage began (${notBefore.toISOString()})`, 'at');
+    if (t.getTime() > nowMs + FUTURE_SLACK_MS) throw badRequest(`at (${t.toISOString()}) is in the future; the server's time is ${new Date(nowMs).toISOString()}`, 'at');
+    if (notBefore && t.getTime() < ms(notBefore)) throw badRequest(`at (${t.toISOString()}) is before ${what} (${new Date(notBefore).toISOString()})`, 'at');
     return t;
+  }
+
+  /** When the plan was approved (its latest approval): no run of it can have started earlier. */
+  async function approvedAt(planId: string, transaction: Transaction): Promise<Date | null> {
+    const [row] = await sequelize.query<{ at: Date | null }>(
+      `SELECT MAX(created_at) AS at FROM plan_events WHERE plan_id = $1 AND to_status = 'approved'`,
+      { bind: [planId], type: QueryTypes.SELECT, transaction },
+    );
+    return row?.at ?? null;
+  }
+
+  /**
+   * One build prints on a machine at a time. The caller holds the machine's row lock, so two starts on one
+   * machine are checked one after the other. 409 naming the build that holds the machine, or (for a start
+   * recorded late) the build that was printing at that time.
+   */
+  async function checkMachineFree(c: RunContext, when: Date, transaction: Transaction) {
+    const [busy] = await sequelize.query<{ plan_id: string; name: string; started_at: Date }>(
+      `SELECT r.plan_id, p.name, r.started_at FROM runs r JOIN plans p ON p.id = r.plan_id
+        WHERE r.machine_id = $1 AND r.plan_id <> $2 AND r.print_ended_at IS NULL AND r.aborted_at IS NULL LIMIT 1`,
+      { bind: [c.plan.machine_id, c.plan.id], type: QueryTypes.SELECT, transaction },
+    );
+    if (busy) {
+      throw conflict(
+        'machine_busy',
+        `${c.machine.name || 'This machine'} is printing "${busy.name}" (started ${new Date(busy.started_at).toISOString()}): record its end or abort it before starting "${c.plan.name}".`,
+        undefined,
+        { planId: busy.plan_id, planName: busy.name },
+      );
+    }
+    const [overlap] = await sequelize.query<{ plan_id: string; name: string; ended: Date }>(
+      `SELECT r.plan_id, p.name, COALESCE(r.print_ended_at, r.aborted_at) AS ended FROM runs r JOIN plans p ON p.id = r.plan_id
+        WHERE r.machine_id = $1 AND r.plan_id <> $2 AND COALESCE(r.print_ended_at, r.aborted_at) > $3
+        ORDER BY ended DESC LIMIT 1`,
+      { bind: [c.plan.machine_id, c.plan.id, when], type: QueryTypes.SELECT, transaction },
+    );
+    if (overlap) {
+      throw conflict(
+        'machine_busy',
+        `at (${when.toISOString()}) is while "${overlap.name}" was still printing on ${c.machine.name || 'this machine'} (until ${new Date(overlap.ended).toISOString()}).`,
+        'at',
+        { planId: overlap.plan_id, planName: overlap.name },
+      );
+    }
+  }
+
+  /** Every step after the start names the run it acts on, so a card showing another build can never move this one. */
+  function checkRunNamed(c: RunContext, runId: string | undefined) {
+    if (!c.run) return;
+    if (runId !== c.run.id) {
+      throw conflict(
+        'wrong_run',
+        `runId names another run than "${c.plan.name}" has (${c.run.id}): reload the card and try again.`,
+        'runId',
+        { runId: c.run.id, planId: c.plan.id, planName: c.plan.name },
+      );
+    }
   }
 
   const setRun = (runId: string, sets: string, bind: unknown[], transaction: Transaction) =>
@@ -248,11 +375,15 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
         throw badRequest(`${field} is ${loaded} kg, but the build needs at least ${needed.toFixed(2)} kg of ${kind} powder: load more before starting`, field);
       }
     }
+    const printScale = est.calibration?.printTimeScale ?? 1;
+    // The estimate's parts before any calibration, for the separate fits of per-layer and scan time.
+    const scanSeconds = est.print.scanSeconds ?? null;
+    const layerSeconds = scanSeconds !== null ? est.print.layersSeconds - scanSeconds : null;
     const [inserted] = await sequelize.query<{ id: string }>(
       `INSERT INTO runs (id, plan_id, lab_id, machine_id, layout_id, checklist, fresh_powder_loaded_kg, reused_powder_loaded_kg,
                          started_at, started_by, estimated_print_hours, estimated_cooling_hours, print_time_scale_used,
-                         cooling_scale_used, created_at, updated_at)
-       VALUES (gen_random_uuid(), $1, $2, $3, $4, $5::jsonb, $6, $7, $8, $9, $10, $11, $12, $13, now(), now()) RETURNING id`,
+                         cooling_scale_used, estimated_preheat_hours, estimated_layer_hours, estimated_scan_hours, created_at, updated_at)
+       VALUES (gen_random_uuid(), $1, $2, $3, $4, $5::jsonb, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, now(), now()) RETURNING id`,
       {
         type: QueryTypes.SELECT,
         bind: [
@@ -267,8 +398,11 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
           user.id,
           est.print.printSeconds / 3600,
           est.cooling.coolingSeconds / 3600,
-          est.calibration?.printTimeScale ?? 1,
+          printScale,
           est.calibration?.coolingScale ?? 1,
+          est.print.preheatSeconds / printScale / 3600,
+          layerSeconds === null ? null : layerSeconds / printScale / 3600,
+          scanSeconds === null ? null : scanSeconds / printScale / 3600,
         ],
         transaction,
       },
@@ -336,6 +470,74 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
     );
   }
 
+  /** The designers (who filed the requests) of a run's lines, with their request's lines now. */
+  async function requestsOf(c: RunContext, transaction: Transaction) {
+    const ids = [...new Set(c.lines.map((l) => l.request_id))];
+    const rows = await sequelize.query<{ id: string; title: string; status: string; email: string | null; quantity: number; printed: number }>(
+      `SELECT r.id, r.title, r.status, u.email, SUM(rl.quantity)::int AS quantity, SUM(LEAST(rl.printed_count, rl.quantity))::int AS printed
+         FROM requests r JOIN request_lines rl ON rl.request_id = r.id LEFT JOIN users u ON u.id = r.created_by
+        WHERE r.id = ANY($1::uuid[]) GROUP BY r.id, u.email`,
+      { bind: [ids], type: QueryTypes.SELECT, transaction },
+    );
+    return rows;
+  }
+
+  const requestLink = (requestId: string) => (deps.appUrl ? `\n\n${deps.appUrl}/requests/${requestId}` : '');
+
+  /** After breakout: each designer whose parts failed hears which, and that they are open to plan again. */
+  async function failedNotices(c: RunContext, input: CountsInput, transaction: Transaction): Promise<Notice[]> {
+    const failedOf = new Map<string, string[]>();
+    for (const entry of input.counts) {
+      const line = c.lines.find((l) => l.request_line_id === entry.requestLineId)!;
+      const notGood = line.quantity - entry.good;
+      if (notGood <= 0) continue;
+      const text = `${line.part_name}: ${entry.failed} failed${notGood > entry.failed ? `, ${notGood - entry.failed} not accounted for` : ''} of ${line.quantity}`;
+      failedOf.set(line.request_id, [...(failedOf.get(line.request_id) ?? []), text]);
+    }
+    if (failedOf.size === 0) return [];
+    const requests = await requestsOf(c, transaction);
+    return requests
+      .filter((r) => r.email && failedOf.has(r.id))
+      .map((r) => ({
+        to: r.email!,
+        subject: `Parts failed in build "${c.plan.name}" for your request "${r.title}"`,
+        text:
+          `The build "${c.plan.name}" on ${c.machine.name} was broken out and some of the parts of your request "${r.title}" did not come out good:\n\n` +
+          failedOf.get(r.id)!.map((t) => `- ${t}`).join('\n') +
+          `\n\nThey are open in the request again, so a planner can put them in a later build.` +
+          requestLink(r.id),
+      }));
+  }
+
+  /** After done: a request whose every part is now printed is done, and its designer hears so. */
+  async function doneNotices(c: RunContext, transaction: Transaction): Promise<Notice[]> {
+    const requests = await requestsOf(c, transaction);
+    const complete = requests.filter((r) => r.status === 'open' && r.printed >= r.quantity);
+    if (complete.length === 0) return [];
+    await sequelize.query(`UPDATE requests SET status = 'done', updated_at = now() WHERE id = ANY($1::uuid[])`, {
+      bind: [complete.map((r) => r.id)],
+      transaction,
+    });
+    return complete
+      .filter((r) => r.email)
+      .map((r) => ({
+        to: r.email!,
+        subject: `Your request "${r.title}" is done`,
+        text: `All ${r.quantity} parts of your request "${r.title}" are printed; the last of them came out of the build "${c.plan.name}" on ${c.machine.name}.` + requestLink(r.id),
+      }));
+  }
+
+  async function send(mail: Notice[]) {
+    for (const m of mail) {
+      try {
+        await deps.mailer?.send(m);
+      } catch (err) {
+        // The step stands; the request page shows the same counts.
+        deps.log?.(`could not e-mail ${m.to}: ${(err as Error).message}`);
+      }
+    }
+  }
+
   async function get(labId: string, planId: string): Promise<RunView> {
     return view(await load(labId, planId, null));
   }
@@ -345,20 +547,34 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
 
     async advance(labId: string, planId: string, user: Actor, body: unknown): Promise<RunView> {
       const { to } = parseOrThrow(advanceTargetSchema, body);
+      let mail: Notice[] = [];
       try {
         await sequelize.transaction(async (transaction) => {
+          if (to === 'printing') {
+            // The machine's row first (as approvals and the queue's reorder take it), then the plan's: two starts on
+            // one machine, of the same plan or of two, are checked one after the other.
+            const [row] = await sequelize.query<{ machine_id: string }>('SELECT machine_id FROM plans WHERE id = $1 AND lab_id = $2', {
+              bind: [checkPlanId(planId), labId],
+              type: QueryTypes.SELECT,
+              transaction,
+            });
+            if (row) await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [row.machine_id], transaction });
+          }
           const plan = await lockPlan(db, labId, planId, transaction);
           if (!canTransition(plan.status, to)) throw runConflict(plan.status, to);
           const schema = ADVANCE_SCHEMAS[to];
           if (!schema) throw badRequest(`to: a plan becomes ${STATUS_LABELS[to].toLowerCase()} through its own route, not at the machine`, 'to');
-          const input = parseOrThrow(schema, body) as { at?: string } & Record<string, any>;
+          const input = parseOrThrow(schema, body) as { at?: string; runId?: string } & Record<string, any>;
           const c = await load(labId, planId, plan, transaction);
+          checkRunNamed(c, input.runId);
           const nowMs = Date.now();
           const run = c.run;
           let comment: string | null = null;
           switch (to) {
             case 'printing': {
-              await start(c, user, input as StartRunInput, stepTime(input.at, null, nowMs), transaction);
+              const when = stepTime(input.at, await approvedAt(plan.id, transaction), nowMs, 'the plan was approved');
+              await checkMachineFree(c, when, transaction);
+              await start(c, user, input as StartRunInput, when, transaction);
               break;
             }
             case 'cooling': {
@@ -369,7 +585,8 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
             case 'aborted': {
               const when = stepTime(input.at, run!.started_at, nowMs);
               comment = input.reason as string;
-              await setRun(run!.id, 'aborted_at = $2, abort_reason = $3', [when, comment], transaction);
+              // The hours it printed are kept for the record; an aborted run never counts toward calibration.
+              await setRun(run!.id, 'aborted_at = $2, abort_reason = $3, actual_print_hours = $4', [when, comment, (when.getTime() - ms(run!.started_at)) / MS_PER_HOUR], transaction);
               break;
             }
             case 'breakout': {
@@ -377,12 +594,24 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
               const timer = cooling(c, when.getTime())!;
               if (!timer.handlingReached) {
                 const handling = c.machine.handlingTempC;
+                const doubted = c.readings.filter((r) => r.check_status === 'unexplained' && r.temp_c <= handling);
+                const doubt = doubted.length
+                  ? ` The reading of ${doubted[doubted.length - 1].temp_c} °C is colder than the cake can cool by then ` +
+                    `(at least ${Math.round(doubted[doubted.length - 1].coolest_c ?? handling)} °C by the cooling model): take a second reading at least ` +
+                    `${CONFIRM_AFTER_MINUTES} minutes after it, or ask a lead to accept it with a reason.`
+                  : '';
                 throw conflict(
                   'still_hot',
                   `The cake is still cooling: about ${duration(timer.remainingToHandlingSeconds)} to the handling temperature of ${handling} °C ` +
-                    `(about ${Math.round(timer.predictedTempC)} °C now by the cooling curve). Wait for the timer, or enter a reading at or below ${handling} °C.`,
+                    `(about ${Math.round(timer.predictedTempC)} °C now by the cooling curve). Wait for the timer, or enter a reading at or below ${handling} °C.` +
+                    doubt,
                   undefined,
-                  { remainingSeconds: timer.remainingToHandlingSeconds, predictedTempC: timer.predictedTempC, handlingTempC: handling },
+                  {
+                    remainingSeconds: timer.remainingToHandlingSeconds,
+                    predictedTempC: timer.predictedTempC,
+                    handlingTempC: handling,
+                    unexplainedReadings: doubted.map((r) => r.id),
+                  },
                 );
               }
               const leftMs = Math.min(when.getTime(), timer.outside.startMs);
@@ -398,10 +627,12 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
               const when = stepTime(input.at, run!.breakout_at, nowMs);
               await counts(c, input as CountsInput, transaction);
               await setRun(run!.id, 'finishing_at = $2', [when], transaction);
+              mail = await failedNotices(c, input as CountsInput, transaction);
               break;
             }
             case 'done': {
               await finish(c, input as DoneInput, stepTime(input.at, run!.finishing_at, nowMs), transaction);
+              mail = await doneNotices(c, transaction);
               break;
             }
           }
@@ -416,6 +647,7 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
         }
         throw err;
       }
+      await send(mail);
       return get(labId, planId);
     },
 
@@ -429,15 +661,58 @@ export function runsService(db: Database, hooks: RunHooks = {}) {
             status: plan.status,
           });
         }
-        const [run] = await sequelize.query<RunRow>('SELECT * FROM runs WHERE plan_id = $1', { bind: [plan.id], type: QueryTypes.SELECT, transaction });
-        const when = stepTime(input.at, run.print_ended_at, Date.now());
-        await sequelize.query(
-          `INSERT INTO run_readings (id, run_id, temp_c, place, taken_at, user_id, created_at) VALUES (gen_random_uuid(), $1, $2, $3, $4, $5, clock_timestamp())`,
-          { bind: [run.id, input.tempC, input.where, when, user.id], transaction },
-        );
+        const c = await load(labId, planId, plan, transaction);
+        checkRunNamed(c, input.runId);
+        const run = c.run!;
+        const when = stepTime(input.at, run.print_ended_at, Date.now(), 'the print ended');
         if (input.where === 'outside') {
           await setRun(run.id, 'left_machine_at = LEAST(COALESCE(left_machine_at, $2), $2)', [when], transaction);
+          run.left_machine_at = run.left_machine_at && ms(run.left_machine_at) < when.getTime() ? run.left_machine_at : when;
         }
+        // Checked against the cooling model: a reading colder than the cake can be is held until a second one agrees.
+        const model = coolingModel(c, run);
+        const check = model ? checkReading(model, { atMs: when.getTime(), tempC: input.tempC, place: input.where }) : null;
+        const earlier = c.readings.map((r) => ({ id: r.id, atMs: ms(r.taken_at), tempC: r.temp_c, status: r.check_status }));
+        const confirms = check && !check.explained ? confirmedBy(earlier, { atMs: when.getTime(), tempC: input.tempC }) : null;
+        const status: ReadingCheckStatus = !check || check.explained ? 'explained' : confirms ? 'confirmed' : 'unexplained';
+        const [[inserted]] = (await sequelize.query(
+          `INSERT INTO run_readings (id, run_id, temp_c, place, taken_at, user_id, check_status, coolest_c, created_at)
+           VALUES (gen_random_uuid(), $1, $2, $3, $4, $5, $6, $7, clock_timestamp()) RETURNING id`,
+          { bind: [run.id, input.tempC, input.where, when, user.id, status, check?.coolestC ?? null], transaction },
+        )) as [Array<{ id: string }>, unknown];
+        if (confirms) {
+          await sequelize.query(`UPDATE run_readings SET check_status = 'confirmed', confirmed_by_reading_id = $2 WHERE id = $1`, {
+            bind: [confirms.id, inserted.id],
+            transaction,
+          });
+        }
+      });
+      return get(labId, planId);
+    },
+
+    /** A lead accepts a reading the cooling model cannot explain, with the reason; it then counts like any other. */
+    async acceptReading(labId: string, planId: string, readingId: string, user: Actor, body: unknown): Promise<RunView> {
+      const input = parseOrThrow(acceptReadingSchema, body);
+      await sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (plan.status !== 'cooling') {
+          throw conflict('not_cooling', `Readings are accepted while the build cools; this plan is ${STATUS_LABELS[plan.status].toLowerCase()}.`, undefined, {
+            status: plan.status,
+          });
+        }
+        const c = await load(labId, planId, plan, transaction);
+        checkRunNamed(c, input.runId);
+        const reading = c.readings.find((r) => r.id === readingId);
+        if (!reading) throw new AppError(404, 'not_found', 'That reading was not found on this run.');
+        if (reading.check_status !== 'unexplained') {
+          throw conflict('reading_not_doubted', `The reading of ${reading.temp_c} °C is ${reading.check_status}: there is nothing to accept.`, undefined, {
+            checkStatus: reading.check_status,
+          });
+        }
+        await sequelize.query(
+          `UPDATE run_readings SET check_status = 'accepted', accepted_by = $2, accepted_reason = $3, accepted_at = now() WHERE id = $1`,
+          { bind: [reading.id, user.id, input.reason], transaction },
+        );
       });
       return get(labId, planId);
     },

@@ -13,6 +13,12 @@ export interface RecordedRun {
   /** Factors the run's estimate was made with (1 when left out), so a fit never compounds an earlier one. */
   printTimeScaleUsed?: number;
   coolingScaleUsed?: number;
+  /**
+   * The print estimate's parts (hours, before any calibration): the machine's fixed time (preheat and every
+   * layer's recoat) and the laser's scan time. Left out by runs recorded before the split was kept.
+   */
+  estimatedFixedHours?: number | null;
+  estimatedScanHours?: number | null;
 }
 
 export interface CalibrationOptions {
@@ -28,6 +34,15 @@ export interface Calibration extends CalibrationFactors {
   /** A factor hit the band and was held at its edge. */
   printTimeClamped: boolean;
   coolingClamped: boolean;
+  /**
+   * Separate factors on the print's two parts, fitted together: actual print = f x (preheat + recoats) + s x scan.
+   * Both equal the print-time scale when the runs cannot tell them apart (too few with the split recorded,
+   * or every build with the same share of scan time).
+   */
+  perLayerScale: number;
+  scanScale: number;
+  /** True when the two were fitted apart. */
+  separate: boolean;
 }
 
 export const DEFAULT_LAST_RUNS = 10;
@@ -63,6 +78,31 @@ function validate(runs: readonly RecordedRun[], options: CalibrationOptions): Pr
     }
   }
   return problems;
+}
+
+/**
+ * Least squares with two regressors, y = a x1 + b x2 (no other term; put a column of ones in x1 for an
+ * intercept): the normal equations X'X [a b]' = X'y (Draper & Smith, Applied Regression Analysis, 3rd ed.,
+ * §5.1, from memory) solved by Cramer's rule. Null when the columns are (nearly) proportional, so the data
+ * cannot tell a from b.
+ */
+export function leastSquares2(x1: ArrayLike<number>, x2: ArrayLike<number>, y: ArrayLike<number>): { a: number; b: number } | null {
+  let s11 = 0;
+  let s12 = 0;
+  let s22 = 0;
+  let s1y = 0;
+  let s2y = 0;
+  for (let i = 0; i < y.length; i++) {
+    s11 += x1[i] * x1[i];
+    s12 += x1[i] * x2[i];
+    s22 += x2[i] * x2[i];
+    s1y += x1[i] * y[i];
+    s2y += x2[i] * y[i];
+  }
+  const det = s11 * s22 - s12 * s12;
+  // Relative to the product of the diagonal: 1 - (cosine of the angle between the columns)^2.
+  if (!(s11 > 0 && s22 > 0) || det <= 1e-6 * s11 * s22) return null;
+  return { a: (s1y * s22 - s12 * s2y) / det, b: (s11 * s2y - s12 * s1y) / det };
 }
 
 /** Least squares through the origin for actual = s x estimate: s = sum(a e) / sum(e e). */
@@ -112,7 +152,17 @@ export function calibrateMachine(runs: readonly RecordedRun[], options: Calibrat
   const used = ordered.slice(Math.max(0, ordered.length - lastRuns));
 
   if (used.length < minRuns) {
-    return { printTimeScale: 1, coolingScale: 1, runs: used.length, calibrated: false, printTimeClamped: false, coolingClamped: false };
+    return {
+      printTimeScale: 1,
+      coolingScale: 1,
+      perLayerScale: 1,
+      scanScale: 1,
+      separate: false,
+      runs: used.length,
+      calibrated: false,
+      printTimeClamped: false,
+      coolingClamped: false,
+    };
   }
 
   const printEstimates = used.map((r) => r.estimatedPrintHours! / (r.printTimeScaleUsed ?? 1));
@@ -123,7 +173,22 @@ export function calibrateMachine(runs: readonly RecordedRun[], options: Calibrat
 
   const print = clamp(scaleThroughOrigin(printEstimates, printActuals), band);
   const cooling = clamp(1 / scaleThroughOrigin(coolingEstimates, coolingActuals), band);
+  // The two parts apart, over the runs that recorded them (at least minRuns).
+  const split = used.filter((r) => (r.estimatedFixedHours ?? 0) > 0 && (r.estimatedScanHours ?? -1) >= 0);
+  const parts =
+    split.length >= minRuns
+      ? leastSquares2(
+          split.map((r) => r.estimatedFixedHours!),
+          split.map((r) => r.estimatedScanHours!),
+          split.map((r) => r.actualPrintHours!),
+        )
+      : null;
+  const perLayer = parts ? clamp(parts.a, band) : print;
+  const scan = parts ? clamp(parts.b, band) : print;
   return {
+    perLayerScale: perLayer.value,
+    scanScale: scan.value,
+    separate: parts !== null,
     printTimeScale: print.value,
     coolingScale: cooling.value,
     runs: used.length,

@@ -1,1 +1,2 @@
 export * from './calibrate';
+export * from './runs';

@@ -2,3 +2,4 @@ export * from './cautions';
 export * from './checklist';
 export * from './timers';
 export * from './card';
+export * from './readings';

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { pageSchema, pageSizeSchema } from './parts';
+import { PLAN_STATUSES } from '../plans/status';
 
 export const PRIORITIES = ['low', 'normal', 'high', 'urgent'] as const;
 export const prioritySchema = z.enum(PRIORITIES);
@@ -86,10 +87,30 @@ export const requestLineViewSchema = z.object({
   partId: z.string(),
   partName: z.string(),
   quantity: z.number(),
+  /** In builds (waiting, under way or done): parts not counted good at a breakout come off again. */
   plannedCount: z.number(),
+  /** Counted good in builds that are done. */
   printedCount: z.number(),
+  /** Counted failed at breakouts (they were given back to plan again). */
+  failedCount: z.number(),
+  /** quantity - printed. */
+  stillToMakeCount: z.number(),
+  /** quantity - planned: what a planner can still put in a build. */
+  openCount: z.number(),
 });
 export type RequestLineView = z.infer<typeof requestLineViewSchema>;
+
+/** A build holding some of a request's parts; readyAt: the queue's predicted breakout end, or when it was done. */
+export const requestBuildViewSchema = z.object({
+  planId: z.string(),
+  planName: z.string(),
+  status: z.enum(PLAN_STATUSES),
+  machine: z.object({ id: z.string(), name: z.string() }),
+  materialName: z.string().nullable(),
+  readyAt: z.string().nullable(),
+  lines: z.array(z.object({ requestLineId: z.string(), quantity: z.number(), goodCount: z.number().nullable(), failedCount: z.number().nullable() })),
+});
+export type RequestBuildView = z.infer<typeof requestBuildViewSchema>;
 
 export const requestViewSchema = z.object({
   id: z.string(),
@@ -105,7 +126,9 @@ export const requestViewSchema = z.object({
   createdAt: z.string(),
   updatedAt: z.string(),
   lines: z.array(requestLineViewSchema),
-  totals: z.object({ quantity: z.number(), planned: z.number(), printed: z.number() }),
+  totals: z.object({ quantity: z.number(), planned: z.number(), printed: z.number(), failed: z.number(), stillToMake: z.number() }),
+  /** Only on a single request (GET .../requests/:id). */
+  builds: z.array(requestBuildViewSchema).optional(),
   /** True once any line has a planned count: the request can no longer be edited. */
   planned: z.boolean(),
 });

@@ -6,6 +6,8 @@ const uuid = z.uuid('must be an id');
 const confirmed = z.literal(true, { error: 'must be confirmed before the next stage' });
 const kg = z.number({ error: 'must be a number of kilograms' }).min(0, 'must be at least 0').max(10_000, 'must be at most 10,000 kg');
 const count = z.number({ error: 'must be a number' }).int('must be a whole number').min(0, 'must be at least 0').max(100_000, 'must be at most 100,000');
+/** The run a step acts on, as the card showed it: a card showing another build can never move this one. */
+const runId = z.uuid('is required: the id of the run this step acts on');
 /** When the step really happened, if not now (an operator recording it late). */
 const at = z.iso.datetime({ offset: true, error: 'must be an ISO 8601 time' }).optional();
 
@@ -24,15 +26,17 @@ export const startRunSchema = z.strictObject({
   lots: z.array(z.strictObject({ lotId: uuid, kg: kg.refine((v) => v > 0, 'must be more than 0 kg') })).max(50, 'must be at most 50 lots').optional(),
   at,
 });
-export const printEndSchema = z.strictObject({ to: z.literal('cooling'), at });
+export const printEndSchema = z.strictObject({ to: z.literal('cooling'), runId, at });
 export const abortSchema = z.strictObject({
   to: z.literal('aborted'),
+  runId,
   reason: z.string({ error: 'is required: say why the build was stopped' }).trim().min(1, 'is required: say why the build was stopped').max(2000, 'must be at most 2,000 characters'),
   at,
 });
-export const breakoutSchema = z.strictObject({ to: z.literal('breakout'), at });
+export const breakoutSchema = z.strictObject({ to: z.literal('breakout'), runId, at });
 export const countsSchema = z.strictObject({
   to: z.literal('finishing'),
+  runId,
   counts: z
     .array(z.strictObject({ requestLineId: uuid, good: count, failed: count }), { error: 'is required: the good and failed parts of each line' })
     .min(1, 'is required: the good and failed parts of each line'),
@@ -40,6 +44,7 @@ export const countsSchema = z.strictObject({
 });
 export const doneSchema = z.strictObject({
   to: z.literal('done'),
+  runId,
   finishingChecklist: z.strictObject(
     { powderRemoved: confirmed, blasted: confirmed, inspected: confirmed },
     { error: 'is required: confirm powder removed, blasted and inspected' },
@@ -67,9 +72,27 @@ export const readingSchema = z.strictObject({
     .min(READING_MIN_C, `must be at least ${READING_MIN_C} °C`)
     .max(READING_MAX_C, `must be at most ${READING_MAX_C} °C`),
   where: z.enum(['machine', 'outside'], { error: 'must be "machine" or "outside"' }),
+  runId,
   at,
 });
 export type ReadingInput = z.infer<typeof readingSchema>;
+
+const reason = z
+  .string({ error: 'is required: say why' })
+  .trim()
+  .min(3, 'is required: say why (at least 3 characters)')
+  .max(2000, 'must be at most 2,000 characters');
+
+/** A lead accepts a reading the cooling model cannot explain. */
+export const acceptReadingSchema = z.strictObject({ runId, reason });
+export type AcceptReadingInput = z.infer<typeof acceptReadingSchema>;
+
+/** A lead leaves a run out of the machine's calibration, or takes back one left out by default. */
+export const calibrationChoiceSchema = z.strictObject({
+  choice: z.enum(['exclude', 'include'], { error: 'must be "exclude" or "include"' }),
+  reason,
+});
+export type CalibrationChoiceInput = z.infer<typeof calibrationChoiceSchema>;
 
 export const queueOrderSchema = z.strictObject({
   planIds: z.array(uuid, { error: 'must be the list of the queued plans in their new order' }).max(1000),
@@ -91,6 +114,7 @@ export interface RunView {
   status: PlanStatus;
   allowedTransitions: PlanStatus[];
   machine: { id: string; name: string };
+  material: { id: string; name: string };
   /** Null until the run is started. */
   id: string | null;
   checklist: { chamberInPlace: boolean; opticalWindowClean: boolean } | null;
@@ -120,7 +144,21 @@ export interface RunView {
   actualPrintHours: number | null;
   actualCoolingHours: number | null;
   powderUsedKg: number | null;
-  readings: Array<{ id: string; tempC: number; where: 'machine' | 'outside'; at: string; by: { id: string; name: string } | null }>;
+  readings: Array<{
+    id: string;
+    tempC: number;
+    where: 'machine' | 'outside';
+    at: string;
+    by: { id: string; name: string } | null;
+    /** The reading against the cooling model: an unexplained one counts only once confirmed by a second reading or accepted by a lead. */
+    check: {
+      status: 'explained' | 'unexplained' | 'confirmed' | 'accepted';
+      /** The coolest the cake could be then, by the model at its fastest. */
+      coolestC: number | null;
+      confirmedBy: string | null;
+      accepted: { by: { id: string; name: string }; reason: string; at: string } | null;
+    };
+  }>;
   lines: RunLineView[];
   thresholds: { startTempC: number; ambientTempC: number; removalTempC: number; handlingTempC: number };
   timers: { print: PrintTimer | null; cooling: CoolingTimer | null };
@@ -148,18 +186,55 @@ export interface QueueItemView {
   durations: { preheatSeconds: number; layersSeconds: number; inMachineCoolingSeconds: number; outsideCoolingSeconds: number; breakoutSeconds: number };
 }
 
-export interface CalibrationView {
+/** A machine's estimate factors as the queue shows them. */
+export interface CalibrationFactorsView {
   printTimeScale: number;
   coolingScale: number;
+  /** Separate factors on preheat-and-recoat time and on scan time; both the print-time scale when not fitted apart. */
+  perLayerScale: number;
+  scanScale: number;
+  separate: boolean;
   runs: number;
   calibrated: boolean;
   printTimeClamped: boolean;
   coolingClamped: boolean;
 }
 
+/** One finished or aborted run of a machine against its estimate (hours, the estimate before calibration). */
+export interface CalibrationRunView {
+  runId: string;
+  planId: string;
+  planName: string;
+  materialName: string | null;
+  startedAt: string;
+  endedAt: string;
+  outcome: 'done' | 'aborted';
+  abortReason: string | null;
+  estimatedPrintHours: number;
+  actualPrintHours: number | null;
+  estimatedCoolingHours: number;
+  actualCoolingHours: number | null;
+  /** Actual over estimate; null when not recorded. */
+  printRatio: number | null;
+  coolingRatio: number | null;
+  /** Counts toward the fit (the lead's choice, or the default). */
+  counted: boolean;
+  /** Among the latest counted runs the fit used. */
+  usedInFit: boolean;
+  defaultExclusion: 'aborted' | 'incomplete' | 'far_outside_model' | null;
+  defaultExclusionText: string | null;
+  choice: { choice: 'exclude' | 'include'; reason: string; by: { id: string; name: string } | null; at: string } | null;
+}
+
+/** GET .../calibration: the factors, and every recorded run of the machine, latest first. */
+export interface CalibrationView extends CalibrationFactorsView {
+  machine: { id: string; name: string };
+  recordedRuns: CalibrationRunView[];
+}
+
 export interface QueueView {
   machine: { id: string; name: string; chamberCount: number };
-  calibration: CalibrationView;
+  calibration: CalibrationFactorsView;
   now: string;
   current: QueueItemView | null;
   /** Every started build that still holds a chamber (printing, cooling or in breakout), latest started first. */

@@ -1,6 +1,6 @@
 import { startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
-import { labWithCrew, queuedPlan, startBody } from './runs-fixtures';
+import { backdateApproval, labWithCrew, queuedPlan, runIdOf, startBody } from './runs-fixtures';
 
 // Each test builds a lab, plans and layouts through the API: slower than the default 5 s on a busy machine.
 jest.setTimeout(30_000);
@@ -104,6 +104,7 @@ describe('calibration from recorded runs', () => {
     const coolMs = est.cooling.coolingSeconds * 1000;
     const span = 1.2 * printMs + 1.25 * coolMs + 2 * HOUR;
     const t0 = Date.now() - 3 * span - HOUR;
+    for (const p of plans) await backdateApproval(running, p.planId, 3 * span + 2 * HOUR);
     const at = (t: number) => new Date(Math.round(t)).toISOString();
     const url = `/api/labs/${lab.labId}/machines/${lab.machineId}/calibration`;
     expect((await lab.agent.get(url)).body).toMatchObject({ runs: 0, calibrated: false, printTimeScale: 1, coolingScale: 1 });
@@ -121,7 +122,8 @@ describe('calibration from recorded runs', () => {
         { to: 'done', at: at(breakout + HOUR), finishingChecklist: { powderRemoved: true, blasted: true, inspected: true } },
       ];
       for (const step of steps) {
-        const res = await lab.operator.agent.post(`${base}/run/advance`).send(step);
+        const named = step.to === 'printing' ? step : { ...step, runId: await runIdOf(lab.operator.agent, base) };
+        const res = await lab.operator.agent.post(`${base}/run/advance`).send(named);
         if (res.status !== 200) throw new Error(`${step.to}: ${res.status} ${JSON.stringify(res.body)}`);
       }
     }

@@ -22,8 +22,16 @@ export async function labWithCrew(running: Running, tag: string, machine: Partia
  * A plan of `parts` packed on a grid, chosen, sent for review and approved by
  * the lead, so it is queued on the lab's machine.
  */
-export async function queuedPlan(running: Running, lab: Lab, parts: FixturePart[], opts: { name?: string; dueDate?: string; approve?: boolean; layout?: (instance: PackInstanceInput) => PackResult } = {}) {
-  const req = await makeRequest(running, lab.labId, lab.userId, lab.materialId, parts, { dueDate: opts.dueDate });
+export async function queuedPlan(
+  running: Running,
+  lab: Lab,
+  parts: FixturePart[],
+  opts: { name?: string; dueDate?: string; approve?: boolean; layout?: (instance: PackInstanceInput) => PackResult; lines?: Array<{ id: string; quantity: number }> } = {},
+) {
+  // Either a new request of `parts`, or (with `lines`) open quantities of existing request lines.
+  const req = opts.lines
+    ? ({ requestId: '', lines: opts.lines } as unknown as Awaited<ReturnType<typeof makeRequest>>)
+    : await makeRequest(running, lab.labId, lab.userId, lab.materialId, parts, { dueDate: opts.dueDate });
   const plan = await createPlan(lab.agent, lab.labId, lab.machineId, lab.materialId, req.lines, opts.name ?? 'Run plan');
   const base = `/api/labs/${lab.labId}/plans/${plan.id}`;
   const instance = planInstance(plan.view, lab.machine, lab.material);
@@ -50,4 +58,22 @@ export function startBody(estimate: { powder: { freshPowderKg: number; reusedPow
     reusedPowderKg: Math.ceil(estimate.powder.reusedPowderKg * 10) / 10,
     ...(at ? { at } : {}),
   };
+}
+
+/** The id of a plan's run, as a card shows it: every step after the start names it. */
+export async function runIdOf(agent: { get(url: string): PromiseLike<{ body: { id: string | null } }> }, base: string): Promise<string> {
+  const res = await agent.get(`${base}/run`);
+  if (!res.body.id) throw new Error(`no run yet at ${base}`);
+  return res.body.id;
+}
+
+/**
+ * Moves a plan's approval back in time, as if the lead had approved it `msAgo` ago: a run cannot be recorded as
+ * started before its plan's approval, so a test of runs recorded late needs an approval earlier still.
+ */
+export async function backdateApproval(running: Running, planId: string, msAgo: number) {
+  await running.db.sequelize.query(
+    `UPDATE plan_events SET created_at = now() - ($2::double precision * interval '1 millisecond') WHERE plan_id = $1 AND to_status IN ('approved', 'queued')`,
+    { bind: [planId, msAgo] },
+  );
 }

@@ -6,6 +6,7 @@ import * as m0004 from './0004-runs';
 import * as m0005 from './0005-file-key-locks';
 import * as m0006 from './0006-powder';
 import * as m0007 from './0007-estimate-profile-fields';
+import * as m0008 from './0008-floor-integrity';
 
 export type Migration = {
   name: string;
@@ -22,4 +23,5 @@ export const migrations: Migration[] = [
   { name: '0005-file-key-locks', ...m0005 },
   { name: '0006-powder', ...m0006 },
   { name: '0007-estimate-profile-fields', ...m0007 },
+  { name: '0008-floor-integrity', ...m0008 },
 ];

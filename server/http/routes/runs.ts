@@ -43,6 +43,10 @@ export function runRoutes({ labs, queue, runs, calibration, sheet, export3mf }: 
   r.get(`${machine}/calibration`, member, async (req, res) => {
     res.json(await calibration.get(requireLab(req).labId, p(req, 'machineId')));
   });
+  r.put(`${machine}/calibration/runs/:runId`, lead, async (req, res) => {
+    const { labId, user } = requireLab(req);
+    res.json(await calibration.choose(labId, p(req, 'machineId'), p(req, 'runId'), user, req.body));
+  });
 
   r.get(`${plan}/run`, member, async (req, res) => {
     res.json(await runs.get(requireLab(req).labId, p(req, 'planId')));
@@ -54,6 +58,10 @@ export function runRoutes({ labs, queue, runs, calibration, sheet, export3mf }: 
   r.post(`${plan}/run/readings`, operator, async (req, res) => {
     const { labId, user } = requireLab(req);
     res.status(201).json(await runs.addReading(labId, p(req, 'planId'), user, req.body));
+  });
+  r.post(`${plan}/run/readings/:readingId/accept`, lead, async (req, res) => {
+    const { labId, user } = requireLab(req);
+    res.json(await runs.acceptReading(labId, p(req, 'planId'), p(req, 'readingId'), user, req.body));
   });
 
   r.get(`${plan}/sheet.pdf`, member, async (req, res) => {
