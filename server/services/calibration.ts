@@ -1,7 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow } from '../validation';
 import type { Actor } from './plans';
 import {
   calibrateMachine,
