@@ -20,6 +20,8 @@ type Row = {
   name: string;
   status: PlanStatus;
   queue_position: number | null;
+  material_id: string;
+  material_name: string | null;
   estimate: RunEstimate | null;
   started_at: Date | null;
   print_ended_at: Date | null;
@@ -84,9 +86,10 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     const machine = await machineRow(labId, machineId);
     const calibration = await deps.calibration.forMachine(machine.id);
     const rows = await sequelize.query<Row>(
-      `SELECT p.id, p.name, p.status, p.queue_position, l.estimate - 'areaPerLayerMm2' AS estimate,
+      `SELECT p.id, p.name, p.status, p.queue_position, p.material_id, mt.name AS material_name, l.estimate - 'areaPerLayerMm2' AS estimate,
               r.started_at, r.print_ended_at, r.left_machine_at, r.breakout_at
          FROM plans p LEFT JOIN layouts l ON l.id = p.chosen_layout_id LEFT JOIN runs r ON r.plan_id = p.id
+         LEFT JOIN materials mt ON mt.id = p.material_id
         WHERE p.machine_id = $1 AND p.lab_id = $2 AND (p.status = 'queued' OR p.status = ANY($3::text[]))
         ORDER BY p.queue_position NULLS LAST, r.started_at DESC NULLS LAST, p.created_at`,
       { bind: [machine.id, labId, ON_MACHINE], type: QueryTypes.SELECT },
@@ -138,6 +141,8 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
         name: row.name,
         status: row.status,
         queuePosition: row.queue_position,
+        material: { id: row.material_id, name: row.material_name ?? '' },
+        materialChange: null,
         chamberIndex: t.chamberIndex,
         startAt: new Date(t.startMs).toISOString(),
         printEndAt: new Date(t.printEndMs).toISOString(),
@@ -177,8 +182,25 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
         });
         return item(own.current!);
       }),
-      plans: schedule.plans.map(item),
+      plans: withMaterialChanges(current ? byId.get(current.plan.planId)! : null, schedule.plans.map(item), byId),
     };
+  }
+
+  /**
+   * Each queued build that runs in another material than the build before it on the machine (the one on it now
+   * for the first) is flagged: the hopper, the feed and the overflow have to be emptied and cleaned between them.
+   */
+  function withMaterialChanges(onMachine: Row | null, plans: QueueItemView[], byId: Map<string, Row>): QueueItemView[] {
+    let prev: Row | null = onMachine;
+    return plans.map((p) => {
+      const row = byId.get(p.planId)!;
+      const change =
+        prev && prev.material_id !== row.material_id
+          ? { previousPlanId: prev.id, previousPlanName: prev.name, previousMaterial: { id: prev.material_id, name: prev.material_name ?? '' } }
+          : null;
+      prev = row;
+      return { ...p, materialChange: change };
+    });
   }
 
   return {

@@ -500,7 +500,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
       .filter((r) => r.email && failedOf.has(r.id))
       .map((r) => ({
         to: r.email!,
-        subject: `Parts failed in build "${c.plan.name}" for your request "${r.title}"`,
+        subject: `Parts failed in build ${c.plan.name}, request ${r.title}`,
         text:
           `The build "${c.plan.name}" on ${c.machine.name} was broken out and some of the parts of your request "${r.title}" did not come out good:\n\n` +
           failedOf.get(r.id)!.map((t) => `- ${t}`).join('\n') +
@@ -522,7 +522,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
       .filter((r) => r.email)
       .map((r) => ({
         to: r.email!,
-        subject: `Your request "${r.title}" is done`,
+        subject: `Request done: ${r.title}`,
         text: `All ${r.quantity} parts of your request "${r.title}" are printed; the last of them came out of the build "${c.plan.name}" on ${c.machine.name}.` + requestLink(r.id),
       }));
   }

@@ -173,6 +173,9 @@ export interface QueueItemView {
   name: string;
   status: PlanStatus;
   queuePosition: number | null;
+  material: { id: string; name: string };
+  /** Set when the build before it on the machine (in the queue's order) runs in another material. */
+  materialChange: { previousPlanId: string; previousPlanName: string; previousMaterial: { id: string; name: string } } | null;
   chamberIndex: number;
   startAt: string;
   printEndAt: string;

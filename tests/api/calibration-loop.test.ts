@@ -154,7 +154,7 @@ describe('closing the loop to the requests', () => {
       [9, 3],
       [6, 0],
     ]);
-    await waitFor(() => running.mailer.caught!.slice(mailBefore).some((m) => /Parts failed in build "Loop build"/.test(m.subject)));
+    await waitFor(() => running.mailer.caught!.slice(mailBefore).some((m) => m.subject === 'Parts failed in build Loop build, request Fixture request'));
     const mail = running.mailer.caught!.slice(mailBefore).find((m) => /Parts failed/.test(m.subject))!;
     // To the designer who filed the request (the fixture's request is filed by the lab's first user).
     expect(mail.to).toEqual([lab.email]);
@@ -186,12 +186,13 @@ describe('closing the loop to the requests', () => {
       const finalReq = (await lab.agent.get(reqUrl)).body;
       expect(finalReq.status).toBe('done');
       expect(finalReq.totals).toMatchObject({ printed: 18, stillToMake: 0 });
-      await waitFor(() => running.mailer.caught!.slice(mark).some((m) => m.subject === `Your request "${afterDone.title}" is done`));
+      await waitFor(() => running.mailer.caught!.slice(mark).some((m) => m.subject === `Request done: ${afterDone.title}`));
     }
   });
 });
 
+/** Caught mail arrives through a local SMTP server: wait for it a little, then say what did arrive. */
 async function waitFor(cond: () => boolean) {
-  for (let i = 0; i < 50 && !cond(); i++) await new Promise((r) => setTimeout(r, 100));
-  if (!cond()) throw new Error('condition not met');
+  for (let i = 0; i < 200 && !cond(); i++) await new Promise((r) => setTimeout(r, 100));
+  if (!cond()) throw new Error(`mail not caught; subjects: ${running.mailer.caught!.map((m) => m.subject).join(' | ')}`);
 }

@@ -58,8 +58,8 @@ describe('filing a request', () => {
       totals: { quantity: 42, planned: 0, printed: 0 },
     });
     expect(res.body.lines).toEqual([
-      { id: expect.any(String), partId: latch, partName: 'latch', quantity: 40, plannedCount: 0, printedCount: 0 },
-      { id: expect.any(String), partId: cover, partName: 'cover', quantity: 2, plannedCount: 0, printedCount: 0 },
+      { id: expect.any(String), partId: latch, partName: 'latch', quantity: 40, plannedCount: 0, printedCount: 0, failedCount: 0, stillToMakeCount: 40, openCount: 40 },
+      { id: expect.any(String), partId: cover, partName: 'cover', quantity: 2, plannedCount: 0, printedCount: 0, failedCount: 0, stillToMakeCount: 2, openCount: 2 },
     ]);
     const one = await designer.agent.get(`/api/labs/${labId}/requests/${res.body.id}`);
     expect(one.status).toBe(200);

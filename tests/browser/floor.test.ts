@@ -216,6 +216,9 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await card.getByTestId('load-fresh').fill(String(need));
     await page.waitForSelector(enabled('run-start'));
     await card.getByTestId('run-start').click();
+    // Every step that cannot be undone asks first, naming the build.
+    expect(await card.getByTestId('run-start-ask').textContent()).toContain(await card.getByTestId('run-plan-name').textContent());
+    await card.getByTestId('run-start-confirm').click();
 
     await card.getByTestId('stage-printing').waitFor();
     expect(await card.getByTestId('run-stage').textContent()).toMatch(/Printing/);
@@ -227,6 +230,9 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await scrollToTop(page, 'run-stage');
     await screenshot(page, 'floor-printing-phone');
     await card.getByTestId('run-print-done').click();
+    await card.getByTestId('run-print-done-ask').waitFor();
+    await screenshot(page, 'floor-print-done-confirm-phone');
+    await card.getByTestId('run-print-done-confirm').click();
 
     await card.getByTestId('stage-cooling').waitFor();
     await card.getByTestId('floor-cautions-hot_chamber').waitFor();
@@ -239,15 +245,22 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await scrollToTop(page, 'stage-cooling');
     await screenshot(page, 'floor-cooling-phone');
 
-    // A reading taken on another phone reaches this card within 5 s and unlocks breakout (below the handling temperature).
+    // A reading taken on another phone reaches this card within 5 s. Minutes after the print no cake is at 32 °C, so it
+    // unlocks nothing until a lead accepts it with a reason; then breakout opens.
     const operatorApi = await apiAs('operator@tinkerfin.example');
-    const r = await operatorApi.post(`/api/labs/${labId}/plans/${queuedPlanId}/run/readings`).send({ tempC: 32, where: 'outside' });
+    const runId = (await operatorApi.get(`/api/labs/${labId}/plans/${queuedPlanId}/run`)).body.id;
+    const r = await operatorApi.post(`/api/labs/${labId}/plans/${queuedPlanId}/run/readings`).send({ runId, tempC: 32, where: 'outside' });
     expect(r.status).toBe(201);
+    expect(r.body.readings[0].check.status).toBe('unexplained');
+    const leadApi = await apiAs('lead@tinkerfin.example');
+    const accepted = await leadApi.post(`/api/labs/${labId}/plans/${queuedPlanId}/run/readings/${r.body.readings[0].id}/accept`).send({ runId, reason: 'Cake cooled on the bench overnight' });
+    expect(accepted.status).toBe(200);
     await page.waitForSelector(enabled('run-breakout'), { timeout: 5500 });
     await card.getByTestId('reading-list').getByText('32 °C outside').waitFor();
     await scrollToTop(page, 'run-stage');
     await screenshot(page, 'floor-cooled-phone');
     await card.getByTestId('run-breakout').click();
+    await card.getByTestId('run-breakout-confirm').click();
 
     await card.getByTestId('stage-breakout').waitFor();
     await card.getByTestId('floor-cautions-combustible_powder').waitFor();
@@ -260,6 +273,7 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await scrollToTop(page, 'stage-breakout');
     await screenshot(page, 'floor-breakout-phone');
     await card.getByTestId('run-counts').click();
+    await card.getByTestId('run-counts-confirm').click();
 
     await card.getByTestId('stage-finishing').waitFor();
     await card.getByTestId('floor-cautions-media_blasting').waitFor();
@@ -270,6 +284,7 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await scrollToTop(page, 'run-stage');
     await screenshot(page, 'floor-finishing-phone');
     await card.getByTestId('run-done').click();
+    await card.getByTestId('run-done-confirm').click();
     await card.getByTestId('run-done-notice').waitFor();
     await scrollToTop(page, 'run-plan-name');
     await screenshot(page, 'floor-done-phone');
