@@ -28,9 +28,12 @@ async function toBreakout(lab: Lab, base: string, start: Record<string, unknown>
   const op = lab.operator.agent;
   const s = await op.post(`${base}/run/advance`).send(start);
   if (s.status !== 200) throw new Error(`start: ${s.status} ${JSON.stringify(s.body)}`);
-  await op.post(`${base}/run/advance`).send({ to: 'cooling' });
-  await op.post(`${base}/run/readings`).send({ tempC: 30, where: 'outside' });
-  const b = await op.post(`${base}/run/advance`).send({ to: 'breakout' });
+  const runId = s.body.id;
+  await op.post(`${base}/run/advance`).send({ runId, to: 'cooling' });
+  // Right after the print the cooling model cannot explain 30 °C: the lead accepts the reading, with a reason.
+  const r = await op.post(`${base}/run/readings`).send({ runId, tempC: 30, where: 'outside' });
+  await lab.agent.post(`${base}/run/readings/${r.body.readings[0].id}/accept`).send({ runId, reason: 'Test cake, cooled by hand' });
+  const b = await op.post(`${base}/run/advance`).send({ runId, to: 'breakout' });
   if (b.status !== 200) throw new Error(`breakout: ${b.status} ${JSON.stringify(b.body)}`);
 }
 

@@ -37,7 +37,7 @@ test('starting a run, and reading it back, sends one query at a time on each con
   overlaps.length = 0;
   const started = await lab.operator.agent.post(`${base}/run/advance`).send(startBody(estimate));
   expect(started.status).toBe(200);
-  const cooling = await lab.operator.agent.post(`${base}/run/advance`).send({ to: 'cooling' });
+  const cooling = await lab.operator.agent.post(`${base}/run/advance`).send({ runId: started.body.id, to: 'cooling' });
   expect(cooling.status).toBe(200);
   expect(overlaps).toEqual([]);
 });
