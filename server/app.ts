@@ -11,6 +11,7 @@ import { AppError } from './errors';
 import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/errors';
 import { checkOrigin, loadSession } from './http/middleware/auth';
 import { checkInput, jsonBodies } from './http/middleware/input';
+import { noStore, securityHeaders } from './http/middleware/headers';
 import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
 import { partRoutes } from './http/routes/parts';
@@ -74,9 +75,13 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
 export function createApp(deps: AppDeps) {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Off unless configured: otherwise anyone could pick their own address in X-Forwarded-For and dodge the limits.
+  app.set('trust proxy', deps.config.trustProxy);
+
+  app.use(securityHeaders(deps.config.appUrl.startsWith('https:')));
 
   const api = express.Router();
+  api.use(noStore);
   api.get('/health', async (_req, res) => {
     try {
       await deps.db.sequelize.query('SELECT 1');
@@ -96,9 +101,26 @@ export function createApp(deps: AppDeps) {
     limit: deps.config.authRateLimit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    // X-Forwarded-For is ignored on purpose unless TRUST_PROXY says a proxy sets it.
+    validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) =>
       next(new AppError(429, 'rate_limited', 'Too many attempts from this address; wait a few minutes and try again.')),
   });
+  // Per account (sign-in) or per invite (acceptance): failed attempts only, whatever address they come from.
+  const accountLimiter: RequestHandler = rateLimit({
+    windowMs: deps.config.authRateWindowMs,
+    limit: deps.config.authAccountRateLimit,
+    skipSuccessfulRequests: true,
+    validate: { xForwardedForHeader: false },
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) =>
+      req.params.token ? `invite:${String(req.params.token)}` : `account:${String((req.body as { email?: unknown } | undefined)?.email ?? '').trim().toLowerCase()}`,
+    handler: (_req, _res, next) =>
+      next(new AppError(429, 'rate_limited', 'Too many failed attempts for this account; wait a few minutes and try again.')),
+  });
+  api.post('/auth/sign-in', accountLimiter);
+  api.post('/invites/:token/accept', limiter, accountLimiter);
   api.use(authRoutes(deps, limiter));
   api.use(labRoutes(deps));
   api.use(partRoutes(deps));

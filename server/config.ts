@@ -15,6 +15,14 @@ const envSchema = z.object({
   APP_URL: z.string().url().optional(),
   /** Sign-in and sign-up attempts per client address per window. */
   AUTH_RATE_LIMIT: z.coerce.number().int().positive().default(20),
+  /** Failed sign-ins (or invite acceptances) per account (or invite) per window, whatever the address. */
+  AUTH_ACCOUNT_RATE_LIMIT: z.coerce.number().int().positive().default(10),
+  /**
+   * Express's "trust proxy": unset, X-Forwarded-For is ignored and the
+   * connecting address counts. Set it only behind a proxy that overwrites
+   * the header: a hop count ("1"), "loopback", or addresses/CIDRs.
+   */
+  TRUST_PROXY: z.string().optional(),
   AUTH_RATE_WINDOW_MS: z.coerce.number().int().positive().default(15 * 60 * 1000),
   /** SMTP relay; without it a local catcher receives mail (development and tests). */
   SMTP_URL: z.string().optional(),
@@ -60,6 +68,8 @@ export type Config = {
   appUrl: string;
   authRateLimit: number;
   authRateWindowMs: number;
+  authAccountRateLimit: number;
+  trustProxy: boolean | number | string;
   smtpUrl?: string;
   mailFrom: string;
   mailCatchDir: string;
@@ -102,6 +112,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     appUrl: (e.APP_URL ?? `http://${e.HOST}:${e.PORT}`).replace(/\/$/, ''),
     authRateLimit: e.AUTH_RATE_LIMIT,
     authRateWindowMs: e.AUTH_RATE_WINDOW_MS,
+    authAccountRateLimit: e.AUTH_ACCOUNT_RATE_LIMIT,
+    trustProxy: e.TRUST_PROXY === undefined || e.TRUST_PROXY === '' || e.TRUST_PROXY === 'false' ? false : /^\d+$/.test(e.TRUST_PROXY) ? Number(e.TRUST_PROXY) : e.TRUST_PROXY,
     smtpUrl: e.SMTP_URL,
     mailFrom: e.MAIL_FROM,
     mailCatchDir: e.MAIL_CATCH_DIR,

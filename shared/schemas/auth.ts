@@ -40,6 +40,10 @@ export const inviteAcceptSchema = z.strictObject({
   name: personNameSchema.optional(),
   password: z.string().min(1, 'is required').max(200, 'must be at most 200 characters').optional(),
 });
+export const passwordChangeSchema = z.strictObject({
+  currentPassword: z.string().min(1, 'is required').max(200, 'must be at most 200 characters'),
+  newPassword: passwordSchema,
+});
 export const memberUpdateSchema = z.strictObject({ roles: rolesSchema });
 
 export type SignUpInput = z.infer<typeof signUpSchema>;

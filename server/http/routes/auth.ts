@@ -1,5 +1,5 @@
 import { Router, type RequestHandler } from 'express';
-import { signInSchema, signUpSchema } from '../../../shared/schemas/auth';
+import { passwordChangeSchema, signInSchema, signUpSchema } from '../../../shared/schemas/auth';
 import { parseOrThrow } from '../../validation';
 import { clearSessionCookie, requireSession, setSessionCookie } from '../middleware/auth';
 import { ctx, requireUser } from '../context';
@@ -30,6 +30,12 @@ export function authRoutes(deps: AppDeps, limiter: RequestHandler): Router {
     const sessionId = ctx(req).sessionId;
     if (sessionId) await deps.auth.invalidateSession(sessionId);
     clearSessionCookie(deps.auth, req, res, secure);
+    res.status(204).end();
+  });
+
+  r.post('/auth/password', requireSession, limiter, async (req, res) => {
+    const input = parseOrThrow(passwordChangeSchema, req.body);
+    await deps.services.auth.changePassword(requireUser(req).id, ctx(req).sessionId!, input);
     res.status(204).end();
   });
 
