@@ -37,7 +37,8 @@ function InviteForm() {
   const lab = useLab();
   const create = useCreateInviteMutation(lab.id);
   const [email, setEmail] = useState('');
-  const [chosen, setChosen] = useState<Role[]>(['designer']);
+  // No role is ticked at first: the lead picks each one on purpose.
+  const [chosen, setChosen] = useState<Role[]>([]);
   const [localErrors, setLocalErrors] = useState<Record<string, string>>({});
   const [sentTo, setSentTo] = useState<string | null>(null);
   const server = fieldErrorsOf(create.error, ['email', 'roles']);

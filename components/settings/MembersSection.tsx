@@ -6,7 +6,7 @@ import { useLab } from '../lab/useCurrentLab';
 import { useMeQuery } from '../queries/me';
 import { useMembersQuery, useRemoveMemberMutation, useUpdateMemberRolesMutation } from '../queries/members';
 import { spacing, useIsWide } from '../theme';
-import { Badge, ConfirmAction, ErrorState, Figure, LoadingState, Notice, Table, Text, ToggleChip, type Column } from '../ui';
+import { Badge, Button, ConfirmAction, ErrorState, Figure, LoadingState, Notice, Table, Text, ToggleChip, type Column } from '../ui';
 import { formatDate } from '../ui/format';
 import { SettingsScreen } from './SettingsScreen';
 
@@ -78,24 +78,54 @@ function RoleBadges({ roles: list }: { roles: Role[] }) {
   );
 }
 
+/** "lead" or "designer and lead": role names joined as a sentence. */
+function roleList(list: Role[]): string {
+  const names = sortRoles(list).map((r) => roleLabels[r].toLowerCase());
+  return names.length <= 1 ? names.join('') : `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}`;
+}
+
+/**
+ * Role chips that stage a change and ask before saving it: one stray click
+ * must not grant (or take away) a lead's powers. After the save the result is
+ * reported in words.
+ */
 function RoleEditor({ member, compact }: { member: Member; compact: boolean }) {
   const lab = useLab();
   const update = useUpdateMemberRolesMutation(lab.id);
   const [localError, setLocalError] = useState<string | null>(null);
-  // While the change is on its way the chips show where it is going.
-  const shown = update.isPending && update.variables ? update.variables.roles : member.roles;
+  const [staged, setStaged] = useState<{ role: Role; on: boolean; next: Role[] } | null>(null);
+  const [saved, setSaved] = useState<string | null>(null);
+  const shown = staged ? staged.next : update.isPending && update.variables ? update.variables.roles : member.roles;
 
   const toggle = (role: Role, on: boolean) => {
-    const next = on ? sortRoles([...shown, role]) : shown.filter((r) => r !== role);
+    const next = on ? sortRoles([...member.roles, role]) : member.roles.filter((r) => r !== role);
+    setSaved(null);
     if (next.length === 0) {
       setLocalError('A member holds at least one role. Remove the member instead.');
       return;
     }
     setLocalError(null);
-    update.mutate({ userId: member.userId, roles: next });
+    setStaged({ role, on, next });
+  };
+
+  const apply = () => {
+    if (!staged) return;
+    const { next } = staged;
+    update.mutate(
+      { userId: member.userId, roles: next },
+      {
+        onSuccess: () => setSaved(`Saved: ${member.name} is now ${roleList(next)}.`),
+        onSettled: () => setStaged(null),
+      },
+    );
   };
 
   const error = localError ?? (update.isError ? update.error.message : null);
+  const question = staged
+    ? staged.on
+      ? `Give ${member.name} the ${roleLabels[staged.role].toLowerCase()} role?`
+      : `Take the ${roleLabels[staged.role].toLowerCase()} role from ${member.name}?`
+    : null;
   return (
     <View style={styles.editor}>
       <View style={styles.chips}>
@@ -106,12 +136,35 @@ function RoleEditor({ member, compact }: { member: Member; compact: boolean }) {
             label={roleLabels[r]}
             value={shown.includes(r)}
             onChange={(on) => toggle(r, on)}
-            disabled={update.isPending}
+            disabled={update.isPending || staged !== null}
             testID={`member-role-${member.userId}-${r}`}
             accessibilityLabel={`${roleLabels[r]} role for ${member.name}`}
           />
         ))}
       </View>
+      {question ? (
+        <View style={styles.confirm} testID={`member-confirm-${member.userId}`}>
+          <Text variant="label" color={staged?.role === 'lead' ? 'danger' : 'ink'}>
+            {question}
+          </Text>
+          <View style={styles.chips}>
+            <Button
+              label={staged?.on ? 'Give role' : 'Take role'}
+              size="sm"
+              variant={staged?.role === 'lead' ? 'danger' : 'primary'}
+              loading={update.isPending}
+              onPress={apply}
+              testID={`member-confirm-${member.userId}-apply`}
+            />
+            <Button label="Keep as it was" size="sm" variant="ghost" onPress={() => setStaged(null)} testID={`member-confirm-${member.userId}-cancel`} />
+          </View>
+        </View>
+      ) : null}
+      {saved ? (
+        <Text variant="caption" color="teal" testID={`member-saved-${member.userId}`} accessibilityRole="alert">
+          {saved}
+        </Text>
+      ) : null}
       {error ? (
         <Text variant="caption" color="danger" testID={`member-error-${member.userId}`} accessibilityRole="alert">
           {error}
@@ -144,5 +197,6 @@ const styles = StyleSheet.create({
   nameRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
   chips: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs },
   editor: { gap: spacing.xs },
+  confirm: { gap: spacing.xs },
   remove: { gap: spacing.xs, alignItems: 'flex-end' },
 });

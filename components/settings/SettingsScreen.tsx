@@ -1,5 +1,5 @@
 import { usePathname, type Href } from 'expo-router';
-import { ScrollView, StyleSheet, View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { colors, radius, spacing } from '../theme';
 import { LinkPressable, Screen, Text } from '../ui';
@@ -41,7 +41,8 @@ function SettingsNav() {
       <Text variant="overline" color="inkFaint">
         {`Lab settings · ${lab.name}${lab.isLead ? '' : ' · read only'}`}
       </Text>
-      <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={styles.bar} role="tablist">
+      {/* The sections wrap onto a second row on a phone, so every one stays in view. */}
+      <View style={styles.bar} role="tablist">
         {sections.map((s) => {
           const active = pathname === s.path || pathname.startsWith(`${s.path}/`);
           return (
@@ -62,14 +63,14 @@ function SettingsNav() {
               </LinkPressable>
           );
         })}
-      </ScrollView>
+      </View>
     </View>
   );
 }
 
 const styles = StyleSheet.create({
   wrap: { gap: spacing.sm },
-  bar: { gap: spacing.sm, paddingVertical: spacing.xxs },
+  bar: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm, paddingVertical: spacing.xxs },
   chip: {
     minHeight: 44,
     paddingHorizontal: spacing.lg,

@@ -1,0 +1,109 @@
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
+import { addMember, PASSWORD, signUp, uniqueEmail } from '../helpers/app';
+import { sentForReview } from '../helpers/plans';
+
+jest.setTimeout(180_000);
+
+let served: Served;
+beforeAll(async () => {
+  served = await serveAndLaunch();
+});
+afterAll(async () => {
+  await served?.close();
+});
+
+test('on a phone every settings section, Account included, is on screen without scrolling sideways', async () => {
+  const lead = await signUp(served.running, 'settings-phone');
+  const page = await newPage(served, PHONE);
+  await signIn(page, lead.email, PASSWORD);
+  await page.goto('/settings/members');
+  await page.getByTestId('settings-members').waitFor();
+  for (const key of ['members', 'invites', 'machines', 'materials', 'account']) {
+    const box = await page.getByTestId(`settings-section-${key}`).boundingBox();
+    expect(box).not.toBeNull();
+    expect(box!.x).toBeGreaterThanOrEqual(0);
+    expect(box!.x + box!.width).toBeLessThanOrEqual(PHONE.width);
+  }
+  await screenshot(page, 'settings-sections-phone');
+  await page.getByTestId('settings-section-account').click();
+  await page.waitForURL(/\/settings\/account/);
+  await page.context().close();
+});
+
+test('an invite starts with no role ticked and is refused until one is chosen', async () => {
+  const lead = await signUp(served.running, 'settings-invite');
+  const page = await newPage(served, WIDE);
+  await signIn(page, lead.email, PASSWORD);
+  await page.goto('/settings/invites');
+  await page.getByTestId('invite-form').waitFor();
+  for (const r of ['designer', 'planner', 'lead', 'operator']) {
+    expect(await page.getByTestId(`invite-role-${r}`).getAttribute('aria-checked')).not.toBe('true');
+  }
+  await page.getByTestId('invite-email').fill(uniqueEmail('no-role'));
+  await page.getByTestId('invite-submit').click();
+  await page.getByTestId('invite-roles-error').waitFor();
+  await screenshot(page, 'settings-invite-no-role-wide');
+  await page.getByTestId('invite-role-operator').click();
+  await page.getByTestId('invite-submit').click();
+  await page.getByTestId('invite-sent').waitFor();
+  const invites = await lead.agent.get(`/api/labs/${lead.labId}/invites`);
+  expect(invites.status).toBe(200);
+  const list = (invites.body.invites ?? invites.body) as { roles: string[] }[];
+  expect(list[0].roles).toEqual(['operator']);
+  await page.context().close();
+});
+
+test('a role change is asked for first, can be kept as it was, and is reported once saved', async () => {
+  const lead = await signUp(served.running, 'settings-roles');
+  const member = await addMember(served.running, lead.agent, lead.labId, ['operator'], 'roles-member');
+  const page = await newPage(served, WIDE);
+  await signIn(page, lead.email, PASSWORD);
+  await page.goto('/settings/members');
+  const chip = page.getByTestId(`member-role-${member.userId}-lead`);
+  await chip.waitFor();
+
+  // One click only asks; keeping it as it was changes nothing on the server.
+  await chip.click();
+  await page.getByTestId(`member-confirm-${member.userId}`).getByText(/Give .* the lead role\?/).waitFor();
+  await screenshot(page, 'settings-role-confirm-wide');
+  await page.getByTestId(`member-confirm-${member.userId}-cancel`).click();
+  const unchanged = await lead.agent.get(`/api/labs/${lead.labId}/members`);
+  const before = (unchanged.body.members ?? unchanged.body) as { userId: string; roles: string[] }[];
+  expect(before.find((m) => m.userId === member.userId)!.roles).toEqual(['operator']);
+
+  await chip.click();
+  await page.getByTestId(`member-confirm-${member.userId}-apply`).click();
+  await page.getByTestId(`member-saved-${member.userId}`).getByText(/is now lead and operator/).waitFor();
+  await screenshot(page, 'settings-role-saved-wide');
+  const changed = await lead.agent.get(`/api/labs/${lead.labId}/members`);
+  const list = (changed.body.members ?? changed.body) as { userId: string; roles: string[] }[];
+  expect(list.find((m) => m.userId === member.userId)!.roles.sort()).toEqual(['lead', 'operator']);
+  await page.context().close();
+});
+
+describe.each([
+  ['phone', PHONE, 'nav-tabs'],
+  ['wide', WIDE, 'nav-rail'],
+])('a lead on a %s', (name, viewport, nav) => {
+  test('finds Review in the navigation with the number of plans waiting', async () => {
+    const lab = await sentForReview(served.running, `nav-review-${name}`, 2);
+    const page = await newPage(served, viewport);
+    await signIn(page, lab.email, PASSWORD);
+    const item = page.getByTestId(nav).getByTestId('nav-review');
+    await item.waitFor();
+    await page.getByTestId(nav).getByTestId('nav-count-review').getByText('2').waitFor();
+    await screenshot(page, `nav-review-count-${name}`);
+    await item.click();
+    await page.getByTestId('screen-review-list').waitFor();
+    await page.context().close();
+  });
+
+  test('a member who is not a lead has no Review in the navigation', async () => {
+    const lab = await sentForReview(served.running, `nav-noreview-${name}`, 1);
+    const page = await newPage(served, viewport);
+    await signIn(page, lab.planner.email, PASSWORD);
+    await page.getByTestId(nav).getByTestId('nav-home').waitFor();
+    expect(await page.getByTestId(nav).getByTestId('nav-review').count()).toBe(0);
+    await page.context().close();
+  });
+});
