@@ -2,6 +2,7 @@ import { usePathname } from 'expo-router';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
+import { usePlansQuery } from '../queries/plans';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Icon, LinkPressable, Text } from '../ui';
 import { LabSwitcher } from './LabSwitcher';
@@ -14,10 +15,35 @@ export function LabShell({ children }: { children: React.ReactNode }) {
   const wide = useIsWide();
   const lab = useLab();
   const items = visibleNavItems(lab.has);
-  return wide ? <RailFrame items={items}>{children}</RailFrame> : <TabFrame items={items}>{children}</TabFrame>;
+  // Leads see how many plans wait for their decision beside Review.
+  const inReview = usePlansQuery(lab.isLead ? lab.id : undefined, IN_REVIEW);
+  const counts: Partial<Record<NavItem['key'], number>> = { review: inReview.data?.length ?? 0 };
+  return wide ? (
+    <RailFrame items={items} counts={counts}>
+      {children}
+    </RailFrame>
+  ) : (
+    <TabFrame items={items} counts={counts}>
+      {children}
+    </TabFrame>
+  );
 }
 
-function RailFrame({ items, children }: { items: NavItem[]; children: React.ReactNode }) {
+const IN_REVIEW = ['in_review'] as const;
+
+/** A small count beside a navigation item; nothing when there is nothing waiting. */
+function CountPill({ count, item, tone }: { count: number | undefined; item: NavItem['key']; tone: 'dark' | 'light' }) {
+  if (!count) return null;
+  return (
+    <View style={[styles.count, tone === 'light' && styles.countLight]} testID={`nav-count-${item}`} accessibilityLabel={`${count} waiting`}>
+      <Text variant="caption" style={styles.countText}>
+        {count > 99 ? '99+' : String(count)}
+      </Text>
+    </View>
+  );
+}
+
+function RailFrame({ items, counts, children }: { items: NavItem[]; counts: Partial<Record<NavItem['key'], number>>; children: React.ReactNode }) {
   const pathname = usePathname();
   const { data: me } = useMeQuery();
   const signOut = useSignOutMutation();
@@ -45,9 +71,10 @@ function RailFrame({ items, children }: { items: NavItem[]; children: React.Reac
                 >
                   <View style={[styles.railMarker, active && styles.railMarkerActive]} />
                   <Icon name={item.icon} color={active ? colors.ember : colors.onGraphiteMuted} />
-                  <Text variant="bodyStrong" style={{ color: active ? colors.onGraphite : colors.onGraphiteMuted }}>
+                  <Text variant="bodyStrong" style={{ color: active ? colors.onGraphite : colors.onGraphiteMuted, flex: 1 }}>
                     {item.label}
                   </Text>
+                  <CountPill count={counts[item.key]} item={item.key} tone="dark" />
                 </LinkPressable>
             );
           })}
@@ -80,7 +107,7 @@ function RailFrame({ items, children }: { items: NavItem[]; children: React.Reac
   );
 }
 
-function TabFrame({ items, children }: { items: NavItem[]; children: React.ReactNode }) {
+function TabFrame({ items, counts, children }: { items: NavItem[]; counts: Partial<Record<NavItem['key'], number>>; children: React.ReactNode }) {
   const pathname = usePathname();
   const insets = useSafeAreaInsets();
   return (
@@ -104,7 +131,12 @@ function TabFrame({ items, children }: { items: NavItem[]; children: React.React
                 style={({ pressed }) => [styles.tab, pressed && { backgroundColor: colors.powderDeep }]}
               >
                 <View style={[styles.tabMarker, active && styles.tabMarkerActive]} />
-                <Icon name={item.icon} size={22} color={active ? colors.ember : colors.inkMuted} />
+                <View>
+                  <Icon name={item.icon} size={22} color={active ? colors.ember : colors.inkMuted} />
+                  <View style={styles.tabCount}>
+                    <CountPill count={counts[item.key]} item={item.key} tone="light" />
+                  </View>
+                </View>
                 <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: active ? colors.ink : colors.inkMuted }]}>
                   {item.label}
                 </Text>
@@ -168,4 +200,8 @@ const styles = StyleSheet.create({
   tabMarker: { position: 'absolute', top: 0, left: '25%', right: '25%', height: 3, borderRadius: 2, backgroundColor: 'transparent' },
   tabMarkerActive: { backgroundColor: colors.ember },
   tabLabel: { fontSize: 11, lineHeight: 14 },
+  tabCount: { position: 'absolute', top: -6, right: -14 },
+  count: { minWidth: 22, height: 20, paddingHorizontal: 6, borderRadius: radius.pill, backgroundColor: colors.ember, alignItems: 'center', justifyContent: 'center' },
+  countLight: { minWidth: 18, height: 16, paddingHorizontal: 4 },
+  countText: { color: colors.onGraphite, fontSize: 11, lineHeight: 14 },
 });

@@ -3,7 +3,7 @@ import type { IconName } from '../ui';
 import type { Role } from '../../shared/schemas/auth';
 
 export type NavItem = {
-  key: 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'powder' | 'settings';
+  key: 'home' | 'parts' | 'requests' | 'plans' | 'review' | 'queue' | 'floor' | 'powder' | 'settings';
   label: string;
   href: Href;
   icon: IconName;
@@ -18,6 +18,7 @@ export const navItems: NavItem[] = [
   { key: 'parts', label: 'Parts', href: '/parts', icon: 'parts', roles: ['designer', 'planner', 'lead'], match: '/parts' },
   { key: 'requests', label: 'Requests', href: '/requests', icon: 'requests', roles: ['designer', 'planner', 'lead'], match: '/requests' },
   { key: 'plans', label: 'Plans', href: '/plans', icon: 'plans', roles: ['planner', 'lead'], match: '/plans' },
+  { key: 'review', label: 'Review', href: '/review', icon: 'review', roles: ['lead'], match: '/review' },
   { key: 'queue', label: 'Queue', href: '/queue', icon: 'queue', roles: ['planner', 'lead', 'operator'], match: '/queue' },
   { key: 'floor', label: 'Floor', href: '/floor', icon: 'floor', roles: ['operator', 'lead'], match: '/floor' },
   { key: 'powder', label: 'Powder', href: '/powder', icon: 'powder', roles: ['planner', 'lead', 'operator'], match: '/powder' },

@@ -1,6 +1,6 @@
 import Svg, { Circle, Path, Rect } from 'react-native-svg';
 
-export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'signOut' | 'chevron' | 'powder';
+export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'review' | 'signOut' | 'chevron' | 'powder';
 
 /** Line icons drawn for Sinterstack on a 24 px grid. */
 export function Icon({ name, size = 22, color }: { name: IconName; size?: number; color: string }) {
@@ -54,6 +54,12 @@ export function Icon({ name, size = 22, color }: { name: IconName; size?: number
           <Circle cx={9} cy={6} r={1.9} {...stroke} fill={color} />
           <Circle cx={15} cy={12} r={1.9} {...stroke} fill={color} />
           <Circle cx={8} cy={18} r={1.9} {...stroke} fill={color} />
+        </>
+      ) : null}
+      {name === 'review' ? (
+        <>
+          <Path d="M12 3.5 19 6.5v5c0 4.5-3 7.5-7 9-4-1.5-7-4.5-7-9v-5Z" {...stroke} />
+          <Path d="M8.5 12l2.5 2.5 4.5-5" {...stroke} />
         </>
       ) : null}
       {name === 'signOut' ? (

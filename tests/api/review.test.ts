@@ -1,5 +1,5 @@
 import { addMember, startTestApp, waitForMail } from '../helpers/app';
-import { createPlan, gridLayout, labWithProfiles, makeRequest, planInstance } from '../helpers/plans';
+import { createPlan, GEAR, makeRequest, sentForReview } from '../helpers/plans';
 import type { Running } from '../../server/boot';
 
 let running: Running;
@@ -10,26 +10,7 @@ afterAll(async () => {
   await running.close();
 });
 
-const GEAR = { name: 'Gear', sizeMm: [30, 30, 8] as [number, number, number], quantity: 40 };
-
-/** A lab whose planner (not a lead) has sent `count` plans on one machine for review. */
-async function plansInReview(tag: string, count = 1) {
-  const lab = await labWithProfiles(running, tag);
-  const planner = await addMember(running, lab.agent, lab.labId, ['planner'], 'planner');
-  const req = await makeRequest(running, lab.labId, lab.userId, lab.materialId, [GEAR]);
-  const ids: string[] = [];
-  for (let i = 0; i < count; i++) {
-    const plan = await createPlan(planner.agent, lab.labId, lab.machineId, lab.materialId, [{ id: req.lines[0].id, quantity: 10 }], `Plan ${i + 1}`);
-    const base = `/api/labs/${lab.labId}/plans/${plan.id}`;
-    const instance = planInstance(plan.view, lab.machine, lab.material);
-    const layout = await planner.agent.post(`${base}/layouts`).send({ instance, result: gridLayout(instance) });
-    await planner.agent.post(`${base}/layouts/${layout.body.id}/choose`);
-    const sent = await planner.agent.post(`${base}/submit`);
-    if (sent.status !== 200) throw new Error(`submit failed: ${JSON.stringify(sent.body)}`);
-    ids.push(plan.id);
-  }
-  return { ...lab, planner, ids };
-}
+const plansInReview = (tag: string, count = 1) => sentForReview(running, tag, count);
 
 describe('review', () => {
   test('a lead approves: the plan is recorded approved, then queued at the end of its machine\'s queue, and the planner is told', async () => {

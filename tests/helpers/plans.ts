@@ -2,7 +2,7 @@ import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { createHash, randomBytes } from 'node:crypto';
 import { measureMesh, prism, writeBinaryStl } from '../../shared/geometry';
 import type { Running } from '../../server/boot';
-import { signUp } from './app';
+import { addMember, signUp } from './app';
 import { demoMachines, demoMaterials } from '../../shared/demo/profiles';
 import {
   INSTANCE_FORMAT,
@@ -143,4 +143,25 @@ export async function createPlan(lead: Agent, labId: string, machineId: string, 
   if (res.status !== 201) throw new Error(`plan create failed: ${res.status} ${JSON.stringify(res.body)}`);
   const view = await lead.get(`/api/labs/${labId}/plans/${res.body.id}`);
   return { id: res.body.id as string, view: view.body };
+}
+
+export const GEAR: FixturePart = { name: 'Gear', sizeMm: [30, 30, 8], quantity: 40 };
+
+/** A lab whose planner (not a lead) has sent `count` plans on one machine for review. */
+export async function sentForReview(running: Running, tag: string, count = 1) {
+  const lab = await labWithProfiles(running, tag);
+  const planner = await addMember(running, lab.agent, lab.labId, ['planner'], 'planner');
+  const req = await makeRequest(running, lab.labId, lab.userId, lab.materialId, [GEAR]);
+  const ids: string[] = [];
+  for (let i = 0; i < count; i++) {
+    const plan = await createPlan(planner.agent, lab.labId, lab.machineId, lab.materialId, [{ id: req.lines[0].id, quantity: 10 }], `Plan ${i + 1}`);
+    const base = `/api/labs/${lab.labId}/plans/${plan.id}`;
+    const instance = planInstance(plan.view, lab.machine, lab.material);
+    const layout = await planner.agent.post(`${base}/layouts`).send({ instance, result: gridLayout(instance) });
+    await planner.agent.post(`${base}/layouts/${layout.body.id}/choose`);
+    const sent = await planner.agent.post(`${base}/submit`);
+    if (sent.status !== 200) throw new Error(`submit failed: ${JSON.stringify(sent.body)}`);
+    ids.push(plan.id);
+  }
+  return { ...lab, planner, ids };
 }
