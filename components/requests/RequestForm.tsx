@@ -1,16 +1,17 @@
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { QUANTITY_MAX, requestCreateSchema, PRIORITIES } from '../../shared/schemas/requests';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
 import { formatSize } from '../parts/format';
-import { Choice } from '../parts/Choice';
+import { Choice } from '../ui/Choice';
 import { useMaterialsQuery } from '../queries/materials';
 import { usePartsQuery } from '../queries/parts';
 import type { RequestInput } from '../queries/requests';
 import { colors, radius, spacing } from '../theme';
 import { Button, Card, Field, LoadingState, Notice, Text, TextInput } from '../ui';
 import { DateField } from './DateField';
+import { scrollToFirstError } from './scrollToFirstError';
 import { PRIORITY_LABELS, addDaysIso, todayIso } from './labels';
 
 export type RequestFormLine = { partId: string; partName: string; quantity: string };
@@ -31,6 +32,15 @@ type Errors = { fields: Record<string, string>; lines: Record<number, string>; f
 
 function sentence(m: string): string {
   return m ? m[0].toUpperCase() + m.slice(1) : m;
+}
+
+/** Hides the messages of fields the user has changed since the attempt that produced them. */
+function withoutEdited(errs: Errors, edited: ReadonlySet<string>): Errors {
+  if (edited.size === 0) return errs;
+  const fields = Object.fromEntries(Object.entries(errs.fields).filter(([k]) => !edited.has(k)));
+  const lines = Object.fromEntries(Object.entries(errs.lines).filter(([k]) => !edited.has(`lines.${k}`)));
+  if (edited.has('lines')) delete fields.lines;
+  return { fields, lines, form: errs.form };
 }
 
 /** The server names the field it refuses ("lines[2].quantity", "dueDate"): each message goes under its input. */
@@ -64,11 +74,25 @@ export function RequestForm({
   const materials = useMaterialsQuery(lab.id);
   const [v, setV] = useState<RequestFormValues>(initial);
   const [local, setLocal] = useState<Errors | null>(null);
+  // Fields edited since the last attempt: their old message goes away as soon as the user changes them.
+  const [edited, setEdited] = useState<ReadonlySet<string>>(new Set());
+  const [attempt, setAttempt] = useState(0);
   // A failed local check shows its own problems; otherwise the server's answer to the last attempt (react-query clears it on the next).
-  const errs: Errors = local ?? serverErrors(error);
-  const set = <K extends keyof RequestFormValues>(k: K, value: RequestFormValues[K]) => setV((old) => ({ ...old, [k]: value }));
+  const errs: Errors = withoutEdited(local ?? serverErrors(error), edited);
+  const touch = (key: string) => setEdited((old) => (old.has(key) ? old : new Set(old).add(key)));
+  const set = <K extends keyof RequestFormValues>(k: K, value: RequestFormValues[K]) => {
+    touch(k);
+    setV((old) => ({ ...old, [k]: value }));
+  };
+  const hasErrors = Object.keys(errs.fields).length > 0 || Object.keys(errs.lines).length > 0 || !!errs.form;
+  // After each attempt that left problems, bring the first one into view.
+  useEffect(() => {
+    if (attempt > 0 && hasErrors) scrollToFirstError('request-form');
+  }, [attempt, hasErrors, error]);
 
   const submit = () => {
+    setEdited(new Set());
+    setAttempt((n) => n + 1);
     const out: Errors = { fields: {}, lines: {} };
     const lines = v.lines.map((l, i) => {
       const q = l.quantity.trim() === '' ? NaN : Number(l.quantity);
@@ -160,14 +184,21 @@ export function RequestForm({
                 {line.partName}
               </Text>
               <View style={styles.qty}>
+                <Text variant="caption" color="inkMuted" nativeID={`request-line-${i}-quantity-label`}>
+                  Quantity
+                </Text>
                 <TextInput
                   testID={`request-line-${i}-quantity`}
                   accessibilityLabel={`Quantity of ${line.partName}`}
+                  aria-labelledby={`request-line-${i}-quantity-label`}
                   value={line.quantity}
                   keyboardType="number-pad"
                   mono
                   invalid={!!errs.lines[i]}
-                  onChangeText={(t) => set('lines', v.lines.map((l, j) => (j === i ? { ...l, quantity: t } : l)))}
+                  onChangeText={(t) => {
+                    touch(`lines.${i}`);
+                    setV((old) => ({ ...old, lines: old.lines.map((l, j) => (j === i ? { ...l, quantity: t } : l)) }));
+                  }}
                 />
               </View>
               <Button label="Remove" variant="ghost" size="sm" testID={`request-line-${i}-remove`} onPress={() => set('lines', v.lines.filter((_, j) => j !== i))} />
@@ -257,7 +288,7 @@ const styles = StyleSheet.create({
   notes: { minHeight: 88, paddingTop: spacing.sm, textAlignVertical: 'top' },
   line: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.md, borderBottomWidth: 1, borderBottomColor: colors.line, paddingBottom: spacing.sm },
   lineName: { flexGrow: 1, flexShrink: 1, flexBasis: 120, minWidth: 0 },
-  qty: { width: 96 },
+  qty: { width: 96, gap: 2 },
   matchSize: { fontSize: 13 },
   lineError: { flexBasis: '100%' },
   picker: { gap: spacing.sm, paddingTop: spacing.sm },

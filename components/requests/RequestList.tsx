@@ -6,7 +6,7 @@ import { useMeQuery } from '../queries/me';
 import { useRequestsQuery, type LabRequest, type RequestListParams } from '../queries/requests';
 import { spacing } from '../theme';
 import { Badge, Button, EmptyState, ErrorState, LoadingState, Screen, Table, Text, type Column } from '../ui';
-import { Choice } from '../parts/Choice';
+import { Choice } from '../ui/Choice';
 import { PRIORITY_LABELS, PRIORITY_TONES, STATUS_LABELS, STATUS_TONES, dueText } from './labels';
 
 type View_ = 'mine' | 'open' | 'all';

@@ -3,6 +3,13 @@ import type { LabRequest } from '../queries/requests';
 
 export const PRIORITY_LABELS: Record<LabRequest['priority'], string> = { low: 'Low', normal: 'Normal', high: 'High', urgent: 'Urgent' };
 export const PRIORITY_TONES: Record<LabRequest['priority'], BadgeTone> = { low: 'neutral', normal: 'neutral', high: 'amber', urgent: 'danger' };
+/** The one spelling of a priority on every screen ("High", never "high"). */
+export function priorityLabel(p: string): string {
+  return PRIORITY_LABELS[p as LabRequest['priority']] ?? p;
+}
+export function priorityTone(p: string): BadgeTone {
+  return PRIORITY_TONES[p as LabRequest['priority']] ?? 'neutral';
+}
 export const STATUS_LABELS: Record<LabRequest['status'], string> = { open: 'Open', cancelled: 'Cancelled', done: 'Done' };
 export const STATUS_TONES: Record<LabRequest['status'], BadgeTone> = { open: 'ember', cancelled: 'neutral', done: 'teal' };
 

@@ -1,0 +1,66 @@
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
+import { PASSWORD } from '../helpers/app';
+import { labWithProfiles, makeRequest } from '../helpers/plans';
+
+jest.setTimeout(180_000);
+
+let served: Served;
+beforeAll(async () => {
+  served = await serveAndLaunch();
+});
+afterAll(async () => {
+  await served?.close();
+});
+
+describe.each([
+  ['phone', PHONE],
+  ['wide', WIDE],
+])('the new-request form on a %s', (name, viewport) => {
+  test('brings the first problem into view, clears each message once its field is fixed, labels the quantity and shows the date as year-month-day', async () => {
+    const lab = await labWithProfiles(served.running, `request-form-${name}`);
+    await makeRequest(served.running, lab.labId, lab.userId, lab.materialId, [{ name: 'Strain relief clip', sizeMm: [20, 8, 6], quantity: 1 }]);
+    const page = await newPage(served, viewport);
+    await signIn(page, lab.email, PASSWORD);
+    await page.goto('/requests/new');
+    await page.getByTestId('request-form').waitFor();
+
+    await page.getByTestId('request-part-search').fill('strain');
+    const add = page.locator('[data-testid^="request-add-part-"]').first();
+    await add.waitFor();
+    await add.click();
+    const line = page.getByTestId('request-line-0');
+    await line.waitFor();
+    await line.getByText('Quantity', { exact: true }).waitFor();
+    await page.getByTestId('request-line-0-quantity').fill('0');
+
+    // Submit from the bottom of the form: the empty title at the top must come into view.
+    await page.getByTestId('request-submit').scrollIntoViewIfNeeded();
+    await page.getByTestId('request-submit').click();
+    const titleError = page.getByTestId('request-title-error');
+    await titleError.waitFor();
+    await page.waitForFunction(
+      "(() => { const el = document.querySelector('[data-testid=\"request-title-error\"]'); if (!el) return false; const r = el.getBoundingClientRect(); return r.top >= 0 && r.bottom <= window.innerHeight; })()",
+      undefined,
+      { timeout: 5000 },
+    );
+    await screenshot(page, `request-form-first-error-${name}`);
+    await page.getByTestId('request-line-0-error').waitFor();
+
+    // Fixing a field takes its message away at once, before the next attempt.
+    await page.getByTestId('request-title').fill('Clips for the gripper');
+    expect(await titleError.count()).toBe(0);
+    expect(await page.getByTestId('request-line-0-error').count()).toBe(1);
+    await page.getByTestId('request-line-0-quantity').fill('12');
+    expect(await page.getByTestId('request-line-0-error').count()).toBe(0);
+
+    // The due date reads as year-month-day, with the month spelled out beneath.
+    await page.getByTestId('request-due').fill('2027-03-01');
+    expect(await page.getByTestId('request-due').inputValue()).toBe('2027-03-01');
+    expect(await page.getByTestId('request-due-spelled').innerText()).toContain('Monday 1 March 2027');
+    await screenshot(page, `request-form-fixed-${name}`);
+    await page.getByTestId('request-submit').click();
+    await page.getByTestId('screen-request').waitFor();
+    expect(await page.getByTestId('request-due-date').innerText()).toContain('2027-03-01');
+    await page.context().close();
+  });
+});
