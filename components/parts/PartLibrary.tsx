@@ -6,7 +6,7 @@ import { usePartsQuery, type PartListParams } from '../queries/parts';
 import { spacing } from '../theme';
 import { Button, EmptyState, ErrorState, Field, LoadingState, Notice, Screen, Text } from '../ui';
 import { UploadPanel } from '../upload/UploadPanel';
-import { Choice } from './Choice';
+import { Choice } from '../ui/Choice';
 import { PART_CARDS_BELOW, PartTable, parseSort } from './PartTable';
 import { WARNING_CODES, warningLabel } from './warnings';
 

@@ -10,7 +10,7 @@ import { useDeletePartMutation, usePartQuery, useUpdatePartMutation, type Part }
 import { spacing, useIsWide } from '../theme';
 import { Button, Card, ConfirmAction, ErrorState, Field, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
 import { formatDateTime } from '../ui/format';
-import { Choice } from './Choice';
+import { Choice } from '../ui/Choice';
 import { formatArea, formatBytes, formatCount, formatSize, formatVolume } from './format';
 import { canUploadParts } from './PartLibrary';
 import { PartMeshPreview } from './PartMeshPreview';

@@ -1,7 +1,7 @@
 import { forwardRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type PartMesh, type Vec3 } from '../viewer';
-import { colors, radius, spacing } from '../theme';
+import { colors, radius, spacing, useIsWide } from '../theme';
 import { Button, Text } from '../ui';
 
 export interface BuildPaneProps {
@@ -28,9 +28,16 @@ export interface BuildPaneProps {
   loading: boolean;
 }
 
+/** What the pointer does: a wide screen has a mouse to hover with, a phone only taps. */
+function pointerHint(wide: boolean, editable: boolean): string {
+  if (wide) return editable ? 'Hover a part to see its line; click to mark it for removal.' : 'Hover a part to see its line.';
+  return editable ? 'Tap a part to see its line and mark it for removal.' : 'Tap a part to see its line.';
+}
+
 /** Centre pane: the chamber in 3D with the layer slider; clicking parts marks them for removal. */
 export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function BuildPane(p, ref) {
   const [hovered, setHovered] = useState<number | null>(null);
+  const wide = useIsWide();
   const top = Math.max(p.heightMm, p.layerHeightMm);
   return (
     <View style={[styles.pane, p.heightPx ? { height: p.heightPx } : styles.fill]} testID="plan-build">
@@ -40,7 +47,7 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
         </Text>
         {p.live ? <Text variant="caption" color="ember" testID="plan-build-live">Best so far, improving…</Text> : null}
         <Text variant="caption" color="inkMuted" numberOfLines={1} style={{ marginLeft: 'auto' }} testID="plan-build-hover">
-          {hovered !== null ? p.describe(hovered) : p.editable ? 'Hover a part to see its line; click to mark it for removal.' : 'Hover a part to see its line.'}
+          {hovered !== null ? p.describe(hovered) : pointerHint(wide, p.editable)}
         </Text>
       </View>
       <View style={styles.body}>

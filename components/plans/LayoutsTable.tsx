@@ -24,7 +24,7 @@ export function rowsOf(layouts: LayoutSummaryView[]): LayoutRow[] {
     chosen: l.chosen,
     locked: l.locked,
     matchesPlan: l.matchesPlan,
-    settings: `seed ${l.settings.seed} · ${l.settings.spacingMm} mm · ${(l.settings.timeLimitMs / 1000).toFixed(0)} s`,
+    settings: `${l.settings.layerHeightMm} mm layers · seed ${l.settings.seed} · ${l.settings.spacingMm} mm gap · ${(l.settings.timeLimitMs / 1000).toFixed(0)} s`,
     working: false,
   }));
 }
@@ -108,7 +108,7 @@ export function LayoutsTable({
                 </View>
               );
             })}
-            <Text variant="caption" color="inkFaint" numberOfLines={1}>{r.settings}</Text>
+            <Text variant="caption" color="inkFaint" numberOfLines={2}>{r.settings}</Text>
             {editable && !r.working ? (
               <View style={styles.actions}>
                 {!r.chosen ? (
@@ -121,7 +121,12 @@ export function LayoutsTable({
           </Pressable>
         ))}
       </View>
-      <Text variant="caption" color="inkFaint">Bold: the best of the layouts on that row. A layout whose lines changed can no longer be chosen. Kept layouts are estimated from the parts' sliced shapes; a box estimate counts each part as its bounding box and reads high.</Text>
+      <View style={styles.legend}>
+        <View style={styles.legendSwatch} />
+        <Text variant="caption" color="inkFaint" style={{ flexShrink: 1 }}>
+          Teal: the best of the layouts on that row. A layout whose lines changed can no longer be chosen. Kept layouts are estimated from the parts' sliced shapes; a box estimate counts each part as its bounding box and reads high.
+        </Text>
+      </View>
     </View>
   );
 }
@@ -147,5 +152,7 @@ const styles = StyleSheet.create({
   badges: { flexDirection: 'row', flexWrap: 'wrap', gap: 4 },
   metric: { height: ROW, flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.sm },
   best: { fontWeight: '700', color: colors.teal },
+  legend: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs },
+  legendSwatch: { width: 10, height: 10, borderRadius: 2, backgroundColor: colors.teal },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs, marginTop: spacing.xs },
 });

@@ -4,7 +4,8 @@ import type { PlanOrientationRule } from '../../shared/schemas/plans';
 import type { PackerStatus } from '../packing/usePacker';
 import type { DraftOptions } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
-import { Badge, Button, Text, TextInput, ToggleChip } from '../ui';
+import { Badge, Button, Choice, Text, TextInput } from '../ui';
+import { priorityLabel, priorityTone } from '../requests/labels';
 import { RULE_LABELS, RULE_ORIENTATIONS } from './instance';
 
 export interface EditorLine {
@@ -96,7 +97,7 @@ export function LinesPane(p: LinesPaneProps) {
                 </Text>
               </View>
               {l.added ? <Badge label="Added" tone="amber" /> : null}
-              {l.priority === 'urgent' || l.priority === 'high' ? <Badge label={l.priority} tone={l.priority === 'urgent' ? 'danger' : 'ember'} /> : null}
+              {l.priority === 'urgent' || l.priority === 'high' ? <Badge label={priorityLabel(l.priority)} tone={priorityTone(l.priority)} /> : null}
             </View>
             <View style={styles.lineRow}>
               <Text variant="caption" color="inkMuted">Qty</Text>
@@ -118,17 +119,17 @@ export function LinesPane(p: LinesPaneProps) {
               ) : null}
             </View>
             <View style={styles.lineRow}>
-              {RULES.map((r) => (
-                <ToggleChip
-                  key={r}
-                  label={RULE_LABELS[r]}
-                  value={l.rule === r}
-                  compact
-                  onChange={p.editable ? () => p.onRule(l.requestLineId, r === l.partRule ? null : r) : undefined}
-                  testID={`plan-rule-${l.requestLineId}-${r}`}
-                  accessibilityLabel={`${l.partName}: ${RULE_LABELS[r]} (${RULE_ORIENTATIONS[r].length} orientations)`}
-                />
-              ))}
+              <Choice
+                compact
+                value={l.rule}
+                onChange={p.editable ? (r) => p.onRule(l.requestLineId, r === l.partRule ? null : r) : undefined}
+                options={RULES.map((r) => ({
+                  value: r,
+                  label: RULE_LABELS[r],
+                  testID: `plan-rule-${l.requestLineId}-${r}`,
+                  accessibilityLabel: `${l.partName}: ${RULE_LABELS[r]} (${RULE_ORIENTATIONS[r].length} orientations)`,
+                }))}
+              />
               {p.editable && p.lines.length > 1 ? (
                 <Button label="Remove" size="sm" variant="ghost" onPress={() => p.onRemoveLine(l.requestLineId)} testID={`plan-line-remove-${l.requestLineId}`} />
               ) : null}
@@ -155,11 +156,12 @@ export function LinesPane(p: LinesPaneProps) {
             </View>
           </View>
           <Text variant="caption" color="inkMuted">Layer height</Text>
-          <View style={styles.chips}>
-            {p.layerHeightsMm.map((h) => (
-              <ToggleChip key={h} label={`${h} mm`} value={p.options.layerHeightMm === h} compact onChange={() => p.onOptions({ layerHeightMm: h })} testID={`pack-layer-${h}`} />
-            ))}
-          </View>
+          <Choice
+            compact
+            value={String(p.options.layerHeightMm)}
+            onChange={(h) => p.onOptions({ layerHeightMm: Number(h) })}
+            options={p.layerHeightsMm.map((h) => ({ value: String(h), label: `${h} mm`, testID: `pack-layer-${h}` }))}
+          />
           <Text variant="caption" color="inkMuted">Orientation rule of every line</Text>
           <View style={styles.chips}>
             <Button label="Each part's own" size="sm" variant="ghost" onPress={() => p.onRuleAll(null)} testID="pack-rule-own" />

@@ -15,12 +15,12 @@ import { useMachinesQuery } from '../queries/machines';
 import { useMaterialsQuery } from '../queries/materials';
 import { useCreatePlanMutation, useOpenLinesQuery, type PlanCreateInput } from '../queries/plans';
 import { colors, radius, spacing } from '../theme';
-import { Badge, Button, Card, EmptyState, ErrorState, Field, LoadingState, Notice, Screen, Text, TextInput, ToggleChip } from '../ui';
+import { Badge, Button, Card, Choice, EmptyState, ErrorState, Field, LoadingState, Notice, Screen, Text, TextInput, ToggleChip } from '../ui';
 import { formatDate } from '../ui/format';
 import { buildInstance, defaultOptions } from './instance';
+import { priorityLabel, priorityTone } from '../requests/labels';
 
 const PRIORITY_RANK: Record<string, number> = { urgent: 1, high: 2, normal: 3, low: 4 };
-const PRIORITY_TONE: Record<string, 'danger' | 'ember' | 'neutral'> = { urgent: 'danger', high: 'ember', normal: 'neutral', low: 'neutral' };
 
 type Pick = { on: boolean; quantity: string };
 
@@ -198,11 +198,11 @@ export function NewPlan() {
       <Card title="Machine and material">
         <View style={styles.group}>
           <Text variant="label" color="inkMuted">Material</Text>
-          <View style={styles.chips}>
-            {materials.data.map((m: Material) => (
-              <ToggleChip key={m.id} label={`${m.name} (${linesPerMaterial.get(m.id) ?? 0} open lines)`} value={m.id === materialId} onChange={() => setMaterialId(m.id)} testID={`new-plan-material-${m.id}`} />
-            ))}
-          </View>
+          <Choice
+            value={materialId || null}
+            onChange={setMaterialId}
+            options={materials.data.map((m: Material) => ({ value: m.id, label: `${m.name} (${linesPerMaterial.get(m.id) ?? 0} open lines)`, testID: `new-plan-material-${m.id}` }))}
+          />
           {material ? (
             <Text variant="caption" color="inkFaint">
               Spacing {material.spacingMm} mm, wall margin {material.marginXyMm} mm, floor {material.marginBottomMm} mm, top {material.marginTopMm} mm, layers {material.defaultLayerHeightMm} mm.
@@ -211,11 +211,11 @@ export function NewPlan() {
         </View>
         <View style={styles.group}>
           <Text variant="label" color="inkMuted">Machine</Text>
-          <View style={styles.chips}>
-            {machines.data.map((m: Machine) => (
-              <ToggleChip key={m.id} label={`${m.name} (${m.chamberMm.join(' × ')} mm)`} value={m.id === machineId} onChange={() => setMachineId(m.id)} testID={`new-plan-machine-${m.id}`} />
-            ))}
-          </View>
+          <Choice
+            value={machineId || null}
+            onChange={setMachineId}
+            options={machines.data.map((m: Machine) => ({ value: m.id, label: `${m.name} (${m.chamberMm.join(' × ')} mm)`, testID: `new-plan-machine-${m.id}` }))}
+          />
         </View>
         <Field label="Name" value={name} onChangeText={setName} placeholder={defaultName} testID="new-plan-name" />
       </Card>
@@ -243,7 +243,7 @@ export function NewPlan() {
                       {l.part.sizeMm.map((v) => v.toFixed(0)).join(' × ')} mm · {l.remaining} of {l.quantity} still needed
                     </Text>
                   </View>
-                  <Badge label={l.request.priority} tone={PRIORITY_TONE[l.request.priority] ?? 'neutral'} />
+                  <Badge label={priorityLabel(l.request.priority)} tone={priorityTone(l.request.priority)} />
                   <View style={styles.qty}>
                     <TextInput
                       value={pick.quantity}

@@ -580,7 +580,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         chosen: false,
         locked: false,
         matchesPlan: !workingStale,
-        settings: `seed ${working.instance.seed} · ${working.instance.spacing} mm`,
+        settings: `${working.instance.layerHeight} mm layers · seed ${working.instance.seed} · ${working.instance.spacing} mm gap`,
         working: true,
       });
     }

@@ -6,7 +6,7 @@ import type { PlanListItem } from '../../shared/schemas/plans';
 import { useLab } from '../lab/useCurrentLab';
 import { usePlansQuery } from '../queries/plans';
 import { spacing } from '../theme';
-import { Badge, Button, EmptyState, ErrorState, LoadingState, Screen, Table, Text, ToggleChip, type Column } from '../ui';
+import { Badge, Button, Choice, EmptyState, ErrorState, LoadingState, Screen, Table, Text, type Column } from '../ui';
 import { formatDate } from '../ui/format';
 import { STATUS_LABELS, STATUS_TONES } from './format';
 
@@ -45,10 +45,8 @@ export function PlanList() {
       testID="screen-plans"
       actions={canPlan ? <Button label="New plan" onPress={() => router.navigate('/plans/new')} testID="plans-new" /> : undefined}
     >
-      <View style={styles.filters} accessibilityRole="tablist">
-        {FILTERS.map((f) => (
-          <ToggleChip key={f.key} label={f.label} value={filter === f.key} onChange={() => setFilter(f.key)} compact testID={`plans-filter-${f.key}`} />
-        ))}
+      <View style={styles.filters}>
+        <Choice compact value={filter} onChange={setFilter} options={FILTERS.map((f) => ({ value: f.key, label: f.label, testID: `plans-filter-${f.key}` }))} />
       </View>
       {plans.isPending ? (
         <LoadingState label="Loading plans…" />

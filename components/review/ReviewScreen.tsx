@@ -1,4 +1,5 @@
 import { useMemo, useState } from 'react';
+import { priorityLabel } from '../requests/labels';
 import { StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
@@ -106,7 +107,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
               {l.quantity} × {l.part.name}
             </Text>
             <Text variant="caption" color="inkMuted">
-              {l.request.title} · due {formatDate(l.request.dueDate)} · {l.request.priority}
+              {l.request.title} · due {formatDate(l.request.dueDate)} · {priorityLabel(l.request.priority)}
             </Text>
           </View>
         </View>

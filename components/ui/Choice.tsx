@@ -1,10 +1,15 @@
 import { Pressable, StyleSheet, View } from 'react-native';
 import { colors, radius, spacing } from '../theme';
-import { Text } from '../ui';
+import { Text } from './Text';
 
-export type ChoiceOption<V extends string> = { value: V; label: string; testID?: string };
+export type ChoiceOption<V extends string> = { value: V; label: string; testID?: string; accessibilityLabel?: string };
 
-/** One of a few options side by side (a segmented control); wraps on a phone. */
+/**
+ * One of a few options side by side, each with a round mark (a radio group):
+ * the single-choice control of every screen (material, machine, layer height,
+ * orientation, filters). Check-box chips (ToggleChip) are for several at once.
+ * Wraps on a phone.
+ */
 export function Choice<V extends string>({
   label,
   options,
@@ -13,15 +18,21 @@ export function Choice<V extends string>({
   disabled,
   testID,
   hint,
+  compact,
 }: {
   label?: string;
   options: ChoiceOption<V>[];
-  value: V;
-  onChange: (v: V) => void;
+  /** The chosen option; null when none is chosen yet. */
+  value: V | null;
+  /** Absent: read only. */
+  onChange?: (v: V) => void;
   disabled?: boolean;
   testID?: string;
   hint?: string;
+  /** Smaller targets for dense panes (the plan editor). */
+  compact?: boolean;
 }) {
+  const readOnly = !onChange;
   return (
     <View style={styles.field} testID={testID}>
       {label ? (
@@ -37,12 +48,14 @@ export function Choice<V extends string>({
               key={o.value}
               testID={o.testID ?? (testID ? `${testID}-${o.value}` : undefined)}
               accessibilityRole="radio"
-              accessibilityState={{ checked: on, disabled }}
+              accessibilityState={{ checked: on, disabled: disabled || readOnly }}
+              accessibilityLabel={o.accessibilityLabel}
               aria-checked={on}
-              disabled={disabled}
-              onPress={() => onChange(o.value)}
-              style={({ pressed }) => [styles.option, on ? styles.on : styles.off, pressed && styles.pressed, disabled && styles.disabled]}
+              disabled={disabled || readOnly}
+              onPress={() => onChange?.(o.value)}
+              style={({ pressed }) => [styles.option, compact && styles.compact, on ? styles.on : styles.off, pressed && styles.pressed, disabled && styles.disabled]}
             >
+              <View style={[styles.mark, on && styles.markOn]}>{on ? <View style={styles.dot} /> : null}</View>
               <Text variant="label" color={on ? 'onGraphite' : 'ink'}>
                 {o.label}
               </Text>
@@ -62,7 +75,11 @@ export function Choice<V extends string>({
 const styles = StyleSheet.create({
   field: { gap: spacing.xs, flexShrink: 1, maxWidth: '100%' },
   row: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs },
-  option: { minHeight: 40, paddingHorizontal: spacing.md, borderRadius: radius.md, borderWidth: 1, justifyContent: 'center' },
+  option: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, minHeight: 40, paddingHorizontal: spacing.md, borderRadius: radius.md, borderWidth: 1 },
+  compact: { minHeight: 32, paddingHorizontal: spacing.sm },
+  mark: { width: 14, height: 14, borderRadius: 7, borderWidth: 1.5, borderColor: colors.lineStrong, alignItems: 'center', justifyContent: 'center' },
+  markOn: { borderColor: colors.ember },
+  dot: { width: 6, height: 6, borderRadius: 3, backgroundColor: colors.ember },
   on: { backgroundColor: colors.graphite, borderColor: colors.graphite },
   off: { backgroundColor: colors.surface, borderColor: colors.lineStrong },
   pressed: { opacity: 0.8 },

@@ -7,6 +7,7 @@ export { EmptyState } from './EmptyState';
 export { Screen, Stack, Row } from './Screen';
 export { Table, type Column } from './Table';
 export { ToggleChip } from './Toggle';
+export { Choice, type ChoiceOption } from './Choice';
 export { Notice, LoadingState, ErrorState } from './Notice';
 export { ConfirmAction } from './ConfirmAction';
 export { Icon, type IconName } from './Icon';

@@ -1,7 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useRef, useState } from 'react';
 import { StyleSheet, View, useWindowDimensions } from 'react-native';
-import { Choice } from '../parts/Choice';
+import { Choice } from '../ui/Choice';
 import { formatBytes, formatSize, formatVolume } from '../parts/format';
 import { invalidatePartLists, type Part, type RejectedFile } from '../queries/parts';
 import { colors, radius, spacing } from '../theme';
