@@ -7,6 +7,7 @@ import type { Config } from './config';
 import type { Database } from './db';
 import type { Auth } from './auth/sessions';
 import type { Mailer } from './mail/mailer';
+import type { LabEvents } from './events/labEvents';
 import { AppError } from './errors';
 import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/errors';
 import { checkOrigin, loadSession } from './http/middleware/auth';
@@ -19,6 +20,7 @@ import { requestRoutes } from './http/routes/requests';
 import { planRoutes } from './http/routes/plans';
 import { runRoutes } from './http/routes/runs';
 import { powderRoutes } from './http/routes/powder';
+import { announceChanges, eventRoutes } from './http/routes/events';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
 import { invitesService } from './services/invites';
@@ -45,6 +47,8 @@ export type AppDeps = {
   pool: pg.Pool;
   auth: Auth;
   mailer: Mailer;
+  /** Live updates to the lab's open screens (PostgreSQL LISTEN/NOTIFY). */
+  events: LabEvents;
   services: Services;
   log: (msg: string) => void;
 };
@@ -121,6 +125,8 @@ export function createApp(deps: AppDeps) {
   });
   api.post('/auth/sign-in', accountLimiter);
   api.post('/invites/:token/accept', limiter, accountLimiter);
+  api.use(announceChanges(deps.events, deps.log));
+  api.use(eventRoutes(deps));
   api.use(authRoutes(deps, limiter));
   api.use(labRoutes(deps));
   api.use(partRoutes(deps));

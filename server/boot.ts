@@ -4,6 +4,7 @@ import type { Config } from './config';
 import { connectDatabase } from './db';
 import { createAuth } from './auth/sessions';
 import { createMailer } from './mail/mailer';
+import { createLabEvents } from './events/labEvents';
 import { createApp, createServices, type AppDeps } from './app';
 
 export type Running = AppDeps & { app: ReturnType<typeof createApp>; close(): Promise<void> };
@@ -18,12 +19,14 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   const auth = createAuth(pool);
   const mailer = await createMailer(config);
   const services = createServices(db, mailer, config);
-  const deps: AppDeps = { config, db, pool, auth, mailer, services, log };
+  const events = createLabEvents(pool, config.databaseUrl, log);
+  const deps: AppDeps = { config, db, pool, auth, mailer, events, services, log };
   const app = createApp(deps);
   return {
     ...deps,
     app,
     async close() {
+      await events.close();
       await mailer.close();
       await pool.end();
       await db.close();

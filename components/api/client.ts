@@ -4,7 +4,7 @@ import { ApiError } from './errors';
 export { ApiError, isApiError, fieldErrorsOf, errorFieldRoot } from './errors';
 
 /** Same origin by default: the server serves the bundle and /api together. */
-const baseUrl = process.env.EXPO_PUBLIC_API_URL ?? '';
+export const baseUrl = process.env.EXPO_PUBLIC_API_URL ?? '';
 
 type Method = 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
 

@@ -3,6 +3,7 @@ import { Pressable, StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
 import { usePlansQuery } from '../queries/plans';
+import { useLabLiveUpdates } from '../queries/live';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Icon, LinkPressable, Text } from '../ui';
 import { LabSwitcher } from './LabSwitcher';
@@ -15,6 +16,8 @@ export function LabShell({ children }: { children: React.ReactNode }) {
   const wide = useIsWide();
   const lab = useLab();
   const items = visibleNavItems(lab.has);
+  // Every screen of the lab follows changes made elsewhere as they happen.
+  useLabLiveUpdates(lab.id);
   // Leads see how many plans wait for their decision beside Review.
   const inReview = usePlansQuery(lab.isLead ? lab.id : undefined, IN_REVIEW);
   const counts: Partial<Record<NavItem['key'], number>> = { review: inReview.data?.length ?? 0 };

@@ -1,4 +1,5 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { pollUnlessLive } from '../stores/live';
 import { z } from 'zod';
 import { api } from '../api/client';
 import type { PlanStatus } from '../../shared/plans/status';
@@ -36,7 +37,7 @@ export function useRunQuery(labId: string, planId: string) {
   return useQuery({
     queryKey: runKeys.one(labId, planId),
     queryFn: ({ signal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runSchema, signal }),
-    refetchInterval: FLOOR_REFRESH_MS,
+    refetchInterval: pollUnlessLive(labId, FLOOR_REFRESH_MS),
     refetchIntervalInBackground: false,
     staleTime: 0,
   });
@@ -47,7 +48,7 @@ export function useMachineRunsQuery(labId: string, machineId: string) {
   return useQuery({
     queryKey: runKeys.machine(labId, machineId),
     queryFn: ({ signal }) => api(`/labs/${labId}/plans?status=${FLOOR_STATUSES.join(',')}&machineId=${machineId}`, { schema: planListSchema, signal }),
-    refetchInterval: FLOOR_REFRESH_MS,
+    refetchInterval: pollUnlessLive(labId, FLOOR_REFRESH_MS),
     staleTime: 0,
   });
 }

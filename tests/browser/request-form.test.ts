@@ -1,14 +1,20 @@
 import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
-import { PASSWORD } from '../helpers/app';
+import { PASSWORD, startTestApp } from '../helpers/app';
+import type { Running } from '../../server/boot';
 import { labWithProfiles, makeRequest } from '../helpers/plans';
 
 jest.setTimeout(180_000);
 
 let served: Served;
+// Fixtures go through an app of their own on the same database: the served
+// one only takes writes from the browser's origin.
+let fixtures: Running;
 beforeAll(async () => {
   served = await serveAndLaunch();
+  fixtures = await startTestApp();
 });
 afterAll(async () => {
+  await fixtures?.close();
   await served?.close();
 });
 
@@ -17,8 +23,8 @@ describe.each([
   ['wide', WIDE],
 ])('the new-request form on a %s', (name, viewport) => {
   test('brings the first problem into view, clears each message once its field is fixed, labels the quantity and shows the date as year-month-day', async () => {
-    const lab = await labWithProfiles(served.running, `request-form-${name}`);
-    await makeRequest(served.running, lab.labId, lab.userId, lab.materialId, [{ name: 'Strain relief clip', sizeMm: [20, 8, 6], quantity: 1 }]);
+    const lab = await labWithProfiles(fixtures, `request-form-${name}`);
+    await makeRequest(fixtures, lab.labId, lab.userId, lab.materialId, [{ name: 'Strain relief clip', sizeMm: [20, 8, 6], quantity: 1 }]);
     const page = await newPage(served, viewport);
     await signIn(page, lab.email, PASSWORD);
     await page.goto('/requests/new');

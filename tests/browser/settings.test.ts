@@ -1,19 +1,25 @@
 import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
-import { addMember, PASSWORD, signUp, uniqueEmail } from '../helpers/app';
+import { addMember, PASSWORD, signUp, startTestApp, uniqueEmail } from '../helpers/app';
+import type { Running } from '../../server/boot';
 import { sentForReview } from '../helpers/plans';
 
 jest.setTimeout(180_000);
 
 let served: Served;
+// Fixtures go through an app of their own on the same database: the served
+// one only takes writes from the browser's origin.
+let fixtures: Running;
 beforeAll(async () => {
   served = await serveAndLaunch();
+  fixtures = await startTestApp();
 });
 afterAll(async () => {
+  await fixtures?.close();
   await served?.close();
 });
 
 test('on a phone every settings section, Account included, is on screen without scrolling sideways', async () => {
-  const lead = await signUp(served.running, 'settings-phone');
+  const lead = await signUp(fixtures, 'settings-phone');
   const page = await newPage(served, PHONE);
   await signIn(page, lead.email, PASSWORD);
   await page.goto('/settings/members');
@@ -31,7 +37,7 @@ test('on a phone every settings section, Account included, is on screen without 
 });
 
 test('an invite starts with no role ticked and is refused until one is chosen', async () => {
-  const lead = await signUp(served.running, 'settings-invite');
+  const lead = await signUp(fixtures, 'settings-invite');
   const page = await newPage(served, WIDE);
   await signIn(page, lead.email, PASSWORD);
   await page.goto('/settings/invites');
@@ -54,8 +60,8 @@ test('an invite starts with no role ticked and is refused until one is chosen', 
 });
 
 test('a role change is asked for first, can be kept as it was, and is reported once saved', async () => {
-  const lead = await signUp(served.running, 'settings-roles');
-  const member = await addMember(served.running, lead.agent, lead.labId, ['operator'], 'roles-member');
+  const lead = await signUp(fixtures, 'settings-roles');
+  const member = await addMember(fixtures, lead.agent, lead.labId, ['operator'], 'roles-member');
   const page = await newPage(served, WIDE);
   await signIn(page, lead.email, PASSWORD);
   await page.goto('/settings/members');
@@ -86,7 +92,7 @@ describe.each([
   ['wide', WIDE, 'nav-rail'],
 ])('a lead on a %s', (name, viewport, nav) => {
   test('finds Review in the navigation with the number of plans waiting', async () => {
-    const lab = await sentForReview(served.running, `nav-review-${name}`, 2);
+    const lab = await sentForReview(fixtures, `nav-review-${name}`, 2);
     const page = await newPage(served, viewport);
     await signIn(page, lab.email, PASSWORD);
     const item = page.getByTestId(nav).getByTestId('nav-review');
@@ -99,7 +105,7 @@ describe.each([
   });
 
   test('a member who is not a lead has no Review in the navigation', async () => {
-    const lab = await sentForReview(served.running, `nav-noreview-${name}`, 1);
+    const lab = await sentForReview(fixtures, `nav-noreview-${name}`, 1);
     const page = await newPage(served, viewport);
     await signIn(page, lab.planner.email, PASSWORD);
     await page.getByTestId(nav).getByTestId('nav-home').waitFor();
