@@ -46,8 +46,13 @@ export async function serveAndLaunch(): Promise<Served> {
   };
 }
 
-export async function newPage(served: Served, viewport: { width: number; height: number }): Promise<Page> {
-  const context = await served.browser.newContext({ viewport, baseURL: served.baseUrl });
+/**
+ * A fresh page. The tests hand page.evaluate and waitForFunction their code
+ * as strings, which the app's Content-Security-Policy (no eval) would block,
+ * so pages bypass it unless a test checks the policy itself (`enforceCsp`).
+ */
+export async function newPage(served: Served, viewport: { width: number; height: number }, opts: { enforceCsp?: boolean } = {}): Promise<Page> {
+  const context = await served.browser.newContext({ viewport, baseURL: served.baseUrl, bypassCSP: !opts.enforceCsp });
   const page = await context.newPage();
   page.setDefaultTimeout(20_000);
   return page;

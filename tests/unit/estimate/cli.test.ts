@@ -1,0 +1,98 @@
+/**
+ * The estimate command line (`npm run --silent estimate -- JOB.json`) on
+ * jobs built from the demo profiles: the checks a reader of its contract
+ * makes. Sources: mass conservation (the cake is the parts plus the loose
+ * powder); Gibson, Rosen & Stucker §5.4.2 (a volumetric energy density keeps
+ * the hatch time independent of the layer height); Incropera & DeWitt,
+ * transient conduction (time grows with the square of the size).
+ */
+import { spawnSync } from 'node:child_process';
+import { join } from 'node:path';
+import { demoMachines, demoMaterials } from '../../../shared/demo/profiles';
+
+const root = join(__dirname, '..', '..', '..');
+const run = (job: unknown) => spawnSync('npx', ['tsx', 'scripts/estimate.ts', '-'], { cwd: root, input: JSON.stringify(job), encoding: 'utf8', timeout: 60_000 });
+
+const { name: _m, ...machine } = demoMachines[0];
+const { name: _t, ...material } = demoMaterials[0];
+
+/** A hand-made pack-result/1: `n` housings and `n` clips side by side in one layer band. */
+function job(scale = 1, layerHeight = 0.1, machineOverrides: Record<string, unknown> = {}) {
+  const placements = [];
+  for (let i = 0; i < 4; i++) {
+    placements.push({ id: 'housing', position: [10 + i * 70 * scale, 10, 5], size: [60 * scale, 40 * scale, 30 * scale], orientation: 'xyz' });
+    placements.push({ id: 'clip', position: [10 + i * 70 * scale, 60 * scale, 5], size: [24 * scale, 12 * scale, 8 * scale], orientation: 'xyz' });
+  }
+  const height = 5 + 30 * scale;
+  return {
+    format: 'estimate-job/1',
+    layout: { format: 'pack-result/1', placements, unplaced: [], height, layers: Math.ceil((height + 5) / 0.1), utilization: 0.2, elapsedMs: 1 },
+    instance: { format: 'pack-instance/1', chamber: [300 * scale, 150 * scale, 380], margin: { xy: 8, bottom: 5, top: 5 }, spacing: 3, layerHeight: 0.1, parts: [] },
+    parts: [
+      { id: 'housing', volumeMm3: 20000 * scale ** 3 },
+      { id: 'clip', volumeMm3: 800 * scale ** 3 },
+    ],
+    machine: { ...machine, layerHeightsMm: [0.1, 0.15], ...machineOverrides },
+    material,
+    layerHeight,
+  };
+}
+
+function estimate(j: unknown) {
+  const r = run(j);
+  if (r.status !== 0) throw new Error(`estimate exited ${r.status}: ${r.stderr}`);
+  return JSON.parse(r.stdout);
+}
+
+describe('npm run estimate', () => {
+  const base = estimate(job());
+
+  test('answers estimate/1 with a mass balance that holds', () => {
+    expect(base.format).toBe('estimate/1');
+    const p = base.powder;
+    expect(p.cakeKg).toBeCloseTo(p.partsKg + p.looseKg, 9);
+    // 4 x (20,000 + 800) mm^3 of solid at the material's density (g/cm^3 -> kg).
+    expect(p.partsKg).toBeCloseTo((4 * 20800 / 1000) * material.solidDensityGPerCm3 / 1000, 9);
+    expect(p.freshKg).toBeGreaterThanOrEqual(p.partsKg + p.lossKg - 1e-12);
+    expect(p.freshKg).toBeGreaterThanOrEqual(material.refreshRatio * (p.freshKg + p.reusedKg) - 1e-12);
+    expect(base.packingDensity).toBeGreaterThan(0);
+    expect(base.packingDensity).toBeLessThan(1);
+  });
+
+  test('the scan time hardly depends on the layer height (0.10 vs 0.15 mm within 15 %)', () => {
+    const thick = estimate(job(1, 0.15));
+    expect(Math.abs(thick.print.scanS - base.print.scanS) / base.print.scanS).toBeLessThan(0.15);
+    expect(thick.layers).toBeLessThan(base.layers);
+  });
+
+  test('the scan speed never exceeds the scanner\'s top speed', () => {
+    const slow = estimate(job(1, 0.1, { scannerMaxSpeedMmPerS: 500 }));
+    expect(slow.print.scanSpeedMmPerS).toBeLessThanOrEqual(500);
+    expect(slow.print.scanS).toBeGreaterThan(base.print.scanS);
+  });
+
+  test('a cake twice as large in every direction takes at least twice as long to cool', () => {
+    const big = estimate(job(2));
+    expect(big.cooling.inMachineS + big.cooling.outsideS).toBeGreaterThanOrEqual(2 * (base.cooling.inMachineS + base.cooling.outsideS));
+  });
+
+  test('per-part costs add up to the build, and the larger part never costs less', () => {
+    const byId = Object.fromEntries(base.cost.perPart.map((p: { id: string; each: number }) => [p.id, p.each]));
+    expect(4 * byId.housing + 4 * byId.clip).toBeCloseTo(base.cost.totalBuild, 6);
+    expect(byId.housing).toBeGreaterThan(byId.clip);
+  });
+
+  test('bad input exits 2 with one line naming the field', () => {
+    const bad = job();
+    (bad.layout.placements[2] as { size: number[] }).size[1] = -1;
+    const r = run(bad);
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim()).toBe('layout.placements[2].size[1] must be a positive number');
+    const noFormat = run({ ...job(), format: 'estimate-job/9' });
+    expect(noFormat.status).toBe(2);
+    expect(noFormat.stderr).toMatch(/^format must be/);
+    const badMachine = run(job(1, 0.1, { laserPowerW: -5 }));
+    expect(badMachine.status).toBe(2);
+    expect(badMachine.stderr).toMatch(/laserPowerW/);
+  });
+});
