@@ -299,7 +299,12 @@ describe('the demo operator on a phone (390 x 844)', () => {
     expect(line.printed_count).toBe(9);
     const calibration = await lead.get(`/api/labs/${labId}/machines/${machineId}/calibration`);
     expect(calibration.status).toBe(200);
-    expect(calibration.body.runs).toBe(1);
+    // The run is recorded with its actual against its estimate; a run driven
+    // through in seconds is far outside the model, so it is left out of the
+    // fit by default and shown as such.
+    const recorded = (calibration.body.recordedRuns as { planId: string; outcome: string; counted: boolean; defaultExclusion: string | null }[]).find((r) => r.planId === queuedPlanId);
+    expect(recorded).toMatchObject({ outcome: 'done', counted: false });
+    expect(recorded!.defaultExclusion).not.toBeNull();
 
     // The operator follows the queue too, but only a lead orders it.
     await page.getByTestId('nav-tabs').getByTestId('nav-queue').click();
@@ -313,20 +318,20 @@ describe('the demo operator on a phone (390 x 844)', () => {
 });
 
 describe('two leads on one plan', () => {
-  test('the second decision is refused plainly with where the plan is now', async () => {
+  test('a decision another lead makes shows on an open review screen by itself, without a reload', async () => {
     const other = await planInReview(`Twice ${tag}`, [{ name: `Hinge ${tag}`, sizeMm: [25, 15, 6], quantity: 4 }], '2027-06-01');
     const page = await newPage(served, WIDE);
     await signIn(page, 'lead@tinkerfin.example');
     await page.goto(`/review/${other.planId}`);
     await page.getByTestId('review-decision').waitFor();
-    // Another lead approves it while this page is open.
+    // This lead starts writing while another lead approves it elsewhere.
+    await page.getByTestId('review-comment').fill('Fine by me');
+    // The screen is live: the other decision shows here by itself within moments, without a reload.
+    await page.evaluate('window.__reviewStillOpen = true');
     const ok = await lead.post(`${other.base}/review`).send({ decision: 'approve' });
     expect(ok.status).toBe(200);
-    await page.getByTestId('review-comment').fill('Fine by me');
-    await page.getByTestId('review-approve').click();
-    await page.getByTestId('review-error').waitFor();
-    expect(await page.getByTestId('review-error').textContent()).toMatch(/The plan has moved on.*queued cannot become approved/);
     await waitForText(page, 'review-status', 'Queued');
+    expect(await page.evaluate('window.__reviewStillOpen')).toBe(true);
     await screenshot(page, 'review-conflict-wide');
     await page.context().close();
 
