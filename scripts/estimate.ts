@@ -8,17 +8,12 @@
  * machine and material fields it reads, with their units, are in
  * docs/estimate.md.
  */
-import { readFileSync } from 'node:fs';
+import { fail, readJsonInput } from './lib/cli';
 import { estimateLayout, InvalidInputError, type EstimateInput, type PlacedBox } from '../shared/estimate';
 import { machineFieldDefaults, materialFieldDefaults } from '../shared/types/profiles';
 
 const JOB_FORMAT = 'estimate-job/1';
 const RESULT_FORMAT = 'estimate/1';
-
-function fail(message: string): never {
-  process.stderr.write(`${message.replace(/\s*\n\s*/g, ' ')}\n`);
-  process.exit(2);
-}
 
 type Json = Record<string, unknown>;
 const isObject = (v: unknown): v is Json => typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -42,18 +37,7 @@ function profileArray(v: unknown, field: string): number[] | undefined {
 }
 
 function readJob(file: string): Json {
-  let text: string;
-  try {
-    text = readFileSync(file === '-' ? 0 : file, 'utf8');
-  } catch (e) {
-    fail(`${file}: cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
-  }
-  let json: unknown;
-  try {
-    json = JSON.parse(text);
-  } catch (e) {
-    fail(`${file}: not valid JSON (${(e as Error).message})`);
-  }
+  const json = readJsonInput(file, 'the job');
   if (!isObject(json)) fail('the job must be a JSON object');
   if (json.format !== JOB_FORMAT) fail(`format must be "${JOB_FORMAT}"`);
   return json;

@@ -8,14 +8,10 @@
  * standard input), read here and handed to the engine as plain arrays.
  */
 import { readFileSync } from 'node:fs';
+import { fail, readJsonInput } from './lib/cli';
 import { dirname, resolve } from 'node:path';
 import { measureMesh, mergeMeshes, parseMeshFile } from '../shared/geometry';
 import { formatProblem, packSync, packV2Sync, parseInstance, parseInstanceV2, INSTANCE_FORMAT_V2, type PackInstanceV2 } from '../shared/packing';
-
-function fail(message: string): never {
-  process.stderr.write(`${message.replace(/\s*\n\s*/g, ' ')}\n`);
-  process.exit(2);
-}
 
 function failProblems(problems: { field: string; message: string }[]): never {
   const [first, ...rest] = problems;
@@ -49,18 +45,7 @@ function main(): void {
   const args = process.argv.slice(2).filter((a) => a !== '--');
   if (args.length !== 1) fail('usage: pack INSTANCE.json (or - for standard input)');
   const file = args[0];
-  let text: string;
-  try {
-    text = readFileSync(file === '-' ? 0 : file, 'utf8');
-  } catch (e) {
-    fail(`${file}: cannot be read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`);
-  }
-  let json: unknown;
-  try {
-    json = JSON.parse(text);
-  } catch (e) {
-    fail(`instance is not valid JSON: ${(e as Error).message}`);
-  }
+  const json = readJsonInput(file, 'instance');
   if (typeof json === 'object' && json !== null && (json as { format?: unknown }).format === INSTANCE_FORMAT_V2) {
     const parsed = parseInstanceV2(json);
     if (!parsed.ok) failProblems(parsed.problems);
