@@ -1,4 +1,5 @@
 import { usePathname } from 'expo-router';
+import { useEffect, useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
@@ -7,7 +8,7 @@ import { useLabLiveUpdates } from '../queries/live';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Icon, LinkPressable, Text } from '../ui';
 import { LabSwitcher } from './LabSwitcher';
-import { isActive, visibleNavItems, type NavItem } from './navItems';
+import { isActive, phoneTabs, visibleNavItems, type NavItem } from './navItems';
 import { useLab } from './useCurrentLab';
 import { LogoMark, Wordmark } from './Wordmark';
 
@@ -35,7 +36,7 @@ export function LabShell({ children }: { children: React.ReactNode }) {
 const IN_REVIEW = ['in_review'] as const;
 
 /** A small count beside a navigation item; nothing when there is nothing waiting. */
-function CountPill({ count, item, tone }: { count: number | undefined; item: NavItem['key']; tone: 'dark' | 'light' }) {
+function CountPill({ count, item, tone }: { count: number | undefined; item: NavItem['key'] | 'more'; tone: 'dark' | 'light' }) {
   if (!count) return null;
   return (
     <View style={[styles.count, tone === 'light' && styles.countLight]} testID={`nav-count-${item}`} accessibilityLabel={`${count} waiting`}>
@@ -113,6 +114,12 @@ function RailFrame({ items, counts, children }: { items: NavItem[]; counts: Part
 function TabFrame({ items, counts, children }: { items: NavItem[]; counts: Partial<Record<NavItem['key'], number>>; children: React.ReactNode }) {
   const pathname = usePathname();
   const insets = useSafeAreaInsets();
+  const [moreOpen, setMoreOpen] = useState(false);
+  const { tabs, more } = phoneTabs(items);
+  const moreActive = more.some((item) => isActive(item, pathname));
+  const moreCount = more.reduce((sum, item) => sum + (counts[item.key] ?? 0), 0);
+  // A page reached from the list closes it; so does any other navigation.
+  useEffect(() => setMoreOpen(false), [pathname]);
   return (
     <View style={[styles.narrowRoot, { paddingTop: insets.top }]}>
       <View style={styles.topBar}>
@@ -122,32 +129,82 @@ function TabFrame({ items, counts, children }: { items: NavItem[]; counts: Parti
         </View>
       </View>
       <View style={styles.main}>{children}</View>
+      {moreOpen ? (
+        <Pressable style={styles.moreBackdrop} onPress={() => setMoreOpen(false)} accessibilityLabel="Close the list" testID="nav-more-backdrop" />
+      ) : null}
       <View style={[styles.tabBar, { paddingBottom: Math.max(insets.bottom, spacing.xs) }]} accessibilityRole="tablist" testID="nav-tabs">
-        {items.map((item) => {
-          const active = isActive(item, pathname);
-          return (
-            <LinkPressable key={item.key} href={item.href}
-                testID={`nav-${item.key}`}
-                accessibilityRole="tab"
-                accessibilityLabel={item.label}
-                accessibilityState={{ selected: active }}
-                style={({ pressed }) => [styles.tab, pressed && { backgroundColor: colors.powderDeep }]}
-              >
-                <View style={[styles.tabMarker, active && styles.tabMarkerActive]} />
-                <View>
+        {moreOpen ? (
+          <View style={styles.moreSheet} role="menu" testID="nav-more-sheet">
+            {more.map((item) => {
+              const active = isActive(item, pathname);
+              return (
+                <LinkPressable key={item.key} href={item.href}
+                  testID={`nav-${item.key}`}
+                  accessibilityRole="link"
+                  accessibilityLabel={item.label}
+                  accessibilityState={{ selected: active }}
+                  onPress={() => setMoreOpen(false)}
+                  style={({ pressed }: { pressed: boolean }) => [styles.moreRow, (pressed || active) && { backgroundColor: colors.powderDeep }]}
+                >
                   <Icon name={item.icon} size={22} color={active ? colors.ember : colors.inkMuted} />
-                  <View style={styles.tabCount}>
-                    <CountPill count={counts[item.key]} item={item.key} tone="light" />
-                  </View>
-                </View>
-                <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: active ? colors.ink : colors.inkMuted }]}>
-                  {item.label}
-                </Text>
-              </LinkPressable>
-          );
-        })}
+                  <Text variant="bodyStrong" style={{ flex: 1, color: active ? colors.ink : colors.inkMuted }}>
+                    {item.label}
+                  </Text>
+                  <CountPill count={counts[item.key]} item={item.key} tone="dark" />
+                </LinkPressable>
+              );
+            })}
+          </View>
+        ) : null}
+        {tabs.map((item) => (
+          <TabButton key={item.key} item={item} active={isActive(item, pathname)} count={counts[item.key]} />
+        ))}
+        {more.length > 0 ? (
+          <Pressable
+            testID="nav-more"
+            accessibilityRole="tab"
+            accessibilityLabel={`More: ${more.map((i) => i.label).join(', ')}`}
+            accessibilityState={{ selected: moreActive, expanded: moreOpen }}
+            onPress={() => setMoreOpen((open) => !open)}
+            style={({ pressed }) => [styles.tab, (pressed || moreOpen) && { backgroundColor: colors.powderDeep }]}
+          >
+            <View style={[styles.tabMarker, moreActive && styles.tabMarkerActive]} />
+            <View>
+              <Icon name="more" size={22} color={moreActive ? colors.ember : colors.inkMuted} />
+              <View style={styles.tabCount}>
+                <CountPill count={moreCount} item="more" tone="light" />
+              </View>
+            </View>
+            <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: moreActive ? colors.ink : colors.inkMuted }]}>
+              More
+            </Text>
+          </Pressable>
+        ) : null}
       </View>
     </View>
+  );
+}
+
+function TabButton({ item, active, count }: { item: NavItem; active: boolean; count: number | undefined }) {
+  return (
+    <LinkPressable href={item.href}
+      testID={`nav-${item.key}`}
+      accessibilityRole="tab"
+      accessibilityLabel={item.label}
+      accessibilityState={{ selected: active }}
+      style={({ pressed }: { pressed: boolean }) => [styles.tab, pressed && { backgroundColor: colors.powderDeep }]}
+    >
+      <View style={[styles.tabMarker, active && styles.tabMarkerActive]} />
+      <View>
+        <Icon name={item.icon} size={22} color={active ? colors.ember : colors.inkMuted} />
+        <View style={styles.tabCount}>
+          <CountPill count={count} item={item.key} tone="light" />
+        </View>
+      </View>
+      <Text variant="caption" numberOfLines={1} style={[styles.tabLabel, { color: active ? colors.ink : colors.inkMuted }]}>
+        {item.label}
+      </Text>
+    </LinkPressable>
   );
 }
 
@@ -195,6 +252,7 @@ const styles = StyleSheet.create({
   topLab: { flex: 1, minWidth: 0 },
   tabBar: {
     flexDirection: 'row',
+    zIndex: 20,
     backgroundColor: colors.surface,
     borderTopWidth: 1,
     borderTopColor: colors.line,
@@ -202,6 +260,25 @@ const styles = StyleSheet.create({
   tab: { flex: 1, alignItems: 'center', justifyContent: 'center', minHeight: 56, paddingTop: spacing.xs, gap: 2 },
   tabMarker: { position: 'absolute', top: 0, left: '25%', right: '25%', height: 3, borderRadius: 2, backgroundColor: 'transparent' },
   tabMarkerActive: { backgroundColor: colors.ember },
+  moreBackdrop: { position: 'absolute', left: 0, right: 0, top: 0, bottom: 0, backgroundColor: 'rgba(20, 24, 28, 0.28)', zIndex: 15 },
+  moreSheet: {
+    position: 'absolute',
+    right: spacing.sm,
+    bottom: '100%',
+    marginBottom: spacing.xs,
+    minWidth: 220,
+    paddingVertical: spacing.xs,
+    backgroundColor: colors.surface,
+    borderRadius: radius.md,
+    borderWidth: 1,
+    borderColor: colors.line,
+    shadowColor: '#000',
+    shadowOpacity: 0.16,
+    shadowRadius: 12,
+    shadowOffset: { width: 0, height: 4 },
+    elevation: 6,
+  },
+  moreRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.md, minHeight: 48, paddingHorizontal: spacing.lg },
   tabLabel: { fontSize: 11, lineHeight: 14 },
   tabCount: { position: 'absolute', top: -6, right: -14 },
   count: { minWidth: 22, height: 20, paddingHorizontal: 6, borderRadius: radius.pill, backgroundColor: colors.ember, alignItems: 'center', justifyContent: 'center' },

@@ -1,6 +1,6 @@
 import Svg, { Circle, Path, Rect } from 'react-native-svg';
 
-export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'review' | 'signOut' | 'chevron' | 'powder';
+export type IconName = 'home' | 'parts' | 'requests' | 'plans' | 'queue' | 'floor' | 'settings' | 'review' | 'signOut' | 'chevron' | 'powder' | 'more';
 
 /** Line icons drawn for Sinterstack on a 24 px grid. */
 export function Icon({ name, size = 22, color }: { name: IconName; size?: number; color: string }) {
@@ -75,6 +75,14 @@ export function Icon({ name, size = 22, color }: { name: IconName; size?: number
           <Circle cx={12} cy={6} r={0.9} {...stroke} fill={color} />
           <Circle cx={8.5} cy={8} r={0.9} {...stroke} fill={color} />
           <Circle cx={15.5} cy={8} r={0.9} {...stroke} fill={color} />
+        </>
+      ) : null}
+      {name === 'more' ? (
+        <>
+          <Rect x={4.5} y={4.5} width={6} height={6} rx={1.5} {...stroke} />
+          <Rect x={13.5} y={4.5} width={6} height={6} rx={1.5} {...stroke} />
+          <Rect x={4.5} y={13.5} width={6} height={6} rx={1.5} {...stroke} />
+          <Rect x={13.5} y={13.5} width={6} height={6} rx={1.5} {...stroke} />
         </>
       ) : null}
       {name === 'chevron' ? <Path d="M9 6l6 6-6 6" {...stroke} /> : null}

@@ -71,3 +71,16 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
   await page.getByTestId('sign-in-submit').click();
   await page.getByTestId('screen-home').waitFor();
 }
+
+/**
+ * Opens a section from the lab's navigation: the side rail on a wide screen,
+ * the tab bar on a phone, where sections beyond the bar's room sit under "More".
+ */
+export async function openSection(page: Page, key: string) {
+  const rail = page.getByTestId('nav-rail');
+  if (await rail.isVisible()) return rail.getByTestId(`nav-${key}`).click();
+  const tabs = page.getByTestId('nav-tabs');
+  await tabs.waitFor();
+  if ((await tabs.getByTestId(`nav-${key}`).count()) === 0) await tabs.getByTestId('nav-more').click();
+  await tabs.getByTestId(`nav-${key}`).click();
+}
