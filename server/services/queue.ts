@@ -165,6 +165,8 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
         calibrated: calibration.calibrated,
         printTimeClamped: calibration.printTimeClamped,
         coolingClamped: calibration.coolingClamped,
+        coolingFrom: calibration.coolingFrom,
+        coolingReadings: calibration.coolingReadings,
         perLayerScale: calibration.perLayerScale,
         scanScale: calibration.scanScale,
         separate: calibration.separate,

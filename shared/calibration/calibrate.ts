@@ -1,5 +1,6 @@
 import type { PrintScaleFactors as CalibrationFactors } from '../estimate/calibration';
 import { InvalidInputError, isFiniteNumber, type Problem } from '../estimate/problems';
+import { coolingScaleFromPoints, type CoolingPoint } from './readings';
 
 /** One finished run of a machine: what was estimated and what happened. Hours; null when not recorded. */
 export interface RecordedRun {
@@ -19,6 +20,8 @@ export interface RecordedRun {
    */
   estimatedFixedHours?: number | null;
   estimatedScanHours?: number | null;
+  /** The run's core readings beside the conduction model (see coolingPoints); left out when none were taken. */
+  coolingPoints?: readonly CoolingPoint[];
 }
 
 export interface CalibrationOptions {
@@ -43,6 +46,13 @@ export interface Calibration extends CalibrationFactors {
   scanScale: number;
   /** True when the two were fitted apart. */
   separate: boolean;
+  /**
+   * What the cooling factor was fitted from: the core readings against the conduction model when at least minRuns
+   * of the runs used recorded some, otherwise each run's whole cooling time (print end to breakout) against its estimate.
+   */
+  coolingFrom: 'readings' | 'cooling_times';
+  /** Readings the cooling factor was fitted from (0 when fitted from cooling times). */
+  coolingReadings: number;
 }
 
 export const DEFAULT_LAST_RUNS = 10;
@@ -61,6 +71,11 @@ function validate(runs: readonly RecordedRun[], options: CalibrationOptions): Pr
       const v = run?.[key];
       if (v !== undefined && (!isFiniteNumber(v) || v <= 0)) problems.push({ field: `runs[${i}].${key}`, message: 'must be a positive number' });
     }
+    run?.coolingPoints?.forEach((p: CoolingPoint, j: number) => {
+      for (const key of ['actualSeconds', 'modelSeconds'] as const) {
+        if (!isFiniteNumber(p?.[key]) || p[key] <= 0) problems.push({ field: `runs[${i}].coolingPoints[${j}].${key}`, message: 'must be a positive number' });
+      }
+    });
     if (run?.finishedAtMs !== undefined && !isFiniteNumber(run.finishedAtMs)) {
       problems.push({ field: `runs[${i}].finishedAtMs`, message: 'must be epoch milliseconds' });
     }
@@ -126,11 +141,14 @@ function clamp(value: number, band: readonly [number, number]): { value: number;
  * positive; an aborted run has no meaningful actual). Over the latest `lastRuns` of them:
  *
  * - print-time scale: the least-squares s in actual print = s x estimated print;
- * - cooling scale: the same fit c for cooling time, inverted, because the scale multiplies the Newton cooling
- *   constant k and the time to a temperature goes as 1 / k.
+ * - per-layer and scan scales: actual print = f x (preheat + recoats) + s x scan, fitted together where the runs
+ *   recorded the split and tell the two apart;
+ * - cooling scale: from the recorded core readings where enough runs have them (each reading against the time the
+ *   conduction model takes to reach its temperature, see coolingScaleFromPoints), otherwise the fit c of actual
+ *   cooling time against its estimate, inverted, because the scale divides every cooling time.
  *
  * Each estimate is first brought back to factors 1 with the factors it was made with. The cake's size needs no
- * separate term: the estimates already scale k with the cake's surface-to-volume ratio.
+ * separate term: the conduction model already takes it (time goes as the size squared over the diffusivity).
  */
 export function calibrateMachine(runs: readonly RecordedRun[], options: CalibrationOptions = {}): Calibration {
   const problems = validate(runs, options);
@@ -162,6 +180,8 @@ export function calibrateMachine(runs: readonly RecordedRun[], options: Calibrat
       calibrated: false,
       printTimeClamped: false,
       coolingClamped: false,
+      coolingFrom: 'cooling_times',
+      coolingReadings: 0,
     };
   }
 
@@ -172,7 +192,10 @@ export function calibrateMachine(runs: readonly RecordedRun[], options: Calibrat
   const coolingActuals = used.map((r) => r.actualCoolingHours!);
 
   const print = clamp(scaleThroughOrigin(printEstimates, printActuals), band);
-  const cooling = clamp(1 / scaleThroughOrigin(coolingEstimates, coolingActuals), band);
+  const withReadings = used.filter((r) => (r.coolingPoints?.length ?? 0) > 0);
+  const points = withReadings.length >= minRuns ? withReadings.flatMap((r) => r.coolingPoints!) : [];
+  const fromReadings = coolingScaleFromPoints(points);
+  const cooling = clamp(fromReadings ?? 1 / scaleThroughOrigin(coolingEstimates, coolingActuals), band);
   // The two parts apart, over the runs that recorded them (at least minRuns).
   const split = used.filter((r) => (r.estimatedFixedHours ?? 0) > 0 && (r.estimatedScanHours ?? -1) >= 0);
   const parts =
@@ -195,5 +218,7 @@ export function calibrateMachine(runs: readonly RecordedRun[], options: Calibrat
     calibrated: true,
     printTimeClamped: print.clamped,
     coolingClamped: cooling.clamped,
+    coolingFrom: fromReadings !== null ? 'readings' : 'cooling_times',
+    coolingReadings: fromReadings !== null ? points.length : 0,
   };
 }

@@ -1,2 +1,3 @@
 export * from './calibrate';
 export * from './runs';
+export * from './readings';

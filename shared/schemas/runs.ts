@@ -201,6 +201,9 @@ export interface CalibrationFactorsView {
   calibrated: boolean;
   printTimeClamped: boolean;
   coolingClamped: boolean;
+  /** The cooling factor's source: core readings against the conduction model, or whole cooling times. */
+  coolingFrom: 'readings' | 'cooling_times';
+  coolingReadings: number;
 }
 
 /** One finished or aborted run of a machine against its estimate (hours, the estimate before calibration). */
@@ -220,6 +223,9 @@ export interface CalibrationRunView {
   /** Actual over estimate; null when not recorded. */
   printRatio: number | null;
   coolingRatio: number | null;
+  /** Core readings of the run usable against the conduction model, and the cooling factor they alone give (null without). */
+  coolingReadings: number;
+  readingsCoolingScale: number | null;
   /** Counts toward the fit (the lead's choice, or the default). */
   counted: boolean;
   /** Among the latest counted runs the fit used. */
