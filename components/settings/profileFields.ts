@@ -17,7 +17,7 @@ export const machineFieldGroups: FieldGroup[] = [
       { key: 'scannerMaxSpeedMmPerS', label: 'Scanner top speed', unit: 'mm/s', kind: 'number', hint: 'The scan speed is held at this when the energy density would ask for more.' },
       { key: 'recoatSeconds', label: 'Recoat time per layer', unit: 's', kind: 'number' },
       { key: 'minLayerSeconds', label: 'Minimum layer time', unit: 's', kind: 'number', hint: '0 when the machine has none.' },
-      { key: 'preheatSeconds', label: 'Preheat time', unit: 's', kind: 'number' },
+      { key: 'preheatSeconds', label: 'Preheat time', unit: 'min', kind: 'number', scale: 60, hint: 'From loading the chamber to the first layer.' },
     ],
   },
   {

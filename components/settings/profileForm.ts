@@ -12,6 +12,11 @@ export type FieldSpec = {
   hint?: string;
   /** number: one value; triple: x, y, z; list: comma-separated numbers; text: a string. */
   kind: 'text' | 'number' | 'triple' | 'list';
+  /**
+   * Stored units per shown unit, for a number kept in one unit and read in
+   * another (preheat: stored in s, shown and typed in min, scale 60).
+   */
+  scale?: number;
 };
 
 export type FieldGroup = { title: string; fields: FieldSpec[] };
@@ -35,7 +40,7 @@ export function valuesFrom(groups: FieldGroup[], profile: Record<string, unknown
     } else if (f.kind === 'list') {
       out[f.key] = Array.isArray(v) ? v.map((n) => (typeof n === 'number' ? formatNumber(n, 4) : String(n))).join(', ') : '';
     } else if (f.kind === 'number') {
-      out[f.key] = typeof v === 'number' ? formatNumber(v, 6) : '';
+      out[f.key] = typeof v === 'number' ? formatNumber(v / (f.scale ?? 1), 6) : '';
     } else {
       out[f.key] = typeof v === 'string' ? v : '';
     }
@@ -61,7 +66,11 @@ export function profileFrom(groups: FieldGroup[], values: FormValues): Record<st
         .split(/[;\s]+|,\s*/)
         .filter((p) => p.trim() !== '')
         .map(toNumber);
-    else if (f.kind === 'number') out[f.key] = toNumber(v as string);
+    else if (f.kind === 'number') {
+      const typed = toNumber(v as string);
+      // Kept to a thousandth of the stored unit, so a shown figure rounded to six decimals goes back unchanged.
+      out[f.key] = typeof typed === 'number' && f.scale ? Math.round(typed * f.scale * 1000) / 1000 : typed;
+    }
     else out[f.key] = v as string;
   }
   return out;
@@ -75,6 +84,8 @@ export function describeIssue(issue: z.core.$ZodIssue, spec?: FieldSpec, input?:
   // Zod leaves the offending input out of its issues; read it from what was parsed.
   let given: unknown = input;
   for (const key of issue.path) given = (given as Record<PropertyKey, unknown> | undefined)?.[key as PropertyKey];
+  // Bounds are in the stored unit; the form shows its own.
+  const shown = (b: number | bigint | undefined) => (spec?.scale && typeof b === 'number' ? formatNumber(b / spec.scale, 6) : b);
   let text: string;
   switch (i.code) {
     case 'invalid_type':
@@ -83,12 +94,12 @@ export function describeIssue(issue: z.core.$ZodIssue, spec?: FieldSpec, input?:
     case 'too_small':
       if (i.origin === 'array') text = `Give at least ${i.minimum} value${Number(i.minimum) === 1 ? '' : 's'}.`;
       else if (i.origin === 'string') text = 'Required.';
-      else text = i.inclusive ? `At least ${i.minimum}.` : `More than ${i.minimum}.`;
+      else text = i.inclusive ? `At least ${shown(i.minimum)}.` : `More than ${shown(i.minimum)}.`;
       break;
     case 'too_big':
       if (i.origin === 'array') text = `At most ${i.maximum} values.`;
       else if (i.origin === 'string') text = `At most ${i.maximum} characters.`;
-      else text = i.inclusive ? `At most ${i.maximum}.` : `Less than ${i.maximum}.`;
+      else text = i.inclusive ? `At most ${shown(i.maximum)}.` : `Less than ${shown(i.maximum)}.`;
       break;
     default:
       text = i.message;
