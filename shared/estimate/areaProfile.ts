@@ -95,13 +95,20 @@ export interface AreaJump {
 
 /**
  * Layers whose scanned area changes sharply from the layer below: the heat put into the bed jumps with it,
- * which loads the cake unevenly. Both rises and drops are flagged. The first layer that holds any area is not:
- * below it lies only unsintered powder at bed temperature, so there is no uneven history to compare with.
+ * which loads the cake unevenly. Both rises and drops are flagged, with two exceptions at the ends of the build:
+ * - the first layer that holds any area: below it lies only unsintered powder at bed temperature, so there is
+ *   no uneven history to compare with;
+ * - the build's taper at the top: a drop after which no layer up to the top holds more than the minimum area
+ *   (`minDeltaMm2`; nothing at all when it is 0). The area of every build falls to nothing where its tallest
+ *   parts end; an uneven heat input matters to the part layers fused over it, and there are none.
  */
 export function findAreaJumps(areaPerLayerMm2: ArrayLike<number>, options: AreaJumpOptions = {}): AreaJump[] {
   const minRatio = options.minRatio ?? 2;
   const minDeltaMm2 = options.minDeltaMm2 ?? 0;
   const jumps: AreaJump[] = [];
+  // The taper: the top run of layers each holding no more than the minimum area.
+  let taperFrom = areaPerLayerMm2.length;
+  while (taperFrom > 0 && areaPerLayerMm2[taperFrom - 1] <= minDeltaMm2) taperFrom--;
   let seenArea = false;
   for (let l = 0; l < areaPerLayerMm2.length; l++) {
     const area = areaPerLayerMm2[l];
@@ -113,6 +120,7 @@ export function findAreaJumps(areaPerLayerMm2: ArrayLike<number>, options: AreaJ
     const larger = Math.max(area, below);
     const smaller = Math.min(area, below);
     if (larger - smaller < minDeltaMm2 || larger <= 0) continue;
+    if (l >= taperFrom && area < below) continue;
     if (smaller === 0 || larger / smaller >= minRatio) {
       jumps.push({ layerIndex: l, areaMm2: area, belowAreaMm2: below, deltaMm2: area - below });
     }

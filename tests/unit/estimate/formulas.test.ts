@@ -355,8 +355,20 @@ describe('area per layer', () => {
     expect(jumps[1].deltaMm2).toBeCloseTo(-900, 3);
   });
 
+  test("the build's taper is not flagged: drops after which nothing above holds more than the minimum area", () => {
+    // Every build's area falls to nothing where its tallest parts end (a cone's tip, a block's top face).
+    expect(findAreaJumps(new Float32Array([0, 400, 400, 400, 0, 0]), { minRatio: 2, minDeltaMm2: 0 })).toEqual([]);
+    // A cone's last layers shrink below the minimum before they end: the whole tip is the taper.
+    expect(findAreaJumps(new Float32Array([900, 700, 500, 300, 40, 10, 0]), { minRatio: 2, minDeltaMm2: 50 })).toEqual([]);
+    // Parts ending at two heights: the first end has a part fused over it and is flagged, the last is the taper.
+    expect(findAreaJumps(new Float32Array([1000, 1000, 200, 200, 200, 0]), { minRatio: 2, minDeltaMm2: 50 }).map((j) => j.layerIndex)).toEqual([2]);
+    // A gap in the middle of the build is not a taper: its drop and the rise after it are both flagged.
+    expect(findAreaJumps(new Float32Array([500, 0, 0, 500, 500, 0]), { minRatio: 2, minDeltaMm2: 50 }).map((j) => j.layerIndex)).toEqual([1, 3]);
+  });
+
   test('a change smaller than the minimum area is not flagged however large the ratio', () => {
-    const profile = new Float32Array([500, 1, 20, 20]);
+    // 1 -> 20 and 20 -> 110 are large ratios but small changes; 500 -> 1 is large in both, with parts fused above it.
+    const profile = new Float32Array([500, 1, 20, 20, 110, 110, 0]);
     expect(findAreaJumps(profile, { minRatio: 2, minDeltaMm2: 100 }).map((j) => j.layerIndex)).toEqual([1]);
   });
 });
