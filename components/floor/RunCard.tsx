@@ -279,7 +279,7 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
   const addReading = useAddReadingMutation(lab.id, run.planId);
   const [temp, setTemp] = useState('');
   const timer = run.timers.cooling;
-  const live = timer ? liveCooling(timer, run.thresholds.ambientTempC, now) : null;
+  const live = timer ? liveCooling(timer, now) : null;
   const [where, setWhere] = useState<'machine' | 'outside'>(live && live.removalReached ? 'outside' : 'machine');
   const t = run.thresholds;
   const readingErr = stepError(addReading.error);
@@ -306,11 +306,13 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
           </View>
           <Text variant="label" color="inkMuted" testID="cool-phase">
             {live.phase === 'in_machine'
-              ? `In the machine until ${t.removalTempC} °C (about ${formatClock(timer!.inMachine.removalAtMs, now)}); then the chamber may leave it.`
+              ? `In the machine until ${t.removalTempC} °C (about ${formatClock(timer!.removalAtMs, now)}); then the chamber may leave it.`
               : live.phase === 'outside'
-                ? `Outside the machine until ${t.handlingTempC} °C (about ${formatClock(timer!.outside.handlingAtMs, now)}).`
+                ? `Outside the machine until ${t.handlingTempC} °C (about ${formatClock(timer!.handlingAtMs, now)}).`
                 : 'Cool enough to handle: breakout may start.'}
-            {timer!.inMachine.fitted || timer!.outside.fitted ? ' The timer follows your readings.' : " The timer follows Newton's law of cooling from the estimate."}
+            {timer!.fitted
+              ? ` The timer follows the core temperature of the cake, at the pace your ${timer!.readingsUsed === 1 ? 'reading shows' : `${timer!.readingsUsed} readings show`}.`
+              : ' The timer follows the core temperature of the cake by heat conduction, as the estimate does; readings set its pace.'}
           </Text>
         </>
       ) : (

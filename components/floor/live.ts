@@ -1,5 +1,5 @@
 import { useEffect, useState } from 'react';
-import { newtonTemperatureC } from '../../shared/estimate/cooling';
+import { cakeCoreTempC } from '../../shared/estimate/conduction';
 import type { CoolingTimer } from '../../shared/floor';
 
 /** The clock, ticking once per `everyMs`, for timers that count down on screen between refreshes. */
@@ -49,21 +49,18 @@ export interface LiveCooling {
 }
 
 /**
- * The server's cooling curves carried forward to now: the curves change only
- * with a reading (which refreshes the run), so between refreshes the timer
- * is the same Newton curve read at a later time.
+ * The server's cooling curve carried forward to now: the curve changes only with a reading (which refreshes the
+ * run), so between refreshes the timer is the same conduction model of the cake read at a later time.
  */
-export function liveCooling(timer: CoolingTimer, ambientTempC: number, nowMs: number): LiveCooling {
-  const removalReached = timer.removalReached || nowMs >= timer.inMachine.removalAtMs;
-  const handlingReached = timer.handlingReached || nowMs >= timer.outside.handlingAtMs;
-  const outsideNow = nowMs >= timer.outside.startMs;
-  const curve = outsideNow ? timer.outside : timer.inMachine;
-  const predictedTempC = newtonTemperatureC(curve.anchorTempC, ambientTempC, curve.kPerHour, (nowMs - curve.anchorMs) / 3_600_000);
+export function liveCooling(timer: CoolingTimer, nowMs: number): LiveCooling {
+  const removalReached = timer.removalReached || nowMs >= timer.removalAtMs;
+  const handlingReached = timer.handlingReached || nowMs >= timer.handlingAtMs;
+  const outsideNow = nowMs >= timer.outsideStartMs;
   return {
     phase: handlingReached ? 'cooled' : outsideNow ? 'outside' : 'in_machine',
-    predictedTempC,
-    remainingToRemovalSeconds: removalReached ? 0 : Math.max(0, (timer.inMachine.removalAtMs - nowMs) / 1000),
-    remainingToHandlingSeconds: handlingReached ? 0 : Math.max(0, (timer.outside.handlingAtMs - nowMs) / 1000),
+    predictedTempC: cakeCoreTempC(timer.cake, Math.max(0, (nowMs - timer.printEndedAtMs) / 1000)),
+    remainingToRemovalSeconds: removalReached ? 0 : Math.max(0, (timer.removalAtMs - nowMs) / 1000),
+    remainingToHandlingSeconds: handlingReached ? 0 : Math.max(0, (timer.handlingAtMs - nowMs) / 1000),
     removalReached,
     handlingReached,
   };

@@ -37,7 +37,7 @@ export function dueEndMs(dueDate: string): number {
 /**
  * A layout's estimate rescaled to the machine's current factors: print times
  * scale with the print-time factor, cooling times with 1 / the cooling factor
- * (it multiplies Newton's k). The estimate says which factors it was made with.
+ * (it divides every time of the conduction model). The estimate says which factors it was made with.
  */
 export function durationsFor(estimate: RunEstimate, factors: { printTimeScale: number; coolingScale: number }, breakoutSeconds: number): StageDurations {
   const printRatio = factors.printTimeScale / (estimate.calibration?.printTimeScale ?? 1);

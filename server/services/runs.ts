@@ -18,6 +18,7 @@ import {
   type ReadingCheckStatus,
   type TemperatureReading,
 } from '../../shared/floor';
+import type { CakeThermal } from '../../shared/estimate/conduction';
 import type { Mailer } from '../mail/mailer';
 import {
   ADVANCE_SCHEMAS,
@@ -67,10 +68,14 @@ export type RunRow = {
 
 /** The parts of a layout's estimate a run needs. */
 export type RunEstimate = {
-  print: { preheatSeconds: number; layersSeconds: number; printSeconds: number; recoatSeconds?: number; scanSeconds?: number };
+  print: { preheatSeconds: number; layersSeconds: number; printSeconds: number; recoatSeconds?: number; scanSeconds?: number; contourSeconds?: number };
   cooling: { inMachineSeconds: number; outsideSeconds: number; coolingSeconds: number; inMachinePerHour: number; outsidePerHour: number };
   powder: { freshPowderKg: number; reusedPowderKg: number; cakeMassKg: number };
-  calibration?: { printTimeScale: number; coolingScale: number };
+  calibration?: { printTimeScale: number; coolingScale: number; layerTimeScale?: number; scanTimeScale?: number };
+  /** The powder cake x, y, z (mm); from the layer count and the chamber for estimates stored before it was kept. */
+  cakeMm?: [number, number, number];
+  layerCount?: number;
+  layerHeightMm?: number;
 };
 
 type ReadingRow = {
@@ -172,21 +177,35 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
     };
   }
 
-  /** The cooling model a reading is checked against; null before the print ended or without an estimate. */
-  function coolingModel(c: RunContext, run: RunRow | null = c.run): CoolingModel | null {
-    if (!run?.print_ended_at || !c.estimate) return null;
+  /** The run's cake as its estimate saw it, for the conduction model of its cooling; null without an estimate. */
+  function cakeOf(c: RunContext): CakeThermal | null {
+    const est = c.estimate;
+    if (!est) return null;
+    const chamber = c.machine.chamberMm as number[] | undefined;
+    const sizeMm = est.cakeMm ?? (chamber && est.layerCount && est.layerHeightMm ? [chamber[0], chamber[1], est.layerCount * est.layerHeightMm] : null);
+    if (!sizeMm) return null;
     return {
-      printEndedAtMs: ms(run.print_ended_at),
-      leftMachineAtMs: run.left_machine_at ? ms(run.left_machine_at) : null,
+      sizeMm,
+      conductivityWPerMK: c.material.powderConductivityWPerMK,
+      densityGPerCm3: c.material.bulkDensityGPerCm3,
+      heatCapacityJPerKgK: c.material.powderHeatCapacityJPerKgK,
+      surfaceWPerM2K: c.machine.coolingSurfaceWPerM2K,
       startTempC: c.material.bedTempC,
       ambientTempC: c.machine.ambientTempC,
-      inMachinePerHour: c.estimate.cooling.inMachinePerHour,
-      outsidePerHour: c.estimate.cooling.outsidePerHour,
+      coolingScale: est.calibration?.coolingScale ?? 1,
     };
   }
 
+  /** The cooling model a reading is checked against; null before the print ended or without an estimate. */
+  function coolingModel(c: RunContext, run: RunRow | null = c.run): CoolingModel | null {
+    const cake = cakeOf(c);
+    if (!run?.print_ended_at || !cake) return null;
+    return { printEndedAtMs: ms(run.print_ended_at), cake };
+  }
+
   function cooling(c: RunContext, nowMs: number): CoolingTimer | null {
-    if (!c.run?.print_ended_at || !c.estimate) return null;
+    const cake = cakeOf(c);
+    if (!c.run?.print_ended_at || !cake) return null;
     // A reading the model cannot explain moves no timer and unlocks nothing until it is confirmed or accepted.
     const readings: TemperatureReading[] = c.readings
       .filter((r) => readingCounts(r.check_status))
@@ -195,12 +214,9 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
       printEndedAtMs: ms(c.run.print_ended_at),
       leftMachineAtMs: c.run.left_machine_at ? ms(c.run.left_machine_at) : null,
       nowMs,
-      startTempC: c.material.bedTempC,
-      ambientTempC: c.machine.ambientTempC,
+      cake,
       removalTempC: c.machine.removalTempC,
       handlingTempC: c.machine.handlingTempC,
-      inMachinePerHour: c.estimate.cooling.inMachinePerHour,
-      outsidePerHour: c.estimate.cooling.outsidePerHour,
       readings,
     });
   }
@@ -376,9 +392,12 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
       }
     }
     const printScale = est.calibration?.printTimeScale ?? 1;
-    // The estimate's parts before any calibration, for the separate fits of per-layer and scan time.
-    const scanSeconds = est.print.scanSeconds ?? null;
-    const layerSeconds = scanSeconds !== null ? est.print.layersSeconds - scanSeconds : null;
+    // The estimate's parts before any calibration, for the separate fits of per-layer and scan time: the laser's
+    // time (hatch and contours) under the scan factor, the rest (recoat, layer waits, preheat) under the layer factor.
+    const layerScale = est.calibration?.layerTimeScale ?? printScale;
+    const scanScale = est.calibration?.scanTimeScale ?? printScale;
+    const laserSeconds = est.print.scanSeconds != null ? est.print.scanSeconds + (est.print.contourSeconds ?? 0) : null;
+    const layerSeconds = laserSeconds !== null ? est.print.layersSeconds - laserSeconds : null;
     const [inserted] = await sequelize.query<{ id: string }>(
       `INSERT INTO runs (id, plan_id, lab_id, machine_id, layout_id, checklist, fresh_powder_loaded_kg, reused_powder_loaded_kg,
                          started_at, started_by, estimated_print_hours, estimated_cooling_hours, print_time_scale_used,
@@ -400,9 +419,9 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
           est.cooling.coolingSeconds / 3600,
           printScale,
           est.calibration?.coolingScale ?? 1,
-          est.print.preheatSeconds / printScale / 3600,
-          layerSeconds === null ? null : layerSeconds / printScale / 3600,
-          scanSeconds === null ? null : scanSeconds / printScale / 3600,
+          est.print.preheatSeconds / layerScale / 3600,
+          layerSeconds === null ? null : layerSeconds / layerScale / 3600,
+          laserSeconds === null ? null : laserSeconds / scanScale / 3600,
         ],
         transaction,
       },
@@ -614,7 +633,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
                   },
                 );
               }
-              const leftMs = Math.min(when.getTime(), timer.outside.startMs);
+              const leftMs = Math.min(when.getTime(), timer.outsideStartMs);
               await setRun(
                 run!.id,
                 'breakout_at = $2, actual_cooling_hours = $3, left_machine_at = COALESCE(left_machine_at, $4)',
@@ -671,7 +690,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
         }
         // Checked against the cooling model: a reading colder than the cake can be is held until a second one agrees.
         const model = coolingModel(c, run);
-        const check = model ? checkReading(model, { atMs: when.getTime(), tempC: input.tempC, place: input.where }) : null;
+        const check = model ? checkReading(model, { atMs: when.getTime(), tempC: input.tempC }) : null;
         const earlier = c.readings.map((r) => ({ id: r.id, atMs: ms(r.taken_at), tempC: r.temp_c, status: r.check_status }));
         const confirms = check && !check.explained ? confirmedBy(earlier, { atMs: when.getTime(), tempC: input.tempC }) : null;
         const status: ReadingCheckStatus = !check || check.explained ? 'explained' : confirms ? 'confirmed' : 'unexplained';

@@ -1,6 +1,4 @@
-import { newtonTemperatureC } from '../estimate/cooling';
-
-const MS_PER_HOUR = 3_600_000;
+import { cakeCoreTempC, type CakeThermal } from '../estimate/conduction';
 
 /**
  * How much faster than the estimate a cake may plausibly cool before a reading is doubted: the same band the
@@ -17,37 +15,26 @@ export const READINGS_AGREE_C = 5;
 
 export interface CoolingModel {
   printEndedAtMs: number;
-  /** When the chamber left the machine, if recorded. */
-  leftMachineAtMs: number | null;
-  /** The bed temperature the cake starts at, the surroundings, and the estimate's cooling constants (1/hour). */
-  startTempC: number;
-  ambientTempC: number;
-  inMachinePerHour: number;
-  outsidePerHour: number;
+  /** The cake as its estimate saw it, at the machine's cooling factor. */
+  cake: CakeThermal;
 }
 
 export type ReadingCheckStatus = 'explained' | 'unexplained' | 'confirmed' | 'accepted';
 
 /**
- * The coolest the cake's core can be at `atMs` by the cooling model, at its fastest: Newton's law
- * (Edwards & Penney, Differential Equations, §1.1) with both constants raised by FASTEST_COOLING_FACTOR,
- * in the machine until the chamber left it and outside after. A reading taken outside with no recorded
- * leaving time is given the benefit of the doubt: the chamber is taken to have left at the print's end.
+ * The coolest the cake's core can be at `atMs` by the cooling model at its fastest: the conduction model of the
+ * cake (series solution for a block, Incropera & DeWitt, transient conduction chapter) with its cooling factor
+ * raised by FASTEST_COOLING_FACTOR, from the bed temperature at the print's end. The model's surroundings are the
+ * room in and out of the machine alike, so where the reading was taken does not change the bound.
  */
-export function coolestCoreC(model: CoolingModel, atMs: number, place: 'machine' | 'outside'): number {
-  const A = model.ambientTempC;
-  const hours = Math.max(0, (atMs - model.printEndedAtMs) / MS_PER_HOUR);
-  const kIn = model.inMachinePerHour * FASTEST_COOLING_FACTOR;
-  const kOut = model.outsidePerHour * FASTEST_COOLING_FACTOR;
-  const leftMs = place === 'outside' ? Math.min(model.leftMachineAtMs ?? model.printEndedAtMs, atMs) : (model.leftMachineAtMs ?? Infinity);
-  const inHours = Math.min(hours, Math.max(0, (leftMs - model.printEndedAtMs) / MS_PER_HOUR));
-  const atLeave = newtonTemperatureC(model.startTempC, A, kIn, inHours);
-  return newtonTemperatureC(atLeave, A, kOut, hours - inHours);
+export function coolestCoreC(model: CoolingModel, atMs: number): number {
+  const fastest = { ...model.cake, coolingScale: (model.cake.coolingScale ?? 1) * FASTEST_COOLING_FACTOR };
+  return cakeCoreTempC(fastest, Math.max(0, (atMs - model.printEndedAtMs) / 1000));
 }
 
 /** Whether the model can explain a reading: it is no colder than the coolest the core can be, less the probe's tolerance. */
-export function checkReading(model: CoolingModel, reading: { atMs: number; tempC: number; place: 'machine' | 'outside' }): { explained: boolean; coolestC: number } {
-  const coolestC = coolestCoreC(model, reading.atMs, reading.place);
+export function checkReading(model: CoolingModel, reading: { atMs: number; tempC: number }): { explained: boolean; coolestC: number } {
+  const coolestC = coolestCoreC(model, reading.atMs);
   return { explained: reading.tempC >= coolestC - READING_TOLERANCE_C, coolestC };
 }
 

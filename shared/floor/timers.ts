@@ -1,6 +1,5 @@
-import { newtonHoursTo, newtonTemperatureC } from '../estimate/cooling';
-
-const MS_PER_HOUR = 3_600_000;
+import { coolingPoints, coolingScaleFromPoints } from '../calibration/readings';
+import { cakeCoreSecondsTo, cakeCoreTempC, type CakeThermal } from '../estimate/conduction';
 
 export interface PrintTimerInput {
   /** When the operator pressed Start (preheat begins), epoch ms. */
@@ -42,65 +41,24 @@ export interface TemperatureReading {
   place: ReadingPlace;
 }
 
-/** A Newton curve T(t) = A + (T_a - A) e^(-k (t - t_a)) through an anchor point. */
-export interface NewtonCurve {
-  anchorMs: number;
-  anchorTempC: number;
-  kPerHour: number;
-  /** True when k comes from the readings rather than the estimate. */
-  fitted: boolean;
-  readingsUsed: number;
-}
-
-/** Readings closer than this to the surroundings say little about k (ln of a small difference is noise). */
-const MIN_EXCESS_C = 0.5;
-/** Readings spanning less than this do not fit k (common practice: a thermometer's own settling time). */
-const MIN_FIT_SPAN_HOURS = 0.1;
-
 /**
- * Newton's law of cooling (Edwards & Penney, Differential Equations, §1.1) through the readings: the curve
- * passes through the latest reading; with two or more readings far enough apart, k is the least-squares slope
- * of ln(T - A) against time (the law makes it a straight line), otherwise the estimate's k.
+ * A run's own cooling pace from the readings taken so far: each reading against the time the conduction model of
+ * the cake takes to bring its core to that temperature (shared/calibration/readings.ts), fitted by least squares
+ * through the origin. Null when no reading says anything about the pace (none yet, or all too near the bed or
+ * the room). The fit is held within FIT_BAND of the machine's factor: beyond it a probe in the wrong place is
+ * likelier than a cake that cools that differently (the same band the machine's calibration is held to).
  */
-export function fitNewton(
-  readings: readonly TemperatureReading[],
-  ambientTempC: number,
-  fallback: { anchorMs: number; anchorTempC: number; kPerHour: number },
-): NewtonCurve {
-  const sorted = [...readings].sort((a, b) => a.atMs - b.atMs);
-  if (sorted.length === 0) return { ...fallback, fitted: false, readingsUsed: 0 };
-  const last = sorted[sorted.length - 1];
-  let kPerHour = fallback.kPerHour;
-  let fitted = false;
-  const usable = sorted.filter((r) => r.tempC - ambientTempC > MIN_EXCESS_C);
-  if (usable.length >= 2 && (usable[usable.length - 1].atMs - usable[0].atMs) / MS_PER_HOUR >= MIN_FIT_SPAN_HOURS) {
-    const t = usable.map((r) => (r.atMs - usable[0].atMs) / MS_PER_HOUR);
-    const y = usable.map((r) => Math.log(r.tempC - ambientTempC));
-    const n = t.length;
-    const tMean = t.reduce((s, v) => s + v, 0) / n;
-    const yMean = y.reduce((s, v) => s + v, 0) / n;
-    let sty = 0;
-    let stt = 0;
-    for (let i = 0; i < n; i++) {
-      sty += (t[i] - tMean) * (y[i] - yMean);
-      stt += (t[i] - tMean) * (t[i] - tMean);
-    }
-    const slope = stt > 0 ? sty / stt : 0;
-    // A warming or flat series is a misread or a reading taken beside a heater: keep the estimate's k.
-    if (-slope > 0) {
-      kPerHour = -slope;
-      fitted = true;
-    }
-  }
-  return { anchorMs: last.atMs, anchorTempC: last.tempC, kPerHour, fitted, readingsUsed: sorted.length };
-}
+export const FIT_BAND: readonly [number, number] = [0.5, 2];
 
-function curveTemp(c: NewtonCurve, ambientTempC: number, atMs: number): number {
-  return newtonTemperatureC(c.anchorTempC, ambientTempC, c.kPerHour, (atMs - c.anchorMs) / MS_PER_HOUR);
-}
-
-function curveReachesMs(c: NewtonCurve, ambientTempC: number, targetC: number): number {
-  return c.anchorMs + newtonHoursTo(c.anchorTempC, ambientTempC, targetC, c.kPerHour) * MS_PER_HOUR;
+export function runCoolingScale(cake: CakeThermal, printEndedAtMs: number, readings: readonly TemperatureReading[]): { scale: number; points: number } | null {
+  const points = coolingPoints(
+    cake,
+    readings.map((r) => ({ secondsAfterPrintEnd: (r.atMs - printEndedAtMs) / 1000, tempC: r.tempC })),
+  );
+  const scale = coolingScaleFromPoints(points);
+  if (scale === null || !(scale > 0)) return null;
+  const machine = cake.coolingScale ?? 1;
+  return { scale: Math.min(machine * FIT_BAND[1], Math.max(machine * FIT_BAND[0], scale)), points: points.length };
 }
 
 export interface CoolingTimerInput {
@@ -108,23 +66,28 @@ export interface CoolingTimerInput {
   /** When the chamber left the machine, if recorded; otherwise the first reading outside, or when it reached the removal temperature. */
   leftMachineAtMs: number | null;
   nowMs: number;
-  /** From the estimate: the bed temperature the cake starts at, the surroundings and the two thresholds. */
-  startTempC: number;
-  ambientTempC: number;
+  /** The cake as the estimate saw it (size, powder, surface coefficient, bed and room temperatures, the machine's cooling factor). */
+  cake: CakeThermal;
   removalTempC: number;
   handlingTempC: number;
-  /** The estimate's cooling constants for this cake, 1/hour. */
-  inMachinePerHour: number;
-  outsidePerHour: number;
+  /** Readings that count (the ones the model cannot explain are left out until confirmed or accepted). */
   readings: readonly TemperatureReading[];
 }
 
 export interface CoolingTimer {
   phase: 'in_machine' | 'outside' | 'cooled';
-  /** The curve's temperature now. */
+  /** The core's temperature now by the curve. */
   predictedTempC: number;
-  inMachine: NewtonCurve & { removalAtMs: number };
-  outside: NewtonCurve & { startMs: number; handlingAtMs: number };
+  /** The curve: the conduction model of the cake at `cake.coolingScale` (the readings' fit, or the machine's factor). */
+  cake: CakeThermal;
+  printEndedAtMs: number;
+  /** True when the readings set the pace; how many of them did. */
+  fitted: boolean;
+  readingsUsed: number;
+  removalAtMs: number;
+  /** When the chamber left (or is taken to leave) the machine. */
+  outsideStartMs: number;
+  handlingAtMs: number;
   remainingToRemovalSeconds: number;
   remainingToHandlingSeconds: number;
   /** The removal temperature is reached: by the timer or by a reading at or below it. */
@@ -136,37 +99,35 @@ export interface CoolingTimer {
 }
 
 /**
- * The two cooling timers of a run: in the machine from the print's end down to the removal temperature, then
- * outside down to the handling temperature, each a Newton curve from the estimate bent through the readings.
+ * The cooling timers of a run, on the core temperature of the conduction model of its cake (the same model as the
+ * estimate, shared/estimate/conduction.ts): in the machine from the print's end down to the removal temperature,
+ * then outside down to the handling temperature. The readings taken so far set the run's own pace.
  */
 export function coolingTimer(input: CoolingTimerInput): CoolingTimer {
-  const A = input.ambientTempC;
   const readings = [...input.readings].sort((a, b) => a.atMs - b.atMs);
-  const machineReadings = readings.filter((r) => r.place === 'machine');
-  const inMachineCurve = fitNewton(machineReadings, A, {
-    anchorMs: input.printEndedAtMs,
-    anchorTempC: input.startTempC,
-    kPerHour: input.inMachinePerHour,
-  });
-  const removalAtMs = curveReachesMs(inMachineCurve, A, input.removalTempC);
+  const own = runCoolingScale(input.cake, input.printEndedAtMs, readings);
+  const cake: CakeThermal = { ...input.cake, coolingScale: own?.scale ?? input.cake.coolingScale ?? 1 };
+  const at = (seconds: number) => input.printEndedAtMs + seconds * 1000;
+  const removalAtMs = at(cakeCoreSecondsTo(cake, input.removalTempC));
+  const handlingAtMs = at(cakeCoreSecondsTo(cake, input.handlingTempC));
   const firstOutside = readings.find((r) => r.place === 'outside');
   const outsideStartMs = input.leftMachineAtMs ?? firstOutside?.atMs ?? removalAtMs;
-  const outsideStartTempC = Math.min(curveTemp(inMachineCurve, A, outsideStartMs), Math.max(input.startTempC, inMachineCurve.anchorTempC));
-  const outsideReadings = readings.filter((r) => r.place === 'outside' && r.atMs >= outsideStartMs);
-  const outsideCurve = fitNewton(outsideReadings, A, { anchorMs: outsideStartMs, anchorTempC: outsideStartTempC, kPerHour: input.outsidePerHour });
-  const handlingAtMs = curveReachesMs(outsideCurve, A, input.handlingTempC);
 
   const lastReading = readings.length > 0 ? readings[readings.length - 1] : null;
   const coldReading = (limitC: number) => readings.some((r) => r.tempC <= limitC);
   const handlingReached = input.nowMs >= handlingAtMs || coldReading(input.handlingTempC);
   const removalReached = handlingReached || input.nowMs >= removalAtMs || coldReading(input.removalTempC);
   const outsideNow = input.nowMs >= outsideStartMs;
-  const predictedTempC = outsideNow ? curveTemp(outsideCurve, A, input.nowMs) : curveTemp(inMachineCurve, A, input.nowMs);
   return {
     phase: handlingReached ? 'cooled' : outsideNow ? 'outside' : 'in_machine',
-    predictedTempC,
-    inMachine: { ...inMachineCurve, removalAtMs },
-    outside: { ...outsideCurve, startMs: outsideStartMs, handlingAtMs },
+    predictedTempC: cakeCoreTempC(cake, Math.max(0, (input.nowMs - input.printEndedAtMs) / 1000)),
+    cake,
+    printEndedAtMs: input.printEndedAtMs,
+    fitted: own !== null,
+    readingsUsed: own?.points ?? 0,
+    removalAtMs,
+    outsideStartMs,
+    handlingAtMs,
     remainingToRemovalSeconds: removalReached ? 0 : Math.max(0, (removalAtMs - input.nowMs) / 1000),
     remainingToHandlingSeconds: handlingReached ? 0 : Math.max(0, (handlingAtMs - input.nowMs) / 1000),
     removalReached,

@@ -278,7 +278,9 @@ describe('a run at the machine', () => {
       const after = (await a.get(`${base}/run`)).body;
       expect(after).toMatchObject({ status: 'cooling', id: before.id, startedAt: before.startedAt, printEndedAt: before.printEndedAt });
       expect(after.readings.map((r: any) => r.tempC)).toEqual([170]);
-      expect(after.timers.cooling.inMachine.anchorTempC).toBe(170);
+      // The cooling curve is the same conduction model after the restart: the same removal and handling times.
+      expect(after.timers.cooling.removalAtMs).toBeCloseTo(before.timers.cooling.removalAtMs, 0);
+      expect(after.timers.cooling.handlingAtMs).toBeCloseTo(before.timers.cooling.handlingAtMs, 0);
     } finally {
       await again.close();
     }
