@@ -16,6 +16,7 @@ import { noStore, securityHeaders } from './http/middleware/headers';
 import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
 import { partRoutes } from './http/routes/parts';
+import { jobRoutes } from './http/routes/jobs';
 import { requestRoutes } from './http/routes/requests';
 import { planRoutes } from './http/routes/plans';
 import { runRoutes } from './http/routes/runs';
@@ -38,6 +39,8 @@ import { powderService } from './services/powder';
 import { sheetService } from './services/sheet';
 import { export3mfService } from './services/export3mf';
 import { createStorage } from './storage';
+import { meshJobsService, type MeshQueueSettings } from './jobs/meshJobs';
+import type PgBoss from 'pg-boss';
 import { checkedMachineProfileSchema, checkedMaterialProfileSchema, machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
 
 export type Services = ReturnType<typeof createServices>;
@@ -53,7 +56,10 @@ export type AppDeps = {
   log: (msg: string) => void;
 };
 
-export function createServices(db: Database, mailer: Mailer, config: Config) {
+/** What the mesh job queue needs beyond the database. */
+export type QueueDeps = { boss: PgBoss; pool: pg.Pool; events: LabEvents; settings: MeshQueueSettings; log: (msg: string) => void };
+
+export function createServices(db: Database, mailer: Mailer, config: Config, jobs: QueueDeps) {
   const labs = labsService(db);
   const auth = authService(db, labs);
   const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
@@ -61,6 +67,17 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material', checkedMaterialProfileSchema);
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
+  const meshJobs = meshJobsService({
+    db,
+    pool: jobs.pool,
+    boss: jobs.boss,
+    storage,
+    parts,
+    settings: jobs.settings,
+    publish: (e) => jobs.events.publish(e),
+    subscribe: (labId, fn) => jobs.events.subscribe(labId, fn),
+    log: jobs.log,
+  });
   // The queue is made below; a request asks it for its builds' ready dates only when read.
   const requests = requestsService(db, parts, { readyDates: (labId, machineId) => queue.readyDates(labId, machineId) });
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
@@ -72,7 +89,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config) {
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
-  return { labs, auth, invites, machines, materials, storage, parts, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
+  return { labs, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -130,6 +147,7 @@ export function createApp(deps: AppDeps) {
   api.use(authRoutes(deps, limiter));
   api.use(labRoutes(deps));
   api.use(partRoutes(deps));
+  api.use(jobRoutes(deps));
   api.use(requestRoutes(deps));
   api.use(planRoutes(deps.services));
   api.use(runRoutes(deps.services));

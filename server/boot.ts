@@ -6,10 +6,23 @@ import { createAuth } from './auth/sessions';
 import { createMailer } from './mail/mailer';
 import { createLabEvents } from './events/labEvents';
 import { createApp, createServices, type AppDeps } from './app';
+import { configureMeshPool, defaultMeshThreads, measureFile } from './mesh';
+import { startBoss } from './jobs/boss';
+import { startMeshWorker, type MeshWorker } from './jobs/worker';
+import type { MeshQueueSettings } from './jobs/meshJobs';
+
+/** The job queue's settings from the configuration. */
+export function meshQueueSettings(config: Config): MeshQueueSettings {
+  return { queue: config.jobQueue, labConcurrency: config.meshLabConcurrency, expireSeconds: config.meshJobExpireSeconds, retryLimit: 2 };
+}
 
 export type Running = AppDeps & { app: ReturnType<typeof createApp>; close(): Promise<void> };
 
-/** Everything the app needs, wired once: database, sessions, mail, services. */
+/**
+ * Everything the app needs, wired once: database, sessions, mail, the job
+ * queue, services; and, unless MESH_WORKER is off, a worker serving the mesh
+ * queue from this process.
+ */
 export async function boot(config: Config, log: (msg: string) => void = console.log): Promise<Running> {
   const db = connectDatabase(config.databaseUrl);
   const pool = new pg.Pool({ connectionString: config.databaseUrl, max: 5, connectionTimeoutMillis: 5_000 });
@@ -18,14 +31,23 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   pool.on('error', () => {});
   const auth = createAuth(pool);
   const mailer = await createMailer(config);
-  const services = createServices(db, mailer, config);
   const events = createLabEvents(pool, config.databaseUrl, log);
+  const threads = config.meshThreads ?? defaultMeshThreads();
+  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs });
+  const settings = meshQueueSettings(config);
+  const boss = await startBoss(config.databaseUrl, settings, log);
+  const services = createServices(db, mailer, config, { boss, pool, events, settings, log });
+  let worker: MeshWorker | null = null;
+  if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, threads, measure: measureFile, settings, log });
   const deps: AppDeps = { config, db, pool, auth, mailer, events, services, log };
   const app = createApp(deps);
   return {
     ...deps,
     app,
     async close() {
+      await worker?.stop();
+      // Files this process was measuring go back to the queue for another worker.
+      await boss.stop({ graceful: true, timeout: 5_000, wait: true }).catch(() => {});
       await events.close();
       await mailer.close();
       await pool.end();

@@ -36,6 +36,20 @@ const envSchema = z.object({
   MAX_3MF_EXPANDED_MB: z.coerce.number().positive().default(1024),
   /** Triangles one uploaded file may hold once a 3MF's components are expanded. */
   MAX_MESH_TRIANGLES: z.coerce.number().int().positive().default(5_000_000),
+  /** Whether this server process also measures uploads from the job queue (`off`: only `npm run worker` processes do). */
+  MESH_WORKER: z.enum(['on', 'off']).default('on'),
+  /** Worker threads measuring meshes in this process (default: half the cores, 1 to 4). */
+  MESH_THREADS: z.coerce.number().int().min(1).max(64).optional(),
+  /** Files of one lab measured at once, across every worker. */
+  MESH_LAB_CONCURRENCY: z.coerce.number().int().min(1).max(64).default(2),
+  /** Time limit for measuring one file. */
+  MESH_TIMEOUT_S: z.coerce.number().int().min(1).default(120),
+  /** A file whose worker went silent (killed, machine lost) this long is handed to another worker; more than MESH_TIMEOUT_S. */
+  MESH_JOB_EXPIRE_S: z.coerce.number().int().min(2).optional(),
+  /** The job queue's name: servers and workers of one installation use the same. */
+  JOB_QUEUE: z.string().regex(/^[A-Za-z0-9_.-]{1,60}$/, 'letters, digits, "_", "-" and "." only').default('mesh-measure'),
+  /** How long an upload waits for its files to be measured before answering 202 with the job to follow. */
+  UPLOAD_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(5000),
   /** Where uploads are streamed while they are measured; removed after each request. */
   UPLOAD_TMP_DIR: z.string().optional(),
   /** Where mesh files live: in PostgreSQL (default) or in S3-compatible object storage. */
@@ -79,6 +93,13 @@ export type Config = {
   max3mfExpandedBytes: number;
   maxMeshTriangles: number;
   storage: StorageConfig;
+  meshWorker: boolean;
+  meshThreads?: number;
+  meshLabConcurrency: number;
+  meshTimeoutMs: number;
+  meshJobExpireSeconds: number;
+  jobQueue: string;
+  uploadWaitMs: number;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -92,6 +113,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   if (e.STORAGE_DRIVER === 's3' && !!e.S3_ACCESS_KEY_ID !== !!e.S3_SECRET_ACCESS_KEY) {
     throw new Error('configuration: S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY go together: set both or neither');
   }
+  const expire = e.MESH_JOB_EXPIRE_S ?? e.MESH_TIMEOUT_S + 60;
+  if (expire <= e.MESH_TIMEOUT_S) throw new Error('configuration: MESH_JOB_EXPIRE_S: must be longer than MESH_TIMEOUT_S, or a slow file would be measured twice');
   const storage: StorageConfig =
     e.STORAGE_DRIVER === 's3'
       ? {
@@ -123,5 +146,12 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     max3mfExpandedBytes: Math.round(e.MAX_3MF_EXPANDED_MB * 1024 * 1024),
     maxMeshTriangles: e.MAX_MESH_TRIANGLES,
     storage,
+    meshWorker: e.MESH_WORKER === 'on',
+    meshThreads: e.MESH_THREADS,
+    meshLabConcurrency: e.MESH_LAB_CONCURRENCY,
+    meshTimeoutMs: e.MESH_TIMEOUT_S * 1000,
+    meshJobExpireSeconds: expire,
+    jobQueue: e.JOB_QUEUE,
+    uploadWaitMs: e.UPLOAD_WAIT_MS,
   };
 }

@@ -16,6 +16,7 @@ export const TOPIC_KEYS: Record<string, readonly string[]> = {
   members: ['members', 'home'],
   invites: ['invites'],
   powder: ['powder', 'home'],
+  jobs: ['jobs'],
   audit: ['audit'],
 };
 

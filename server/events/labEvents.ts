@@ -30,6 +30,8 @@ export const LAB_TOPICS = {
   materials: null,
   members: null,
   powder: null,
+  /** Uploads measured on the job queue: a file started or finished. */
+  jobs: null,
   invites: ['lead'],
   audit: ['lead'],
 } as const satisfies Record<string, readonly Role[] | null>;

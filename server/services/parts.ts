@@ -36,6 +36,9 @@ export type ImportInput = {
   split: boolean;
 };
 
+/** A file measured without problems. */
+export type MeasuredFile = Extract<FileMeasureResult, { ok: true }>;
+
 export type ImportResult = { ok: true; parts: PartView[] } | { ok: false; rejected: RejectedFile; serverError?: unknown };
 
 const FILE_CONTENT_TYPES = { stl: 'model/stl', obj: 'model/obj', '3mf': 'model/3mf' } as const;
@@ -230,6 +233,85 @@ export function partsService(db: Database, deps: PartsDeps) {
     return best as [number, number, number] | undefined;
   }
 
+  /** The options a file is measured with, or why it is refused before any work (not a mesh format). */
+  async function measureOptions(
+    labId: string,
+    filename: string,
+    unit: 'mm' | 'cm' | 'inch',
+    split: boolean,
+    transaction?: Transaction,
+  ): Promise<{ ok: true; file: string; options: MeasureOptions } | { ok: false; rejected: RejectedFile }> {
+    const file = plainFileName(filename);
+    if (!formatFromFilename(file)) {
+      return {
+        ok: false,
+        rejected: {
+          file,
+          code: 'unsupported-extension',
+          message: `${quoteName(file)} is not a supported mesh file: upload STL (.stl), OBJ (.obj) or 3MF (.3mf).`,
+        },
+      };
+    }
+    const chamber = await largestChamberMm(labId, transaction);
+    return {
+      ok: true,
+      file,
+      options: {
+        filename: file,
+        unit,
+        splitObjects: split,
+        largestChamberMm: chamber,
+        maxUncompressedBytes: deps.max3mfExpandedBytes,
+        maxTriangles: deps.maxMeshTriangles,
+      },
+    };
+  }
+
+  /** The file's bytes (or one reference more) and one row a measured part, in `transaction`. */
+  async function storeMeasured(
+    input: { labId: string; userId: string | null; file: string; key: string; source: FileSource; unit: 'mm' | 'cm' | 'inch'; split: boolean },
+    measured: MeasuredFile,
+    transaction: Transaction,
+  ): Promise<{ ids: string[]; created: boolean }> {
+    const format = measured.format;
+    const { created } = await storage.put(input.key, input.source, { transaction, refs: measured.parts.length });
+    const ids: string[] = [];
+    for (const [index, part] of measured.parts.entries()) {
+      const m = part.metrics;
+      const row = await models.Part.create(
+        {
+          labId: input.labId,
+          name: part.name.slice(0, 200) || 'part',
+          tags: [],
+          fileKey: input.key,
+          fileName: input.file,
+          fileFormat: format,
+          // A 3MF carries its own unit, which the reader has applied.
+          fileUnit: format === '3mf' ? 'mm' : input.unit,
+          fileSplit: input.split,
+          filePartIndex: index,
+          uploadedSizeMm: m.sizeMm,
+          rotationDeg: [0, 0, 0],
+          sizeXMm: m.sizeMm[0],
+          sizeYMm: m.sizeMm[1],
+          sizeZMm: m.sizeMm[2],
+          volumeMm3: m.volumeMm3,
+          areaMm2: m.areaMm2,
+          triangles: m.triangles,
+          watertight: m.watertight,
+          metrics: m,
+          warnings: part.warnings,
+          orientation: 'any',
+          defaultMaterialId: null,
+          uploadedBy: input.userId,
+        },
+        { transaction },
+      );
+      ids.push(row.get('id') as string);
+    }
+    return { ids, created };
+  }
+
   async function withTransaction<T>(outer: Transaction | undefined, fn: (t: Transaction) => Promise<T>): Promise<T> {
     return outer ? fn(outer) : sequelize.transaction(fn);
   }
@@ -248,73 +330,24 @@ export function partsService(db: Database, deps: PartsDeps) {
      * while storing rolls everything of this file back.
      */
     async importFile(input: ImportInput, outer?: Transaction): Promise<ImportResult> {
-      const file = plainFileName(input.filename);
-      if (!formatFromFilename(file)) {
-        return {
-          ok: false,
-          rejected: {
-            file,
-            code: 'unsupported-extension',
-            message: `${quoteName(file)} is not a supported mesh file: upload STL (.stl), OBJ (.obj) or 3MF (.3mf).`,
-          },
-        };
-      }
-      const chamber = await largestChamberMm(input.labId, outer);
-      const options: MeasureOptions = {
-        filename: file,
-        unit: input.unit,
-        splitObjects: input.split,
-        largestChamberMm: chamber,
-        maxUncompressedBytes: deps.max3mfExpandedBytes,
-        maxTriangles: deps.maxMeshTriangles,
-      };
+      const checked = await measureOptions(input.labId, input.filename, input.unit, input.split, outer);
+      if (!checked.ok) return checked;
+      const { file, options } = checked;
       const measured = await measure('path' in input.source ? input.source.path : input.source.bytes, options);
       if (!measured.ok) {
         const [first] = measured.problems;
         return { ok: false, rejected: { file, code: first.code, message: measured.problems.map((p) => p.message).join(' ') } };
       }
-      const format = measured.format;
       const key = 'path' in input.source ? await sha256File(input.source.path) : sha256Bytes(input.source.bytes);
       let created = false;
       try {
-        const ids = await storeSlots(() => withTransaction(outer, async (transaction) => {
-          created = (await storage.put(key, input.source, { transaction, refs: measured.parts.length })).created;
-          const ids: string[] = [];
-          for (const [index, part] of measured.parts.entries()) {
-            const m = part.metrics;
-            const row = await models.Part.create(
-              {
-                labId: input.labId,
-                name: part.name.slice(0, 200) || 'part',
-                tags: [],
-                fileKey: key,
-                fileName: file,
-                fileFormat: format,
-                // A 3MF carries its own unit, which the reader has applied.
-                fileUnit: format === '3mf' ? 'mm' : input.unit,
-                fileSplit: input.split,
-                filePartIndex: index,
-                uploadedSizeMm: m.sizeMm,
-                rotationDeg: [0, 0, 0],
-                sizeXMm: m.sizeMm[0],
-                sizeYMm: m.sizeMm[1],
-                sizeZMm: m.sizeMm[2],
-                volumeMm3: m.volumeMm3,
-                areaMm2: m.areaMm2,
-                triangles: m.triangles,
-                watertight: m.watertight,
-                metrics: m,
-                warnings: part.warnings,
-                orientation: 'any',
-                defaultMaterialId: null,
-                uploadedBy: input.userId,
-              },
-              { transaction },
-            );
-            ids.push(row.get('id') as string);
-          }
-          return ids;
-        }));
+        const ids = await storeSlots(() =>
+          withTransaction(outer, async (transaction) => {
+            const stored = await storeMeasured({ ...input, file, key }, measured, transaction);
+            created = stored.created;
+            return stored.ids;
+          }),
+        );
         return { ok: true, parts: await rowsById(input.labId, ids, outer) };
       } catch (err) {
         if (created && !outer) await storage.discard(key);
@@ -325,6 +358,24 @@ export function partsService(db: Database, deps: PartsDeps) {
           serverError: err,
         };
       }
+    },
+
+    measureOptions: (labId: string, filename: string, unit: 'mm' | 'cm' | 'inch', split: boolean) => measureOptions(labId, filename, unit, split),
+
+    /** Stores a measured file (its bytes, or a reference more when they are stored already) and its parts, in the caller's transaction. */
+    async storeMeasured(
+      input: { labId: string; userId: string | null; file: string; key: string; bytes: Uint8Array; unit: 'mm' | 'cm' | 'inch'; split: boolean },
+      measured: MeasuredFile,
+      transaction: Transaction,
+    ): Promise<string[]> {
+      return (await storeMeasured({ ...input, source: { bytes: input.bytes } }, measured, transaction)).ids;
+    },
+
+    /** The parts with these ids, in this order; parts deleted since are left out. */
+    async byIds(labId: string, ids: string[]): Promise<PartView[]> {
+      const rows = await rowsById(labId, ids);
+      const byId = new Map(rows.map((r) => [r.id, r]));
+      return ids.flatMap((id) => byId.get(id) ?? []);
     },
 
     async list(labId: string, query: unknown): Promise<PartListResponse> {

@@ -3,3 +3,4 @@ export * from './parts';
 export * from './requests';
 export * from './plans';
 export * from './profiles';
+export * from './jobs';

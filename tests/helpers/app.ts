@@ -5,13 +5,20 @@ import { boot, type Running } from '../../server/boot';
 
 export const ORIGIN = 'http://127.0.0.1:8080';
 
+let apps = 0;
+
 /**
  * The real app on the test database (`npm test` makes it), with a fresh
  * mail catcher. The rate limit is high unless a test asks for a low one.
+ * Each app serves a job queue of its own with its in-process worker (so a
+ * test's injected failures meet only its own uploads), and an upload waits
+ * for its measuring as long as a loaded machine may need (201, not 202),
+ * unless the test asks for a short wait.
  */
 export async function startTestApp(overrides: Partial<Config> = {}): Promise<Running> {
   if (!process.env.DATABASE_URL) throw new Error('DATABASE_URL is not set: run the suite with `npm test`');
-  const config = { ...loadConfig({ ...process.env, NODE_ENV: 'test', APP_URL: ORIGIN }), authRateLimit: 10_000, ...overrides };
+  const base = loadConfig({ ...process.env, NODE_ENV: 'test', APP_URL: ORIGIN });
+  const config = { ...base, authRateLimit: 10_000, jobQueue: `mesh-test-${process.pid}-${++apps}`, uploadWaitMs: 120_000, ...overrides };
   return boot(config, () => {});
 }
 

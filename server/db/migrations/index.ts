@@ -7,6 +7,7 @@ import * as m0005 from './0005-file-key-locks';
 import * as m0006 from './0006-powder';
 import * as m0007 from './0007-estimate-profile-fields';
 import * as m0008 from './0008-floor-integrity';
+import * as m0009 from './0009-mesh-jobs';
 
 export type Migration = {
   name: string;
@@ -24,4 +25,5 @@ export const migrations: Migration[] = [
   { name: '0006-powder', ...m0006 },
   { name: '0007-estimate-profile-fields', ...m0007 },
   { name: '0008-floor-integrity', ...m0008 },
+  { name: '0009-mesh-jobs', ...m0009 },
 ];

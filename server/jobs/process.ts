@@ -1,0 +1,48 @@
+import pg from 'pg';
+import { QueryTypes } from 'sequelize';
+import type { Config } from '../config';
+import { connectDatabase } from '../db';
+import { createStorage } from '../storage';
+import { partsService } from '../services/parts';
+import { createLabEvents } from '../events/labEvents';
+import { configureMeshPool, closeMeshPool, defaultMeshThreads, measureFile } from '../mesh';
+import { startBoss } from './boss';
+import { meshJobsService, type MeshQueueSettings } from './meshJobs';
+import { startMeshWorker } from './worker';
+
+/**
+ * A worker process without a web server: the database, the file store, the
+ * part library's storing half and the queue, nothing else. It needs the
+ * same DATABASE_URL and file store settings as the servers.
+ */
+export async function runWorkerProcess(config: Config, settings: MeshQueueSettings, log: (msg: string) => void) {
+  const db = connectDatabase(config.databaseUrl);
+  const [{ ok }] = await db.sequelize.query<{ ok: boolean }>("SELECT to_regclass('mesh_job_files') IS NOT NULL AS ok", { type: QueryTypes.SELECT });
+  if (!ok) {
+    await db.close();
+    throw new Error('the database has no job tables yet: start a server once (npm start), which applies the migrations');
+  }
+  const pool = new pg.Pool({ connectionString: config.databaseUrl, max: 3, connectionTimeoutMillis: 5_000 });
+  pool.on('error', () => {});
+  const events = createLabEvents(pool, config.databaseUrl, log);
+  const threads = config.meshThreads ?? defaultMeshThreads();
+  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs });
+  const storage = createStorage(db, config.storage);
+  const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
+  const boss = await startBoss(config.databaseUrl, settings, log);
+  const jobs = meshJobsService({ db, pool, boss, storage, parts, settings, publish: (e) => events.publish(e), log });
+  const worker = await startMeshWorker({ boss, jobs, threads, measure: measureFile, settings, log });
+  return {
+    name: worker.name,
+    threads,
+    async stop() {
+      await worker.stop();
+      // Waits for the files being measured (up to their time limit); what is left goes back to the queue.
+      await boss.stop({ graceful: true, timeout: config.meshTimeoutMs, wait: true }).catch(() => {});
+      await closeMeshPool();
+      await events.close();
+      await pool.end();
+      await db.close();
+    },
+  };
+}

@@ -1,0 +1,56 @@
+import { hostname } from 'node:os';
+import type PgBoss from 'pg-boss';
+import { deadLetterQueue, type Measure, type MeshJobs, type MeshQueueSettings } from './meshJobs';
+
+export type MeshWorker = { name: string; stop(): Promise<void> };
+
+/** How often a worker looks for labs whose files wait with room in their limit (a lost hand-over). */
+const SWEEP_MS = 10_000;
+
+/**
+ * Serves the mesh queue from this process: one poller a thread of the mesh
+ * pool, so a process never takes more files than it can measure at once.
+ * Several of these (in `npm start` and in `npm run worker` processes, on
+ * this machine or others) share the queue through the database.
+ */
+export async function startMeshWorker(opts: {
+  boss: PgBoss;
+  jobs: MeshJobs;
+  /** Files this process measures at once (the size of its thread pool). */
+  threads: number;
+  measure: Measure;
+  settings: MeshQueueSettings;
+  log?: (msg: string) => void;
+}): Promise<MeshWorker> {
+  const { boss, jobs, measure, settings } = opts;
+  const log = opts.log ?? (() => {});
+  const name = `${hostname()}:${process.pid}`;
+  const ids: string[] = [];
+  for (let i = 0; i < opts.threads; i++) {
+    ids.push(
+      await boss.work<{ fileId: string }>(settings.queue, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+        await jobs.processFile(job.data.fileId, name, measure);
+      }),
+    );
+  }
+  ids.push(
+    await boss.work<{ fileId: string }>(deadLetterQueue(settings.queue), { batchSize: 1, pollingIntervalSeconds: 2 }, async ([job]) => {
+      await jobs.giveUp(job.data.fileId);
+    }),
+  );
+  jobs.addLocalWorkers(ids);
+  const sweep = setInterval(() => {
+    jobs.dispatchAll().catch((err: Error) => log(`mesh worker: sweep failed: ${err.message}`));
+  }, SWEEP_MS);
+  sweep.unref();
+  // Files left waiting by a process that stopped between an upload and its hand-over.
+  await jobs.dispatchAll().catch((err: Error) => log(`mesh worker: first sweep failed: ${err.message}`));
+  return {
+    name,
+    async stop() {
+      clearInterval(sweep);
+      await boss.offWork(settings.queue).catch(() => {});
+      await boss.offWork(deadLetterQueue(settings.queue)).catch(() => {});
+    },
+  };
+}
