@@ -11,7 +11,7 @@ import { enoughPowder, printTimer } from '../../shared/floor';
 import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import type { RunView } from '../../shared/schemas/runs';
 import { Cautions } from './Cautions';
-import { PowderBeforeStart, PowderRecovery } from './PowderSection';
+import { PowderBeforeStart, PowderRecovery, usePowderLoad } from './PowderSection';
 import { CheckRow, CountStepper, FloorButton, FloorInput } from './controls';
 import { clockOffsetMs, formatClock, formatDuration, liveCooling, useNow } from './live';
 
@@ -154,6 +154,8 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
   if (!Number.isFinite(reusedKg)) blockers.push('enter the reused powder loaded');
   else if (!enoughPowder(reusedKg, needReused)) blockers.push(`load ${kgText(needReused - reusedKg)} more reused powder`);
   if (!run.estimate) blockers.push('the plan needs a chosen layout');
+  const powder = usePowderLoad(run.planId, freshKg, reusedKg);
+  if (powder.check.problems.length > 0) blockers.push(`the stock of ${run.material.name} does not cover this load (see Powder above)`);
 
   return (
     <View style={styles.stage} testID="stage-queued">
@@ -163,7 +165,7 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
         <Big label="Print, estimated" value={run.estimate ? formatDuration(run.estimate.printSeconds) : '–'} />
       </View>
       <CalibrationLine machineId={run.machine.id} />
-      <PowderBeforeStart planId={run.planId} onUse={(f, r) => { setFresh(String(f)); setReused(String(r)); }} />
+      <PowderBeforeStart load={powder} canAct={canAct} onUse={(f, r) => { setFresh(String(f)); setReused(String(r)); }} />
       <CheckRow label="The build chamber is in place" checked={checks.chamberInPlace} onToggle={() => setChecks((c) => ({ ...c, chamberInPlace: !c.chamberInPlace }))} testID="check-chamberInPlace" />
       <CheckRow label="The optical window is clean" checked={checks.opticalWindowClean} onToggle={() => setChecks((c) => ({ ...c, opticalWindowClean: !c.opticalWindowClean }))} testID="check-opticalWindowClean" />
       <FloorInput
@@ -198,7 +200,7 @@ function BeforePrinting({ run, advance, err, canAct }: StageProps) {
           question={`Start "${run.planName}" on ${run.machine.name} in ${run.material.name}?`}
           detail="The laser and heaters start; a started build can only be finished or aborted."
           confirmLabel={`Start "${run.planName}"`}
-          onConfirm={() => advance.mutate({ to: 'printing', checklist: { chamberInPlace: true, opticalWindowClean: true }, freshPowderKg: freshKg, reusedPowderKg: reusedKg })}
+          onConfirm={() => advance.mutate({ to: 'printing', checklist: { chamberInPlace: true, opticalWindowClean: true }, freshPowderKg: freshKg, reusedPowderKg: reusedKg, ...(powder.lots ? { lots: powder.lots } : {}) })}
           testID="run-start"
         />
       </StageFoot>

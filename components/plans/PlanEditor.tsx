@@ -54,6 +54,7 @@ import { buildInstance, defaultOptions, EMPTY_PLACEMENTS, instanceAbove, mergeLa
 import { LayoutsTable, rowsOf, type LayoutRow } from './LayoutsTable';
 import { LinesPane, type EditorLine } from './LinesPane';
 import { NumbersPane } from './NumbersPane';
+import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { PlanHistory } from './PlanHistory';
 import { ShortcutHelp } from './ShortcutHelp';
 import { useChamberMeshes } from './useChamberMeshes';
@@ -663,6 +664,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       note={showingWorking ? 'Estimated here; the server estimates it again when the layout is kept.' : undefined}
     />
   );
+  const powderPane = <PlanPowderPanel planId={planId} freshKg={shownNumbers?.freshKg} reusedKg={shownNumbers?.reusedKg} layoutLabel={shownLabel} />;
   const layoutsPane = (
     <View style={styles.box} testID="plan-layouts">
       <View style={styles.boxHead}>
@@ -770,6 +772,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
           <View style={styles.centre}>{buildPane}</View>
           <ScrollView style={styles.right} contentContainerStyle={styles.paneContent}>
             {numbersPane}
+            {powderPane}
             {layoutsPane}
             {historyPane}
           </ScrollView>
@@ -799,6 +802,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         {tab === 'lines' ? linesPane : null}
         {tab === 'build' ? buildPane : null}
         {tab === 'numbers' ? numbersPane : null}
+        {tab === 'numbers' ? powderPane : null}
         {tab === 'layouts' ? (
           <>
             {layoutsPane}

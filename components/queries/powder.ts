@@ -1,47 +1,16 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { z } from 'zod';
 import { api } from '../api/client';
-import type {
-  LotDetailView,
-  LotView,
-  MaterialDetailView,
-  MeltFlowView,
-  MovementView,
-  PlanPowderView,
-  PowderOverview,
-  RequestLotsView,
+import {
+  lotDetailView,
+  lotView,
+  materialDetailView,
+  meltFlowView,
+  movementView,
+  planPowderView,
+  powderOverview,
+  requestLotsView,
 } from '../../shared/schemas/powder';
 import type { PowderPolicy } from '../../shared/powder';
-
-const forecast = z.looseObject({ points: z.array(z.looseObject({ at: z.string(), stockKg: z.number() })), shortage: z.boolean(), neededKg: z.number() });
-const stock = z.looseObject({
-  material: z.looseObject({ id: z.string(), name: z.string() }),
-  policy: z.looseObject({ maxMeanAgeBuilds: z.number(), reorderLevelKg: z.number() }),
-  freshKg: z.number(),
-  reusedKg: z.number(),
-  reusedMeanAgeBuilds: z.number(),
-  reuseBlocked: z.boolean(),
-  forecast,
-});
-const overviewSchema = z.looseObject({ materials: z.array(stock), now: z.string() }) as unknown as z.ZodType<PowderOverview>;
-const detailSchema = stock.extend({
-  lots: z.array(z.looseObject({ id: z.string(), code: z.string(), onHandKg: z.number() })),
-  movements: z.array(z.looseObject({ id: z.string(), kind: z.string(), deltaKg: z.number(), at: z.string() })),
-  checks: z.array(z.looseObject({ id: z.string(), mvrCm3Per10Min: z.number(), passed: z.boolean() })),
-  history: z.array(z.looseObject({ at: z.string(), freshKg: z.number(), reusedKg: z.number() })),
-}) as unknown as z.ZodType<MaterialDetailView>;
-const lotSchema = z.looseObject({ id: z.string(), code: z.string(), onHandKg: z.number() }) as unknown as z.ZodType<LotView>;
-const lotDetailSchema = z.looseObject({ lot: lotSchema, builds: z.array(z.looseObject({ runId: z.string() })), movements: z.array(z.looseObject({ id: z.string() })) }) as unknown as z.ZodType<LotDetailView>;
-const movementSchema = z.looseObject({ id: z.string(), kind: z.string(), deltaKg: z.number() }) as unknown as z.ZodType<MovementView>;
-const checkSchema = z.looseObject({ id: z.string(), mvrCm3Per10Min: z.number(), passed: z.boolean() }) as unknown as z.ZodType<MeltFlowView>;
-const planSchema = z.looseObject({
-  plan: z.looseObject({ id: z.string(), name: z.string() }),
-  material: z.looseObject({ id: z.string(), name: z.string() }),
-  tracked: z.boolean(),
-  stock: z.looseObject({ freshKg: z.number(), reusedKg: z.number() }),
-  warnings: z.array(z.looseObject({ code: z.string(), message: z.string() })),
-}) as unknown as z.ZodType<PlanPowderView>;
-const requestLotsSchema = z.looseObject({ request: z.looseObject({ id: z.string() }), builds: z.array(z.looseObject({ runId: z.string() })) }) as unknown as z.ZodType<RequestLotsView>;
 
 export const powderKeys = {
   all: (labId: string) => ['labs', labId, 'powder'] as const,
@@ -52,13 +21,13 @@ export const powderKeys = {
 };
 
 export function usePowderQuery(labId: string) {
-  return useQuery({ queryKey: powderKeys.all(labId), queryFn: ({ signal }) => api(`/labs/${labId}/powder`, { schema: overviewSchema, signal }), staleTime: 30_000 });
+  return useQuery({ queryKey: powderKeys.all(labId), queryFn: ({ signal }) => api(`/labs/${labId}/powder`, { schema: powderOverview, signal }), staleTime: 30_000 });
 }
 
 export function usePowderMaterialQuery(labId: string, materialId: string | undefined) {
   return useQuery({
     queryKey: powderKeys.material(labId, materialId ?? ''),
-    queryFn: ({ signal }) => api(`/labs/${labId}/powder/materials/${materialId}`, { schema: detailSchema, signal }),
+    queryFn: ({ signal }) => api(`/labs/${labId}/powder/materials/${materialId}`, { schema: materialDetailView, signal }),
     enabled: !!materialId,
   });
 }
@@ -66,7 +35,7 @@ export function usePowderMaterialQuery(labId: string, materialId: string | undef
 export function usePowderLotQuery(labId: string, lotId: string | undefined) {
   return useQuery({
     queryKey: powderKeys.lot(labId, lotId ?? ''),
-    queryFn: ({ signal }) => api(`/labs/${labId}/powder/lots/${lotId}`, { schema: lotDetailSchema, signal }),
+    queryFn: ({ signal }) => api(`/labs/${labId}/powder/lots/${lotId}`, { schema: lotDetailView, signal }),
     enabled: !!lotId,
   });
 }
@@ -74,13 +43,13 @@ export function usePowderLotQuery(labId: string, lotId: string | undefined) {
 export function usePlanPowderQuery(labId: string, planId: string, opts: { refetchMs?: number } = {}) {
   return useQuery({
     queryKey: powderKeys.plan(labId, planId),
-    queryFn: ({ signal }) => api(`/labs/${labId}/powder/plans/${planId}`, { schema: planSchema, signal }),
+    queryFn: ({ signal }) => api(`/labs/${labId}/powder/plans/${planId}`, { schema: planPowderView, signal }),
     refetchInterval: opts.refetchMs,
   });
 }
 
 export function useRequestLotsQuery(labId: string, requestId: string) {
-  return useQuery({ queryKey: powderKeys.request(labId, requestId), queryFn: ({ signal }) => api(`/labs/${labId}/powder/requests/${requestId}`, { schema: requestLotsSchema, signal }) });
+  return useQuery({ queryKey: powderKeys.request(labId, requestId), queryFn: ({ signal }) => api(`/labs/${labId}/powder/requests/${requestId}`, { schema: requestLotsView, signal }) });
 }
 
 /** Every powder answer may have changed after a movement: refetch them all. */
@@ -93,7 +62,7 @@ export function useReceiveLotMutation(labId: string) {
   const refresh = useRefresh(labId);
   return useMutation({
     mutationFn: (body: { materialId: string; code: string; kg: number; receivedOn: string; makerLot?: string; expiresOn?: string | null; note?: string }) =>
-      api(`/labs/${labId}/powder/lots`, { method: 'POST', body, schema: lotSchema }),
+      api(`/labs/${labId}/powder/lots`, { method: 'POST', body, schema: lotView }),
     onSuccess: refresh,
   });
 }
@@ -102,7 +71,7 @@ export function useMovementMutation(labId: string) {
   const refresh = useRefresh(labId);
   return useMutation({
     mutationFn: (body: { kind: 'discarded' | 'adjusted'; materialId: string; lotId: string | null; kg?: number; countedKg?: number; reason: string }) =>
-      api(`/labs/${labId}/powder/movements`, { method: 'POST', body, schema: movementSchema }),
+      api(`/labs/${labId}/powder/movements`, { method: 'POST', body, schema: movementView }),
     onSuccess: refresh,
   });
 }
@@ -111,7 +80,7 @@ export function useMeltFlowMutation(labId: string) {
   const refresh = useRefresh(labId);
   return useMutation({
     mutationFn: (body: { materialId: string; mvrCm3Per10Min: number; testTempC?: number; testLoadKg?: number; note?: string }) =>
-      api(`/labs/${labId}/powder/checks`, { method: 'POST', body, schema: checkSchema }),
+      api(`/labs/${labId}/powder/checks`, { method: 'POST', body, schema: meltFlowView }),
     onSuccess: refresh,
   });
 }
@@ -119,7 +88,7 @@ export function useMeltFlowMutation(labId: string) {
 export function useReleaseMutation(labId: string) {
   const refresh = useRefresh(labId);
   return useMutation({
-    mutationFn: ({ checkId, reason }: { checkId: string; reason: string }) => api(`/labs/${labId}/powder/checks/${checkId}/release`, { method: 'POST', body: { reason }, schema: checkSchema }),
+    mutationFn: ({ checkId, reason }: { checkId: string; reason: string }) => api(`/labs/${labId}/powder/checks/${checkId}/release`, { method: 'POST', body: { reason }, schema: meltFlowView }),
     onSuccess: refresh,
   });
 }
@@ -127,7 +96,7 @@ export function useReleaseMutation(labId: string) {
 export function usePolicyMutation(labId: string, materialId: string) {
   const refresh = useRefresh(labId);
   return useMutation({
-    mutationFn: (body: PowderPolicy) => api(`/labs/${labId}/powder/materials/${materialId}/policy`, { method: 'PUT', body, schema: detailSchema }),
+    mutationFn: (body: PowderPolicy) => api(`/labs/${labId}/powder/materials/${materialId}/policy`, { method: 'PUT', body, schema: materialDetailView }),
     onSuccess: refresh,
   });
 }
@@ -136,7 +105,7 @@ export function useRecoveryMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: { recoveredKg: number; discardedKg?: number; reason?: string }) =>
-      api(`/labs/${labId}/powder/plans/${planId}/recovery`, { method: 'POST', body, schema: planSchema }),
+      api(`/labs/${labId}/powder/plans/${planId}/recovery`, { method: 'POST', body, schema: planPowderView }),
     onSuccess: (view) => {
       qc.setQueryData(powderKeys.plan(labId, planId), view);
       return qc.invalidateQueries({ queryKey: powderKeys.all(labId) });

@@ -4,6 +4,7 @@ import { StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
 import { NumbersPane } from '../plans/NumbersPane';
+import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { PlanHistory } from '../plans/PlanHistory';
 import { numbersFromEstimate } from '../plans/estimate';
 import { STATUS_TONES } from '../plans/format';
@@ -125,6 +126,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
         cutLayer={cutMm == null ? null : Math.round(cutMm / layerHeightMm)}
         note={calibrationNote(calibration)}
       />
+      <PlanPowderPanel planId={plan.id} freshKg={numbers?.freshKg} reusedKg={numbers?.reusedKg} layoutLabel={chosen ? `Chosen layout: ${chosen.label}` : 'No chosen layout'} />
       <Card title="History" testID="review-history">
         <PlanHistory events={plan.events} />
       </Card>

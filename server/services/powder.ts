@@ -14,6 +14,7 @@ import {
   fillMeanAge,
   forecastStock,
   KG_EPS,
+  oldestFirst,
   proposeDraws,
   recoverIntoPool,
   reuseBlocked,
@@ -254,7 +255,8 @@ export function powderService(db: Database, deps: PowderDeps) {
     const m = await materialOf(d.labId, d.materialId, t);
     await repo.lockMaterial(d.labId, d.materialId, t);
     const pool = await repo.pool(d.materialId, t);
-    // A lab that keeps no powder ledger for this material starts builds as before.
+    // A material is tracked from its first movement (a lot received or a count): before that the lab
+    // keeps its stock elsewhere, the start is not checked against the shelf and records no draw.
     if (!pool.tracked && !d.lots?.length) return;
     const lots = await repo.lots(d.materialId, t);
     let draws: Array<{ lotId: string; code: string; kg: number }>;
@@ -281,7 +283,8 @@ export function powderService(db: Database, deps: PowderDeps) {
     } else {
       const p = proposeDraws(lots, d.freshKg, today(d.at.getTime()));
       if (p.shortfallKg > 0) {
-        const onHand = lots.reduce((a, l) => a + Math.max(0, l.onHandKg), 0);
+        // The proposal took every usable lot to its end: what it drew is all the usable fresh powder.
+        const onHand = p.draws.reduce((a, x) => a + x.kg, 0);
         throw conflict(
           'powder_short',
           `Not enough fresh ${m.name}: this build loads ${kgText(d.freshKg)} and the usable lots hold ${kgText(onHand)}` +
@@ -474,10 +477,17 @@ export function powderService(db: Database, deps: PowderDeps) {
         };
       }
       const proposal = planned && !row.run_id ? proposeDraws(lots, planned.freshKg, today(nowMs)) : null;
+      // The other queued builds of this material, at their predicted starts: what they take of the fresh stock first.
+      const ahead = row.run_id ? [] : ((await demands(labId, nowMs)).get(m.id) ?? []).filter((d) => d.planId !== row.plan_id);
       return {
         plan: { id: row.plan_id, name: row.plan_name, status: row.status },
         material: m,
         tracked: pool.tracked,
+        policy,
+        lots: oldestFirst(lots.filter((l) => l.onHandKg > KG_EPS)).map((l) => ({ id: l.id, code: l.code, receivedOn: l.receivedOn, expiresOn: l.expiresOn, onHandKg: l.onHandKg })),
+        lastCheck: meltState(last),
+        queuedFreshKg: clean(ahead.reduce((a, d) => a + d.freshKg, 0)),
+        queuedPlans: ahead.length,
         planned,
         stock: { freshKg: freshOnHand, reusedKg: pool.massKg, reusedMeanAgeBuilds: pool.meanAgeBuilds, reuseBlocked: blocked },
         proposal,

@@ -3,3 +3,4 @@ export * from './stock';
 export * from './propose';
 export * from './forecast';
 export * from './policy';
+export * from './load';

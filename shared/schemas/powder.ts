@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import type { BuildWarning, DrawProposal, MovementKind, PowderPolicy } from '../powder';
+import { MOVEMENT_KINDS } from '../powder/stock';
 
 const uuid = z.uuid('must be an id');
 /** Kilograms: a number (never a string), not negative, at most a plausible shelf. */
@@ -68,136 +68,182 @@ export const lotDrawsSchema = z
 export type LotDrawsInput = z.infer<typeof lotDrawsSchema>;
 
 // ---- views ----
+// The answers of the powder routes. The server's functions return these
+// types and the screens parse every answer with the same schemas.
 
-export interface Person {
-  id: string;
-  name: string;
-}
+const person = z.object({ id: z.string(), name: z.string() });
+export type Person = z.infer<typeof person>;
+const named = z.object({ id: z.string(), name: z.string() });
+const planRef = z.object({ id: z.string(), name: z.string(), status: z.string() });
+const lotRef = z.object({ id: z.string(), code: z.string() });
+const time = z.string();
 
-export interface MeltFlowView {
-  id: string;
-  mvrCm3Per10Min: number;
-  testTempC: number | null;
-  testLoadKg: number | null;
-  thresholdCm3Per10Min: number | null;
-  passed: boolean;
-  note: string;
-  measuredAt: string;
-  measuredBy: Person | null;
-  releasedAt: string | null;
-  releasedBy: Person | null;
-  releaseReason: string | null;
-}
+export const powderPolicyView = z.object({
+  maxMeanAgeBuilds: z.number(),
+  minRefreshRatio: z.number(),
+  minMvrCm3Per10Min: z.number().nullable(),
+  reorderLevelKg: z.number(),
+  leadTimeDays: z.number(),
+});
 
-export interface LotView {
-  id: string;
-  materialId: string;
-  code: string;
-  makerLot: string;
-  receivedOn: string;
-  expiresOn: string | null;
-  note: string;
-  receivedKg: number;
-  onHandKg: number;
-}
+export const meltFlowView = z.object({
+  id: z.string(),
+  mvrCm3Per10Min: z.number(),
+  testTempC: z.number().nullable(),
+  testLoadKg: z.number().nullable(),
+  thresholdCm3Per10Min: z.number().nullable(),
+  passed: z.boolean(),
+  note: z.string(),
+  measuredAt: time,
+  measuredBy: person.nullable(),
+  releasedAt: time.nullable(),
+  releasedBy: person.nullable(),
+  releaseReason: z.string().nullable(),
+});
+export type MeltFlowView = z.infer<typeof meltFlowView>;
 
-export interface MovementView {
-  id: string;
-  kind: MovementKind;
-  deltaKg: number;
-  lot: { id: string; code: string } | null;
-  plan: { id: string; name: string } | null;
-  countedKg: number | null;
-  cakeDiscardedKg: number | null;
-  reason: string;
-  poolAgeAfter: number | null;
-  at: string;
-  by: Person | null;
-}
+export const lotView = z.object({
+  id: z.string(),
+  materialId: z.string(),
+  code: z.string(),
+  makerLot: z.string(),
+  receivedOn: z.string(),
+  expiresOn: z.string().nullable(),
+  note: z.string(),
+  receivedKg: z.number(),
+  onHandKg: z.number(),
+});
+export type LotView = z.infer<typeof lotView>;
 
-export interface ForecastView {
-  points: Array<{ at: string; stockKg: number; planId: string | null; planName: string | null }>;
-  neededKg: number;
-  belowReorderAt: string | null;
-  runsOutAt: string | null;
-  runsOutPlan: { id: string; name: string } | null;
-  shortage: boolean;
-}
+export const movementView = z.object({
+  id: z.string(),
+  kind: z.enum(MOVEMENT_KINDS),
+  deltaKg: z.number(),
+  lot: lotRef.nullable(),
+  plan: named.nullable(),
+  countedKg: z.number().nullable(),
+  cakeDiscardedKg: z.number().nullable(),
+  reason: z.string(),
+  poolAgeAfter: z.number().nullable(),
+  at: time,
+  by: person.nullable(),
+});
+export type MovementView = z.infer<typeof movementView>;
 
-export interface MaterialStockView {
-  material: { id: string; name: string };
-  policy: PowderPolicy;
-  /** Whether any movement was ever recorded: stock is checked at the machine only once the lab keeps it. */
-  tracked: boolean;
-  freshKg: number;
-  reusedKg: number;
-  reusedMeanAgeBuilds: number;
-  lotCount: number;
-  lastCheck: MeltFlowView | null;
-  reuseBlocked: boolean;
-  forecast: ForecastView;
-}
+export const forecastView = z.object({
+  points: z.array(z.object({ at: time, stockKg: z.number(), planId: z.string().nullable(), planName: z.string().nullable() })),
+  neededKg: z.number(),
+  belowReorderAt: time.nullable(),
+  runsOutAt: time.nullable(),
+  runsOutPlan: named.nullable(),
+  shortage: z.boolean(),
+});
+export type ForecastView = z.infer<typeof forecastView>;
 
-export interface PowderOverview {
-  materials: MaterialStockView[];
-  now: string;
-}
+export const materialStockView = z.object({
+  material: named,
+  policy: powderPolicyView,
+  /**
+   * Whether the lab keeps this material's stock: true from its first
+   * movement (a lot received or a count). An untracked material's builds
+   * start without a stock check, and the screens say so.
+   */
+  tracked: z.boolean(),
+  freshKg: z.number(),
+  reusedKg: z.number(),
+  reusedMeanAgeBuilds: z.number(),
+  lotCount: z.number(),
+  lastCheck: meltFlowView.nullable(),
+  reuseBlocked: z.boolean(),
+  forecast: forecastView,
+});
+export type MaterialStockView = z.infer<typeof materialStockView>;
 
-export interface MaterialDetailView extends MaterialStockView {
-  lots: LotView[];
-  movements: MovementView[];
-  checks: MeltFlowView[];
-  history: Array<{ at: string; freshKg: number; reusedKg: number }>;
-}
+export const powderOverview = z.object({ materials: z.array(materialStockView), now: time });
+export type PowderOverview = z.infer<typeof powderOverview>;
 
-export interface TraceBuild {
-  plan: { id: string; name: string; status: string };
-  runId: string;
-  startedAt: string;
-  kg: number;
-  requests: Array<{ id: string; title: string }>;
-}
+export const materialDetailView = materialStockView.extend({
+  lots: z.array(lotView),
+  movements: z.array(movementView),
+  checks: z.array(meltFlowView),
+  history: z.array(z.object({ at: time, freshKg: z.number(), reusedKg: z.number() })),
+});
+export type MaterialDetailView = z.infer<typeof materialDetailView>;
 
-export interface LotDetailView {
-  lot: LotView;
-  material: { id: string; name: string };
-  movements: MovementView[];
-  builds: TraceBuild[];
-}
+export const traceBuild = z.object({
+  plan: planRef,
+  runId: z.string(),
+  startedAt: time,
+  kg: z.number(),
+  requests: z.array(z.object({ id: z.string(), title: z.string() })),
+});
+export type TraceBuild = z.infer<typeof traceBuild>;
 
-export interface PlanPowderView {
-  plan: { id: string; name: string; status: string };
-  material: { id: string; name: string };
-  tracked: boolean;
+export const lotDetailView = z.object({
+  lot: lotView,
+  material: named,
+  movements: z.array(movementView),
+  builds: z.array(traceBuild),
+});
+export type LotDetailView = z.infer<typeof lotDetailView>;
+
+const draw = z.object({ lotId: z.string(), code: z.string(), kg: z.number() });
+export const drawProposalView = z.object({ draws: z.array(draw), shortfallKg: z.number(), skippedExpired: z.array(z.string()) });
+
+export const buildWarningView = z.discriminatedUnion('code', [
+  z.object({ code: z.literal('age'), message: z.string(), fillAgeBuilds: z.number(), maxMeanAgeBuilds: z.number() }),
+  z.object({ code: z.literal('refresh'), message: z.string(), refreshRatio: z.number(), minRefreshRatio: z.number() }),
+  z.object({ code: z.literal('melt_flow'), message: z.string() }),
+]);
+
+export const planPowderView = z.object({
+  plan: planRef,
+  material: named,
+  /** See materialStockView.tracked: an untracked material's start is not checked against the shelf. */
+  tracked: z.boolean(),
+  policy: powderPolicyView,
   /** From the chosen layout's estimate; null without one. */
-  planned: { freshKg: number; reusedKg: number } | null;
-  stock: { freshKg: number; reusedKg: number; reusedMeanAgeBuilds: number; reuseBlocked: boolean };
-  proposal: DrawProposal | null;
+  planned: z.object({ freshKg: z.number(), reusedKg: z.number() }).nullable(),
+  stock: z.object({ freshKg: z.number(), reusedKg: z.number(), reusedMeanAgeBuilds: z.number(), reuseBlocked: z.boolean() }),
+  /** The material's lots with powder left, oldest first: the floor card proposes and corrects draws from these. */
+  lots: z.array(lotView.pick({ id: true, code: true, receivedOn: true, expiresOn: true, onHandKg: true })),
+  /** The latest melt-flow check, for warnings the screens work out for other amounts. */
+  lastCheck: z.object({ mvrCm3Per10Min: z.number(), passed: z.boolean(), released: z.boolean() }).nullable(),
+  /** Fresh powder the lab's other queued builds of this material take, and how many they are. */
+  queuedFreshKg: z.number(),
+  queuedPlans: z.number(),
+  proposal: drawProposalView.nullable(),
   /** Reused powder the pool lacks for the plan. */
-  reusedShortfallKg: number;
-  warnings: BuildWarning[];
+  reusedShortfallKg: z.number(),
+  warnings: z.array(buildWarningView),
   /** After this build: the fresh and reused stock left. */
-  after: { freshKg: number; reusedKg: number } | null;
+  after: z.object({ freshKg: z.number(), reusedKg: z.number() }).nullable(),
   /** Once started: what was loaded, from which lots, and what came back. */
-  run: {
-    id: string;
-    draws: Array<{ lotId: string; code: string; kg: number }>;
-    reusedKg: number;
-    fillAgeBuilds: number | null;
-    recovery: { recoveredKg: number; discardedKg: number; at: string; by: Person | null } | null;
-    /** Lots whose powder may be in the reused share: every lot that went into a build recovered before this one was loaded. */
-    reusedFromLots: Array<{ id: string; code: string }>;
-  } | null;
-}
+  run: z
+    .object({
+      id: z.string(),
+      draws: z.array(draw),
+      reusedKg: z.number(),
+      fillAgeBuilds: z.number().nullable(),
+      recovery: z.object({ recoveredKg: z.number(), discardedKg: z.number(), at: time, by: person.nullable() }).nullable(),
+      /** Lots whose powder may be in the reused share: every lot that went into a build recovered before this one was loaded. */
+      reusedFromLots: z.array(lotRef),
+    })
+    .nullable(),
+});
+export type PlanPowderView = z.infer<typeof planPowderView>;
 
-export interface RequestLotsView {
-  request: { id: string; title: string };
-  builds: Array<{
-    plan: { id: string; name: string; status: string };
-    runId: string;
-    startedAt: string;
-    freshLots: Array<{ id: string; code: string; materialName: string; kg: number }>;
-    reusedKg: number;
-    reusedFromLots: Array<{ id: string; code: string }>;
-  }>;
-}
+export const requestLotsView = z.object({
+  request: z.object({ id: z.string(), title: z.string() }),
+  builds: z.array(
+    z.object({
+      plan: planRef,
+      runId: z.string(),
+      startedAt: time,
+      freshLots: z.array(z.object({ id: z.string(), code: z.string(), materialName: z.string(), kg: z.number() })),
+      reusedKg: z.number(),
+      reusedFromLots: z.array(lotRef),
+    }),
+  ),
+});
+export type RequestLotsView = z.infer<typeof requestLotsView>;

@@ -1,6 +1,7 @@
 import { addMember, startTestApp, signUp } from '../helpers/app';
 import type { Running } from '../../server/boot';
 import { labWithCrew, queuedPlan, startBody } from './runs-fixtures';
+import { lotDetailView, materialDetailView, planPowderView, powderOverview, requestLotsView } from '../../shared/schemas/powder';
 
 // Each test builds a lab, plans and layouts through the API.
 jest.setTimeout(60_000);
@@ -20,8 +21,9 @@ const url = (lab: Lab, path = '') => `/api/labs/${lab.labId}/powder${path}`;
 async function receive(lab: Lab, body: Record<string, unknown>) {
   return lab.agent.post(url(lab, '/lots')).send({ materialId: lab.materialId, receivedOn: '2026-10-01', ...body });
 }
+/** The material's stock, checked against the schema the screens parse it with. */
 async function stock(lab: Lab) {
-  return (await lab.agent.get(url(lab, `/materials/${lab.materialId}`))).body;
+  return materialDetailView.parse((await lab.agent.get(url(lab, `/materials/${lab.materialId}`))).body);
 }
 /** A plan through print and cooling to breakout (a reading below the handling temperature lets it out). */
 async function toBreakout(lab: Lab, base: string, start: Record<string, unknown>) {
@@ -113,6 +115,52 @@ describe('receiving lots and moving powder at the shelf', () => {
 });
 
 describe('powder at the machine', () => {
+  test('a material with no stock records is not tracked: its builds start unchecked and draw nothing, until the first lot is received', async () => {
+    const lab = await labWithCrew(running, 'pw-untracked');
+    const first = await queuedPlan(running, lab, [GEAR], { name: 'Before the ledger' });
+    const view = planPowderView.parse((await lab.designer.agent.get(url(lab, `/plans/${first.planId}`))).body);
+    expect(view).toMatchObject({ tracked: false, stock: { freshKg: 0, reusedKg: 0 }, lots: [] });
+    expect(powderOverview.parse((await lab.agent.get(url(lab))).body).materials[0]).toMatchObject({ tracked: false, freshKg: 0 });
+    const started = await lab.operator.agent.post(`${first.base}/run/advance`).send(startBody(first.estimate));
+    expect(started.status).toBe(200);
+    expect((await stock(lab)).movements).toEqual([]);
+
+    // One lot received: from now on every start is checked against the shelf.
+    await receive(lab, { code: 'FIRST', kg: 0.1 });
+    const second = await queuedPlan(running, lab, [GEAR], { name: 'After the ledger' });
+    const body = startBody(second.estimate);
+    const tracked = planPowderView.parse((await lab.designer.agent.get(url(lab, `/plans/${second.planId}`))).body);
+    expect(tracked).toMatchObject({ tracked: true, lots: [{ code: 'FIRST', onHandKg: 0.1 }] });
+    expect(tracked.proposal!.shortfallKg).toBeCloseTo(second.estimate.powder.freshPowderKg - 0.1, 3);
+    const refused = await lab.operator.agent.post(`${second.base}/run/advance`).send(body);
+    expect(refused.status).toBe(409);
+    expect(refused.body.error).toMatchObject({ code: 'powder_short', field: 'freshPowderKg', material: 'Powder of pw-untracked', kind: 'fresh' });
+    expect(refused.body.error.message).toContain('the usable lots hold 0.1 kg');
+    expect(refused.body.error.shortfallKg).toBeCloseTo(body.freshPowderKg - 0.1, 3);
+    expect((await stock(lab)).freshKg).toBe(0.1);
+  });
+
+  test('planners see what a plan takes, what the queue ahead takes, and the material\'s rules it would break', async () => {
+    const lab = await labWithCrew(running, 'pw-planner');
+    const ahead = await queuedPlan(running, lab, [GEAR], { name: 'Ahead' });
+    const mine = await queuedPlan(running, lab, [GEAR], { name: 'Mine' });
+    await receive(lab, { code: 'P-1', kg: 100 });
+    const policy = { maxMeanAgeBuilds: 0.1, minRefreshRatio: 0.9, minMvrCm3Per10Min: null, reorderLevelKg: 20, leadTimeDays: 7 };
+    expect((await lab.agent.put(url(lab, `/materials/${lab.materialId}/policy`)).send(policy)).status).toBe(200);
+    // A first count of the reused bin: 50 kg, counted as 0 builds old (the empty pool's age).
+    await lab.agent.post(url(lab, '/movements')).send({ kind: 'adjusted', materialId: lab.materialId, countedKg: 50, reason: 'count' });
+    const v = planPowderView.parse((await lab.designer.agent.get(url(lab, `/plans/${mine.planId}`))).body);
+    expect(v.policy).toEqual(policy);
+    expect(v.queuedPlans).toBe(1);
+    expect(v.queuedFreshKg).toBeCloseTo(ahead.estimate.powder.freshPowderKg, 3);
+    expect(v.after!.freshKg).toBeCloseTo(100 - mine.estimate.powder.freshPowderKg, 3);
+    // The estimate's fill is mostly reused powder (its refresh is below 90 %): the refresh rule warns; the pool is 0 builds old, so the age rule does not.
+    const ratio = mine.estimate.powder.freshPowderKg / (mine.estimate.powder.freshPowderKg + mine.estimate.powder.reusedPowderKg);
+    expect(ratio).toBeLessThan(0.9);
+    expect(v.warnings.map((w) => w.code)).toEqual(['refresh']);
+  });
+
+
   test('a start draws its fresh powder from the oldest lots and its reused powder from the pool; a start the stock cannot cover is refused naming the material and the shortfall', async () => {
     const lab = await labWithCrew(running, 'pw-draw');
     const { planId, base, estimate } = await queuedPlan(running, lab, [GEAR]);
@@ -140,12 +188,12 @@ describe('powder at the machine', () => {
     await lab.agent.post(url(lab, '/movements')).send({ kind: 'adjusted', materialId: lab.materialId, countedKg: body.reusedPowderKg + 5, reason: 'found a second bin' });
     const ok = await lab.operator.agent.post(`${base}/run/advance`).send(body);
     expect(ok.status).toBe(200);
-    const after = (await lab.agent.get(url(lab, `/plans/${planId}`))).body;
-    expect(after.run.draws).toEqual([
+    const after = planPowderView.parse((await lab.agent.get(url(lab, `/plans/${planId}`))).body);
+    expect(after.run!.draws).toEqual([
       { lotId: old.id, code: 'OLD', kg: fresh / 2 },
       { lotId: expect.any(String), code: 'NEW', kg: expect.closeTo(fresh / 2, 9) },
     ]);
-    expect(after.run.reusedKg).toBeCloseTo(body.reusedPowderKg, 9);
+    expect(after.run!.reusedKg).toBeCloseTo(body.reusedPowderKg, 9);
     const s = await stock(lab);
     expect(s.freshKg).toBeCloseTo(50 + fresh / 2 - fresh, 9);
     expect(s.reusedKg).toBeCloseTo(5, 9);
@@ -260,7 +308,7 @@ describe('melt-flow checks', () => {
     expect(started.status).toBe(200);
     const passed = await lab.operator.agent.post(url(lab, '/checks')).send({ materialId: lab.materialId, mvrCm3Per10Min: 24 });
     expect(passed.body.passed).toBe(true);
-    expect((await stock(lab)).lastCheck.mvrCm3Per10Min).toBe(24);
+    expect((await stock(lab)).lastCheck?.mvrCm3Per10Min).toBe(24);
   });
 });
 
@@ -273,8 +321,8 @@ describe('forecast, reorder and traceability', () => {
     const policy = { maxMeanAgeBuilds: 3, minRefreshRatio: 0.3, minMvrCm3Per10Min: null, reorderLevelKg: 5, leadTimeDays: 14 };
     await lab.agent.put(url(lab, `/materials/${lab.materialId}/policy`)).send(policy);
     const before = running.mailer.caught!.length;
-    const first = (await lab.agent.get(url(lab))).body;
-    const m = first.materials.find((x: any) => x.material.id === lab.materialId);
+    const first = powderOverview.parse((await lab.agent.get(url(lab))).body);
+    const m = first.materials.find((x) => x.material.id === lab.materialId)!;
     expect(m.forecast.shortage).toBe(true);
     expect(m.forecast.neededKg).toBeCloseTo(fresh, 3); // to the gram
     expect(m.forecast.points.map((p: any) => p.stockKg)).toEqual([fresh + 2, 2].map((x) => Math.round(x * 1000) / 1000));
@@ -304,12 +352,12 @@ describe('forecast, reorder and traceability', () => {
     const started = await lab.operator.agent.post(`${second.base}/run/advance`).send(startBody(second.estimate));
     expect(started.status).toBe(200);
 
-    const lotView = (await lab.designer.agent.get(url(lab, `/lots/${lot.id}`))).body;
+    const lotView = lotDetailView.parse((await lab.designer.agent.get(url(lab, `/lots/${lot.id}`))).body);
     expect(lotView.builds.map((b: any) => b.plan.name)).toEqual(['Build one']);
     expect(lotView.builds[0].requests).toEqual([{ id: first.request.requestId, title: expect.any(String) }]);
     expect(lotView.builds[0].kg).toBeCloseTo(body.freshPowderKg, 9);
 
-    const req = (await lab.designer.agent.get(url(lab, `/requests/${second.request.requestId}`))).body;
+    const req = requestLotsView.parse((await lab.designer.agent.get(url(lab, `/requests/${second.request.requestId}`))).body);
     expect(req.builds).toHaveLength(1);
     expect(req.builds[0].freshLots.map((l: any) => l.code)).toEqual(['T-0']);
     expect(req.builds[0].reusedFromLots.map((l: any) => l.code)).toEqual(['T-1']);
