@@ -127,7 +127,8 @@ describe('powder at the machine', () => {
 
     // One lot received: from now on every start is checked against the shelf.
     await receive(lab, { code: 'FIRST', kg: 0.1 });
-    const second = await queuedPlan(running, lab, [GEAR], { name: 'After the ledger' });
+    const twin = await lab.agent.post(`/api/labs/${lab.labId}/machines`).send({ ...lab.machine, name: 'Second machine' });
+    const second = await queuedPlan(running, { ...lab, machineId: twin.body.id }, [GEAR], { name: 'After the ledger' });
     const body = startBody(second.estimate);
     const tracked = planPowderView.parse((await lab.designer.agent.get(url(lab, `/plans/${second.planId}`))).body);
     expect(tracked).toMatchObject({ tracked: true, lots: [{ code: 'FIRST', onHandKg: 0.1 }] });
