@@ -54,8 +54,8 @@ export function NumbersPane({ numbers, title, bedAreaMm2, cutLayer, note }: { nu
         <AreaPerLayerChart areaPerLayerMm2={n.areaPerLayerMm2} layerHeightMm={n.layerHeightMm} jumps={n.areaJumps} bedAreaMm2={bedAreaMm2} cutLayer={cutLayer} heightPx={110} />
       </View>
       <Text variant="caption" color="inkFaint">
-        Estimates: cooling times follow Newton's law of cooling with the machine's constants; handle the cake only at the handling temperature and follow the
-        machine maker's instructions and your lab's local rules for hot powder.
+        Estimates: cooling times follow heat conduction to the core of the powder cake, with the material's and machine's figures and the machine's calibration;
+        handle the cake only at the handling temperature and follow the machine maker's instructions and your lab's local rules for hot powder.
       </Text>
     </View>
   );
