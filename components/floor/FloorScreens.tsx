@@ -1,26 +1,16 @@
+import { useQueries } from '@tanstack/react-query';
 import { useEffect, useMemo, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { useMachinesQuery } from '../queries/machines';
-import { useMachineRunsQuery } from '../queries/runs';
+import { FLOOR_STATUSES, runQueryOptions, useMachineRunsQuery } from '../queries/runs';
 import { colors, radius, spacing } from '../theme';
 import { Badge, EmptyState, ErrorState, Icon, LinkPressable, LoadingState, Screen, Text } from '../ui';
-import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
+import { floorOrder, UNDER_WAY } from '../../shared/floor';
+import { STATUS_LABELS } from '../../shared/plans/status';
 import type { PlanListItem } from '../../shared/schemas/plans';
 import { FloorButton } from './controls';
 import { RunCard } from './RunCard';
-
-/** Under way first, the furthest along first: the card that needs hands soonest is on top. */
-const UNDER_WAY: readonly PlanStatus[] = ['breakout', 'finishing', 'cooling', 'printing'];
-
-/** The runs of a machine the floor shows: every one under way, then the next queued build. */
-export function floorRuns(plans: readonly PlanListItem[]): PlanListItem[] {
-  const going = plans.filter((p) => UNDER_WAY.includes(p.status)).sort((a, b) => UNDER_WAY.indexOf(a.status) - UNDER_WAY.indexOf(b.status));
-  const next = plans
-    .filter((p) => p.status === 'queued')
-    .sort((a, b) => (a.queuePosition ?? Number.MAX_SAFE_INTEGER) - (b.queuePosition ?? Number.MAX_SAFE_INTEGER))[0];
-  return next ? [...going, next] : going;
-}
 
 /** Pick a machine: each shows what is on it now. */
 export function FloorPicker() {
@@ -53,7 +43,9 @@ export function FloorPicker() {
 function MachineRow({ id, name }: { id: string; name: string }) {
   const lab = useLab();
   const runs = useMachineRunsQuery(lab.id, id);
-  const shown = runs.data ? floorRuns(runs.data as PlanListItem[]) : [];
+  // The summary names the build furthest along (finishing before breakout before cooling before printing).
+  const stageOf = new Map((runs.data ?? []).map((p) => [p.id, p.status]));
+  const shown = runs.data ? floorOrder(runs.data as PlanListItem[], (planId) => -UNDER_WAY.indexOf(stageOf.get(planId)!)) : [];
   const first = shown[0];
   return (
     <LinkPressable
@@ -80,7 +72,18 @@ export function MachineFloor({ machineId }: { machineId: string }) {
   const machines = useMachinesQuery(lab.id);
   const runs = useMachineRunsQuery(lab.id, machineId);
   const machine = machines.data?.find((m) => m.id === machineId);
-  const shownNow = useMemo(() => (runs.data ? floorRuns(runs.data as PlanListItem[]).map((p) => p.id) : []), [runs.data]);
+  // The cards in the queue's order (docs/api.md, "The floor"): builds under way in the order they started, then the
+  // next queued one. The start times come from the runs the cards read anyway (one request each, shared).
+  const listed = useMemo(() => (runs.data ? (runs.data as PlanListItem[]).filter((p) => FLOOR_STATUSES.includes(p.status)) : []), [runs.data]);
+  const runViews = useQueries({ queries: listed.filter((p) => p.status !== 'queued').map((p) => runQueryOptions(lab.id, p.id)) });
+  const startedKey = runViews.map((q) => `${q.data?.planId}:${q.data?.startedAt}`).join(',');
+  const startsKnown = runViews.every((q) => q.data || q.isError);
+  const shownNow = useMemo(() => {
+    const started = new Map(runViews.filter((q) => q.data).map((q) => [q.data!.planId, q.data!.startedAt ? Date.parse(q.data!.startedAt) : null]));
+    return floorOrder(listed, (id) => started.get(id)).map((p) => p.id);
+    // startedKey stands for runViews' start times; the array itself is new on every render.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [listed, startedKey]);
   // A run that leaves the list (done, aborted, or taken by another phone) keeps its card until it is cleared, so its end is seen.
   const [kept, setKept] = useState<string[]>([]);
   const [cleared, setCleared] = useState<string[]>([]);
@@ -101,7 +104,7 @@ export function MachineFloor({ machineId }: { machineId: string }) {
   );
   return (
     <Screen title={machine?.name ?? 'Machine'} subtitle="The current and next run at this machine." above={back} testID="screen-floor-machine" maxWidth={640}>
-      {runs.isPending ? (
+      {runs.isPending || !startsKnown ? (
         <LoadingState label="Loading runs…" />
       ) : runs.isError && !runs.data ? (
         <ErrorState error={runs.error} onRetry={() => runs.refetch()} />

@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
-import { useAddReadingMutation, useAdvanceRunMutation, useCalibrationQuery, useRunQuery } from '../queries/runs';
+import { useAcceptReadingMutation, useAddReadingMutation, useAdvanceRunMutation, useCalibrationQuery, useRunQuery } from '../queries/runs';
 import { calibrationNote } from '../review/calibration';
 import { BuildFileLinks } from '../review/BuildFileLinks';
 import { colors, radius, spacing } from '../theme';
@@ -349,12 +349,9 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
           testID="reading-submit"
         />
         {latest.length > 0 ? (
-          <View testID="reading-list" style={{ gap: spacing.xxs }}>
+          <View testID="reading-list" style={{ gap: spacing.sm }}>
             {latest.map((r) => (
-              <Text key={r.id} variant="label" color="inkMuted">
-                {formatClock(Date.parse(r.at), now)} · {r.tempC} °C {r.where === 'machine' ? 'in the machine' : 'outside'}
-                {r.by ? ` · ${r.by.name}` : ''}
-              </Text>
+              <ReadingRow key={r.id} run={run} reading={r} now={now} canAccept={lab.isLead} />
             ))}
           </View>
         ) : null}
@@ -376,6 +373,69 @@ function Cooling({ run, offsetMs, advance, err, canAct }: StageProps) {
           testID="run-breakout"
         />
       </StageFoot>
+    </View>
+  );
+}
+
+type Reading = RunView['readings'][number];
+
+/**
+ * One reading with what the cooling model made of it. A reading colder than the cake can be by then counts for
+ * nothing until a second reading agrees or a lead accepts it: the lead's button asks for the reason and names the
+ * build and the reading before it is recorded.
+ */
+function ReadingRow({ run, reading: r, now, canAccept }: { run: RunView; reading: Reading; now: number; canAccept: boolean }) {
+  const lab = useLab();
+  const accept = useAcceptReadingMutation(lab.id, run.planId);
+  const [open, setOpen] = useState(false);
+  const [reason, setReason] = useState('');
+  const acceptErr = stepError(accept.error);
+  const line = `${formatClock(Date.parse(r.at), now)} · ${r.tempC} °C ${r.where === 'machine' ? 'in the machine' : 'outside'}${r.by ? ` · ${r.by.name}` : ''}`;
+  if (r.check.status !== 'unexplained') {
+    const note =
+      r.check.status === 'confirmed'
+        ? ' · confirmed by a second reading'
+        : r.check.status === 'accepted' && r.check.accepted
+          ? ` · accepted by ${r.check.accepted.by.name}: ${r.check.accepted.reason}`
+          : '';
+    return (
+      <Text variant="label" color="inkMuted" testID={`reading-${r.id}`}>
+        {line}
+        {note}
+      </Text>
+    );
+  }
+  return (
+    <View style={styles.doubted} testID={`reading-${r.id}`}>
+      <Text variant="label" color="ink">
+        {line}
+      </Text>
+      <Text variant="label" color="danger" testID={`reading-${r.id}-doubt`}>
+        {`Colder than the cake can be by then (its core is at least ${Math.round(r.check.coolestC ?? 0)} °C by the cooling model), so it does not count yet. ` +
+          `Take a second reading at least 10 minutes after it${canAccept ? ', or accept it with a reason' : ', or ask a lead to accept it'}.`}
+      </Text>
+      {canAccept && !open ? <FloorButton label="Accept this reading…" tone="secondary" onPress={() => setOpen(true)} testID={`reading-${r.id}-accept`} /> : null}
+      {canAccept && open ? (
+        <View style={styles.acceptForm} testID={`reading-${r.id}-accept-form`}>
+          <FloorInput label="Why is this reading right?" value={reason} onChangeText={setReason} keyboard="default" multiline error={acceptErr?.field === 'reason' ? acceptErr.message : null} testID={`reading-${r.id}-reason`} />
+          <Text variant="bodyStrong" testID={`reading-${r.id}-question`}>
+            {`Accept ${r.tempC} °C for "${run.planName}"? It then counts like any other reading and may unlock breakout; your name and reason are kept with it.`}
+          </Text>
+          {acceptErr && acceptErr.field !== 'reason' ? (
+            <Notice tone="danger" title="Not accepted">
+              {acceptErr.message}
+            </Notice>
+          ) : null}
+          <FloorButton
+            label={`Accept ${r.tempC} °C`}
+            disabled={reason.trim().length < 3}
+            loading={accept.isPending}
+            onPress={() => accept.mutate({ readingId: r.id, runId: run.id!, reason: reason.trim() }, { onSuccess: () => setOpen(false) })}
+            testID={`reading-${r.id}-accept-confirm`}
+          />
+          <FloorButton label="Not now" tone="secondary" onPress={() => setOpen(false)} testID={`reading-${r.id}-accept-cancel`} />
+        </View>
+      ) : null}
     </View>
   );
 }
@@ -584,6 +644,8 @@ const styles = StyleSheet.create({
   abort: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.dangerSoft },
   reading: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.powder },
   segment: { flexDirection: 'row', gap: spacing.sm, flexWrap: 'wrap' },
+  doubted: { gap: spacing.sm, padding: spacing.md, borderRadius: radius.md, backgroundColor: colors.dangerSoft, borderLeftWidth: 4, borderLeftColor: colors.danger },
+  acceptForm: { gap: spacing.md },
   countLine: { gap: spacing.sm, paddingBottom: spacing.md, borderBottomWidth: 1, borderBottomColor: colors.line },
   track: { height: 12, borderRadius: 6, backgroundColor: colors.powderDeep, overflow: 'hidden' },
   fill: { height: 12, backgroundColor: colors.ember },

@@ -3,7 +3,7 @@ import { pollUnlessLive } from '../stores/live';
 import { z } from 'zod';
 import { api } from '../api/client';
 import type { PlanStatus } from '../../shared/plans/status';
-import type { ReadingInput, RunView } from '../../shared/schemas/runs';
+import type { CalibrationView, ReadingInput, RunView } from '../../shared/schemas/runs';
 import { planKeys, planListSchema } from './plans';
 import { queueKeys } from './queue';
 
@@ -33,14 +33,19 @@ export const runKeys = {
   machine: (labId: string, machineId: string) => ['labs', labId, 'runs', 'machine', machineId] as const,
 };
 
-export function useRunQuery(labId: string, planId: string) {
-  return useQuery({
+/** One run as its card reads it; shared by the card and the floor's ordering, so both read one request. */
+export function runQueryOptions(labId: string, planId: string) {
+  return {
     queryKey: runKeys.one(labId, planId),
-    queryFn: ({ signal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runSchema, signal }),
+    queryFn: ({ signal }: { signal: AbortSignal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runSchema, signal }),
     refetchInterval: pollUnlessLive(labId, FLOOR_REFRESH_MS),
     refetchIntervalInBackground: false,
     staleTime: 0,
-  });
+  };
+}
+
+export function useRunQuery(labId: string, planId: string) {
+  return useQuery(runQueryOptions(labId, planId));
 }
 
 /** A machine's plans that are queued or under way, as the floor lists them. */
@@ -83,9 +88,33 @@ export function useAddReadingMutation(labId: string, planId: string) {
   });
 }
 
-const calibrationSchema = z.looseObject({ runs: z.number(), calibrated: z.boolean() });
+/** A lead accepts a reading the cooling model cannot explain, with the reason. */
+export function useAcceptReadingMutation(labId: string, planId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ readingId, ...body }: { readingId: string; runId: string; reason: string }) =>
+      api(`/labs/${labId}/plans/${planId}/run/readings/${readingId}/accept`, { method: 'POST', body, schema: runSchema }),
+    onSuccess: (run) => refreshAfterStep(qc, labId, run),
+    onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
+  });
+}
 
-/** How far a machine's estimates rest on its recorded runs. */
+const calibrationSchema = z.looseObject({ runs: z.number(), calibrated: z.boolean() }) as unknown as z.ZodType<CalibrationView>;
+
+/** A lead leaves a run out of the machine's calibration or takes it back in, with a reason; answers the calibration refitted. */
+export function useCalibrationChoiceMutation(labId: string, machineId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ runId, ...body }: { runId: string; choice: 'exclude' | 'include'; reason: string }) =>
+      api(`/labs/${labId}/machines/${machineId}/calibration/runs/${runId}`, { method: 'PUT', body, schema: calibrationSchema }),
+    onSuccess: (view) => {
+      qc.setQueryData([...runKeys.all(labId), 'calibration', machineId], view);
+      return qc.invalidateQueries({ queryKey: queueKeys.machine(labId, machineId) });
+    },
+  });
+}
+
+/** How far a machine's estimates rest on its recorded runs, and every run against its estimate. */
 export function useCalibrationQuery(labId: string, machineId: string) {
   return useQuery({
     queryKey: [...runKeys.all(labId), 'calibration', machineId] as const,

@@ -1,5 +1,5 @@
 import { router } from 'expo-router';
-import { useMemo } from 'react';
+import { useMemo, useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
@@ -12,6 +12,7 @@ import { Badge, Button, EmptyState, ErrorState, LinkPressable, LoadingState, Not
 import { formatDate } from '../ui/format';
 import { STATUS_LABELS } from '../../shared/plans/status';
 import type { QueueItemView, QueueView } from '../../shared/schemas/runs';
+import { CalibrationPanel } from './CalibrationPanel';
 import { ReorderList } from './ReorderList';
 import { dueEndMs, moved } from './reschedule';
 
@@ -58,6 +59,7 @@ function MachineQueue({ machineId }: { machineId: string }) {
   const lab = useLab();
   const queue = useQueueQuery(lab.id, machineId);
   const reorder = useReorderQueueMutation(lab.id, machineId);
+  const [showRuns, setShowRuns] = useState(false);
   if (queue.isPending) return <LoadingState label="Loading the queue…" />;
   if (queue.isError && !queue.data) return <ErrorState error={queue.error} onRetry={() => queue.refetch()} />;
   const view = queue.data as QueueView;
@@ -71,6 +73,7 @@ function MachineQueue({ machineId }: { machineId: string }) {
   // Every build still holding a chamber (two with a spare chamber: one printing, one cooling outside); older servers send only the one on the machine.
   const underWay = (view as QueueView & { active?: QueueItemView[] }).active ?? (view.current ? [view.current] : []);
   const late = view.plans.filter((p) => p.late).length + underWay.filter((p) => p.late).length;
+  const changes = view.plans.filter((p) => p.materialChange).length;
 
   return (
     <View style={{ gap: spacing.lg }} testID={`queue-${machineId}`}>
@@ -82,7 +85,16 @@ function MachineQueue({ machineId }: { machineId: string }) {
         </Text>
         <Badge label={calibrationNote(view.calibration)} tone={view.calibration.calibrated ? 'teal' : 'neutral'} testID="queue-calibration" />
         {late > 0 ? <Badge label={`${late} late`} tone="danger" testID="queue-late-count" /> : null}
+        {changes > 0 ? <Badge label={`${changes} material change${changes === 1 ? '' : 's'}`} tone="amber" testID="queue-material-changes" /> : null}
+        <Button
+          label={showRuns ? 'Hide the runs' : 'Estimates against the runs'}
+          variant="secondary"
+          size="sm"
+          onPress={() => setShowRuns((v) => !v)}
+          testID="queue-calibration-toggle"
+        />
       </View>
+      {showRuns ? <CalibrationPanel machineId={machineId} /> : null}
       {reorder.isError ? (
         <Notice tone="danger" title="The new order was not saved" testID="queue-reorder-error">
           {`${reorder.error.message}${isApiError(reorder.error) && reorder.error.status === 400 ? ' The queue is shown as the server has it.' : ''}`}
@@ -248,6 +260,9 @@ function QueueRow({ item, index, controls, testID }: { item: QueueItemView; inde
               {item.name}
             </Text>
           </LinkPressable>
+          <Text variant="bodyStrong" color="teal" testID={testID ? `${testID}-material` : undefined}>
+            {item.material.name}
+          </Text>
           <Text variant="caption" color="inkMuted">
             {STATUS_LABELS[item.status]} · chamber {item.chamberIndex + 1}
             {item.requests.length ? ` · ${item.requests.map((r) => `${r.title} (due ${formatDate(r.dueDate)})`).join(', ')}` : ''}
@@ -260,6 +275,12 @@ function QueueRow({ item, index, controls, testID }: { item: QueueItemView; inde
         ) : null}
         {controls}
       </View>
+      {item.materialChange ? (
+        <Notice tone="caution" title="Material changes" testID={testID ? `${testID}-material-change` : undefined}>
+          {`${item.material.name} after ${item.materialChange.previousMaterial.name} ("${item.materialChange.previousPlanName}") on this machine: ` +
+            "empty, clean and refill the feed and overflow before this build, as the machine maker's instructions say, so the powders do not mix."}
+        </Notice>
+      ) : null}
       <View style={[styles.times, wide && styles.timesWide]}>
         {times.map(([label, iso, key]) => (
           <View key={key} style={styles.time}>

@@ -3,3 +3,4 @@ export * from './checklist';
 export * from './timers';
 export * from './card';
 export * from './readings';
+export * from './order';

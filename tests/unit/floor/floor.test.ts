@@ -2,12 +2,14 @@ import {
   CAUTION_DEFERRAL,
   coolingTimer,
   enoughPowder,
+  floorOrder,
   printTimer,
   stageCard,
   stageCautions,
   stageChecklist,
   type TemperatureReading,
 } from '../../../shared/floor';
+import type { PlanStatus } from '../../../shared/plans/status';
 import { cakeCoreTempC, cakeDecayPerHour, coolingEstimate } from '../../../shared/estimate';
 
 const MIN = 60_000;
@@ -95,6 +97,24 @@ describe('cooling timers on the conduction model of the cake', () => {
     expect(timer.handlingReached).toBe(true);
     expect(timer.remainingToHandlingSeconds).toBe(0);
     expect(timer.outsideStartMs).toBe(19 * HOUR);
+  });
+});
+
+describe("the floor's card order", () => {
+  const plan = (id: string, status: PlanStatus, queuePosition: number | null = null) => ({ id, status, queuePosition });
+  const started: Record<string, number> = { a: 1000, b: 2000, c: 3000 };
+
+  test('builds under way in the order they started, then the first queued build; later queued builds wait off the floor', () => {
+    const order = floorOrder([plan('q2', 'queued', 2), plan('c', 'printing'), plan('a', 'finishing'), plan('q1', 'queued', 1), plan('b', 'cooling')], (id) => started[id]);
+    expect(order.map((p) => p.id)).toEqual(['a', 'b', 'c', 'q1']);
+  });
+
+  test('a build moving to its next stage keeps its card where it was, whatever order the server lists the plans in', () => {
+    const before = floorOrder([plan('b', 'printing'), plan('a', 'cooling')], (id) => started[id]).map((p) => p.id);
+    // "b" ends its print: two builds cooling now, listed the other way round.
+    const after = floorOrder([plan('a', 'cooling'), plan('b', 'cooling')].reverse(), (id) => started[id]).map((p) => p.id);
+    expect(before).toEqual(['a', 'b']);
+    expect(after).toEqual(before);
   });
 });
 
