@@ -9,12 +9,14 @@ import type { Auth } from './auth/sessions';
 import type { Mailer } from './mail/mailer';
 import type { LabEvents } from './events/labEvents';
 import { AppError } from './errors';
+import { PostgresRateLimitStore } from './auth/rateLimitStore';
 import { errorHandler, isDatabaseDown, notFoundRoute } from './http/middleware/errors';
 import { checkOrigin, loadSession } from './http/middleware/auth';
 import { checkInput, jsonBodies } from './http/middleware/input';
 import { noStore, securityHeaders } from './http/middleware/headers';
 import { authRoutes } from './http/routes/auth';
 import { labRoutes } from './http/routes/labs';
+import { settingsRoutes } from './http/routes/settings';
 import { partRoutes } from './http/routes/parts';
 import { jobRoutes } from './http/routes/jobs';
 import { requestRoutes } from './http/routes/requests';
@@ -24,6 +26,7 @@ import { powderRoutes } from './http/routes/powder';
 import { announceChanges, eventRoutes } from './http/routes/events';
 import { labsService } from './services/labs';
 import { authService } from './services/auth';
+import { auditService } from './services/audit';
 import { invitesService } from './services/invites';
 import { profilesService } from './services/profiles';
 import { partsService } from './services/parts';
@@ -61,7 +64,8 @@ export type QueueDeps = { boss: PgBoss; pool: pg.Pool; events: LabEvents; settin
 
 export function createServices(db: Database, mailer: Mailer, config: Config, jobs: QueueDeps) {
   const labs = labsService(db);
-  const auth = authService(db, labs);
+  const audit = auditService(db);
+  const auth = authService(db, { labs, audit, mailer, appUrl: config.appUrl, resetTokenMs: config.resetTokenMs, log: jobs.log });
   const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
   const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine', checkedMachineProfileSchema);
   const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material', checkedMaterialProfileSchema);
@@ -83,13 +87,13 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);
   const layouts = layoutsService(db, { calibrationFor: calibration.lookup, profilesFor: layoutProfilesService(db, { storage }) });
-  const review = reviewService(db, { plans, appUrl: config.appUrl });
+  const review = reviewService(db, { plans, appUrl: config.appUrl, labs });
   const queue = queueService(db, { calibration });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
-  return { labs, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
+  return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */
@@ -113,15 +117,18 @@ export function createApp(deps: AppDeps) {
   });
   api.use(checkOrigin(deps.config.appUrl));
   // The session first, so that no large body is read for someone who has not signed in.
-  api.use(loadSession(deps.auth, deps.config.appUrl.startsWith('https:')));
+  api.use(loadSession(deps.auth, deps.config.appUrl.startsWith('https:'), deps.pool, { idleMs: deps.config.sessionIdleMs, absoluteMs: deps.config.sessionAbsoluteMs }));
   api.use(jsonBodies());
   api.use(checkInput);
 
+  // Counters in PostgreSQL, shared by every server process behind a load balancer.
+  const store = (name: string) => new PostgresRateLimitStore(deps.pool, `${deps.config.rateLimitNamespace}${name}:`);
   const limiter: RequestHandler = rateLimit({
     windowMs: deps.config.authRateWindowMs,
     limit: deps.config.authRateLimit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    store: store('address'),
     // X-Forwarded-For is ignored on purpose unless TRUST_PROXY says a proxy sets it.
     validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) =>
@@ -135,17 +142,31 @@ export function createApp(deps: AppDeps) {
     validate: { xForwardedForHeader: false },
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    store: store('account'),
     keyGenerator: (req) =>
       req.params.token ? `invite:${String(req.params.token)}` : `account:${String((req.body as { email?: unknown } | undefined)?.email ?? '').trim().toLowerCase()}`,
     handler: (_req, _res, next) =>
       next(new AppError(429, 'rate_limited', 'Too many failed attempts for this account; wait a few minutes and try again.')),
   });
+  // Reset links asked for one address, whatever address the asking comes from: every request counts.
+  const resetLimiter: RequestHandler = rateLimit({
+    windowMs: deps.config.authRateWindowMs,
+    limit: deps.config.authAccountRateLimit,
+    validate: { xForwardedForHeader: false },
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    store: store('reset'),
+    keyGenerator: (req) => `reset:${String((req.body as { email?: unknown } | undefined)?.email ?? '').trim().toLowerCase()}`,
+    handler: (_req, _res, next) =>
+      next(new AppError(429, 'rate_limited', 'Too many reset requests for this address; wait a few minutes and try again.')),
+  });
   api.post('/auth/sign-in', accountLimiter);
   api.post('/invites/:token/accept', limiter, accountLimiter);
   api.use(announceChanges(deps.events, deps.log));
   api.use(eventRoutes(deps));
-  api.use(authRoutes(deps, limiter));
+  api.use(authRoutes(deps, limiter, resetLimiter));
   api.use(labRoutes(deps));
+  api.use(settingsRoutes(deps));
   api.use(partRoutes(deps));
   api.use(jobRoutes(deps));
   api.use(requestRoutes(deps));

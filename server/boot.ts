@@ -29,7 +29,7 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   // An idle client whose server went away must not take the process down;
   // the next query gets a new connection (or a 503 while it is still down).
   pool.on('error', () => {});
-  const auth = createAuth(pool);
+  const auth = createAuth(pool, { idleMs: config.sessionIdleMs });
   const mailer = await createMailer(config);
   const events = createLabEvents(pool, config.databaseUrl, log);
   const threads = config.meshThreads ?? defaultMeshThreads();

@@ -24,6 +24,16 @@ const envSchema = z.object({
    */
   TRUST_PROXY: z.string().optional(),
   AUTH_RATE_WINDOW_MS: z.coerce.number().int().positive().default(15 * 60 * 1000),
+  /**
+   * A session unused this long ends (idle lifetime), and every session ends
+   * this long after sign-in whatever its use (absolute lifetime). The
+   * defaults follow NIST SP 800-63B's reauthentication bound for AAL1
+   * (30 days whatever the activity); the idle week is this product's choice.
+   */
+  SESSION_IDLE_HOURS: z.coerce.number().positive().default(7 * 24),
+  SESSION_ABSOLUTE_HOURS: z.coerce.number().positive().default(30 * 24),
+  /** How long a mailed password reset link works. */
+  RESET_TOKEN_MINUTES: z.coerce.number().positive().max(24 * 60).default(60),
   /** SMTP relay; without it a local catcher receives mail (development and tests). */
   SMTP_URL: z.string().optional(),
   MAIL_FROM: z.string().default('Sinterstack <no-reply@sinterstack.invalid>'),
@@ -84,6 +94,11 @@ export type Config = {
   authRateWindowMs: number;
   authAccountRateLimit: number;
   trustProxy: boolean | number | string;
+  sessionIdleMs: number;
+  sessionAbsoluteMs: number;
+  resetTokenMs: number;
+  /** Prefixed to the shared rate-limit counters' keys; tests give each app its own. */
+  rateLimitNamespace: string;
   smtpUrl?: string;
   mailFrom: string;
   mailCatchDir: string;
@@ -137,6 +152,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     authRateWindowMs: e.AUTH_RATE_WINDOW_MS,
     authAccountRateLimit: e.AUTH_ACCOUNT_RATE_LIMIT,
     trustProxy: e.TRUST_PROXY === undefined || e.TRUST_PROXY === '' || e.TRUST_PROXY === 'false' ? false : /^\d+$/.test(e.TRUST_PROXY) ? Number(e.TRUST_PROXY) : e.TRUST_PROXY,
+    sessionIdleMs: Math.round(e.SESSION_IDLE_HOURS * 3_600_000),
+    sessionAbsoluteMs: Math.round(e.SESSION_ABSOLUTE_HOURS * 3_600_000),
+    resetTokenMs: Math.round(e.RESET_TOKEN_MINUTES * 60_000),
+    rateLimitNamespace: '',
     smtpUrl: e.SMTP_URL,
     mailFrom: e.MAIL_FROM,
     mailCatchDir: e.MAIL_CATCH_DIR,

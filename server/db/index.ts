@@ -2,6 +2,7 @@ import { Sequelize, type QueryInterface } from 'sequelize';
 import { Umzug, SequelizeStorage } from 'umzug';
 import { migrations } from './migrations';
 import { initModels, type Models } from './models';
+import { stampTransactions } from '../audit/actor';
 
 export type Database = { sequelize: Sequelize; models: Models; close(): Promise<void> };
 
@@ -14,6 +15,8 @@ export function connectDatabase(databaseUrl: string, opts: { logging?: boolean }
     dialectOptions: { connectionTimeoutMillis: 5_000 },
   });
   const models = initModels(sequelize);
+  // Every transaction names who acts, for the audit log's triggers.
+  stampTransactions(sequelize);
   return { sequelize, models, close: () => sequelize.close() };
 }
 

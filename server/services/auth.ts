@@ -1,16 +1,24 @@
+import { createHash, randomBytes } from 'node:crypto';
 import { generateIdFromEntropySize } from 'lucia';
 import type { Database } from '../db';
 import { AppError, conflict } from '../errors';
 import { dummyHash, hashPassword, verifyPassword } from '../auth/password';
 import { assertStrongPassword } from '../auth/policy';
-import type { SignInInput, SignUpInput } from '../../shared/schemas/auth';
+import type { ResetInput, SignInInput, SignUpInput } from '../../shared/schemas/auth';
+import type { Mailer } from '../mail/mailer';
+import type { AuditService } from './audit';
 import type { LabsService } from './labs';
 import type { Transaction } from 'sequelize';
 import { fn, col, where } from 'sequelize';
 
 const WRONG = 'That e-mail and password do not match an account.';
 
-export function authService(db: Database, labs: LabsService) {
+const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');
+
+export type AuthDeps = { labs: LabsService; audit: AuditService; mailer: Mailer; appUrl: string; resetTokenMs: number; log?: (msg: string) => void };
+
+export function authService(db: Database, deps: AuthDeps) {
+  const { labs, audit } = deps;
   const { User } = db.models;
 
   async function findByEmail(email: string, t?: Transaction): Promise<any | null> {
@@ -53,8 +61,10 @@ export function authService(db: Database, labs: LabsService) {
         throw new AppError(401, 'unauthenticated', WRONG);
       }
       if (!(await verifyPassword(user.password_hash ?? user.passwordHash, input.password))) {
+        await audit.recordAccount(user.id, { kind: 'sign_in', action: 'failed' }, null);
         throw new AppError(401, 'unauthenticated', WRONG);
       }
+      await audit.recordAccount(user.id, { kind: 'sign_in', action: 'signed_in' }, null);
       return user.id;
     },
 
@@ -73,6 +83,66 @@ export function authService(db: Database, labs: LabsService) {
       await db.sequelize.transaction(async (t) => {
         await User.update({ passwordHash: hash }, { where: { id: userId }, transaction: t });
         await db.sequelize.query('DELETE FROM user_sessions WHERE user_id = $1 AND id <> $2', { bind: [userId, keepSessionId], transaction: t });
+        await audit.recordAccount(userId, { kind: 'account', action: 'password_changed' }, null, t);
+      });
+    },
+
+    /**
+     * Mails a single-use reset link when the address has an account, and
+     * does nothing otherwise. The caller answers the same either way, and
+     * the work runs after the answer, so neither the answer nor its timing
+     * tells whether the address has an account. Only the newest link works.
+     */
+    requestReset(email: string): void {
+      const work = async () => {
+        const user = await findByEmail(email);
+        if (!user) return;
+        const token = randomBytes(32).toString('base64url');
+        await db.sequelize.transaction(async (t) => {
+          await db.sequelize.query('DELETE FROM password_resets WHERE user_id = $1 AND used_at IS NULL', { bind: [user.id], transaction: t });
+          await db.sequelize.query(
+            "INSERT INTO password_resets (token_hash, user_id, expires_at) VALUES ($1, $2, now() + make_interval(secs => $3::double precision / 1000))",
+            { bind: [hashToken(token), user.id, deps.resetTokenMs], transaction: t },
+          );
+          await audit.recordAccount(user.id, { kind: 'account', action: 'reset_requested' }, null, t);
+        });
+        const minutes = Math.round(deps.resetTokenMs / 60_000);
+        await deps.mailer.send({
+          to: user.email,
+          subject: 'Reset your Sinterstack password',
+          text: [
+            `Someone (we hope you) asked to reset the password of the Sinterstack account ${user.email}.`,
+            '',
+            `Open this link within ${minutes} minutes to choose a new password. It works once:`,
+            `${deps.appUrl}/reset/${token}`,
+            '',
+            'If you did not ask for this, ignore this message: your password stays as it is.',
+          ].join('\n'),
+        });
+      };
+      work().catch((err: unknown) => deps.log?.(`password reset mail failed: ${(err as Error).message}`));
+    },
+
+    /**
+     * Sets a new password with a mailed token: the token must be unused and
+     * unexpired, the password must pass the policy, and then the token is
+     * spent and every session of the account ends, all in one transaction.
+     */
+    async resetPassword(input: ResetInput): Promise<void> {
+      const hash = hashToken(input.token);
+      await db.sequelize.transaction(async (t) => {
+        const [rows] = (await db.sequelize.query(
+          `SELECT r.user_id, u.email, u.name FROM password_resets r JOIN users u ON u.id = r.user_id
+            WHERE r.token_hash = $1 AND r.used_at IS NULL AND r.expires_at > now() FOR UPDATE OF r`,
+          { bind: [hash], transaction: t },
+        )) as [Array<{ user_id: string; email: string; name: string }>, unknown];
+        const found = rows[0];
+        if (!found) throw new AppError(400, 'invalid_token', 'This reset link has expired or was already used: ask for a new one.', 'token');
+        assertStrongPassword(input.password, { email: found.email, name: found.name }, 'password');
+        await db.sequelize.query('UPDATE password_resets SET used_at = now() WHERE token_hash = $1', { bind: [hash], transaction: t });
+        await User.update({ passwordHash: await hashPassword(input.password) }, { where: { id: found.user_id }, transaction: t });
+        await db.sequelize.query('DELETE FROM user_sessions WHERE user_id = $1', { bind: [found.user_id], transaction: t });
+        await audit.recordAccount(found.user_id, { kind: 'account', action: 'password_reset' }, null, t);
       });
     },
 

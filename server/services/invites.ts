@@ -6,6 +6,7 @@ import type { Mailer } from '../mail/mailer';
 import { passwordSchema, ROLES, type InvitePreviewView, type InviteView, type Role } from '../../shared/schemas/auth';
 import type { AuthService } from './auth';
 import type { LabsService } from './labs';
+import { stampActor } from '../audit/actor';
 
 const INVITE_DAYS = 7;
 const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');
@@ -117,6 +118,8 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
           if (!strong.success) throw new AppError(400, 'invalid_input', `password ${strong.error.issues[0].message}`, 'password');
           userId = await deps.auth.createUser({ email: row.email, name: input.name, password: input.password }, t);
         }
+        // The new member acts here (they are not signed in yet), for the audit log.
+        await stampActor(db.sequelize, t, userId);
         await deps.labs.addMember(row.labId, userId, row.roles, t);
         await row.update({ acceptedAt: new Date() }, { transaction: t });
         return userId;

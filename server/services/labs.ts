@@ -1,7 +1,7 @@
-import { Op, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
-import { conflict, forbidden, notFound } from '../errors';
-import { ROLES, type MemberView, type MeResponse, type Role } from '../../shared/schemas/auth';
+import { AppError, conflict, forbidden, notFound } from '../errors';
+import { ROLES, type LabSettingsView, type MemberView, type MeResponse, type Role } from '../../shared/schemas/auth';
 
 export type Member = MemberView;
 
@@ -32,6 +32,11 @@ export function labsService(db: Database) {
     if (actorId === undefined) return;
     const actor: any = await Membership.findOne({ where: { labId, userId: actorId }, attributes: ['roles'], transaction: t, raw: true });
     if (!actor || !actor.roles.includes('lead')) throw forbidden('Only a lead of this lab may change its members; your roles changed a moment ago.');
+  }
+
+  /** The member's sessions take a new id on their next request, so a session never outlives the roles it was opened with. */
+  async function rotateSessions(userId: string, t: Transaction): Promise<void> {
+    await db.sequelize.query('UPDATE user_sessions SET rotate = true WHERE user_id = $1', { bind: [userId], transaction: t });
   }
 
   return {
@@ -101,6 +106,7 @@ export function labsService(db: Database) {
           throw conflict('last_lead', 'A lab needs at least one lead: make someone else a lead first.', 'roles');
         }
         await row.update({ roles }, { transaction: t });
+        await rotateSessions(userId, t);
       });
       return this.member(labId, userId);
     },
@@ -115,7 +121,45 @@ export function labsService(db: Database) {
           throw conflict('last_lead', 'The last lead of a lab cannot be removed.');
         }
         await row.destroy({ transaction: t });
+        await rotateSessions(userId, t);
       });
+    },
+
+    /** The lab's settings, with the default applied. */
+    async settings(labId: string, t?: Transaction): Promise<LabSettingsView> {
+      const [row] = await db.sequelize.query<{ second_approval: boolean | null; leads: number }>(
+        `SELECT l.second_approval, (SELECT count(*)::int FROM memberships m WHERE m.lab_id = l.id AND 'lead' = ANY (m.roles)) AS leads
+           FROM labs l WHERE l.id = $1`,
+        { bind: [labId], type: QueryTypes.SELECT, transaction: t },
+      );
+      if (!row) throw notFound('That lab');
+      return { secondApproval: row.second_approval ?? row.leads > 1, secondApprovalSet: row.second_approval !== null, leads: row.leads };
+    },
+
+    async updateSettings(labId: string, input: { secondApproval: boolean | null }): Promise<LabSettingsView> {
+      await db.sequelize.transaction(async (t) => {
+        await db.sequelize.query('UPDATE labs SET second_approval = $2, updated_at = now() WHERE id = $1', { bind: [labId, input.secondApproval], transaction: t });
+      });
+      return this.settings(labId);
+    },
+
+    /**
+     * When the lab asks for a second person's approval, the lead approving a
+     * plan must not be the one who sent it for review (the four-eyes rule).
+     */
+    async assertSecondApprover(labId: string, planId: string, approverId: string, t: Transaction): Promise<void> {
+      if (!(await this.settings(labId, t)).secondApproval) return;
+      const [last] = await db.sequelize.query<{ user_id: string | null }>(
+        `SELECT user_id FROM plan_events WHERE plan_id = $1 AND to_status = 'in_review' ORDER BY created_at DESC LIMIT 1`,
+        { bind: [planId], type: QueryTypes.SELECT, transaction: t },
+      );
+      if (last?.user_id === approverId) {
+        throw new AppError(
+          403,
+          'second_approval_required',
+          "This lab requires a second person's approval: a lead cannot approve a plan they sent for review themselves; another lead must approve it.",
+        );
+      }
     },
   };
 }

@@ -2,10 +2,11 @@ import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { parseOrThrow } from '../validation';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlansService } from './plans';
+import type { LabsService } from './labs';
 import { canTransition } from '../../shared/plans/status';
 import { reviewSchema, type PlanReviewed } from '../../shared/schemas/plans';
 
-export type ReviewDeps = { plans: PlansService; appUrl: string };
+export type ReviewDeps = { plans: PlansService; appUrl: string; labs: LabsService };
 
 /**
  * A lead's decision on a plan in review. Approving records `approved` and
@@ -24,6 +25,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
         let queuePosition: number | null = null;
         if (input.decision === 'approve') {
           if (!canTransition(plan.status, 'approved')) throw invalidTransition(plan.status, 'approved');
+          await deps.labs.assertSecondApprover(labId, plan.id, user.id, transaction);
           await applyTransition(db, plan, 'approved', user.id, comment, transaction);
           // Locking the machine row makes two approvals for one machine take positions one after the other.
           await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [plan.machine_id], transaction });

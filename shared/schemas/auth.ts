@@ -45,9 +45,19 @@ export const passwordChangeSchema = z.strictObject({
   newPassword: passwordSchema,
 });
 export const memberUpdateSchema = z.strictObject({ roles: rolesSchema });
+/** Asking for a password reset link: the answer is the same whether or not the address has an account. */
+export const resetRequestSchema = z.strictObject({ email: emailSchema });
+/** Setting a new password with the token from the mailed link. */
+export const resetSchema = z.strictObject({
+  token: z.string().min(1, 'is required').max(200, 'must be at most 200 characters'),
+  password: passwordSchema,
+});
+/** The lab's settings a lead may change; `secondApproval: null` goes back to the default. */
+export const labSettingsUpdateSchema = z.strictObject({ secondApproval: z.boolean().nullable() });
 
 export type SignUpInput = z.infer<typeof signUpSchema>;
 export type SignInInput = z.infer<typeof signInSchema>;
+export type ResetInput = z.infer<typeof resetSchema>;
 
 // ---------------------------------------------------------------------------
 // Answers (the server is typed by them, the client parses with them)
@@ -86,3 +96,18 @@ export const invitePreviewViewSchema = z.object({
   expiresAt: isoTime,
 });
 export type InvitePreviewView = z.infer<typeof invitePreviewViewSchema>;
+
+/** One of the caller's own sessions; `id` is a digest, never the session's secret id. */
+export const sessionViewSchema = z.object({
+  id: z.string(),
+  createdAt: isoTime,
+  lastSeenAt: isoTime,
+  userAgent: z.string().nullable(),
+  ipAddress: z.string().nullable(),
+  current: z.boolean(),
+});
+export type SessionView = z.infer<typeof sessionViewSchema>;
+
+/** A lab's settings: `secondApproval` is what applies, `secondApprovalSet` whether a lead chose it (else the default). */
+export const labSettingsViewSchema = z.object({ secondApproval: z.boolean(), secondApprovalSet: z.boolean(), leads: z.number().int() });
+export type LabSettingsView = z.infer<typeof labSettingsViewSchema>;

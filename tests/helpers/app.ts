@@ -18,7 +18,15 @@ let apps = 0;
 export async function startTestApp(overrides: Partial<Config> = {}): Promise<Running> {
   if (!process.env.DATABASE_URL) throw new Error('DATABASE_URL is not set: run the suite with `npm test`');
   const base = loadConfig({ ...process.env, NODE_ENV: 'test', APP_URL: ORIGIN });
-  const config = { ...base, authRateLimit: 10_000, jobQueue: `mesh-test-${process.pid}-${++apps}`, uploadWaitMs: 120_000, ...overrides };
+  // Rate-limit counters live in the shared database: each test app counts on its own unless a test shares them on purpose.
+  const config = {
+    ...base,
+    authRateLimit: 10_000,
+    jobQueue: `mesh-test-${process.pid}-${++apps}`,
+    uploadWaitMs: 120_000,
+    rateLimitNamespace: `test-${randomBytes(6).toString('hex')}:`,
+    ...overrides,
+  };
   return boot(config, () => {});
 }
 

@@ -8,6 +8,7 @@ import * as m0006 from './0006-powder';
 import * as m0007 from './0007-estimate-profile-fields';
 import * as m0008 from './0008-floor-integrity';
 import * as m0009 from './0009-mesh-jobs';
+import * as m0010 from './0010-accounts-audit';
 
 export type Migration = {
   name: string;
@@ -26,4 +27,5 @@ export const migrations: Migration[] = [
   { name: '0007-estimate-profile-fields', ...m0007 },
   { name: '0008-floor-integrity', ...m0008 },
   { name: '0009-mesh-jobs', ...m0009 },
+  { name: '0010-accounts-audit', ...m0010 },
 ];

@@ -4,6 +4,8 @@ import { AppError, forbidden, notFound, unauthenticated } from '../../errors';
 import type { Role } from '../../../shared/schemas/auth';
 import { ctx } from '../context';
 import type { LabsService } from '../../services/labs';
+import type pg from 'pg';
+import { asActor } from '../../audit/actor';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 export const isUuid = (s: string) => UUID.test(s);
@@ -24,20 +26,76 @@ export function clearSessionCookie(auth: Auth, req: Request, res: Response, secu
   res.cookie(cookie.name, '', { httpOnly: true, sameSite: 'lax', secure: secureApp || req.secure, path: '/', maxAge: 0 });
 }
 
-/** Reads the session cookie, if any; renews it when it is half-way to expiry. */
-export function loadSession(auth: Auth, secureApp: boolean): RequestHandler {
+export type SessionLifetimes = { idleMs: number; absoluteMs: number };
+
+/** The browser and address a session is opened from, kept so its owner can recognise it in the list. */
+export function sessionOrigin(req: Request): { user_agent: string | null; ip_address: string | null } {
+  const ua = req.get('user-agent');
+  return { user_agent: ua ? ua.slice(0, 300) : null, ip_address: req.ip ?? null };
+}
+
+/** Starts a session for `userId` and sets its cookie. */
+export async function startSession(auth: Auth, req: Request, res: Response, userId: string, secureApp: boolean): Promise<void> {
+  const session = await auth.createSession(userId, { created_at: new Date(), last_seen_at: new Date(), ...sessionOrigin(req) });
+  setSessionCookie(auth, req, res, session.id, secureApp);
+}
+
+/** "Last seen" is written at most this often per session. */
+const SEEN_EVERY_MS = 60_000;
+
+/**
+ * Reads the session cookie, if any. A session past its absolute lifetime
+ * (since sign-in) or idle longer than the idle lifetime ends here; one marked
+ * for rotation (its owner's roles changed) is replaced by a new id with the
+ * same sign-in time; lucia renews the cookie when it is half-way to expiry.
+ * The rest of the request runs as this user for the audit log.
+ */
+export function loadSession(auth: Auth, secureApp: boolean, pool: pg.Pool, lifetimes: SessionLifetimes): RequestHandler {
   return async (req, res, next) => {
     const sessionId = auth.readSessionCookie(req.headers.cookie ?? '');
     if (!sessionId) return next();
-    const { session, user } = await auth.validateSession(sessionId);
-    if (!session) {
+    const validated = await auth.validateSession(sessionId);
+    let session = validated.session;
+    const user = validated.user;
+    if (!session || !user) {
       clearSessionCookie(auth, req, res, secureApp);
       return next();
     }
-    if (session.fresh) setSessionCookie(auth, req, res, session.id, secureApp);
+    const now = Date.now();
+    if (now - session.createdAt.getTime() > lifetimes.absoluteMs || now - session.lastSeenAt.getTime() > lifetimes.idleMs) {
+      await auth.invalidateSession(session.id);
+      clearSessionCookie(auth, req, res, secureApp);
+      return next();
+    }
+    if (session.rotate) {
+      // Only one request wins the old id; a parallel one finds it gone and is signed out like any stale cookie.
+      const { rowCount } = await pool.query('DELETE FROM user_sessions WHERE id = $1 AND rotate', [session.id]);
+      if (!rowCount) {
+        clearSessionCookie(auth, req, res, secureApp);
+        return next();
+      }
+      const fresh = await auth.createSession(user.id, {
+        created_at: session.createdAt,
+        last_seen_at: new Date(),
+        user_agent: session.userAgent,
+        ip_address: session.ipAddress,
+      });
+      setSessionCookie(auth, req, res, fresh.id, secureApp);
+      session = fresh;
+    } else {
+      if (session.fresh) setSessionCookie(auth, req, res, session.id, secureApp);
+      if (now - session.lastSeenAt.getTime() > SEEN_EVERY_MS) {
+        const origin = sessionOrigin(req);
+        await pool.query('UPDATE user_sessions SET last_seen_at = now(), user_agent = coalesce(user_agent, $2), ip_address = coalesce(ip_address, $3) WHERE id = $1', [
+          session.id,
+          origin.user_agent,
+          origin.ip_address,
+        ]);
+      }
+    }
     ctx(req).user = { id: user.id, email: user.email, name: user.name };
     ctx(req).sessionId = session.id;
-    next();
+    asActor(user.id, () => next());
   };
 }
 

@@ -1,28 +1,27 @@
 import { Router, type RequestHandler } from 'express';
-import { passwordChangeSchema, signInSchema, signUpSchema } from '../../../shared/schemas/auth';
+import { passwordChangeSchema, resetRequestSchema, resetSchema, signInSchema, signUpSchema } from '../../../shared/schemas/auth';
 import { parseOrThrow } from '../../validation';
-import { clearSessionCookie, requireSession, setSessionCookie } from '../middleware/auth';
+import { clearSessionCookie, requireSession, startSession } from '../middleware/auth';
+import { sessionsService } from '../../services/sessions';
 import { ctx, requireUser } from '../context';
-import { unauthenticated } from '../../errors';
+import { notFound, unauthenticated } from '../../errors';
 import type { AppDeps } from '../../app';
 
-export function authRoutes(deps: AppDeps, limiter: RequestHandler): Router {
+export function authRoutes(deps: AppDeps, limiter: RequestHandler, resetLimiter: RequestHandler): Router {
   const r = Router();
   const secure = deps.config.appUrl.startsWith('https:');
 
   r.post('/auth/sign-up', limiter, async (req, res) => {
     const input = parseOrThrow(signUpSchema, req.body);
     const userId = await deps.services.auth.signUp(input);
-    const session = await deps.auth.createSession(userId, {});
-    setSessionCookie(deps.auth, req, res, session.id, secure);
+    await startSession(deps.auth, req, res, userId, secure);
     res.status(201).json(await deps.services.labs.me(userId));
   });
 
   r.post('/auth/sign-in', limiter, async (req, res) => {
     const input = parseOrThrow(signInSchema, req.body);
     const userId = await deps.services.auth.signIn(input);
-    const session = await deps.auth.createSession(userId, {});
-    setSessionCookie(deps.auth, req, res, session.id, secure);
+    await startSession(deps.auth, req, res, userId, secure);
     res.json(await deps.services.labs.me(userId));
   });
 
@@ -36,6 +35,35 @@ export function authRoutes(deps: AppDeps, limiter: RequestHandler): Router {
   r.post('/auth/password', requireSession, limiter, async (req, res) => {
     const input = parseOrThrow(passwordChangeSchema, req.body);
     await deps.services.auth.changePassword(requireUser(req).id, ctx(req).sessionId!, input);
+    res.status(204).end();
+  });
+
+  // Same answer whether or not the address has an account; limited per address and per e-mail.
+  r.post('/auth/reset-request', limiter, resetLimiter, async (req, res) => {
+    const { email } = parseOrThrow(resetRequestSchema, req.body);
+    deps.services.auth.requestReset(email);
+    res.status(202).json({ ok: true });
+  });
+
+  r.post('/auth/reset', limiter, async (req, res) => {
+    await deps.services.auth.resetPassword(parseOrThrow(resetSchema, req.body));
+    clearSessionCookie(deps.auth, req, res, secure);
+    res.status(204).end();
+  });
+
+  const sessions = sessionsService(deps.pool, deps.services.audit);
+  r.get('/auth/sessions', requireSession, async (req, res) => {
+    res.json(await sessions.list(requireUser(req).id, ctx(req).sessionId!));
+  });
+  r.delete('/auth/sessions/:sessionId', requireSession, async (req, res) => {
+    const handle = String(req.params.sessionId);
+    if (!/^[0-9a-f]{24}$/.test(handle)) throw notFound('That session');
+    if (await sessions.revoke(requireUser(req).id, handle, ctx(req).sessionId!)) clearSessionCookie(deps.auth, req, res, secure);
+    res.status(204).end();
+  });
+  r.post('/auth/sign-out-everywhere', requireSession, async (req, res) => {
+    await sessions.revokeAll(requireUser(req).id);
+    clearSessionCookie(deps.auth, req, res, secure);
     res.status(204).end();
   });
 
