@@ -28,3 +28,8 @@ export const roleTones: Record<Role, BadgeTone> = {
 export function sortRoles(list: readonly Role[]): Role[] {
   return roles.filter((r) => list.includes(r));
 }
+
+/** Who files part requests (the server holds the same rule). */
+export function canFileRequests(has: (role: 'designer' | 'lead') => boolean): boolean {
+  return has('designer') || has('lead');
+}

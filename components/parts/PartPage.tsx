@@ -13,6 +13,7 @@ import { formatDateTime } from '../ui/format';
 import { Choice } from '../ui/Choice';
 import { formatArea, formatBytes, formatCount, formatSize, formatVolume } from './format';
 import { canUploadParts } from './PartLibrary';
+import { canFileRequests } from '../lab/roles';
 import { PartMeshPreview } from './PartMeshPreview';
 import { addQuarterTurn, rotatedSize, type Rotation } from './rotation';
 import { WARNING_EXPLANATIONS, warningLabel } from './warnings';
@@ -66,6 +67,11 @@ function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {
       title={part.name}
       subtitle={`${part.file.name} · ${part.file.format.toUpperCase()} · ${formatBytes(part.file.sizeBytes)} · uploaded by ${part.uploadedBy?.name ?? 'a former member'} ${formatDateTime(part.createdAt)}`}
       above={back}
+      actions={
+        canFileRequests(lab.has) ? (
+          <Button label="Request this part" testID="part-request" onPress={() => router.push({ pathname: '/requests/new', params: { partId: part.id } })} />
+        ) : undefined
+      }
       testID="screen-part"
     >
       <View style={[styles.top, wide && styles.topWide]}>

@@ -1,6 +1,7 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
+import { canFileRequests } from '../lab/roles';
 import { useLab } from '../lab/useCurrentLab';
 import { useMeQuery } from '../queries/me';
 import { useRequestsQuery, type LabRequest, type RequestListParams } from '../queries/requests';
@@ -12,10 +13,6 @@ import { PRIORITY_LABELS, PRIORITY_TONES, STATUS_LABELS, STATUS_TONES, dueText }
 type View_ = 'mine' | 'open' | 'all';
 
 /** Designers and leads file requests (the API's rule). */
-export function canFileRequests(has: (role: 'designer' | 'lead') => boolean): boolean {
-  return has('designer') || has('lead');
-}
-
 export function RequestList() {
   const lab = useLab();
   const { data: me } = useMeQuery();

@@ -3,12 +3,13 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { useMeQuery } from '../queries/me';
+import { usePartQuery } from '../queries/parts';
 import { useCreateRequestMutation, useRequestQuery, useUpdateRequestMutation, type LabRequest, type LabRequestLine } from '../queries/requests';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, Card, ConfirmAction, ErrorState, LinkPressable, LoadingState, Notice, Screen, Table, Text, type Column } from '../ui';
 import { formatDateTime } from '../ui/format';
 import { RequestForm, emptyRequestValues, type RequestFormValues } from './RequestForm';
-import { canFileRequests } from './RequestList';
+import { canFileRequests } from '../lab/roles';
 import { PRIORITY_LABELS, PRIORITY_TONES, STATUS_LABELS, STATUS_TONES, dueText } from './labels';
 
 function Back() {
@@ -21,21 +22,38 @@ function Back() {
   );
 }
 
-export function NewRequest() {
+export function NewRequest({ partId }: { partId?: string }) {
   const lab = useLab();
   const create = useCreateRequestMutation(lab.id);
+  // Asked for from a part's page: the form starts with that part and its default material, once the part is known.
+  const part = usePartQuery(lab.id, partId);
+  const waiting = !!partId && part.isPending;
+  const initial: RequestFormValues =
+    partId && part.data
+      ? { ...emptyRequestValues(), materialId: part.data.materialId ?? '', lines: [{ partId: part.data.id, partName: part.data.name, quantity: '1' }] }
+      : emptyRequestValues();
   return (
     <Screen title="New request" subtitle="Which parts, how many, in what material and by when." above={<Back />} testID="screen-request-new">
-      {canFileRequests(lab.has) ? (
-        <RequestForm
-          initial={emptyRequestValues()}
-          submitLabel="File request"
-          submitting={create.isPending}
-          error={create.error}
-          onSubmit={(input) => create.mutate(input, { onSuccess: (r) => router.replace(`/requests/${r.id}`) })}
-        />
-      ) : (
+      {!canFileRequests(lab.has) ? (
         <Notice tone="info">Designers and leads file requests; your roles in this lab let you read them.</Notice>
+      ) : waiting ? (
+        <LoadingState label="Loading the part…" />
+      ) : (
+        <>
+          {partId && part.isError ? (
+            <Notice tone="caution" testID="request-new-part-missing">
+              The part this request was started from could not be loaded; add the parts below.
+            </Notice>
+          ) : null}
+          <RequestForm
+            key={part.data?.id ?? 'empty'}
+            initial={initial}
+            submitLabel="File request"
+            submitting={create.isPending}
+            error={create.error}
+            onSubmit={(input) => create.mutate(input, { onSuccess: (r) => router.replace(`/requests/${r.id}`) })}
+          />
+        </>
       )}
     </Screen>
   );

@@ -70,3 +70,30 @@ describe.each([
     await page.context().close();
   });
 });
+
+test("a part's page files a request for it: the form starts with the part on a line and its default material", async () => {
+  const lab = await labWithProfiles(fixtures, 'request-this-part');
+  const made = await makeRequest(fixtures, lab.labId, lab.userId, lab.materialId, [{ name: 'Cable saddle', sizeMm: [18, 10, 7], quantity: 1 }]);
+  const partId = made.lines[0].partId;
+  const page = await newPage(served, PHONE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/parts/${partId}`);
+  await page.getByTestId('part-request').click();
+  await page.getByTestId('request-form').waitFor();
+  expect(new URL(page.url()).searchParams.get('partId')).toBe(partId);
+  await page.getByTestId('request-line-0').getByText('Cable saddle').waitFor();
+  expect(await page.getByTestId('request-line-0-quantity').inputValue()).toBe('1');
+  await screenshot(page, 'request-this-part-phone');
+  await page.getByTestId('request-title').fill('Saddles for the test rig');
+  await page.getByTestId('request-line-0-quantity').fill('6');
+  await page.getByTestId('request-submit').click();
+  await page.getByTestId('screen-request').waitFor();
+  const requestId = /\/requests\/([0-9a-f-]{36})/.exec(page.url())![1];
+  const [[line]] = (await fixtures.db.sequelize.query(
+    'SELECT l.part_id, l.quantity, r.material_id FROM request_lines l JOIN requests r ON r.id = l.request_id WHERE r.id = $1',
+    { bind: [requestId] },
+  )) as [Array<{ part_id: string; quantity: number; material_id: string }>, unknown];
+  expect(line).toEqual({ part_id: partId, quantity: 6, material_id: lab.materialId });
+  await page.context().close();
+});
+
