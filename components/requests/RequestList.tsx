@@ -50,6 +50,8 @@ export function RequestList() {
     { key: 'qty', title: 'Qty', width: 80, align: 'right', mono: true, value: (r) => r.totals.quantity.toLocaleString('en-US') },
     { key: 'planned', title: 'Planned', width: 90, align: 'right', mono: true, value: (r) => r.totals.planned.toLocaleString('en-US') },
     { key: 'printed', title: 'Printed', width: 90, align: 'right', mono: true, value: (r) => r.totals.printed.toLocaleString('en-US') },
+    { key: 'failed', title: 'Failed', width: 80, align: 'right', mono: true, value: (r) => r.totals.failed.toLocaleString('en-US') },
+    { key: 'still', title: 'To make', width: 90, align: 'right', mono: true, value: (r) => r.totals.stillToMake.toLocaleString('en-US') },
     { key: 'status', title: 'Status', width: 100, render: (r) => <Badge label={STATUS_LABELS[r.status]} tone={STATUS_TONES[r.status]} /> },
   ];
 

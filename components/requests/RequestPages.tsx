@@ -8,6 +8,7 @@ import { useCreateRequestMutation, useRequestQuery, useUpdateRequestMutation, ty
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, Card, ConfirmAction, ErrorState, LinkPressable, LoadingState, Notice, Screen, Table, Text, type Column } from '../ui';
 import { formatDateTime } from '../ui/format';
+import { STATUS_LABELS as PLAN_STATUS_LABELS } from '../../shared/plans/status';
 import { RequestForm, emptyRequestValues, type RequestFormValues } from './RequestForm';
 import { canFileRequests } from '../lab/roles';
 import { PRIORITY_LABELS, PRIORITY_TONES, STATUS_LABELS, STATUS_TONES, dueText } from './labels';
@@ -114,6 +115,8 @@ function RequestView({ request: r }: { request: LabRequest }) {
     { key: 'qty', title: 'Quantity', width: 110, align: 'right', mono: true, value: (l) => l.quantity.toLocaleString('en-US') },
     { key: 'planned', title: 'Planned', width: 110, align: 'right', mono: true, value: (l) => l.plannedCount.toLocaleString('en-US') },
     { key: 'printed', title: 'Printed good', width: 130, align: 'right', mono: true, value: (l) => l.printedCount.toLocaleString('en-US') },
+    { key: 'failed', title: 'Failed', width: 90, align: 'right', mono: true, value: (l) => l.failedCount.toLocaleString('en-US') },
+    { key: 'still', title: 'Still to make', width: 130, align: 'right', mono: true, value: (l) => l.stillToMakeCount.toLocaleString('en-US') },
     { key: 'progress', title: 'Progress', flex: 1.2, render: (l) => <LineProgress line={l} /> },
   ];
 
@@ -168,7 +171,24 @@ function RequestView({ request: r }: { request: LabRequest }) {
             <Text variant="figure">{r.totals.planned.toLocaleString('en-US')}</Text>
           </Fact>
           <Fact label="Printed good">
-            <Text variant="figure">{r.totals.printed.toLocaleString('en-US')}</Text>
+            <Text variant="figure" testID="request-total-printed">
+              {r.totals.printed.toLocaleString('en-US')}
+            </Text>
+          </Fact>
+          <Fact label="Failed">
+            <Text variant="figure" color={r.totals.failed > 0 ? 'danger' : 'ink'} testID="request-total-failed">
+              {r.totals.failed.toLocaleString('en-US')}
+            </Text>
+          </Fact>
+          <Fact label="Still to make">
+            <Text variant="figure" testID="request-total-still">
+              {r.totals.stillToMake.toLocaleString('en-US')}
+            </Text>
+          </Fact>
+          <Fact label="Expected ready">
+            <Text variant="figure" testID="request-ready">
+              {readyText(r)}
+            </Text>
           </Fact>
         </View>
         {r.notes ? (
@@ -186,6 +206,7 @@ function RequestView({ request: r }: { request: LabRequest }) {
         </Notice>
       ) : null}
       <Table testID="request-lines-table" columns={columns} rows={r.lines} rowKey={(l) => l.id} rowTestID={(l) => `request-line-row-${l.partId}`} />
+      <Builds request={r} />
       {update.error && !editing ? (
         <Notice tone="danger" title="Not changed">
           {update.error.message}
@@ -206,6 +227,57 @@ function RequestView({ request: r }: { request: LabRequest }) {
         ) : null
       ) : null}
     </Screen>
+  );
+}
+
+/**
+ * When the request should be ready: the latest predicted breakout of the builds still holding its parts (the
+ * queue's prediction), or why there is none yet.
+ */
+export function readyText(r: LabRequest): string {
+  if (r.totals.stillToMake === 0) return r.status === 'done' ? 'Done' : 'All printed';
+  const open = r.totals.quantity - r.totals.planned;
+  if (open > 0) return `${open.toLocaleString('en-US')} not in a build yet`;
+  const pending = (r.builds ?? []).filter((b) => b.status !== 'done' && b.status !== 'aborted' && b.status !== 'cancelled');
+  const dates = pending.map((b) => (b.readyAt ? Date.parse(b.readyAt) : Number.NaN));
+  if (dates.length === 0 || dates.some((d) => !Number.isFinite(d))) return 'Not predicted yet';
+  return formatDateTime(new Date(Math.max(...dates)).toISOString());
+}
+
+/** The builds holding the request's parts, with what came out of each and when the rest should be ready. */
+function Builds({ request: r }: { request: LabRequest }) {
+  const builds = r.builds ?? [];
+  if (builds.length === 0) return null;
+  const partOf = new Map(r.lines.map((l) => [l.id, l.partName]));
+  return (
+    <Card testID="request-builds">
+      <Text variant="heading">In builds</Text>
+      <View style={{ gap: spacing.md }}>
+        {builds.map((b) => (
+          <View key={b.planId} style={styles.build} testID={`request-build-${b.planId}`}>
+            <View style={styles.buildHead}>
+              <LinkPressable href={`/plans/${b.planId}`} accessibilityLabel={`Open build ${b.planName}`}>
+                <Text variant="bodyStrong" color="ember">
+                  {b.planName}
+                </Text>
+              </LinkPressable>
+              <Badge label={PLAN_STATUS_LABELS[b.status]} tone={b.status === 'done' ? 'teal' : b.status === 'aborted' ? 'danger' : 'neutral'} />
+            </View>
+            <Text variant="caption" color="inkMuted">
+              {b.machine.name}
+              {b.materialName ? ` · ${b.materialName}` : ''}
+              {b.readyAt ? ` · ${b.status === 'done' ? 'done' : 'parts out about'} ${formatDateTime(b.readyAt)}` : ' · not in a machine queue yet'}
+            </Text>
+            {b.lines.map((l) => (
+              <Text key={l.requestLineId} variant="label" testID={`request-build-${b.planId}-line-${l.requestLineId}`}>
+                {`${partOf.get(l.requestLineId) ?? 'Part'}: ${l.quantity} in the build` +
+                  (l.goodCount != null ? `, ${l.goodCount} good, ${l.failedCount ?? 0} failed` : '')}
+              </Text>
+            ))}
+          </View>
+        ))}
+      </View>
+    </Card>
   );
 }
 
@@ -237,6 +309,8 @@ const styles = StyleSheet.create({
   back: { alignSelf: 'flex-start', paddingVertical: spacing.xs },
   facts: { flexDirection: 'row', flexWrap: 'wrap', rowGap: spacing.md, columnGap: spacing.xl },
   fact: { gap: spacing.xxs, minWidth: 110 },
+  build: { gap: spacing.xxs, paddingBottom: spacing.sm, borderBottomWidth: 1, borderBottomColor: colors.line },
+  buildHead: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.sm },
   notes: { gap: spacing.xxs },
   progress: { width: '100%', minWidth: 100, paddingVertical: spacing.xs },
   track: { height: 8, borderRadius: radius.pill, backgroundColor: colors.powderDeep, overflow: 'hidden' },
