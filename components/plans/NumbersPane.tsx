@@ -15,7 +15,22 @@ function Cell({ label, value, testID, tone }: { label: string; value: string; te
 }
 
 /** The chosen or shown layout's estimate: time, cooling, powder, density, cost and the per-layer area. */
-export function NumbersPane({ numbers, title, bedAreaMm2, cutLayer, note }: { numbers: ShownNumbers | null; title: string; bedAreaMm2: number; cutLayer: number | null; note?: string }) {
+export function NumbersPane({
+  numbers,
+  title,
+  bedAreaMm2,
+  cutLayer,
+  note,
+  partNames,
+}: {
+  numbers: ShownNumbers | null;
+  title: string;
+  bedAreaMm2: number;
+  cutLayer: number | null;
+  note?: string;
+  /** A placement's part name by its id (the request line), for the cost per part. */
+  partNames?: ReadonlyMap<string, string>;
+}) {
   if (!numbers) {
     return (
       <View style={styles.box} testID="plan-numbers-empty">
@@ -46,6 +61,7 @@ export function NumbersPane({ numbers, title, bedAreaMm2, cutLayer, note }: { nu
         <Cell label="Not placed" value={String(n.unplaced)} testID="num-unplaced" tone={n.unplaced > 0 ? 'danger' : undefined} />
       </View>
       {note ? <Text variant="caption" color="inkFaint">{note}</Text> : null}
+      {n.cost ? <CostBreakdown cost={n.cost} total={n.totalCost} partNames={partNames} /> : null}
       <View style={{ gap: spacing.xs }}>
         <Text variant="label">Cross-section area per layer</Text>
         <Text variant="caption" color={n.profileSource === 'box' ? 'amber' : 'inkMuted'} testID="num-profile-source">
@@ -61,7 +77,56 @@ export function NumbersPane({ numbers, title, bedAreaMm2, cutLayer, note }: { nu
   );
 }
 
+/**
+ * What the build costs and how it is shared: the lab's machine time, energy, inert gas, powder, labour and the
+ * scrap allowance, then each part's share (by volume and height, docs/estimate.md), which add up to the total.
+ */
+function CostBreakdown({ cost, total, partNames }: { cost: NonNullable<ShownNumbers['cost']>; total: number; partNames?: ReadonlyMap<string, string> }) {
+  const items: Array<[string, number]> = [
+    [`Machine, ${cost.machineHours.toFixed(1)} h${cost.heldThroughOutsideCooling ? ' (held through outside cooling: one chamber)' : ''}`, cost.machineCost],
+    ['Energy', cost.energyCost],
+    ['Inert gas', cost.inertGasCost],
+    ['Powder', cost.powderCost],
+    ['Labour', cost.labourCost],
+    ['Scrap allowance', cost.scrapCost],
+  ];
+  const sum = cost.perPart.reduce((s, p) => s + p.total, 0);
+  return (
+    <View style={{ gap: spacing.xs }} testID="num-cost">
+      <Text variant="label">Cost of the build, from the lab's rates</Text>
+      {items.map(([label, value]) => (
+        <View key={label} style={styles.costRow}>
+          <Text variant="caption" color="inkMuted" style={{ flex: 1 }}>{label}</Text>
+          <Figure variant="figure">{money(value)}</Figure>
+        </View>
+      ))}
+      <View style={[styles.costRow, styles.costTotal]}>
+        <Text variant="bodyStrong" style={{ flex: 1 }}>Total</Text>
+        <Figure variant="figure" testID="num-cost-total">{money(total)}</Figure>
+      </View>
+      {cost.perPart.length > 0 ? (
+        <>
+          <Text variant="label" style={{ marginTop: spacing.xs }}>Cost per part</Text>
+          {cost.perPart.map((p) => (
+            <View key={p.id} style={styles.costRow} testID={`num-cost-part-${p.id}`}>
+              <Text variant="caption" color="inkMuted" style={{ flex: 1 }} numberOfLines={2}>
+                {`${partNames?.get(p.id) ?? p.id} × ${p.count}, ${money(p.each)} each`}
+              </Text>
+              <Figure variant="figure">{money(p.total)}</Figure>
+            </View>
+          ))}
+          <Text variant="caption" color="inkFaint" testID="num-cost-sum">
+            {`The parts add up to ${money(sum)}: machine time, energy and powder shared by each part's volume and height, labour equally.`}
+          </Text>
+        </>
+      ) : null}
+    </View>
+  );
+}
+
 const styles = StyleSheet.create({
+  costRow: { flexDirection: 'row', alignItems: 'baseline', gap: spacing.sm },
+  costTotal: { borderTopWidth: 1, borderTopColor: colors.line, paddingTop: spacing.xxs },
   box: { gap: spacing.md, padding: spacing.lg, backgroundColor: colors.surface, borderRadius: radius.lg, borderWidth: 1, borderColor: colors.line },
   grid: { flexDirection: 'row', flexWrap: 'wrap', rowGap: spacing.md, columnGap: spacing.md },
   cell: { width: '30%', minWidth: 96, flexGrow: 1, gap: 2 },

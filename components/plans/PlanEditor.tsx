@@ -289,6 +289,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
   const shownInstance: PackInstanceInput | null = showingWorking ? working!.instance : (stored.data?.instance ?? null);
   const shownSummary = storedId ? plan.layouts.find((l) => l.id === storedId) ?? null : null;
 
+  const partNames = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.partName] as const)), [lineInfo]);
   const volumeByLine = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.volumeMm3] as const)), [lineInfo]);
   const workingNumbers = useMemo(
     () => (working?.result ? estimateWorking(working.instance, working.result, machine, material, volumeByLine) : null),
@@ -662,6 +663,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
       bedAreaMm2={bedAreaMm2}
       cutLayer={cutMm === null ? null : Math.round(cutMm / layerHeightMm)}
       note={showingWorking ? 'Estimated here; the server estimates it again when the layout is kept.' : undefined}
+      partNames={partNames}
     />
   );
   const powderPane = <PlanPowderPanel planId={planId} freshKg={shownNumbers?.freshKg} reusedKg={shownNumbers?.reusedKg} layoutLabel={shownLabel} />;

@@ -1,4 +1,4 @@
-import { estimateLayout, type AreaJump, type LayoutEstimate } from '../../shared/estimate';
+import { estimateLayout, type AreaJump, type CostEstimate, type LayoutEstimate } from '../../shared/estimate';
 import type { PackInstanceInput, PackResult } from '../../shared/packing';
 import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
 
@@ -15,6 +15,8 @@ export interface ShownNumbers {
   packingDensity: number;
   costPerPart: number | null;
   totalCost: number;
+  /** The build's cost by what it pays for, and each part's share (by placement id: the request line), adding up to the total. */
+  cost: Pick<CostEstimate, 'machineHours' | 'heldThroughOutsideCooling' | 'machineCost' | 'energyCost' | 'inertGasCost' | 'powderCost' | 'labourCost' | 'scrapCost' | 'perPart'> | null;
   placed: number;
   unplaced: number;
   areaPerLayerMm2: ArrayLike<number>;
@@ -55,6 +57,7 @@ export function numbersFromEstimate(e: LayoutEstimate | Record<string, unknown>,
     packingDensity: est.powder?.packingDensity,
     costPerPart: est.cost?.costPerPart ?? null,
     totalCost: est.cost?.totalCost,
+    cost: est.cost && Array.isArray(est.cost.perPart) ? est.cost : null,
     placed,
     unplaced,
     areaPerLayerMm2: est.areaPerLayerMm2 ?? [],
@@ -100,6 +103,8 @@ export function estimateWorking(
       material: profiles.material,
       layerHeightMm: instance.layerHeight,
       partsVolumeMm3,
+      // Each part's own volume, as the server takes it, so the cost per part is the same before and after keeping.
+      volumeById: volumeByLine,
       partCount: result.placements.length,
     });
     return numbersFromEstimate(e, result);

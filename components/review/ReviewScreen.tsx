@@ -54,6 +54,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const layout = useLayoutQuery(lab.id, plan.id, plan.chosenLayoutId);
   const chamberMm = plan.machine.chamberMm as Vec3;
   const lineIds = useMemo(() => plan.lines.map((l) => l.requestLineId), [plan.lines]);
+  const partNames = useMemo(() => new Map(plan.lines.map((l) => [l.requestLineId, l.part.name] as const)), [plan.lines]);
   const placements = useMemo(() => (layout.data ? toChamberPlacements(layout.data.result, lineIds) : EMPTY_PLACEMENTS), [layout.data, lineIds]);
   const numbers = useMemo(() => (layout.data ? numbersFromEstimate(layout.data.estimate, layout.data.result) : null), [layout.data]);
   const [cutMm, setCutMm] = useState<number | null>(null);
@@ -125,6 +126,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
         bedAreaMm2={chamberMm[0] * chamberMm[1]}
         cutLayer={cutMm == null ? null : Math.round(cutMm / layerHeightMm)}
         note={calibrationNote(calibration)}
+        partNames={partNames}
       />
       <PlanPowderPanel planId={plan.id} freshKg={numbers?.freshKg} reusedKg={numbers?.reusedKg} layoutLabel={chosen ? `Chosen layout: ${chosen.label}` : 'No chosen layout'} />
       <Card title="History" testID="review-history">

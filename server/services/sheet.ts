@@ -55,6 +55,36 @@ function drawView(
   return h;
 }
 
+type SheetCost = {
+  machineHours: number;
+  heldThroughOutsideCooling: boolean;
+  machineCost: number;
+  energyCost: number;
+  inertGasCost: number;
+  powderCost: number;
+  labourCost: number;
+  scrapCost: number;
+  totalCost: number;
+  perPart: Array<{ id: string; count: number; each: number; total: number }>;
+};
+
+/**
+ * The build sheet's cost lines: what the build costs by what it pays for, then each request line's parts with the
+ * cost of one and of all (shared by volume and height, docs/estimate.md), and their sum, which is the total.
+ * Nothing for an estimate stored before the cost per part was kept.
+ */
+export function costLines(cost: SheetCost | undefined, lines: ReadonlyArray<{ request_line_id: string; part_name: string }>): string[] {
+  if (!cost || !Array.isArray(cost.perPart)) return [];
+  const money = (n: number) => fmt(n, 2);
+  const out = [
+    `Machine ${fmt(cost.machineHours, 1)} h${cost.heldThroughOutsideCooling ? ' (held through the outside cooling: one chamber)' : ''} ${money(cost.machineCost)} · energy ${money(cost.energyCost)} · inert gas ${money(cost.inertGasCost)} · powder ${money(cost.powderCost)} · labour ${money(cost.labourCost)} · scrap allowance ${money(cost.scrapCost)} · total ${money(cost.totalCost)}`,
+  ];
+  const name = new Map(lines.map((l) => [l.request_line_id, l.part_name]));
+  for (const p of cost.perPart) out.push(`${p.count} x ${name.get(p.id) ?? p.id}: ${money(p.each)} each, ${money(p.total)} in all`);
+  out.push(`The parts add up to ${money(cost.perPart.reduce((s, p) => s + p.total, 0))}, the build's total.`);
+  return out;
+}
+
 /** The operator's clipboard copy of an approved plan: views, part list, estimates, checklists and cautions, as a PDF. */
 export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
   const { sequelize } = db;
@@ -124,7 +154,6 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
         `Print ${hours(est?.print?.printSeconds)} (preheat ${hours(est?.print?.preheatSeconds)}) · ${calib}`,
         `Cooling ${hours(est?.cooling?.inMachineSeconds)} in the machine to ${machine?.removalTempC ?? '-'} °C, then ${hours(est?.cooling?.outsideSeconds)} outside to ${machine?.handlingTempC ?? '-'} °C`,
         `Powder: ${fmt(est?.powder?.freshPowderKg, 2)} kg fresh + ${fmt(est?.powder?.reusedPowderKg, 2)} kg reused (cake ${fmt(est?.powder?.cakeMassKg, 2)} kg) · packing density ${fmt((est?.powder?.packingDensity ?? 0) * 100)} %`,
-        `Cost per part ${fmt(est?.cost?.costPerPart, 2)}`,
         est?.profileSource === 'mesh'
           ? `Scan areas from the parts' sliced shapes${est.profileBoxPlacements ? ` (${est.profileBoxPlacements} placed parts counted as boxes)` : ''}`
           : 'Box estimate: scan areas from the parts\' bounding boxes, which read high',
@@ -132,6 +161,14 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
         doc.text(line);
       }
       doc.moveDown();
+
+      const costs = costLines(est?.cost, lines);
+      if (costs.length > 0) {
+        doc.font('Helvetica-Bold').fontSize(11).text('Cost, from the lab\'s rates');
+        doc.font('Helvetica').fontSize(9);
+        for (const line of costs) doc.text(line);
+        doc.moveDown();
+      }
 
       const checklist = (title: string, items: ReturnType<typeof stageChecklist>) => {
         doc.font('Helvetica-Bold').fontSize(11).fillColor(INK).text(title);
