@@ -1,8 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
-import type { Actor } from './plans';
+import type { Actor } from './planCommon';
 import {
   calibrateMachine,
   coolingPoints,
@@ -16,7 +15,7 @@ import {
   type Calibration,
   type RecordedRun,
 } from '../../shared/calibration';
-import { calibrationChoiceSchema, type CalibrationRunView, type CalibrationView } from '../../shared/schemas/runs';
+import type { CalibrationChoiceInput, CalibrationRunView, CalibrationView } from '../../shared/schemas/runs';
 import type { CalibrationLookup } from './layouts';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -209,8 +208,7 @@ export function calibrationService(db: Database) {
     get,
 
     /** A lead leaves a run out of the fit, or takes one left out by default back in; the reason is kept with who and when. */
-    async choose(labId: string, machineId: string, runId: string, user: Actor, body: unknown): Promise<CalibrationView> {
-      const input = parseOrThrow(calibrationChoiceSchema, body);
+    async choose(labId: string, machineId: string, runId: string, user: Actor, input: CalibrationChoiceInput): Promise<CalibrationView> {
       const m = await machine(labId, machineId);
       if (!UUID.test(runId)) throw notFound('That run');
       const [run] = (await rows(m.id)).filter((r) => r.id === runId);

@@ -3,7 +3,7 @@ import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
 import type { FileStorage } from '../storage';
 import type { LayoutsService } from './layouts';
-import { checkPlanId } from './plans';
+import { checkPlanId } from './planCommon';
 import { parseMeshFile, placementTransform, rotationIndex, write3mf, type ThreeMfItemInput, type ThreeMfObjectInput } from '../../shared/geometry';
 import { restingMesh } from '../../shared/geometry/layoutSlices';
 import type { Placement } from '../../shared/packing';

@@ -2,7 +2,6 @@ import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
 import {
   checkPlanId,
   effectiveRule,
@@ -15,7 +14,7 @@ import {
   reopenIfSentBack,
   type Actor,
   type LineRow,
-} from './plans';
+} from './planCommon';
 import { isEditable } from '../../shared/plans/status';
 import {
   decodePlacementBytes,
@@ -36,7 +35,7 @@ import {
 import { estimateLayout, InvalidInputError, layerCount, type CalibrationInput, type LayoutEstimate } from '../../shared/estimate';
 import type { MeshProfiles, ProfilesLookup } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
-import { layoutCreateSchema, layoutPatchSchema, type LayoutChosen, type LayoutCreated, type LayoutSummaryView, type LayoutViewAnswer } from '../../shared/schemas/plans';
+import type { LayoutChosen, LayoutCreate, LayoutCreated, LayoutPatch, LayoutSummaryView, LayoutViewAnswer } from '../../shared/schemas/plans';
 
 /** Format-2 placement bytes (shared/packing/codec.ts) as the Buffer the database driver binds. */
 export function encodePlacements(placements: readonly Placement[], partIds: string[], profiles: LayoutProfiles = {}): Buffer {
@@ -154,8 +153,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
      * Checks the packing against the engine's rules and the plan, estimates it
      * on the plan's machine and material, and stores it with its placements packed as bytes.
      */
-    async add(labId: string, planId: string, user: Actor, body: unknown): Promise<LayoutCreated> {
-      const input = parseOrThrow(layoutCreateSchema, body);
+    async add(labId: string, planId: string, user: Actor, input: LayoutCreate): Promise<LayoutCreated> {
       const parsed = parseInstance(input.instance);
       if (!parsed.ok) refuse(parsed.problems, 'instance');
       const instance = parsed.instance;
@@ -301,8 +299,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       });
     },
 
-    async update(labId: string, planId: string, layoutId: string, body: unknown) {
-      const input = parseOrThrow(layoutPatchSchema, body);
+    async update(labId: string, planId: string, layoutId: string, input: LayoutPatch) {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);

@@ -2,23 +2,36 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import type { Mailer } from '../mail/mailer';
 import { AppError, badRequest, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
 import type { LabsService } from './labs';
 import {
-  allowedNext,
-  canTransition,
-  isEditable,
-  STATUS_LABELS,
-  type PlanStatus,
-} from '../../shared/plans/status';
+  type Actor,
+  INACTIVE_STATUSES,
+  INACTIVE_SQL,
+  checkPlanId,
+  type PlanRow,
+  invalidTransition,
+  readOnly,
+  lockPlan,
+  applyTransition,
+  recordEvent,
+  adjustPlanned,
+  reopenIfSentBack,
+  effectiveRule,
+  linesKey,
+  planLines,
+  profileRow,
+  iso,
+  person,
+  layoutSummary,
+} from './planCommon';
+import { allowedNext, canTransition, isEditable } from '../../shared/plans/status';
 import {
-  openLinesQuerySchema,
-  planCreateSchema,
-  planListQuerySchema,
   planMachineViewSchema,
   planMaterialViewSchema,
-  planUpdateSchema,
-  type LayoutSummaryView,
+  type OpenLinesQuery,
+  type PlanCreate,
+  type PlanListQuery,
+  type PlanUpdate,
   type OpenLineView,
   type PlanEventView,
   type PlanLineView,
@@ -29,199 +42,10 @@ import {
   type PlanView,
 } from '../../shared/schemas/plans';
 
-export type Actor = { id: string; name: string; email?: string };
-
-/** Statuses whose lines no longer hold request quantities: nothing of them is (or will be) printed. */
-export const INACTIVE_STATUSES: readonly PlanStatus[] = ['cancelled', 'aborted'];
-const INACTIVE_SQL = `('cancelled', 'aborted')`;
-
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-export function checkPlanId(id: string): string {
-  if (!UUID.test(id)) throw notFound('That plan');
-  return id;
-}
-
-export type PlanRow = {
-  id: string;
-  lab_id: string;
-  name: string;
-  machine_id: string;
-  material_id: string;
-  status: PlanStatus;
-  version: number;
-  chosen_layout_id: string | null;
-  queue_position: number | null;
-  draft: unknown;
-  created_by: string | null;
-  created_at: Date;
-  updated_at: Date;
-};
-
-/** A line of a plan with what the packing and the checks need. */
-export type LineRow = {
-  id: string;
-  request_line_id: string;
-  position: number;
-  quantity: number;
-  orientation: PlanOrientationRule | null;
-  part_id: string;
-  part_name: string;
-  size_x_mm: number;
-  size_y_mm: number;
-  size_z_mm: number;
-  volume_mm3: number;
-  part_orientation: PlanOrientationRule;
-  request_id: string;
-  request_title: string;
-  due_date: string;
-  priority: string;
-  request_status: string;
-  line_quantity: number;
-  line_planned: number;
-  printed_count: number;
-};
-
-export function invalidTransition(from: PlanStatus, to: PlanStatus): AppError {
-  const allowed = allowedNext(from);
-  const can = allowed.length ? allowed.map((s) => STATUS_LABELS[s].toLowerCase()).join(', ') : 'nothing else';
-  return conflict(
-    'invalid_transition',
-    `A plan that is ${STATUS_LABELS[from].toLowerCase()} cannot become ${STATUS_LABELS[to].toLowerCase()}; from here it can become: ${can}.`,
-    undefined,
-    { status: from, allowed: [...allowed] },
-  );
-}
-
-export function readOnly(status: PlanStatus): AppError {
-  return conflict(
-    'read_only',
-    `This plan is ${STATUS_LABELS[status].toLowerCase()}, so it can no longer be changed` +
-      (status === 'in_review' ? ' until a lead sends it back.' : '.'),
-    undefined,
-    { status },
-  );
-}
-
-/** The plan row, locked for the rest of the transaction; another lab's plan is not found. */
-export async function lockPlan(db: Database, labId: string, planId: string, transaction: Transaction): Promise<PlanRow> {
-  const [row] = await db.sequelize.query<PlanRow>('SELECT * FROM plans WHERE id = $1 AND lab_id = $2 FOR UPDATE', {
-    bind: [checkPlanId(planId), labId],
-    type: QueryTypes.SELECT,
-    transaction,
-  });
-  if (!row) throw notFound('That plan');
-  return row;
-}
-
-/**
- * Moves the plan to `to` if the status machine allows it, records who and
- * when, and bumps the version; returns the new version.
- */
-export async function applyTransition(
-  db: Database,
-  plan: PlanRow,
-  to: PlanStatus,
-  userId: string | null,
-  comment: string | null,
-  transaction: Transaction,
-): Promise<number> {
-  if (!canTransition(plan.status, to)) throw invalidTransition(plan.status, to);
-  await recordEvent(db, plan.id, plan.status, to, userId, comment, transaction);
-  const [rows] = (await db.sequelize.query(
-    'UPDATE plans SET status = $2, version = version + 1, updated_at = now() WHERE id = $1 RETURNING version',
-    { bind: [plan.id, to], transaction },
-  )) as [Array<{ version: number }>, unknown];
-  plan.status = to;
-  plan.version = rows[0].version;
-  return plan.version;
-}
-
-export async function recordEvent(
-  db: Database,
-  planId: string,
-  from: PlanStatus | null,
-  to: PlanStatus,
-  userId: string | null,
-  comment: string | null,
-  transaction: Transaction,
-): Promise<void> {
-  // clock_timestamp, not now(): two changes in one transaction (approved, then queued) keep their order.
-  await db.sequelize.query(
-    `INSERT INTO plan_events (id, plan_id, from_status, to_status, user_id, comment, created_at)
-     VALUES (gen_random_uuid(), $1, $2, $3, $4, $5, clock_timestamp())`,
-    { bind: [planId, from, to, userId, comment], transaction },
-  );
-}
-
-/**
- * Moves request lines' planned counts by what a plan change took or gave
- * back, in the caller's transaction. By differences rather than recounted
- * from the plans, so that parts a run gives back (failed at breakout) stay
- * open whatever other plans do later.
- */
-export async function adjustPlanned(db: Database, deltas: Map<string, number>, transaction: Transaction): Promise<void> {
-  const changed = [...deltas].filter(([, d]) => d !== 0);
-  if (changed.length === 0) return;
-  await db.sequelize.query(
-    `UPDATE request_lines rl SET planned_count = GREATEST(rl.planned_count + d.delta, 0), updated_at = now()
-       FROM (SELECT unnest($1::uuid[]) AS id, unnest($2::int[]) AS delta) d
-      WHERE rl.id = d.id`,
-    { bind: [changed.map(([id]) => id), changed.map(([, d]) => d)], transaction },
-  );
-}
-
 function addDeltas(into: Map<string, number>, lines: Array<{ requestLineId: string; quantity: number }>, sign: 1 | -1) {
   for (const l of lines) into.set(l.requestLineId, (into.get(l.requestLineId) ?? 0) + sign * l.quantity);
 }
 
-/** A planner's edit of a plan that was sent back reopens it as a draft (recorded like any other change). */
-export async function reopenIfSentBack(db: Database, plan: PlanRow, userId: string, transaction: Transaction): Promise<void> {
-  if (plan.status === 'changes_requested') await applyTransition(db, plan, 'draft', userId, null, transaction);
-}
-
-export function effectiveRule(line: Pick<LineRow, 'orientation' | 'part_orientation'>): PlanOrientationRule {
-  return line.orientation ?? line.part_orientation;
-}
-
-/** Which lines, how many and how they may turn: a layout packed for another key no longer fits the plan. */
-export function linesKey(lines: Array<Pick<LineRow, 'request_line_id' | 'quantity' | 'orientation' | 'part_orientation'>>): string {
-  return lines
-    .map((l) => `${l.request_line_id}:${l.quantity}:${effectiveRule(l)}`)
-    .sort()
-    .join(',');
-}
-
-export async function planLines(db: Database, planId: string, transaction?: Transaction): Promise<LineRow[]> {
-  return db.sequelize.query<LineRow>(
-    `SELECT pl.id, pl.request_line_id, pl.position, pl.quantity, pl.orientation,
-            p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
-            p.orientation AS part_orientation, r.id AS request_id, r.title AS request_title,
-            to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.status AS request_status,
-            rl.quantity AS line_quantity, rl.planned_count AS line_planned, rl.printed_count
-       FROM plan_lines pl
-       JOIN request_lines rl ON rl.id = pl.request_line_id
-       JOIN requests r ON r.id = rl.request_id
-       JOIN parts p ON p.id = rl.part_id
-      WHERE pl.plan_id = $1
-      ORDER BY pl.position`,
-    { bind: [planId], type: QueryTypes.SELECT, transaction },
-  );
-}
-
-/** A machine or material of the lab with its profile flattened, as the profile routes show it. */
-export async function profileRow(
-  db: Database,
-  table: 'machines' | 'materials',
-  labId: string,
-  id: string,
-  transaction?: Transaction,
-): Promise<(Record<string, any> & { id: string; name: string }) | null> {
-  const [row] = await db.sequelize.query<{ id: string; name: string; profile: Record<string, unknown> }>(
-    `SELECT id, name, profile FROM ${table} WHERE id = $1 AND lab_id = $2${transaction ? ' FOR SHARE' : ''}`,
-    { bind: [id, labId], type: QueryTypes.SELECT, transaction },
-  );
-  return row ? { id: row.id, ...row.profile, name: row.name } : null;
-}
 
 type LineInput = { requestLineId: string; quantity: number; orientation?: PlanOrientationRule | null };
 
@@ -305,30 +129,6 @@ async function insertLines(db: Database, planId: string, lines: LineInput[], tra
   );
 }
 
-const iso = (d: Date | string) => new Date(d).toISOString();
-const person = (id: string | null, name: string | null) => (id ? { id, name: name ?? '' } : null);
-
-/** The layout row's numbers without the placements and the per-layer profile. */
-export function layoutSummary(row: any, plan: { chosen_layout_id: string | null }, currentKey: string): LayoutSummaryView {
-  return {
-    id: row.id,
-    label: row.label,
-    locked: row.locked,
-    chosen: plan.chosen_layout_id === row.id,
-    matchesPlan: row.lines_key === currentKey,
-    settings: row.settings,
-    placedCount: row.placement_count,
-    unplacedCount: (row.summary.unplaced ?? []).reduce((s: number, u: { count: number }) => s + u.count, 0),
-    heightMm: row.summary.height,
-    layers: row.summary.layers,
-    utilization: row.summary.utilization,
-    elapsedMs: row.summary.elapsedMs,
-    resultFormat: row.result_format,
-    estimate: row.estimate_summary ?? {},
-    createdBy: person(row.created_by, row.created_by_name),
-    createdAt: iso(row.created_at),
-  };
-}
 
 export type PlansDeps = { labs: LabsService; mailer: Mailer; appUrl: string; log?: (msg: string) => void };
 
@@ -427,8 +227,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     get,
     notify,
 
-    async create(labId: string, user: Actor, body: unknown): Promise<PlanCreated> {
-      const input = parseOrThrow(planCreateSchema, body);
+    async create(labId: string, user: Actor, input: PlanCreate): Promise<PlanCreated> {
       return sequelize.transaction(async (transaction) => {
         if (!(await profileRow(db, 'machines', labId, input.machineId, transaction))) {
           throw badRequest('machineId is not a machine of this lab', 'machineId');
@@ -452,8 +251,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       });
     },
 
-    async list(labId: string, query: unknown): Promise<PlanListItem[]> {
-      const q = parseOrThrow(planListQuerySchema, query);
+    async list(labId: string, q: PlanListQuery): Promise<PlanListItem[]> {
       const rows = await sequelize.query<any>(
         `SELECT p.id, p.name, p.status, p.version, p.chosen_layout_id, p.queue_position, p.created_at, p.updated_at,
                 p.machine_id, m.name AS machine_name, p.material_id, mt.name AS material_name,
@@ -494,8 +292,7 @@ export function plansService(db: Database, deps: PlansDeps) {
      * Request lines of open requests that still need parts, most urgent first
      * (priority, then due date): what a planner picks for a plan.
      */
-    async openLines(labId: string, query: unknown): Promise<OpenLineView[]> {
-      const q = parseOrThrow(openLinesQuerySchema, query);
+    async openLines(labId: string, q: OpenLinesQuery): Promise<OpenLineView[]> {
       const rows = await sequelize.query<any>(
         `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
                 p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
@@ -522,8 +319,7 @@ export function plansService(db: Database, deps: PlansDeps) {
      * Saves the planner's changes if nobody saved since `version` was read;
      * otherwise 409 version_conflict with the current version, and nothing changes.
      */
-    async update(labId: string, planId: string, user: Actor, body: unknown): Promise<PlanView> {
-      const input = parseOrThrow(planUpdateSchema, body);
+    async update(labId: string, planId: string, user: Actor, input: PlanUpdate): Promise<PlanView> {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);

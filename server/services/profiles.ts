@@ -22,9 +22,10 @@ function view<P>(row: any): Stored<P> {
  * Machines and materials share one shape: a name unique in the lab plus a
  * profile checked by its shared schema. `what` names the thing in messages.
  * `checked` is the schema with its physical-sense checks (a whole profile is
- * checked by it; a patch first by the plain schema's partial, then merged).
+ * checked by it; a patch first by the plain schema's partial, then merged and
+ * checked whole).
  */
-export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string, checked: z.ZodType = schema) {
+export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string, checked: z.ZodType<z.infer<S>>) {
   type P = z.infer<S>;
   const partial = schema.partial();
 
@@ -48,6 +49,9 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
   }
 
   return {
+    /** What a new one must be (with its physical-sense checks), and what a change may hold (routes check requests with these). */
+    schema: checked,
+    patchSchema: partial,
     async list(labId: string): Promise<Stored<P>[]> {
       const rows = await model.findAll({ where: { labId }, order: [['name', 'ASC']], raw: true });
       return rows.map((r) => view<P>(r));
@@ -55,14 +59,14 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
     async get(labId: string, id: string): Promise<Stored<P>> {
       return view<P>((await find(labId, id)).get({ plain: true }));
     },
-    async create(labId: string, body: unknown): Promise<Stored<P>> {
-      return save(labId, null, parseOrThrow(checked, body) as P);
+    async create(labId: string, profile: P): Promise<Stored<P>> {
+      return save(labId, null, profile);
     },
-    async update(labId: string, id: string, body: unknown): Promise<Stored<P>> {
-      const patch = parseOrThrow(partial, body);
+    async update(labId: string, id: string, patch: Partial<P>): Promise<Stored<P>> {
       const row: any = await find(labId, id);
       const current = { name: row.name, ...row.profile };
-      return save(labId, row, parseOrThrow(checked, { ...current, ...patch }) as P);
+      // Checked whole again, with the physical-sense rules: a change to one field can break a rule that spans several.
+      return save(labId, row, parseOrThrow(checked, { ...current, ...patch }));
     },
     async remove(labId: string, id: string): Promise<void> {
       const row = await find(labId, id);

@@ -1,12 +1,12 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
-import type { Actor } from './plans';
+import type { z } from 'zod';
+import type { Actor } from './planCommon';
 import type { CalibrationService } from './calibration';
 import type { RunEstimate } from './runs';
 import { scheduleQueue, type CurrentRun, type PlanTimes, type QueuedPlan, type RunStage, type StageDurations } from '../../shared/schedule';
-import { queueOrderSchema, type QueueItemView, type QueueView } from '../../shared/schemas/runs';
+import type { queueOrderSchema, QueueItemView, QueueView } from '../../shared/schemas/runs';
 import type { PlanStatus } from '../../shared/plans/status';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -215,8 +215,7 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     },
 
     /** The lead's new order: exactly the machine's queued plans, each once. */
-    async reorder(labId: string, machineId: string, _user: Actor, body: unknown): Promise<QueueView> {
-      const input = parseOrThrow(queueOrderSchema, body);
+    async reorder(labId: string, machineId: string, _user: Actor, input: z.infer<typeof queueOrderSchema>): Promise<QueueView> {
       const machine = await machineRow(labId, machineId);
       await sequelize.transaction(async (transaction) => {
         // The same lock approval takes, so a plan approved meanwhile is either in the list read here or after it.

@@ -1,15 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
-import {
-  requestCreateSchema,
-  requestListQuerySchema,
-  requestPatchSchema,
-  type RequestListResponse,
-  type RequestBuildView,
-  type RequestView,
-} from '../../shared/schemas/requests';
+import type { RequestBuildView, RequestCreate, RequestListQuery, RequestListResponse, RequestPatch, RequestView } from '../../shared/schemas/requests';
 import type { PartsService } from './parts';
 import type { PlanStatus } from '../../shared/plans/status';
 
@@ -241,8 +233,7 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
   return {
     get,
 
-    async create(labId: string, userId: string, body: unknown): Promise<RequestView> {
-      const input = parseOrThrow(requestCreateSchema, body);
+    async create(labId: string, userId: string, input: RequestCreate): Promise<RequestView> {
       checkDueDate(input.dueDate);
       return sequelize.transaction(async (transaction) => {
         await checkMaterial(labId, input.materialId, transaction);
@@ -266,8 +257,7 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
       });
     },
 
-    async list(labId: string, query: unknown): Promise<RequestListResponse> {
-      const q = parseOrThrow(requestListQuerySchema, query);
+    async list(labId: string, q: RequestListQuery): Promise<RequestListResponse> {
       const where = ['r.lab_id = $1'];
       const bind: unknown[] = [labId];
       const param = (v: unknown) => {
@@ -291,8 +281,7 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
     },
 
     /** The creator or a lead, and only while none of it is planned. */
-    async update(labId: string, requestId: string, caller: { userId: string; isLead: boolean }, body: unknown): Promise<RequestView> {
-      const patch = parseOrThrow(requestPatchSchema, body);
+    async update(labId: string, requestId: string, caller: { userId: string; isLead: boolean }, patch: RequestPatch): Promise<RequestView> {
       const current = await get(labId, requestId);
       if (!caller.isLead && current.createdBy?.id !== caller.userId) {
         throw forbidden('Only the person who filed this request or a lead of the lab may change it.');

@@ -1,10 +1,10 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
-import { parseOrThrow } from '../validation';
-import { applyTransition, invalidTransition, lockPlan, type Actor, type PlansService } from './plans';
+import { applyTransition, invalidTransition, lockPlan, type Actor } from './planCommon';
+import type { PlansService } from './plans';
 import type { LabsService } from './labs';
 import { canTransition } from '../../shared/plans/status';
-import { reviewSchema, type PlanReviewed } from '../../shared/schemas/plans';
+import type { PlanReviewed, ReviewInput } from '../../shared/schemas/plans';
 
 export type ReviewDeps = { plans: PlansService; appUrl: string; labs: LabsService };
 
@@ -17,8 +17,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
   const { sequelize } = db;
 
   return {
-    async review(labId: string, planId: string, user: Actor, body: unknown): Promise<PlanReviewed> {
-      const input = parseOrThrow(reviewSchema, body);
+    async review(labId: string, planId: string, user: Actor, input: ReviewInput): Promise<PlanReviewed> {
       const comment = input.comment ? input.comment : null;
       const done = await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);

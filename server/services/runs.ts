@@ -1,8 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, badRequest, conflict } from '../errors';
-import { parseOrThrow } from '../validation';
-import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type PlanRow } from './plans';
+import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type PlanRow } from './planCommon';
 import { allowedNext, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import {
   checkReading,
@@ -20,16 +19,7 @@ import {
 } from '../../shared/floor';
 import type { CakeThermal } from '../../shared/estimate/conduction';
 import type { Mailer } from '../mail/mailer';
-import {
-  ADVANCE_SCHEMAS,
-  acceptReadingSchema,
-  advanceTargetSchema,
-  readingSchema,
-  type CountsInput,
-  type DoneInput,
-  type RunView,
-  type StartRunInput,
-} from '../../shared/schemas/runs';
+import type { AcceptReadingInput, AdvanceInput, CountsInput, DoneInput, ReadingInput, RunView, StartRunInput } from '../../shared/schemas/runs';
 
 const MS_PER_HOUR = 3_600_000;
 /** A time sent with a step may run ahead of the server's clock by this much (phones' clocks drift). */
@@ -564,8 +554,27 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
   return {
     get,
 
-    async advance(labId: string, planId: string, user: Actor, body: unknown): Promise<RunView> {
-      const { to } = parseOrThrow(advanceTargetSchema, body);
+    /**
+     * Whether the plan may move to `to` now, answered (409, with the run as it
+     * is) before the stage's fields are checked: a screen that is behind learns
+     * the build's state rather than a complaint about a form it no longer shows.
+     */
+    async checkAdvance(labId: string, planId: string, to: PlanStatus): Promise<void> {
+      try {
+        await sequelize.transaction(async (transaction) => {
+          const plan = await lockPlan(db, labId, planId, transaction);
+          if (!canTransition(plan.status, to)) throw runConflict(plan.status, to);
+        });
+      } catch (err) {
+        if (err instanceof AppError && err.code === 'invalid_transition' && err.details) {
+          err.details.run = await get(labId, planId).catch(() => null);
+        }
+        throw err;
+      }
+    },
+
+    async advance(labId: string, planId: string, user: Actor, input: AdvanceInput): Promise<RunView> {
+      const { to } = input;
       let mail: Notice[] = [];
       try {
         await sequelize.transaction(async (transaction) => {
@@ -580,12 +589,10 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
             if (row) await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [row.machine_id], transaction });
           }
           const plan = await lockPlan(db, labId, planId, transaction);
+          // Checked again under the lock: the other operator's press may have come first.
           if (!canTransition(plan.status, to)) throw runConflict(plan.status, to);
-          const schema = ADVANCE_SCHEMAS[to];
-          if (!schema) throw badRequest(`to: a plan becomes ${STATUS_LABELS[to].toLowerCase()} through its own route, not at the machine`, 'to');
-          const input = parseOrThrow(schema, body) as { at?: string; runId?: string } & Record<string, any>;
           const c = await load(labId, planId, plan, transaction);
-          checkRunNamed(c, input.runId);
+          checkRunNamed(c, 'runId' in input ? input.runId : undefined);
           const nowMs = Date.now();
           const run = c.run;
           let comment: string | null = null;
@@ -603,7 +610,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
             }
             case 'aborted': {
               const when = stepTime(input.at, run!.started_at, nowMs);
-              comment = input.reason as string;
+              comment = input.to === 'aborted' ? input.reason : null;
               // The hours it printed are kept for the record; an aborted run never counts toward calibration.
               await setRun(run!.id, 'aborted_at = $2, abort_reason = $3, actual_print_hours = $4', [when, comment, (when.getTime() - ms(run!.started_at)) / MS_PER_HOUR], transaction);
               break;
@@ -671,8 +678,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
     },
 
     /** A temperature reading while the build cools; a reading outside the machine says the chamber has left it. */
-    async addReading(labId: string, planId: string, user: Actor, body: unknown): Promise<RunView> {
-      const input = parseOrThrow(readingSchema, body);
+    async addReading(labId: string, planId: string, user: Actor, input: ReadingInput): Promise<RunView> {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (plan.status !== 'cooling') {
@@ -710,8 +716,7 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
     },
 
     /** A lead accepts a reading the cooling model cannot explain, with the reason; it then counts like any other. */
-    async acceptReading(labId: string, planId: string, readingId: string, user: Actor, body: unknown): Promise<RunView> {
-      const input = parseOrThrow(acceptReadingSchema, body);
+    async acceptReading(labId: string, planId: string, readingId: string, user: Actor, input: AcceptReadingInput): Promise<RunView> {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (plan.status !== 'cooling') {

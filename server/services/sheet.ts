@@ -3,7 +3,7 @@ import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { conflict, notFound } from '../errors';
 import type { LayoutsService } from './layouts';
-import { checkPlanId, planLines, profileRow } from './plans';
+import { checkPlanId, planLines, profileRow } from './planCommon';
 import { checkExportable } from './export3mf';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
 import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';

@@ -63,6 +63,7 @@ export const partListQuerySchema = z.strictObject({
 
 export type PartPatch = z.infer<typeof partPatchSchema>;
 export type PartListQuery = z.infer<typeof partListQuerySchema>;
+export type PartUploadFields = z.infer<typeof partUploadFieldsSchema>;
 export type OrientationRule = (typeof ORIENTATION_RULES)[number];
 
 // ---------------------------------------------------------------------------

@@ -142,7 +142,9 @@ export const planCommentSchema = z.strictObject({
 export type PlanCreate = z.infer<typeof planCreateSchema>;
 export type PlanUpdate = z.infer<typeof planUpdateSchema>;
 export type PlanListQuery = z.infer<typeof planListQuerySchema>;
+export type OpenLinesQuery = z.infer<typeof openLinesQuerySchema>;
 export type LayoutCreate = z.infer<typeof layoutCreateSchema>;
+export type LayoutPatch = z.infer<typeof layoutPatchSchema>;
 export type ReviewInput = z.infer<typeof reviewSchema>;
 
 // ---------------------------------------------------------------------------

@@ -54,14 +54,20 @@ export const doneSchema = z.strictObject({
   at,
 });
 
-export const ADVANCE_SCHEMAS: Partial<Record<PlanStatus, z.ZodType>> = {
+/** Each step at the machine by the status it moves the plan to, with the schema of its fields. */
+export const ADVANCE_SCHEMAS = {
   printing: startRunSchema,
   cooling: printEndSchema,
   aborted: abortSchema,
   breakout: breakoutSchema,
   finishing: countsSchema,
   done: doneSchema,
-};
+} as const satisfies Partial<Record<PlanStatus, z.ZodType>>;
+export type MachineStep = keyof typeof ADVANCE_SCHEMAS;
+/** Whether a plan moves to `to` at the machine (other moves have their own routes). */
+export const isMachineStep = (to: PlanStatus): to is MachineStep => Object.hasOwn(ADVANCE_SCHEMAS, to);
+/** One step at the machine, as checked by its stage's schema. */
+export type AdvanceInput = z.infer<(typeof ADVANCE_SCHEMAS)[MachineStep]>;
 export type StartRunInput = z.infer<typeof startRunSchema>;
 export type CountsInput = z.infer<typeof countsSchema>;
 export type DoneInput = z.infer<typeof doneSchema>;

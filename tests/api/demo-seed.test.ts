@@ -4,6 +4,7 @@ import { connectDatabase, migrate } from '../../server/db';
 import { DEMO_LAB_NAME, seedDemoIfEmpty } from '../../server/db/seeders/demo';
 import { dropDatabase, ensureCluster, ensureDatabase, type Cluster } from '../../scripts/lib/postgres';
 import { parseInstance, validateLayout } from '../../shared/packing';
+import { planListQuerySchema } from '../../shared/schemas/plans';
 
 jest.setTimeout(120_000);
 
@@ -28,7 +29,7 @@ test('the first start seeds the demo lab once, with the urgent request packed an
   expect(await seedDemoIfEmpty(running.db, running.services, { planInReview: true })).toBe(true);
   expect(await seedDemoIfEmpty(running.db, running.services, { planInReview: true })).toBe(false);
   const lab: any = await running.db.models.Lab.findOne({ where: { name: DEMO_LAB_NAME }, raw: true });
-  const plans = await running.services.plans.list(lab.id, { status: 'in_review' });
+  const plans = await running.services.plans.list(lab.id, planListQuerySchema.parse({ status: 'in_review' }));
   expect(plans).toHaveLength(1);
   const plan = await running.services.plans.get(lab.id, plans[0].id);
   expect(plan.lines.every((l) => l.request.priority === 'urgent')).toBe(true);

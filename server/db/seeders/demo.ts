@@ -7,6 +7,7 @@ import { demoMachines, demoMaterials } from '../../../shared/demo/profiles';
 import { ROLES, type Role } from '../../../shared/schemas/auth';
 import { demoLibrary, translation, write3mf, writeAsciiStl, writeBinaryStl, type DemoPart } from '../../../shared/geometry';
 import type { Priority } from '../../../shared/schemas/requests';
+import { layoutCreateSchema, openLinesQuerySchema, planCreateSchema } from '../../../shared/schemas/plans';
 
 /**
  * The demo lab: an invented robotics start-up's prototyping lab. Every demo
@@ -83,17 +84,22 @@ export async function seedPlanInReview(db: Database, services: Services) {
   const actor = { id: planner.id, name: planner.name, email: planner.email };
   const machines = await services.machines.list(lab.id);
   const machine = machines.find((m) => m.chamberCount > 1) ?? machines[0];
-  const open = await services.plans.openLines(lab.id, {});
+  const open = await services.plans.openLines(lab.id, openLinesQuerySchema.parse({}));
   const first = open[0];
   if (!machine || !first || !first.request.materialId) return;
   const lines = open.filter((l: any) => l.request.id === first.request.id);
   const material = await services.materials.get(lab.id, first.request.materialId);
-  const created = await services.plans.create(lab.id, actor, {
-    name: `${first.request.title} on ${machine.name}`,
-    machineId: machine.id,
-    materialId: material.id,
-    lines: lines.map((l: any) => ({ requestLineId: l.requestLineId, quantity: l.remaining })),
-  });
+  // Checked with the routes' schemas, as the editor's requests are.
+  const created = await services.plans.create(
+    lab.id,
+    actor,
+    planCreateSchema.parse({
+      name: `${first.request.title} on ${machine.name}`,
+      machineId: machine.id,
+      materialId: material.id,
+      lines: lines.map((l: any) => ({ requestLineId: l.requestLineId, quantity: l.remaining })),
+    }),
+  );
   const plan = await services.plans.get(lab.id, created.id);
   const instance = buildInstance(
     plan.lines.map((l) => ({ requestLineId: l.requestLineId, quantity: l.quantity, orientation: l.orientation, sizeMm: l.part.sizeMm })),
@@ -104,7 +110,7 @@ export async function seedPlanInReview(db: Database, services: Services) {
   const parsed = parseInstance(instance);
   if (!parsed.ok) throw new Error(`demo plan: ${parsed.problems[0].field} ${parsed.problems[0].message}`);
   const result = packSync(parsed.instance);
-  const layout = await services.layouts.add(lab.id, created.id, actor, { instance: parsed.instance, result, label: 'Seed 1' });
+  const layout = await services.layouts.add(lab.id, created.id, actor, layoutCreateSchema.parse({ instance: parsed.instance, result, label: 'Seed 1' }));
   await services.layouts.choose(lab.id, created.id, layout.id, actor);
   await services.plans.submit(lab.id, created.id, actor, null);
 }

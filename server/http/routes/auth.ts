@@ -1,6 +1,6 @@
 import { Router, type RequestHandler } from 'express';
 import { passwordChangeSchema, resetRequestSchema, resetSchema, signInSchema, signUpSchema } from '../../../shared/schemas/auth';
-import { parseOrThrow } from '../../validation';
+import { validate } from '../validate';
 import { clearSessionCookie, requireSession, startSession } from '../middleware/auth';
 import { sessionsService } from '../../services/sessions';
 import { ctx, requireUser } from '../context';
@@ -10,17 +10,20 @@ import type { AppDeps } from '../../app';
 export function authRoutes(deps: AppDeps, limiter: RequestHandler, resetLimiter: RequestHandler): Router {
   const r = Router();
   const secure = deps.config.appUrl.startsWith('https:');
+  const signUp = validate(signUpSchema);
+  const signIn = validate(signInSchema);
+  const passwordChange = validate(passwordChangeSchema);
+  const resetRequest = validate(resetRequestSchema);
+  const reset = validate(resetSchema);
 
-  r.post('/auth/sign-up', limiter, async (req, res) => {
-    const input = parseOrThrow(signUpSchema, req.body);
-    const userId = await deps.services.auth.signUp(input);
+  r.post('/auth/sign-up', limiter, signUp, async (req, res) => {
+    const userId = await deps.services.auth.signUp(signUp.input(req));
     await startSession(deps.auth, req, res, userId, secure);
     res.status(201).json(await deps.services.labs.me(userId));
   });
 
-  r.post('/auth/sign-in', limiter, async (req, res) => {
-    const input = parseOrThrow(signInSchema, req.body);
-    const userId = await deps.services.auth.signIn(input);
+  r.post('/auth/sign-in', limiter, signIn, async (req, res) => {
+    const userId = await deps.services.auth.signIn(signIn.input(req));
     await startSession(deps.auth, req, res, userId, secure);
     res.json(await deps.services.labs.me(userId));
   });
@@ -32,21 +35,20 @@ export function authRoutes(deps: AppDeps, limiter: RequestHandler, resetLimiter:
     res.status(204).end();
   });
 
-  r.post('/auth/password', requireSession, limiter, async (req, res) => {
-    const input = parseOrThrow(passwordChangeSchema, req.body);
-    await deps.services.auth.changePassword(requireUser(req).id, ctx(req).sessionId!, input);
+  r.post('/auth/password', requireSession, limiter, passwordChange, async (req, res) => {
+    await deps.services.auth.changePassword(requireUser(req).id, ctx(req).sessionId!, passwordChange.input(req));
     res.status(204).end();
   });
 
   // Same answer whether or not the address has an account; limited per address and per e-mail.
-  r.post('/auth/reset-request', limiter, resetLimiter, async (req, res) => {
-    const { email } = parseOrThrow(resetRequestSchema, req.body);
+  r.post('/auth/reset-request', limiter, resetLimiter, resetRequest, async (req, res) => {
+    const { email } = resetRequest.input(req);
     deps.services.auth.requestReset(email);
     res.status(202).json({ ok: true });
   });
 
-  r.post('/auth/reset', limiter, async (req, res) => {
-    await deps.services.auth.resetPassword(parseOrThrow(resetSchema, req.body));
+  r.post('/auth/reset', limiter, reset, async (req, res) => {
+    await deps.services.auth.resetPassword(reset.input(req));
     clearSessionCookie(deps.auth, req, res, secure);
     res.status(204).end();
   });

@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { inviteAcceptSchema, inviteCreateSchema, memberUpdateSchema } from '../../../shared/schemas/auth';
-import { parseOrThrow } from '../../validation';
+import { validate } from '../validate';
 import { labAccess, setSessionCookie } from '../middleware/auth';
 import { ctx, requireLab } from '../context';
 import { notFound } from '../../errors';
@@ -13,12 +13,15 @@ export function labRoutes(deps: AppDeps): Router {
   const member = labAccess(labs);
   const lead = labAccess(labs, ['lead']);
   const secure = deps.config.appUrl.startsWith('https:');
+  const memberUpdate = validate(memberUpdateSchema);
+  const inviteCreate = validate(inviteCreateSchema);
+  const inviteAccept = validate(inviteAcceptSchema);
 
   r.get('/labs/:labId/members', member, async (req, res) => {
     res.json(await labs.members(requireLab(req).labId));
   });
-  r.patch('/labs/:labId/members/:userId', lead, async (req, res) => {
-    const { roles } = parseOrThrow(memberUpdateSchema, req.body);
+  r.patch('/labs/:labId/members/:userId', lead, memberUpdate, async (req, res) => {
+    const { roles } = memberUpdate.input(req);
     const { labId, user } = requireLab(req);
     res.json(await labs.setRoles(labId, String(req.params.userId), roles, user.id));
   });
@@ -31,8 +34,8 @@ export function labRoutes(deps: AppDeps): Router {
   r.get('/labs/:labId/invites', lead, async (req, res) => {
     res.json(await invites.list(requireLab(req).labId));
   });
-  r.post('/labs/:labId/invites', lead, async (req, res) => {
-    const { email, roles } = parseOrThrow(inviteCreateSchema, req.body);
+  r.post('/labs/:labId/invites', lead, inviteCreate, async (req, res) => {
+    const { email, roles } = inviteCreate.input(req);
     const { labId, user } = requireLab(req);
     res.status(201).json(await invites.create(labId, user, email, roles));
   });
@@ -46,9 +49,8 @@ export function labRoutes(deps: AppDeps): Router {
   r.get('/invites/:token', async (req, res) => {
     res.json(await invites.lookup(String(req.params.token)));
   });
-  r.post('/invites/:token/accept', async (req, res) => {
-    const input = parseOrThrow(inviteAcceptSchema, req.body ?? {});
-    const userId = await invites.accept(String(req.params.token), input, ctx(req).user?.id);
+  r.post('/invites/:token/accept', inviteAccept, async (req, res) => {
+    const userId = await invites.accept(String(req.params.token), inviteAccept.input(req), ctx(req).user?.id);
     if (ctx(req).user?.id !== userId) {
       const session = await deps.auth.createSession(userId, {});
       setSessionCookie(deps.auth, req, res, session.id, secure);
@@ -64,9 +66,11 @@ export function labRoutes(deps: AppDeps): Router {
       return id;
     };
     r.get(`/labs/:labId/${path}`, member, async (req, res) => res.json(await service.list(requireLab(req).labId)));
-    r.post(`/labs/:labId/${path}`, lead, async (req, res) => res.status(201).json(await service.create(requireLab(req).labId, req.body)));
+    const create = validate(service.schema);
+    const patch = validate(service.patchSchema);
+    r.post(`/labs/:labId/${path}`, lead, create, async (req, res) => res.status(201).json(await service.create(requireLab(req).labId, create.input(req))));
     r.get(`/labs/:labId/${path}/:id`, member, async (req, res) => res.json(await service.get(requireLab(req).labId, param(req))));
-    r.patch(`/labs/:labId/${path}/:id`, lead, async (req, res) => res.json(await service.update(requireLab(req).labId, param(req), req.body)));
+    r.patch(`/labs/:labId/${path}/:id`, lead, patch, async (req, res) => res.json(await service.update(requireLab(req).labId, param(req), patch.input(req))));
     r.delete(`/labs/:labId/${path}/:id`, lead, async (req, res) => {
       await service.remove(requireLab(req).labId, param(req));
       res.status(204).end();

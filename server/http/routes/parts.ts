@@ -1,15 +1,14 @@
-import { Router, type Request, type RequestHandler } from 'express';
+import { Router, type ErrorRequestHandler, type RequestHandler } from 'express';
 import multer from 'multer';
 import { unlink } from 'node:fs/promises';
 import { AppError, badRequest } from '../../errors';
-import { MAX_FILES_PER_UPLOAD, partUploadFieldsSchema, type PartUploadResponse, type RejectedFile } from '../../../shared/schemas/parts';
+import { MAX_FILES_PER_UPLOAD, partListQuerySchema, partPatchSchema, partUploadFieldsSchema } from '../../../shared/schemas/parts';
 import { quoteName } from '../../../shared/geometry';
 import { hasRole, labAccess } from '../middleware/auth';
 import { requireLab } from '../context';
-import { parseOrThrow } from '../../validation';
+import { validate } from '../validate';
 import type { AppDeps } from '../../app';
 import { plainFileName } from '../../services/parts';
-
 
 /**
  * Multipart upload streamed to temp files on disk (never whole in memory),
@@ -49,33 +48,43 @@ function uploadMiddleware(deps: AppDeps): RequestHandler {
   };
 }
 
+/**
+ * The temp files of an upload refused before the parts service took them
+ * (bad form fields, say) are removed before the error is answered.
+ */
+const discardUploadOnError: ErrorRequestHandler = async (err, req, _res, next) => {
+  const files = (req.files as Express.Multer.File[] | undefined) ?? [];
+  await Promise.all(files.map((f) => unlink(f.path).catch(() => {})));
+  next(err);
+};
+
 export function partRoutes(deps: AppDeps): Router {
   const r = Router();
   const { labs, parts } = deps.services;
   const member = labAccess(labs);
   // Designers and planners upload; a lead may too, as the one who curates the library.
   const uploader = labAccess(labs, ['designer', 'planner', 'lead']);
+  const uploadFields = validate(partUploadFieldsSchema);
+  const listQuery = validate(partListQuerySchema, 'query');
+  const patch = validate(partPatchSchema);
 
-  r.post('/labs/:labId/parts', uploader, uploadMiddleware(deps), async (req, res) => {
+  const importUpload: RequestHandler = async (req, res) => {
+    const { labId, user } = requireLab(req);
     const files = (req.files as Express.Multer.File[] | undefined) ?? [];
-    let out: PartUploadResponse;
-    try {
-      out = await importUploads(deps, req, files);
-    } finally {
-      // Before answering, so a client that sees the answer never sees the temp files.
-      await Promise.all(files.map((f) => unlink(f.path).catch(() => {})));
-    }
-    res.status(201).json(out);
-  });
+    const { response, unsaved } = await parts.importUploads(labId, user.id, files, uploadFields.input(req));
+    for (const e of unsaved) deps.log(`upload: a file was not saved: ${(e as Error)?.stack ?? String(e)}`);
+    res.status(201).json(response);
+  };
+  r.post('/labs/:labId/parts', uploader, uploadMiddleware(deps), uploadFields, importUpload, discardUploadOnError);
 
-  r.get('/labs/:labId/parts', member, async (req, res) => {
-    res.json(await parts.list(requireLab(req).labId, { ...req.query }));
+  r.get('/labs/:labId/parts', member, listQuery, async (req, res) => {
+    res.json(await parts.list(requireLab(req).labId, listQuery.input(req)));
   });
   r.get('/labs/:labId/parts/:partId', member, async (req, res) => {
     res.json(await parts.get(requireLab(req).labId, String(req.params.partId)));
   });
-  r.patch('/labs/:labId/parts/:partId', uploader, async (req, res) => {
-    res.json(await parts.update(requireLab(req).labId, String(req.params.partId), req.body ?? {}));
+  r.patch('/labs/:labId/parts/:partId', uploader, patch, async (req, res) => {
+    res.json(await parts.update(requireLab(req).labId, String(req.params.partId), patch.input(req)));
   });
   r.delete('/labs/:labId/parts/:partId', member, async (req, res) => {
     const { labId, user } = requireLab(req);
@@ -93,46 +102,4 @@ export function partRoutes(deps: AppDeps): Router {
     res.send(file.bytes);
   });
   return r;
-}
-
-/** Measures and stores every file; throws when none could be kept. */
-async function importUploads(deps: AppDeps, req: Request, files: Express.Multer.File[]): Promise<PartUploadResponse> {
-  const { labId, user } = requireLab(req);
-  const fields = parseOrThrow(partUploadFieldsSchema, { ...(req.body ?? {}) });
-  if (files.length === 0) throw badRequest('Choose at least one file to upload (fields named "file").', 'file');
-  // Measuring runs in parallel in the worker pool; each file stands alone.
-  const results = await Promise.all(
-    files.map((f) =>
-      deps.services.parts.importFile({
-        labId,
-        userId: user.id,
-        filename: f.originalname,
-        source: { path: f.path, sizeBytes: f.size },
-        unit: fields.unit,
-        split: fields.split,
-      }),
-    ),
-  );
-  const out: PartUploadResponse = { parts: [], rejected: [] };
-  const serverErrors: unknown[] = [];
-  for (const result of results) {
-    if (result.ok) out.parts.push(...result.parts);
-    else {
-      out.rejected.push(result.rejected);
-      if (result.serverError) serverErrors.push(result.serverError);
-    }
-  }
-  if (out.parts.length > 0) {
-    for (const e of serverErrors) deps.log(`upload: a file was not saved: ${(e as Error)?.stack ?? String(e)}`);
-    return out;
-  }
-  // Nothing kept: a server-side failure is the server's answer, not the files' fault.
-  if (serverErrors.length > 0) throw serverErrors[0];
-  throw allRejected(out.rejected);
-}
-
-function allRejected(rejected: RejectedFile[]): AppError {
-  const message =
-    rejected.length === 1 ? rejected[0].message : `None of the ${rejected.length} files could be used. ${rejected.map((x) => x.message).join(' ')}`;
-  return new AppError(400, 'invalid_file', message, 'file', { rejected });
 }
