@@ -6,7 +6,7 @@ import { AppError, badRequest, conflict, notFound } from '../errors';
 import { parseOrThrow } from '../validation';
 import type { LabsService } from './labs';
 import type { QueueService } from './queue';
-import type { Actor } from './plans';
+import type { Actor } from './planCommon';
 import {
   addToPool,
   buildWarnings,
