@@ -102,8 +102,9 @@ export function PowderBeforeStart({ load, onUse, canAct }: { load: PowderLoad; o
           ? p.lots.map((l) => (
               <Field
                 key={l.id}
-                label={`Lot ${l.code} · received ${l.receivedOn}${l.expiresOn && l.expiresOn < todayText() ? ' · expired' : ''} · ${kg(l.onHandKg)} on hand`}
+                label={`Lot ${l.code}`}
                 unit="kg"
+                hint={`${kg(l.onHandKg)} on hand · received ${l.receivedOn}${l.expiresOn && l.expiresOn < todayText() ? ' · expired' : ''}`}
                 value={picks![l.id] ?? ''}
                 onChangeText={(t) => setPicks({ ...picks!, [l.id]: t })}
                 keyboardType="decimal-pad"

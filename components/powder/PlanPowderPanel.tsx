@@ -68,7 +68,7 @@ export function PlanPowderPanel({ planId, freshKg, reusedKg, layoutLabel }: { pl
             <Cell label="Reused on hand" value={kgText(p.stock.reusedKg)} />
             <Cell label="This build, reused" value={kgText(reusedKg)} />
             <Cell label="Reused left after" value={kgText(reusedLeft)} testID="plan-powder-reused-left" danger={reusedLeft < 0} />
-            <Cell label="Fill: fresh share · mean age" value={`${Math.round(ratio * 100)} % · ${ageText(fill)}`} testID="plan-powder-fill" />
+            <Cell label="Fill: fresh · age" value={`${Math.round(ratio * 100)} % · ${ageText(fill)}`} testID="plan-powder-fill" />
           </View>
           {freshLeft < 0 ? (
             <Notice tone="danger" testID="plan-powder-short">

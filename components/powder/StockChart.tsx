@@ -8,6 +8,8 @@ import { chartScale, readoutAt, stepPath, type StockSeriesInput } from './chartM
 
 const LEFT = 44;
 const BOTTOM = 22;
+/** Room above the plot for the top tick's label and the unit. */
+const TOP = 18;
 const kg = (v: number | null) => (v === null ? '–' : `${v.toFixed(1)} kg`);
 
 /**
@@ -20,7 +22,8 @@ export function StockChart({ series, heightPx = 200, testID = 'stock-chart' }: {
   const [atMs, setAtMs] = useState<number | null>(null);
   const onLayout = (e: LayoutChangeEvent) => setWidth(Math.round(e.nativeEvent.layout.width));
   const plotW = Math.max(0, width - LEFT - 8);
-  const plotH = heightPx - BOTTOM;
+  const plotH = heightPx - BOTTOM - TOP;
+  const yAt = (kgValue: number) => TOP + scale.y(kgValue, plotH);
   const scale = useMemo(() => chartScale(series), [series]);
   const paths = useMemo(() => {
     if (plotW <= 0) return null;
@@ -56,10 +59,10 @@ export function StockChart({ series, heightPx = 200, testID = 'stock-chart' }: {
         {paths ? (
           <Svg width={width} height={heightPx}>
             {scale.yTicks.map((v) => (
-              <Line key={`y${v}`} x1={LEFT} x2={LEFT + plotW} y1={scale.y(v, plotH)} y2={scale.y(v, plotH)} stroke={colors.line} strokeWidth={1} />
+              <Line key={`y${v}`} x1={LEFT} x2={LEFT + plotW} y1={yAt(v)} y2={yAt(v)} stroke={colors.line} strokeWidth={1} />
             ))}
             {scale.yTicks.map((v) => (
-              <SvgText key={`yl${v}`} x={LEFT - 6} y={scale.y(v, plotH) + 4} fontSize={10} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="end">
+              <SvgText key={`yl${v}`} x={LEFT - 6} y={yAt(v) + 4} fontSize={10} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="end">
                 {String(v)}
               </SvgText>
             ))}
@@ -68,17 +71,17 @@ export function StockChart({ series, heightPx = 200, testID = 'stock-chart' }: {
                 {format(t, 'd MMM')}
               </SvgText>
             ))}
-            <Line x1={LEFT} x2={LEFT} y1={0} y2={plotH} stroke={colors.lineStrong} />
-            <Line x1={LEFT} x2={LEFT + plotW} y1={plotH} y2={plotH} stroke={colors.lineStrong} />
+            <Line x1={LEFT} x2={LEFT} y1={TOP} y2={TOP + plotH} stroke={colors.lineStrong} />
+            <Line x1={LEFT} x2={LEFT + plotW} y1={TOP + plotH} y2={TOP + plotH} stroke={colors.lineStrong} />
             {series.reorderLevelKg > 0 ? (
-              <Line x1={LEFT} x2={LEFT + plotW} y1={scale.y(series.reorderLevelKg, plotH)} y2={scale.y(series.reorderLevelKg, plotH)} stroke={colors.danger} strokeDasharray="2 4" />
+              <Line x1={LEFT} x2={LEFT + plotW} y1={yAt(series.reorderLevelKg)} y2={yAt(series.reorderLevelKg)} stroke={colors.danger} strokeDasharray="2 4" />
             ) : null}
-            <Line x1={LEFT + scale.x(series.nowMs, plotW)} x2={LEFT + scale.x(series.nowMs, plotW)} y1={0} y2={plotH} stroke={colors.inkFaint} strokeDasharray="3 3" />
-            <Path d={paths.reused} transform={`translate(${LEFT} 0)`} stroke={colors.teal} strokeWidth={2} fill="none" />
-            <Path d={paths.fresh} transform={`translate(${LEFT} 0)`} stroke={colors.ember} strokeWidth={2.2} fill="none" />
-            <Path d={paths.ahead} transform={`translate(${LEFT} 0)`} stroke={colors.ember} strokeWidth={2} strokeDasharray="6 4" fill="none" />
-            <Line x1={LEFT + scale.x(shownAt, plotW)} x2={LEFT + scale.x(shownAt, plotW)} y1={0} y2={plotH} stroke={colors.ink} strokeWidth={1} />
-            <SvgText x={4} y={10} fontSize={10} fontFamily={fonts.mono} fill={colors.inkMuted}>
+            <Line x1={LEFT + scale.x(series.nowMs, plotW)} x2={LEFT + scale.x(series.nowMs, plotW)} y1={TOP} y2={TOP + plotH} stroke={colors.inkFaint} strokeDasharray="3 3" />
+            <Path d={paths.reused} transform={`translate(${LEFT} ${TOP})`} stroke={colors.teal} strokeWidth={2} fill="none" />
+            <Path d={paths.fresh} transform={`translate(${LEFT} ${TOP})`} stroke={colors.ember} strokeWidth={2.2} fill="none" />
+            <Path d={paths.ahead} transform={`translate(${LEFT} ${TOP})`} stroke={colors.ember} strokeWidth={2} strokeDasharray="6 4" fill="none" />
+            <Line x1={LEFT + scale.x(shownAt, plotW)} x2={LEFT + scale.x(shownAt, plotW)} y1={TOP} y2={TOP + plotH} stroke={colors.ink} strokeWidth={1} />
+            <SvgText x={LEFT - 6} y={10} fontSize={10} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="end">
               kg
             </SvgText>
           </Svg>

@@ -42,6 +42,14 @@ beforeAll(async () => {
   // The fixtures go through an app of their own on the same database: the
   // served one only takes writes from the browser's origin.
   const running = await startTestApp();
+  try {
+    await fixtures(running);
+  } finally {
+    await running.close();
+  }
+});
+
+async function fixtures(running: Awaited<ReturnType<typeof startTestApp>>) {
   lab = await labWithCrew(running, 'powder-b');
   const twin = await lab.agent.post(`/api/labs/${lab.labId}/machines`).send({ ...lab.machine, name: 'Second chamber' });
   if (twin.status !== 201) throw new Error(`machine failed: ${JSON.stringify(twin.body)}`);
@@ -64,7 +72,8 @@ beforeAll(async () => {
   await post('/powder/lots', { materialId: lab.materialId, code: 'OLD-01', kg: oldKg, receivedOn: day(-60), makerLot: 'B 2231-7' });
   await post('/powder/lots', { materialId: lab.materialId, code: 'NEW-02', kg: 40, receivedOn: day(-5), makerLot: 'B 2290-1', expiresOn: day(300) });
   await post('/powder/movements', { kind: 'adjusted', materialId: lab.materialId, countedKg: Math.ceil((loadA.reusedPowderKg + loadB.reusedPowderKg) * 15) / 10, reason: 'first count of the reused bin' });
-  await post('/powder/materials/' + lab.materialId + '/policy', { maxMeanAgeBuilds: 3, minRefreshRatio: 0.3, minMvrCm3Per10Min: 18, reorderLevelKg: 30, leadTimeDays: 14 });
+  const policy = await lab.agent.put(`/api/labs/${lab.labId}/powder/materials/${lab.materialId}/policy`).send({ maxMeanAgeBuilds: 3, minRefreshRatio: 0.3, minMvrCm3Per10Min: 18, reorderLevelKg: 30, leadTimeDays: 14 });
+  if (policy.status !== 200) throw new Error(`policy: ${policy.status} ${JSON.stringify(policy.body)}`);
   await post('/powder/checks', { materialId: lab.materialId, mvrCm3Per10Min: 23.5, testTempC: 235, testLoadKg: 5 });
   // Build B on the second machine runs to breakout through the API.
   const op = lab.operator.agent;
@@ -76,8 +85,7 @@ beforeAll(async () => {
   await lab.agent.post(`${base}/run/readings/${r.body.readings[0].id}/accept`).send({ runId: s.body.id, reason: 'Test cake, cooled by hand' });
   const br = await op.post(`${base}/run/advance`).send({ runId: s.body.id, to: 'breakout' });
   if (br.status !== 200) throw new Error(`breakout B: ${br.status} ${JSON.stringify(br.body)}`);
-  await running.close();
-});
+}
 
 afterAll(async () => {
   await served?.close();
