@@ -41,6 +41,8 @@ import { runsService } from './services/runs';
 import { powderService } from './services/powder';
 import { sheetService } from './services/sheet';
 import { export3mfService } from './services/export3mf';
+import { thumbnailsService } from './services/thumbnails';
+import { partThumbnail } from './mesh/pool';
 import { createStorage } from './storage';
 import { meshJobsService, type MeshQueueSettings } from './jobs/meshJobs';
 import type PgBoss from 'pg-boss';
@@ -93,7 +95,8 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
-  return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder };
+  const thumbnails = thumbnailsService(db, { storage, parts, draw: partThumbnail });
+  return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, calibration, queue, runs, sheet, export3mf, powder, thumbnails };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */

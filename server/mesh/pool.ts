@@ -11,7 +11,7 @@ import path from 'node:path';
 import { Piscina } from 'piscina';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
 import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
-import type { FileMeasureResult, MeasureReply, MeasureRequest, ServerProblem } from './protocol';
+import type { FileMeasureResult, MeasureReply, MeasureRequest, ServerProblem, ThumbnailJob } from './protocol';
 
 export interface MeshPoolOptions {
   /** Worker threads (default: half the cores, at least 1, at most 4). */
@@ -61,6 +61,15 @@ export class MeshPool {
     if ('error' in reply) throw new Error(`slicing the layout failed: ${reply.error}`);
     if (!('profile' in reply)) throw new Error('a layout profile job got a measure result back');
     return reply.profile;
+  }
+
+  /** Draws a stored part's picture in a worker; null when the file holds no such part. */
+  async thumbnail(job: ThumbnailJob): Promise<Uint8Array | null> {
+    const reply = await this.run({ thumbnail: job, options: { filename: job.filename } }, job.filename);
+    if ('problem' in reply) throw new Error(reply.problem.message);
+    if ('error' in reply) throw new Error(`drawing ${job.filename} failed: ${reply.error}`);
+    if (!('png' in reply)) throw new Error('a thumbnail job got another answer back');
+    return reply.png;
   }
 
   async close(): Promise<void> {
@@ -121,4 +130,9 @@ export function measureFile(input: string | Uint8Array, options: MeasureOptions)
 /** Slices a layout's parts from their files in a worker thread of the process-wide pool. */
 export function profileLayout(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
   return meshPool().profile(job);
+}
+
+/** Draws a stored part's picture in a worker thread of the process-wide pool. */
+export function partThumbnail(job: ThumbnailJob): Promise<Uint8Array | null> {
+  return meshPool().thumbnail(job);
 }

@@ -1,5 +1,16 @@
-import type { MeasureOptions, MeasureResult, Problem } from '../../shared/geometry';
+import type { LengthUnit, MeasureOptions, MeasureResult, Problem } from '../../shared/geometry';
 import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
+
+/** A part's picture for the library: one part of a stored file, turned as stored, drawn `sizePx` square. */
+export interface ThumbnailJob {
+  bytes: Uint8Array;
+  filename: string;
+  unit: LengthUnit;
+  split: boolean;
+  partIndex: number;
+  rotationDeg: readonly number[];
+  sizePx: number;
+}
 
 /**
  * What the server asks a mesh worker: measure a file on disk (an upload's temp
@@ -12,11 +23,14 @@ export interface MeasureRequest {
   bytes?: Uint8Array;
   options: MeasureOptions;
   profile?: ProfileLayoutJob;
+  thumbnail?: ThumbnailJob;
 }
 
 export type MeasureReply =
   | { id: number; result: MeasureResult }
   | { id: number; profile: ProfileLayoutResult }
+  /** A PNG, or null when the file holds no such part. */
+  | { id: number; png: Uint8Array | null }
   | { id: number; error: string };
 
 /** Problems the server adds to the file's own: measuring took too long or the worker died. */

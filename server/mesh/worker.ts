@@ -4,15 +4,18 @@
  * mesh never blocks the event loop of the process that asked.
  */
 import { readFile } from 'node:fs/promises';
-import { measureMeshFile, SliceCache } from '../../shared/geometry';
-import { profileLayoutFromFiles, RestingMeshCache } from '../../shared/geometry/layoutSlices';
-import type { MeasureReply, MeasureRequest } from './protocol';
+import { PNG } from 'pngjs';
+import { measureMeshFile, parseMeshFile, SliceCache } from '../../shared/geometry';
+import { profileLayoutFromFiles, restingMesh, RestingMeshCache } from '../../shared/geometry/layoutSlices';
+import { renderThumbnail } from '../../shared/geometry/thumbnail';
+import type { MeasureReply, MeasureRequest, ThumbnailJob } from './protocol';
 
 // Parts read and sliced before, kept for the next layout of the same parts in this thread.
 const caches = { meshes: new RestingMeshCache(), slices: new SliceCache() };
 
 export default async function handle(request: MeasureRequest): Promise<MeasureReply> {
   try {
+    if (request.thumbnail) return { id: request.id, png: thumbnailPng(request.thumbnail) };
     if (request.profile) {
       // Copied back by structured clone: a profile is a few numbers a layer.
       return { id: request.id, profile: profileLayoutFromFiles(request.profile, caches) };
@@ -25,4 +28,15 @@ export default async function handle(request: MeasureRequest): Promise<MeasureRe
   } catch (error) {
     return { id: request.id, error: error instanceof Error ? error.message : String(error) };
   }
+}
+
+function thumbnailPng(job: ThumbnailJob): Uint8Array | null {
+  const parsed = parseMeshFile(job.bytes, { filename: job.filename, unit: job.unit, splitObjects: job.split });
+  const part = parsed.ok ? parsed.parts[job.partIndex] : undefined;
+  if (!part) return null;
+  const picture = renderThumbnail(restingMesh(part, job.rotationDeg), job.sizePx);
+  const png = new PNG({ width: picture.width, height: picture.height });
+  png.data = Buffer.from(picture.rgba.buffer, picture.rgba.byteOffset, picture.rgba.byteLength);
+  const out = PNG.sync.write(png, { colorType: 6 });
+  return new Uint8Array(out.buffer, out.byteOffset, out.byteLength);
 }

@@ -9,6 +9,7 @@ import * as m0007 from './0007-estimate-profile-fields';
 import * as m0008 from './0008-floor-integrity';
 import * as m0009 from './0009-mesh-jobs';
 import * as m0010 from './0010-accounts-audit';
+import * as m0011 from './0011-part-thumbnails';
 
 export type Migration = {
   name: string;
@@ -28,4 +29,5 @@ export const migrations: Migration[] = [
   { name: '0008-floor-integrity', ...m0008 },
   { name: '0009-mesh-jobs', ...m0009 },
   { name: '0010-accounts-audit', ...m0010 },
+  { name: '0011-part-thumbnails', ...m0011 },
 ];

@@ -91,6 +91,14 @@ export function partRoutes(deps: AppDeps): Router {
     await parts.remove(labId, String(req.params.partId), { userId: user.id, isLead: hasRole(req, 'lead') });
     res.status(204).end();
   });
+  r.get('/labs/:labId/parts/:partId/thumbnail.png', member, async (req, res) => {
+    const { png, etag } = await deps.services.thumbnails.png(requireLab(req).labId, String(req.params.partId));
+    res.setHeader('ETag', `"${etag}"`);
+    // Kept by the browser but asked again each time: a turned part keeps its address and gets another tag.
+    res.setHeader('Cache-Control', 'private, no-cache');
+    if (req.headers['if-none-match'] === `"${etag}"`) return void res.status(304).end();
+    res.type('image/png').send(png);
+  });
   r.get('/labs/:labId/parts/:partId/file', member, async (req, res) => {
     const file = await parts.file(requireLab(req).labId, String(req.params.partId));
     res.type(file.contentType);
