@@ -14,6 +14,8 @@ const iso = (ms: number) => new Date(Math.round(ms)).toISOString();
 
 let served: Served;
 let owner: ReturnType<typeof request.agent>;
+/** The demo lab asks a second person to approve: the owner plans, the lead approves. */
+let approver: ReturnType<typeof request.agent>;
 let labId = '';
 let machineId = '';
 let earlier: Awaited<ReturnType<typeof approvedPlan>>;
@@ -47,7 +49,7 @@ async function approvedPlan(name: string, materialIndex: number, parts: Array<{ 
   const layout = ok(await owner.post(`${base}/layouts`).send({ instance, result: gridLayout(instance) }), 'layout');
   ok(await owner.post(`${base}/layouts/${layout.body.id}/choose`), 'choose');
   ok(await owner.post(`${base}/submit`), 'submit');
-  ok(await owner.post(`${base}/review`).send({ decision: 'approve' }), 'approve');
+  ok(await approver.post(`${base}/review`).send({ decision: 'approve' }), 'approve');
   return { planId: plan.id as string, base, requestId: req.requestId as string, lines: req.lines, estimate: layout.body.estimate, materialName: material.name as string };
 }
 
@@ -71,6 +73,7 @@ async function scrollToTop(page: Page, testId: string) {
 beforeAll(async () => {
   served = await serveAndLaunch();
   owner = await apiAs('owner@tinkerfin.example');
+  approver = await apiAs('lead@tinkerfin.example');
   labId = (await owner.get('/api/me')).body.labs[0].id;
   const m = ok(await owner.post(`/api/labs/${labId}/machines`).send({ ...demoMachines[0], name: `Plover ${tag}` }), 'machine');
   machineId = m.body.id;
