@@ -66,6 +66,11 @@ export function SignInForm() {
           onSubmitEditing={submit}
         />
         <Button label="Sign in" testID="sign-in-submit" onPress={submit} loading={signIn.isPending} fullWidth />
+        <Link href="/forgot-password" testID="go-forgot-password" accessibilityRole="link">
+          <Text variant="body" color="ember">
+            Forgot your password?
+          </Text>
+        </Link>
       </View>
       <View style={styles.alt}>
         <Text variant="body" color="inkMuted">

@@ -2,6 +2,7 @@ import { StyleSheet, View } from 'react-native';
 import { roleLabels, roleTones, sortRoles } from '../lab/roles';
 import { chooseLab, useLab } from '../lab/useCurrentLab';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
+import { SessionsCard } from './SessionsCard';
 import { spacing } from '../theme';
 import { Badge, Button, Card, Notice, Text, ToggleChip } from '../ui';
 import { SettingsScreen } from './SettingsScreen';
@@ -31,6 +32,7 @@ export function AccountSection() {
           To join another lab, open the invite link its lead sends you.
         </Text>
       </Card>
+      <SessionsCard />
     </SettingsScreen>
   );
 }

@@ -9,6 +9,8 @@ const sections: { key: string; label: string; href: Href; path: string }[] = [
   { key: 'invites', label: 'Invites', href: '/settings/invites', path: '/settings/invites' },
   { key: 'machines', label: 'Machines', href: '/settings/machines', path: '/settings/machines' },
   { key: 'materials', label: 'Materials', href: '/settings/materials', path: '/settings/materials' },
+  { key: 'rules', label: 'Rules', href: '/settings/rules', path: '/settings/rules' },
+  { key: 'audit', label: 'Audit log', href: '/settings/audit', path: '/settings/audit' },
   { key: 'account', label: 'Account', href: '/settings/account', path: '/settings/account' },
 ];
 

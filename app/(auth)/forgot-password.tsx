@@ -1,0 +1,5 @@
+import { ForgotPasswordForm } from '@/components/auth/ForgotPasswordForm';
+
+export default function ForgotPasswordRoute() {
+  return <ForgotPasswordForm />;
+}

@@ -1,0 +1,5 @@
+import { AuditSection } from '@/components/settings/AuditSection';
+
+export default function AuditRoute() {
+  return <AuditSection />;
+}

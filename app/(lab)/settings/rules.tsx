@@ -1,0 +1,5 @@
+import { LabRulesSection } from '@/components/settings/LabRulesSection';
+
+export default function RulesRoute() {
+  return <LabRulesSection />;
+}

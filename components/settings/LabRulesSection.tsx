@@ -1,0 +1,73 @@
+import { StyleSheet, View } from 'react-native';
+import { useLab } from '../lab/useCurrentLab';
+import { useLabSettingsQuery, useUpdateLabSettingsMutation } from '../queries/account';
+import { spacing } from '../theme';
+import { Button, Card, Choice, ErrorState, LoadingState, Notice, Text } from '../ui';
+import { SettingsScreen } from './SettingsScreen';
+
+type Mode = 'default' | 'on' | 'off';
+
+/** The lab's rules: whether a plan needs a second person's approval. */
+export function LabRulesSection() {
+  const lab = useLab();
+  const settings = useLabSettingsQuery(lab.id);
+  const update = useUpdateLabSettingsMutation(lab.id);
+  const s = settings.data;
+  const mode: Mode | null = s ? (!s.secondApprovalSet ? 'default' : s.secondApproval ? 'on' : 'off') : null;
+
+  return (
+    <SettingsScreen title="Lab rules" subtitle="How work is released to the machines in this lab." testID="settings-rules">
+      {settings.isPending ? <LoadingState label="Loading the lab's rules" /> : null}
+      {settings.isError ? <ErrorState error={settings.error} onRetry={() => settings.refetch()} /> : null}
+      {s ? (
+        <Card
+          title="A plan needs a second person's approval"
+          subtitle="When on, the lead who sent a plan for review cannot approve it; another lead must. Sending a plan back stays open to every lead."
+          testID="rules-second-approval"
+        >
+          <View style={styles.state}>
+            <Text variant="bodyStrong" testID="rules-second-approval-state">
+              {s.secondApproval ? 'On: another lead approves each plan' : 'Off: a lead may approve a plan they sent'}
+            </Text>
+            <Text variant="caption" color="inkMuted">
+              {s.secondApprovalSet
+                ? 'Chosen by a lead of this lab.'
+                : `The default: on when a lab has more than one lead (this lab has ${s.leads}).`}
+            </Text>
+          </View>
+          {lab.isLead ? (
+            <Choice<Mode>
+              label="Rule"
+              value={mode}
+              testID="rules-second-approval-choice"
+              options={[
+                { value: 'default', label: 'Default', testID: 'rules-second-approval-default' },
+                { value: 'on', label: 'Always on', testID: 'rules-second-approval-on' },
+                { value: 'off', label: 'Off', testID: 'rules-second-approval-off' },
+              ]}
+              disabled={update.isPending}
+              onChange={(m) => update.mutate({ secondApproval: m === 'default' ? null : m === 'on' })}
+            />
+          ) : (
+            <Text variant="caption" color="inkFaint">
+              Only a lead changes the lab's rules.
+            </Text>
+          )}
+          {s.leads < 2 && s.secondApproval ? (
+            <Notice tone="caution" testID="rules-one-lead">
+              This lab has one lead: their own plans wait until someone else is made a lead.
+            </Notice>
+          ) : null}
+          {update.isError ? (
+            <View style={styles.state}>
+              <Notice tone="danger">{update.error.message}</Notice>
+              <Button label="Try again" size="sm" variant="secondary" onPress={() => update.reset()} />
+            </View>
+          ) : null}
+        </Card>
+      ) : null}
+    </SettingsScreen>
+  );
+}
+
+const styles = StyleSheet.create({ state: { gap: spacing.xs } });
