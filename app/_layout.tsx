@@ -7,12 +7,6 @@ import { View } from 'react-native';
 import { SafeAreaProvider } from 'react-native-safe-area-context';
 import { createQueryClient } from '@/components/queries/queryClient';
 import { colors, fontAssets, ThemeProvider as TokensProvider } from '@/components/theme';
-import { z } from 'zod';
-
-// zod compiles fast validators with `new Function` when eval is allowed, and
-// probes for it; the app's Content-Security-Policy forbids eval, so validate
-// without compiling and never probe.
-z.config({ jitless: true });
 
 const navTheme: NavTheme = {
   ...DefaultTheme,
