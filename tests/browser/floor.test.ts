@@ -14,6 +14,8 @@ let labId = '';
 let machineId = '';
 let machineName = '';
 let lead: ReturnType<typeof request.agent>;
+/** The demo lab has two leads, so a plan needs a second person's approval: the owner sends the plans the lead approves. */
+let owner: ReturnType<typeof request.agent>;
 let queuedPlanId = '';
 let reviewPlanId = '';
 let queuedRequestLines: Array<{ id: string; quantity: number }> = [];
@@ -43,7 +45,7 @@ async function planInReview(name: string, parts: Array<{ name: string; sizeMm: [
   const layout = await lead.post(`${base}/layouts`).send({ instance, result: gridLayout(instance) });
   if (layout.status !== 201) throw new Error(`layout failed: ${layout.status} ${JSON.stringify(layout.body)}`);
   await lead.post(`${base}/layouts/${layout.body.id}/choose`);
-  const sent = await lead.post(`${base}/submit`);
+  const sent = await owner.post(`${base}/submit`);
   if (sent.status !== 200) throw new Error(`submit failed: ${JSON.stringify(sent.body)}`);
   return { planId: plan.id as string, base, lines: req.lines };
 }
@@ -88,6 +90,7 @@ const disabled = (testId: string) => `[data-testid="${testId}"][aria-disabled="t
 beforeAll(async () => {
   served = await serveAndLaunch();
   lead = await apiAs('lead@tinkerfin.example');
+  owner = await apiAs('owner@tinkerfin.example');
   labId = (await lead.get('/api/me')).body.labs[0].id;
   // A machine of the test's own, so other suites' plans on the demo machines do not share its queue.
   machineName = `Kestrel ${tag}`;
