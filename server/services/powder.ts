@@ -3,7 +3,6 @@ import type { Database } from '../db';
 import { powderRepository, type Check, type Lot, type Movement } from '../db/repositories/powder';
 import type { Mailer } from '../mail/mailer';
 import { AppError, badRequest, conflict, notFound } from '../errors';
-import { parseOrThrow } from '../validation';
 import type { LabsService } from './labs';
 import type { QueueService } from './queue';
 import type { Actor } from './planCommon';
@@ -24,25 +23,23 @@ import {
   type MeltFlowState,
   type PowderPolicy,
 } from '../../shared/powder';
-import {
-  lotDrawsSchema,
-  meltFlowSchema,
-  movementSchema,
-  policySchema,
-  receiveLotSchema,
-  recoverySchema,
-  releaseSchema,
-  type ForecastView,
-  type LotDetailView,
-  type LotDrawsInput,
-  type LotView,
-  type MaterialDetailView,
-  type MaterialStockView,
-  type MeltFlowView,
-  type MovementView,
-  type PlanPowderView,
-  type PowderOverview,
-  type RequestLotsView,
+import type {
+  ForecastView,
+  LotDetailView,
+  LotDrawsInput,
+  LotView,
+  MaterialDetailView,
+  MaterialStockView,
+  MeltFlowInput,
+  MeltFlowView,
+  MovementInput,
+  MovementView,
+  PlanPowderView,
+  PowderOverview,
+  ReceiveLotInput,
+  RecoveryInput,
+  ReleaseInput,
+  RequestLotsView,
 } from '../../shared/schemas/powder';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -261,7 +258,7 @@ export function powderService(db: Database, deps: PowderDeps) {
     const lots = await repo.lots(d.materialId, t);
     let draws: Array<{ lotId: string; code: string; kg: number }>;
     if (d.lots && d.lots.length > 0) {
-      const input = parseOrThrow(lotDrawsSchema, d.lots, 'lots');
+      const input = d.lots;
       const byId = new Map(lots.map((l) => [l.id, l]));
       const seen = new Set<string>();
       draws = input.map((x, i) => {
@@ -326,14 +323,12 @@ export function powderService(db: Database, deps: PowderDeps) {
     material,
     drawForRun,
 
-    async setPolicy(labId: string, materialId: string, user: Actor, body: unknown): Promise<MaterialDetailView> {
-      const input = parseOrThrow(policySchema, body);
+    async setPolicy(labId: string, materialId: string, user: Actor, input: PowderPolicy): Promise<MaterialDetailView> {
       await underLock(labId, materialId, async (t) => repo.setPolicy(labId, materialId, input, user.id, t));
       return material(labId, materialId);
     },
 
-    async receiveLot(labId: string, user: Actor, body: unknown): Promise<LotView> {
-      const input = parseOrThrow(receiveLotSchema, body);
+    async receiveLot(labId: string, user: Actor, input: ReceiveLotInput): Promise<LotView> {
       if (input.expiresOn && input.expiresOn < input.receivedOn) throw badRequest('expiresOn is before receivedOn', 'expiresOn');
       if (input.receivedOn > today(Date.now() + 86_400_000)) throw badRequest('receivedOn is in the future', 'receivedOn');
       const lotId = await underLock(labId, input.materialId, async (t, _policy, name) => {
@@ -352,8 +347,7 @@ export function powderService(db: Database, deps: PowderDeps) {
     },
 
     /** A discard or a stock count, on a fresh lot or the reused pool. */
-    async recordMovement(labId: string, user: Actor, body: unknown): Promise<MovementView> {
-      const input = parseOrThrow(movementSchema, body);
+    async recordMovement(labId: string, user: Actor, input: MovementInput): Promise<MovementView> {
       const at = input.at ? new Date(input.at) : new Date();
       if (at.getTime() > Date.now() + 120_000) throw badRequest('at is in the future', 'at');
       const id = await underLock(labId, input.materialId, async (t, _policy, name) => {
@@ -408,8 +402,7 @@ export function powderService(db: Database, deps: PowderDeps) {
     },
 
     /** A melt volume-rate (ISO 1133-1) of the reused powder, judged against the material's threshold. */
-    async addCheck(labId: string, user: Actor, body: unknown): Promise<MeltFlowView> {
-      const input = parseOrThrow(meltFlowSchema, body);
+    async addCheck(labId: string, user: Actor, input: MeltFlowInput): Promise<MeltFlowView> {
       const measuredAt = input.at ? new Date(input.at) : new Date();
       if (measuredAt.getTime() > Date.now() + 120_000) throw badRequest('at is in the future', 'at');
       const materialId = input.materialId;
@@ -436,8 +429,7 @@ export function powderService(db: Database, deps: PowderDeps) {
       return checkView(last);
     },
 
-    async release(labId: string, checkId: string, user: Actor, body: unknown): Promise<MeltFlowView> {
-      const input = parseOrThrow(releaseSchema, body);
+    async release(labId: string, checkId: string, user: Actor, input: ReleaseInput): Promise<MeltFlowView> {
       if (!UUID.test(checkId)) throw notFound('That check');
       let materialId = '';
       await sequelize.transaction(async (t) => {
@@ -499,8 +491,7 @@ export function powderService(db: Database, deps: PowderDeps) {
     },
 
     /** After breakout: sieved powder back into the reused stock, the rest of the cake thrown away. */
-    async recordRecovery(labId: string, planId: string, user: Actor, body: unknown): Promise<PlanPowderView> {
-      const input = parseOrThrow(recoverySchema, body);
+    async recordRecovery(labId: string, planId: string, user: Actor, input: RecoveryInput): Promise<PlanPowderView> {
       const row = UUID.test(planId) ? await repo.runOfPlan(labId, planId) : null;
       if (!row) throw notFound('That plan');
       if (!row.run_id || !BROKEN_OUT.has(row.status)) {

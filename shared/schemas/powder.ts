@@ -52,6 +52,7 @@ export const meltFlowSchema = z.strictObject({
 export type MeltFlowInput = z.infer<typeof meltFlowSchema>;
 
 export const releaseSchema = z.strictObject({ reason });
+export type ReleaseInput = z.infer<typeof releaseSchema>;
 
 export const policySchema = z.strictObject({
   maxMeanAgeBuilds: z.number({ error: 'must be a number of builds' }).gt(0, 'must be more than 0').max(100, 'must be at most 100'),
