@@ -5,6 +5,7 @@ import { Badge, LinkPressable, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import { formatCount, formatVolume } from './format';
 import { warningLabel } from './warnings';
+import { PartThumb } from './PartThumb';
 import { formatNumber } from '../ui/format';
 
 /** Below this width the rows become cards. */
@@ -31,7 +32,7 @@ export function PartTable({ parts, sort, onSort }: { parts: Part[]; sort: string
       <View style={styles.cards} accessibilityRole="list" testID="parts-table">
         {parts.map((p) => (
           <LinkPressable key={p.id} href={`/parts/${p.id}`} testID={`part-row-${p.id}`} style={({ pressed }) => [styles.card, pressed && styles.pressed]}>
-            <NameCell part={p} />
+            <NameCell part={p} thumb={64} />
             <View style={styles.cardGrid}>
               <CardItem label="Size mm">
                 <Text variant="figure">{p.sizeMm.map((v) => formatNumber(v, 1)).join(' × ')}</Text>
@@ -146,7 +147,16 @@ export function PartTable({ parts, sort, onSort }: { parts: Part[]; sort: string
   );
 }
 
-function NameCell({ part }: { part: Part }) {
+function NameCell({ part, thumb = 48 }: { part: Part; thumb?: number }) {
+  return (
+    <View style={styles.nameRow}>
+      <PartThumb part={part} size={thumb} />
+      <NameAndBadges part={part} />
+    </View>
+  );
+}
+
+function NameAndBadges({ part }: { part: Part }) {
   return (
     <View style={styles.nameCell}>
       <Text variant="bodyStrong" numberOfLines={2}>
@@ -189,7 +199,8 @@ const styles = StyleSheet.create({
   sizeHead: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs, justifyContent: 'flex-start' },
   headButton: { paddingVertical: spacing.xs, paddingHorizontal: spacing.xxs, borderRadius: radius.sm },
   headHover: { backgroundColor: colors.line },
-  nameCell: { gap: spacing.xs },
+  nameRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.md },
+  nameCell: { gap: spacing.xs, flex: 1, minWidth: 0 },
   badges: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.xs },
   cards: { gap: spacing.sm },
   card: {

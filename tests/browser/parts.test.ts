@@ -88,6 +88,12 @@ describe.each([
     await row.waitFor();
     expect(await row.innerText()).toContain(expectedSize);
     await row.scrollIntoViewIfNeeded();
+    // Its row carries the picture the server drew from the uploaded mesh.
+    await page.waitForFunction(
+      "(() => { const img = document.querySelector('[data-testid^=\"part-row-\"] [data-testid^=\"part-thumb-\"] img'); return !!img && img.complete && img.naturalWidth === 128; })()",
+      undefined,
+      { timeout: 20_000 },
+    );
     await screenshot(page, `parts-search-${name}`);
 
     await row.click();
