@@ -84,6 +84,14 @@ function Factors({ view }: { view: CalibrationView }) {
   );
 }
 
+/** A round step (1, 2 or 5 times a power of ten) near `rough`, for axis ticks a reader can add up. */
+function niceStep(rough: number): number {
+  const p = 10 ** Math.floor(Math.log10(rough));
+  const f = rough / p;
+  return (f <= 1 ? 1 : f <= 2 ? 2 : f <= 5 ? 5 : 10) * p;
+}
+const tickText = (t: number, step: number) => (step < 1 ? t.toFixed(1) : t.toFixed(0));
+
 const CHART_H = 220;
 const PAD = { left: 44, right: 12, top: 12, bottom: 34 };
 
@@ -104,12 +112,13 @@ function RunsChart({ view, measure, selected, onSelect }: { view: CalibrationVie
   );
   // The fitted line: actual = factor x estimate (cooling times are divided by the cooling factor).
   const slope = view.calibrated ? (measure === 'print' ? view.printTimeScale : 1 / view.coolingScale) : 1;
-  const max = Math.max(1, ...points.flatMap((p) => [p.x, p.y])) * 1.08;
+  const step = niceStep(Math.max(1, ...points.flatMap((p) => [p.x, p.y])) / 4);
+  const max = Math.ceil((Math.max(1, ...points.flatMap((p) => [p.x, p.y])) * 1.05) / step) * step;
   const plotW = Math.max(0, width - PAD.left - PAD.right);
   const plotH = CHART_H - PAD.top - PAD.bottom;
   const sx = (v: number) => PAD.left + (v / max) * plotW;
   const sy = (v: number) => PAD.top + plotH - (v / max) * plotH;
-  const ticks = [0, max / 4, max / 2, (3 * max) / 4];
+  const ticks = Array.from({ length: Math.round(max / step) + 1 }, (_, i) => i * step);
   const label = measure === 'print' ? 'print' : 'cooling';
   return (
     <View
@@ -121,13 +130,13 @@ function RunsChart({ view, measure, selected, onSelect }: { view: CalibrationVie
         <Svg width={width} height={CHART_H}>
           <Rect x={PAD.left} y={PAD.top} width={plotW} height={plotH} fill={colors.powderDeep} />
           {ticks.map((t) => (
-            <SvgText key={`x${t}`} x={sx(t)} y={CHART_H - PAD.bottom + 14} fontSize={10} fill={colors.inkMuted} textAnchor="middle">
-              {t < 10 ? t.toFixed(1) : t.toFixed(0)}
+            <SvgText key={`x${t}`} x={sx(t)} y={CHART_H - PAD.bottom + 14} fontSize={11} fill={colors.inkMuted} textAnchor="middle">
+              {tickText(t, step)}
             </SvgText>
           ))}
           {ticks.map((t) => (
-            <SvgText key={`y${t}`} x={PAD.left - 6} y={sy(t) + 3} fontSize={10} fill={colors.inkMuted} textAnchor="end">
-              {t < 10 ? t.toFixed(1) : t.toFixed(0)}
+            <SvgText key={`y${t}`} x={PAD.left - 6} y={sy(t) + 3} fontSize={11} fill={colors.inkMuted} textAnchor="end">
+              {tickText(t, step)}
             </SvgText>
           ))}
           <SvgText x={PAD.left + plotW / 2} y={CHART_H - 4} fontSize={11} fill={colors.inkMuted} textAnchor="middle">

@@ -1,5 +1,6 @@
 import { startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
+import { cakeCoreTempC } from '../../shared/estimate';
 import { backdateApproval, labWithCrew, queuedPlan, runIdOf, startBody } from './runs-fixtures';
 
 jest.setTimeout(120_000);
@@ -104,6 +105,57 @@ describe('calibration from what the runs show', () => {
     // The queue's estimates follow the same factors.
     const queue = (await lab.agent.get(`/api/labs/${lab.labId}/machines/${lab.machineId}/queue`)).body;
     expect(queue.calibration.printTimeScale).toBeCloseTo(2.65 / 3, 6);
+  });
+});
+
+describe('the cooling factor from recorded core readings', () => {
+  test("runs whose core readings show the cake cooling 1.3 times as fast as the model calibrate the machine's cooling to 1.3, whatever breakout's time", async () => {
+    const lab = await labWithCrew(running, 'calib-readings', { chamberCount: 1 });
+    const plans: Plan[] = [];
+    for (let i = 0; i < 3; i++) plans.push(await queuedPlan(running, lab, [GEAR], { name: `Read ${i + 1}` }));
+    const est = plans[0].estimate;
+    // The cake of the layout with the lab's powder and machine: the conduction model the floor and the estimate use.
+    const cake = {
+      sizeMm: est.cakeMm,
+      conductivityWPerMK: lab.material.powderConductivityWPerMK,
+      densityGPerCm3: lab.material.bulkDensityGPerCm3,
+      heatCapacityJPerKgK: lab.material.powderHeatCapacityJPerKgK,
+      surfaceWPerM2K: lab.machine.coolingSurfaceWPerM2K,
+      startTempC: lab.material.bedTempC,
+      ambientTempC: lab.machine.ambientTempC,
+      coolingScale: 1.3,
+    };
+    const coolS = est.cooling.coolingSeconds;
+    const span = 2 * est.print.printSeconds * 1000 + 2 * coolS * 1000 + 2 * HOUR;
+    let t = Date.now() - 4 * span;
+    for (const p of plans) await backdateApproval(running, p.planId, 5 * span);
+    const op = lab.operator.agent;
+    for (const plan of plans) {
+      await op.post(`${plan.base}/run/advance`).send(startBody(est, iso(t)));
+      const runId = await runIdOf(op, plan.base);
+      const printEnd = t + est.print.printSeconds * 1000;
+      await op.post(`${plan.base}/run/advance`).send({ runId, to: 'cooling', at: iso(printEnd) });
+      for (const share of [0.3, 0.5, 0.7]) {
+        const seconds = (share * coolS) / 1.3;
+        const r = await op.post(`${plan.base}/run/readings`).send({ runId, tempC: Math.round(cakeCoreTempC(cake, seconds) * 10) / 10, where: 'machine', at: iso(printEnd + seconds * 1000) });
+        expect(r.status).toBe(201);
+        expect(r.body.readings.at(-1).check.status).toBe('explained');
+      }
+      // Breakout pressed late, at the estimate's full time: the whole cooling time alone would say factor 1.
+      const breakout = printEnd + coolS * 1000;
+      await op.post(`${plan.base}/run/advance`).send({ runId, to: 'breakout', at: iso(breakout) });
+      const counts = plan.request.lines.map((l: { id: string }) => ({ requestLineId: l.id, good: GEAR.quantity, failed: 0 }));
+      await op.post(`${plan.base}/run/advance`).send({ runId, to: 'finishing', at: iso(breakout + HOUR / 4), counts });
+      const done = await op.post(`${plan.base}/run/advance`).send({ runId, to: 'done', at: iso(breakout + HOUR / 2), finishingChecklist: FINISHED });
+      expect(done.status).toBe(200);
+      t = breakout + HOUR;
+    }
+    const view = (await lab.agent.get(`/api/labs/${lab.labId}/machines/${lab.machineId}/calibration`)).body;
+    expect(view).toMatchObject({ calibrated: true, coolingFrom: 'readings' });
+    // Readings rounded to 0.1 °C: the factor within a percent.
+    expect(view.coolingScale).toBeCloseTo(1.3, 1);
+    expect(Math.abs(view.coolingScale - 1.3)).toBeLessThan(0.013);
+    expect(view.recordedRuns[0].readingsCoolingScale).toBeCloseTo(1.3, 1);
   });
 });
 
