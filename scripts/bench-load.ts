@@ -1,0 +1,290 @@
+/**
+ * Load check: the server (one process, its in-process mesh worker) on
+ * loopback, a fresh database with the demo lab; 50 signed-in clients read the
+ * main routes as fast as they are answered for 60 s, while one lab uploads a
+ * batch of large meshes and three other labs each upload a small file every
+ * few seconds. Prints the request and error counts, latency percentiles per
+ * route and the small uploads' times (target: 0 errors, small uploads within
+ * 2 s while the large batch is measured).
+ *
+ *   npm run bench:load                      (60 s)
+ *   npm run bench:load -- --seconds 15      (a short run)
+ *   options: --clients 50 --large 6 --large-triangles 400000
+ *
+ * Measuring runs in one `npm run worker` process at a lower CPU priority
+ * (nice 10) with two threads, and a per-lab limit of one file at a time, so
+ * the other labs always find a thread free (MESH_THREADS and
+ * MESH_LAB_CONCURRENCY in the environment override them); `--in-process`
+ * measures in the server's own worker instead.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { createServer } from 'node:net';
+import path from 'node:path';
+import { performance } from 'node:perf_hooks';
+import { ensureCluster, ensureDatabase, dropDatabase } from './lib/postgres';
+import { torus, writeBinaryStl, prism } from '../shared/geometry';
+
+function arg(name: string, fallback: number): number {
+  const i = process.argv.indexOf(`--${name}`);
+  const v = i >= 0 ? Number(process.argv[i + 1]) : fallback;
+  if (!Number.isFinite(v) || v <= 0) throw new Error(`--${name} takes a positive number`);
+  return v;
+}
+
+const SECONDS = arg('seconds', 60);
+const CLIENTS = arg('clients', 50);
+const LARGE_FILES = arg('large', 6);
+const LARGE_TRIANGLES = arg('large-triangles', 400_000);
+const IN_PROCESS = process.argv.includes('--in-process');
+const SMALL_LABS = 3;
+const SMALL_EVERY_MS = 4000;
+const ROOT = path.resolve(__dirname, '..');
+const PASSWORD = 'sinter-demo-2026';
+const DEMO_EMAILS = ['owner', 'lead', 'planner', 'designer', 'operator'].map((r) => `${r}@tinkerfin.example`);
+
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as { port: number }).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+/** A cookie jar of one: the session cookie the server set. */
+class Client {
+  cookie = '';
+  constructor(readonly base: string) {}
+  async fetch(p: string, init: RequestInit = {}): Promise<Response> {
+    const headers = new Headers(init.headers);
+    headers.set('Origin', this.base);
+    if (this.cookie) headers.set('Cookie', this.cookie);
+    const res = await fetch(`${this.base}/api${p}`, { ...init, headers });
+    const set = res.headers.getSetCookie?.() ?? [];
+    if (set.length) this.cookie = set.map((c) => c.split(';')[0]).join('; ');
+    return res;
+  }
+  async json<T>(p: string, init: RequestInit = {}): Promise<T> {
+    const res = await this.fetch(p, init);
+    const body = await res.text();
+    if (!res.ok) throw new Error(`${init.method ?? 'GET'} ${p}: ${res.status} ${body.slice(0, 200)}`);
+    return JSON.parse(body) as T;
+  }
+  post<T>(p: string, body: unknown) {
+    return this.json<T>(p, { method: 'POST', body: JSON.stringify(body), headers: { 'Content-Type': 'application/json' } });
+  }
+}
+
+function percentile(sorted: number[], p: number): number {
+  if (sorted.length === 0) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
+}
+
+const stlForm = (name: string, bytes: Uint8Array) => {
+  const form = new FormData();
+  form.append('unit', 'mm');
+  form.append('file', new Blob([bytes as Uint8Array<ArrayBuffer>]), name);
+  return form;
+};
+
+async function main() {
+  const log = (s: string) => console.log(s);
+  const cluster = await ensureCluster(() => {});
+  const dbName = `sinterstack_bench_${process.pid}`;
+  const databaseUrl = await ensureDatabase(cluster, dbName, { fresh: true });
+  const port = await freePort();
+  const base = `http://127.0.0.1:${port}`;
+  let server: ChildProcess | null = null;
+  let worker: ChildProcess | null = null;
+  try {
+    // The schema and the demo lab, as `npm start` makes them.
+    process.env.DATABASE_URL = databaseUrl;
+    const { connectDatabase, migrate } = await import('../server/db');
+    const db = connectDatabase(databaseUrl);
+    await migrate(db.sequelize);
+    await db.close();
+    const { loadConfig } = await import('../server/config');
+    const { boot } = await import('../server/boot');
+    const { seedDemoIfEmpty } = await import('../server/db/seeders/demo');
+    const seeding = await boot({ ...loadConfig({ ...process.env, DATABASE_URL: databaseUrl }), meshWorker: false }, () => {});
+    await seedDemoIfEmpty(seeding.db, seeding.services, { planInReview: true });
+    await seeding.close();
+
+    const env = {
+      MESH_THREADS: '2',
+      MESH_LAB_CONCURRENCY: '1',
+      ...process.env,
+      DATABASE_URL: databaseUrl,
+      PORT: String(port),
+      APP_URL: base,
+      NODE_ENV: 'production' as const,
+      AUTH_RATE_LIMIT: '100000',
+      MESH_WORKER: IN_PROCESS ? 'on' : 'off',
+    };
+    const started = (proc: ChildProcess, text: string, what: string) => {
+      const output: string[] = [];
+      proc.stdout!.on('data', (d: Buffer) => output.push(d.toString()));
+      proc.stderr!.on('data', (d: Buffer) => output.push(d.toString()));
+      return (async () => {
+        for (let i = 0; !output.join('').includes(text); i++) {
+          if (i > 600 || proc.exitCode !== null) throw new Error(`the ${what} did not start:\n${output.join('')}`);
+          await new Promise((r) => setTimeout(r, 200));
+        }
+      })();
+    };
+    server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    await started(server, 'serving on', 'server');
+    if (!IN_PROCESS) {
+      worker = spawn('nice', ['-n', '10', process.execPath, '--import', 'tsx', 'scripts/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+      await started(worker, 'serving queue', 'worker');
+    }
+
+    // 50 sessions of the demo lab's members, and the ids the read routes need.
+    const clients: Client[] = [];
+    for (let i = 0; i < CLIENTS; i++) {
+      const c = new Client(base);
+      await c.post('/auth/sign-in', { email: DEMO_EMAILS[i % DEMO_EMAILS.length], password: PASSWORD });
+      clients.push(c);
+    }
+    const me = await clients[0].json<{ labs: { id: string }[] }>('/me');
+    const labId = me.labs[0].id;
+    const machines = await clients[0].json<{ id: string }[] | { items: { id: string }[] }>(`/labs/${labId}/machines`);
+    const machineId = (Array.isArray(machines) ? machines : machines.items)[0].id;
+    const routes: { name: string; path: string }[] = [
+      { name: 'GET /me', path: '/me' },
+      { name: 'GET /labs/:id/parts', path: `/labs/${labId}/parts` },
+      { name: 'GET /labs/:id/requests', path: `/labs/${labId}/requests` },
+      { name: 'GET /labs/:id/plans', path: `/labs/${labId}/plans` },
+      { name: 'GET /labs/:id/machines', path: `/labs/${labId}/machines` },
+      { name: 'GET /labs/:id/materials', path: `/labs/${labId}/materials` },
+      { name: 'GET /labs/:id/machines/:id/queue', path: `/labs/${labId}/machines/${machineId}/queue` },
+    ];
+
+    // The lab with the large batch, and the labs with small files, each its own designer.
+    const signUp = async (tag: string) => {
+      const c = new Client(base);
+      const out = await c.post<{ labs: { id: string }[] }>('/auth/sign-up', {
+        email: `${tag}-${process.pid}@bench.example`,
+        password: 'correct-horse-battery-staple',
+        name: `Bench ${tag}`,
+        labName: `Bench lab ${tag}`,
+      });
+      return { client: c, labId: out.labs[0].id };
+    };
+    const busy = await signUp('busy');
+    const small = await Promise.all(Array.from({ length: SMALL_LABS }, (_, i) => signUp(`small${i}`)));
+    const minor = Math.round(LARGE_TRIANGLES / 2 / 400);
+    const large = Array.from({ length: LARGE_FILES }, (_, i) => writeBinaryStl(torus(60 + i, 20, 400, minor), `large ${i}`));
+    log(`server on ${base}; measuring ${IN_PROCESS ? 'in the server' : 'in one worker process (nice 10)'} with MESH_THREADS ${env.MESH_THREADS}, MESH_LAB_CONCURRENCY ${env.MESH_LAB_CONCURRENCY}`);
+    log(`${CLIENTS} clients on ${routes.length} read routes for ${SECONDS} s; ` +
+      `one lab uploads ${LARGE_FILES} files of ${(2 * 400 * minor).toLocaleString('en')} triangles (${(large[0].byteLength / 1e6).toFixed(1)} MB each); ` +
+      `${SMALL_LABS} other labs upload a 12-triangle STL every ${SMALL_EVERY_MS / 1000} s`);
+
+    const latencies = new Map<string, number[]>(routes.map((r) => [r.name, []]));
+    const errors = new Map<string, number>();
+    const errorSamples: string[] = [];
+    let requests = 0;
+    const stopAt = performance.now() + SECONDS * 1000;
+    const fail = (what: string, why: string) => {
+      errors.set(what, (errors.get(what) ?? 0) + 1);
+      if (errorSamples.length < 5) errorSamples.push(`${what}: ${why}`);
+    };
+
+    const readers = clients.map(async (c, i) => {
+      let k = i;
+      while (performance.now() < stopAt) {
+        const route = routes[k++ % routes.length];
+        const t0 = performance.now();
+        try {
+          const res = await c.fetch(route.path);
+          await res.arrayBuffer();
+          requests++;
+          if (res.status !== 200) fail(route.name, `HTTP ${res.status}`);
+          else latencies.get(route.name)!.push(performance.now() - t0);
+        } catch (e) {
+          requests++;
+          fail(route.name, (e as Error).message);
+        }
+      }
+    });
+
+    // The batch: all large files in one upload, followed to its end.
+    const batch = (async () => {
+      const form = new FormData();
+      form.append('unit', 'mm');
+      large.forEach((bytes, i) => form.append('file', new Blob([bytes as Uint8Array<ArrayBuffer>]), `large-${i}.stl`));
+      const t0 = performance.now();
+      const res = await busy.client.fetch(`/labs/${busy.labId}/parts`, { method: 'POST', body: form });
+      const body = (await res.json()) as { job?: { id: string }; parts?: unknown[] };
+      if (res.status === 201) return { answered: res.status, parts: body.parts?.length ?? 0, seconds: (performance.now() - t0) / 1000 };
+      if (res.status !== 202 || !body.job) throw new Error(`the large batch answered ${res.status}: ${JSON.stringify(body).slice(0, 200)}`);
+      for (;;) {
+        await new Promise((r) => setTimeout(r, 1000));
+        const v = await busy.client.json<{ job: { state: string }; parts?: unknown[] }>(`/labs/${busy.labId}/jobs/${body.job.id}`);
+        if (v.job.state === 'done' || v.job.state === 'failed') return { answered: 202, state: v.job.state, parts: v.parts?.length ?? 0, seconds: (performance.now() - t0) / 1000 };
+      }
+    })();
+
+    // Small uploads of the other labs, each timed from sending to the measured part.
+    const smallTimes: number[] = [];
+    const smallFailures: string[] = [];
+    await new Promise((r) => setTimeout(r, 1500));
+    const uploaders = small.map(async ({ client, labId: lab }, i) => {
+      let n = 0;
+      await new Promise((r) => setTimeout(r, (i * SMALL_EVERY_MS) / SMALL_LABS));
+      while (performance.now() < stopAt - 1000) {
+        const side = 10 + i + n++ / 100;
+        const bytes = writeBinaryStl(prism([[0, 0], [side, 0], [side, side], [0, side]], 0, 5), `small ${i}`);
+        const t0 = performance.now();
+        try {
+          const res = await client.fetch(`/labs/${lab}/parts`, { method: 'POST', body: stlForm(`small-${i}-${n}.stl`, bytes) });
+          await res.arrayBuffer();
+          if (res.status === 201) smallTimes.push((performance.now() - t0) / 1000);
+          else smallFailures.push(`HTTP ${res.status}`);
+        } catch (e) {
+          smallFailures.push((e as Error).message);
+        }
+        await new Promise((r) => setTimeout(r, SMALL_EVERY_MS));
+      }
+    });
+
+    await Promise.all([...readers, ...uploaders]);
+    const batchResult = await batch;
+
+    const totalErrors = [...errors.values()].reduce((a, b) => a + b, 0);
+    log('');
+    log(`requests: ${requests} in ${SECONDS} s (${(requests / SECONDS).toFixed(0)}/s), errors: ${totalErrors}`);
+    log('route                                   count    p50 ms   p90 ms   p99 ms   max ms');
+    for (const r of routes) {
+      const l = latencies.get(r.name)!.sort((a, b) => a - b);
+      const f = (v: number) => v.toFixed(0).padStart(8);
+      log(`${r.name.padEnd(38)} ${String(l.length).padStart(6)} ${f(percentile(l, 50))} ${f(percentile(l, 90))} ${f(percentile(l, 99))} ${f(l[l.length - 1] ?? NaN)}`);
+    }
+    for (const s of errorSamples) log(`  error: ${s}`);
+    const st = [...smallTimes].sort((a, b) => a - b);
+    log(`small uploads of other labs: ${st.length} measured (201), ${smallFailures.length} failed; ` +
+      `median ${percentile(st, 50).toFixed(2)} s, max ${(st[st.length - 1] ?? NaN).toFixed(2)} s, within 2 s: ${st.filter((t) => t <= 2).length}/${st.length}`);
+    for (const f of smallFailures.slice(0, 5)) log(`  small upload failed: ${f}`);
+    log(`large batch: answered ${batchResult.answered}${'state' in batchResult ? `, job ${batchResult.state}` : ''}, ${batchResult.parts} parts, ${batchResult.seconds.toFixed(1)} s from sending to the last part`);
+  } finally {
+    if (worker && worker.exitCode === null) {
+      worker.kill('SIGKILL');
+      await new Promise((r) => worker!.once('exit', r));
+    }
+    if (server && server.exitCode === null) {
+      server.kill('SIGTERM');
+      await new Promise((r) => server!.once('exit', r));
+    }
+    await dropDatabase(cluster, dbName).catch(() => {});
+  }
+}
+
+main().then(
+  () => process.exit(0),
+  (err: Error) => {
+    console.error(`bench:load: ${err.message}`);
+    process.exit(1);
+  },
+);
