@@ -38,7 +38,7 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   const boss = await startBoss(config.databaseUrl, settings, log);
   const services = createServices(db, mailer, config, { boss, pool, events, settings, log });
   let worker: MeshWorker | null = null;
-  if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, threads, measure: measureFile, settings, log });
+  if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, databaseUrl: config.databaseUrl, threads, measure: measureFile, settings, log });
   const deps: AppDeps = { config, db, pool, auth, mailer, events, services, log };
   const app = createApp(deps);
   return {

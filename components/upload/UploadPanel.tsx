@@ -8,7 +8,7 @@ import { colors, radius, spacing } from '../theme';
 import { Button, Card, LinkPressable, Text } from '../ui';
 import { FileDrop } from './FileDrop';
 import type { PickedFile } from './types';
-import { uploadPartFile, type UploadFields } from './uploadFile';
+import { uploadPartFile, type JobProgress, type UploadFields } from './uploadFile';
 
 const ACCEPT = ['.stl', '.obj', '.3mf'];
 /** Files in flight at once: enough to keep the server's measuring workers busy without starving the bars. */
@@ -25,6 +25,8 @@ type Item = {
   parts: Part[];
   rejected: RejectedFile[];
   message?: string;
+  /** Set when the server queued the file for measuring and the screen follows its job. */
+  job?: JobProgress;
 };
 
 let nextKey = 1;
@@ -53,6 +55,7 @@ export function UploadPanel({ labId }: { labId: string }) {
       const { promise, abort } = uploadPartFile(labId, item.file, item.fields, (f) =>
         // Once every byte is sent the server is measuring: say so instead of a full, idle bar.
         patch(item.key, f >= 1 ? { progress: 1, status: 'measuring' } : { progress: f }),
+        (job) => patch(item.key, { status: 'measuring', progress: 1, job }),
       );
       running.current.set(item.key, abort);
       promise.then((outcome) => {
@@ -156,7 +159,7 @@ function UploadRow({ item, onCancel }: { item: Item; onCancel: () => void }) {
   const statusText: Record<Item['status'], string> = {
     queued: 'Waiting',
     sending: `Sending ${Math.round(item.progress * 100)} %`,
-    measuring: 'Measuring…',
+    measuring: item.job?.state === 'queued' ? 'Queued for measuring…' : 'Measuring…',
     done: 'Measured',
     failed: 'Refused',
   };
@@ -177,6 +180,13 @@ function UploadRow({ item, onCancel }: { item: Item; onCancel: () => void }) {
         </Text>
         {item.status === 'sending' ? <Button label="Cancel" variant="ghost" size="sm" onPress={onCancel} /> : null}
       </View>
+      {item.status === 'measuring' && item.job ? (
+        <Text variant="caption" color="inkMuted" testID={`upload-job-${item.name}`}>
+          {item.job.state === 'queued'
+            ? 'The server has queued this file behind other uploads; it is measured in turn, and you may leave this screen: its parts will appear in the library.'
+            : 'The server is measuring this file; large files take a while. You may leave this screen: its parts will appear in the library.'}
+        </Text>
+      ) : null}
       {item.status === 'sending' || item.status === 'measuring' || item.status === 'queued' ? (
         <View style={styles.track} accessibilityRole="progressbar" accessibilityValue={{ min: 0, max: 100, now: Math.round(item.progress * 100) }}>
           <View style={[styles.bar, { width: `${Math.round(item.progress * 100)}%` }, item.status === 'measuring' && styles.barMeasuring]} />

@@ -50,6 +50,9 @@ export type MeshQueueSettings = {
 
 export const deadLetterQueue = (queue: string) => `${queue}-given-up`;
 
+/** Told (with the queue's name) when files are handed out, so idle workers in other processes fetch at once instead of at their next poll. */
+export const MESH_WORK_CHANNEL = 'sinterstack_mesh_work';
+
 /** What the job queue needs of the part library. */
 export type PartsForJobs = {
   /** The options a file of this lab is measured with, or why the file is refused before any work. */
@@ -171,6 +174,8 @@ export function meshJobsService(deps: MeshJobsDeps) {
         }
         if (rows.length > 0) {
           await client.query("UPDATE mesh_job_files SET state = 'queued' WHERE id = ANY($1::uuid[])", [rows.map((r) => r.id)]);
+          // Delivered when the transaction commits.
+          await client.query('SELECT pg_notify($1, $2)', [MESH_WORK_CHANNEL, settings.queue]);
         }
         sent = rows.length;
       }

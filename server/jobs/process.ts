@@ -31,7 +31,7 @@ export async function runWorkerProcess(config: Config, settings: MeshQueueSettin
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const boss = await startBoss(config.databaseUrl, settings, log);
   const jobs = meshJobsService({ db, pool, boss, storage, parts, settings, publish: (e) => events.publish(e), log });
-  const worker = await startMeshWorker({ boss, jobs, threads, measure: measureFile, settings, log });
+  const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads, measure: measureFile, settings, log });
   return {
     name: worker.name,
     threads,

@@ -1,6 +1,7 @@
 import { hostname } from 'node:os';
+import pg from 'pg';
 import type PgBoss from 'pg-boss';
-import { deadLetterQueue, type Measure, type MeshJobs, type MeshQueueSettings } from './meshJobs';
+import { deadLetterQueue, MESH_WORK_CHANNEL, type Measure, type MeshJobs, type MeshQueueSettings } from './meshJobs';
 
 export type MeshWorker = { name: string; stop(): Promise<void> };
 
@@ -16,6 +17,8 @@ const SWEEP_MS = 10_000;
 export async function startMeshWorker(opts: {
   boss: PgBoss;
   jobs: MeshJobs;
+  /** For hearing that files were handed out (LISTEN); without it the pollers find them within a second. */
+  databaseUrl?: string;
   /** Files this process measures at once (the size of its thread pool). */
   threads: number;
   measure: Measure;
@@ -39,6 +42,24 @@ export async function startMeshWorker(opts: {
     }),
   );
   jobs.addLocalWorkers(ids);
+  const pollers = ids.slice(0, opts.threads);
+  let listener: pg.Client | null = null;
+  if (opts.databaseUrl) {
+    const client = new pg.Client({ connectionString: opts.databaseUrl });
+    client.on('notification', (msg) => {
+      if (msg.channel === MESH_WORK_CHANNEL && msg.payload === settings.queue) for (const id of pollers) boss.notifyWorker(id);
+    });
+    // Losing it only costs the pollers' second of delay.
+    client.on('error', (err) => log(`mesh worker: lost the wake-up listener (${err.message}); polling only`));
+    try {
+      await client.connect();
+      await client.query(`LISTEN ${MESH_WORK_CHANNEL}`);
+      listener = client;
+    } catch (err) {
+      log(`mesh worker: no wake-up listener (${(err as Error).message}); polling only`);
+      await client.end().catch(() => {});
+    }
+  }
   const sweep = setInterval(() => {
     jobs.dispatchAll().catch((err: Error) => log(`mesh worker: sweep failed: ${err.message}`));
   }, SWEEP_MS);
@@ -49,6 +70,7 @@ export async function startMeshWorker(opts: {
     name,
     async stop() {
       clearInterval(sweep);
+      await listener?.end().catch(() => {});
       await boss.offWork(settings.queue).catch(() => {});
       await boss.offWork(deadLetterQueue(settings.queue)).catch(() => {});
     },

@@ -1,11 +1,10 @@
-import { unlink } from 'node:fs/promises';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
-import { AppError, badRequest, conflict, forbidden, notFound } from '../errors';
+import { badRequest, conflict, forbidden, notFound } from '../errors';
 import { measureFile, type FileMeasureResult } from '../mesh';
 import { sha256Bytes, sha256File, type FileSource, type FileStorage } from '../storage';
 import { formatFromFilename, quoteName, type MeasureOptions, type MeshMetrics } from '../../shared/geometry';
-import type { PartListQuery, PartListResponse, PartPatch, PartUploadFields, PartUploadResponse, PartView, RejectedFile } from '../../shared/schemas/parts';
+import type { PartListQuery, PartListResponse, PartPatch, PartView, RejectedFile } from '../../shared/schemas/parts';
 
 /** Why a part cannot be deleted right now (a message for the user), or null when nothing uses it. */
 export type PartUsageCheck = (labId: string, partId: string, transaction: Transaction) => Promise<string | null>;
@@ -32,9 +31,6 @@ export type ImportInput = {
 
 /** A file measured without problems. */
 export type MeasuredFile = Extract<FileMeasureResult, { ok: true }>;
-
-/** A file of a multipart upload, already streamed to a temp file on disk. */
-export type UploadedFile = { originalname: string; path: string; size: number };
 
 export type ImportResult = { ok: true; parts: PartView[] } | { ok: false; rejected: RejectedFile; serverError?: unknown };
 
@@ -313,47 +309,8 @@ export function partsService(db: Database, deps: PartsDeps) {
     return outer ? fn(outer) : sequelize.transaction(fn);
   }
 
-  /** Measures and stores every file; throws when none could be kept. */
-  async function importAll(labId: string, userId: string, files: UploadedFile[], fields: PartUploadFields) {
-    if (files.length === 0) throw badRequest('Choose at least one file to upload (fields named "file").', 'file');
-    // Measuring runs in parallel in the worker pool; each file stands alone.
-    const results = await Promise.all(
-      files.map((f) =>
-        service.importFile({ labId, userId, filename: f.originalname, source: { path: f.path, sizeBytes: f.size }, unit: fields.unit, split: fields.split }),
-      ),
-    );
-    const response: PartUploadResponse = { parts: [], rejected: [] };
-    const serverErrors: unknown[] = [];
-    for (const result of results) {
-      if (result.ok) response.parts.push(...result.parts);
-      else {
-        response.rejected.push(result.rejected);
-        if (result.serverError) serverErrors.push(result.serverError);
-      }
-    }
-    // Some kept: the answer lists them, and the caller logs what failed on the server's side.
-    if (response.parts.length > 0) return { response, unsaved: serverErrors };
-    // Nothing kept: a server-side failure is the server's answer, not the files' fault.
-    if (serverErrors.length > 0) throw serverErrors[0];
-    throw allRejected(response.rejected);
-  }
-
   const service = {
     get,
-
-    /**
-     * A multipart upload: every file measured and stored on its own. The temp
-     * files are removed before this returns, so a client that sees the answer
-     * never sees them. `unsaved` holds server-side failures of files that were
-     * not kept while others were (for the log).
-     */
-    async importUploads(labId: string, userId: string, files: UploadedFile[], fields: PartUploadFields): Promise<{ response: PartUploadResponse; unsaved: unknown[] }> {
-      try {
-        return await importAll(labId, userId, files, fields);
-      } finally {
-        await Promise.all(files.map((f) => unlink(f.path).catch(() => {})));
-      }
-    },
 
     /** Later features (build plans) add a check here; deleting a part in use answers 409. */
     addUsageCheck(check: PartUsageCheck) {
@@ -501,8 +458,3 @@ export function partsService(db: Database, deps: PartsDeps) {
 }
 export type PartsService = ReturnType<typeof partsService>;
 
-function allRejected(rejected: RejectedFile[]): AppError {
-  const message =
-    rejected.length === 1 ? rejected[0].message : `None of the ${rejected.length} files could be used. ${rejected.map((x) => x.message).join(' ')}`;
-  return new AppError(400, 'invalid_file', message, 'file', { rejected });
-}

@@ -71,9 +71,10 @@ export function partRoutes(deps: AppDeps): Router {
   const importUpload: RequestHandler = async (req, res) => {
     const { labId, user } = requireLab(req);
     const files = (req.files as Express.Multer.File[] | undefined) ?? [];
-    const { response, unsaved } = await parts.importUploads(labId, user.id, files, uploadFields.input(req));
-    for (const e of unsaved) deps.log(`upload: a file was not saved: ${(e as Error)?.stack ?? String(e)}`);
-    res.status(201).json(response);
+    // Measured on the job queue: 201 with the parts when done within the wait, else 202 with the job.
+    // The temp files are gone before the answer.
+    const out = await deps.services.meshJobs.upload(labId, user.id, files, uploadFields.input(req), deps.config.uploadWaitMs);
+    res.status(out.status).json(out.body);
   };
   r.post('/labs/:labId/parts', uploader, uploadMiddleware(deps), uploadFields, importUpload, discardUploadOnError);
 
