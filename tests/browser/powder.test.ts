@@ -1,6 +1,6 @@
 import request from 'supertest';
 import type { Page } from 'playwright-core';
-import { newPage, openSection, PHONE, screenshot, serveAndLaunch, signIn, WIDE, type Served } from '../helpers/browser';
+import { ARTIFACTS, newPage, openSection, PHONE, screenshot, serveAndLaunch, signIn, WIDE, type Served } from '../helpers/browser';
 import { PASSWORD, startTestApp } from '../helpers/app';
 import { labWithCrew, queuedPlan, startBody } from '../api/runs-fixtures';
 import { materialDetailView, planPowderView } from '../../shared/schemas/powder';
@@ -72,7 +72,7 @@ async function fixtures(running: Awaited<ReturnType<typeof startTestApp>>) {
   await post('/powder/lots', { materialId: lab.materialId, code: 'OLD-01', kg: oldKg, receivedOn: day(-60), makerLot: 'B 2231-7' });
   await post('/powder/lots', { materialId: lab.materialId, code: 'NEW-02', kg: 40, receivedOn: day(-5), makerLot: 'B 2290-1', expiresOn: day(300) });
   await post('/powder/movements', { kind: 'adjusted', materialId: lab.materialId, countedKg: Math.ceil((loadA.reusedPowderKg + loadB.reusedPowderKg) * 15) / 10, reason: 'first count of the reused bin' });
-  const policy = await lab.agent.put(`/api/labs/${lab.labId}/powder/materials/${lab.materialId}/policy`).send({ maxMeanAgeBuilds: 3, minRefreshRatio: 0.3, minMvrCm3Per10Min: 18, reorderLevelKg: 30, leadTimeDays: 14 });
+  const policy = await lab.agent.put(`/api/labs/${lab.labId}/powder/materials/${lab.materialId}/policy`).send({ maxMeanAgeBuilds: 3, minRefreshRatio: 0.3, minMvrCm3Per10Min: 18, reorderLevelKg: 45, leadTimeDays: 14 });
   if (policy.status !== 200) throw new Error(`policy: ${policy.status} ${JSON.stringify(policy.body)}`);
   await post('/powder/checks', { materialId: lab.materialId, mvrCm3Per10Min: 23.5, testTempC: 235, testLoadKg: 5 });
   // Build B on the second machine runs to breakout through the API.
@@ -153,8 +153,12 @@ describe('a lead on a wide screen (1440 x 900)', () => {
   test('reads the stock chart with the forecast, lots, movements, mean age and melt-flow, receives a lot and records a count', async () => {
     const page = await newPage(served, WIDE);
     await signIn(page, lab.email, PASSWORD);
-    await openSection(page, 'powder');
-    await page.getByTestId(`powder-material-${lab.materialId}`).click();
+    // About 40 kg fresh against a reorder level of 45 kg: home asks the lead to reorder, and leads there.
+    const reorder = page.getByTestId(`home-powder-${lab.materialId}`);
+    await reorder.waitFor();
+    expect(await reorder.textContent()).toMatch(/Reorder.*fresh on hand; the queue takes it below 45 kg/);
+    await reorder.screenshot({ path: `${ARTIFACTS}/powder-home-reorder-wide.png` });
+    await reorder.click();
     await page.getByTestId('screen-powder-material').waitFor();
     const before = materialDetailView.parse(await read(`/powder/materials/${lab.materialId}`));
     expect(before.forecast.points.length).toBe(2); // now, and after the queued "Next week batch"
@@ -193,6 +197,9 @@ describe('a lead on a wide screen (1440 x 900)', () => {
     expect(after.freshKg).toBeCloseTo(before.freshKg + 25, 9);
     expect(after.reusedKg).toBe(12.5);
     await page.waitForFunction(`document.querySelector('[data-testid="powder-reused"]')?.textContent.includes('12.5 kg')`);
+    // 64.6 kg is above the reorder level again: the notice is gone.
+    expect(after.forecast.shortage).toBe(false);
+    await page.waitForSelector('[data-testid="powder-reorder"]', { state: 'detached' });
     await screenshot(page, 'powder-material-after-count-wide');
     await scrollTo(page, 'movement-form');
     await screenshot(page, 'powder-movement-form-wide');
