@@ -1,28 +1,14 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { pollUnlessLive } from '../stores/live';
-import { z } from 'zod';
 import { api } from '../api/client';
 import type { PlanStatus } from '../../shared/plans/status';
-import type { CalibrationView, ReadingInput, RunView } from '../../shared/schemas/runs';
+import { calibrationViewSchema, runViewSchema, type ReadingInput, type RunView } from '../../shared/schemas/runs';
 import { planKeys, planListSchema } from './plans';
 import { queueKeys } from './queue';
 
 /** The floor's cards must show a change made on another phone within 5 s. */
 export const FLOOR_REFRESH_MS = 4000;
 
-const runSchema = z.looseObject({
-  planId: z.string(),
-  planName: z.string(),
-  status: z.string(),
-  allowedTransitions: z.array(z.string()),
-  machine: z.looseObject({ id: z.string(), name: z.string() }),
-  lines: z.array(z.looseObject({ requestLineId: z.string(), plannedCount: z.number() })),
-  readings: z.array(z.looseObject({ tempC: z.number(), where: z.string(), at: z.string() })),
-  thresholds: z.looseObject({ removalTempC: z.number(), handlingTempC: z.number(), ambientTempC: z.number(), startTempC: z.number() }),
-  timers: z.looseObject({}),
-  card: z.looseObject({ status: z.string(), checklist: z.array(z.looseObject({})), cautions: z.array(z.looseObject({})), deferral: z.string() }),
-  now: z.string(),
-}) as unknown as z.ZodType<RunView>;
 
 /** Statuses whose run belongs on a machine's floor: the next queued build and every one under way. */
 export const FLOOR_STATUSES: readonly PlanStatus[] = ['queued', 'printing', 'cooling', 'breakout', 'finishing'];
@@ -37,7 +23,7 @@ export const runKeys = {
 export function runQueryOptions(labId: string, planId: string) {
   return {
     queryKey: runKeys.one(labId, planId),
-    queryFn: ({ signal }: { signal: AbortSignal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runSchema, signal }),
+    queryFn: ({ signal }: { signal: AbortSignal }) => api(`/labs/${labId}/plans/${planId}/run`, { schema: runViewSchema, signal }),
     refetchInterval: pollUnlessLive(labId, FLOOR_REFRESH_MS),
     refetchIntervalInBackground: false,
     staleTime: 0,
@@ -72,7 +58,7 @@ export function useAdvanceRunMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: { to: PlanStatus } & Record<string, unknown>) =>
-      api(`/labs/${labId}/plans/${planId}/run/advance`, { method: 'POST', body, schema: runSchema }),
+      api(`/labs/${labId}/plans/${planId}/run/advance`, { method: 'POST', body, schema: runViewSchema }),
     onSuccess: (run) => refreshAfterStep(qc, labId, run),
     // Someone else may have moved the run: show it as it is now.
     onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
@@ -82,7 +68,7 @@ export function useAdvanceRunMutation(labId: string, planId: string) {
 export function useAddReadingMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (body: ReadingInput) => api(`/labs/${labId}/plans/${planId}/run/readings`, { method: 'POST', body, schema: runSchema }),
+    mutationFn: (body: ReadingInput) => api(`/labs/${labId}/plans/${planId}/run/readings`, { method: 'POST', body, schema: runViewSchema }),
     onSuccess: (run) => refreshAfterStep(qc, labId, run),
     onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
   });
@@ -93,20 +79,18 @@ export function useAcceptReadingMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ readingId, ...body }: { readingId: string; runId: string; reason: string }) =>
-      api(`/labs/${labId}/plans/${planId}/run/readings/${readingId}/accept`, { method: 'POST', body, schema: runSchema }),
+      api(`/labs/${labId}/plans/${planId}/run/readings/${readingId}/accept`, { method: 'POST', body, schema: runViewSchema }),
     onSuccess: (run) => refreshAfterStep(qc, labId, run),
     onError: () => qc.invalidateQueries({ queryKey: runKeys.one(labId, planId) }),
   });
 }
-
-const calibrationSchema = z.looseObject({ runs: z.number(), calibrated: z.boolean() }) as unknown as z.ZodType<CalibrationView>;
 
 /** A lead leaves a run out of the machine's calibration or takes it back in, with a reason; answers the calibration refitted. */
 export function useCalibrationChoiceMutation(labId: string, machineId: string) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ runId, ...body }: { runId: string; choice: 'exclude' | 'include'; reason: string }) =>
-      api(`/labs/${labId}/machines/${machineId}/calibration/runs/${runId}`, { method: 'PUT', body, schema: calibrationSchema }),
+      api(`/labs/${labId}/machines/${machineId}/calibration/runs/${runId}`, { method: 'PUT', body, schema: calibrationViewSchema }),
     onSuccess: (view) => {
       qc.setQueryData([...runKeys.all(labId), 'calibration', machineId], view);
       return qc.invalidateQueries({ queryKey: queueKeys.machine(labId, machineId) });
@@ -118,7 +102,7 @@ export function useCalibrationChoiceMutation(labId: string, machineId: string) {
 export function useCalibrationQuery(labId: string, machineId: string) {
   return useQuery({
     queryKey: [...runKeys.all(labId), 'calibration', machineId] as const,
-    queryFn: ({ signal }) => api(`/labs/${labId}/machines/${machineId}/calibration`, { schema: calibrationSchema, signal }),
+    queryFn: ({ signal }) => api(`/labs/${labId}/machines/${machineId}/calibration`, { schema: calibrationViewSchema, signal }),
     staleTime: 60_000,
   });
 }

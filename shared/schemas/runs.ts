@@ -104,155 +104,181 @@ export const queueOrderSchema = z.strictObject({
   planIds: z.array(uuid, { error: 'must be the list of the queued plans in their new order' }).max(1000),
 });
 
-export interface RunLineView {
-  requestLineId: string;
-  planLineId: string;
-  part: { id: string; name: string };
-  request: { id: string; title: string; dueDate: string };
-  plannedCount: number;
-  goodCount: number | null;
-  failedCount: number | null;
-}
+// Answers of the floor's, the queue's and the calibration's routes: the server types what it builds with
+// these, and the screens parse what they read with them.
 
-export interface RunView {
-  planId: string;
-  planName: string;
-  status: PlanStatus;
-  allowedTransitions: PlanStatus[];
-  machine: { id: string; name: string };
-  material: { id: string; name: string };
+const planStatusView = z.enum(PLAN_STATUSES);
+const named = z.object({ id: z.string(), name: z.string() });
+const isRecord = (v: unknown) => typeof v === 'object' && v !== null;
+/** The floor module's computed pieces (timers, the stage card) keep their types in shared/floor; the view checks they are there. */
+const floorPiece = <T>() => z.custom<T>(isRecord);
+
+export const runLineViewSchema = z.object({
+  requestLineId: z.string(),
+  planLineId: z.string(),
+  part: named,
+  request: z.object({ id: z.string(), title: z.string(), dueDate: z.string() }),
+  plannedCount: z.number(),
+  goodCount: z.number().nullable(),
+  failedCount: z.number().nullable(),
+});
+export type RunLineView = z.infer<typeof runLineViewSchema>;
+
+export const runReadingViewSchema = z.object({
+  id: z.string(),
+  tempC: z.number(),
+  where: z.enum(['machine', 'outside']),
+  at: z.string(),
+  by: named.nullable(),
+  /** The reading against the cooling model: an unexplained one counts only once confirmed by a second reading or accepted by a lead. */
+  check: z.object({
+    status: z.enum(['explained', 'unexplained', 'confirmed', 'accepted']),
+    /** The coolest the cake could be then, by the model at its fastest. */
+    coolestC: z.number().nullable(),
+    confirmedBy: z.string().nullable(),
+    accepted: z.object({ by: named, reason: z.string(), at: z.string() }).nullable(),
+  }),
+});
+
+export const runViewSchema = z.object({
+  planId: z.string(),
+  planName: z.string(),
+  status: planStatusView,
+  allowedTransitions: z.array(planStatusView),
+  machine: named,
+  material: named,
   /** Null until the run is started. */
-  id: string | null;
-  checklist: { chamberInPlace: boolean; opticalWindowClean: boolean } | null;
-  freshPowderLoadedKg: number | null;
-  reusedPowderLoadedKg: number | null;
-  startedAt: string | null;
-  startedBy: { id: string; name: string } | null;
-  printEndedAt: string | null;
-  leftMachineAt: string | null;
-  breakoutAt: string | null;
-  finishingAt: string | null;
-  doneAt: string | null;
-  abortedAt: string | null;
-  abortReason: string | null;
-  finishingChecklist: { powderRemoved: boolean; blasted: boolean; inspected: boolean } | null;
-  estimate: {
-    printSeconds: number;
-    preheatSeconds: number;
-    inMachineCoolingSeconds: number;
-    outsideCoolingSeconds: number;
-    freshPowderKg: number;
-    reusedPowderKg: number;
-    cakeMassKg: number;
-  } | null;
-  estimatedPrintHours: number | null;
-  estimatedCoolingHours: number | null;
-  actualPrintHours: number | null;
-  actualCoolingHours: number | null;
-  powderUsedKg: number | null;
-  readings: Array<{
-    id: string;
-    tempC: number;
-    where: 'machine' | 'outside';
-    at: string;
-    by: { id: string; name: string } | null;
-    /** The reading against the cooling model: an unexplained one counts only once confirmed by a second reading or accepted by a lead. */
-    check: {
-      status: 'explained' | 'unexplained' | 'confirmed' | 'accepted';
-      /** The coolest the cake could be then, by the model at its fastest. */
-      coolestC: number | null;
-      confirmedBy: string | null;
-      accepted: { by: { id: string; name: string }; reason: string; at: string } | null;
-    };
-  }>;
-  lines: RunLineView[];
-  thresholds: { startTempC: number; ambientTempC: number; removalTempC: number; handlingTempC: number };
-  timers: { print: PrintTimer | null; cooling: CoolingTimer | null };
-  card: StageCard;
-  now: string;
-}
+  id: z.string().nullable(),
+  checklist: z.object({ chamberInPlace: z.boolean(), opticalWindowClean: z.boolean() }).nullable(),
+  freshPowderLoadedKg: z.number().nullable(),
+  reusedPowderLoadedKg: z.number().nullable(),
+  startedAt: z.string().nullable(),
+  startedBy: named.nullable(),
+  printEndedAt: z.string().nullable(),
+  leftMachineAt: z.string().nullable(),
+  breakoutAt: z.string().nullable(),
+  finishingAt: z.string().nullable(),
+  doneAt: z.string().nullable(),
+  abortedAt: z.string().nullable(),
+  abortReason: z.string().nullable(),
+  finishingChecklist: z.object({ powderRemoved: z.boolean(), blasted: z.boolean(), inspected: z.boolean() }).nullable(),
+  estimate: z
+    .object({
+      printSeconds: z.number(),
+      preheatSeconds: z.number(),
+      inMachineCoolingSeconds: z.number(),
+      outsideCoolingSeconds: z.number(),
+      freshPowderKg: z.number(),
+      reusedPowderKg: z.number(),
+      cakeMassKg: z.number(),
+    })
+    .nullable(),
+  estimatedPrintHours: z.number().nullable(),
+  estimatedCoolingHours: z.number().nullable(),
+  actualPrintHours: z.number().nullable(),
+  actualCoolingHours: z.number().nullable(),
+  powderUsedKg: z.number().nullable(),
+  readings: z.array(runReadingViewSchema),
+  lines: z.array(runLineViewSchema),
+  thresholds: z.object({ startTempC: z.number(), ambientTempC: z.number(), removalTempC: z.number(), handlingTempC: z.number() }),
+  timers: z.object({ print: floorPiece<PrintTimer>().nullable(), cooling: floorPiece<CoolingTimer>().nullable() }),
+  card: floorPiece<StageCard>(),
+  now: z.string(),
+});
+export type RunView = z.infer<typeof runViewSchema>;
 
 export type { Caution, ChecklistItem };
 
-export interface QueueItemView {
-  planId: string;
-  name: string;
-  status: PlanStatus;
-  queuePosition: number | null;
-  material: { id: string; name: string };
+export const queueItemViewSchema = z.object({
+  planId: z.string(),
+  name: z.string(),
+  status: planStatusView,
+  queuePosition: z.number().nullable(),
+  material: named,
   /** Set when the build before it on the machine (in the queue's order) runs in another material. */
-  materialChange: { previousPlanId: string; previousPlanName: string; previousMaterial: { id: string; name: string } } | null;
-  chamberIndex: number;
-  startAt: string;
-  printEndAt: string;
-  leavesMachineAt: string;
-  cooledAt: string;
-  breakoutDoneAt: string;
-  requests: Array<{ id: string; title: string; dueDate: string }>;
-  earliestDueDate: string | null;
-  late: boolean;
-  lateByHours: number;
-  durations: { preheatSeconds: number; layersSeconds: number; inMachineCoolingSeconds: number; outsideCoolingSeconds: number; breakoutSeconds: number };
-}
+  materialChange: z.object({ previousPlanId: z.string(), previousPlanName: z.string(), previousMaterial: named }).nullable(),
+  chamberIndex: z.number(),
+  startAt: z.string(),
+  printEndAt: z.string(),
+  leavesMachineAt: z.string(),
+  cooledAt: z.string(),
+  breakoutDoneAt: z.string(),
+  requests: z.array(z.object({ id: z.string(), title: z.string(), dueDate: z.string() })),
+  earliestDueDate: z.string().nullable(),
+  late: z.boolean(),
+  lateByHours: z.number(),
+  durations: z.object({
+    preheatSeconds: z.number(),
+    layersSeconds: z.number(),
+    inMachineCoolingSeconds: z.number(),
+    outsideCoolingSeconds: z.number(),
+    breakoutSeconds: z.number(),
+  }),
+});
+export type QueueItemView = z.infer<typeof queueItemViewSchema>;
 
 /** A machine's estimate factors as the queue shows them. */
-export interface CalibrationFactorsView {
-  printTimeScale: number;
-  coolingScale: number;
+export const calibrationFactorsViewSchema = z.object({
+  printTimeScale: z.number(),
+  coolingScale: z.number(),
   /** Separate factors on preheat-and-recoat time and on scan time; both the print-time scale when not fitted apart. */
-  perLayerScale: number;
-  scanScale: number;
-  separate: boolean;
-  runs: number;
-  calibrated: boolean;
-  printTimeClamped: boolean;
-  coolingClamped: boolean;
+  perLayerScale: z.number(),
+  scanScale: z.number(),
+  separate: z.boolean(),
+  runs: z.number(),
+  calibrated: z.boolean(),
+  printTimeClamped: z.boolean(),
+  coolingClamped: z.boolean(),
   /** The cooling factor's source: core readings against the conduction model, or whole cooling times. */
-  coolingFrom: 'readings' | 'cooling_times';
-  coolingReadings: number;
-}
+  coolingFrom: z.enum(['readings', 'cooling_times']),
+  coolingReadings: z.number(),
+});
+export type CalibrationFactorsView = z.infer<typeof calibrationFactorsViewSchema>;
 
 /** One finished or aborted run of a machine against its estimate (hours, the estimate before calibration). */
-export interface CalibrationRunView {
-  runId: string;
-  planId: string;
-  planName: string;
-  materialName: string | null;
-  startedAt: string;
-  endedAt: string;
-  outcome: 'done' | 'aborted';
-  abortReason: string | null;
-  estimatedPrintHours: number;
-  actualPrintHours: number | null;
-  estimatedCoolingHours: number;
-  actualCoolingHours: number | null;
+export const calibrationRunViewSchema = z.object({
+  runId: z.string(),
+  planId: z.string(),
+  planName: z.string(),
+  materialName: z.string().nullable(),
+  startedAt: z.string(),
+  endedAt: z.string(),
+  outcome: z.enum(['done', 'aborted']),
+  abortReason: z.string().nullable(),
+  estimatedPrintHours: z.number(),
+  actualPrintHours: z.number().nullable(),
+  estimatedCoolingHours: z.number(),
+  actualCoolingHours: z.number().nullable(),
   /** Actual over estimate; null when not recorded. */
-  printRatio: number | null;
-  coolingRatio: number | null;
+  printRatio: z.number().nullable(),
+  coolingRatio: z.number().nullable(),
   /** Core readings of the run usable against the conduction model, and the cooling factor they alone give (null without). */
-  coolingReadings: number;
-  readingsCoolingScale: number | null;
+  coolingReadings: z.number(),
+  readingsCoolingScale: z.number().nullable(),
   /** Counts toward the fit (the lead's choice, or the default). */
-  counted: boolean;
+  counted: z.boolean(),
   /** Among the latest counted runs the fit used. */
-  usedInFit: boolean;
-  defaultExclusion: 'aborted' | 'incomplete' | 'far_outside_model' | null;
-  defaultExclusionText: string | null;
-  choice: { choice: 'exclude' | 'include'; reason: string; by: { id: string; name: string } | null; at: string } | null;
-}
+  usedInFit: z.boolean(),
+  defaultExclusion: z.enum(['aborted', 'incomplete', 'far_outside_model']).nullable(),
+  defaultExclusionText: z.string().nullable(),
+  choice: z.object({ choice: z.enum(['exclude', 'include']), reason: z.string(), by: named.nullable(), at: z.string() }).nullable(),
+});
+export type CalibrationRunView = z.infer<typeof calibrationRunViewSchema>;
 
 /** GET .../calibration: the factors, and every recorded run of the machine, latest first. */
-export interface CalibrationView extends CalibrationFactorsView {
-  machine: { id: string; name: string };
-  recordedRuns: CalibrationRunView[];
-}
+export const calibrationViewSchema = calibrationFactorsViewSchema.extend({
+  machine: named,
+  recordedRuns: z.array(calibrationRunViewSchema),
+});
+export type CalibrationView = z.infer<typeof calibrationViewSchema>;
 
-export interface QueueView {
-  machine: { id: string; name: string; chamberCount: number };
-  calibration: CalibrationFactorsView;
-  now: string;
-  current: QueueItemView | null;
+export const queueViewSchema = z.object({
+  machine: z.object({ id: z.string(), name: z.string(), chamberCount: z.number() }),
+  calibration: calibrationFactorsViewSchema,
+  now: z.string(),
+  current: queueItemViewSchema.nullable(),
   /** Every started build that still holds a chamber (printing, cooling or in breakout), latest started first. */
-  active: QueueItemView[];
-  plans: QueueItemView[];
-}
+  active: z.array(queueItemViewSchema),
+  plans: z.array(queueItemViewSchema),
+});
+export type QueueView = z.infer<typeof queueViewSchema>;
