@@ -1,7 +1,7 @@
 // Three projects: pure unit tests, API tests against the real PostgreSQL,
 // and browser tests against the exported web app. `npm test` runs all three
 // after scripts/test.ts has started the database.
-const esm = ['lucia', 'oslo', '@lucia-auth', '@oslojs', 'fflate', 'comlink', 'binpackingjs'];
+const esm = ['lucia', 'oslo', '@lucia-auth', '@oslojs', 'fflate', 'comlink', 'binpackingjs', 'p-limit', 'yocto-queue'];
 const transformIgnorePatterns = [`node_modules/(?!(${esm.join('|')})/)`];
 const common = {
   testEnvironment: 'node',

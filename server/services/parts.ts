@@ -1,4 +1,5 @@
 import { QueryTypes, type Transaction } from 'sequelize';
+import pLimit from 'p-limit';
 import type { Database } from '../db';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
 import { measureFile, type FileMeasureResult } from '../mesh';
@@ -167,22 +168,6 @@ const SORT_SQL: Record<string, string> = {
  */
 const STORE_CONCURRENCY = 2;
 
-function semaphore(slots: number) {
-  let free = slots;
-  const waiting: (() => void)[] = [];
-  return async <T>(fn: () => Promise<T>): Promise<T> => {
-    if (free > 0) free--;
-    else await new Promise<void>((resolve) => waiting.push(resolve));
-    try {
-      return await fn();
-    } finally {
-      const next = waiting.shift();
-      if (next) next();
-      else free++;
-    }
-  };
-}
-
 const likePattern = (s: string) => `%${s.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
 /**
@@ -194,7 +179,7 @@ export function partsService(db: Database, deps: PartsDeps) {
   const { storage } = deps;
   const measure = deps.measure ?? measureFile;
   const usageChecks: PartUsageCheck[] = [];
-  const storeSlots = semaphore(STORE_CONCURRENCY);
+  const storeSlots = pLimit(STORE_CONCURRENCY);
 
   async function rowsById(labId: string, ids: string[], transaction?: Transaction): Promise<PartView[]> {
     if (ids.length === 0) return [];
