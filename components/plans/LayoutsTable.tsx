@@ -1,3 +1,5 @@
+import { useLab } from '../lab/useCurrentLab';
+import { useLabCurrency } from '../queries/account';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { LayoutSummaryView } from '../../shared/schemas/plans';
 import { colors, radius, spacing } from '../theme';
@@ -29,12 +31,12 @@ export function rowsOf(layouts: LayoutSummaryView[]): LayoutRow[] {
   }));
 }
 
-type Metric = { key: string; title: string; get: (n: ShownNumbers) => number | null; show: (n: ShownNumbers) => string; better: 'low' | 'high' };
+type Metric = { key: string; title: string; get: (n: ShownNumbers) => number | null; show: (n: ShownNumbers, currency?: string) => string; better: 'low' | 'high' };
 const METRICS: Metric[] = [
   { key: 'layers', title: 'Layers', get: (n) => n.layers, show: (n) => String(n.layers), better: 'low' },
   { key: 'hours', title: 'Print', get: (n) => n.printSeconds, show: (n) => hours(n.printSeconds), better: 'low' },
   { key: 'density', title: 'Density', get: (n) => n.packingDensity, show: (n) => percent(n.packingDensity), better: 'high' },
-  { key: 'cost', title: 'Cost/part', get: (n) => n.costPerPart, show: (n) => money(n.costPerPart), better: 'low' },
+  { key: 'cost', title: 'Cost/part', get: (n) => n.costPerPart, show: (n, currency) => money(n.costPerPart, currency), better: 'low' },
   { key: 'unplaced', title: 'Not placed', get: (n) => n.unplaced, show: (n) => String(n.unplaced), better: 'low' },
 ];
 
@@ -62,6 +64,7 @@ export function LayoutsTable({
   onDelete: (id: string) => void;
   busyId: string | null;
 }) {
+  const currency = useLabCurrency(useLab().id);
   if (rows.length === 0) {
     return (
       <Text color="inkMuted" testID="layouts-empty">
@@ -103,7 +106,7 @@ export function LayoutsTable({
                 <View key={m.key} style={styles.metric}>
                   <Text variant="caption" color="inkMuted">{m.title}</Text>
                   <Text variant="figure" style={isBest ? styles.best : undefined} testID={`layout-${m.key}-${r.working ? 'working' : r.id}`}>
-                    {r.numbers ? m.show(r.numbers) : '–'}
+                    {r.numbers ? m.show(r.numbers, currency) : '–'}
                   </Text>
                 </View>
               );

@@ -1,3 +1,5 @@
+import { useLab } from '../lab/useCurrentLab';
+import { useLabCurrency } from '../queries/account';
 import { StyleSheet, View } from 'react-native';
 import { AreaPerLayerChart } from '../charts';
 import { colors, radius, spacing } from '../theme';
@@ -31,6 +33,7 @@ export function NumbersPane({
   /** A placement's part name by its id (the request line), for the cost per part. */
   partNames?: ReadonlyMap<string, string>;
 }) {
+  const currency = useLabCurrency(useLab().id);
   if (!numbers) {
     return (
       <View style={styles.box} testID="plan-numbers-empty">
@@ -56,7 +59,7 @@ export function NumbersPane({
         <Cell label="Powder cake" value={kg(n.cakeKg)} testID="num-cake" />
         <Cell label="Fresh powder" value={kg(n.freshKg)} testID="num-fresh" />
         <Cell label="Reused powder" value={kg(n.reusedKg)} testID="num-reused" />
-        <Cell label="Cost per part" value={money(n.costPerPart)} testID="num-cost-part" />
+        <Cell label="Cost per part" value={money(n.costPerPart, currency)} testID="num-cost-part" />
         <Cell label="Placed" value={String(n.placed)} testID="num-placed" />
         <Cell label="Not placed" value={String(n.unplaced)} testID="num-unplaced" tone={n.unplaced > 0 ? 'danger' : undefined} />
       </View>
@@ -82,6 +85,7 @@ export function NumbersPane({
  * scrap allowance, then each part's share (by volume and height, docs/estimate.md), which add up to the total.
  */
 function CostBreakdown({ cost, total, partNames }: { cost: NonNullable<ShownNumbers['cost']>; total: number; partNames?: ReadonlyMap<string, string> }) {
+  const currency = useLabCurrency(useLab().id);
   const items: Array<[string, number]> = [
     [`Machine, ${cost.machineHours.toFixed(1)} h${cost.heldThroughOutsideCooling ? ' (held through outside cooling: one chamber)' : ''}`, cost.machineCost],
     ['Energy', cost.energyCost],
@@ -97,12 +101,12 @@ function CostBreakdown({ cost, total, partNames }: { cost: NonNullable<ShownNumb
       {items.map(([label, value]) => (
         <View key={label} style={styles.costRow}>
           <Text variant="caption" color="inkMuted" style={{ flex: 1 }}>{label}</Text>
-          <Figure variant="figure">{money(value)}</Figure>
+          <Figure variant="figure">{money(value, currency)}</Figure>
         </View>
       ))}
       <View style={[styles.costRow, styles.costTotal]}>
         <Text variant="bodyStrong" style={{ flex: 1 }}>Total</Text>
-        <Figure variant="figure" testID="num-cost-total">{money(total)}</Figure>
+        <Figure variant="figure" testID="num-cost-total">{money(total, currency)}</Figure>
       </View>
       {cost.perPart.length > 0 ? (
         <>
@@ -110,13 +114,13 @@ function CostBreakdown({ cost, total, partNames }: { cost: NonNullable<ShownNumb
           {cost.perPart.map((p) => (
             <View key={p.id} style={styles.costRow} testID={`num-cost-part-${p.id}`}>
               <Text variant="caption" color="inkMuted" style={{ flex: 1 }} numberOfLines={2}>
-                {`${partNames?.get(p.id) ?? p.id} × ${p.count}, ${money(p.each)} each`}
+                {`${partNames?.get(p.id) ?? p.id} × ${p.count}, ${money(p.each, currency)} each`}
               </Text>
-              <Figure variant="figure">{money(p.total)}</Figure>
+              <Figure variant="figure">{money(p.total, currency)}</Figure>
             </View>
           ))}
           <Text variant="caption" color="inkFaint" testID="num-cost-sum">
-            {`The parts add up to ${money(sum)}: machine time, energy and powder shared by each part's volume and height, labour equally.`}
+            {`The parts add up to ${money(sum, currency)}: machine time, energy and powder shared by each part's volume and height, labour equally.`}
           </Text>
         </>
       ) : null}

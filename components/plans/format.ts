@@ -1,3 +1,4 @@
+import { formatMoney } from '../ui/format';
 import type { PlanStatus } from '../../shared/plans/status';
 import type { BadgeTone } from '../ui';
 
@@ -34,9 +35,9 @@ export function percent(share: number | null | undefined): string {
   return `${(share * 100).toFixed(1)} %`;
 }
 
-export function money(value: number | null | undefined): string {
-  if (value == null || !Number.isFinite(value)) return '–';
-  return value.toLocaleString('en-US', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
+/** An amount, led by the lab's currency code once it is known. */
+export function money(value: number | null | undefined, currency?: string): string {
+  return formatMoney(value, currency);
 }
 
 export function mm(value: number | null | undefined): string {

@@ -1,7 +1,7 @@
 import { useInfiniteQuery, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { api } from '../api/client';
-import { PASSWORD_MIN, labSettingsViewSchema, sessionViewSchema } from '../../shared/schemas/auth';
+import { PASSWORD_MIN, labSettingsViewSchema, sessionViewSchema, type LabSettingsUpdate } from '../../shared/schemas/auth';
 import { auditPageViewSchema, type AuditKind } from '../../shared/schemas/audit';
 import { dropSessionData, meKeys } from './me';
 
@@ -65,10 +65,15 @@ export function useLabSettingsQuery(labId: string) {
   return useQuery({ queryKey: accountKeys.labSettings(labId), queryFn: () => api(`/labs/${labId}/settings`, { schema: labSettingsViewSchema }) });
 }
 
+/** The ISO 4217 code the lab's money is in; undefined until the settings have loaded. */
+export function useLabCurrency(labId: string): string | undefined {
+  return useLabSettingsQuery(labId).data?.currency;
+}
+
 export function useUpdateLabSettingsMutation(labId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { secondApproval: boolean | null }) => api(`/labs/${labId}/settings`, { method: 'PATCH', body: input, schema: labSettingsViewSchema }),
+    mutationFn: (input: LabSettingsUpdate) => api(`/labs/${labId}/settings`, { method: 'PATCH', body: input, schema: labSettingsViewSchema }),
     onSuccess: (settings) => qc.setQueryData(accountKeys.labSettings(labId), settings),
   });
 }

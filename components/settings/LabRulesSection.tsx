@@ -1,13 +1,16 @@
+import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
+import { currencySchema, type LabSettingsView } from '../../shared/schemas/auth';
+import { formatMoney } from '../ui/format';
 import { useLab } from '../lab/useCurrentLab';
 import { useLabSettingsQuery, useUpdateLabSettingsMutation } from '../queries/account';
 import { spacing } from '../theme';
-import { Button, Card, Choice, ErrorState, LoadingState, Notice, Text } from '../ui';
+import { Button, Card, Choice, ErrorState, Field, LoadingState, Notice, Text } from '../ui';
 import { SettingsScreen } from './SettingsScreen';
 
 type Mode = 'default' | 'on' | 'off';
 
-/** The lab's rules: whether a plan needs a second person's approval. */
+/** The lab's rules: whether a plan needs a second person's approval, and the currency its money is in. */
 export function LabRulesSection() {
   const lab = useLab();
   const settings = useLabSettingsQuery(lab.id);
@@ -16,7 +19,7 @@ export function LabRulesSection() {
   const mode: Mode | null = s ? (!s.secondApprovalSet ? 'default' : s.secondApproval ? 'on' : 'off') : null;
 
   return (
-    <SettingsScreen title="Lab rules" subtitle="How work is released to the machines in this lab." testID="settings-rules">
+    <SettingsScreen title="Lab rules" subtitle="How work is released to the machines in this lab, and the currency its money is in." testID="settings-rules">
       {settings.isPending ? <LoadingState label="Loading the lab's rules" /> : null}
       {settings.isError ? <ErrorState error={settings.error} onRetry={() => settings.refetch()} /> : null}
       {s ? (
@@ -66,7 +69,55 @@ export function LabRulesSection() {
           ) : null}
         </Card>
       ) : null}
+      {s ? <CurrencyCard key={s.currency} settings={s} /> : null}
     </SettingsScreen>
+  );
+}
+
+/** The ISO 4217 code every amount of money in the lab is shown in (rates and prices are typed in it). */
+function CurrencyCard({ settings }: { settings: LabSettingsView }) {
+  const lab = useLab();
+  const update = useUpdateLabSettingsMutation(lab.id);
+  const [code, setCode] = useState(settings.currency);
+  const [error, setError] = useState<string | null>(null);
+  const save = () => {
+    const parsed = currencySchema.safeParse(code);
+    if (!parsed.success) return setError(`The currency ${parsed.error.issues[0].message}.`);
+    setError(null);
+    update.mutate({ currency: parsed.data });
+  };
+  return (
+    <Card
+      title="Currency"
+      subtitle="Machine and labour rates, powder, energy and gas prices are typed in it, and every cost is shown in it."
+      testID="rules-currency"
+    >
+      <Text variant="bodyStrong" testID="rules-currency-state">
+        {`${settings.currency}: an amount of 1234.5 reads ${formatMoney(1234.5, settings.currency)}`}
+      </Text>
+      {lab.isLead ? (
+        <View style={styles.state}>
+          <Field
+            label="ISO 4217 code"
+            hint="Three letters, e.g. EUR, USD, CHF, GBP, JPY. Changing it does not convert the figures already typed."
+            value={code}
+            onChangeText={(t) => {
+              setCode(t);
+              setError(null);
+            }}
+            autoCapitalize="characters"
+            maxLength={3}
+            error={error ?? (update.isError ? update.error.message : undefined)}
+            testID="rules-currency-code"
+          />
+          <Button label="Save currency" size="sm" testID="rules-currency-save" loading={update.isPending} disabled={code.trim().toUpperCase() === settings.currency} onPress={save} />
+        </View>
+      ) : (
+        <Text variant="caption" color="inkFaint">
+          Only a lead changes the lab's currency.
+        </Text>
+      )}
+    </Card>
   );
 }
 

@@ -4,7 +4,9 @@ import type { z } from 'zod';
 import { fieldErrorsOf, isApiError } from '../api/client';
 import { spacing, useIsWide } from '../theme';
 import { Button, Card, Field, Notice, Text, TextInput } from '../ui';
-import { profileErrors, profileFrom, type FieldGroup, type FieldSpec, type FormValues } from './profileForm';
+import { profileErrors, profileFrom, withCurrency, type FieldGroup, type FieldSpec, type FormValues } from './profileForm';
+import { useLab } from '../lab/useCurrentLab';
+import { useLabCurrency } from '../queries/account';
 
 export type ProfileFormProps<P> = {
   groups: FieldGroup[];
@@ -25,6 +27,7 @@ export type ProfileFormProps<P> = {
  * before it is sent, each problem shown under its own field.
  */
 export function ProfileForm<P>({ groups, schema, initial, readOnly, submitLabel, testIDPrefix, onSubmit, submitting, serverError, footer }: ProfileFormProps<P>) {
+  const currency = useLabCurrency(useLab().id);
   const [values, setValues] = useState<FormValues>(initial);
   const [localErrors, setLocalErrors] = useState<Record<string, string>>({});
   const [touchedSinceServer, setTouchedSinceServer] = useState<Record<string, boolean>>({});
@@ -76,7 +79,7 @@ export function ProfileForm<P>({ groups, schema, initial, readOnly, submitLabel,
                 ) : (
                   <Field
                     label={f.label}
-                    unit={f.unit}
+                    unit={f.unit && withCurrency(f.unit, currency)}
                     hint={readOnly ? undefined : f.hint}
                     value={values[f.key] as string}
                     onChangeText={(t) => set(f.key, t)}

@@ -2,9 +2,10 @@ import { router } from 'expo-router';
 import type { z } from 'zod';
 import type { labResource } from '../queries/labResource';
 import { useLab } from '../lab/useCurrentLab';
+import { useLabCurrency } from '../queries/account';
 import { Button, EmptyState, ErrorState, Figure, LoadingState, Table, Text, type Column } from '../ui';
 import { profileFields } from './pickProfile';
-import { emptyValues, valuesFrom, type FieldGroup } from './profileForm';
+import { emptyValues, valuesFrom, withCurrency, type FieldGroup } from './profileForm';
 import { DeleteProfile, ProfileBack } from './ProfileParts';
 import { ProfileForm } from './ProfileForm';
 import { SettingsScreen } from './SettingsScreen';
@@ -42,6 +43,7 @@ export function ProfileList<Item extends StoredProfile, P extends object>({ kind
   const { kind } = profile;
   const lab = useLab();
   const list = profile.queries.useListQuery(lab.id);
+  const currency = useLabCurrency(lab.id);
   return (
     <SettingsScreen
       title={capitalised(`${kind}s`)}
@@ -56,7 +58,7 @@ export function ProfileList<Item extends StoredProfile, P extends object>({ kind
       ) : (
         <Table
           testID={`${kind}s-table`}
-          columns={profile.columns}
+          columns={profile.columns.map((c) => ({ ...c, title: withCurrency(c.title, currency) }))}
           rows={list.data}
           rowKey={(m) => m.id}
           rowTestID={(m) => `${kind}-row-${m.id}`}

@@ -38,11 +38,11 @@ export const machineFieldGroups: FieldGroup[] = [
   {
     title: 'Costs',
     fields: [
-      { key: 'hourlyRate', label: 'Machine rate', unit: 'per h', kind: 'number', hint: 'Charged for every hour the machine is held.' },
+      { key: 'hourlyRate', label: 'Machine rate', unit: '¤/h', kind: 'number', hint: 'Charged for every hour the machine is held.' },
       { key: 'labourHoursPerBuild', label: 'Labour per build', unit: 'h', kind: 'number', hint: 'Setup, breakout and cleaning.' },
-      { key: 'labourRate', label: 'Labour rate', unit: 'per h', kind: 'number' },
+      { key: 'labourRate', label: 'Labour rate', unit: '¤/h', kind: 'number' },
       { key: 'electricalPowerKw', label: 'Electrical draw', unit: 'kW', kind: 'number', hint: 'Mean draw while preheating and printing.' },
-      { key: 'energyPricePerKWh', label: 'Energy price', unit: 'per kWh', kind: 'number' },
+      { key: 'energyPricePerKWh', label: 'Energy price', unit: '¤/kWh', kind: 'number' },
       {
         key: 'inertGasM3PerHour',
         label: 'Inert gas flow',
@@ -50,7 +50,7 @@ export const machineFieldGroups: FieldGroup[] = [
         kind: 'number',
         hint: '0 when the machine prints in air. Nitrogen can asphyxiate: ventilate and monitor oxygen as local codes require.',
       },
-      { key: 'inertGasPricePerM3', label: 'Inert gas price', unit: 'per m³', kind: 'number' },
+      { key: 'inertGasPricePerM3', label: 'Inert gas price', unit: '¤/m³', kind: 'number' },
     ],
   },
 ];
@@ -63,7 +63,7 @@ export const materialFieldGroups: FieldGroup[] = [
       { key: 'solidDensityGPerCm3', label: 'Solid density', unit: 'g/cm³', kind: 'number', hint: 'Of a fused part: gives part mass.' },
       { key: 'bulkDensityGPerCm3', label: 'Bulk density', unit: 'g/cm³', kind: 'number', hint: 'Of packed loose powder, below the solid density: gives the loose powder in the cake.' },
       { key: 'refreshRatio', label: 'Refresh ratio', unit: '0–1', kind: 'number', hint: 'Share of fresh powder in each fill, e.g. 0.3' },
-      { key: 'pricePerKg', label: 'Price', unit: 'per kg', kind: 'number' },
+      { key: 'pricePerKg', label: 'Price', unit: '¤/kg', kind: 'number' },
     ],
   },
   {

@@ -119,3 +119,10 @@ export function profileErrors(groups: FieldGroup[], error: z.ZodError, input?: R
   }
   return out;
 }
+
+/** Stands for the lab's currency in a unit or a column title ("¤/h"); filled in where it is shown. */
+export const CURRENCY_TOKEN = '¤';
+
+export function withCurrency(text: string, currency: string | undefined): string {
+  return text.split(CURRENCY_TOKEN).join(currency ?? 'money');
+}

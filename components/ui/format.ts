@@ -20,3 +20,17 @@ export function formatNumber(n: number, maxDecimals = 3): string {
   if (!Number.isFinite(n)) return String(n);
   return String(Number(n.toFixed(maxDecimals)));
 }
+
+/**
+ * An amount in the lab's currency, led by its ISO 4217 code ("EUR 1,234.50"),
+ * with the currency's own decimals (none for JPY); "–" when there is none.
+ */
+export function formatMoney(value: number | null | undefined, currency: string | undefined): string {
+  if (value == null || !Number.isFinite(value)) return '–';
+  if (!currency) return value.toLocaleString('en-US', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
+  try {
+    return new Intl.NumberFormat('en-US', { style: 'currency', currency, currencyDisplay: 'code' }).format(value).replace(/\u00a0/g, ' ');
+  } catch {
+    return `${currency} ${value.toLocaleString('en-US', { minimumFractionDigits: 2, maximumFractionDigits: 2 })}`;
+  }
+}

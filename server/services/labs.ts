@@ -1,7 +1,7 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, forbidden, notFound } from '../errors';
-import { ROLES, type LabSettingsView, type MemberView, type MeResponse, type Role } from '../../shared/schemas/auth';
+import { ROLES, type LabSettingsUpdate, type LabSettingsView, type MemberView, type MeResponse, type Role } from '../../shared/schemas/auth';
 
 export type Member = MemberView;
 
@@ -127,18 +127,24 @@ export function labsService(db: Database) {
 
     /** The lab's settings, with the default applied. */
     async settings(labId: string, t?: Transaction): Promise<LabSettingsView> {
-      const [row] = await db.sequelize.query<{ second_approval: boolean | null; leads: number }>(
-        `SELECT l.second_approval, (SELECT count(*)::int FROM memberships m WHERE m.lab_id = l.id AND 'lead' = ANY (m.roles)) AS leads
+      const [row] = await db.sequelize.query<{ second_approval: boolean | null; leads: number; currency: string }>(
+        `SELECT l.second_approval, l.currency, (SELECT count(*)::int FROM memberships m WHERE m.lab_id = l.id AND 'lead' = ANY (m.roles)) AS leads
            FROM labs l WHERE l.id = $1`,
         { bind: [labId], type: QueryTypes.SELECT, transaction: t },
       );
       if (!row) throw notFound('That lab');
-      return { secondApproval: row.second_approval ?? row.leads > 1, secondApprovalSet: row.second_approval !== null, leads: row.leads };
+      return { secondApproval: row.second_approval ?? row.leads > 1, secondApprovalSet: row.second_approval !== null, leads: row.leads, currency: row.currency };
     },
 
-    async updateSettings(labId: string, input: { secondApproval: boolean | null }): Promise<LabSettingsView> {
+    /** Changes the settings named in `input`, leaving the others as they are. */
+    async updateSettings(labId: string, input: LabSettingsUpdate): Promise<LabSettingsView> {
       await db.sequelize.transaction(async (t) => {
-        await db.sequelize.query('UPDATE labs SET second_approval = $2, updated_at = now() WHERE id = $1', { bind: [labId, input.secondApproval], transaction: t });
+        if (input.secondApproval !== undefined) {
+          await db.sequelize.query('UPDATE labs SET second_approval = $2, updated_at = now() WHERE id = $1', { bind: [labId, input.secondApproval], transaction: t });
+        }
+        if (input.currency !== undefined) {
+          await db.sequelize.query('UPDATE labs SET currency = $2, updated_at = now() WHERE id = $1', { bind: [labId, input.currency], transaction: t });
+        }
       });
       return this.settings(labId);
     },

@@ -164,7 +164,8 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
 
       const costs = costLines(est?.cost, lines);
       if (costs.length > 0) {
-        doc.font('Helvetica-Bold').fontSize(11).text('Cost, from the lab\'s rates');
+        const [lab] = await sequelize.query<{ currency: string }>('SELECT currency FROM labs WHERE id = $1', { bind: [labId], type: QueryTypes.SELECT });
+        doc.font('Helvetica-Bold').fontSize(11).text(`Cost in ${lab?.currency ?? 'the lab\'s currency'}, from the lab's rates`);
         doc.font('Helvetica').fontSize(9);
         for (const line of costs) doc.text(line);
         doc.moveDown();

@@ -52,8 +52,23 @@ export const resetSchema = z.strictObject({
   token: z.string().min(1, 'is required').max(200, 'must be at most 200 characters'),
   password: passwordSchema,
 });
-/** The lab's settings a lead may change; `secondApproval: null` goes back to the default. */
-export const labSettingsUpdateSchema = z.strictObject({ secondApproval: z.boolean().nullable() });
+/** ISO 4217 codes, as the runtime's ICU data lists them (Intl.supportedValuesOf). */
+const CURRENCY_CODES: ReadonlySet<string> = new Set(typeof Intl.supportedValuesOf === 'function' ? Intl.supportedValuesOf('currency') : []);
+/** A currency as its three-letter ISO 4217 code ("eur" is read as "EUR"). */
+export const currencySchema = z
+  .string()
+  .trim()
+  .toUpperCase()
+  .regex(/^[A-Z]{3}$/, 'must be a three-letter ISO 4217 code such as EUR, USD or CHF')
+  .refine((c) => CURRENCY_CODES.size === 0 || CURRENCY_CODES.has(c), 'is not an ISO 4217 currency code');
+/**
+ * The lab's settings a lead may change, each on its own: `secondApproval: null`
+ * goes back to the default; `currency` is the code every amount of money is in.
+ */
+export const labSettingsUpdateSchema = z
+  .strictObject({ secondApproval: z.boolean().nullable().optional(), currency: currencySchema.optional() })
+  .refine((s) => s.secondApproval !== undefined || s.currency !== undefined, { message: 'name a setting to change: secondApproval or currency' });
+export type LabSettingsUpdate = z.infer<typeof labSettingsUpdateSchema>;
 
 export type SignUpInput = z.infer<typeof signUpSchema>;
 export type SignInInput = z.infer<typeof signInSchema>;
@@ -109,5 +124,5 @@ export const sessionViewSchema = z.object({
 export type SessionView = z.infer<typeof sessionViewSchema>;
 
 /** A lab's settings: `secondApproval` is what applies, `secondApprovalSet` whether a lead chose it (else the default). */
-export const labSettingsViewSchema = z.object({ secondApproval: z.boolean(), secondApprovalSet: z.boolean(), leads: z.number().int() });
+export const labSettingsViewSchema = z.object({ secondApproval: z.boolean(), secondApprovalSet: z.boolean(), leads: z.number().int(), currency: z.string() });
 export type LabSettingsView = z.infer<typeof labSettingsViewSchema>;

@@ -10,6 +10,7 @@ import * as m0008 from './0008-floor-integrity';
 import * as m0009 from './0009-mesh-jobs';
 import * as m0010 from './0010-accounts-audit';
 import * as m0011 from './0011-part-thumbnails';
+import * as m0012 from './0012-lab-currency';
 
 export type Migration = {
   name: string;
@@ -30,4 +31,5 @@ export const migrations: Migration[] = [
   { name: '0009-mesh-jobs', ...m0009 },
   { name: '0010-accounts-audit', ...m0010 },
   { name: '0011-part-thumbnails', ...m0011 },
+  { name: '0012-lab-currency', ...m0012 },
 ];
