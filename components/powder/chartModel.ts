@@ -1,4 +1,7 @@
 /** Pure layout of the stock chart: scales, ticks and the readout at a time (tested without a renderer). */
+import { niceStep } from '../charts/scale';
+
+export { niceStep };
 
 export interface StockSeriesInput {
   history: ReadonlyArray<{ atMs: number; freshKg: number; reusedKg: number }>;
@@ -18,15 +21,6 @@ export interface Scale {
 }
 
 const DAY_MS = 86_400_000;
-
-/** A round step (1, 2 or 5 times a power of ten) giving about `count` ticks up to `max`. */
-export function niceStep(max: number, count = 4): number {
-  if (!(max > 0)) return 1;
-  const raw = max / count;
-  const pow = 10 ** Math.floor(Math.log10(raw));
-  const m = raw / pow;
-  return (m <= 1 ? 1 : m <= 2 ? 2 : m <= 5 ? 5 : 10) * pow;
-}
 
 export function chartScale(s: StockSeriesInput): Scale {
   const times = [...s.history.map((p) => p.atMs), ...s.forecast.map((p) => p.atMs), s.nowMs];

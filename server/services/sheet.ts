@@ -8,6 +8,7 @@ import { checkExportable } from './export3mf';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
 import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import type { Placement } from '../../shared/packing';
+import type { CostEstimate } from '../../shared/estimate/cost';
 
 const INK = '#222222';
 const MUTED = '#666666';
@@ -55,18 +56,8 @@ function drawView(
   return h;
 }
 
-type SheetCost = {
-  machineHours: number;
-  heldThroughOutsideCooling: boolean;
-  machineCost: number;
-  energyCost: number;
-  inertGasCost: number;
-  powderCost: number;
-  labourCost: number;
-  scrapCost: number;
-  totalCost: number;
-  perPart: Array<{ id: string; count: number; each: number; total: number }>;
-};
+/** The estimate's cost, as stored with the layout (the sheet reads only these fields). */
+type SheetCost = Omit<CostEstimate, 'costPerPart' | 'perPart'> & { perPart: Array<Pick<CostEstimate['perPart'][number], 'id' | 'count' | 'each' | 'total'>> };
 
 /**
  * The build sheet's cost lines: what the build costs by what it pays for, then each request line's parts with the
