@@ -1,3 +1,4 @@
+// Over 450 lines: packing session, layout actions, editor model and panes still live together here; they are the seams to cut it along.
 /**
  * The plan editor: lines on the left, the chamber in 3D in the centre, the
  * numbers and the layouts on the right (tabs on a phone). Packing runs in the

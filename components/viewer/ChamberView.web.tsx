@@ -1,3 +1,4 @@
+// Over 450 lines: one three.js scene (instancing, cut plane, picking) whose parts share the scene's refs.
 /**
  * The build chamber in 3D: every placement drawn through instancing (one
  * InstancedMesh, so one draw call, per distinct part), coloured by request

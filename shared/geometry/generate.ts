@@ -1,3 +1,4 @@
+// Over 450 lines: the demo library's shapes, one small builder each over the same loft helper.
 /**
  * Closed, consistently oriented meshes for the demo part library, built as
  * lofts: a stack of closed loops (all counter-clockwise seen from +z, all with

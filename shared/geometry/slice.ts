@@ -1,3 +1,4 @@
+// Over 450 lines: one computation (plane-triangle cuts, areas and contours per rotation, layout sums) whose steps share their typed arrays.
 /**
  * Cross-sections of a triangle mesh with horizontal planes: the area and the
  * contour length of the solid at the middle of every layer, for a part in any

@@ -1,3 +1,4 @@
+// Over 450 lines: one file format's reader and writer, following the specification section by section.
 /**
  * 3MF reader (3MF Consortium, 3MF Core Specification):
  *

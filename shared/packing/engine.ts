@@ -1,3 +1,4 @@
+// Over 450 lines: one packing algorithm (construction, local search and its moves share the same state); split, it would pass that state between files.
 import { lowerBound } from './bounds';
 import { layerCount, orientationCode, orientedSize, usableRegion } from './geometry';
 import { createRandom, type Random } from './prng';

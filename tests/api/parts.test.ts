@@ -1,3 +1,4 @@
+// Over 450 lines: the tests of one route family (upload, list, edit, delete, file) sharing one lab fixture.
 import { createHash, randomUUID } from 'node:crypto';
 import { strToU8, zipSync } from 'fflate';
 import { existsSync, mkdtempSync, readdirSync } from 'node:fs';

@@ -1,3 +1,4 @@
+// Over 450 lines: one algorithm (the height-map drop and its rotations search), read top to bottom as the paper states it.
 /**
  * Packing by shape: parts are dropped straight down, one after another, into
  * a height map of the chamber (per plan cell, the top of what is already
