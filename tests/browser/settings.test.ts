@@ -1,7 +1,7 @@
 import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { addMember, PASSWORD, signUp, startTestApp, uniqueEmail } from '../helpers/app';
 import type { Running } from '../../server/boot';
-import { sentForReview } from '../helpers/plans';
+import { labWithProfiles, sentForReview } from '../helpers/plans';
 
 jest.setTimeout(180_000);
 
@@ -112,4 +112,24 @@ describe.each([
     expect(await page.getByTestId(nav).getByTestId('nav-review').count()).toBe(0);
     await page.context().close();
   });
+});
+
+test("a lead sets the lab's currency on a phone, and the machines' rates are shown in it", async () => {
+  const lab = await labWithProfiles(fixtures, 'currency-browser');
+  const page = await newPage(served, PHONE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto('/settings/rules');
+  await page.getByTestId('rules-currency').waitFor();
+  expect(await page.getByTestId('rules-currency-state').innerText()).toContain('EUR 1,234.50');
+  // A code that names no currency is refused under the field, before anything is sent.
+  await page.getByTestId('rules-currency-code').fill('XQQ');
+  await page.getByTestId('rules-currency-save').click();
+  await page.getByText('The currency is not an ISO 4217 currency code.').waitFor();
+  await page.getByTestId('rules-currency-code').fill('chf');
+  await page.getByTestId('rules-currency-save').click();
+  await page.getByTestId('rules-currency-state').getByText('CHF: an amount of 1234.5 reads CHF 1,234.50').waitFor();
+  await screenshot(page, 'settings-currency-phone');
+  await page.goto('/settings/machines');
+  await page.getByText('Rate CHF/h').first().waitFor();
+  await page.context().close();
 });
