@@ -1,4 +1,4 @@
-// Over 450 lines: one packing algorithm (construction, local search and its moves share the same state); split, it would pass that state between files.
+// Over 450 lines: one anytime packing search (greedy start, beam search, compaction under a time budget) whose steps share the model and budget state.
 import { lowerBound } from './bounds';
 import { layerCount, orientationCode, orientedSize, usableRegion } from './geometry';
 import { createRandom, type Random } from './prng';
