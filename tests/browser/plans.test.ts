@@ -64,9 +64,12 @@ describe('the demo planner on a wide screen (1440 x 900)', () => {
     await expect(page.getByTestId('num-cost-part').textContent()).resolves.toMatch(/\d/);
     await page.getByTestId('area-chart').waitFor();
     // The chart reads out the layer under the pointer.
-    const plot = (await page.getByTestId('area-chart-plot').boundingBox())!;
-    await page.mouse.move(plot.x + plot.width * 0.3, plot.y + plot.height / 2);
-    await expect(page.getByTestId('area-chart-readout').textContent()).resolves.toMatch(/^Layer \d+ of \d+ · [\d.]+ mm · [\d.]+ cm² · [\d.]+ % of the bed/);
+    // (Hovered where the plot is once it is in view: panels that load later move it down the pane.)
+    const plot = page.getByTestId('area-chart-plot');
+    await plot.scrollIntoViewIfNeeded();
+    const box = (await plot.boundingBox())!;
+    await plot.hover({ position: { x: box.width * 0.3, y: box.height / 2 } });
+    await page.getByTestId('area-chart-readout').getByText(/^Layer \d+ of \d+ · [\d.]+ mm · [\d.]+ cm² · [\d.]+ % of the bed/).waitFor();
     await page.getByTestId('area-chart').screenshot({ path: `${ARTIFACTS}/plans-area-chart-readout.png` });
     expect(await page.locator('[data-testid="plan-build"] canvas').count()).toBe(1);
     expect(await page.evaluate('typeof window.__chamberReady')).toBe('number');
