@@ -15,6 +15,7 @@ import type { QueueItemView, QueueView } from '../../shared/schemas/runs';
 import { CalibrationPanel } from './CalibrationPanel';
 import { ReorderList } from './ReorderList';
 import { dueEndMs, moved } from './reschedule';
+import { formatMoment, timeTicks } from './timeAxis';
 
 /** The lab's machines as tabs, and the chosen machine's queue on a timeline. */
 export function QueueScreen({ machineId }: { machineId?: string }) {
@@ -151,6 +152,9 @@ function MachineQueue({ machineId }: { machineId: string }) {
   );
 }
 
+/** Width of a lane's label on a wide screen (two lines of a plan's name). */
+const LABEL_WIDTH = 140;
+
 const STAGE_COLOURS: Array<{ key: string; label: string; colour: ColorName }> = [
   { key: 'preheat', label: 'Preheat', colour: 'amber' },
   { key: 'print', label: 'Print', colour: 'ember' },
@@ -178,37 +182,41 @@ function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plan
     const last = Math.max(f + 3_600_000, ...ends);
     return { from: f, to: last + (last - f) * 0.05 };
   }, [items, nowIso]);
+  const nowMs = Date.parse(nowIso);
+  // Room for a label every 90 px or so: about 4 ticks on a phone, 8 on a wide screen.
+  const ticks = useMemo(() => timeTicks(from, to, wide ? 8 : 4), [from, to, wide]);
   const pct = (ms: number) => `${(((Math.min(to, Math.max(from, ms)) - from) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
   const widthPct = (a: number, b: number) => `${((Math.max(0, Math.min(to, b) - Math.max(from, a)) / (to - from)) * 100).toFixed(3)}%` as `${number}%`;
   return (
     <View style={styles.timeline} testID="queue-timeline" accessibilityLabel="Timeline of the queue">
+      <Text variant="caption" color="inkMuted" testID="queue-now">
+        {`Now ${formatMoment(nowMs)} (the red line)`}
+      </Text>
       {items.map((p) => (
         <View key={p.planId} style={wide ? styles.lane : styles.laneNarrow}>
-          <Text variant="caption" numberOfLines={1} style={wide ? styles.laneLabel : undefined}>
+          <Text variant="caption" numberOfLines={2} style={wide ? styles.laneLabel : undefined}>
             {p.name}
           </Text>
           <View style={styles.laneTrack}>
             {segments(p).map((s) => (
               <View key={s.key} style={[styles.segment, { left: pct(s.from), width: widthPct(s.from, s.to), backgroundColor: colors[s.colour] }]} />
             ))}
+            <View style={[styles.now, { left: pct(nowMs) }]} />
             {p.earliestDueDate && dueEndMs(p.earliestDueDate) <= to ? (
               <View style={[styles.due, { left: pct(dueEndMs(p.earliestDueDate)) }, p.late && { backgroundColor: colors.danger }]} />
             ) : null}
           </View>
         </View>
       ))}
-      <View style={[styles.axis, !wide && { marginLeft: 0 }]}>
-        <Text variant="caption" color="inkMuted">
-          {formatWhen(new Date(from).toISOString())}
-        </Text>
-        {wide ? (
-          <Text variant="caption" color="inkMuted">
-            {formatWhen(new Date((from + to) / 2).toISOString())}
-          </Text>
-        ) : null}
-        <Text variant="caption" color="inkMuted">
-          {formatWhen(new Date(to).toISOString())}
-        </Text>
+      <View style={[styles.axisTrack, wide && { marginLeft: LABEL_WIDTH + 8 }]} testID="queue-axis">
+        {ticks.map((t) => (
+          <View key={t.atMs} style={[styles.tick, { left: pct(t.atMs) }]}>
+            <View style={[styles.tickMark, t.day && styles.tickMarkDay]} />
+            <Text variant="caption" color={t.day ? 'ink' : 'inkMuted'} style={styles.tickLabel} numberOfLines={1}>
+              {t.label}
+            </Text>
+          </View>
+        ))}
       </View>
       <View style={styles.legend}>
         {STAGE_COLOURS.map((s) => (
@@ -228,12 +236,6 @@ function Timeline({ underWay, plans, nowIso }: { underWay: QueueItemView[]; plan
       </View>
     </View>
   );
-}
-
-function formatWhen(iso: string): string {
-  const d = new Date(iso);
-  const pad = (n: number) => String(n).padStart(2, '0');
-  return `${formatDate(iso).slice(5)} ${pad(d.getHours())}:${pad(d.getMinutes())}`;
 }
 
 function QueueRow({ item, index, controls, testID }: { item: QueueItemView; index: number | null; controls?: React.ReactNode; testID?: string }) {
@@ -288,7 +290,7 @@ function QueueRow({ item, index, controls, testID }: { item: QueueItemView; inde
               {label}
             </Text>
             <Text variant="figure" testID={testID ? `${testID}-${key}` : undefined}>
-              {formatWhen(iso)}
+              {formatMoment(iso)}
             </Text>
           </View>
         ))}
@@ -313,12 +315,17 @@ const styles = StyleSheet.create({
   summary: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: spacing.md },
   timeline: { gap: spacing.xs, padding: spacing.md, borderRadius: radius.lg, borderWidth: 1, borderColor: colors.line, backgroundColor: colors.surface },
   lane: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
-  laneLabel: { width: 120 },
+  laneLabel: { width: LABEL_WIDTH },
   laneNarrow: { gap: 2 },
   laneTrack: { flexGrow: 1, flexShrink: 1, height: 18, borderRadius: 4, backgroundColor: colors.powderDeep, overflow: 'hidden' },
   segment: { position: 'absolute', top: 0, bottom: 0 },
   due: { position: 'absolute', top: 0, bottom: 0, width: 3, backgroundColor: colors.ink },
-  axis: { flexDirection: 'row', justifyContent: 'space-between', marginLeft: 128 },
+  axisTrack: { height: 30, position: 'relative', marginRight: 36 },
+  tick: { position: 'absolute', top: 0, width: 96, alignItems: 'flex-start' },
+  tickMark: { width: 1, height: 6, backgroundColor: colors.lineStrong },
+  tickMarkDay: { width: 2, height: 8, backgroundColor: colors.ink },
+  tickLabel: { fontSize: 11, lineHeight: 14, marginLeft: -2 },
+  now: { position: 'absolute', top: 0, bottom: 0, width: 4, marginLeft: -2, backgroundColor: colors.danger, borderLeftWidth: 1, borderRightWidth: 1, borderColor: colors.surface },
   legend: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.md, marginTop: spacing.xs },
   legendItem: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs },
   legendSwatch: { width: 12, height: 12, borderRadius: 2 },

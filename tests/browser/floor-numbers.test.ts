@@ -149,6 +149,12 @@ describe('the numbers and the floor, as a lead sees them', () => {
     expect(await page.getByTestId('queue-item-0-material').textContent()).toBe(next.materialName);
     expect(await page.getByTestId('queue-current-material').textContent()).toBe(cooling.materialName);
     expect(await page.getByTestId('queue-item-0-material-change').textContent()).toContain(`${next.materialName} after ${cooling.materialName}`);
+    // The time axis: round ticks that suit the span, the first one dated with the month named, and where now is.
+    const ticks = await page.getByTestId('queue-axis').innerText();
+    expect(ticks).toMatch(/\b\d{1,2} (Jan|Feb|Mar|Apr|May|Jun|Jul|Aug|Sep|Oct|Nov|Dec) \d{2}:\d{2}\b/);
+    expect(ticks.split('\n').filter((l) => /\d{2}:\d{2}|[A-Z][a-z]{2} \d/.test(l)).length).toBeGreaterThanOrEqual(3);
+    expect(await page.getByTestId('queue-now').innerText()).toMatch(/^Now \d{1,2} [A-Z][a-z]{2} \d{2}:\d{2}/);
+    expect(await page.getByTestId('queue-item-0-start').textContent()).toMatch(/^\d{1,2} [A-Z][a-z]{2} \d{2}:\d{2}$/);
     await screenshot(page, 'queue-material-change-wide');
 
     await page.getByTestId('queue-calibration-toggle').click();
