@@ -115,7 +115,7 @@ type JobRow = {
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const FINISHED = ['done', 'rejected'];
 // One lock for handing out turns: two uploads at once must not both take the lab's next turn.
-const TURN_LOCK_SQL = "SELECT pg_advisory_xact_lock(hashtext('sinterstack:mesh-turns'))";
+const TURN_LOCK_SQL = "SELECT pg_advisory_xact_lock(hashtext('upload-turn-order'))";
 
 function allRejected(rejected: RejectedFile[]): AppError {
   const message =
@@ -149,7 +149,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
     let sent = 0;
     try {
       await client.query('BEGIN');
-      await client.query("SELECT pg_advisory_xact_lock(hashtext('sinterstack:mesh-dispatch:' || $1))", [labId]);
+      await client.query("SELECT pg_advisory_xact_lock(hashtext('upload-lab-handout:' || $1))", [labId]);
       const { rows: [{ n }] } = await client.query<{ n: number }>(
         "SELECT count(*)::int AS n FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')",
         [labId],
