@@ -58,6 +58,9 @@ export function applyView(camera: THREE.Camera, controls: OrbitLike | null, boun
     controls.target.set(...pose.target);
     controls.update();
   }
+  // Picking casts rays from the camera's world matrix, which is otherwise brought up to date only when the next
+  // frame draws: a click landing before that frame (a busy machine, a big layout) would pick by the old view.
+  camera.updateMatrixWorld();
 }
 
 /** Fits the camera to `bounds` whenever they change (and on first mount). */

@@ -119,7 +119,9 @@ describe('the numbers and the floor, as a lead sees them', () => {
     const card = page.getByTestId(`run-card-${cooling.planId}`);
     await card.waitFor();
     expect(await card.getByTestId('run-machine-material').textContent()).toContain(cooling.materialName);
-    // The cooling build started before the next queued one: its card is first, the next build's after it.
+    // The cooling build started before the next queued one: its card is first, the next build's after it
+    // (wait for both cards: the queued one may draw a moment after the running one).
+    await page.getByTestId(`run-card-${next.planId}`).waitFor();
     const order = await page.evaluate(`[...document.querySelectorAll('[data-testid^="run-card-"]')].map((e) => e.getAttribute('data-testid'))`);
     expect(order).toEqual([`run-card-${cooling.planId}`, `run-card-${next.planId}`]);
     await waitForText(page, `reading-${coldReadingId}-doubt`, /Colder than the cake can be by then/);

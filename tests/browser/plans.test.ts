@@ -250,7 +250,8 @@ describe('a layout of 5,000 placements', () => {
     // Edits on the big layout: from the top, a click marks the part under it; removing it leaves one part unplaced.
     await page.getByTestId('plan-status').click();
     await page.keyboard.press('1');
-    await page.waitForTimeout(300);
+    // Two animation frames: the top view has drawn before the click.
+    await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
     await page.mouse.click(cx, cy);
     await page.getByTestId('plan-marked').waitFor();
     await page.getByTestId('plan-remove-marked').click();
