@@ -17,6 +17,6 @@ module.exports = {
   projects: [
     { ...common, displayName: 'unit', testMatch: ['<rootDir>/tests/unit/**/*.test.ts'] },
     { ...common, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'] },
-    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'] },
+    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'], setupFilesAfterEnv: ['<rootDir>/tests/helpers/browserRetry.ts'] },
   ],
 };
