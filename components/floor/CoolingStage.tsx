@@ -5,7 +5,7 @@ import { useAcceptReadingMutation, useAddReadingMutation } from '../queries/runs
 import { colors, radius, spacing } from '../theme';
 import { Notice, Text } from '../ui';
 import type { RunView } from '../../shared/schemas/runs';
-import { CheckRow, FloorButton, FloorInput } from './controls';
+import { FloorButton, FloorInput, RadioRows } from './controls';
 import { formatClock, formatDuration, liveCooling, useNow } from './live';
 import { Big, ConfirmButton, parseNumber, StageFoot, stageStyles, stepError, type StageProps } from './stageKit';
 
@@ -57,13 +57,16 @@ export function CoolingStage({ run, offsetMs, advance, err, canAct }: StageProps
       )}
       <View style={styles.reading} testID="reading-form">
         <Text variant="heading">Enter a reading</Text>
-        <View style={styles.segment}>
-          {(['machine', 'outside'] as const).map((w) => (
-            <View key={w} style={{ flex: 1, minWidth: 140 }}>
-              <CheckRow label={w === 'machine' ? 'In the machine' : 'Outside'} checked={where === w} onToggle={() => setWhere(w)} testID={`reading-where-${w}`} />
-            </View>
-          ))}
-        </View>
+        <RadioRows
+          label="Where the chamber is"
+          options={[
+            { value: 'machine', label: 'In the machine' },
+            { value: 'outside', label: 'Outside' },
+          ]}
+          value={where}
+          onChange={setWhere}
+          testID="reading-where"
+        />
         <FloorInput label="Temperature" unit="°C" value={temp}
           onChangeText={(v) => {
             setTemp(v);
@@ -177,7 +180,6 @@ function ReadingRow({ run, reading: r, now, canAccept }: { run: RunView; reading
 
 const styles = StyleSheet.create({
   reading: { gap: spacing.md, padding: spacing.md, borderRadius: radius.lg, backgroundColor: colors.powder },
-  segment: { flexDirection: 'row', gap: spacing.sm, flexWrap: 'wrap' },
   doubted: { gap: spacing.sm, padding: spacing.md, borderRadius: radius.md, backgroundColor: colors.dangerSoft, borderLeftWidth: 4, borderLeftColor: colors.danger },
   acceptForm: { gap: spacing.md },
 });

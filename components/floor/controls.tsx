@@ -86,6 +86,46 @@ export function CheckRow({ label, checked, onToggle, testID, disabled }: { label
   );
 }
 
+/** One of a few answers to one question, as full-width rows with a round mark: the floor's single choice. */
+export function RadioRows<V extends string>({
+  label,
+  options,
+  value,
+  onChange,
+  testID,
+}: {
+  label: string;
+  options: { value: V; label: string }[];
+  value: V;
+  onChange: (v: V) => void;
+  testID?: string;
+}) {
+  return (
+    <View style={styles.radioRows} accessibilityRole="radiogroup" accessibilityLabel={label}>
+      {options.map((o) => {
+        const on = o.value === value;
+        return (
+          <Pressable
+            key={o.value}
+            testID={testID ? `${testID}-${o.value}` : undefined}
+            accessibilityRole="radio"
+            accessibilityLabel={o.label}
+            accessibilityState={{ checked: on }}
+            aria-checked={on}
+            onPress={() => onChange(o.value)}
+            style={({ pressed }) => [styles.check, styles.radioRow, on && styles.checkOn, pressed && { opacity: 0.85 }]}
+          >
+            <View style={[styles.radioMark, on && styles.radioMarkOn]}>{on ? <View style={styles.radioDot} /> : null}</View>
+            <Text variant="bodyStrong" style={{ flex: 1, fontSize: 17, lineHeight: 24 }}>
+              {o.label}
+            </Text>
+          </Pressable>
+        );
+      })}
+    </View>
+  );
+}
+
 export const FloorInput = forwardRef<
   RNTextInput,
   { label: string; value: string; onChangeText: (t: string) => void; unit?: string; error?: string | null; hint?: string; testID?: string; keyboard?: 'decimal-pad' | 'number-pad' | 'default'; multiline?: boolean }
@@ -192,6 +232,11 @@ const styles = StyleSheet.create({
   checkOn: { borderColor: colors.teal, backgroundColor: colors.tealSoft },
   box: { width: 32, height: 32, borderRadius: 6, borderWidth: 2, borderColor: colors.lineStrong, alignItems: 'center', justifyContent: 'center', backgroundColor: colors.surface },
   boxOn: { backgroundColor: colors.teal, borderColor: colors.teal },
+  radioRows: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.sm },
+  radioRow: { flexGrow: 1, flexBasis: 140 },
+  radioMark: { width: 28, height: 28, borderRadius: 14, borderWidth: 2, borderColor: colors.lineStrong, alignItems: 'center', justifyContent: 'center', backgroundColor: colors.surface },
+  radioMarkOn: { borderColor: colors.teal },
+  radioDot: { width: 14, height: 14, borderRadius: 7, backgroundColor: colors.teal },
   inputRow: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
   input: {
     // A web input has an intrinsic width; without a zero basis it pushes the unit and the steppers off a phone's screen.

@@ -126,6 +126,10 @@ describe('the numbers and the floor, as a lead sees them', () => {
     expect(order).toEqual([`run-card-${cooling.planId}`, `run-card-${next.planId}`]);
     await waitForText(page, `reading-${coldReadingId}-doubt`, /Colder than the cake can be by then/);
     expect(await card.getByTestId('run-breakout').getAttribute('aria-disabled')).toBe('true');
+    // Where the chamber is: one answer of two, shown as a radio group (not check boxes), in the machine at first.
+    expect(await card.getByRole('radiogroup', { name: 'Where the chamber is' }).getByRole('radio').count()).toBe(2);
+    expect(await card.getByTestId('reading-where-machine').getAttribute('aria-checked')).toBe('true');
+    expect(await card.getByTestId('reading-where-outside').getAttribute('aria-checked')).toBe('false');
     await scrollToTop(page, 'reading-form');
     await screenshot(page, 'floor-reading-doubted-phone');
 
