@@ -3,7 +3,7 @@ import { Pressable, StyleSheet, View, type LayoutChangeEvent } from 'react-nativ
 import Svg, { Circle, Line, Rect, Text as SvgText } from 'react-native-svg';
 import { useLab } from '../lab/useCurrentLab';
 import { useCalibrationChoiceMutation, useCalibrationQuery } from '../queries/runs';
-import { colors, radius, spacing } from '../theme';
+import { colors, fonts, radius, spacing } from '../theme';
 import { Badge, Button, Choice, ErrorState, Field, LoadingState, Notice, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import type { CalibrationRunView, CalibrationView } from '../../shared/schemas/runs';
@@ -130,19 +130,19 @@ function RunsChart({ view, measure, selected, onSelect }: { view: CalibrationVie
         <Svg width={width} height={CHART_H}>
           <Rect x={PAD.left} y={PAD.top} width={plotW} height={plotH} fill={colors.powderDeep} />
           {ticks.map((t) => (
-            <SvgText key={`x${t}`} x={sx(t)} y={CHART_H - PAD.bottom + 14} fontSize={11} fill={colors.inkMuted} textAnchor="middle">
+            <SvgText key={`x${t}`} x={sx(t)} y={CHART_H - PAD.bottom + 14} fontSize={11} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="middle">
               {tickText(t, step)}
             </SvgText>
           ))}
           {ticks.map((t) => (
-            <SvgText key={`y${t}`} x={PAD.left - 6} y={sy(t) + 3} fontSize={11} fill={colors.inkMuted} textAnchor="end">
+            <SvgText key={`y${t}`} x={PAD.left - 6} y={sy(t) + 3} fontSize={11} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="end">
               {tickText(t, step)}
             </SvgText>
           ))}
-          <SvgText x={PAD.left + plotW / 2} y={CHART_H - 4} fontSize={11} fill={colors.inkMuted} textAnchor="middle">
+          <SvgText x={PAD.left + plotW / 2} y={CHART_H - 4} fontSize={11} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="middle">
             {`Estimated ${label} (h)`}
           </SvgText>
-          <SvgText x={10} y={PAD.top + plotH / 2} fontSize={11} fill={colors.inkMuted} textAnchor="middle" transform={`rotate(-90 10 ${PAD.top + plotH / 2})`}>
+          <SvgText x={10} y={PAD.top + plotH / 2} fontSize={11} fontFamily={fonts.mono} fill={colors.inkMuted} textAnchor="middle" transform={`rotate(-90 10 ${PAD.top + plotH / 2})`}>
             {`Actual (h)`}
           </SvgText>
           <Line x1={sx(0)} y1={sy(0)} x2={sx(max)} y2={sy(max)} stroke={colors.inkFaint} strokeWidth={1} strokeDasharray="4 4" />
