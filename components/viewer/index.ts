@@ -6,7 +6,8 @@ export { PartPreview, type PartPreviewProps } from './PartPreview';
 export { ChamberView, type ChamberViewHandle, type ChamberViewProps } from './ChamberView';
 export { LayerSlider, type LayerSliderProps } from './LayerSlider';
 export { ViewToolbar } from './ViewToolbar';
-export { useMeshFile, loadMeshFile, forgetMeshFile, type MeshFileOptions, type MeshFileState, type MeshFileError, type MeshUnit } from './useMeshFile';
+export { useMeshFile, type MeshFileOptions, type MeshFileState, type MeshFileError, type MeshUnit } from './useMeshFile';
+export { fetchMeshFile, MeshFileLoadError } from './meshFileLoader';
 export type { ViewMesh, PartMesh, ChamberPlacements, MeshProblem, ParseMeshResult, MeshWorkerApi } from './types';
 export {
   LINE_PALETTE,
