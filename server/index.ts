@@ -1,5 +1,6 @@
 import { loadConfig } from './config';
 import { boot, checkDatabase, listen } from './boot';
+import { meshPool } from './mesh';
 
 /**
  * Runs the server against an already prepared database (`npm start` prepares
@@ -10,6 +11,8 @@ export async function runServer(env: NodeJS.ProcessEnv = process.env) {
   const config = loadConfig(env);
   await checkDatabase(config.databaseUrl);
   const running = await boot(config);
+  // The measuring threads start now (loading the geometry code takes seconds on a busy machine), not with the first upload.
+  if (config.meshWorker) meshPool();
   const server = await listen(running.app, config.port, config.host);
   let stopping = false;
   const stop = async (signal: string) => {

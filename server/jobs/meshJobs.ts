@@ -86,6 +86,9 @@ export type MeshJobsDeps = {
   log?: (msg: string) => void;
 };
 
+/** A connection in a transaction, as pg speaks to it. */
+type Sql = Pick<pg.ClientBase, 'query'>;
+
 type JobOptions = { unit: 'mm' | 'cm' | 'inch'; split: boolean; measure: Omit<MeasureOptions, 'filename'> };
 
 type FileRow = {
@@ -111,6 +114,9 @@ type JobRow = {
   started_at: Date | null;
   finished_at: Date | null;
 };
+
+/** The connection a transaction runs on (for the queue's own statements in the same transaction). */
+const connectionOf = (transaction: Transaction): Sql => (transaction as unknown as { connection: Sql }).connection;
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const FINISHED = ['done', 'rejected'];
@@ -142,43 +148,51 @@ export function meshJobsService(deps: MeshJobsDeps) {
 
   /**
    * Hands the lab's waiting files to the queue while it has fewer than its
-   * limit there, lowest turn first, in one transaction with their new state.
+   * limit there, lowest turn first, on the caller's transaction (its
+   * connection): their queue jobs and their new state commit together. The
+   * number handed out.
    */
+  async function handOut(client: Sql, labId: string): Promise<number> {
+    await client.query("SELECT pg_advisory_xact_lock(hashtext('upload-lab-handout:' || $1))", [labId]);
+    const { rows } = await client.query<{ id: string; turn: number }>(
+      `SELECT id, turn FROM mesh_job_files WHERE lab_id = $1 AND state = 'waiting' ORDER BY turn, position
+        LIMIT greatest(0, $2 - (SELECT count(*) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')))
+        FOR UPDATE`,
+      [labId, settings.labConcurrency],
+    );
+    if (rows.length === 0) return 0;
+    const db: PgBoss.Db = { executeSql: (text, values) => client.query(text, values) };
+    for (const row of rows) {
+      await boss.send(settings.queue, { fileId: row.id }, {
+        id: row.id,
+        priority: -row.turn,
+        retryLimit: settings.retryLimit,
+        retryDelay: 1,
+        expireInSeconds: settings.expireSeconds,
+        deadLetter: deadLetterQueue(settings.queue),
+        db,
+      });
+    }
+    // The notice is delivered when the transaction commits.
+    await client.query(
+      "WITH handed AS (UPDATE mesh_job_files SET state = 'queued' WHERE id = ANY($1::uuid[]) RETURNING id) SELECT pg_notify($2, $3) FROM (SELECT 1 FROM handed LIMIT 1) h",
+      [rows.map((r) => r.id), MESH_WORK_CHANNEL, settings.queue],
+    );
+    return rows.length;
+  }
+
+  /** Wakes this process's own idle pollers at once (other processes hear the database's notice). */
+  function wakeLocal(sent: number) {
+    if (sent > 0) for (const id of localWorkers) boss.notifyWorker(id);
+  }
+
+  /** Hands out the lab's waiting files in a transaction of its own. */
   async function dispatch(labId: string): Promise<number> {
     const client = await pool.connect();
     let sent = 0;
     try {
       await client.query('BEGIN');
-      await client.query("SELECT pg_advisory_xact_lock(hashtext('upload-lab-handout:' || $1))", [labId]);
-      const { rows: [{ n }] } = await client.query<{ n: number }>(
-        "SELECT count(*)::int AS n FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')",
-        [labId],
-      );
-      const free = settings.labConcurrency - n;
-      if (free > 0) {
-        const { rows } = await client.query<{ id: string; turn: number }>(
-          "SELECT id, turn FROM mesh_job_files WHERE lab_id = $1 AND state = 'waiting' ORDER BY turn, position LIMIT $2 FOR UPDATE",
-          [labId, free],
-        );
-        const db: PgBoss.Db = { executeSql: (text, values) => client.query(text, values) };
-        for (const row of rows) {
-          await boss.send(settings.queue, { fileId: row.id }, {
-            id: row.id,
-            priority: -row.turn,
-            retryLimit: settings.retryLimit,
-            retryDelay: 1,
-            expireInSeconds: settings.expireSeconds,
-            deadLetter: deadLetterQueue(settings.queue),
-            db,
-          });
-        }
-        if (rows.length > 0) {
-          await client.query("UPDATE mesh_job_files SET state = 'queued' WHERE id = ANY($1::uuid[])", [rows.map((r) => r.id)]);
-          // Delivered when the transaction commits.
-          await client.query('SELECT pg_notify($1, $2)', [MESH_WORK_CHANNEL, settings.queue]);
-        }
-        sent = rows.length;
-      }
+      sent = await handOut(client, labId);
       await client.query('COMMIT');
     } catch (err) {
       await client.query('ROLLBACK').catch(() => {});
@@ -186,7 +200,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
     } finally {
       client.release();
     }
-    if (sent > 0) for (const id of localWorkers) boss.notifyWorker(id);
+    wakeLocal(sent);
     return sent;
   }
 
@@ -243,8 +257,9 @@ export function meshJobsService(deps: MeshJobsDeps) {
   }
 
   async function afterFile(row: FileRow, partsChanged: boolean) {
-    await publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
-    if (partsChanged) await publish({ labId: row.lab_id, topic: 'parts' });
+    // Told at once (a waiting upload answers on it), not waited for: the next files' hand-out does not wait on the notices.
+    void publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
+    if (partsChanged) void publish({ labId: row.lab_id, topic: 'parts' });
     await dispatch(row.lab_id).catch((err: Error) => log(`mesh jobs: handing out the next files failed: ${err.message}`));
   }
 
@@ -345,8 +360,14 @@ export function meshJobsService(deps: MeshJobsDeps) {
         const keys = await Promise.all(files.map((f, i) => (checked[i].ok ? sha256File(f.path) : null)));
         const jobId = randomUUID();
         const created: string[] = [];
+        let sent = 0;
         try {
           await sequelize.transaction(async (transaction) => {
+            // The bytes first, before the turn order is locked: storing a large batch must not hold up other labs' uploads.
+            for (const [position, f] of files.entries()) {
+              const key = keys[position];
+              if (checked[position].ok && key && (await storage.put(key, { path: f.path, sizeBytes: f.size }, { transaction })).created) created.push(key);
+            }
             await sequelize.query(TURN_LOCK_SQL, { transaction });
             // The lowest turn pending anywhere (or the last one given, when nothing is pending), and this lab's last.
             const [t] = await query<{ floor: number | null; last: number | null; lab: number | null }>(
@@ -373,20 +394,21 @@ export function meshJobsService(deps: MeshJobsDeps) {
                 );
                 continue;
               }
-              if ((await storage.put(key, { path: f.path, sizeBytes: f.size }, { transaction })).created) created.push(key);
               await sequelize.query(
                 `INSERT INTO mesh_job_files (id, job_id, lab_id, position, file_name, file_key, size_bytes, turn, state)
                  VALUES ($1, $2, $3, $4, $5, $6, $7, $8, 'waiting')`,
                 { bind: [randomUUID(), jobId, labId, position, c.file, key, f.size, turn++], transaction },
               );
             }
+            // Handed to the queue in the same transaction: a worker may take the first files as soon as it commits.
+            sent = await handOut(connectionOf(transaction), labId);
           });
         } catch (err) {
           for (const key of created) await storage.discard(key);
           throw err;
         }
-        await publish({ labId, topic: 'jobs', id: jobId });
-        await dispatch(labId).catch((err: Error) => log(`mesh jobs: handing out files failed (a worker's sweep will): ${err.message}`));
+        wakeLocal(sent);
+        void publish({ labId, topic: 'jobs', id: jobId });
         return { jobId };
       } finally {
         await Promise.all(files.map((f) => unlink(f.path).catch(() => {})));
@@ -428,7 +450,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
           transaction,
         });
       });
-      await publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
+      void publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
 
       const bytes = await storage.get(row.file_key);
       if (!bytes) {

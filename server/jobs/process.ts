@@ -5,7 +5,7 @@ import { connectDatabase } from '../db';
 import { createStorage } from '../storage';
 import { partsService } from '../services/parts';
 import { createLabEvents } from '../events/labEvents';
-import { configureMeshPool, closeMeshPool, defaultMeshThreads, measureFile } from '../mesh';
+import { configureMeshPool, meshPool, closeMeshPool, defaultMeshThreads, measureFile } from '../mesh';
 import { startBoss } from './boss';
 import { meshJobsService, type MeshQueueSettings } from './meshJobs';
 import { startMeshWorker } from './worker';
@@ -31,6 +31,8 @@ export async function runWorkerProcess(config: Config, settings: MeshQueueSettin
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const boss = await startBoss(config.databaseUrl, settings, log);
   const jobs = meshJobsService({ db, pool, boss, storage, parts, settings, publish: (e) => events.publish(e), log });
+  // The threads start now (loading the geometry code takes seconds on a busy machine), not with the first file.
+  meshPool();
   const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads, measure: measureFile, settings, log });
   return {
     name: worker.name,

@@ -5,6 +5,13 @@ import { deadLetterQueue, MESH_WORK_CHANNEL, type Measure, type MeshJobs, type M
 
 export type MeshWorker = { name: string; stop(): Promise<void> };
 
+/**
+ * How often an idle poller looks for files when no notice woke it (the
+ * queue's shortest): a notice (LISTEN, or this process handing out) wakes it
+ * at once, so this only bounds the wait when a notice is lost.
+ */
+const POLL_SECONDS = 0.5;
+
 /** How often a worker looks for labs whose files wait with room in their limit (a lost hand-over). */
 const SWEEP_MS = 10_000;
 
@@ -17,7 +24,7 @@ const SWEEP_MS = 10_000;
 export async function startMeshWorker(opts: {
   boss: PgBoss;
   jobs: MeshJobs;
-  /** For hearing that files were handed out (LISTEN); without it the pollers find them within a second. */
+  /** For hearing that files were handed out (LISTEN); without it the pollers find them within half a second. */
   databaseUrl?: string;
   /** Files this process measures at once (the size of its thread pool). */
   threads: number;
@@ -31,7 +38,7 @@ export async function startMeshWorker(opts: {
   const ids: string[] = [];
   for (let i = 0; i < opts.threads; i++) {
     ids.push(
-      await boss.work<{ fileId: string }>(settings.queue, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+      await boss.work<{ fileId: string }>(settings.queue, { batchSize: 1, pollingIntervalSeconds: POLL_SECONDS }, async ([job]) => {
         await jobs.processFile(job.data.fileId, name, measure);
       }),
     );
@@ -49,7 +56,7 @@ export async function startMeshWorker(opts: {
     client.on('notification', (msg) => {
       if (msg.channel === MESH_WORK_CHANNEL && msg.payload === settings.queue) for (const id of pollers) boss.notifyWorker(id);
     });
-    // Losing it only costs the pollers' second of delay.
+    // Losing it only costs the pollers' half second of delay.
     client.on('error', (err) => log(`mesh worker: lost the wake-up listener (${err.message}); polling only`));
     try {
       await client.connect();
