@@ -46,6 +46,7 @@ import {
 } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, ErrorState, LoadingState, Notice, Text, TextInput } from '../ui';
+import { PlanFlags } from '../review/PlanFlags';
 import { lineColour, type ChamberViewHandle } from '../viewer';
 import { BuildPane } from './BuildPane';
 import { ConflictDialog } from './ConflictDialog';
@@ -732,6 +733,7 @@ function Editor({ plan, refetch, lostWorker, onWorkerLost }: { plan: PlanView; r
         </Notice>
       ) : null}
       {plan.editable && !canPlan ? <Notice tone="info">Only planners and leads change plans.</Notice> : null}
+      {plan.chosenLayoutId ? <PlanFlags planId={plan.id} compact /> : null}
       {plan.status === 'changes_requested' ? (
         <Notice tone="caution" title="Sent back" testID="plan-sent-back">{[...plan.events].reverse().find((e) => e.to === 'changes_requested')?.comment ?? ''}</Notice>
       ) : null}

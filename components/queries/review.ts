@@ -1,8 +1,20 @@
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../api/client';
 import { planReviewedSchema, type PlanReviewed } from '../../shared/schemas/plans';
+import { planFlagsViewSchema } from '../../shared/schemas/review';
 import { planKeys } from './plans';
 import { queueKeys } from './queue';
+
+/** Under the plan's own key, so whatever reads the plan again reads its flags again too. */
+export const flagKeys = { plan: (labId: string, planId: string) => [...planKeys.one(labId, planId), 'flags'] as const };
+
+/** What review points out about a plan (low density, material change, a missed due date, an open mesh), worked out by the server. */
+export function usePlanFlagsQuery(labId: string, planId: string) {
+  return useQuery({
+    queryKey: flagKeys.plan(labId, planId),
+    queryFn: () => api(`/labs/${labId}/plans/${planId}/flags`, { schema: planFlagsViewSchema }),
+  });
+}
 
 export type ReviewDecision = 'approve' | 'changes_requested';
 
@@ -17,6 +29,7 @@ export function useReviewMutation(labId: string, planId: string, machineId: stri
     onSettled: () =>
       Promise.all([
         qc.invalidateQueries({ queryKey: planKeys.one(labId, planId), exact: true }),
+        qc.invalidateQueries({ queryKey: flagKeys.plan(labId, planId) }),
         qc.invalidateQueries({ queryKey: [...planKeys.all(labId), 'list'] }),
         machineId ? qc.invalidateQueries({ queryKey: queueKeys.machine(labId, machineId) }) : Promise.resolve(),
       ]),

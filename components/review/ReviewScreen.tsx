@@ -19,6 +19,7 @@ import { STATUS_LABELS } from '../../shared/plans/status';
 import type { PlanView } from '../../shared/schemas/plans';
 import { BuildFileLinks } from './BuildFileLinks';
 import { calibrationNote } from './calibration';
+import { PlanFlags } from './PlanFlags';
 
 /** The lead's review of one plan: its chosen layout in 3D, its numbers, its lines and history, and the decision. */
 export function ReviewScreen({ planId }: { planId: string }) {
@@ -119,6 +120,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
 
   const side = (
     <View style={{ gap: spacing.lg }}>
+      <PlanFlags planId={plan.id} testID="review-flags" />
       <Decision plan={plan} />
       <NumbersPane
         numbers={numbers}

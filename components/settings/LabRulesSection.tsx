@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { currencySchema, type LabSettingsView } from '../../shared/schemas/auth';
+import { currencySchema, minPackingDensitySchema, type LabSettingsView } from '../../shared/schemas/auth';
 import { formatMoney } from '../ui/format';
 import { useLab } from '../lab/useCurrentLab';
 import { useLabSettingsQuery, useUpdateLabSettingsMutation } from '../queries/account';
@@ -19,7 +19,7 @@ export function LabRulesSection() {
   const mode: Mode | null = s ? (!s.secondApprovalSet ? 'default' : s.secondApproval ? 'on' : 'off') : null;
 
   return (
-    <SettingsScreen title="Lab rules" subtitle="How work is released to the machines in this lab, and the currency its money is in." testID="settings-rules">
+    <SettingsScreen title="Lab rules" subtitle="How work is released to the machines in this lab, what review flags, and the currency its money is in." testID="settings-rules">
       {settings.isPending ? <LoadingState label="Loading the lab's rules" /> : null}
       {settings.isError ? <ErrorState error={settings.error} onRetry={() => settings.refetch()} /> : null}
       {s ? (
@@ -70,6 +70,7 @@ export function LabRulesSection() {
         </Card>
       ) : null}
       {s ? <CurrencyCard key={s.currency} settings={s} /> : null}
+      {s ? <DensityCard key={`density:${s.minPackingDensityPercent}`} settings={s} /> : null}
     </SettingsScreen>
   );
 }
@@ -115,6 +116,54 @@ function CurrencyCard({ settings }: { settings: LabSettingsView }) {
       ) : (
         <Text variant="caption" color="inkFaint">
           Only a lead changes the lab's currency.
+        </Text>
+      )}
+    </Card>
+  );
+}
+
+/** The packing density below which review flags a plan: a build that wastes powder and machine time. */
+function DensityCard({ settings }: { settings: LabSettingsView }) {
+  const lab = useLab();
+  const update = useUpdateLabSettingsMutation(lab.id);
+  const [text, setText] = useState(String(settings.minPackingDensityPercent));
+  const [error, setError] = useState<string | null>(null);
+  const save = () => {
+    const value = text.trim() === '' ? NaN : Number(text.replace(',', '.'));
+    const parsed = minPackingDensitySchema.safeParse(Number.isFinite(value) ? value : text);
+    if (!parsed.success) return setError(`The minimum ${parsed.error.issues[0].message}.`);
+    setError(null);
+    update.mutate({ minPackingDensityPercent: parsed.data });
+  };
+  const current = settings.minPackingDensityPercent;
+  return (
+    <Card
+      title="Packing density at review"
+      subtitle="The share of the powder cake filled with parts. A plan below the minimum is flagged when a lead reviews it."
+      testID="rules-density"
+    >
+      <Text variant="bodyStrong" testID="rules-density-state">
+        {current > 0 ? `Plans below ${current} % are flagged.` : 'Off: no plan is flagged for its density.'}
+      </Text>
+      {lab.isLead ? (
+        <View style={styles.state}>
+          <Field
+            label="Minimum packing density (%)"
+            hint="0 to 50; 0 turns the flag off. Powder-bed builds commonly pack 5 to 15 %."
+            value={text}
+            onChangeText={(t) => {
+              setText(t);
+              setError(null);
+            }}
+            keyboardType="decimal-pad"
+            error={error ?? (update.isError ? update.error.message : undefined)}
+            testID="rules-density-value"
+          />
+          <Button label="Save minimum" size="sm" testID="rules-density-save" loading={update.isPending} disabled={text.trim() === String(current)} onPress={save} />
+        </View>
+      ) : (
+        <Text variant="caption" color="inkFaint">
+          Only a lead changes the lab's rules.
         </Text>
       )}
     </Card>

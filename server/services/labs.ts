@@ -127,13 +127,13 @@ export function labsService(db: Database) {
 
     /** The lab's settings, with the default applied. */
     async settings(labId: string, t?: Transaction): Promise<LabSettingsView> {
-      const [row] = await db.sequelize.query<{ second_approval: boolean | null; leads: number; currency: string }>(
-        `SELECT l.second_approval, l.currency, (SELECT count(*)::int FROM memberships m WHERE m.lab_id = l.id AND 'lead' = ANY (m.roles)) AS leads
+      const [row] = await db.sequelize.query<{ second_approval: boolean | null; leads: number; currency: string; min_density: number }>(
+        `SELECT l.second_approval, l.currency, l.min_packing_density_percent AS min_density, (SELECT count(*)::int FROM memberships m WHERE m.lab_id = l.id AND 'lead' = ANY (m.roles)) AS leads
            FROM labs l WHERE l.id = $1`,
         { bind: [labId], type: QueryTypes.SELECT, transaction: t },
       );
       if (!row) throw notFound('That lab');
-      return { secondApproval: row.second_approval ?? row.leads > 1, secondApprovalSet: row.second_approval !== null, leads: row.leads, currency: row.currency };
+      return { secondApproval: row.second_approval ?? row.leads > 1, secondApprovalSet: row.second_approval !== null, leads: row.leads, currency: row.currency, minPackingDensityPercent: row.min_density };
     },
 
     /** Changes the settings named in `input`, leaving the others as they are. */
@@ -144,6 +144,12 @@ export function labsService(db: Database) {
         }
         if (input.currency !== undefined) {
           await db.sequelize.query('UPDATE labs SET currency = $2, updated_at = now() WHERE id = $1', { bind: [labId, input.currency], transaction: t });
+        }
+        if (input.minPackingDensityPercent !== undefined) {
+          await db.sequelize.query('UPDATE labs SET min_packing_density_percent = $2, updated_at = now() WHERE id = $1', {
+            bind: [labId, input.minPackingDensityPercent],
+            transaction: t,
+          });
         }
       });
       return this.settings(labId);

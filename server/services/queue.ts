@@ -82,7 +82,8 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     return row;
   }
 
-  async function get(labId: string, machineId: string, nowMs = Date.now()): Promise<QueueView> {
+  /** `asQueued`: a plan not yet queued, counted as if approved now (at the end of the queue), for review's forecast. */
+  async function get(labId: string, machineId: string, nowMs = Date.now(), opts: { asQueued?: string } = {}): Promise<QueueView> {
     const machine = await machineRow(labId, machineId);
     const calibration = await deps.calibration.forMachine(machine.id);
     const rows = await sequelize.query<Row>(
@@ -90,9 +91,9 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
               r.started_at, r.print_ended_at, r.left_machine_at, r.breakout_at
          FROM plans p LEFT JOIN layouts l ON l.id = p.chosen_layout_id LEFT JOIN runs r ON r.plan_id = p.id
          LEFT JOIN materials mt ON mt.id = p.material_id
-        WHERE p.machine_id = $1 AND p.lab_id = $2 AND (p.status = 'queued' OR p.status = ANY($3::text[]))
+        WHERE p.machine_id = $1 AND p.lab_id = $2 AND (p.status = 'queued' OR p.status = ANY($3::text[]) OR p.id = $4::uuid)
         ORDER BY p.queue_position NULLS LAST, r.started_at DESC NULLS LAST, p.created_at`,
-      { bind: [machine.id, labId, ON_MACHINE], type: QueryTypes.SELECT },
+      { bind: [machine.id, labId, ON_MACHINE, opts.asQueued ?? null], type: QueryTypes.SELECT },
     );
     const requests = await sequelize.query<{ plan_id: string; id: string; title: string; due_date: string }>(
       `SELECT DISTINCT pl.plan_id, r.id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date
@@ -115,7 +116,7 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
       if (!row.estimate) continue;
       const d = durationsFor(row.estimate, calibration, breakoutSeconds);
       durations.set(row.id, d);
-      if (row.status === 'queued') {
+      if (row.status === 'queued' || row.id === opts.asQueued) {
         queued.push({ planId: row.id, ...d, dueDatesMs: (requestsOf.get(row.id) ?? []).map((r) => dueEndMs(r.dueDate)) });
       } else {
         started.push(row);

@@ -62,12 +62,28 @@ export const currencySchema = z
   .regex(/^[A-Z]{3}$/, 'must be a three-letter ISO 4217 code such as EUR, USD or CHF')
   .refine((c) => CURRENCY_CODES.size === 0 || CURRENCY_CODES.has(c), 'is not an ISO 4217 currency code');
 /**
+ * The packing density (parts' volume over the powder cake's, in percent) below
+ * which review flags a plan; 0 turns the flag off. Up to 50 %: no powder-bed
+ * build packs denser than that, so a higher figure would flag every plan.
+ */
+export const minPackingDensitySchema = z
+  .number({ error: 'must be a number of percent' })
+  .min(0, 'must be 0 % (no flag) or more')
+  .max(50, 'must be at most 50 %');
+/**
  * The lab's settings a lead may change, each on its own: `secondApproval: null`
- * goes back to the default; `currency` is the code every amount of money is in.
+ * goes back to the default; `currency` is the code every amount of money is in;
+ * `minPackingDensityPercent` the density below which review flags a plan.
  */
 export const labSettingsUpdateSchema = z
-  .strictObject({ secondApproval: z.boolean().nullable().optional(), currency: currencySchema.optional() })
-  .refine((s) => s.secondApproval !== undefined || s.currency !== undefined, { message: 'name a setting to change: secondApproval or currency' });
+  .strictObject({
+    secondApproval: z.boolean().nullable().optional(),
+    currency: currencySchema.optional(),
+    minPackingDensityPercent: minPackingDensitySchema.optional(),
+  })
+  .refine((s) => s.secondApproval !== undefined || s.currency !== undefined || s.minPackingDensityPercent !== undefined, {
+    message: 'name a setting to change: secondApproval, currency or minPackingDensityPercent',
+  });
 export type LabSettingsUpdate = z.infer<typeof labSettingsUpdateSchema>;
 
 export type SignUpInput = z.infer<typeof signUpSchema>;
@@ -124,5 +140,11 @@ export const sessionViewSchema = z.object({
 export type SessionView = z.infer<typeof sessionViewSchema>;
 
 /** A lab's settings: `secondApproval` is what applies, `secondApprovalSet` whether a lead chose it (else the default). */
-export const labSettingsViewSchema = z.object({ secondApproval: z.boolean(), secondApprovalSet: z.boolean(), leads: z.number().int(), currency: z.string() });
+export const labSettingsViewSchema = z.object({
+  secondApproval: z.boolean(),
+  secondApprovalSet: z.boolean(),
+  leads: z.number().int(),
+  currency: z.string(),
+  minPackingDensityPercent: z.number(),
+});
 export type LabSettingsView = z.infer<typeof labSettingsViewSchema>;

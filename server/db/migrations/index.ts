@@ -11,6 +11,7 @@ import * as m0009 from './0009-mesh-jobs';
 import * as m0010 from './0010-accounts-audit';
 import * as m0011 from './0011-part-thumbnails';
 import * as m0012 from './0012-lab-currency';
+import * as m0013 from './0013-lab-density-rule';
 
 export type Migration = {
   name: string;
@@ -32,4 +33,5 @@ export const migrations: Migration[] = [
   { name: '0010-accounts-audit', ...m0010 },
   { name: '0011-part-thumbnails', ...m0011 },
   { name: '0012-lab-currency', ...m0012 },
+  { name: '0013-lab-density-rule', ...m0013 },
 ];

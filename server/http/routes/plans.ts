@@ -15,12 +15,13 @@ import {
 import type { PlansService } from '../../services/plans';
 import type { LayoutsService } from '../../services/layouts';
 import type { ReviewService } from '../../services/review';
+import type { ReviewFlagsService } from '../../services/reviewFlags';
 import type { LabsService } from '../../services/labs';
 
-export type PlanRouteDeps = { labs: LabsService; plans: PlansService; layouts: LayoutsService; review: ReviewService };
+export type PlanRouteDeps = { labs: LabsService; plans: PlansService; layouts: LayoutsService; review: ReviewService; reviewFlags: ReviewFlagsService };
 
 /** Build plans, their layouts, sending for review, the lead's decision and cancelling. */
-export function planRoutes({ labs, plans, layouts, review }: PlanRouteDeps): Router {
+export function planRoutes({ labs, plans, layouts, review, reviewFlags }: PlanRouteDeps): Router {
   const r = Router();
   const member = labAccess(labs);
   const planner = labAccess(labs, ['planner', 'lead']);
@@ -49,6 +50,9 @@ export function planRoutes({ labs, plans, layouts, review }: PlanRouteDeps): Rou
   });
   r.get(`${base}/:planId`, member, async (req, res) => {
     res.json(await plans.get(requireLab(req).labId, p(req, 'planId')));
+  });
+  r.get(`${base}/:planId/flags`, member, async (req, res) => {
+    res.json(await reviewFlags.forPlan(requireLab(req).labId, p(req, 'planId')));
   });
   r.put(`${base}/:planId`, planner, update, async (req, res) => {
     const { labId, user } = requireLab(req);

@@ -1,0 +1,81 @@
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
+import { PASSWORD, startTestApp } from '../helpers/app';
+import type { Running } from '../../server/boot';
+import { sentForReview } from '../helpers/plans';
+
+jest.setTimeout(240_000);
+
+let served: Served;
+// Fixtures go through an app of their own on the same database: the served
+// one only takes writes from the browser's origin.
+let fixtures: Running;
+beforeAll(async () => {
+  served = await serveAndLaunch();
+  fixtures = await startTestApp();
+});
+afterAll(async () => {
+  await fixtures?.close();
+  await served?.close();
+});
+
+/** A plan in review that packs ten gears in a whole chamber, for a request already overdue, with a part whose mesh is open. */
+async function flaggedPlan(tag: string) {
+  const lab = await sentForReview(fixtures, tag);
+  const q = (sql: string) => fixtures.db.sequelize.query(sql, { bind: [lab.ids[0]] });
+  await q(`UPDATE requests SET due_date = '2026-01-05' WHERE id IN (SELECT rl.request_id FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id WHERE pl.plan_id = $1)`);
+  await q(`UPDATE parts SET watertight = false, metrics = metrics || '{"openEdges": 4}'::jsonb
+            WHERE id IN (SELECT rl.part_id FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id WHERE pl.plan_id = $1)`);
+  return lab;
+}
+
+test('on a phone the lead sees each flag of a plan with its reason before the decision', async () => {
+  const lab = await flaggedPlan('review-flags-phone');
+  const page = await newPage(served, PHONE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/review/${lab.ids[0]}`);
+  const flags = page.getByTestId('review-flags');
+  await flags.getByTestId('flag-low_density').waitFor();
+  await expect(flags.getByTestId('flag-low_density').innerText()).resolves.toMatch(/below this lab's minimum of 8\.0 %/);
+  await expect(flags.getByTestId('flag-late_due_date').innerText()).resolves.toMatch(/is due 2026-01-05/);
+  await expect(flags.getByTestId('flag-not_watertight').innerText()).resolves.toMatch(/not closed \(4 open edges\)/);
+  expect(await flags.getByTestId('flag-material_change').count()).toBe(0);
+  await expect(flags.getByTestId('review-flags-count').innerText()).resolves.toBe('3 flags');
+  // Nothing runs off the side of a phone.
+  const box = await flags.boundingBox();
+  expect(box!.x + box!.width).toBeLessThanOrEqual(PHONE.width);
+  await flags.scrollIntoViewIfNeeded();
+  await screenshot(page, 'review-flags-phone');
+  await page.context().close();
+});
+
+test("on a wide screen a lead lowers the lab's minimum density under Rules and the review no longer flags it; the plan's own page shows the rest", async () => {
+  const lab = await flaggedPlan('review-flags-wide');
+  const page = await newPage(served, WIDE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/review/${lab.ids[0]}`);
+  await page.getByTestId('review-flags').getByTestId('flag-low_density').waitFor();
+  await screenshot(page, 'review-flags-wide');
+
+  await page.goto('/settings/rules');
+  const field = page.getByTestId('rules-density-value');
+  await field.fill('80');
+  await page.getByTestId('rules-density-save').click();
+  await page.getByText('The minimum must be at most 50 %.').waitFor();
+  await field.fill('1');
+  await page.getByTestId('rules-density-save').click();
+  await page.getByTestId('rules-density-state').getByText('Plans below 1 % are flagged.', { exact: true }).waitFor();
+  await screenshot(page, 'review-rules-density-wide');
+  expect((await lab.agent.get(`/api/labs/${lab.labId}/settings`)).body.minPackingDensityPercent).toBe(1);
+
+  await page.goto(`/review/${lab.ids[0]}`);
+  const flags = page.getByTestId('review-flags');
+  await flags.getByTestId('flag-late_due_date').waitFor();
+  expect(await flags.getByTestId('flag-low_density').count()).toBe(0);
+
+  await page.goto(`/plans/${lab.ids[0]}`);
+  const strip = page.getByTestId('plan-flags');
+  await strip.getByTestId('flag-not_watertight').waitFor();
+  expect(await strip.getByTestId('flag-late_due_date').count()).toBe(1);
+  await screenshot(page, 'review-flags-plan-wide');
+  await page.context().close();
+});
