@@ -1,13 +1,72 @@
-import { DataTypes, type Model, type ModelStatic, type Sequelize } from 'sequelize';
+import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
+import type { PlanStatus } from '../../../shared/plans/status';
 
-type AnyModel = ModelStatic<Model<any, any>>;
-export type PlanModels = { Plan: AnyModel; PlanLine: AnyModel; Layout: AnyModel; PlanEvent: AnyModel };
+export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAttributes<PlanRow>> {
+  id: CreationOptional<string>;
+  labId: string;
+  name: string;
+  machineId: string;
+  materialId: string;
+  status: CreationOptional<PlanStatus>;
+  version: CreationOptional<number>;
+  chosenLayoutId: CreationOptional<string | null>;
+  queuePosition: CreationOptional<number | null>;
+  draft: CreationOptional<unknown>;
+  createdBy: string | null;
+  createdAt: CreationOptional<Date>;
+  updatedAt: CreationOptional<Date>;
+  lines?: NonAttribute<PlanLineRow[]>;
+}
 
-const base = { underscored: true, timestamps: true, createdAt: 'created_at', updatedAt: 'updated_at' } as const;
+export interface PlanLineRow extends Model<InferAttributes<PlanLineRow>, InferCreationAttributes<PlanLineRow>> {
+  id: CreationOptional<string>;
+  planId: string;
+  requestLineId: string;
+  position: number;
+  quantity: number;
+  orientation: CreationOptional<string | null>;
+  createdAt: CreationOptional<Date>;
+  updatedAt: CreationOptional<Date>;
+}
+
+export interface LayoutRow extends Model<InferAttributes<LayoutRow>, InferCreationAttributes<LayoutRow>> {
+  id: CreationOptional<string>;
+  planId: string;
+  label: string;
+  settings: unknown;
+  instance: unknown;
+  linesKey: string;
+  resultFormat: string;
+  placementsFormat: number;
+  placementCount: number;
+  partIds: string[];
+  placements: Buffer;
+  summary: unknown;
+  estimate: unknown;
+  locked: CreationOptional<boolean>;
+  createdBy: string | null;
+  createdAt: CreationOptional<Date>;
+}
+
+export interface PlanEventRow extends Model<InferAttributes<PlanEventRow>, InferCreationAttributes<PlanEventRow>> {
+  id: CreationOptional<string>;
+  planId: string;
+  fromStatus: PlanStatus | null;
+  toStatus: PlanStatus;
+  userId: string | null;
+  comment: string | null;
+  createdAt: CreationOptional<Date>;
+}
+
+const stamps = {
+  createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
+  updatedAt: { type: DataTypes.DATE, allowNull: false, field: 'updated_at' },
+} as const;
+const timed = { underscored: true, timestamps: true, createdAt: 'createdAt', updatedAt: 'updatedAt' } as const;
 
 /** Build plans, their lines, layouts and status history (the schema itself is in the migrations). */
-export function planModels(sequelize: Sequelize): PlanModels {
-  const Plan = sequelize.define(
+export function planModels(sequelize: Sequelize) {
+  const Plan = sequelize.define<PlanRow>(
     'Plan',
     {
       id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
@@ -15,16 +74,17 @@ export function planModels(sequelize: Sequelize): PlanModels {
       name: { type: DataTypes.TEXT, allowNull: false },
       machineId: { type: DataTypes.UUID, allowNull: false, field: 'machine_id' },
       materialId: { type: DataTypes.UUID, allowNull: false, field: 'material_id' },
-      status: { type: DataTypes.TEXT, allowNull: false },
-      version: { type: DataTypes.INTEGER, allowNull: false },
+      status: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'draft' },
+      version: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
       chosenLayoutId: { type: DataTypes.UUID, field: 'chosen_layout_id' },
       queuePosition: { type: DataTypes.INTEGER, field: 'queue_position' },
       draft: { type: DataTypes.JSONB },
       createdBy: { type: DataTypes.TEXT, field: 'created_by' },
+      ...stamps,
     },
-    { ...base, tableName: 'plans' },
+    { ...timed, tableName: 'plans' },
   );
-  const PlanLine = sequelize.define(
+  const PlanLine = sequelize.define<PlanLineRow>(
     'PlanLine',
     {
       id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
@@ -33,10 +93,11 @@ export function planModels(sequelize: Sequelize): PlanModels {
       position: { type: DataTypes.INTEGER, allowNull: false },
       quantity: { type: DataTypes.INTEGER, allowNull: false },
       orientation: { type: DataTypes.TEXT },
+      ...stamps,
     },
-    { ...base, tableName: 'plan_lines' },
+    { ...timed, tableName: 'plan_lines' },
   );
-  const Layout = sequelize.define(
+  const Layout = sequelize.define<LayoutRow>(
     'Layout',
     {
       id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
@@ -52,12 +113,13 @@ export function planModels(sequelize: Sequelize): PlanModels {
       placements: { type: DataTypes.BLOB, allowNull: false },
       summary: { type: DataTypes.JSONB, allowNull: false },
       estimate: { type: DataTypes.JSONB, allowNull: false },
-      locked: { type: DataTypes.BOOLEAN, allowNull: false },
+      locked: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       createdBy: { type: DataTypes.TEXT, field: 'created_by' },
+      createdAt: stamps.createdAt,
     },
-    { ...base, updatedAt: false, tableName: 'layouts' },
+    { ...timed, updatedAt: false, tableName: 'layouts' },
   );
-  const PlanEvent = sequelize.define(
+  const PlanEvent = sequelize.define<PlanEventRow>(
     'PlanEvent',
     {
       id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
@@ -66,8 +128,15 @@ export function planModels(sequelize: Sequelize): PlanModels {
       toStatus: { type: DataTypes.TEXT, allowNull: false, field: 'to_status' },
       userId: { type: DataTypes.TEXT, field: 'user_id' },
       comment: { type: DataTypes.TEXT },
+      createdAt: stamps.createdAt,
     },
-    { ...base, updatedAt: false, tableName: 'plan_events' },
+    { ...timed, updatedAt: false, tableName: 'plan_events' },
   );
+
+  Plan.hasMany(PlanLine, { foreignKey: 'planId', as: 'lines' });
+  PlanLine.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
+  Plan.hasMany(Layout, { foreignKey: 'planId', as: 'layouts' });
+  Plan.belongsTo(Layout, { foreignKey: 'chosenLayoutId', as: 'chosenLayout', constraints: false });
+  Plan.hasMany(PlanEvent, { foreignKey: 'planId', as: 'events' });
   return { Plan, PlanLine, Layout, PlanEvent };
 }

@@ -100,8 +100,8 @@ export function powderModels(sequelize: Sequelize): PowderModels {
       reorderLevelKg: { type: DataTypes.DOUBLE, allowNull: false, field: 'reorder_level_kg' },
       leadTimeDays: { type: DataTypes.INTEGER, allowNull: false, field: 'lead_time_days' },
       updatedBy: { type: DataTypes.TEXT, field: 'updated_by' },
-      createdAt: { type: DataTypes.DATE, field: 'created_at' },
-      updatedAt: { type: DataTypes.DATE, field: 'updated_at' },
+      createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
+      updatedAt: { type: DataTypes.DATE, allowNull: false, field: 'updated_at' },
     },
     { ...base, tableName: 'powder_materials', timestamps: true, createdAt: 'createdAt', updatedAt: 'updatedAt' },
   );
@@ -117,7 +117,7 @@ export function powderModels(sequelize: Sequelize): PowderModels {
       expiresOn: { type: DataTypes.DATEONLY, field: 'expires_on' },
       note: { type: DataTypes.TEXT, allowNull: false },
       createdBy: { type: DataTypes.TEXT, field: 'created_by' },
-      createdAt: { type: DataTypes.DATE, field: 'created_at' },
+      createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
     },
     { ...base, tableName: 'powder_lots', timestamps: true, createdAt: 'createdAt', updatedAt: false },
   );
@@ -125,7 +125,7 @@ export function powderModels(sequelize: Sequelize): PowderModels {
     'PowderMovement',
     {
       id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
-      seq: { type: DataTypes.BIGINT, autoIncrement: true },
+      seq: { type: DataTypes.BIGINT, allowNull: false, autoIncrement: true },
       labId: { type: DataTypes.UUID, allowNull: false, field: 'lab_id' },
       materialId: { type: DataTypes.UUID, allowNull: false, field: 'material_id' },
       lotId: { type: DataTypes.UUID, field: 'lot_id' },
@@ -140,7 +140,7 @@ export function powderModels(sequelize: Sequelize): PowderModels {
       fillAgeBuilds: { type: DataTypes.DOUBLE, field: 'fill_age_builds' },
       at: { type: DataTypes.DATE, allowNull: false },
       byUser: { type: DataTypes.TEXT, field: 'by_user' },
-      createdAt: { type: DataTypes.DATE, field: 'created_at' },
+      createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
     },
     { ...base, tableName: 'powder_movements', timestamps: true, createdAt: 'createdAt', updatedAt: false },
   );
@@ -161,7 +161,7 @@ export function powderModels(sequelize: Sequelize): PowderModels {
       releasedAt: { type: DataTypes.DATE, field: 'released_at' },
       releasedBy: { type: DataTypes.TEXT, field: 'released_by' },
       releaseReason: { type: DataTypes.TEXT, field: 'release_reason' },
-      createdAt: { type: DataTypes.DATE, field: 'created_at' },
+      createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
     },
     { ...base, tableName: 'powder_checks', timestamps: true, createdAt: 'createdAt', updatedAt: false },
   );
@@ -173,7 +173,7 @@ export function powderModels(sequelize: Sequelize): PowderModels {
       materialId: { type: DataTypes.UUID, allowNull: false, field: 'material_id' },
       belowAt: { type: DataTypes.DATE, allowNull: false, field: 'below_at' },
       neededKg: { type: DataTypes.DOUBLE, allowNull: false, field: 'needed_kg' },
-      openedAt: { type: DataTypes.DATE, field: 'opened_at' },
+      openedAt: { type: DataTypes.DATE, allowNull: false, field: 'opened_at' },
       mailedAt: { type: DataTypes.DATE, field: 'mailed_at' },
       closedAt: { type: DataTypes.DATE, field: 'closed_at' },
     },

@@ -78,8 +78,8 @@ export async function seedDemoIfEmpty(db: Database, services: Services, opts: { 
  * (and the same layout checks) as the editor's requests.
  */
 export async function seedPlanInReview(db: Database, services: Services) {
-  const lab: any = await db.models.Lab.findOne({ where: { name: DEMO_LAB_NAME }, raw: true });
-  const planner: any = await db.models.User.findOne({ where: { email: 'planner@tinkerfin.example' }, raw: true });
+  const lab = await db.models.Lab.findOne({ where: { name: DEMO_LAB_NAME }, raw: true });
+  const planner = await db.models.User.findOne({ where: { email: 'planner@tinkerfin.example' }, raw: true });
   if (!lab || !planner) return;
   const actor = { id: planner.id, name: planner.name, email: planner.email };
   const machines = await services.machines.list(lab.id);
@@ -87,7 +87,7 @@ export async function seedPlanInReview(db: Database, services: Services) {
   const open = await services.plans.openLines(lab.id, openLinesQuerySchema.parse({}));
   const first = open[0];
   if (!machine || !first || !first.request.materialId) return;
-  const lines = open.filter((l: any) => l.request.id === first.request.id);
+  const lines = open.filter((l) => l.request.id === first.request.id);
   const material = await services.materials.get(lab.id, first.request.materialId);
   // Checked with the routes' schemas, as the editor's requests are.
   const created = await services.plans.create(
@@ -97,7 +97,7 @@ export async function seedPlanInReview(db: Database, services: Services) {
       name: `${first.request.title} on ${machine.name}`,
       machineId: machine.id,
       materialId: material.id,
-      lines: lines.map((l: any) => ({ requestLineId: l.requestLineId, quantity: l.remaining })),
+      lines: lines.map((l) => ({ requestLineId: l.requestLineId, quantity: l.remaining })),
     }),
   );
   const plan = await services.plans.get(lab.id, created.id);
@@ -225,11 +225,14 @@ async function seedRequests(
       },
       { transaction: t },
     );
-    const lines = r.lines.filter(([name]) => partIds.has(name));
+    const lines = r.lines.flatMap(([name, quantity]) => {
+      const partId = partIds.get(name);
+      return partId ? [{ partId, quantity }] : [];
+    });
     await db.models.RequestLine.bulkCreate(
-      lines.map(([name, quantity], position) => ({
-        requestId: row.get('id'),
-        partId: partIds.get(name),
+      lines.map(({ partId, quantity }, position) => ({
+        requestId: row.id,
+        partId,
         position,
         quantity,
         plannedCount: 0,
