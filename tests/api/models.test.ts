@@ -25,6 +25,7 @@ const PG_TYPE: Record<string, string> = {
   BIGINT: 'bigint',
   DOUBLE: 'double precision',
   'DOUBLE PRECISION': 'double precision',
+  REAL: 'real',
   BOOLEAN: 'boolean',
   JSONB: 'jsonb',
   DATE: 'timestamp with time zone',

@@ -38,6 +38,8 @@ export interface LabRow extends Model<InferAttributes<LabRow>, InferCreationAttr
   /** NULL: the default (on when the lab has more than one lead). */
   secondApproval: CreationOptional<boolean | null>;
   currency: CreationOptional<string>;
+  /** Below this packing density a plan is flagged at review; 0 turns the flag off. */
+  minPackingDensityPercent: CreationOptional<number>;
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
 }
@@ -144,6 +146,7 @@ export function accountModels(sequelize: Sequelize) {
       name: { type: DataTypes.TEXT, allowNull: false },
       secondApproval: { type: DataTypes.BOOLEAN, field: 'second_approval' },
       currency: { type: DataTypes.CHAR(3), allowNull: false, defaultValue: 'EUR' },
+      minPackingDensityPercent: { type: DataTypes.REAL, allowNull: false, defaultValue: 8, field: 'min_packing_density_percent' },
       ...stamps,
     },
     { ...timed, tableName: 'labs' },
