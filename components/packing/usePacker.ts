@@ -29,9 +29,20 @@ export interface UsePacker {
   error: string | null;
   /** The fields that made the instance unusable, when that is why it failed. */
   problems: FieldProblem[];
-  start(instance: unknown): void;
+  /**
+   * Packs the instance; a run still going replaces the one before. A worker
+   * silent for `lostAfterMs` (no progress, no answer) is taken as lost.
+   */
+  start(instance: unknown, options?: StartOptions): void;
   cancel(): void;
 }
+
+export interface StartOptions {
+  /** How long the worker may go without a word before it is taken as lost (crashed or out of memory). */
+  lostAfterMs?: number;
+}
+
+export const WORKER_LOST_MESSAGE = 'The packing worker stopped answering: it may have run out of memory or crashed.';
 
 /** The one place the worker is created, so tests or other platforms can swap it. */
 export function createPackerWorker(): Worker {
@@ -97,6 +108,21 @@ export function usePacker(): UsePacker {
   const [best, setBest] = useState<PackResult | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [problems, setProblems] = useState<FieldProblem[]>([]);
+  const [lostAfterMs, setLostAfterMs] = useState<number | null>(null);
+
+  // A worker that never answers is replaced: this one is stopped, and the next start makes a new one.
+  useEffect(() => {
+    if (status !== 'running' || lostAfterMs === null) return;
+    const timer = setTimeout(() => {
+      runRef.current++;
+      clientRef.current?.dispose();
+      clientRef.current = null;
+      setError(WORKER_LOST_MESSAGE);
+      setStatus('error');
+    }, lostAfterMs);
+    return () => clearTimeout(timer);
+    // Every word from the worker (its progress moving) starts the wait again.
+  }, [status, progress, lostAfterMs]);
 
   useEffect(
     () => () => {
@@ -106,7 +132,7 @@ export function usePacker(): UsePacker {
     [],
   );
 
-  const start = useCallback((instance: unknown) => {
+  const start = useCallback((instance: unknown, options: StartOptions = {}) => {
     if (!clientRef.current) {
       clientRef.current = createClient((message) => {
         setError(message);
@@ -124,6 +150,7 @@ export function usePacker(): UsePacker {
     setBest(null);
     setError(null);
     setProblems([]);
+    setLostAfterMs(options.lostAfterMs ?? null);
     const onProgress: PackerProgressCallback = (message) => {
       if (runRef.current !== runId) return;
       setPhase(message.phase);

@@ -1,0 +1,359 @@
+/**
+ * What the plan editor derives from the plan, its layouts and the planner's
+ * edits, as plain functions (no React): which lines the plan holds, what a
+ * packing run adds to them, which layout is shown, what re-packing and
+ * filling may do, when a layout may be kept and a plan sent for review.
+ * The editor's hooks call these; tests/unit/plans/editorModel.test.ts checks them.
+ */
+import { buildCountLowerBound, parseInstance, type PackInstanceInput, type PackResult, type Placement } from '../../shared/packing';
+import type { LayoutSummaryView, OpenLineView, PlanLineView, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
+import type { DraftLine, DraftOptions, PlanDraft } from '../stores/planEditor';
+import { buildInstance, instanceAbove, mergeLayouts, type InstanceLine, type MachineLike, type MaterialLike } from './instance';
+import type { ShownNumbers } from './estimate';
+import type { LayoutRow } from './LayoutsTable';
+import type { EditorLine } from './LinesPane';
+
+/** The id the layouts table and the shown-layout choice give the packing not kept yet. */
+export const WORKING = 'working';
+
+export type WorkMode = 'pack' | 'repack' | 'fill' | 'edit';
+
+/** A layout being made in the editor and not kept yet. */
+export interface Working {
+  mode: WorkMode;
+  /** The plan's full instance the result is checked against (all lines, their quantities). */
+  instance: PackInstanceInput;
+  /** Placements carried over unchanged (a locked layout, or what a fill keeps). */
+  kept: Placement[];
+  result: PackResult | null;
+  /** The lines the instance was made from (for a fill: with what it added). */
+  lines: DraftLine[];
+  /** The lines before the run began: a fill adds to these, however often its best layout changes. */
+  baseLines: DraftLine[];
+  problem: string | null;
+}
+
+/** Everything the editor knows about a request line, whether saved in the plan or offered from the open lines. */
+export type LineInfo = Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; partId: string };
+
+// ---- lines -----------------------------------------------------------------
+
+export function sameLines(a: readonly DraftLine[], b: readonly DraftLine[]): boolean {
+  if (a.length !== b.length) return false;
+  const m = new Map(b.map((l) => [l.requestLineId, l]));
+  return a.every((l) => {
+    const o = m.get(l.requestLineId);
+    return !!o && o.quantity === l.quantity && (o.orientation ?? null) === (l.orientation ?? null);
+  });
+}
+
+/** Only what the server compares: ids, quantities and allowed orientations of the parts. */
+export function partsKey(instance: PackInstanceInput | null | undefined): string {
+  if (!instance) return '';
+  return instance.parts
+    .map((p) => `${p.id}:${p.quantity}:${(p.orientations ?? []).join('')}`)
+    .sort()
+    .join('|');
+}
+
+export function savedLinesOf(plan: Pick<PlanView, 'lines'>): DraftLine[] {
+  return plan.lines.map((l) => ({ requestLineId: l.requestLineId, quantity: l.quantity, orientation: l.orientationOverride ?? null }));
+}
+
+export function countById(placements: readonly Placement[]): Map<string, number> {
+  const m = new Map<string, number>();
+  for (const p of placements) m.set(p.id, (m.get(p.id) ?? 0) + 1);
+  return m;
+}
+
+/** A draft differs from the stored plan when its name or its lines do (options alone are not a change to save). */
+export function isDirty(draft: Pick<PlanDraft, 'name' | 'lines'> | null, planName: string, savedLines: readonly DraftLine[]): boolean {
+  return !!draft && (draft.name !== planName || !sameLines(draft.lines, savedLines));
+}
+
+/** The plan's own lines win over the open lines offered for the same request line. */
+export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readonly OpenLineView[]): Map<string, LineInfo> {
+  const m = new Map<string, LineInfo>();
+  for (const o of openLines) {
+    m.set(o.requestLineId, {
+      requestLineId: o.requestLineId,
+      partName: o.part.name,
+      requestTitle: o.request.title,
+      dueDate: o.request.dueDate,
+      priority: o.request.priority,
+      sizeMm: o.part.sizeMm,
+      maxQuantity: o.remaining,
+      partRule: o.part.orientation,
+      volumeMm3: o.part.volumeMm3,
+      partId: o.part.id,
+    });
+  }
+  for (const l of planLines) {
+    m.set(l.requestLineId, {
+      requestLineId: l.requestLineId,
+      partName: l.part.name,
+      requestTitle: l.request.title,
+      dueDate: l.request.dueDate,
+      priority: l.request.priority,
+      sizeMm: l.part.sizeMm,
+      maxQuantity: l.lineQuantity - l.plannedElsewhere,
+      partRule: l.part.orientation,
+      volumeMm3: l.part.volumeMm3,
+      partId: l.part.id,
+    });
+  }
+  return m;
+}
+
+/** The lines the engine packs: a line's own rule, else its part's. Lines the editor knows nothing of are left out. */
+export function instanceLinesOf(lines: readonly DraftLine[], info: ReadonlyMap<string, LineInfo>): InstanceLine[] {
+  return lines
+    .filter((l) => info.has(l.requestLineId))
+    .map((l) => {
+      const i = info.get(l.requestLineId)!;
+      return { requestLineId: l.requestLineId, quantity: l.quantity, orientation: l.orientation ?? i.partRule, sizeMm: i.sizeMm };
+    });
+}
+
+export function withQuantity(lines: readonly DraftLine[], id: string, quantity: number): DraftLine[] {
+  return lines.map((l) => (l.requestLineId === id ? { ...l, quantity } : l));
+}
+
+export function withRule(lines: readonly DraftLine[], id: string, rule: PlanOrientationRule | null): DraftLine[] {
+  return lines.map((l) => (l.requestLineId === id ? { ...l, orientation: rule } : l));
+}
+
+/** One rule for every line; a line whose part already has that rule keeps no override. */
+export function withRuleForAll(lines: readonly DraftLine[], rule: PlanOrientationRule | null, info: ReadonlyMap<string, LineInfo>): DraftLine[] {
+  return lines.map((l) => ({ ...l, orientation: rule === null || rule === info.get(l.requestLineId)?.partRule ? null : rule }));
+}
+
+export function withoutLine(lines: readonly DraftLine[], id: string): DraftLine[] {
+  return lines.filter((l) => l.requestLineId !== id);
+}
+
+/** The rows of the lines pane, with what the shown layout placed of each. */
+export function editorLinesOf(
+  lines: readonly DraftLine[],
+  info: ReadonlyMap<string, LineInfo>,
+  placedByLine: ReadonlyMap<string, number> | null,
+  colours: readonly string[],
+  savedLineIds: ReadonlySet<string>,
+): EditorLine[] {
+  return lines.map((l, i) => {
+    const li = info.get(l.requestLineId);
+    return {
+      requestLineId: l.requestLineId,
+      partName: li?.partName ?? 'Unknown part',
+      requestTitle: li?.requestTitle ?? '',
+      dueDate: li?.dueDate ?? '',
+      priority: li?.priority ?? 'normal',
+      sizeMm: li?.sizeMm ?? [0, 0, 0],
+      quantity: l.quantity,
+      maxQuantity: Math.max(l.quantity, li?.maxQuantity ?? l.quantity),
+      rule: l.orientation ?? li?.partRule ?? 'any',
+      ruleOverride: l.orientation,
+      partRule: li?.partRule ?? 'any',
+      placed: placedByLine ? (placedByLine.get(l.requestLineId) ?? 0) : null,
+      colour: colours[i],
+      added: !savedLineIds.has(l.requestLineId),
+    };
+  });
+}
+
+// ---- packing runs ------------------------------------------------------------
+
+/**
+ * A packing's best layout so far, folded into the layout being made. A fill
+ * makes the plan take what it placed: each line's quantity grows by its placed
+ * count, and a line new to the plan comes in with exactly that many. With
+ * `check`, kept and new placements are checked together against the plan's
+ * full instance; a failure is the layout's problem, and the result shown stays.
+ * `instanceOf` builds the plan's instance for a list of lines.
+ */
+export function foldBest(w: Working, best: PackResult, check: boolean, instanceOf: (lines: DraftLine[]) => PackInstanceInput): Working {
+  if (w.mode === 'pack') return { ...w, result: best, problem: null };
+  let instance = w.instance;
+  let lines = w.lines;
+  if (w.mode === 'fill') {
+    const added = countById(best.placements);
+    const next = w.baseLines.map((l) => ({ ...l, quantity: l.quantity + (added.get(l.requestLineId) ?? 0) }));
+    for (const [id, n] of added) if (!next.some((l) => l.requestLineId === id)) next.push({ requestLineId: id, quantity: n, orientation: null });
+    lines = next;
+    instance = instanceOf(next);
+  }
+  if (!check) {
+    const height = Math.max(best.height, ...w.kept.map((p) => p.position[2] + p.size[2]));
+    return { ...w, instance, lines, result: { ...best, placements: [...w.kept, ...best.placements], height }, problem: null };
+  }
+  const merged = mergeLayouts(instance, w.kept, best.placements, best.elapsedMs);
+  return merged.ok ? { ...w, instance, lines, result: merged.result, problem: null } : { ...w, instance, lines, problem: merged.message };
+}
+
+/** A layout made from other lines than the plan's now cannot be kept: the server would refuse it. */
+export function isStale(working: Working | null, fullInstance: PackInstanceInput): boolean {
+  return !!working && partsKey(working.instance) !== partsKey(fullInstance);
+}
+
+export function canKeep(working: Working | null, opts: { editable: boolean; running: boolean; stale: boolean }): boolean {
+  return opts.editable && !!working?.result && !working.problem && !opts.running && !opts.stale && working.result.placements.length > 0;
+}
+
+/** The label a kept layout gets: how it was made, the seed of a plain packing, and its layers. */
+export function keptLabel(working: Working & { result: PackResult }): string {
+  const how = working.mode === 'fill' ? 'Filled' : working.mode === 'repack' ? 'Re-packed' : working.mode === 'edit' ? 'Edited' : 'Seed';
+  return `${`${how} ${working.mode === 'pack' ? working.instance.seed : ''}`.trim()} · ${working.result.layers} layers`;
+}
+
+export const PACKING_WHAT: Record<WorkMode, string> = {
+  pack: 'Packing every line',
+  repack: 'Packing what is new above the locked parts',
+  fill: 'Filling the free space above',
+  edit: 'Packing',
+};
+
+/**
+ * Re-packing a locked layout keeps as many of its placements of each line as
+ * the plan still asks for and packs the rest above them.
+ */
+export function repackOf(locked: Pick<PackResult, 'placements'>, full: PackInstanceInput): { kept: Placement[]; engine: PackInstanceInput } {
+  const want = new Map(full.parts.map((p) => [p.id, p.quantity] as const));
+  const taken = new Map<string, number>();
+  const kept: Placement[] = [];
+  for (const p of locked.placements) {
+    const n = taken.get(p.id) ?? 0;
+    if (n < (want.get(p.id) ?? 0)) {
+      kept.push(p);
+      taken.set(p.id, n + 1);
+    }
+  }
+  const parts = full.parts.map((p) => ({ ...p, quantity: p.quantity - (taken.get(p.id) ?? 0) }));
+  return { kept, engine: instanceAbove(full, kept, parts, 'min-height') };
+}
+
+export function repackAvailability(lockedInstance: PackInstanceInput | null, full: PackInstanceInput): { available: boolean; reason: string | null } {
+  if (!lockedInstance) return { available: false, reason: 'Lock a kept layout, change the lines, then re-pack only what is new.' };
+  if (partsKey(lockedInstance) === partsKey(full)) return { available: false, reason: 'The locked layout already holds these lines.' };
+  return { available: true, reason: null };
+}
+
+export interface FillCandidate {
+  line: OpenLineView;
+  /** How many more the request line still needs. */
+  extra: number;
+}
+
+/** Open request lines of the material that the plan does not hold yet, in the server's order (most urgent first). */
+export function fillCandidatesOf(openLines: readonly OpenLineView[], lines: readonly DraftLine[]): FillCandidate[] {
+  const inPlan = new Map(lines.map((l) => [l.requestLineId, l.quantity] as const));
+  return openLines
+    .map((o) => ({ line: o, extra: o.remaining - (inPlan.get(o.requestLineId) ?? 0) }))
+    .filter((c) => c.extra > 0 && !inPlan.has(c.line.requestLineId));
+}
+
+export function fillReasonOf(shownResult: PackResult | null, shownInstance: PackInstanceInput | null, full: PackInstanceInput, available: number): string | null {
+  if (!shownResult) return 'Pack first: the rest is filled around a layout.';
+  if (partsKey(shownInstance) !== partsKey(full)) return 'The lines changed since this layout was packed: pack or re-pack first.';
+  if (available === 0) return 'No other open request lines in this material.';
+  return null;
+}
+
+/**
+ * The instance a fill packs: the candidates in the slab above the shown
+ * layout, as low as they go when they may all fit, else as much volume as
+ * fits (more than one build's worth cannot all fit).
+ */
+export function fillInstanceOf(
+  candidates: readonly FillCandidate[],
+  full: PackInstanceInput,
+  shown: readonly Placement[],
+  machine: MachineLike,
+  material: MaterialLike,
+  options: DraftOptions,
+): PackInstanceInput {
+  const candidateLines: InstanceLine[] = candidates.map((c) => ({
+    requestLineId: c.line.requestLineId,
+    quantity: c.extra,
+    orientation: c.line.part.orientation,
+    sizeMm: c.line.part.sizeMm,
+  }));
+  const parts = buildInstance(candidateLines, machine, material, options).parts;
+  const slab = instanceAbove(full, [...shown], parts, 'min-height');
+  const parsed = parseInstance(slab);
+  const crowded = parsed.ok && buildCountLowerBound(parsed.instance) > 1;
+  return crowded ? { ...slab, objective: 'max-volume' as const } : slab;
+}
+
+// ---- the layout shown -----------------------------------------------------------
+
+type LayoutRef = Pick<LayoutSummaryView, 'id' | 'createdAt'>;
+
+/** The planner's choice, else the chosen layout, else the newest; the packing not kept only while there is one. */
+export function shownLayoutId(choice: string | null, hasWorking: boolean, plan: { chosenLayoutId?: string | null; layouts: readonly LayoutRef[] }): string | null {
+  const latest = plan.layouts.reduce<LayoutRef | null>((a, l) => (!a || l.createdAt > a.createdAt ? l : a), null);
+  const fallback = plan.chosenLayoutId ?? latest?.id ?? null;
+  if (choice === WORKING && !hasWorking) return fallback;
+  return choice ?? fallback;
+}
+
+/** The id to fetch, when the shown layout is one of the plan's stored ones. */
+export function storedLayoutId(shownId: string | null, layouts: readonly LayoutRef[]): string | null {
+  return shownId && shownId !== WORKING && layouts.some((l) => l.id === shownId) ? shownId : null;
+}
+
+/** Colours and view order: the plan's lines first, then parts only the shown layout holds. */
+export function colourOrderOf(lineOrder: readonly string[], shownInstance: Pick<PackInstanceInput, 'parts'> | null): string[] {
+  const ids = [...lineOrder];
+  for (const p of shownInstance?.parts ?? []) if (!ids.includes(p.id)) ids.push(p.id);
+  return ids;
+}
+
+/** The cut moved by whole layers, within the layout's height; at the top it is no cut (null). */
+export function movedCutMm(cutMm: number | null, usedHeightMm: number, layerHeightMm: number, layers: number): number | null {
+  const top = Math.max(usedHeightMm, layerHeightMm);
+  const current = cutMm ?? top;
+  const next = Math.max(0, Math.min(top, Math.round(current / layerHeightMm + layers) * layerHeightMm));
+  return next >= top ? null : next;
+}
+
+export function workingRow(working: Working & { result: PackResult }, running: boolean, numbers: ShownNumbers | null, stale: boolean): LayoutRow {
+  return {
+    id: WORKING,
+    label: running ? 'Packing…' : 'Not kept yet',
+    numbers,
+    chosen: false,
+    locked: false,
+    matchesPlan: !stale,
+    settings: `${working.instance.layerHeight} mm layers · seed ${working.instance.seed} · ${working.instance.spacing} mm gap`,
+    working: true,
+  };
+}
+
+export function shownLabelOf(a: {
+  showingWorking: boolean;
+  working: Working | null;
+  running: boolean;
+  stale: boolean;
+  summary: Pick<LayoutSummaryView, 'label' | 'chosen' | 'locked'> | null;
+  fetching: boolean;
+}): string {
+  if (a.showingWorking) {
+    if (!a.working?.result) return a.running ? 'Packing: waiting for the first layout' : 'This packing gave no layout';
+    if (a.running) return 'Packing: best layout so far';
+    if (a.stale) return 'Not kept · the lines changed since, pack again';
+    return `Not kept yet · ${a.working.mode === 'fill' ? 'filled' : a.working.mode === 'edit' ? 'edited' : 'packed'}`;
+  }
+  if (a.summary) return `${a.summary.label}${a.summary.chosen ? ' · chosen' : ''}${a.summary.locked ? ' · locked' : ''}`;
+  return a.fetching ? 'Loading layout…' : 'No layout yet: pack the plan';
+}
+
+// ---- review ---------------------------------------------------------------------
+
+/** Why the plan cannot be sent for review yet, or null when it can. */
+export function submitBlockOf(layouts: readonly Pick<LayoutSummaryView, 'chosen' | 'matchesPlan'>[], dirty: boolean): string | null {
+  const chosen = layouts.find((l) => l.chosen) ?? null;
+  if (!chosen) return 'Choose a layout first.';
+  if (!chosen.matchesPlan) return 'The chosen layout no longer matches the lines: pack and choose again.';
+  if (dirty) return 'Save or undo your changes first.';
+  return null;
+}

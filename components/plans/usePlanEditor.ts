@@ -1,0 +1,303 @@
+/**
+ * The plan editor's state, composed: the plan as the planner is editing it
+ * (the draft over the stored plan), the packing session, the layout shown in
+ * the chamber with its cut and marks, and the actions on the server. It hands
+ * each pane its props; PlanEditor only lays the panes out.
+ */
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import type { PackInstanceInput, PackResult, Vec3 } from '../../shared/packing';
+import type { PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
+import { useLab } from '../lab/useCurrentLab';
+import { useLayoutQuery, useOpenLinesQuery } from '../queries/plans';
+import {
+  clearMarked,
+  editDraft,
+  setHelpOpen,
+  showLayout,
+  toggleMarked,
+  useHelpOpen,
+  useMarked,
+  usePlanDraft,
+  useShownLayout,
+  type DraftLine,
+  type DraftOptions,
+} from '../stores/planEditor';
+import { lineColour, type ChamberViewHandle } from '../viewer';
+import type { BuildPaneProps } from './BuildPane';
+import {
+  colourOrderOf,
+  countById,
+  editorLinesOf,
+  fillCandidatesOf,
+  fillReasonOf,
+  instanceLinesOf,
+  isDirty,
+  isStale,
+  lineInfoOf,
+  movedCutMm,
+  PACKING_WHAT,
+  repackAvailability,
+  savedLinesOf,
+  shownLabelOf,
+  shownLayoutId,
+  storedLayoutId,
+  withoutLine,
+  withQuantity,
+  withRule,
+  withRuleForAll,
+  workingRow,
+  WORKING,
+} from './editorModel';
+import { estimateWorking, numbersFromEstimate, type ShownNumbers } from './estimate';
+import { buildInstance, defaultOptions, EMPTY_PLACEMENTS, toChamberPlacements, withoutPlacements } from './instance';
+import { rowsOf, type LayoutRow } from './LayoutsTable';
+import type { LinesPaneProps } from './LinesPane';
+import { useChamberMeshes } from './useChamberMeshes';
+import { useEditorShortcuts } from './useEditorShortcuts';
+import { useLayoutActions, type EditorMessage } from './useLayoutActions';
+import { usePackingSession } from './usePackingSession';
+
+type Machine = PlanView['machine'] & { chamberMm: Vec3; layerHeightsMm: number[] };
+type Material = PlanView['material'] & { spacingMm: number; marginXyMm: number; marginBottomMm: number; marginTopMm: number; defaultLayerHeightMm: number };
+
+export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | undefined>) {
+  const lab = useLab();
+  const planId = plan.id;
+  const canPlan = lab.has('planner') || lab.has('lead');
+  const editable = plan.editable && canPlan;
+  const machine = plan.machine as Machine;
+  const material = plan.material as Material;
+
+  // ---- the plan as edited ------------------------------------------------------
+  const draft = usePlanDraft(planId);
+  const savedLines = useMemo(() => savedLinesOf(plan), [plan]);
+  const savedOptions = (plan.draft as { options?: DraftOptions } | null)?.options ?? null;
+  const lines = draft?.lines ?? savedLines;
+  const name = draft?.name ?? plan.name;
+  const draftOptions = draft?.options;
+  const options: DraftOptions = useMemo(() => draftOptions ?? savedOptions ?? defaultOptions(machine, material), [draftOptions, savedOptions, machine, material]);
+  const dirty = isDirty(draft, plan.name, savedLines);
+
+  const openLines = useOpenLinesQuery(editable ? lab.id : undefined, plan.material.id, planId);
+  const lineInfo = useMemo(() => lineInfoOf(plan.lines, openLines.data ?? []), [plan.lines, openLines.data]);
+  const instanceOf = useCallback((list: DraftLine[]) => buildInstance(instanceLinesOf(list, lineInfo), machine, material, options), [lineInfo, machine, material, options]);
+  const fullInstance = useMemo(() => instanceOf(lines), [instanceOf, lines]);
+  const lineOrder = useMemo(() => lines.map((l) => l.requestLineId), [lines]);
+  const colours = useMemo(() => lineOrder.map((_, i) => lineColour(i)), [lineOrder]);
+
+  const startDraft = useCallback(() => ({ baseVersion: plan.version, name: plan.name, lines: savedLines, options: savedOptions }), [plan.version, plan.name, savedLines, savedOptions]);
+  const changeLines = (change: (ls: DraftLine[]) => DraftLine[]) => editDraft(planId, startDraft, (d) => ({ ...d, lines: change(d.lines) }));
+  const onOptions = (patch: Partial<DraftOptions>) => editDraft(planId, startDraft, (d) => ({ ...d, options: { ...options, ...(d.options ?? {}), ...patch } }));
+  const onName = (next: string) => editDraft(planId, startDraft, (d) => ({ ...d, name: next }));
+
+  // ---- packing -------------------------------------------------------------------
+  const [message, say] = useState<EditorMessage | null>(null);
+  const clearMessage = useCallback(() => say(null), []);
+  const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart: clearMessage });
+  const { working, packer, running } = session;
+  const stale = isStale(working, fullInstance);
+
+  // ---- the layout shown --------------------------------------------------------------
+  const shownId = shownLayoutId(useShownLayout(planId), !!working, plan);
+  const storedId = storedLayoutId(shownId, plan.layouts);
+  const stored = useLayoutQuery(lab.id, planId, storedId);
+  const showingWorking = shownId === WORKING && !!working;
+  const shownResult: PackResult | null = showingWorking ? working.result : (stored.data?.result ?? null);
+  const shownInstance: PackInstanceInput | null = showingWorking ? working.instance : (stored.data?.instance ?? null);
+  const shownSummary = storedId ? (plan.layouts.find((l) => l.id === storedId) ?? null) : null;
+
+  const partNames = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.partName] as const)), [lineInfo]);
+  const volumeByLine = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.volumeMm3] as const)), [lineInfo]);
+  const workingResult = working?.result;
+  const workingInstance = working?.instance;
+  const workingNumbers = useMemo(
+    () => (workingResult && workingInstance ? estimateWorking(workingInstance, workingResult, machine, material, volumeByLine) : null),
+    [workingResult, workingInstance, machine, material, volumeByLine],
+  );
+  const shownNumbers: ShownNumbers | null = showingWorking ? workingNumbers : stored.data ? numbersFromEstimate(stored.data.estimate, stored.data.result) : null;
+
+  const colourOrder = useMemo(() => colourOrderOf(lineOrder, shownInstance), [lineOrder, shownInstance]);
+  const partIdsInOrder = useMemo(() => colourOrder.map((id) => lineInfo.get(id)?.partId), [colourOrder, lineInfo]);
+  const placements = useMemo(() => (shownResult ? toChamberPlacements(shownResult, colourOrder) : EMPTY_PLACEMENTS), [shownResult, colourOrder]);
+  const copiesByIndex = useMemo(() => {
+    const c = new Uint32Array(colourOrder.length + 1);
+    for (const k of placements.partIndex) c[k]++;
+    return c;
+  }, [placements, colourOrder.length]);
+  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, copiesByIndex);
+  const partIds = useMemo(() => shownResult?.placements.map((p) => p.id) ?? [], [shownResult]);
+  const describe = useCallback(
+    (i: number) => {
+      const info = lineInfo.get(partIds[i]);
+      return info ? `${info.partName} · ${info.requestTitle} (due ${info.dueDate})` : `Part ${i + 1}`;
+    },
+    [lineInfo, partIds],
+  );
+  const placedByLine = useMemo(() => (shownResult ? countById(shownResult.placements) : null), [shownResult]);
+  const savedLineIds = useMemo(() => new Set(plan.lines.map((l) => l.requestLineId)), [plan.lines]);
+  const editorLines = editorLinesOf(lines, lineInfo, placedByLine, colours, savedLineIds);
+
+  const mx = fullInstance.margin?.xy ?? 0;
+  const mb = fullInstance.margin?.bottom ?? 0;
+  const mt = fullInstance.margin?.top ?? 0;
+  // Stable props, so that the 3D view does not redo its buffers when the editor draws again.
+  const viewMargin = useMemo(() => ({ xy: mx, bottom: mb, top: mt }), [mx, mb, mt]);
+  const viewColours = useMemo(() => colourOrder.map((_, i) => lineColour(i)), [colourOrder]);
+
+  // ---- cut, marks ---------------------------------------------------------------
+  const chamberRef = useRef<ChamberViewHandle>(null);
+  const [cutMm, setCutMm] = useState<number | null>(null);
+  const layerHeightMm = shownInstance?.layerHeight ?? options.layerHeightMm;
+  const usedHeight = shownResult?.height ?? 0;
+  const marked = useMarked();
+  // Marks are indices into the layout shown: another layout drops them.
+  useEffect(() => clearMarked(), [shownId]);
+  const onPick = (i: number | null) => {
+    if (i !== null && editable && !running) toggleMarked(i);
+  };
+  const onRemoveMarked = () => {
+    if (!shownInstance || !shownResult) return;
+    const next = withoutPlacements(shownInstance, shownResult, new Set(marked));
+    if (!next) return;
+    clearMarked();
+    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
+  };
+  const moveCut = (layers: number) => setCutMm(movedCutMm(cutMm, usedHeight, layerHeightMm, layers));
+
+  // ---- re-pack what is new, fill the rest ------------------------------------------
+  const lockedInstance = !showingWorking && shownSummary?.locked && stored.data ? stored.data.instance : null;
+  const repack = useMemo(() => repackAvailability(lockedInstance, fullInstance), [lockedInstance, fullInstance]);
+  const onRepack = () => {
+    if (stored.data && repack.available) session.repack(stored.data.result);
+  };
+  const fillCandidates = useMemo(() => fillCandidatesOf(openLines.data ?? [], lines), [openLines.data, lines]);
+  const fillAvailable = fillCandidates.reduce((s, c) => s + c.extra, 0);
+  const fillReason = fillReasonOf(shownResult, shownInstance, fullInstance, fillAvailable);
+  const onFill = () => {
+    if (shownResult && shownInstance && !fillReason) session.fill(shownResult.placements, fillCandidates);
+  };
+
+  // ---- the server ----------------------------------------------------------------------
+  const actions = useLayoutActions({
+    labId: lab.id,
+    plan,
+    refetch,
+    editable,
+    draft,
+    dirty,
+    savedLines,
+    savedOptions,
+    options,
+    working,
+    running,
+    stale,
+    dropWorking: session.dropWorking,
+    shownId,
+    onOptions,
+    say,
+  });
+
+  // ---- shortcuts ---------------------------------------------------------------------------
+  const helpOpen = useHelpOpen();
+  const hasKeys = useEditorShortcuts(
+    {
+      pack: session.pack,
+      cancel: () => {
+        if (helpOpen) setHelpOpen(false);
+        else if (running) packer.cancel();
+      },
+      save: () => void actions.onSave(),
+      keep: () => void actions.onKeep(),
+      fit: () => chamberRef.current?.setView('fit'),
+      top: () => chamberRef.current?.setView('top'),
+      front: () => chamberRef.current?.setView('front'),
+      side: () => chamberRef.current?.setView('side'),
+      layerUp: ({ shift }) => moveCut(shift ? 10 : 1),
+      layerDown: ({ shift }) => moveCut(shift ? -10 : -1),
+      help: () => setHelpOpen(!helpOpen),
+    },
+    true,
+  );
+
+  // ---- what the panes show ---------------------------------------------------------------------
+  const rows: LayoutRow[] = useMemo(() => {
+    const r = rowsOf(plan.layouts);
+    if (workingResult && working) r.unshift(workingRow({ ...working, result: workingResult }, running, workingNumbers, stale));
+    return r;
+  }, [plan.layouts, working, workingResult, workingNumbers, running, stale]);
+  const shownLabel = shownLabelOf({ showingWorking, working, running, stale, summary: shownSummary, fetching: stored.isFetching });
+
+  const linesPane: LinesPaneProps = {
+    lines: editorLines,
+    editable,
+    onQuantity: (id: string, quantity: number) => changeLines((ls) => withQuantity(ls, id, quantity)),
+    onRule: (id: string, rule: PlanOrientationRule | null) => changeLines((ls) => withRule(ls, id, rule)),
+    onRuleAll: (rule: PlanOrientationRule | null) => changeLines((ls) => withRuleForAll(ls, rule, lineInfo)),
+    onRemoveLine: (id: string) => changeLines((ls) => withoutLine(ls, id)),
+    options,
+    onOptions,
+    materialSpacingMm: material.spacingMm,
+    layerHeightsMm: machine.layerHeightsMm,
+    packer: { status: packer.status, progress: packer.progress, phase: packer.phase, error: session.error },
+    packingWhat: working ? PACKING_WHAT[working.mode] : null,
+    onPack: session.pack,
+    onCancel: packer.cancel,
+    onRetry: session.retry,
+    fill: { available: fillAvailable, reason: fillReason, onFill },
+    repack: { available: repack.available, reason: repack.reason, onRepack },
+  };
+  const buildPane: Omit<BuildPaneProps, 'heightPx'> = {
+    chamberMm: machine.chamberMm,
+    margin: viewMargin,
+    placements,
+    lineColours: viewColours,
+    meshesByPart: chamberMeshes.meshes,
+    heightMm: usedHeight,
+    layerHeightMm,
+    cutMm,
+    onCut: setCutMm,
+    describe,
+    onPick,
+    marked: marked.length,
+    onRemoveMarked,
+    onClearMarked: clearMarked,
+    editable,
+    caption: shownLabel,
+    live: running && showingWorking && !!working?.result,
+    loading: !showingWorking && !!storedId && !stored.data,
+  };
+  const numbersPane = {
+    numbers: shownNumbers,
+    title: shownLabel,
+    bedAreaMm2: (machine.chamberMm[0] - 2 * material.marginXyMm) * (machine.chamberMm[1] - 2 * material.marginXyMm),
+    cutLayer: cutMm === null ? null : Math.round(cutMm / layerHeightMm),
+    note: showingWorking ? 'Estimated here; the server estimates it again when the layout is kept.' : undefined,
+    partNames,
+  };
+  const layoutsPane = { rows, shownId, editable, onShow: (id: string) => showLayout(planId, id), onChoose: actions.onChoose, onLock: actions.onLock, onDelete: actions.onDelete, busyId: actions.busyLayout };
+
+  return {
+    plan,
+    machine,
+    editable,
+    canPlan,
+    name,
+    onName,
+    dirty,
+    hasDraft: !!draft,
+    message,
+    packingError: session.error,
+    retry: session.retry,
+    helpOpen,
+    hasKeys,
+    chamberRef,
+    chamberLoaders: chamberMeshes.loaders,
+    shownNumbers,
+    shownLabel,
+    linesPane,
+    buildPane,
+    numbersPane,
+    layoutsPane,
+    actions,
+  };
+}

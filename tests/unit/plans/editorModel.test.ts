@@ -1,0 +1,213 @@
+import { RESULT_FORMAT, type PackResult, type Placement, type Vec3 } from '../../../shared/packing';
+import type { OpenLineView, PlanLineView } from '../../../shared/schemas/plans';
+import type { DraftLine } from '../../../components/stores/planEditor';
+import {
+  canKeep,
+  fillCandidatesOf,
+  fillInstanceOf,
+  fillReasonOf,
+  foldBest,
+  instanceLinesOf,
+  isDirty,
+  isStale,
+  keptLabel,
+  lineInfoOf,
+  movedCutMm,
+  repackAvailability,
+  repackOf,
+  shownLayoutId,
+  submitBlockOf,
+  withRuleForAll,
+  WORKING,
+  type Working,
+} from '../../../components/plans/editorModel';
+import { buildInstance } from '../../../components/plans/instance';
+
+// An invented 300 x 300 x 300 mm chamber, 5 mm wall keep-out, 2 mm between parts, 0.1 mm layers.
+const machine = { chamberMm: [300, 300, 300] as Vec3, layerHeightsMm: [0.1, 0.12] };
+const material = { spacingMm: 2, marginXyMm: 5, marginBottomMm: 5, marginTopMm: 5, defaultLayerHeightMm: 0.1 };
+const options = { seed: 3, spacingMm: 2, timeLimitMs: 1000, layerHeightMm: 0.1 };
+
+const part = (id: string, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any') => ({ id: `part-${id}`, name: `Part ${id}`, sizeMm, volumeMm3: sizeMm[0] * sizeMm[1] * sizeMm[2], orientation });
+const planLine = (id: string, quantity: number, sizeMm: Vec3, extra: Partial<PlanLineView> = {}): PlanLineView => ({
+  id: `pl-${id}`,
+  requestLineId: id,
+  quantity,
+  orientation: 'any',
+  orientationOverride: null,
+  part: part(id, sizeMm),
+  request: { id: `r-${id}`, title: `Request ${id}`, dueDate: '2027-01-15', priority: 'normal', status: 'open' },
+  lineQuantity: quantity,
+  plannedElsewhere: 0,
+  printedCount: 0,
+  ...extra,
+});
+const openLine = (id: string, remaining: number, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any'): OpenLineView => ({
+  requestLineId: id,
+  part: part(id, sizeMm, orientation),
+  request: { id: `r-${id}`, title: `Request ${id}`, dueDate: '2027-02-01', priority: 'high', materialId: 'm1' },
+  quantity: remaining,
+  plannedCount: 0,
+  remaining,
+});
+const line = (requestLineId: string, quantity: number): DraftLine => ({ requestLineId, quantity, orientation: null });
+const box = (id: string, x: number, y: number, z: number, size: Vec3): Placement => ({ id, position: [x, y, z], size, orientation: 'xyz' });
+const result = (placements: Placement[]): PackResult => ({
+  format: RESULT_FORMAT,
+  placements,
+  unplaced: [],
+  height: Math.max(0, ...placements.map((p) => p.position[2] + p.size[2])),
+  layers: 0,
+  utilization: 0,
+  elapsedMs: 10,
+});
+
+const info = lineInfoOf([planLine('a', 2, [20, 20, 10]), planLine('b', 1, [30, 30, 30])], [openLine('c', 4, [10, 10, 10])]);
+const instanceOf = (lines: DraftLine[]) => buildInstance(instanceLinesOf(lines, info), machine, material, options);
+
+describe('the lines a plan holds', () => {
+  it('a line already in the plan may grow only to what its request still needs besides other plans', () => {
+    const m = lineInfoOf([planLine('a', 2, [20, 20, 10], { lineQuantity: 10, plannedElsewhere: 6 })], [openLine('a', 99, [20, 20, 10])]);
+    expect(m.get('a')?.maxQuantity).toBe(4);
+  });
+
+  it('a changed name or line is an unsaved change; packing options alone are not', () => {
+    const saved = [line('a', 2), line('b', 1)];
+    expect(isDirty(null, 'Plan', saved)).toBe(false);
+    expect(isDirty({ name: 'Plan', lines: [line('b', 1), line('a', 2)] }, 'Plan', saved)).toBe(false);
+    expect(isDirty({ name: 'Plan', lines: [line('a', 3), line('b', 1)] }, 'Plan', saved)).toBe(true);
+    expect(isDirty({ name: 'Plan', lines: [{ ...line('a', 2), orientation: 'fixed' }, line('b', 1)] }, 'Plan', saved)).toBe(true);
+    expect(isDirty({ name: 'Plan B', lines: saved }, 'Plan', saved)).toBe(true);
+  });
+
+  it("one rule for all lines keeps no override on a line whose part has that rule already", () => {
+    const m = lineInfoOf([planLine('a', 1, [10, 10, 10]), { ...planLine('b', 1, [10, 10, 10]), part: part('b', [10, 10, 10], 'keep_up') }], []);
+    const next = withRuleForAll([line('a', 1), line('b', 1)], 'keep_up', m);
+    expect(next.map((l) => l.orientation)).toEqual(['keep_up', null]);
+    expect(withRuleForAll(next, null, m).map((l) => l.orientation)).toEqual([null, null]);
+  });
+});
+
+describe('a fill', () => {
+  const base: Working = { mode: 'fill', instance: instanceOf([line('a', 2)]), kept: [box('a', 5, 5, 5, [20, 20, 10]), box('a', 27, 5, 5, [20, 20, 10])], result: null, lines: [line('a', 2)], baseLines: [line('a', 2)], problem: null };
+
+  it('makes the plan take what it placed: a line new to the plan comes in with exactly its placed count', () => {
+    const best = result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10]), box('c', 29, 5, 17, [10, 10, 10])]);
+    const next = foldBest(base, best, true, instanceOf);
+    expect(next.problem).toBeNull();
+    expect(next.lines).toEqual([line('a', 2), line('c', 3)]);
+    expect(next.result?.placements).toHaveLength(5);
+    // The layout is checked against the plan with the added line, so it can be kept as it is.
+    expect(next.instance.parts.find((p) => p.id === 'c')?.quantity).toBe(3);
+  });
+
+  it('counts from the lines before the run, however often its best layout changes', () => {
+    const once = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10])]), false, instanceOf);
+    const twice = foldBest(once, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), false, instanceOf);
+    expect(twice.lines).toEqual([line('a', 2), line('c', 2)]);
+  });
+
+  it('whose parts overlap the kept ones is refused with the reason, not shown as a layout to keep', () => {
+    const clash = foldBest(base, result([box('c', 5, 5, 5, [10, 10, 10])]), true, instanceOf);
+    expect(clash.problem).toMatch(/\S/);
+    expect(canKeep(clash, { editable: true, running: false, stale: false })).toBe(false);
+  });
+
+  it('is offered only the open lines the plan does not hold yet, and says why when it cannot run', () => {
+    const open = [openLine('a', 5, [20, 20, 10]), openLine('c', 4, [10, 10, 10]), openLine('d', 0, [10, 10, 10])];
+    const candidates = fillCandidatesOf(open, [line('a', 2)]);
+    expect(candidates.map((c) => [c.line.requestLineId, c.extra])).toEqual([['c', 4]]);
+    const full = instanceOf([line('a', 2)]);
+    expect(fillReasonOf(null, null, full, 4)).toMatch(/Pack first/);
+    expect(fillReasonOf(result([]), instanceOf([line('a', 1)]), full, 4)).toMatch(/lines changed/);
+    expect(fillReasonOf(result([]), full, full, 0)).toMatch(/No other open request lines/);
+    expect(fillReasonOf(result([]), full, full, 4)).toBeNull();
+  });
+
+  it('packs as low as it goes when all may fit, and for the most volume when they cannot all fit', () => {
+    const full = instanceOf([line('a', 2)]);
+    const shown = base.kept;
+    const few = fillInstanceOf([{ line: openLine('c', 4, [10, 10, 10]), extra: 4 }], full, shown, machine, material, options);
+    expect(few.objective).toBe('min-height');
+    // New parts go above the shown ones: their top (15 mm) plus the 2 mm spacing.
+    expect(few.margin?.bottom).toBeCloseTo(17, 9);
+    // 300 boxes of 100 mm cannot share one 290 mm chamber.
+    const many = fillInstanceOf([{ line: openLine('c', 300, [100, 100, 100]), extra: 300 }], full, shown, machine, material, options);
+    expect(many.objective).toBe('max-volume');
+  });
+});
+
+describe('re-packing above a locked layout', () => {
+  const locked = result([box('a', 5, 5, 5, [20, 20, 10]), box('a', 27, 5, 5, [20, 20, 10]), box('b', 49, 5, 5, [30, 30, 30])]);
+
+  it('keeps as many locked parts of each line as the plan still asks for and packs only the rest, above them', () => {
+    const full = instanceOf([line('a', 1), line('b', 3)]);
+    const { kept, engine } = repackOf(locked, full);
+    expect(kept.map((p) => p.id)).toEqual(['a', 'b']);
+    expect(engine.parts.map((p) => [p.id, p.quantity])).toEqual([['b', 2]]);
+    // The kept parts reach 35 mm; 2 mm of spacing above them.
+    expect(engine.margin?.bottom).toBeCloseTo(37, 9);
+  });
+
+  it('is offered only with a locked layout shown and lines that changed since', () => {
+    const same = instanceOf([line('a', 2), line('b', 1)]);
+    expect(repackAvailability(null, same)).toEqual({ available: false, reason: expect.stringMatching(/Lock a kept layout/) });
+    expect(repackAvailability(same, instanceOf([line('b', 1), line('a', 2)]))).toEqual({ available: false, reason: expect.stringMatching(/already holds/) });
+    expect(repackAvailability(same, instanceOf([line('a', 2), line('b', 2)]))).toEqual({ available: true, reason: null });
+  });
+});
+
+describe('keeping a layout and sending the plan', () => {
+  const full = instanceOf([line('a', 1)]);
+  const packed: Working = { mode: 'pack', instance: full, kept: [], result: { ...result([box('a', 5, 5, 5, [20, 20, 10])]), layers: 150 }, lines: [line('a', 1)], baseLines: [line('a', 1)], problem: null };
+
+  it('a packed layout can be kept once the run ended, while the lines are still the ones it was packed for', () => {
+    expect(canKeep(packed, { editable: true, running: false, stale: false })).toBe(true);
+    expect(canKeep(packed, { editable: true, running: true, stale: false })).toBe(false);
+    expect(canKeep(packed, { editable: false, running: false, stale: false })).toBe(false);
+    expect(isStale(packed, full)).toBe(false);
+    expect(isStale(packed, instanceOf([line('a', 2)]))).toBe(true);
+    expect(canKeep({ ...packed, result: result([]) }, { editable: true, running: false, stale: false })).toBe(false);
+  });
+
+  it('a kept layout is labelled by how it was made, with the seed of a plain packing and its layers', () => {
+    expect(keptLabel({ ...packed, result: packed.result! })).toBe('Seed 3 · 150 layers');
+    expect(keptLabel({ ...packed, mode: 'fill', result: packed.result! })).toBe('Filled · 150 layers');
+    expect(keptLabel({ ...packed, mode: 'repack', result: packed.result! })).toBe('Re-packed · 150 layers');
+  });
+
+  it('a plan is sent for review only with a chosen layout that matches its lines and nothing unsaved', () => {
+    expect(submitBlockOf([{ chosen: false, matchesPlan: true }], false)).toMatch(/Choose a layout first/);
+    expect(submitBlockOf([{ chosen: true, matchesPlan: false }], false)).toMatch(/no longer matches/);
+    expect(submitBlockOf([{ chosen: true, matchesPlan: true }], true)).toMatch(/Save or undo/);
+    expect(submitBlockOf([{ chosen: true, matchesPlan: true }], false)).toBeNull();
+  });
+});
+
+describe('the layout shown', () => {
+  const plan = {
+    chosenLayoutId: null as string | null,
+    layouts: [
+      { id: 'old', createdAt: '2026-11-30T10:00:00Z' },
+      { id: 'new', createdAt: '2026-12-01T10:00:00Z' },
+    ],
+  };
+
+  it("is the planner's pick, else the chosen layout, else the newest; the packing not kept only while there is one", () => {
+    expect(shownLayoutId(null, false, plan)).toBe('new');
+    expect(shownLayoutId(null, false, { ...plan, chosenLayoutId: 'old' })).toBe('old');
+    expect(shownLayoutId('old', false, plan)).toBe('old');
+    expect(shownLayoutId(WORKING, true, plan)).toBe(WORKING);
+    expect(shownLayoutId(WORKING, false, plan)).toBe('new');
+    expect(shownLayoutId(null, false, { chosenLayoutId: null, layouts: [] })).toBeNull();
+  });
+
+  it('the cut moves by whole layers within the layout, and past its top there is no cut', () => {
+    // A 10 mm tall layout in 0.1 mm layers: the first step down from no cut is at 9.9 mm.
+    expect(movedCutMm(null, 10, 0.1, -1)).toBeCloseTo(9.9, 9);
+    expect(movedCutMm(null, 10, 0.1, -10)).toBeCloseTo(9, 9);
+    expect(movedCutMm(0.2, 10, 0.1, -10)).toBe(0);
+    expect(movedCutMm(9.95, 10, 0.1, 1)).toBeNull();
+    expect(movedCutMm(5.04, 10, 0.1, 1)).toBeCloseTo(5.1, 9);
+  });
+});
