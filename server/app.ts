@@ -70,8 +70,8 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const audit = auditService(db);
   const auth = authService(db, { labs, audit, mailer, appUrl: config.appUrl, resetTokenMs: config.resetTokenMs, log: jobs.log });
   const invites = invitesService(db, { labs, auth, mailer, appUrl: config.appUrl });
-  const machines = profilesService(db, db.models.Machine, machineProfileSchema, 'machine', checkedMachineProfileSchema);
-  const materials = profilesService(db, db.models.Material, materialProfileSchema, 'material', checkedMaterialProfileSchema);
+  const machines = profilesService(db, 'machines', machineProfileSchema, 'machine', checkedMachineProfileSchema);
+  const materials = profilesService(db, 'materials', materialProfileSchema, 'material', checkedMaterialProfileSchema);
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const meshJobs = meshJobsService({

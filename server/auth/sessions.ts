@@ -40,6 +40,3 @@ declare module 'lucia' {
     };
   }
 }
-
-/** A session's public handle: a digest of its secret id (the id itself is the bearer credential). */
-export const SESSION_HANDLE_SQL = "left(encode(sha256(convert_to(id, 'UTF8')), 'hex'), 24)";

@@ -1,11 +1,17 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { auditRepository } from '../db/repositories/audit';
 import type { AuditEntryView, AuditPageView, AuditQuery } from '../../shared/schemas/audit';
 
 /** Account events (no lab row changes): recorded in every lab the user belongs to. */
 export type AccountEvent =
   | { kind: 'sign_in'; action: 'signed_in' | 'failed' }
   | { kind: 'account'; action: 'password_changed' | 'password_reset' | 'reset_requested' | 'session_revoked' | 'signed_out_everywhere' };
+
+const DAY_MS = 86_400_000;
+const isDay = (s: string) => s.length === 10;
+/** A date and time without an offset is read as UTC (the database session's zone). */
+const instant = (s: string) => new Date(isDay(s) ? `${s}T00:00:00Z` : /(Z|[+-]\d{2}:\d{2})$/.test(s) ? s : `${s}Z`);
 
 /**
  * The lab's audit log. Changes of the lab's records are written by database
@@ -14,59 +20,31 @@ export type AccountEvent =
  * transaction when it has one.
  */
 export function auditService(db: Database) {
-  const { sequelize } = db;
+  const repo = auditRepository(db);
   return {
     async recordAccount(userId: string, event: AccountEvent, details: Record<string, unknown> | null, transaction?: Transaction): Promise<void> {
-      await sequelize.query(
-        `INSERT INTO audit_log (lab_id, actor_id, kind, action, target_id, target_label, after)
-         SELECT m.lab_id, $1, $2, $3, $1, u.name, $4::jsonb
-           FROM memberships m JOIN users u ON u.id = m.user_id
-          WHERE m.user_id = $1`,
-        { bind: [userId, event.kind, event.action, details ? JSON.stringify(details) : null], transaction },
-      );
+      await repo.addAccountEvent(userId, event.kind, event.action, details, transaction);
     },
 
     async list(labId: string, q: AuditQuery): Promise<AuditPageView> {
-      const where = ['a.lab_id = $1'];
-      const bind: unknown[] = [labId];
-      const add = (sql: string, v: unknown) => {
-        bind.push(v);
-        where.push(sql.replace('?', `$${bind.length}`));
-      };
-      if (q.kind) add('a.kind = ?', q.kind);
-      if (q.actor) add('a.actor_id = ?', q.actor);
       // A bare date means that whole day (UTC): from its start, to its end.
-      if (q.from) add('a.at >= ?::timestamptz', q.from.length === 10 ? `${q.from}T00:00:00Z` : q.from);
-      if (q.to) add(q.to.length === 10 ? "a.at < ?::timestamptz + interval '1 day'" : 'a.at <= ?::timestamptz', q.to.length === 10 ? `${q.to}T00:00:00Z` : q.to);
-      if (q.before) add('a.id < ?::bigint', q.before);
-      bind.push(q.limit + 1);
-      const rows = await sequelize.query<{
-        id: string;
-        at: Date;
-        kind: string;
-        action: string;
-        actor_id: string | null;
-        actor_name: string | null;
-        target_id: string | null;
-        target_label: string | null;
-        before: Record<string, unknown> | null;
-        after: Record<string, unknown> | null;
-      }>(
-        `SELECT a.id::text AS id, a.at, a.kind, a.action, a.actor_id, u.name AS actor_name, a.target_id, a.target_label, a.before, a.after
-           FROM audit_log a LEFT JOIN users u ON u.id = a.actor_id
-          WHERE ${where.join(' AND ')}
-          ORDER BY a.id DESC
-          LIMIT $${bind.length}`,
-        { bind, type: QueryTypes.SELECT },
-      );
+      const rows = await repo.entries(labId, {
+        kind: q.kind,
+        actorId: q.actor,
+        from: q.from ? instant(q.from) : undefined,
+        toBefore: q.to && isDay(q.to) ? new Date(instant(q.to).getTime() + DAY_MS) : undefined,
+        toAtMost: q.to && !isDay(q.to) ? instant(q.to) : undefined,
+        beforeId: q.before,
+        limit: q.limit + 1,
+      });
       const page = rows.slice(0, q.limit);
       const entries: AuditEntryView[] = page.map((r) => ({
         id: r.id,
-        at: new Date(r.at).toISOString(),
+        at: r.at.toISOString(),
         kind: r.kind,
         action: r.action,
-        actor: r.actor_id ? { id: r.actor_id, name: r.actor_name } : null,
-        target: { id: r.target_id, label: r.target_label },
+        actor: r.actorId ? { id: r.actorId, name: r.actorName } : null,
+        target: { id: r.targetId, label: r.targetLabel },
         before: r.before,
         after: r.after,
       }));

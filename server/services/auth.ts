@@ -9,7 +9,7 @@ import type { Mailer } from '../mail/mailer';
 import type { AuditService } from './audit';
 import type { LabsService } from './labs';
 import type { Transaction } from 'sequelize';
-import { fn, col, where } from 'sequelize';
+import { accountsRepository, type UserRecord } from '../db/repositories/accounts';
 
 const WRONG = 'That e-mail and password do not match an account.';
 
@@ -19,10 +19,10 @@ export type AuthDeps = { labs: LabsService; audit: AuditService; mailer: Mailer;
 
 export function authService(db: Database, deps: AuthDeps) {
   const { labs, audit } = deps;
-  const { User } = db.models;
+  const accounts = accountsRepository(db);
 
-  async function findByEmail(email: string, t?: Transaction): Promise<any | null> {
-    return User.findOne({ where: where(fn('lower', col('email')), email.toLowerCase()), transaction: t, raw: true });
+  async function findByEmail(email: string, t?: Transaction): Promise<UserRecord | null> {
+    return accounts.userByEmail(email, t);
   }
 
   async function createUser(input: { email: string; name: string; password: string }, t: Transaction): Promise<string> {
@@ -30,7 +30,7 @@ export function authService(db: Database, deps: AuthDeps) {
     if (await findByEmail(input.email, t)) throw conflict('email_taken', 'An account with that e-mail already exists.', 'email');
     const id = generateIdFromEntropySize(10);
     try {
-      await User.create({ id, email: input.email, name: input.name, passwordHash: await hashPassword(input.password) }, { transaction: t });
+      await accounts.createUser({ id, email: input.email, name: input.name, passwordHash: await hashPassword(input.password) }, t);
     } catch (err) {
       // Two sign-ups racing for one address: the unique index decides.
       if ((err as { name?: string }).name === 'SequelizeUniqueConstraintError') {
@@ -60,7 +60,7 @@ export function authService(db: Database, deps: AuthDeps) {
         await verifyPassword(await dummyHash(), input.password);
         throw new AppError(401, 'unauthenticated', WRONG);
       }
-      if (!(await verifyPassword(user.password_hash ?? user.passwordHash, input.password))) {
+      if (!(await verifyPassword(user.passwordHash, input.password))) {
         await audit.recordAccount(user.id, { kind: 'sign_in', action: 'failed' }, null);
         throw new AppError(401, 'unauthenticated', WRONG);
       }
@@ -74,15 +74,15 @@ export function authService(db: Database, deps: AuthDeps) {
      * thief's included); the session that asked stays signed in.
      */
     async changePassword(userId: string, keepSessionId: string, input: { currentPassword: string; newPassword: string }): Promise<void> {
-      const user: any = await User.findByPk(userId, { raw: true });
-      if (!user || !(await verifyPassword(user.passwordHash ?? user.password_hash, input.currentPassword))) {
+      const user = await accounts.userById(userId);
+      if (!user || !(await verifyPassword(user.passwordHash, input.currentPassword))) {
         throw new AppError(400, 'wrong_password', 'currentPassword is not your current password.', 'currentPassword');
       }
       assertStrongPassword(input.newPassword, { email: user.email, name: user.name }, 'newPassword');
       const hash = await hashPassword(input.newPassword);
       await db.sequelize.transaction(async (t) => {
-        await User.update({ passwordHash: hash }, { where: { id: userId }, transaction: t });
-        await db.sequelize.query('DELETE FROM user_sessions WHERE user_id = $1 AND id <> $2', { bind: [userId, keepSessionId], transaction: t });
+        await accounts.setPasswordHash(userId, hash, t);
+        await accounts.endSessions(userId, { keepId: keepSessionId, transaction: t });
         await audit.recordAccount(userId, { kind: 'account', action: 'password_changed' }, null, t);
       });
     },
@@ -99,11 +99,7 @@ export function authService(db: Database, deps: AuthDeps) {
         if (!user) return;
         const token = randomBytes(32).toString('base64url');
         await db.sequelize.transaction(async (t) => {
-          await db.sequelize.query('DELETE FROM password_resets WHERE user_id = $1 AND used_at IS NULL', { bind: [user.id], transaction: t });
-          await db.sequelize.query(
-            "INSERT INTO password_resets (token_hash, user_id, expires_at) VALUES ($1, $2, now() + make_interval(secs => $3::double precision / 1000))",
-            { bind: [hashToken(token), user.id, deps.resetTokenMs], transaction: t },
-          );
+          await accounts.replaceResetToken(user.id, hashToken(token), deps.resetTokenMs, t);
           await audit.recordAccount(user.id, { kind: 'account', action: 'reset_requested' }, null, t);
         });
         const minutes = Math.round(deps.resetTokenMs / 60_000);
@@ -131,24 +127,18 @@ export function authService(db: Database, deps: AuthDeps) {
     async resetPassword(input: ResetInput): Promise<void> {
       const hash = hashToken(input.token);
       await db.sequelize.transaction(async (t) => {
-        const [rows] = (await db.sequelize.query(
-          `SELECT r.user_id, u.email, u.name FROM password_resets r JOIN users u ON u.id = r.user_id
-            WHERE r.token_hash = $1 AND r.used_at IS NULL AND r.expires_at > now() FOR UPDATE OF r`,
-          { bind: [hash], transaction: t },
-        )) as [Array<{ user_id: string; email: string; name: string }>, unknown];
-        const found = rows[0];
+        const found = await accounts.spendResetToken(hash, t);
         if (!found) throw new AppError(400, 'invalid_token', 'This reset link has expired or was already used: ask for a new one.', 'token');
         assertStrongPassword(input.password, { email: found.email, name: found.name }, 'password');
-        await db.sequelize.query('UPDATE password_resets SET used_at = now() WHERE token_hash = $1', { bind: [hash], transaction: t });
-        await User.update({ passwordHash: await hashPassword(input.password) }, { where: { id: found.user_id }, transaction: t });
-        await db.sequelize.query('DELETE FROM user_sessions WHERE user_id = $1', { bind: [found.user_id], transaction: t });
-        await audit.recordAccount(found.user_id, { kind: 'account', action: 'password_reset' }, null, t);
+        await accounts.setPasswordHash(found.id, await hashPassword(input.password), t);
+        await accounts.endSessions(found.id, { transaction: t });
+        await audit.recordAccount(found.id, { kind: 'account', action: 'password_reset' }, null, t);
       });
     },
 
     async checkPassword(userId: string, password: string): Promise<boolean> {
-      const user: any = await User.findByPk(userId, { raw: true });
-      return !!user && verifyPassword(user.passwordHash ?? user.password_hash, password);
+      const user = await accounts.userById(userId);
+      return !!user && verifyPassword(user.passwordHash, password);
     },
   };
 }

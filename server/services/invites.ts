@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from 'node:crypto';
-import { Op } from 'sequelize';
 import type { Database } from '../db';
+import { labsRepository, type InviteRecord } from '../db/repositories/labs';
 import { AppError, conflict, notFound } from '../errors';
 import type { Mailer } from '../mail/mailer';
 import { passwordSchema, ROLES, type InvitePreviewView, type InviteView, type Role } from '../../shared/schemas/auth';
@@ -13,52 +13,40 @@ const hashToken = (token: string) => createHash('sha256').update(token).digest('
 
 export type { InviteView };
 
-function view(row: any): InviteView {
+function view(row: InviteRecord): InviteView {
   return {
     id: row.id,
     email: row.email,
     roles: ROLES.filter((r) => row.roles.includes(r)),
-    createdAt: new Date(row.created_at ?? row.createdAt).toISOString(),
-    expiresAt: new Date(row.expiresAt).toISOString(),
-    acceptedAt: row.acceptedAt ? new Date(row.acceptedAt).toISOString() : null,
-    invitedBy: row.invitedBy ?? null,
+    createdAt: row.createdAt.toISOString(),
+    expiresAt: row.expiresAt.toISOString(),
+    acceptedAt: row.acceptedAt ? row.acceptedAt.toISOString() : null,
+    invitedBy: row.invitedBy,
   };
 }
 
 export function invitesService(db: Database, deps: { labs: LabsService; auth: AuthService; mailer: Mailer; appUrl: string }) {
-  const { Invite, Lab } = db.models;
-
-  async function usable(token: string): Promise<any> {
-    const row: any = await Invite.findOne({ where: { tokenHash: hashToken(token) }, raw: true });
-    if (!row || row.acceptedAt || row.revokedAt || new Date(row.expiresAt) < new Date()) {
-      throw notFound('That invite (it may have been used, revoked or have expired)');
-    }
-    return row;
-  }
+  const repo = labsRepository(db);
+  const gone = () => notFound('That invite (it may have been used, revoked or have expired)');
 
   return {
     async list(labId: string): Promise<InviteView[]> {
-      const rows = await Invite.findAll({ where: { labId, revokedAt: null }, order: [['created_at', 'DESC']], raw: true });
-      return rows.map(view);
+      return (await repo.invites(labId)).map(view);
     },
 
     async create(labId: string, invitedBy: { id: string; name: string }, email: string, roles: Role[]): Promise<InviteView> {
-      const lab: any = await Lab.findByPk(labId, { raw: true });
+      const lab = await repo.lab(labId);
       if (!lab) throw notFound('That lab');
       const existing = await deps.auth.findByEmail(email);
       if (existing && (await deps.labs.membership(labId, existing.id))) {
         throw conflict('already_member', `${email} is already a member of this lab.`, 'email');
       }
       const token = randomBytes(24).toString('base64url');
-      const row: any = await db.sequelize.transaction(async (t) => {
+      const row = await db.sequelize.transaction(async (t) => {
         // A newer invite to the same address replaces the older, still open one.
-        await Invite.update(
-          { revokedAt: new Date() },
-          { where: { labId, email, acceptedAt: null, revokedAt: null }, transaction: t },
-        );
-        const created: any = await Invite.create(
+        const created = await repo.createInvite(
           { labId, email, roles, tokenHash: hashToken(token), invitedBy: invitedBy.id, expiresAt: new Date(Date.now() + INVITE_DAYS * 86400_000) },
-          { transaction: t },
+          t,
         );
         const link = `${deps.appUrl}/invite/${token}`;
         await deps.mailer.send({
@@ -73,19 +61,19 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
             'If you did not expect this invite, you can ignore this message.',
           ].join('\n'),
         });
-        return created.get({ plain: true });
+        return created;
       });
       return view(row);
     },
 
     async revoke(labId: string, inviteId: string): Promise<void> {
-      const [count] = await Invite.update({ revokedAt: new Date() }, { where: { id: inviteId, labId, acceptedAt: null, revokedAt: null } });
-      if (!count) throw notFound('That invite');
+      if (!(await repo.revokeInvite(labId, inviteId))) throw notFound('That invite');
     },
 
     async lookup(token: string): Promise<InvitePreviewView> {
-      const row = await usable(token);
-      const lab: any = await Lab.findByPk(row.labId, { raw: true });
+      const row = await repo.openInvite(hashToken(token));
+      const lab = row && (await repo.lab(row.labId));
+      if (!row || !lab) throw gone();
       const existing = await deps.auth.findByEmail(row.email);
       return {
         labName: lab.name,
@@ -103,8 +91,8 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
      */
     async accept(token: string, input: { name?: string; password?: string }, sessionUserId?: string): Promise<string> {
       return db.sequelize.transaction(async (t) => {
-        const row: any = await Invite.findOne({ where: { tokenHash: hashToken(token), acceptedAt: null, revokedAt: null, expiresAt: { [Op.gt]: new Date() } }, transaction: t, lock: t.LOCK.UPDATE });
-        if (!row) throw notFound('That invite (it may have been used, revoked or have expired)');
+        const row = await repo.openInvite(hashToken(token), t);
+        if (!row) throw gone();
         const existing = await deps.auth.findByEmail(row.email, t);
         let userId: string;
         if (existing) {
@@ -120,8 +108,8 @@ export function invitesService(db: Database, deps: { labs: LabsService; auth: Au
         }
         // The new member acts here (they are not signed in yet), for the audit log.
         await stampActor(db.sequelize, t, userId);
-        await deps.labs.addMember(row.labId, userId, row.roles, t);
-        await row.update({ acceptedAt: new Date() }, { transaction: t });
+        await deps.labs.addMember(row.labId, userId, ROLES.filter((r) => row.roles.includes(r)), t);
+        await repo.markInviteAccepted(row.id, t);
         return userId;
       });
     },

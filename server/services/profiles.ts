@@ -1,20 +1,20 @@
 import type { z } from 'zod';
-import type { Database } from '../db';
 import { conflict, notFound } from '../errors';
 import { parseOrThrow } from '../validation';
 import type { Stored } from '../../shared/schemas/profiles';
+import type { Database } from '../db';
+import { profilesRepository, type ProfileRecord, type ProfileTable } from '../db/repositories/profiles';
 
-type ProfileModel = Database['models']['Machine'];
 export type { Stored };
 
-function view<P>(row: any): Stored<P> {
+function view<P>(row: ProfileRecord): Stored<P> {
   return {
     id: row.id,
     labId: row.labId,
-    ...row.profile,
+    ...(row.profile as P),
     name: row.name,
-    createdAt: new Date(row.created_at ?? row.createdAt).toISOString(),
-    updatedAt: new Date(row.updated_at ?? row.updatedAt).toISOString(),
+    createdAt: row.createdAt.toISOString(),
+    updatedAt: row.updatedAt.toISOString(),
   };
 }
 
@@ -25,15 +25,18 @@ function view<P>(row: any): Stored<P> {
  * checked by it; a patch first by the plain schema's partial, then merged and
  * checked whole).
  */
-export function profilesService<S extends z.ZodObject<any>>(db: Database, model: ProfileModel, schema: S, what: string, checked: z.ZodType<z.infer<S>>) {
+export function profilesService<S extends z.ZodObject>(db: Database, table: ProfileTable, schema: S, what: string, checked: z.ZodType<z.infer<S>>) {
   type P = z.infer<S>;
+  const repo = profilesRepository(db, table);
   const partial = schema.partial();
 
-  async function save(labId: string, row: any | null, profile: P) {
+  async function save(labId: string, id: string | null, profile: P): Promise<Stored<P>> {
     const { name, ...rest } = profile as P & { name: string };
     try {
-      if (row) return view<P>((await row.update({ name, profile: rest })).get({ plain: true }));
-      return view<P>((await model.create({ labId, name, profile: rest })).get({ plain: true }));
+      if (id === null) return view<P>(await repo.create(labId, name, rest));
+      const changed = await repo.update(labId, id, name, rest);
+      if (!changed) throw notFound(`That ${what}`);
+      return view<P>(changed);
     } catch (err) {
       if ((err as { name?: string }).name === 'SequelizeUniqueConstraintError') {
         throw conflict('name_taken', `This lab already has a ${what} named "${name}".`, 'name');
@@ -42,8 +45,8 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
     }
   }
 
-  async function find(labId: string, id: string) {
-    const row = await model.findOne({ where: { id, labId } });
+  async function find(labId: string, id: string): Promise<ProfileRecord> {
+    const row = await repo.find(labId, id);
     if (!row) throw notFound(`That ${what}`);
     return row;
   }
@@ -53,25 +56,23 @@ export function profilesService<S extends z.ZodObject<any>>(db: Database, model:
     schema: checked,
     patchSchema: partial,
     async list(labId: string): Promise<Stored<P>[]> {
-      const rows = await model.findAll({ where: { labId }, order: [['name', 'ASC']], raw: true });
-      return rows.map((r) => view<P>(r));
+      return (await repo.list(labId)).map((r) => view<P>(r));
     },
     async get(labId: string, id: string): Promise<Stored<P>> {
-      return view<P>((await find(labId, id)).get({ plain: true }));
+      return view<P>(await find(labId, id));
     },
     async create(labId: string, profile: P): Promise<Stored<P>> {
       return save(labId, null, profile);
     },
     async update(labId: string, id: string, patch: Partial<P>): Promise<Stored<P>> {
-      const row: any = await find(labId, id);
+      const row = await find(labId, id);
       const current = { name: row.name, ...row.profile };
       // Checked whole again, with the physical-sense rules: a change to one field can break a rule that spans several.
-      return save(labId, row, parseOrThrow(checked, { ...current, ...patch }));
+      return save(labId, id, parseOrThrow(checked, { ...current, ...patch }));
     },
     async remove(labId: string, id: string): Promise<void> {
-      const row = await find(labId, id);
       try {
-        await row.destroy();
+        if (!(await repo.remove(labId, id))) throw notFound(`That ${what}`);
       } catch (err) {
         // Build plans keep their machine and material for good (their history and estimates name them).
         if ((err as { name?: string }).name === 'SequelizeForeignKeyConstraintError') {

@@ -1,12 +1,13 @@
 import PDFDocument from 'pdfkit';
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { plansRepository } from '../db/repositories/plans';
+import { labsRepository } from '../db/repositories/labs';
 import { conflict, notFound } from '../errors';
 import type { LayoutsService } from './layouts';
 import { checkPlanId, planLines, profileRow } from './planCommon';
 import { checkExportable } from './export3mf';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
-import { STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
+import { STATUS_LABELS } from '../../shared/plans/status';
 import type { Placement } from '../../shared/packing';
 import type { CostEstimate } from '../../shared/estimate/cost';
 
@@ -59,6 +60,20 @@ function drawView(
 /** The estimate's cost, as stored with the layout (the sheet reads only these fields). */
 type SheetCost = Omit<CostEstimate, 'costPerPart' | 'perPart'> & { perPart: Array<Pick<CostEstimate['perPart'][number], 'id' | 'count' | 'each' | 'total'>> };
 
+/** The layout's stored estimate, as far as the sheet reads it (an older layout may lack any of it). */
+type SheetEstimate = {
+  layerCount?: number;
+  layerHeightMm?: number;
+  heightMm?: number;
+  print?: { printSeconds?: number; preheatSeconds?: number };
+  cooling?: { inMachineSeconds?: number; outsideSeconds?: number };
+  powder?: { freshPowderKg?: number; reusedPowderKg?: number; cakeMassKg?: number; packingDensity?: number };
+  calibration?: { calibrated?: boolean; runs?: number };
+  profileSource?: string;
+  profileBoxPlacements?: number;
+  cost?: SheetCost;
+};
+
 /**
  * The build sheet's cost lines: what the build costs by what it pays for, then each request line's parts with the
  * cost of one and of all (shared by volume and height, docs/estimate.md), and their sum, which is the total.
@@ -78,24 +93,22 @@ export function costLines(cost: SheetCost | undefined, lines: ReadonlyArray<{ re
 
 /** The operator's clipboard copy of an approved plan: views, part list, estimates, checklists and cautions, as a PDF. */
 export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
-  const { sequelize } = db;
+  const plans = plansRepository(db);
+  const labs = labsRepository(db);
 
   return {
     async build(labId: string, planId: string): Promise<{ name: string; bytes: Buffer }> {
-      const [plan] = await sequelize.query<{ id: string; name: string; status: PlanStatus; chosen_layout_id: string | null; machine_id: string; material_id: string; queue_position: number | null }>(
-        'SELECT id, name, status, chosen_layout_id, machine_id, material_id, queue_position FROM plans WHERE id = $1 AND lab_id = $2',
-        { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
-      );
+      const plan = await plans.head(labId, checkPlanId(planId));
       if (!plan) throw notFound('That plan');
       checkExportable(plan.status, 'build sheet');
-      if (!plan.chosen_layout_id) throw conflict('no_chosen_layout', 'This plan has no chosen layout.');
+      if (!plan.chosenLayoutId) throw conflict('no_chosen_layout', 'This plan has no chosen layout.');
       const [layout, lines, machine, material] = await Promise.all([
-        deps.layouts.get(labId, plan.id, plan.chosen_layout_id),
+        deps.layouts.get(labId, plan.id, plan.chosenLayoutId),
         planLines(db, plan.id),
-        profileRow(db, 'machines', labId, plan.machine_id),
-        profileRow(db, 'materials', labId, plan.material_id),
+        profileRow(db, 'machines', labId, plan.machineId),
+        profileRow(db, 'materials', labId, plan.materialId),
       ]);
-      const est = layout.estimate as any;
+      const est = layout.estimate as SheetEstimate | undefined;
       const chamber = (machine?.chamberMm ?? layout.instance.chamber) as number[];
       const placements = layout.result.placements as Placement[];
 
@@ -117,7 +130,7 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
       doc.font('Helvetica').fontSize(9).fillColor(MUTED);
       doc.text(
         `Machine ${machine?.name ?? ''} · material ${material?.name ?? ''} · ${STATUS_LABELS[plan.status]}` +
-          (plan.queue_position ? ` · number ${plan.queue_position} in the queue` : '') +
+          (plan.queuePosition ? ` · number ${plan.queuePosition} in the queue` : '') +
           ` · layout "${layout.label}" · printed ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC`,
       );
       doc.moveDown(1.5);
@@ -155,7 +168,7 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
 
       const costs = costLines(est?.cost, lines);
       if (costs.length > 0) {
-        const [lab] = await sequelize.query<{ currency: string }>('SELECT currency FROM labs WHERE id = $1', { bind: [labId], type: QueryTypes.SELECT });
+        const lab = await labs.lab(labId);
         doc.font('Helvetica-Bold').fontSize(11).text(`Cost in ${lab?.currency ?? 'the lab\'s currency'}, from the lab's rates`);
         doc.font('Helvetica').fontSize(9);
         for (const line of costs) doc.text(line);

@@ -151,7 +151,7 @@ describe("a second person's approval", () => {
     const lab = await sentForReview(running, 'four-eyes');
     const base = `/api/labs/${lab.labId}`;
     const second = await addMember(running, lab.agent, lab.labId, ['lead', 'planner'], 'second-lead');
-    expect((await lab.agent.get(`${base}/settings`)).body).toEqual({ secondApproval: true, secondApprovalSet: false, leads: 2, currency: 'EUR' });
+    expect((await lab.agent.get(`${base}/settings`)).body).toEqual({ secondApproval: true, secondApprovalSet: false, leads: 2, currency: 'EUR', minPackingDensityPercent: 8 });
 
     // The second lead packs and sends a plan of their own.
     const req = await makeRequest(running, lab.labId, lab.userId, lab.materialId, [GEAR]);

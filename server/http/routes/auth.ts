@@ -53,7 +53,7 @@ export function authRoutes(deps: AppDeps, limiter: RequestHandler, resetLimiter:
     res.status(204).end();
   });
 
-  const sessions = sessionsService(deps.pool, deps.services.audit);
+  const sessions = sessionsService(deps.db, deps.services.audit);
   r.get('/auth/sessions', requireSession, async (req, res) => {
     res.json(await sessions.list(requireUser(req).id, ctx(req).sessionId!));
   });
