@@ -89,7 +89,12 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const requests = requestsService(db, parts, { readyDates: (labId, machineId) => queue.readyDates(labId, machineId) });
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);
-  const layouts = layoutsService(db, { calibrationFor: calibration.lookup, profilesFor: layoutProfilesService(db, { storage }) });
+  const layouts = layoutsService(db, {
+    calibrationFor: calibration.lookup,
+    profilesFor: layoutProfilesService(db, {
+      slice: (labId, userId, task) => meshJobs.sliceLayout(labId, userId, task, config.layoutSliceWaitMs),
+    }),
+  });
   const review = reviewService(db, { plans, appUrl: config.appUrl, labs });
   const queue = queueService(db, { calibration });
   const reviewFlags = reviewFlagsService(db, { labs, queue });

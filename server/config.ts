@@ -60,6 +60,8 @@ const envSchema = z.object({
   JOB_QUEUE: z.string().regex(/^[A-Za-z0-9_.-]{1,60}$/, 'letters, digits, "_", "-" and "." only').default('mesh-measure'),
   /** How long an upload waits for its files to be measured before answering 202 with the job to follow. */
   UPLOAD_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(5000),
+  /** How long keeping a layout waits for its parts to be sliced on the job queue before it is estimated by their boxes instead. */
+  LAYOUT_SLICE_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(15_000),
   /** Where uploads are streamed while they are measured; removed after each request. */
   UPLOAD_TMP_DIR: z.string().optional(),
   /** Where mesh files live: in PostgreSQL (default) or in S3-compatible object storage. */
@@ -115,6 +117,7 @@ export type Config = {
   meshJobExpireSeconds: number;
   jobQueue: string;
   uploadWaitMs: number;
+  layoutSliceWaitMs: number;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -172,5 +175,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     meshJobExpireSeconds: expire,
     jobQueue: e.JOB_QUEUE,
     uploadWaitMs: e.UPLOAD_WAIT_MS,
+    layoutSliceWaitMs: e.LAYOUT_SLICE_WAIT_MS,
   };
 }

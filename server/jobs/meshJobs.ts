@@ -1,5 +1,6 @@
+// Over 450 lines: the queue's one state machine (turns, hand-out, measuring, slicing, giving up) reads best in one place.
 /**
- * Measuring uploads on the job queue.
+ * Measuring uploads (and slicing kept layouts) on the job queue.
  *
  * An upload becomes a mesh job with one row a file. The web server stores
  * each file's bytes in the file store (holding one reference of the job's own,
@@ -35,6 +36,7 @@ import { sha256File, type FileStorage } from '../storage';
 import type { LabEvent } from '../events/labEvents';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
 import type { JobState, JobView } from '../../shared/schemas/jobs';
+import type { ProfileLayoutJob, ProfileLayoutResult, ProfilePartFile } from '../../shared/geometry/layoutSlices';
 import type { PartUploadResponse, PartView, RejectedFile } from '../../shared/schemas/parts';
 
 export type MeshQueueSettings = {
@@ -70,6 +72,16 @@ export type PartsForJobs = {
 export type UploadedFile = { originalname: string; path: string; size: number };
 export type UploadFields = { unit: 'mm' | 'cm' | 'inch'; split: boolean };
 export type Measure = (input: Uint8Array, options: MeasureOptions) => Promise<FileMeasureResult>;
+export type Slice = (job: ProfileLayoutJob) => Promise<ProfileLayoutResult>;
+/** What a worker runs its turns with: the mesh pool's measuring and slicing. */
+export type WorkerTools = { measure: Measure; slice: Slice };
+
+/** A layout's sections to slice on the queue: its parts by stored file (read by the worker), placed as the layout places them. */
+export type LayoutTask = Omit<ProfileLayoutJob, 'parts'> & { planId: string; parts: (Omit<ProfilePartFile, 'bytes'> & { fileKey: string | null })[] };
+/** A sliced layout as stored with its row (the arrays as plain numbers). */
+type StoredSections = { areaProfile: number[]; contourProfile: number[]; meshPlacements: number; boxPlacements: number; boxReasons: ProfileLayoutResult['boxReasons'] };
+/** How a layout's slicing on the queue ended, or that it did not finish in the time given. */
+export type SliceOutcome = { ok: true; result: ProfileLayoutResult; jobId: string } | { ok: false; reason: string; jobId: string };
 
 export type MeshJobsDeps = {
   db: Database;
@@ -102,6 +114,8 @@ type FileRow = {
   attempts: number;
   part_ids: string[];
   rejected: RejectedFile | null;
+  /** A layout to slice (a `layout` job's one row) instead of a file. */
+  task: LayoutTask | null;
 };
 
 type JobRow = {
@@ -202,6 +216,23 @@ export function meshJobsService(deps: MeshJobsDeps) {
     }
     wakeLocal(sent);
     return sent;
+  }
+
+  /**
+   * Locks the turn order (until the caller's transaction ends) and gives the
+   * lab's next turn: its last pending turn plus one, never below the lowest
+   * turn pending anywhere (or the last one given, when nothing is pending).
+   */
+  async function firstTurn(labId: string, transaction: Transaction): Promise<number> {
+    await sequelize.query(TURN_LOCK_SQL, { transaction });
+    const [t] = await query<{ floor: number | null; last: number | null; lab: number | null }>(
+      `SELECT (SELECT min(turn) FROM mesh_job_files WHERE state IN ('waiting', 'queued', 'running')) AS floor,
+              (SELECT max(turn) FROM mesh_job_files) AS last,
+              (SELECT max(turn) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('waiting', 'queued', 'running')) AS lab`,
+      [labId],
+      transaction,
+    );
+    return Math.max(t.floor ?? t.last ?? 0, t.lab === null ? -Infinity : t.lab + 1);
   }
 
   /** Every lab with files waiting: after a crash between an upload and its hand-over, nothing stays behind. */
@@ -331,9 +362,89 @@ export function meshJobsService(deps: MeshJobsDeps) {
     return view(labId, jobId);
   }
 
+  /** A worker's turn on a layout: read its parts' files, slice them, and store the sections with the row. */
+  async function sliceLayout(row: FileRow, task: LayoutTask, slice: Slice): Promise<void> {
+    let sections: StoredSections;
+    try {
+      const bytesOf = new Map<string, Uint8Array | null>();
+      const parts: ProfilePartFile[] = [];
+      for (const { fileKey, ...part } of task.parts) {
+        if (fileKey && !bytesOf.has(fileKey)) {
+          const b = await storage.get(fileKey);
+          bytesOf.set(fileKey, b ? new Uint8Array(b.buffer, b.byteOffset, b.byteLength) : null);
+        }
+        // A file gone from the store counts as its box, as a part without a closed mesh does.
+        parts.push({ ...part, bytes: fileKey ? bytesOf.get(fileKey) ?? null : null });
+      }
+      const { planId: _plan, parts: _parts, ...placed } = task;
+      const out = await slice({ ...placed, parts });
+      sections = { ...out, areaProfile: Array.from(out.areaProfile), contourProfile: Array.from(out.contourProfile) };
+    } catch (err) {
+      const why = err instanceof Error ? err.message : String(err);
+      const done = await rejectFile(row.id, (r) => ({ file: r.file_name, code: 'measure-failed', message: `${quoteName(r.file_name)} could not be sliced: ${why}` }));
+      if (done) await afterFile(done, false);
+      return;
+    }
+    const stored = await sequelize.transaction(async (transaction) => {
+      await query('SELECT id FROM mesh_jobs WHERE id = $1 FOR UPDATE', [row.job_id], transaction);
+      const [locked] = await query<FileRow>('SELECT * FROM mesh_job_files WHERE id = $1 FOR UPDATE', [row.id], transaction);
+      if (!locked || FINISHED.includes(locked.state)) return null;
+      await sequelize.query("UPDATE mesh_job_files SET state = 'done', result = $2::jsonb, finished_at = now() WHERE id = $1", {
+        bind: [row.id, JSON.stringify(sections)],
+        transaction,
+      });
+      await settleJob(row.job_id, transaction);
+      return locked;
+    });
+    if (stored) await afterFile(stored, false);
+  }
+
   return {
     dispatch,
     dispatchAll,
+
+    /**
+     * Slices a layout on the queue, in the lab's turn like an upload's files,
+     * waiting up to `waitMs` for a worker to finish it. A slicing not finished
+     * by then is called off (a worker that takes it later leaves it).
+     */
+    async sliceLayout(labId: string, userId: string | null, task: LayoutTask, waitMs: number): Promise<SliceOutcome> {
+      const jobId = randomUUID();
+      let sent = 0;
+      await sequelize.transaction(async (transaction) => {
+        const turn = await firstTurn(labId, transaction);
+        await sequelize.query("INSERT INTO mesh_jobs (id, lab_id, user_id, options, kind) VALUES ($1, $2, $3, $4::jsonb, 'layout')", {
+          bind: [jobId, labId, userId, JSON.stringify({ planId: task.planId })],
+          transaction,
+        });
+        await sequelize.query(
+          `INSERT INTO mesh_job_files (id, job_id, lab_id, position, file_name, turn, state, task)
+           VALUES ($1, $2, $3, 0, 'layout sections', $4, 'waiting', $5::jsonb)`,
+          { bind: [randomUUID(), jobId, labId, turn, JSON.stringify(task)], transaction },
+        );
+        sent = await handOut(connectionOf(transaction), labId);
+      });
+      wakeLocal(sent);
+      const v = await waitFor(labId, jobId, waitMs);
+      const [row] = await query<FileRow & { result: StoredSections | null }>('SELECT * FROM mesh_job_files WHERE job_id = $1', [jobId]);
+      if (v.job.state === 'done' && row?.result) {
+        const r = row.result;
+        return { ok: true, jobId, result: { ...r, areaProfile: Float64Array.from(r.areaProfile), contourProfile: Float64Array.from(r.contourProfile) } };
+      }
+      if (v.job.state === 'failed') return { ok: false, jobId, reason: row?.rejected?.message ?? 'the slicing failed' };
+      const reason = `no worker finished slicing it within ${Math.round(waitMs / 100) / 10} s`;
+      const called = row ? await rejectFile(row.id, (r) => ({ file: r.file_name, code: 'not_needed', message: `${quoteName(r.file_name)} was not sliced: ${reason}; the layout was estimated by its boxes.` })) : null;
+      if (called) await afterFile(called, false);
+      else {
+        // Finished between the wait and the calling off: use it.
+        const [late] = await query<{ result: StoredSections | null }>('SELECT result FROM mesh_job_files WHERE job_id = $1', [jobId]);
+        if (late?.result) {
+          const r = late.result;
+          return { ok: true, jobId, result: { ...r, areaProfile: Float64Array.from(r.areaProfile), contourProfile: Float64Array.from(r.contourProfile) } };
+        }
+      }
+      return { ok: false, jobId, reason };
+    },
     view,
     waitFor,
 
@@ -368,16 +479,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
               const key = keys[position];
               if (checked[position].ok && key && (await storage.put(key, { path: f.path, sizeBytes: f.size }, { transaction })).created) created.push(key);
             }
-            await sequelize.query(TURN_LOCK_SQL, { transaction });
-            // The lowest turn pending anywhere (or the last one given, when nothing is pending), and this lab's last.
-            const [t] = await query<{ floor: number | null; last: number | null; lab: number | null }>(
-              `SELECT (SELECT min(turn) FROM mesh_job_files WHERE state IN ('waiting', 'queued', 'running')) AS floor,
-                      (SELECT max(turn) FROM mesh_job_files) AS last,
-                      (SELECT max(turn) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('waiting', 'queued', 'running')) AS lab`,
-              [labId],
-              transaction,
-            );
-            const base = Math.max(t.floor ?? t.last ?? 0, t.lab === null ? -Infinity : t.lab + 1);
+            const base = await firstTurn(labId, transaction);
             await sequelize.query('INSERT INTO mesh_jobs (id, lab_id, user_id, options) VALUES ($1, $2, $3, $4::jsonb)', {
               bind: [jobId, labId, userId, JSON.stringify(options)],
               transaction,
@@ -434,12 +536,12 @@ export function meshJobsService(deps: MeshJobsDeps) {
      * was thought lost) is left as it is. Throws only on the server's own
      * failures (the database away), so the queue tries again.
      */
-    async processFile(fileId: string, worker: string, measure: Measure): Promise<void> {
+    async processFile(fileId: string, worker: string, tools: WorkerTools): Promise<void> {
       const [row] = await query<FileRow & { options: JobOptions; user_id: string | null }>(
         `SELECT f.*, j.options, j.user_id FROM mesh_job_files f JOIN mesh_jobs j ON j.id = f.job_id WHERE f.id = $1`,
         [fileId],
       );
-      if (!row || FINISHED.includes(row.state) || !row.file_key) return;
+      if (!row || FINISHED.includes(row.state) || (!row.file_key && !row.task)) return;
       await sequelize.transaction(async (transaction) => {
         await sequelize.query(
           "UPDATE mesh_job_files SET state = 'running', attempts = attempts + 1, worker = $2, started_at = now() WHERE id = $1 AND state NOT IN ('done', 'rejected')",
@@ -451,15 +553,16 @@ export function meshJobsService(deps: MeshJobsDeps) {
         });
       });
       void publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
+      if (row.task) return sliceLayout(row, row.task, tools.slice);
 
-      const bytes = await storage.get(row.file_key);
+      const bytes = await storage.get(row.file_key!);
       if (!bytes) {
         const done = await rejectFile(fileId, (r) => ({ file: r.file_name, code: 'not_saved', message: `${quoteName(r.file_name)} was lost from the file store before it could be measured; upload it again.` }));
         if (done) await afterFile(done, false);
         return;
       }
       const view = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-      const measured = await measure(view, { ...row.options.measure, filename: row.file_name });
+      const measured = await tools.measure(view, { ...row.options.measure, filename: row.file_name });
       if (!measured.ok) {
         const problems = measured.problems;
         const done = await rejectFile(fileId, (r) => ({ file: r.file_name, code: problems[0].code, message: problems.map((p) => p.message).join(' ') }));

@@ -5,7 +5,7 @@ import { connectDatabase } from '../db';
 import { createStorage } from '../storage';
 import { partsService } from '../services/parts';
 import { createLabEvents } from '../events/labEvents';
-import { configureMeshPool, meshPool, closeMeshPool, defaultMeshThreads, measureFile } from '../mesh';
+import { configureMeshPool, meshPool, closeMeshPool, defaultMeshThreads, measureFile, profileLayout } from '../mesh';
 import { startBoss } from './boss';
 import { meshJobsService, type MeshQueueSettings } from './meshJobs';
 import { startMeshWorker } from './worker';
@@ -33,7 +33,7 @@ export async function runWorkerProcess(config: Config, settings: MeshQueueSettin
   const jobs = meshJobsService({ db, pool, boss, storage, parts, settings, publish: (e) => events.publish(e), log });
   // The threads start now (loading the geometry code takes seconds on a busy machine), not with the first file.
   meshPool();
-  const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads, measure: measureFile, settings, log });
+  const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads, tools: { measure: measureFile, slice: profileLayout }, settings, log });
   return {
     name: worker.name,
     threads,

@@ -1,7 +1,7 @@
 import { hostname } from 'node:os';
 import pg from 'pg';
 import type PgBoss from 'pg-boss';
-import { deadLetterQueue, MESH_WORK_CHANNEL, type Measure, type MeshJobs, type MeshQueueSettings } from './meshJobs';
+import { deadLetterQueue, MESH_WORK_CHANNEL, type MeshJobs, type WorkerTools, type MeshQueueSettings } from './meshJobs';
 
 export type MeshWorker = { name: string; stop(): Promise<void> };
 
@@ -28,18 +28,19 @@ export async function startMeshWorker(opts: {
   databaseUrl?: string;
   /** Files this process measures at once (the size of its thread pool). */
   threads: number;
-  measure: Measure;
+  /** Measuring a file and slicing a layout (the mesh pool's). */
+  tools: WorkerTools;
   settings: MeshQueueSettings;
   log?: (msg: string) => void;
 }): Promise<MeshWorker> {
-  const { boss, jobs, measure, settings } = opts;
+  const { boss, jobs, tools, settings } = opts;
   const log = opts.log ?? (() => {});
   const name = `${hostname()}:${process.pid}`;
   const ids: string[] = [];
   for (let i = 0; i < opts.threads; i++) {
     ids.push(
       await boss.work<{ fileId: string }>(settings.queue, { batchSize: 1, pollingIntervalSeconds: POLL_SECONDS }, async ([job]) => {
-        await jobs.processFile(job.data.fileId, name, measure);
+        await jobs.processFile(job.data.fileId, name, tools);
       }),
     );
   }

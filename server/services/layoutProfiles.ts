@@ -1,15 +1,14 @@
 /**
  * Per-layer area and contour of a layout from its parts' real meshes, for the
- * estimates of a layout being kept. The part files are read here (I/O only);
- * parsing and slicing run in the mesh worker pool, so a large mesh never holds
- * up other requests. When a file is missing or a worker fails, the layout is
+ * estimates of a layout being kept. The slicing is a job on the mesh queue, in
+ * the lab's turn like its uploads: a worker (in any process) reads the part
+ * files and slices them. When a file is missing the part counts as its box;
+ * when the job fails or no worker finishes it in time, the whole layout is
  * estimated by its boxes, and says so.
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
-import type { FileStorage } from '../storage';
-import { profileLayout } from '../mesh';
-import type { ProfileLayoutJob, ProfileLayoutResult, ProfilePartFile } from '../../shared/geometry/layoutSlices';
+import type { LayoutTask, SliceOutcome } from '../jobs/meshJobs';
 import type { LengthUnit } from '../../shared/geometry';
 import type { PackInstance, PackResult } from '../../shared/packing';
 
@@ -23,7 +22,15 @@ export interface MeshProfiles {
   boxParts: { name: string; reason: string }[];
 }
 
-export type ProfilesLookup = (planId: string, instance: PackInstance, result: PackResult, layers: number, transaction?: Transaction) => Promise<MeshProfiles | null>;
+export type ProfilesLookup = (
+  planId: string,
+  instance: PackInstance,
+  result: PackResult,
+  layers: number,
+  transaction?: Transaction,
+  /** Who keeps the layout (recorded with the slicing job). */
+  userId?: string | null,
+) => Promise<MeshProfiles | null>;
 
 type PartRow = {
   request_line_id: string;
@@ -40,10 +47,12 @@ type PartRow = {
 
 export function layoutProfilesService(
   db: Database,
-  deps: { storage: FileStorage; profile?: (job: ProfileLayoutJob) => Promise<ProfileLayoutResult> },
+  deps: {
+    /** Slices on the job queue (the lab's turn), waiting a limited time. */
+    slice: (labId: string, userId: string | null, task: LayoutTask) => Promise<SliceOutcome>;
+  },
 ): ProfilesLookup {
-  const run = deps.profile ?? profileLayout;
-  return async (planId, instance, result, layers, transaction) => {
+  return async (planId, instance, result, layers, transaction, userId = null) => {
     if (result.placements.length === 0 || layers === 0) return null;
     const rows = await db.sequelize.query<PartRow>(
       `SELECT pl.request_line_id, p.id AS part_id, p.name AS part_name, p.file_key, p.file_name, p.file_unit, p.file_split,
@@ -52,8 +61,10 @@ export function layoutProfilesService(
         WHERE pl.plan_id = $1 ORDER BY pl.position`,
       { bind: [planId], type: QueryTypes.SELECT, transaction },
     );
+    const [plan] = await db.sequelize.query<{ lab_id: string }>('SELECT lab_id FROM plans WHERE id = $1', { bind: [planId], type: QueryTypes.SELECT, transaction });
+    if (!plan) return null;
     const partOfLine = new Map<string, number>();
-    const files: ProfilePartFile[] = [];
+    const files: LayoutTask['parts'] = [];
     const names: string[] = [];
     const indexOfPart = new Map<string, number>();
     for (const row of rows) {
@@ -61,10 +72,10 @@ export function layoutProfilesService(
       if (k === undefined) {
         k = files.length;
         indexOfPart.set(row.part_id, k);
-        const bytes = row.closed ? await deps.storage.get(row.file_key) : null;
         files.push({
           key: `${row.file_key}|${row.file_split ? row.file_part_index : 'all'}|${row.rotation_deg.join(',')}`,
-          bytes: bytes ? new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength) : null,
+          // Read by the worker; a part without a closed mesh is counted by its box, so its file is not needed.
+          fileKey: row.closed ? row.file_key : null,
           filename: row.file_name,
           unit: row.file_unit,
           split: row.file_split,
@@ -76,25 +87,25 @@ export function layoutProfilesService(
       }
       partOfLine.set(row.request_line_id, k);
     }
-    const placements: ProfileLayoutJob['placements'] = [];
+    const placements: LayoutTask['placements'] = [];
     for (const p of result.placements) {
       const part = partOfLine.get(p.id);
       if (part === undefined) return null; // a line not in the plan: the layout checks refuse it anyway
       const transform = (p as { transform?: number[] }).transform;
       placements.push({ part, orientation: p.orientation, position: p.position, size: p.size, transform });
     }
-    try {
-      const out = await run({ parts: files, placements, layerHeightMm: instance.layerHeight, layers });
-      return {
-        areaPerLayerMm2: out.areaProfile,
-        contourPerLayerMm: out.contourProfile,
-        meshPlacements: out.meshPlacements,
-        boxPlacements: out.boxPlacements,
-        boxParts: out.boxReasons.map((r) => ({ name: names[r.part], reason: r.reason })),
-      };
-    } catch (err) {
-      console.warn(`layout profile of plan ${planId} fell back to boxes: ${err instanceof Error ? err.message : String(err)}`);
+    const outcome = await deps.slice(plan.lab_id, userId, { planId, parts: files, placements, layerHeightMm: instance.layerHeight, layers });
+    if (!outcome.ok) {
+      console.warn(`layout profile of plan ${planId} fell back to boxes (job ${outcome.jobId}): ${outcome.reason}`);
       return null;
     }
+    const out = outcome.result;
+    return {
+      areaPerLayerMm2: out.areaProfile,
+      contourPerLayerMm: out.contourProfile,
+      meshPlacements: out.meshPlacements,
+      boxPlacements: out.boxPlacements,
+      boxParts: out.boxReasons.map((r) => ({ name: names[r.part], reason: r.reason })),
+    };
   };
 }

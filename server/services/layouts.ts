@@ -178,7 +178,7 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
         for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
         // Sections of the real meshes, sliced in the mesh workers; the boxes when they cannot be had.
         const layers = layerCount(result.height, instance.margin.top, instance.layerHeight);
-        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction) : null;
+        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction, user.id) : null;
         let estimate: LayoutEstimate;
         try {
           const { id: _m, ...machineProfile } = machine;

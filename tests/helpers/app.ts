@@ -24,6 +24,7 @@ export async function startTestApp(overrides: Partial<Config> = {}): Promise<Run
     authRateLimit: 10_000,
     jobQueue: `mesh-test-${process.pid}-${++apps}`,
     uploadWaitMs: 120_000,
+    layoutSliceWaitMs: 120_000,
     rateLimitNamespace: `test-${randomBytes(6).toString('hex')}:`,
     ...overrides,
   };

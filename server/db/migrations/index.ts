@@ -12,6 +12,7 @@ import * as m0010 from './0010-accounts-audit';
 import * as m0011 from './0011-part-thumbnails';
 import * as m0012 from './0012-lab-currency';
 import * as m0013 from './0013-lab-density-rule';
+import * as m0014 from './0014-mesh-job-tasks';
 
 export type Migration = {
   name: string;
@@ -34,4 +35,5 @@ export const migrations: Migration[] = [
   { name: '0011-part-thumbnails', ...m0011 },
   { name: '0012-lab-currency', ...m0012 },
   { name: '0013-lab-density-rule', ...m0013 },
+  { name: '0014-mesh-job-tasks', ...m0014 },
 ];
