@@ -6,10 +6,10 @@
  * when the job fails or no worker finishes it in time, the whole layout is
  * estimated by its boxes, and says so.
  */
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { plansRepository } from '../db/repositories/plans';
 import type { LayoutTask, SliceOutcome } from '../jobs/meshJobs';
-import type { LengthUnit } from '../../shared/geometry';
 import type { PackInstance, PackResult } from '../../shared/packing';
 
 export interface MeshProfiles {
@@ -32,19 +32,6 @@ export type ProfilesLookup = (
   userId?: string | null,
 ) => Promise<MeshProfiles | null>;
 
-type PartRow = {
-  request_line_id: string;
-  part_id: string;
-  part_name: string;
-  file_key: string;
-  file_name: string;
-  file_unit: LengthUnit;
-  file_split: boolean;
-  file_part_index: number;
-  rotation_deg: number[];
-  closed: boolean;
-};
-
 export function layoutProfilesService(
   db: Database,
   deps: {
@@ -52,40 +39,35 @@ export function layoutProfilesService(
     slice: (labId: string, userId: string | null, task: LayoutTask) => Promise<SliceOutcome>;
   },
 ): ProfilesLookup {
+  const plans = plansRepository(db);
   return async (planId, instance, result, layers, transaction, userId = null) => {
     if (result.placements.length === 0 || layers === 0) return null;
-    const rows = await db.sequelize.query<PartRow>(
-      `SELECT pl.request_line_id, p.id AS part_id, p.name AS part_name, p.file_key, p.file_name, p.file_unit, p.file_split,
-              p.file_part_index, p.rotation_deg, (p.watertight AND COALESCE((p.metrics->>'oriented')::boolean, false)) AS closed
-         FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id JOIN parts p ON p.id = rl.part_id
-        WHERE pl.plan_id = $1 ORDER BY pl.position`,
-      { bind: [planId], type: QueryTypes.SELECT, transaction },
-    );
-    const [plan] = await db.sequelize.query<{ lab_id: string }>('SELECT lab_id FROM plans WHERE id = $1', { bind: [planId], type: QueryTypes.SELECT, transaction });
+    const rows = await plans.partFiles(planId, transaction);
+    const plan = await plans.labOf(planId, transaction);
     if (!plan) return null;
     const partOfLine = new Map<string, number>();
     const files: LayoutTask['parts'] = [];
     const names: string[] = [];
     const indexOfPart = new Map<string, number>();
     for (const row of rows) {
-      let k = indexOfPart.get(row.part_id);
+      let k = indexOfPart.get(row.partId);
       if (k === undefined) {
         k = files.length;
-        indexOfPart.set(row.part_id, k);
+        indexOfPart.set(row.partId, k);
         files.push({
-          key: `${row.file_key}|${row.file_split ? row.file_part_index : 'all'}|${row.rotation_deg.join(',')}`,
+          key: `${row.fileKey}|${row.fileSplit ? row.filePartIndex : 'all'}|${row.rotationDeg.join(',')}`,
           // Read by the worker; a part without a closed mesh is counted by its box, so its file is not needed.
-          fileKey: row.closed ? row.file_key : null,
-          filename: row.file_name,
-          unit: row.file_unit,
-          split: row.file_split,
-          partIndex: row.file_split ? row.file_part_index : 0,
-          rotationDeg: row.rotation_deg,
+          fileKey: row.closed ? row.fileKey : null,
+          filename: row.fileName,
+          unit: row.fileUnit,
+          split: row.fileSplit,
+          partIndex: row.fileSplit ? row.filePartIndex : 0,
+          rotationDeg: row.rotationDeg,
           watertight: row.closed,
         });
-        names.push(row.part_name);
+        names.push(row.partName);
       }
-      partOfLine.set(row.request_line_id, k);
+      partOfLine.set(row.requestLineId, k);
     }
     const placements: LayoutTask['placements'] = [];
     for (const p of result.placements) {
@@ -94,7 +76,7 @@ export function layoutProfilesService(
       const transform = (p as { transform?: number[] }).transform;
       placements.push({ part, orientation: p.orientation, position: p.position, size: p.size, transform });
     }
-    const outcome = await deps.slice(plan.lab_id, userId, { planId, parts: files, placements, layerHeightMm: instance.layerHeight, layers });
+    const outcome = await deps.slice(plan.labId, userId, { planId, parts: files, placements, layerHeightMm: instance.layerHeight, layers });
     if (!outcome.ok) {
       console.warn(`layout profile of plan ${planId} fell back to boxes (job ${outcome.jobId}): ${outcome.reason}`);
       return null;

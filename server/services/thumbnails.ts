@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { partsRepository } from '../db/repositories/parts';
 import { notFound } from '../errors';
 import type { FileStorage } from '../storage';
 import type { ThumbnailJob } from '../mesh/protocol';
@@ -19,18 +19,15 @@ export type DrawThumbnail = (job: ThumbnailJob) => Promise<Uint8Array | null>;
  * file, part and turn: the second ask, on any server, reads it back.
  */
 export function thumbnailsService(db: Database, deps: { storage: FileStorage; parts: PartsService; draw: DrawThumbnail }) {
-  const { sequelize } = db;
+  const repo = partsRepository(db);
   return {
     async png(labId: string, partId: string): Promise<{ png: Buffer; etag: string }> {
       // Lab-scoped: another lab's part (or none) answers 404 here.
       const part = await deps.parts.get(labId, partId);
       const view = `v${DRAWING_VERSION}:${THUMBNAIL_PX}:${part.file.partIndex}:${part.file.unit}:${part.file.split ? 1 : 0}:${part.rotationDeg.join(',')}`;
       const etag = createHash('sha256').update(part.file.sha256).update(view).digest('hex').slice(0, 32);
-      const [kept] = await sequelize.query<{ png: Buffer }>('SELECT png FROM part_thumbnails WHERE file_key = $1 AND view = $2', {
-        bind: [part.file.sha256, view],
-        type: QueryTypes.SELECT,
-      });
-      if (kept) return { png: kept.png, etag };
+      const kept = await repo.thumbnail(part.file.sha256, view);
+      if (kept) return { png: kept, etag };
       const bytes = await deps.storage.get(part.file.sha256);
       if (!bytes) throw notFound("That part's file");
       const png = await deps.draw({
@@ -45,10 +42,7 @@ export function thumbnailsService(db: Database, deps: { storage: FileStorage; pa
       if (!png) throw notFound("That part's picture");
       const out = Buffer.from(png.buffer, png.byteOffset, png.byteLength);
       // Two servers drawing the same picture at once keep the first; the file may also have gone meanwhile.
-      await sequelize
-        .query('INSERT INTO part_thumbnails (file_key, view, png) SELECT $1, $2, $3 WHERE EXISTS (SELECT 1 FROM files WHERE key = $1) ON CONFLICT DO NOTHING', {
-          bind: [part.file.sha256, view, out],
-        });
+      await repo.keepThumbnail(part.file.sha256, view, out);
       return { png: out, etag };
     },
   };

@@ -1,3 +1,4 @@
+import type { MeshMetrics } from '../../../shared/geometry/metrics';
 import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
 
 /** A stored file's bytes (or where they are), shared by every part cut from it. */
@@ -31,7 +32,8 @@ export interface PartRow extends Model<InferAttributes<PartRow>, InferCreationAt
   areaMm2: number;
   triangles: number;
   watertight: boolean;
-  metrics: object;
+  /** Older rows may lack fields measured since. */
+  metrics: Partial<MeshMetrics>;
   warnings: CreationOptional<unknown[]>;
   orientation: CreationOptional<string>;
   defaultMaterialId: CreationOptional<string | null>;

@@ -1,5 +1,6 @@
 import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
 import type { PlanStatus } from '../../../shared/plans/status';
+import type { RequestLineRow } from './parts';
 
 export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAttributes<PlanRow>> {
   id: CreationOptional<string>;
@@ -19,6 +20,7 @@ export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAt
 }
 
 export interface PlanLineRow extends Model<InferAttributes<PlanLineRow>, InferCreationAttributes<PlanLineRow>> {
+  requestLine?: NonAttribute<RequestLineRow>;
   id: CreationOptional<string>;
   planId: string;
   requestLineId: string;

@@ -1,6 +1,7 @@
 import type { Transaction } from 'sequelize';
 import type { Database } from '../index';
 import type { PlanStatus } from '../../../shared/plans/status';
+import type { LengthUnit } from '../../../shared/geometry';
 
 /** A plan's own fields, as a plain record (never an ORM instance). */
 export type PlanHead = {
@@ -15,16 +16,81 @@ export type PlanHead = {
   version: number;
 };
 
-/** Build plans and their status history, read through the models. */
+/** The stored file behind one plan line's part, as the 3MF export and the layer profiles read it. */
+export type PlanPartFile = {
+  requestLineId: string;
+  partId: string;
+  partName: string;
+  fileKey: string;
+  fileName: string;
+  fileUnit: LengthUnit;
+  fileSplit: boolean;
+  filePartIndex: number;
+  rotationDeg: number[];
+  /** Watertight and consistently oriented: its sliced sections are areas. */
+  closed: boolean;
+};
+
+/** Build plans, their lines' part files and their status history, read through the models. */
 export function plansRepository(db: Database) {
-  const { Plan, PlanEvent } = db.models;
+  const { Plan, PlanEvent, PlanLine, RequestLine, Part } = db.models;
   return {
+    /** Each line's part file, in the plan's line order. */
+    async partFiles(planId: string, transaction?: Transaction): Promise<PlanPartFile[]> {
+      const lines = await PlanLine.findAll({
+        where: { planId },
+        attributes: ['requestLineId', 'position'],
+        include: [
+          {
+            model: RequestLine,
+            as: 'requestLine',
+            attributes: ['id'],
+            required: true,
+            include: [
+              {
+                model: Part,
+                as: 'part',
+                attributes: ['id', 'name', 'fileKey', 'fileName', 'fileUnit', 'fileSplit', 'filePartIndex', 'rotationDeg', 'watertight', 'metrics'],
+                required: true,
+              },
+            ],
+          },
+        ],
+        order: [['position', 'ASC']],
+        transaction,
+      });
+      return lines.flatMap((l) => {
+        const p = l.requestLine?.part;
+        if (!p) return [];
+        return [
+          {
+            requestLineId: l.requestLineId,
+            partId: p.id,
+            partName: p.name,
+            fileKey: p.fileKey,
+            fileName: p.fileName,
+            fileUnit: p.fileUnit as LengthUnit,
+            fileSplit: p.fileSplit,
+            filePartIndex: p.filePartIndex,
+            rotationDeg: p.rotationDeg,
+            closed: p.watertight && p.metrics.oriented === true,
+          },
+        ];
+      });
+    },
+
     /** The lab's plan, or null (a plan of another lab is simply not there). */
     async head(labId: string, planId: string, transaction?: Transaction): Promise<PlanHead | null> {
       const p = await Plan.findOne({ where: { id: planId, labId }, transaction });
       return p
         ? { id: p.id, labId: p.labId, name: p.name, status: p.status, machineId: p.machineId, materialId: p.materialId, chosenLayoutId: p.chosenLayoutId, queuePosition: p.queuePosition, version: p.version }
         : null;
+    },
+
+    /** The plan's lab, or null when there is no such plan. */
+    async labOf(planId: string, transaction?: Transaction): Promise<{ labId: string } | null> {
+      const p = await Plan.findByPk(planId, { attributes: ['labId'], transaction });
+      return p ? { labId: p.labId } : null;
     },
 
     /** Who last sent the plan for review (null: nobody, or an account since removed). */
