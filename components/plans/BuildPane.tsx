@@ -3,6 +3,7 @@ import { StyleSheet, View } from 'react-native';
 import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type PartMesh, type Vec3 } from '../viewer';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Button, Text } from '../ui';
+import type { BuildStack } from './editorModel';
 
 export interface BuildPaneProps {
   chamberMm: Vec3;
@@ -10,8 +11,8 @@ export interface BuildPaneProps {
   placements: ChamberPlacements;
   lineColours: readonly string[];
   meshesByPart?: ReadonlyMap<number, PartMesh>;
-  heightMm: number;
-  layerHeightMm: number;
+  /** The layers as printed, from the floor: the slider counts these, as the numbers do. */
+  stack: BuildStack;
   cutMm: number | null;
   onCut: (heightMm: number | null) => void;
   describe: (index: number) => string;
@@ -38,7 +39,7 @@ function pointerHint(wide: boolean, editable: boolean): string {
 export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function BuildPane(p, ref) {
   const [hovered, setHovered] = useState<number | null>(null);
   const wide = useIsWide();
-  const top = Math.max(p.heightMm, p.layerHeightMm);
+  const top = Math.max(p.stack.topMm, p.stack.layerHeightMm);
   return (
     <View style={[styles.pane, p.heightPx ? { height: p.heightPx } : styles.fill]} testID="plan-build">
       <View style={styles.caption}>
@@ -75,13 +76,18 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
         <View style={styles.slider}>
           <LayerSlider
             maxHeightMm={top}
-            layerHeightMm={p.layerHeightMm}
+            layerHeightMm={p.stack.layerHeightMm}
             valueMm={p.cutMm ?? top}
             onChange={(h) => p.onCut(h >= top ? null : h)}
             testID="plan-layer-slider"
           />
         </View>
       </View>
+      {p.stack.layers > 0 ? (
+        <Text variant="caption" color="inkMuted" testID="plan-build-layers-note">
+          {`Layers count from the floor as printed: ${Number(p.stack.floorMarginMm.toFixed(2))} mm of powder under the parts (floor margin) and ${Number(p.stack.topMarginMm.toFixed(2))} mm over them included.`}
+        </Text>
+      ) : null}
       {p.editable && p.marked > 0 ? (
         <View style={styles.marked} testID="plan-marked">
           <Text variant="label">{p.marked} part{p.marked === 1 ? '' : 's'} marked</Text>

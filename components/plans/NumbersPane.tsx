@@ -22,6 +22,7 @@ export function NumbersPane({
   title,
   bedAreaMm2,
   cutLayer,
+  stackNote,
   note,
   partNames,
 }: {
@@ -29,6 +30,8 @@ export function NumbersPane({
   title: string;
   bedAreaMm2: number;
   cutLayer: number | null;
+  /** What the layer count is made of (floor margin, parts, top margin). */
+  stackNote?: string;
   note?: string;
   /** A placement's part name by its id (the request line), for the cost per part. */
   partNames?: ReadonlyMap<string, string>;
@@ -63,6 +66,7 @@ export function NumbersPane({
         <Cell label="Placed" value={String(n.placed)} testID="num-placed" />
         <Cell label="Not placed" value={String(n.unplaced)} testID="num-unplaced" tone={n.unplaced > 0 ? 'danger' : undefined} />
       </View>
+      {stackNote ? <Text variant="caption" color="inkMuted" testID="num-layers-note">{stackNote}</Text> : null}
       {note ? <Text variant="caption" color="inkFaint">{note}</Text> : null}
       {n.cost ? <CostBreakdown cost={n.cost} total={n.totalCost} partNames={partNames} /> : null}
       <View style={{ gap: spacing.xs }}>

@@ -6,6 +6,7 @@
  * The editor's hooks call these; tests/unit/plans/editorModel.test.ts checks them.
  */
 import { buildCountLowerBound, parseInstance, type PackInstanceInput, type PackResult, type Placement } from '../../shared/packing';
+import { layerCount } from '../../shared/estimate/layers';
 import type { LayoutSummaryView, OpenLineView, PlanLineView, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import type { DraftLine, DraftOptions, PlanDraft } from '../stores/planEditor';
 import { buildInstance, instanceAbove, mergeLayouts, type InstanceLine, type MachineLike, type MaterialLike } from './instance';
@@ -308,9 +309,46 @@ export function colourOrderOf(lineOrder: readonly string[], shownInstance: Pick<
   return ids;
 }
 
-/** The cut moved by whole layers, within the layout's height; at the top it is no cut (null). */
-export function movedCutMm(cutMm: number | null, usedHeightMm: number, layerHeightMm: number, layers: number): number | null {
-  const top = Math.max(usedHeightMm, layerHeightMm);
+/**
+ * The layers a build takes as the machine prints them, the one count the slider, the numbers, the chart and the
+ * heat warnings all use (and the print time is computed from): from the chamber floor, so the powder under the
+ * parts (the floor margin) counts, up to the top margin of powder over the highest part. Layer k is the k-th from
+ * the floor, its top at k x the layer height.
+ */
+export interface BuildStack {
+  layers: number;
+  layerHeightMm: number;
+  /** Top of the last layer: layers x layer height. */
+  topMm: number;
+  floorMarginMm: number;
+  /** From the floor margin to the top of the highest part. */
+  partsMm: number;
+  topMarginMm: number;
+}
+
+export function buildStackOf(heightMm: number, margin: { bottom: number; top: number }, layerHeightMm: number): BuildStack {
+  const any = heightMm > 0;
+  const layers = any ? layerCount(heightMm, margin.top, layerHeightMm) : 0;
+  return {
+    layers,
+    layerHeightMm,
+    topMm: layers * layerHeightMm,
+    floorMarginMm: any ? margin.bottom : 0,
+    partsMm: any ? Math.max(0, heightMm - margin.bottom) : 0,
+    topMarginMm: any ? margin.top : 0,
+  };
+}
+
+/** One short line under a layer count: what it is made of. */
+export function stackNote(s: BuildStack): string {
+  if (s.layers === 0) return 'No layers: nothing is placed.';
+  const f = (v: number) => `${Number(v.toFixed(2))} mm`;
+  return `${s.layers} layers of ${s.layerHeightMm} mm as printed: ${f(s.floorMarginMm)} of powder under the parts (floor margin), ${f(s.partsMm)} of parts, ${f(s.topMarginMm)} over them.`;
+}
+
+/** The cut moved by whole layers, up to the top of the last layer printed; at the top it is no cut (null). */
+export function movedCutMm(cutMm: number | null, stackTopMm: number, layerHeightMm: number, layers: number): number | null {
+  const top = Math.max(stackTopMm, layerHeightMm);
   const current = cutMm ?? top;
   const next = Math.max(0, Math.min(top, Math.round(current / layerHeightMm + layers) * layerHeightMm));
   return next >= top ? null : next;

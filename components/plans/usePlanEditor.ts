@@ -34,7 +34,9 @@ import {
   isDirty,
   isStale,
   lineInfoOf,
+  buildStackOf,
   movedCutMm,
+  stackNote,
   PACKING_WHAT,
   repackAvailability,
   savedLinesOf,
@@ -149,6 +151,9 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const [cutMm, setCutMm] = useState<number | null>(null);
   const layerHeightMm = shownInstance?.layerHeight ?? options.layerHeightMm;
   const usedHeight = shownResult?.height ?? 0;
+  const stackBottom = shownInstance?.margin?.bottom ?? mb;
+  const stackTop = shownInstance?.margin?.top ?? mt;
+  const stack = useMemo(() => buildStackOf(usedHeight, { bottom: stackBottom, top: stackTop }, layerHeightMm), [usedHeight, stackBottom, stackTop, layerHeightMm]);
   const marked = useMarked();
   // Marks are indices into the layout shown: another layout drops them.
   useEffect(() => clearMarked(), [shownId]);
@@ -162,7 +167,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     clearMarked();
     session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
   };
-  const moveCut = (layers: number) => setCutMm(movedCutMm(cutMm, usedHeight, layerHeightMm, layers));
+  const moveCut = (layers: number) => setCutMm(movedCutMm(cutMm, stack.topMm, layerHeightMm, layers));
 
   // ---- re-pack what is new, fill the rest ------------------------------------------
   const lockedInstance = !showingWorking && shownSummary?.locked && stored.data ? stored.data.instance : null;
@@ -252,8 +257,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     placements,
     lineColours: viewColours,
     meshesByPart: chamberMeshes.meshes,
-    heightMm: usedHeight,
-    layerHeightMm,
+    stack,
     cutMm,
     onCut: setCutMm,
     describe,
@@ -271,6 +275,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     title: shownLabel,
     bedAreaMm2: (machine.chamberMm[0] - 2 * material.marginXyMm) * (machine.chamberMm[1] - 2 * material.marginXyMm),
     cutLayer: cutMm === null ? null : Math.round(cutMm / layerHeightMm),
+    stackNote: shownResult ? stackNote(stack) : undefined,
     note: showingWorking ? 'Estimated here; the server estimates it again when the layout is kept.' : undefined,
     partNames,
   };

@@ -12,7 +12,9 @@ import {
   isStale,
   keptLabel,
   lineInfoOf,
+  buildStackOf,
   movedCutMm,
+  stackNote,
   repackAvailability,
   repackOf,
   shownLayoutId,
@@ -22,6 +24,7 @@ import {
   type Working,
 } from '../../../components/plans/editorModel';
 import { buildInstance } from '../../../components/plans/instance';
+import { layerAtHeight } from '../../../components/viewer/math';
 
 // An invented 300 x 300 x 300 mm chamber, 5 mm wall keep-out, 2 mm between parts, 0.1 mm layers.
 const machine = { chamberMm: [300, 300, 300] as Vec3, layerHeightsMm: [0.1, 0.12] };
@@ -209,5 +212,22 @@ describe('the layout shown', () => {
     expect(movedCutMm(0.2, 10, 0.1, -10)).toBe(0);
     expect(movedCutMm(9.95, 10, 0.1, 1)).toBeNull();
     expect(movedCutMm(5.04, 10, 0.1, 1)).toBeCloseTo(5.1, 9);
+  });
+
+  it('counts layers one way everywhere: from the floor, floor margin and top margin included, as the print time does', () => {
+    // Parts 90 mm tall on a 5 mm floor margin (top at 95 mm from the floor), 5 mm of powder over them, 0.11 mm layers:
+    // the machine spreads ceil((5 + 90 + 5) / 0.11) = ceil(909.09) = 910 layers (worked by hand).
+    const stack = buildStackOf(95, { bottom: 5, top: 5 }, 0.11);
+    expect(stack.layers).toBe(910);
+    expect(stack.topMm).toBeCloseTo(100.1, 9);
+    // The layer slider counts whole layers up to the height it is given: the stack's top gives the same 910,
+    // where the parts' top alone (the count it used to show) would give 864.
+    expect(layerAtHeight(stack.topMm, 0.11)).toBe(910);
+    expect(layerAtHeight(95, 0.11)).toBe(864);
+    expect(stackNote(stack)).toBe('910 layers of 0.11 mm as printed: 5 mm of powder under the parts (floor margin), 90 mm of parts, 5 mm over them.');
+    // Stepping the cut up from one layer under the top reaches the top of the last printed layer, then no cut.
+    expect(movedCutMm(909 * 0.11, stack.topMm, 0.11, 1)).toBeNull();
+    expect(movedCutMm(null, stack.topMm, 0.11, -1)).toBeCloseTo(909 * 0.11, 9);
+    expect(buildStackOf(0, { bottom: 5, top: 5 }, 0.11).layers).toBe(0);
   });
 });
