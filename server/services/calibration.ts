@@ -1,5 +1,5 @@
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { calibrationRepository, type CoolingReading, type FinishedRun } from '../db/repositories/calibration';
 import { AppError, conflict, notFound } from '../errors';
 import type { Actor } from './planCommon';
 import {
@@ -20,36 +20,8 @@ import type { CalibrationLookup } from './layouts';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
-type Row = {
-  id: string;
-  plan_id: string;
-  plan_name: string;
-  material_name: string | null;
-  started_at: Date;
-  done_at: Date | null;
-  aborted_at: Date | null;
-  abort_reason: string | null;
-  estimated_print_hours: number;
-  actual_print_hours: number | null;
-  estimated_cooling_hours: number;
-  actual_cooling_hours: number | null;
-  print_time_scale_used: number;
-  cooling_scale_used: number;
-  estimated_preheat_hours: number | null;
-  estimated_layer_hours: number | null;
-  estimated_scan_hours: number | null;
-  calibration_choice: 'exclude' | 'include' | null;
-  calibration_reason: string | null;
-  calibration_by: string | null;
-  calibration_by_name: string | null;
-  calibration_at: Date | null;
-  print_ended_at: Date | null;
-  cake_mm: [number, number, number] | null;
-  material_profile: Record<string, unknown> | null;
-  machine_profile: Record<string, unknown>;
-};
-
-type ReadingRow = { run_id: string; temp_c: number; taken_at: Date };
+type Row = FinishedRun;
+type ReadingRow = CoolingReading;
 
 const iso = (d: Date | string | null) => (d ? new Date(d).toISOString() : null);
 
@@ -62,42 +34,24 @@ const iso = (d: Date | string | null) => (d ? new Date(d).toISOString() : null);
  * or take it back in, with a reason that is kept.
  */
 export function calibrationService(db: Database) {
-  const { sequelize } = db;
+  const repo = calibrationRepository(db);
 
   async function rows(machineId: string): Promise<Row[]> {
-    return sequelize.query<Row>(
-      `SELECT r.id, r.plan_id, p.name AS plan_name, m.name AS material_name, r.started_at, r.done_at, r.aborted_at, r.abort_reason,
-              r.estimated_print_hours, r.actual_print_hours, r.estimated_cooling_hours, r.actual_cooling_hours,
-              r.print_time_scale_used, r.cooling_scale_used, r.estimated_preheat_hours, r.estimated_layer_hours, r.estimated_scan_hours,
-              r.calibration_choice, r.calibration_reason, r.calibration_by, u.name AS calibration_by_name, r.calibration_at,
-              r.print_ended_at, l.estimate -> 'cakeMm' AS cake_mm, m.profile AS material_profile, mc.profile AS machine_profile
-         FROM runs r JOIN plans p ON p.id = r.plan_id LEFT JOIN materials m ON m.id = p.material_id LEFT JOIN users u ON u.id = r.calibration_by
-              JOIN machines mc ON mc.id = r.machine_id LEFT JOIN layouts l ON l.id = r.layout_id
-        WHERE r.machine_id = $1 AND (r.done_at IS NOT NULL OR r.aborted_at IS NOT NULL)
-        ORDER BY COALESCE(r.done_at, r.aborted_at) DESC`,
-      { bind: [machineId], type: QueryTypes.SELECT },
-    );
+    return repo.finishedRuns(machineId);
   }
 
-  /** Core readings that count (explained, confirmed or accepted) of the given runs, by run. */
   async function readingsOf(runIds: string[]): Promise<Map<string, ReadingRow[]>> {
     const byRun = new Map<string, ReadingRow[]>();
-    if (runIds.length === 0) return byRun;
-    const rows = await sequelize.query<ReadingRow>(
-      `SELECT run_id, temp_c, taken_at FROM run_readings WHERE run_id = ANY($1::uuid[]) AND check_status <> 'unexplained' ORDER BY taken_at`,
-      { bind: [runIds], type: QueryTypes.SELECT },
-    );
-    for (const g of rows) byRun.set(g.run_id, [...(byRun.get(g.run_id) ?? []), g]);
+    for (const g of await repo.coolingReadings(runIds)) byRun.set(g.runId, [...(byRun.get(g.runId) ?? []), g]);
     return byRun;
   }
 
-  /** A run's readings beside the conduction model of its cake, with the profiles as they are now. */
   function pointsOf(r: Row, readings: ReadingRow[] | undefined): CoolingPoint[] {
-    if (!readings?.length || !r.print_ended_at || !r.cake_mm || !r.material_profile) return [];
-    const mat = r.material_profile as Record<string, number>;
-    const mac = r.machine_profile as Record<string, number>;
+    if (!readings?.length || !r.printEndedAt || !r.cakeMm || !r.materialProfile) return [];
+    const mat = r.materialProfile as Record<string, number>;
+    const mac = r.machineProfile as Record<string, number>;
     const cake = {
-      sizeMm: r.cake_mm,
+      sizeMm: r.cakeMm,
       conductivityWPerMK: mat.powderConductivityWPerMK,
       densityGPerCm3: mat.bulkDensityGPerCm3,
       heatCapacityJPerKgK: mat.powderHeatCapacityJPerKgK,
@@ -106,31 +60,31 @@ export function calibrationService(db: Database) {
       ambientTempC: mac.ambientTempC,
     };
     if (![...cake.sizeMm, cake.conductivityWPerMK, cake.densityGPerCm3, cake.heatCapacityJPerKgK, cake.surfaceWPerM2K].every((v) => Number.isFinite(v) && v > 0)) return [];
-    const end = new Date(r.print_ended_at).getTime();
+    const end = new Date(r.printEndedAt).getTime();
     return coolingPoints(
       cake,
-      readings.map((g) => ({ secondsAfterPrintEnd: (new Date(g.taken_at).getTime() - end) / 1000, tempC: g.temp_c })),
+      readings.map((g) => ({ secondsAfterPrintEnd: (new Date(g.takenAt).getTime() - end) / 1000, tempC: g.tempC })),
     );
   }
 
   const recorded = (r: Row, points: CoolingPoint[] = []): RecordedRun => ({
-    finishedAtMs: new Date((r.done_at ?? r.aborted_at)!).getTime(),
-    estimatedPrintHours: r.estimated_print_hours,
-    actualPrintHours: r.actual_print_hours,
-    estimatedCoolingHours: r.estimated_cooling_hours,
-    actualCoolingHours: r.actual_cooling_hours,
-    printTimeScaleUsed: r.print_time_scale_used,
-    coolingScaleUsed: r.cooling_scale_used,
+    finishedAtMs: new Date((r.doneAt ?? r.abortedAt)!).getTime(),
+    estimatedPrintHours: r.estimatedPrintHours,
+    actualPrintHours: r.actualPrintHours,
+    estimatedCoolingHours: r.estimatedCoolingHours,
+    actualCoolingHours: r.actualCoolingHours,
+    printTimeScaleUsed: r.printTimeScaleUsed,
+    coolingScaleUsed: r.coolingScaleUsed,
     estimatedFixedHours:
-      r.estimated_preheat_hours != null && r.estimated_layer_hours != null ? r.estimated_preheat_hours + r.estimated_layer_hours : null,
-    estimatedScanHours: r.estimated_scan_hours,
+      r.estimatedPreheatHours != null && r.estimatedLayerHours != null ? r.estimatedPreheatHours + r.estimatedLayerHours : null,
+    estimatedScanHours: r.estimatedScanHours,
     coolingPoints: points,
   });
 
-  const forCalibration = (r: Row) => ({ ...recorded(r), aborted: r.aborted_at !== null });
+  const forCalibration = (r: Row) => ({ ...recorded(r), aborted: r.abortedAt !== null });
 
   /** Whether a run counts: the lead's choice where there is one, otherwise the default. */
-  const counts = (r: Row) => (r.calibration_choice ? r.calibration_choice === 'include' : defaultExclusion(forCalibration(r)) === null);
+  const counts = (r: Row) => (r.calibrationChoice ? r.calibrationChoice === 'include' : defaultExclusion(forCalibration(r)) === null);
 
   async function fit(machineId: string): Promise<{ calibration: Calibration; all: Row[]; used: Set<string>; points: Map<string, CoolingPoint[]> }> {
     const all = await rows(machineId);
@@ -148,10 +102,7 @@ export function calibrationService(db: Database) {
 
   async function machine(labId: string, machineId: string) {
     if (!UUID.test(machineId)) throw notFound('That machine');
-    const [m] = await sequelize.query<{ id: string; name: string }>('SELECT id, name FROM machines WHERE id = $1 AND lab_id = $2', {
-      bind: [machineId, labId],
-      type: QueryTypes.SELECT,
-    });
+    const m = await repo.machine(labId, machineId);
     if (!m) throw notFound('That machine');
     return m;
   }
@@ -160,17 +111,17 @@ export function calibrationService(db: Database) {
     const byDefault = defaultExclusion(forCalibration(r));
     return {
       runId: r.id,
-      planId: r.plan_id,
-      planName: r.plan_name,
-      materialName: r.material_name,
-      startedAt: iso(r.started_at)!,
-      endedAt: iso(r.done_at ?? r.aborted_at)!,
-      outcome: r.aborted_at ? 'aborted' : 'done',
-      abortReason: r.abort_reason,
-      estimatedPrintHours: r.estimated_print_hours / r.print_time_scale_used,
-      actualPrintHours: r.actual_print_hours,
-      estimatedCoolingHours: r.estimated_cooling_hours * r.cooling_scale_used,
-      actualCoolingHours: r.actual_cooling_hours,
+      planId: r.planId,
+      planName: r.planName,
+      materialName: r.materialName,
+      startedAt: iso(r.startedAt)!,
+      endedAt: iso(r.doneAt ?? r.abortedAt)!,
+      outcome: r.abortedAt ? 'aborted' : 'done',
+      abortReason: r.abortReason,
+      estimatedPrintHours: r.estimatedPrintHours / r.printTimeScaleUsed,
+      actualPrintHours: r.actualPrintHours,
+      estimatedCoolingHours: r.estimatedCoolingHours * r.coolingScaleUsed,
+      actualCoolingHours: r.actualCoolingHours,
       printRatio: printRatio(forCalibration(r)),
       coolingRatio: coolingRatio(forCalibration(r)),
       coolingReadings: points.length,
@@ -179,12 +130,12 @@ export function calibrationService(db: Database) {
       usedInFit: used.has(r.id),
       defaultExclusion: byDefault,
       defaultExclusionText: byDefault ? EXCLUSION_TEXT[byDefault] : null,
-      choice: r.calibration_choice
+      choice: r.calibrationChoice
         ? {
-            choice: r.calibration_choice,
-            reason: r.calibration_reason ?? '',
-            by: r.calibration_by ? { id: r.calibration_by, name: r.calibration_by_name ?? '' } : null,
-            at: iso(r.calibration_at)!,
+            choice: r.calibrationChoice,
+            reason: r.calibrationReason ?? '',
+            by: r.calibrationBy ? { id: r.calibrationBy, name: r.calibrationByName ?? '' } : null,
+            at: iso(r.calibrationAt)!,
           }
         : null,
     };
@@ -216,13 +167,10 @@ export function calibrationService(db: Database) {
       if (input.choice === 'include') {
         const why = defaultExclusion(forCalibration(run));
         if (why === 'aborted' || why === 'incomplete') {
-          throw conflict('cannot_include', `"${run.plan_name}" cannot count: ${EXCLUSION_TEXT[why]}`, 'choice', { defaultExclusion: why });
+          throw conflict('cannot_include', `"${run.planName}" cannot count: ${EXCLUSION_TEXT[why]}`, 'choice', { defaultExclusion: why });
         }
       }
-      await sequelize.query(
-        `UPDATE runs SET calibration_choice = $2, calibration_reason = $3, calibration_by = $4, calibration_at = now(), updated_at = now() WHERE id = $1`,
-        { bind: [run.id, input.choice, input.reason, user.id] },
-      );
+      await repo.setChoice(run.id, input.choice, input.reason, user.id);
       return get(labId, machineId);
     },
   };

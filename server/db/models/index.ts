@@ -12,7 +12,7 @@ import { powderModels } from './powder';
  */
 export function initModels(sequelize: Sequelize) {
   const models = { ...accountModels(sequelize), ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize) };
-  const { Lab, Machine, Material, Part, Plan, Run, Layout, PlanLine, RequestLine } = models;
+  const { Lab, Machine, Material, Part, Plan, Run, Layout, PlanLine, RequestLine, User } = models;
   // Associations across the files above.
   Lab.hasMany(Machine, { foreignKey: 'labId', as: 'machines' });
   Lab.hasMany(Material, { foreignKey: 'labId', as: 'materials' });
@@ -23,6 +23,8 @@ export function initModels(sequelize: Sequelize) {
   PlanLine.belongsTo(RequestLine, { foreignKey: 'requestLineId', as: 'requestLine' });
   Run.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
   Run.belongsTo(Layout, { foreignKey: 'layoutId', as: 'layout' });
+  Run.belongsTo(Machine, { foreignKey: 'machineId', as: 'machine' });
+  Run.belongsTo(User, { foreignKey: 'calibrationBy', as: 'calibrator' });
   return models;
 }
 export type Models = ReturnType<typeof initModels>;

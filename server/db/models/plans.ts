@@ -1,6 +1,7 @@
 import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
 import type { PlanStatus } from '../../../shared/plans/status';
 import type { RequestLineRow } from './parts';
+import type { ProfileRow } from './accounts';
 
 export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAttributes<PlanRow>> {
   id: CreationOptional<string>;
@@ -17,6 +18,7 @@ export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAt
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
   lines?: NonAttribute<PlanLineRow[]>;
+  material?: NonAttribute<ProfileRow | null>;
 }
 
 export interface PlanLineRow extends Model<InferAttributes<PlanLineRow>, InferCreationAttributes<PlanLineRow>> {

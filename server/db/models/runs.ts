@@ -1,4 +1,6 @@
-import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type Sequelize } from 'sequelize';
+import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
+import type { PlanRow, LayoutRow } from './plans';
+import type { ProfileRow, UserRow } from './accounts';
 
 export interface RunRow extends Model<InferAttributes<RunRow>, InferCreationAttributes<RunRow>> {
   id: CreationOptional<string>;
@@ -35,6 +37,10 @@ export interface RunRow extends Model<InferAttributes<RunRow>, InferCreationAttr
   calibrationAt: CreationOptional<Date | null>;
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
+  plan?: NonAttribute<PlanRow>;
+  machine?: NonAttribute<ProfileRow>;
+  layout?: NonAttribute<LayoutRow | null>;
+  calibrator?: NonAttribute<UserRow | null>;
 }
 
 export interface RunReadingRow extends Model<InferAttributes<RunReadingRow>, InferCreationAttributes<RunReadingRow>> {
