@@ -13,7 +13,7 @@ import type { MeshQueueSettings } from './jobs/meshJobs';
 
 /** The job queue's settings from the configuration. */
 export function meshQueueSettings(config: Config): MeshQueueSettings {
-  return { queue: config.jobQueue, labConcurrency: config.meshLabConcurrency, expireSeconds: config.meshJobExpireSeconds, retryLimit: 2 };
+  return { queue: config.jobQueue, labConcurrency: config.meshLabConcurrency, expireSeconds: config.meshJobExpireSeconds, retryLimit: 2, retentionHours: config.jobRetentionHours };
 }
 
 export type Running = AppDeps & { app: ReturnType<typeof createApp>; close(): Promise<void> };

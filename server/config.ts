@@ -60,6 +60,8 @@ const envSchema = z.object({
   JOB_QUEUE: z.string().regex(/^[A-Za-z0-9_.-]{1,60}$/, 'letters, digits, "_", "-" and "." only').default('mesh-measure'),
   /** How long an upload waits for its files to be measured before answering 202 with the job to follow. */
   UPLOAD_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(5000),
+  /** Finished jobs (uploads' and layouts', with the queue's own records of them) are deleted this long after they finish. */
+  JOB_RETENTION_HOURS: z.coerce.number().int().min(1).max(24 * 365).default(168),
   /** How long keeping a layout waits for its parts to be sliced on the job queue before it is estimated by their boxes instead. */
   LAYOUT_SLICE_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(15_000),
   /** Where uploads are streamed while they are measured; removed after each request. */
@@ -118,6 +120,7 @@ export type Config = {
   jobQueue: string;
   uploadWaitMs: number;
   layoutSliceWaitMs: number;
+  jobRetentionHours: number;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -176,5 +179,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     jobQueue: e.JOB_QUEUE,
     uploadWaitMs: e.UPLOAD_WAIT_MS,
     layoutSliceWaitMs: e.LAYOUT_SLICE_WAIT_MS,
+    jobRetentionHours: e.JOB_RETENTION_HOURS,
   };
 }

@@ -48,6 +48,8 @@ export type MeshQueueSettings = {
   expireSeconds: number;
   /** Further attempts after a worker was lost (or failed) on a file. */
   retryLimit: number;
+  /** Finished jobs, and the queue's records of them, are deleted this long after they finish. */
+  retentionHours: number;
 };
 
 export const deadLetterQueue = (queue: string) => `${queue}-given-up`;
@@ -399,9 +401,38 @@ export function meshJobsService(deps: MeshJobsDeps) {
     if (stored) await afterFile(stored, false);
   }
 
+  /**
+   * Deletes the jobs finished longer ago than the retention (their file rows
+   * go with them; a finished job holds no file any more), and the queue's
+   * own records of this queue's finished work as old. Jobs still waiting or
+   * being measured are kept, however old.
+   */
+  async function prune(): Promise<{ jobs: number; queueRecords: number }> {
+    const hours = settings.retentionHours;
+    const [jobs] = await query<{ n: number }>(
+      `WITH gone AS (DELETE FROM mesh_jobs WHERE state IN ('done', 'failed') AND finished_at < now() - make_interval(hours => $1) RETURNING 1)
+       SELECT count(*)::int AS n FROM gone`,
+      [hours],
+    );
+    const names = [settings.queue, deadLetterQueue(settings.queue)];
+    const [records] = await query<{ n: number }>(
+      `WITH a AS (DELETE FROM pgboss.job WHERE name = ANY($2::text[]) AND state IN ('completed', 'failed', 'cancelled')
+                    AND completed_on < now() - make_interval(hours => $1) RETURNING 1),
+            b AS (DELETE FROM pgboss.archive WHERE name = ANY($2::text[]) AND archived_on < now() - make_interval(hours => $1) RETURNING 1)
+       SELECT (SELECT count(*) FROM a)::int + (SELECT count(*) FROM b)::int AS n`,
+      [hours, names],
+    );
+    return { jobs: jobs.n, queueRecords: records.n };
+  }
+  // Once a maintenance round of the queue (one process of the installation at a time).
+  boss.on('maintenance', () => {
+    prune().catch((err: Error) => log(`mesh jobs: pruning finished jobs failed: ${err.message}`));
+  });
+
   return {
     dispatch,
     dispatchAll,
+    prune,
 
     /**
      * Slices a layout on the queue, in the lab's turn like an upload's files,
