@@ -15,6 +15,7 @@ import { PlanFlags } from '../review/PlanFlags';
 import { setEditorTab, setHelpOpen, useEditorTab, type EditorTab } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, ErrorState, LoadingState, Notice, Text, TextInput } from '../ui';
+import { ReturnToDraft } from '../review/ReturnToDraft';
 import { BuildPane } from './BuildPane';
 import { ConflictDialog } from './ConflictDialog';
 import { STATUS_LABELS, STATUS_TONES } from './format';
@@ -107,7 +108,8 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
     <>
       {!plan.editable ? (
         <Notice tone="info" title={`${STATUS_LABELS[plan.status]}: read-only`} testID="plan-readonly">
-          {plan.status === 'in_review' ? 'A lead reviews the chosen layout; it can be changed again if they send it back.' : 'This plan can no longer be changed here.'}
+          <Text>{plan.status === 'in_review' ? 'A lead reviews the chosen layout; it can be changed again if they send it back.' : 'This plan can no longer be changed here.'}</Text>
+          <ReturnToDraft plan={plan} />
         </Notice>
       ) : null}
       {plan.editable && !e.canPlan ? <Notice tone="info">Only planners and leads change plans.</Notice> : null}

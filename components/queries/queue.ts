@@ -42,3 +42,14 @@ export function useReorderQueueMutation(labId: string, machineId: string) {
     onSettled: () => qc.invalidateQueries({ queryKey: key }),
   });
 }
+
+/** Puts the queue back in the order before a move the lead just made (the server allows it for a short while). */
+export function useUndoQueueMoveMutation(labId: string, machineId: string) {
+  const qc = useQueryClient();
+  const key = queueKeys.machine(labId, machineId);
+  return useMutation({
+    mutationFn: (moveId: string) => api(`/labs/${labId}/machines/${machineId}/queue/moves/${moveId}/undo`, { method: 'POST', body: {}, schema: queueViewSchema }),
+    onSuccess: (view) => qc.setQueryData(key, view),
+    onSettled: () => qc.invalidateQueries({ queryKey: key }),
+  });
+}

@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../api/client';
 import { planReviewedSchema, type PlanReviewed } from '../../shared/schemas/plans';
-import { planFlagsViewSchema } from '../../shared/schemas/review';
+import { planFlagsViewSchema, type ReturnToDraftInput } from '../../shared/schemas/review';
 import { planKeys } from './plans';
 import { queueKeys } from './queue';
 
@@ -33,5 +33,34 @@ export function useReviewMutation(labId: string, planId: string, machineId: stri
         qc.invalidateQueries({ queryKey: [...planKeys.all(labId), 'list'] }),
         machineId ? qc.invalidateQueries({ queryKey: queueKeys.machine(labId, machineId) }) : Promise.resolve(),
       ]),
+  });
+}
+
+/** Reads the plan, the plan lists and the machine's queue again after a plan moved. */
+function useAfterMove(labId: string, planId: string, machineId: string | undefined) {
+  const qc = useQueryClient();
+  return () =>
+    Promise.all([
+      qc.invalidateQueries({ queryKey: planKeys.one(labId, planId) }),
+      qc.invalidateQueries({ queryKey: [...planKeys.all(labId), 'list'] }),
+      machineId ? qc.invalidateQueries({ queryKey: queueKeys.machine(labId, machineId) }) : Promise.resolve(),
+    ]);
+}
+
+/** The lead who just approved a plan takes the approval back (the server allows it for a short while). */
+export function useUndoApprovalMutation(labId: string, planId: string, machineId: string | undefined) {
+  const after = useAfterMove(labId, planId, machineId);
+  return useMutation({
+    mutationFn: () => api(`/labs/${labId}/plans/${planId}/review/undo`, { method: 'POST', body: {}, schema: planReviewedSchema }),
+    onSettled: after,
+  });
+}
+
+/** An approved or queued plan back to draft, with the reason. */
+export function useReturnToDraftMutation(labId: string, planId: string, machineId: string | undefined) {
+  const after = useAfterMove(labId, planId, machineId);
+  return useMutation({
+    mutationFn: (input: ReturnToDraftInput) => api(`/labs/${labId}/plans/${planId}/return-to-draft`, { method: 'POST', body: input, schema: planReviewedSchema }),
+    onSettled: after,
   });
 }

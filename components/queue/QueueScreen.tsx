@@ -4,7 +4,8 @@ import { Pressable, StyleSheet, View } from 'react-native';
 import { isApiError } from '../api/client';
 import { useLab } from '../lab/useCurrentLab';
 import { useMachinesQuery } from '../queries/machines';
-import { useQueueQuery, useReorderQueueMutation } from '../queries/queue';
+import { useQueueQuery, useReorderQueueMutation, useUndoQueueMoveMutation } from '../queries/queue';
+import { UndoNotice } from '../review/UndoNotice';
 import { BuildFileLinks } from '../review/BuildFileLinks';
 import { calibrationNote } from '../review/calibration';
 import { colors, radius, spacing, useIsWide, type ColorName } from '../theme';
@@ -60,6 +61,7 @@ function MachineQueue({ machineId }: { machineId: string }) {
   const lab = useLab();
   const queue = useQueueQuery(lab.id, machineId);
   const reorder = useReorderQueueMutation(lab.id, machineId);
+  const undoMove = useUndoQueueMoveMutation(lab.id, machineId);
   const [showRuns, setShowRuns] = useState(false);
   if (queue.isPending) return <LoadingState label="Loading the queue…" />;
   if (queue.isError && !queue.data) return <ErrorState error={queue.error} onRetry={() => queue.refetch()} />;
@@ -69,6 +71,7 @@ function MachineQueue({ machineId }: { machineId: string }) {
   const canOrder = lab.isLead;
   const move = (from: number, to: number) => {
     if (!canOrder || reorder.isPending) return;
+    undoMove.reset();
     reorder.mutate(moved(ids, from, to));
   };
   // Every build still holding a chamber (two with a spare chamber: one printing, one cooling outside); older servers send only the one on the machine.
@@ -99,6 +102,24 @@ function MachineQueue({ machineId }: { machineId: string }) {
       {reorder.isError ? (
         <Notice tone="danger" title="The new order was not saved" testID="queue-reorder-error">
           {`${reorder.error.message}${isApiError(reorder.error) && reorder.error.status === 400 ? ' The queue is shown as the server has it.' : ''}`}
+        </Notice>
+      ) : null}
+      {reorder.isSuccess && reorder.data.move ? (
+        <UndoNotice
+          title="New order saved"
+          until={reorder.data.move.undoUntil}
+          undoLabel="Undo move"
+          onUndo={() => undoMove.mutate(reorder.data.move!.id, { onSuccess: () => reorder.reset() })}
+          pending={undoMove.isPending}
+          error={undoMove.error?.message}
+          testID="queue-moved"
+        >
+          The times below follow the new order.
+        </UndoNotice>
+      ) : null}
+      {undoMove.isSuccess ? (
+        <Notice tone="info" title="Move undone" testID="queue-move-undone">
+          The queue is back in the order before the move.
         </Notice>
       ) : null}
       {underWay.length > 0 || view.plans.length > 0 ? <Timeline underWay={underWay} plans={view.plans} nowIso={view.now} /> : null}

@@ -10,7 +10,7 @@ import { numbersFromEstimate } from '../plans/estimate';
 import { STATUS_TONES } from '../plans/format';
 import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
 import { useLayoutQuery, usePlanQuery } from '../queries/plans';
-import { useReviewMutation, type ReviewDecision } from '../queries/review';
+import { useReviewMutation, useUndoApprovalMutation, type ReviewDecision } from '../queries/review';
 import { colors, radius, spacing, useIsWide } from '../theme';
 import { Badge, Button, Card, ErrorState, Field, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
 import { formatDate } from '../ui/format';
@@ -20,6 +20,8 @@ import type { PlanView } from '../../shared/schemas/plans';
 import { BuildFileLinks } from './BuildFileLinks';
 import { calibrationNote } from './calibration';
 import { PlanFlags } from './PlanFlags';
+import { ReturnToDraft } from './ReturnToDraft';
+import { UndoNotice } from './UndoNotice';
 
 /** The lead's review of one plan: its chosen layout in 3D, its numbers, its lines and history, and the decision. */
 export function ReviewScreen({ planId }: { planId: string }) {
@@ -175,9 +177,10 @@ function partsFor(plan: PlanView): string {
 function Decision({ plan }: { plan: PlanView }) {
   const lab = useLab();
   const review = useReviewMutation(lab.id, plan.id, plan.machine.id);
+  const undo = useUndoApprovalMutation(lab.id, plan.id, plan.machine.id);
   const [comment, setComment] = useState('');
   const [commentError, setCommentError] = useState<string | null>(null);
-  const [done, setDone] = useState<{ decision: ReviewDecision; position?: number | null; notified: number } | null>(null);
+  const [done, setDone] = useState<{ decision: ReviewDecision; position?: number | null; notified: number; undoUntil?: string | null } | null>(null);
 
   const decide = (decision: ReviewDecision) => {
     setCommentError(null);
@@ -189,7 +192,8 @@ function Decision({ plan }: { plan: PlanView }) {
       { decision, ...(comment.trim() ? { comment: comment.trim() } : {}) },
       {
         onSuccess: (res) => {
-          setDone({ decision, position: res.queuePosition, notified: res.notified?.length ?? 0 });
+          setDone({ decision, position: res.queuePosition, notified: res.notified?.length ?? 0, undoUntil: res.undoUntil });
+          undo.reset();
           setComment('');
         },
         onError: (e) => {
@@ -208,15 +212,31 @@ function Decision({ plan }: { plan: PlanView }) {
     </Notice>
   ) : null;
 
+  const undone = undo.isSuccess ? (
+    <Notice tone="info" title="Approval undone" testID="review-undone">
+      The plan is out of the queue and waits for a decision again.
+    </Notice>
+  ) : null;
+
   if (plan.status !== 'in_review') {
     return (
       <Card title="Decision" testID="review-decided">
         {errorNotice}
-        {done ? (
-          <Notice tone="success" title={done.decision === 'approve' ? 'Approved and queued' : 'Sent back'} testID="review-result">
-            {done.decision === 'approve'
-              ? `The plan is number ${done.position ?? '–'} in the queue of ${plan.machine.name}.${told(done.notified)}`
-              : `The plan is editable again for the planner.${told(done.notified)}`}
+        {done && done.decision === 'approve' && (plan.status === 'queued' || plan.status === 'approved') ? (
+          <UndoNotice
+            title="Approved and queued"
+            until={done.undoUntil}
+            undoLabel="Undo approval"
+            onUndo={() => undo.mutate(undefined, { onSuccess: () => setDone(null) })}
+            pending={undo.isPending}
+            error={undo.error?.message}
+            testID="review-result"
+          >
+            {`The plan is number ${done.position ?? '–'} in the queue of ${plan.machine.name}.${told(done.notified)}`}
+          </UndoNotice>
+        ) : done && done.decision === 'changes_requested' ? (
+          <Notice tone="success" title="Sent back" testID="review-result">
+            {`The plan is editable again for the planner.${told(done.notified)}`}
           </Notice>
         ) : (
           <Text color="inkMuted">This plan is {STATUS_LABELS[plan.status].toLowerCase()}: there is nothing to decide.</Text>
@@ -229,6 +249,7 @@ function Decision({ plan }: { plan: PlanView }) {
               </Text>
             </LinkPressable>
             <BuildFileLinks labId={lab.id} planId={plan.id} testID="review-files" />
+            <ReturnToDraft plan={plan} />
           </View>
         ) : null}
       </Card>
@@ -237,6 +258,7 @@ function Decision({ plan }: { plan: PlanView }) {
 
   return (
     <Card title="Decision" subtitle="Approving puts the plan at the end of its machine's queue." testID="review-decision">
+      {undone}
       <Field
         label="Comment for the planner"
         hint="Required when sending back; kept in the plan's history."

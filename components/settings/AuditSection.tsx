@@ -18,6 +18,7 @@ const kindLabels: Record<AuditKind, string> = {
   part: 'Part',
   request: 'Request',
   plan: 'Plan',
+  queue: 'Queue order',
   run: 'Run',
   sign_in: 'Sign-in',
   account: 'Account',
@@ -35,6 +36,9 @@ const actionLabels: Record<string, string> = {
   reset_requested: 'asked for a password reset link',
   session_revoked: 'signed out one of their sessions',
   signed_out_everywhere: 'signed out everywhere',
+  returned_to_draft: 'returned to draft',
+  approval_undone: 'undid the approval of',
+  undone: 'undid',
 };
 
 const DAY = /^\d{4}-\d{2}-\d{2}$/;
@@ -63,6 +67,9 @@ export function describeEntry(e: AuditEntryView): string {
 function changedFields(e: AuditEntryView): Array<{ key: string; before?: string; after?: string }> {
   if (e.action === 'changed' && e.before && e.after) {
     return Object.keys(e.after).map((k) => ({ key: k, before: show(e.before![k]), after: show(e.after![k]) }));
+  }
+  if ((e.action === 'returned_to_draft' || e.action === 'approval_undone') && e.after) {
+    return Object.keys(e.after).map((k) => ({ key: k, after: show(e.after![k]) }));
   }
   return [];
 }
@@ -153,7 +160,7 @@ function AuditRow({ entry, wide }: { entry: AuditEntryView; wide: boolean }) {
         <Text variant="body">{describeEntry(entry)}</Text>
         {fields.map((f) => (
           <Text key={f.key} variant="caption" color="inkMuted">
-            {`${fieldName(f.key)}: ${f.before} → ${f.after}`}
+            {f.before === undefined ? `${fieldName(f.key)}: ${f.after}` : `${fieldName(f.key)}: ${f.before} → ${f.after}`}
           </Text>
         ))}
       </View>

@@ -8,7 +8,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
-import { allowedNext, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
+import { allowedNext, canTakeBack, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import type { LayoutSummaryView, PlanOrientationRule } from '../../shared/schemas/plans';
 
 export type Actor = { id: string; name: string; email?: string };
@@ -97,7 +97,8 @@ export async function lockPlan(db: Database, labId: string, planId: string, tran
 
 /**
  * Moves the plan to `to` if the status machine allows it, records who and
- * when, and bumps the version; returns the new version.
+ * when, and bumps the version; returns the new version. `takeBack` allows the
+ * moves that take a decision back (undo an approval, return to draft) instead.
  */
 export async function applyTransition(
   db: Database,
@@ -106,8 +107,9 @@ export async function applyTransition(
   userId: string | null,
   comment: string | null,
   transaction: Transaction,
+  opts: { takeBack?: boolean } = {},
 ): Promise<number> {
-  if (!canTransition(plan.status, to)) throw invalidTransition(plan.status, to);
+  if (!(opts.takeBack ? canTakeBack(plan.status, to) : canTransition(plan.status, to))) throw invalidTransition(plan.status, to);
   await recordEvent(db, plan.id, plan.status, to, userId, comment, transaction);
   const [rows] = (await db.sequelize.query(
     'UPDATE plans SET status = $2, version = version + 1, updated_at = now() WHERE id = $1 RETURNING version',

@@ -3,6 +3,7 @@ import type { Database } from '../db';
 import { AppError, notFound } from '../errors';
 import type { z } from 'zod';
 import type { Actor } from './planCommon';
+import { undoUntil } from './takeBack';
 import type { CalibrationService } from './calibration';
 import type { RunEstimate } from './runs';
 import { scheduleQueue, type CurrentRun, type PlanTimes, type QueuedPlan, type RunStage, type StageDurations } from '../../shared/schedule';
@@ -216,9 +217,9 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     },
 
     /** The lead's new order: exactly the machine's queued plans, each once. */
-    async reorder(labId: string, machineId: string, _user: Actor, input: z.infer<typeof queueOrderSchema>): Promise<QueueView> {
+    async reorder(labId: string, machineId: string, user: Actor, input: z.infer<typeof queueOrderSchema>): Promise<QueueView> {
       const machine = await machineRow(labId, machineId);
-      await sequelize.transaction(async (transaction) => {
+      const move = await sequelize.transaction(async (transaction) => {
         // The same lock approval takes, so a plan approved meanwhile is either in the list read here or after it.
         await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [machine.id], transaction });
         const rows = await sequelize.query<{ id: string; name: string }>(
@@ -249,8 +250,14 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
             { bind: [input.planIds], transaction },
           );
         }
+        // Kept with the order before it, so the lead can undo it for a short while (and the audit log shows it).
+        const [kept] = await sequelize.query<{ id: string; created_at: Date }>(
+          `INSERT INTO queue_moves (lab_id, machine_id, user_id, before_ids, after_ids) VALUES ($1, $2, $3, $4::uuid[], $5::uuid[]) RETURNING id, created_at`,
+          { bind: [labId, machine.id, user.id, rows.map((r) => r.id), input.planIds], type: QueryTypes.SELECT, transaction },
+        );
+        return kept;
       });
-      return get(labId, machineId);
+      return { ...(await get(labId, machineId)), move: { id: move.id, undoUntil: undoUntil(move.created_at) } };
     },
   };
 }

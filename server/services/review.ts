@@ -5,6 +5,7 @@ import type { PlansService } from './plans';
 import type { LabsService } from './labs';
 import { canTransition } from '../../shared/plans/status';
 import type { PlanReviewed, ReviewInput } from '../../shared/schemas/plans';
+import { undoUntil } from './takeBack';
 
 export type ReviewDeps = { plans: PlansService; appUrl: string; labs: LabsService };
 
@@ -46,7 +47,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
                                     ORDER BY e.created_at DESC LIMIT 1), $2)`,
           { bind: [plan.id, plan.created_by], type: QueryTypes.SELECT, transaction },
         );
-        return { plan, queuePosition, planner };
+        return { plan, queuePosition, planner, approvedAt: new Date() };
       });
       const { plan, queuePosition, planner } = done;
       let notified: string[] = [];
@@ -70,7 +71,14 @@ export function reviewService(db: Database, deps: ReviewDeps) {
                 [`${user.name} sent the build plan "${plan.name}" back with this comment:`, '', comment ?? '', '', 'Open it to make the changes and send it again:', link].join('\n'),
               );
       }
-      return { id: plan.id, status: plan.status, version: plan.version, queuePosition, notified };
+      return {
+        id: plan.id,
+        status: plan.status,
+        version: plan.version,
+        queuePosition,
+        notified,
+        undoUntil: input.decision === 'approve' ? undoUntil(done.approvedAt) : null,
+      };
     },
   };
 }

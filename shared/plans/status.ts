@@ -3,11 +3,19 @@
  * made it and when.
  *
  *   draft -> in_review -> approved -> queued -> printing -> cooling -> breakout -> finishing -> done
- *              |                                   |
- *              v                                   v
- *     changes_requested -> draft                 aborted (a print stopped at the machine)
+ *    ^ ^        |  ^         |  |       |  |         |
+ *    | |        v  '---------'--+-------'  |         v
+ *    | '- changes_requested     |  (undo)  |       aborted (a print stopped at the machine)
+ *    '--------------------------'----------'
+ *              (return to draft)
  *
  *   cancelled: from any state before printing.
+ *
+ * Taking a decision back is kept apart from the forward moves (the floor and
+ * the run steps never offer it): an approved or queued plan goes back to
+ * in_review when its approval is undone shortly after it was given, and to
+ * draft when a lead or planner returns it, with a reason. Neither is possible
+ * once printing has started.
  */
 export const PLAN_STATUSES = [
   'draft',
@@ -41,6 +49,16 @@ const NEXT: Record<PlanStatus, PlanStatus[]> = {
   cancelled: [],
   aborted: [],
 };
+
+/** Decisions taken back: undoing an approval (-> in_review) and returning a plan to draft. */
+const TAKE_BACK: Partial<Record<PlanStatus, PlanStatus[]>> = {
+  approved: ['in_review', 'draft'],
+  queued: ['in_review', 'draft'],
+};
+
+export function canTakeBack(from: PlanStatus, to: PlanStatus): boolean {
+  return TAKE_BACK[from]?.includes(to) ?? false;
+}
 
 export function allowedNext(from: PlanStatus): readonly PlanStatus[] {
   return NEXT[from];

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 
 /** What an audit entry is about: the lab's records, and members' sign-ins and account events. */
-export const AUDIT_KINDS = ['lab', 'member', 'invite', 'machine', 'material', 'part', 'request', 'plan', 'run', 'sign_in', 'account'] as const;
+export const AUDIT_KINDS = ['lab', 'member', 'invite', 'machine', 'material', 'part', 'request', 'plan', 'queue', 'run', 'sign_in', 'account'] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 
 const day = z

@@ -315,7 +315,8 @@ export const planCreatedSchema = z.object({ id: z.string(), version: z.number(),
 export const layoutCreatedSchema = z.object({ id: z.string(), label: z.string(), estimate: z.record(z.string(), z.unknown()) });
 export const layoutChosenSchema = z.object({ id: z.string(), chosenLayoutId: z.string().nullable(), version: z.number(), status: planStatusSchema });
 export const planMovedSchema = z.object({ id: z.string(), status: planStatusSchema, version: z.number(), notified: z.array(z.string()).optional() });
-export const planReviewedSchema = planMovedSchema.extend({ queuePosition: z.number().nullable().optional() });
+/** `undoUntil`: after an approval, until when the lead who gave it may undo it. */
+export const planReviewedSchema = planMovedSchema.extend({ queuePosition: z.number().nullable().optional(), undoUntil: z.string().nullable().optional() });
 export type PlanCreated = z.infer<typeof planCreatedSchema>;
 export type LayoutCreated = z.infer<typeof layoutCreatedSchema>;
 export type LayoutChosen = z.infer<typeof layoutChosenSchema>;

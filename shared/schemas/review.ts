@@ -18,3 +18,9 @@ export type PlanFlag = z.infer<typeof planFlagSchema>;
 
 export const planFlagsViewSchema = z.object({ planId: z.string(), flags: z.array(planFlagSchema) });
 export type PlanFlagsView = z.infer<typeof planFlagsViewSchema>;
+
+/** Returning an approved or queued plan to draft: the reason is kept in the plan's history and the audit log. */
+export const returnToDraftSchema = z.strictObject({
+  reason: z.string().trim().min(1, 'is required: say why the plan goes back to draft').max(2000, 'must be at most 2,000 characters'),
+});
+export type ReturnToDraftInput = z.infer<typeof returnToDraftSchema>;

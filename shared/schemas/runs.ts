@@ -280,5 +280,7 @@ export const queueViewSchema = z.object({
   /** Every started build that still holds a chamber (printing, cooling or in breakout), latest started first. */
   active: z.array(queueItemViewSchema),
   plans: z.array(queueItemViewSchema),
+  /** After a reorder: the move just made, which its lead may undo until `undoUntil`. */
+  move: z.object({ id: z.string(), undoUntil: z.string() }).optional(),
 });
 export type QueueView = z.infer<typeof queueViewSchema>;

@@ -79,3 +79,65 @@ test("on a wide screen a lead lowers the lab's minimum density under Rules and t
   await screenshot(page, 'review-flags-plan-wide');
   await page.context().close();
 });
+
+test('a lead undoes an approval within its countdown, then returns the re-approved plan to draft with a reason', async () => {
+  const lab = await sentForReview(fixtures, 'review-undo', 2);
+  await lab.agent.post(`/api/labs/${lab.labId}/plans/${lab.ids[1]}/review`).send({ decision: 'approve' });
+  const page = await newPage(served, WIDE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/review/${lab.ids[0]}`);
+  await page.getByTestId('review-approve').click();
+  const undo = page.getByTestId('review-result-undo');
+  await undo.waitFor();
+  expect(await undo.innerText()).toMatch(/Undo approval \(\d:\d\d\)/);
+  await screenshot(page, 'review-undo-approval-wide');
+  await undo.click();
+  await page.getByTestId('review-undone').waitFor();
+  await page.getByTestId('review-status').getByText('In review').waitFor();
+
+  // Approved again, then taken back to draft: the reason is asked for first and lands in the history.
+  await page.getByTestId('review-approve').click();
+  await page.getByTestId('return-to-draft').click();
+  await page.getByTestId('return-to-draft-confirm').click();
+  await page.getByText('The reason is required: say why the plan goes back to draft.').waitFor();
+  await page.getByTestId('return-to-draft-reason').fill('The gears need a finer pitch');
+  await screenshot(page, 'review-return-to-draft-wide');
+  await page.getByTestId('return-to-draft-confirm').click();
+  await page.getByTestId('review-status').getByText('Draft').waitFor();
+  await page.getByTestId('review-history').getByText('The gears need a finer pitch').waitFor();
+
+  expect((await lab.agent.get(`/api/labs/${lab.labId}/plans/${lab.ids[0]}`)).body.queuePosition).toBeNull();
+  await page.context().close();
+});
+
+test('on a phone the undo countdown and the return to draft fit the screen', async () => {
+  const lab = await sentForReview(fixtures, 'review-undo-phone', 2);
+  const base = `/api/labs/${lab.labId}/plans`;
+  await lab.agent.post(`${base}/${lab.ids[1]}/review`).send({ decision: 'approve' });
+  const page = await newPage(served, PHONE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/review/${lab.ids[0]}`);
+  await page.getByTestId('review-approve').click();
+  const undo = page.getByTestId('review-result-undo');
+  await undo.waitFor();
+  await undo.scrollIntoViewIfNeeded();
+  const box = await page.getByTestId('review-result').boundingBox();
+  expect(box!.x + box!.width).toBeLessThanOrEqual(PHONE.width);
+  await screenshot(page, 'review-undo-approval-phone');
+
+  // The queue on a phone: move the new plan up, undo it.
+  await page.goto(`/queue?machine=${lab.machineId}`);
+  await page.getByTestId('queue-item-1').waitFor();
+  expect(await page.getByTestId('queue-item-1-name').textContent()).toBe('Plan 1');
+  await page.getByTestId('queue-up-1').click();
+  await page.getByTestId('queue-moved-undo').waitFor();
+  await page.getByTestId('queue-item-0-name').getByText('Plan 1').waitFor();
+  await page.getByTestId('queue-moved').scrollIntoViewIfNeeded();
+  await screenshot(page, 'queue-undo-move-phone');
+  await page.getByTestId('queue-moved-undo').click();
+  await page.getByTestId('queue-move-undone').waitFor();
+  await page.getByTestId('queue-item-0-name').getByText('Plan 2').waitFor();
+  const order = (await lab.agent.get(`/api/labs/${lab.labId}/machines/${lab.machineId}/queue`)).body.plans.map((p: { name: string }) => p.name);
+  expect(order).toEqual(['Plan 2', 'Plan 1']);
+  await page.context().close();
+});

@@ -13,6 +13,7 @@ import * as m0011 from './0011-part-thumbnails';
 import * as m0012 from './0012-lab-currency';
 import * as m0013 from './0013-lab-density-rule';
 import * as m0014 from './0014-mesh-job-tasks';
+import * as m0015 from './0015-queue-moves';
 
 export type Migration = {
   name: string;
@@ -36,4 +37,5 @@ export const migrations: Migration[] = [
   { name: '0012-lab-currency', ...m0012 },
   { name: '0013-lab-density-rule', ...m0013 },
   { name: '0014-mesh-job-tasks', ...m0014 },
+  { name: '0015-queue-moves', ...m0015 },
 ];

@@ -16,12 +16,14 @@ import type { PlansService } from '../../services/plans';
 import type { LayoutsService } from '../../services/layouts';
 import type { ReviewService } from '../../services/review';
 import type { ReviewFlagsService } from '../../services/reviewFlags';
+import type { TakeBackService } from '../../services/takeBack';
+import { returnToDraftSchema } from '../../../shared/schemas/review';
 import type { LabsService } from '../../services/labs';
 
-export type PlanRouteDeps = { labs: LabsService; plans: PlansService; layouts: LayoutsService; review: ReviewService; reviewFlags: ReviewFlagsService };
+export type PlanRouteDeps = { labs: LabsService; plans: PlansService; layouts: LayoutsService; review: ReviewService; reviewFlags: ReviewFlagsService; takeBack: TakeBackService };
 
 /** Build plans, their layouts, sending for review, the lead's decision and cancelling. */
-export function planRoutes({ labs, plans, layouts, review, reviewFlags }: PlanRouteDeps): Router {
+export function planRoutes({ labs, plans, layouts, review, reviewFlags, takeBack }: PlanRouteDeps): Router {
   const r = Router();
   const member = labAccess(labs);
   const planner = labAccess(labs, ['planner', 'lead']);
@@ -36,6 +38,7 @@ export function planRoutes({ labs, plans, layouts, review, reviewFlags }: PlanRo
   const layoutPatch = validate(layoutPatchSchema);
   const decision = validate(reviewSchema);
   const withComment = validate(planCommentSchema);
+  const withReason = validate(returnToDraftSchema);
   const comment = (req: Parameters<typeof withComment.input>[0]) => withComment.input(req).comment || null;
 
   r.get(base, member, listQuery, async (req, res) => {
@@ -86,6 +89,14 @@ export function planRoutes({ labs, plans, layouts, review, reviewFlags }: PlanRo
   r.post(`${base}/:planId/review`, lead, decision, async (req, res) => {
     const { labId, user } = requireLab(req);
     res.json(await review.review(labId, p(req, 'planId'), user, decision.input(req)));
+  });
+  r.post(`${base}/:planId/review/undo`, lead, async (req, res) => {
+    const { labId, user } = requireLab(req);
+    res.json(await takeBack.undoApproval(labId, p(req, 'planId'), user));
+  });
+  r.post(`${base}/:planId/return-to-draft`, planner, withReason, async (req, res) => {
+    const { labId, user } = requireLab(req);
+    res.json(await takeBack.returnToDraft(labId, p(req, 'planId'), user, withReason.input(req).reason));
   });
   r.post(`${base}/:planId/cancel`, planner, withComment, async (req, res) => {
     const { labId, user } = requireLab(req);

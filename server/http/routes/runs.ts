@@ -3,6 +3,7 @@ import { labAccess } from '../middleware/auth';
 import { requireLab } from '../context';
 import type { LabsService } from '../../services/labs';
 import type { QueueService } from '../../services/queue';
+import type { TakeBackService } from '../../services/takeBack';
 import type { RunsService } from '../../services/runs';
 import type { CalibrationService } from '../../services/calibration';
 import type { SheetService } from '../../services/sheet';
@@ -29,6 +30,7 @@ export type RunRouteDeps = {
   calibration: CalibrationService;
   sheet: SheetService;
   export3mf: Export3mfService;
+  takeBack: TakeBackService;
 };
 
 /** A file name for Content-Disposition: the plan's name in plain characters. */
@@ -44,7 +46,7 @@ function stageInput(to: PlanStatus, body: unknown): AdvanceInput {
 }
 
 /** Machine queues, runs at the machine, calibration, and the build sheet and build file of a plan. */
-export function runRoutes({ labs, queue, runs, calibration, sheet, export3mf }: RunRouteDeps): Router {
+export function runRoutes({ labs, queue, runs, calibration, sheet, export3mf, takeBack }: RunRouteDeps): Router {
   const r = Router();
   const member = labAccess(labs);
   const lead = labAccess(labs, ['lead']);
@@ -64,6 +66,11 @@ export function runRoutes({ labs, queue, runs, calibration, sheet, export3mf }: 
   r.put(`${machine}/queue`, lead, order, async (req, res) => {
     const { labId, user } = requireLab(req);
     res.json(await queue.reorder(labId, p(req, 'machineId'), user, order.input(req)));
+  });
+  r.post(`${machine}/queue/moves/:moveId/undo`, lead, async (req, res) => {
+    const { labId, user } = requireLab(req);
+    await takeBack.undoQueueMove(labId, p(req, 'machineId'), p(req, 'moveId'), user);
+    res.json(await queue.get(labId, p(req, 'machineId')));
   });
   r.get(`${machine}/calibration`, member, async (req, res) => {
     res.json(await calibration.get(requireLab(req).labId, p(req, 'machineId')));

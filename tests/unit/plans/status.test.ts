@@ -1,4 +1,4 @@
-import { allowedNext, canTransition, isBeforePrinting, PLAN_STATUSES } from '../../../shared/plans/status';
+import { allowedNext, canTakeBack, canTransition, isBeforePrinting, PLAN_STATUSES } from '../../../shared/plans/status';
 
 describe('plan statuses', () => {
   test('the happy path runs from draft to done one step at a time', () => {
@@ -23,6 +23,16 @@ describe('plan statuses', () => {
     expect(canTransition('queued', 'cooling')).toBe(false);
     expect(canTransition('printing', 'breakout')).toBe(false);
     expect(canTransition('breakout', 'done')).toBe(false);
+  });
+
+  test('an approval can be taken back (to review or to draft) only from approved or queued, and the machine never offers it', () => {
+    for (const s of PLAN_STATUSES) {
+      const back = s === 'approved' || s === 'queued';
+      expect(canTakeBack(s, 'in_review')).toBe(back);
+      expect(canTakeBack(s, 'draft')).toBe(back);
+    }
+    expect(allowedNext('queued')).toEqual(['printing', 'cancelled']);
+    expect(canTransition('queued', 'draft')).toBe(false);
   });
 
   test('finished states have no way out', () => {

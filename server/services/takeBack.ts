@@ -1,0 +1,130 @@
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Database } from '../db';
+import { AppError, conflict, forbidden, notFound } from '../errors';
+import { applyTransition, invalidTransition, lockPlan, type Actor, type PlanRow } from './planCommon';
+import { canTakeBack, STATUS_LABELS } from '../../shared/plans/status';
+import type { PlanReviewed } from '../../shared/schemas/plans';
+
+/** How long after approving a plan or moving the queue the lead who did it may undo it. After that, return the plan to draft. */
+export const UNDO_WINDOW_MS = 2 * 60_000;
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+function windowPassed(what: string, ageMs: number, instead: string): AppError {
+  const ago = ageMs < 120_000 ? `${Math.round(ageMs / 1000)} s` : `${Math.round(ageMs / 60_000)} min`;
+  return conflict(
+    'undo_window_passed',
+    `${what} was made ${ago} ago; it can be undone only within ${UNDO_WINDOW_MS / 60_000} minutes of it. ${instead}`,
+    undefined,
+    { windowMs: UNDO_WINDOW_MS, ageMs: Math.round(ageMs) },
+  );
+}
+
+export const undoUntil = (at: Date | string) => new Date(new Date(at).getTime() + UNDO_WINDOW_MS).toISOString();
+
+/**
+ * Taking decisions back: undoing an approval or a queue move shortly after it
+ * (the window is the server's, {@link UNDO_WINDOW_MS}, counted by the
+ * database's clock), and returning an approved or queued plan to draft, with
+ * a reason, at any time before printing. Each is recorded in the plan's
+ * history and in the lab's audit log.
+ */
+export function takeBackService(db: Database) {
+  const { sequelize } = db;
+
+  /** Takes the plan out of its machine's queue; those behind it move up one place. */
+  async function leaveQueue(plan: PlanRow, transaction: Transaction): Promise<void> {
+    await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [plan.machine_id], transaction });
+    if (plan.queue_position != null) {
+      await sequelize.query(
+        `UPDATE plans SET queue_position = queue_position - 1 WHERE machine_id = $1 AND status = 'queued' AND queue_position > $2 AND id <> $3`,
+        { bind: [plan.machine_id, plan.queue_position, plan.id], transaction },
+      );
+    }
+    await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [plan.id], transaction });
+  }
+
+  async function recordAudit(plan: PlanRow, actorId: string, action: string, after: Record<string, unknown>, transaction: Transaction) {
+    await sequelize.query(
+      `INSERT INTO audit_log (lab_id, actor_id, kind, action, target_id, target_label, after) VALUES ($1, $2, 'plan', $3, $4, $5, $6::jsonb)`,
+      { bind: [plan.lab_id, actorId, action, plan.id, plan.name, JSON.stringify(after)], transaction },
+    );
+  }
+
+  return {
+    /** The lead who approved a plan puts it back in review, within the window; it leaves the queue. */
+    async undoApproval(labId: string, planId: string, user: Actor): Promise<PlanReviewed> {
+      return sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!canTakeBack(plan.status, 'in_review')) throw invalidTransition(plan.status, 'in_review');
+        const [approval] = await sequelize.query<{ user_id: string | null; created_at: Date; age_ms: number }>(
+          `SELECT user_id, created_at, EXTRACT(EPOCH FROM (clock_timestamp() - created_at)) * 1000 AS age_ms
+             FROM plan_events WHERE plan_id = $1 AND to_status = 'approved' ORDER BY created_at DESC LIMIT 1`,
+          { bind: [plan.id], type: QueryTypes.SELECT, transaction },
+        );
+        if (!approval) throw conflict('not_approved', 'This plan has no approval to undo.');
+        if (approval.user_id !== user.id) {
+          throw forbidden('Only the lead who approved this plan can undo the approval; another member can return it to draft, with a reason.');
+        }
+        const age = Number(approval.age_ms);
+        if (age > UNDO_WINDOW_MS) throw windowPassed('The approval', age, 'Return the plan to draft instead, with a reason.');
+        const from = plan.status;
+        await leaveQueue(plan, transaction);
+        const version = await applyTransition(db, plan, 'in_review', user.id, 'Approval undone', transaction, { takeBack: true });
+        await recordAudit(plan, user.id, 'approval_undone', { status: 'in_review', from }, transaction);
+        return { id: plan.id, status: plan.status, version, queuePosition: null };
+      });
+    },
+
+    /** An approved or queued plan back to draft, before printing, with the reason kept in its history. */
+    async returnToDraft(labId: string, planId: string, user: Actor, reason: string): Promise<PlanReviewed> {
+      return sequelize.transaction(async (transaction) => {
+        const plan = await lockPlan(db, labId, planId, transaction);
+        if (!canTakeBack(plan.status, 'draft')) {
+          throw conflict(
+            'invalid_transition',
+            `A plan that is ${STATUS_LABELS[plan.status].toLowerCase()} cannot be returned to draft: only approved or queued plans can, before printing starts.`,
+            undefined,
+            { status: plan.status, allowed: [] },
+          );
+        }
+        const from = plan.status;
+        await leaveQueue(plan, transaction);
+        const version = await applyTransition(db, plan, 'draft', user.id, reason, transaction, { takeBack: true });
+        await recordAudit(plan, user.id, 'returned_to_draft', { status: 'draft', from, reason }, transaction);
+        return { id: plan.id, status: plan.status, version, queuePosition: null };
+      });
+    },
+
+    /** Puts a machine's queue back in the order before a move, if the lead who made it asks within the window and nothing changed since. */
+    async undoQueueMove(labId: string, machineId: string, moveId: string, user: Actor): Promise<void> {
+      if (!UUID.test(moveId) || !UUID.test(machineId)) throw notFound('That queue move');
+      await sequelize.transaction(async (transaction) => {
+        await sequelize.query('SELECT id FROM machines WHERE id = $1 AND lab_id = $2 FOR UPDATE', { bind: [machineId, labId], transaction });
+        const [move] = await sequelize.query<{ id: string; user_id: string | null; before_ids: string[]; after_ids: string[]; undone_at: Date | null; age_ms: number }>(
+          `SELECT id, user_id, before_ids, after_ids, undone_at, EXTRACT(EPOCH FROM (clock_timestamp() - created_at)) * 1000 AS age_ms
+             FROM queue_moves WHERE id = $1 AND machine_id = $2 AND lab_id = $3 FOR UPDATE`,
+          { bind: [moveId, machineId, labId], type: QueryTypes.SELECT, transaction },
+        );
+        if (!move) throw notFound('That queue move');
+        if (move.user_id !== user.id) throw forbidden('Only the lead who moved the queue can undo that move; reorder it again instead.');
+        if (move.undone_at) throw conflict('already_undone', 'This queue move was already undone.');
+        const age = Number(move.age_ms);
+        if (age > UNDO_WINDOW_MS) throw windowPassed('The queue move', age, 'Reorder the queue again instead.');
+        const now = await sequelize.query<{ id: string }>(
+          `SELECT id FROM plans WHERE machine_id = $1 AND lab_id = $2 AND status = 'queued' ORDER BY queue_position FOR UPDATE`,
+          { bind: [machineId, labId], type: QueryTypes.SELECT, transaction },
+        );
+        if (now.map((r) => r.id).join(',') !== move.after_ids.join(',')) {
+          throw conflict('queue_changed', 'The queue has changed since that move (a plan was approved, started, reordered or taken out), so it cannot be undone; reorder it again instead.');
+        }
+        await sequelize.query(
+          `UPDATE plans p SET queue_position = o.pos, updated_at = now() FROM unnest($1::uuid[]) WITH ORDINALITY AS o(id, pos) WHERE p.id = o.id`,
+          { bind: [move.before_ids], transaction },
+        );
+        await sequelize.query('UPDATE queue_moves SET undone_at = now() WHERE id = $1', { bind: [move.id], transaction });
+      });
+    },
+  };
+}
+export type TakeBackService = ReturnType<typeof takeBackService>;
