@@ -4,9 +4,12 @@
  *  - BR1-BR3 container loading (Bischoff & Ratcliff, Omega 23(4), 1995), max-volume, no spacing;
  *  - BR1-BR3 as strip packing (base 587 x 233, height open): used volume / (base x height);
  *  - generated powder-bed builds (min-height, 3 mm spacing): height / lower bound;
- *  - the time of the first valid layout as builds grow, and peak memory.
+ *  - the time of the first valid layout as builds grow, and peak memory;
+ *  - concave mixes (brackets, channels, open housings, clips, rings, small solids) packed by box and by
+ *    shape at the same spacing and time: heights, their ratio, packing density, the first shape layout.
  * Options: --problems N (per BR set, default 10), --ms T (our time per instance, default 2000),
- * --slow (also binpackingjs on 2,000 parts: one fill takes minutes).
+ * --slow (also binpackingjs on 2,000 parts: one fill takes minutes), --shapes (only the concave mixes),
+ * --shape-ms T (time per concave mix and fit, default 10000).
  */
 import { execSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
@@ -15,14 +18,20 @@ import { join } from 'node:path';
 import { pack3D, RotationType } from 'binpackingjs/3d';
 import {
   createPacking,
+  createPackingV2,
   createRandom,
+  generateShapeMix,
+  shapeParts,
+  validateShapeLayout,
   generatePowderBed,
   lowerBound,
   parseBischoffRatcliff,
   validateLayout,
   type Orientation,
   type PackInstance,
+  type PackInstanceV2,
   type PackResult,
+  type PackResultV2,
 } from '../shared/packing';
 
 const arg = (name: string, fallback: number) => {
@@ -33,6 +42,8 @@ const PROBLEMS = arg('problems', 10);
 const MS = arg('ms', 2000);
 /** binpackingjs on 2,000 parts takes minutes for one fill: only with --slow. */
 const SLOW = process.argv.includes('--slow');
+const SHAPES_ONLY = process.argv.includes('--shapes');
+const SHAPE_MS = arg('shape-ms', 10_000);
 
 let peakRss = 0;
 let peakHeap = 0;
@@ -163,9 +174,95 @@ function machine(): string {
   return `node ${process.version}, ${nproc} CPUs (nproc), ${model}`;
 }
 
+interface V2Run {
+  result: PackResultV2;
+  firstLayoutMs: number;
+  wallMs: number;
+}
+
+function oursV2(instance: PackInstanceV2): V2Run {
+  let firstLayoutMs = -1;
+  const t0 = performance.now();
+  let lastSample = 0;
+  const result = createPackingV2(instance).runSync({
+    onProgress(_phase, _share, best) {
+      const t = performance.now() - t0;
+      if (best && firstLayoutMs < 0) firstLayoutMs = t;
+      if (t - lastSample > 100) {
+        lastSample = t;
+        sampleMemory();
+      }
+    },
+  });
+  sampleMemory();
+  return { result, firstLayoutMs, wallMs: performance.now() - t0 };
+}
+
+/**
+ * Concave mixes packed by box and by shape, same instance, spacing and time. Every shape layout is checked
+ * against the meshes (surface gaps, containment, lift-out order) by the validator, apart from the engine's run.
+ * Density: the parts' mesh volume over the cake (usable base x height above the floor margin).
+ */
+function shapeSection(): void {
+  const rows: Array<Array<string | number>> = [];
+  const runs: Array<[number, number[]]> = [
+    [100, [1, 2, 3]],
+    [300, [1, 2, 3]],
+    [500, [1, 2, 3]],
+    [2000, [1]],
+  ];
+  for (const [count, seeds] of runs) {
+    const ratio: number[] = [];
+    const boxDensity: number[] = [];
+    const shapeDensity: number[] = [];
+    const first: number[] = [];
+    const boxH: number[] = [];
+    const shapeH: number[] = [];
+    let invalid = 0;
+    let unplaced = 0;
+    for (const seed of seeds) {
+      const chamber: [number, number, number] = count > 500 ? [400, 400, 700] : [300, 300, 380];
+      const byBox = oursV2(generateShapeMix({ parts: count, seed, chamber, fit: 'box', timeLimitMs: SHAPE_MS }));
+      const instance = generateShapeMix({ parts: count, seed, chamber, fit: 'shape', timeLimitMs: SHAPE_MS });
+      const byShape = oursV2(instance);
+      if (validateShapeLayout(instance, byShape.result, shapeParts(instance)).length > 0) invalid++;
+      unplaced += byShape.result.unplaced.reduce((n, u) => n + u.count, 0) + byBox.result.unplaced.reduce((n, u) => n + u.count, 0);
+      boxH.push(byBox.result.height);
+      shapeH.push(byShape.result.height);
+      ratio.push(byShape.result.height / byBox.result.height);
+      boxDensity.push(byBox.result.utilization);
+      shapeDensity.push(byShape.result.utilization);
+      first.push(byShape.firstLayoutMs);
+    }
+    rows.push([
+      count,
+      seeds.length,
+      `${mean(boxH).toFixed(1)} mm`,
+      `${mean(shapeH).toFixed(1)} mm`,
+      mean(ratio).toFixed(3),
+      Math.max(...ratio).toFixed(3),
+      `${pct(mean(boxDensity))} / ${pct(mean(shapeDensity))}`,
+      `${(mean(first) / 1000).toFixed(1)} s / ${(Math.max(...first) / 1000).toFixed(1)} s`,
+      unplaced,
+      invalid,
+    ]);
+  }
+  console.log(`\n## Concave mixes by box and by shape (3 mm spacing, ${SHAPE_MS} ms each; 300 x 300 x 380 chamber, 400 x 400 x 700 for 2,000 parts)\n`);
+  console.log(
+    table(['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'density box / shape', 'first shape layout mean / worst', 'unplaced', 'invalid'], rows),
+  );
+}
+
 function main(): void {
   const started = performance.now();
   console.log(`# Packing benchmark\n\nMachine: ${machine()}\nOur time limit: ${MS} ms per instance; BR sample: the first ${PROBLEMS} problems of each set.\n`);
+  if (SHAPES_ONLY) {
+    shapeSection();
+    sampleMemory();
+    console.log(`\nPeak memory: rss ${(peakRss / 1048576).toFixed(0)} MB, heapUsed ${(peakHeap / 1048576).toFixed(0)} MB`);
+    console.log(`Total benchmark time: ${((performance.now() - started) / 1000).toFixed(0)} s`);
+    return;
+  }
 
   // 1. Container loading.
   const brDir = join(__dirname, '..', 'tests', 'unit', 'packing', 'fixtures');
@@ -274,6 +371,8 @@ function main(): void {
   }
   console.log('\n## Time to the first valid layout (3 seeds; the last row: 5,000 parts of distinct sizes, one run)\n');
   console.log(table(['parts', 'mean', 'worst'], growth));
+
+  shapeSection();
 
   sampleMemory();
   console.log(`\nPeak memory: rss ${(peakRss / 1048576).toFixed(0)} MB, heapUsed ${(peakHeap / 1048576).toFixed(0)} MB`);
