@@ -1,6 +1,7 @@
 /**
- * The plan editor: lines on the left, the chamber in 3D in the centre, the
- * numbers and the layouts on the right (tabs on a phone). This file lays the
+ * The plan editor: lines on the left, the chamber in 3D taking the rest of a
+ * wide screen with the numbers and the layouts under it (or, on demand, in a
+ * column beside it); tabs on a phone. This file lays the
  * panes out; what they show and do comes from usePlanEditor (the draft, the
  * packing session, the layout shown, the actions on the server), whose pure
  * rules are in editorModel.ts.
@@ -12,7 +13,7 @@ import { useLab } from '../lab/useCurrentLab';
 import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { usePlanQuery } from '../queries/plans';
 import { PlanFlags } from '../review/PlanFlags';
-import { setEditorTab, setHelpOpen, useEditorTab, type EditorTab } from '../stores/planEditor';
+import { setEditorTab, setHelpOpen, setNumbersBeside, useEditorTab, useNumbersBeside, type EditorTab } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, ErrorState, LoadingState, Notice, Text, TextInput } from '../ui';
 import { ReturnToDraft } from '../review/ReturnToDraft';
@@ -51,9 +52,11 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
   const { width, height } = useWindowDimensions();
   const wide = width >= THREE_PANES_PX;
   const tab = useEditorTab();
+  const beside = useNumbersBeside();
 
   const linesPane = <LinesPane {...e.linesPane} />;
-  const buildHeight = wide ? undefined : Math.max(360, Math.round(height * 0.62));
+  // Under the 3D view, the numbers start just above the bottom of a wide screen, so they are seen to be there.
+  const buildHeight = wide ? (beside ? undefined : Math.max(420, height - 240)) : Math.max(360, Math.round(height * 0.62));
   const buildPane = <BuildPane ref={e.chamberRef} {...e.buildPane} heightPx={buildHeight} />;
   const numbersPane = <NumbersPane {...e.numbersPane} />;
   const powderPane = <PlanPowderPanel planId={planId} freshKg={e.shownNumbers?.freshKg} reusedKg={e.shownNumbers?.reusedKg} layoutLabel={e.shownLabel} />;
@@ -93,6 +96,15 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
       {e.dirty ? <Badge label="Unsaved changes" tone="amber" testID="plan-dirty" /> : null}
       {wide ? null : titleBox}
       <View style={styles.headerActions}>
+        {wide ? (
+          <Button
+            label={beside ? 'Numbers under the 3D view' : 'Numbers beside the 3D view'}
+            variant="ghost"
+            size="sm"
+            onPress={() => setNumbersBeside(!beside)}
+            testID="plan-numbers-place"
+          />
+        ) : null}
         {e.hasKeys && wide ? <Button label="Shortcuts (?)" variant="ghost" size="sm" onPress={() => setHelpOpen(true)} testID="plan-shortcuts" /> : null}
         {editable ? (
           <>
@@ -154,13 +166,31 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
           <ScrollView style={styles.left} contentContainerStyle={styles.paneContent}>
             {linesPane}
           </ScrollView>
-          <View style={styles.centre}>{buildPane}</View>
-          <ScrollView style={styles.right} contentContainerStyle={styles.paneContent}>
-            {numbersPane}
-            {powderPane}
-            {layoutsPane}
-            {historyPane}
-          </ScrollView>
+          {beside ? (
+            <>
+              <View style={styles.centre}>{buildPane}</View>
+              <ScrollView style={styles.right} contentContainerStyle={styles.paneContent} testID="plan-numbers-beside">
+                {numbersPane}
+                {powderPane}
+                {layoutsPane}
+                {historyPane}
+              </ScrollView>
+            </>
+          ) : (
+            <ScrollView style={styles.centre} contentContainerStyle={styles.paneContent} testID="plan-numbers-under">
+              {buildPane}
+              <View style={styles.under}>
+                <View style={styles.underColumn}>
+                  {numbersPane}
+                  {powderPane}
+                </View>
+                <View style={styles.underColumn}>
+                  {layoutsPane}
+                  {historyPane}
+                </View>
+              </View>
+            </ScrollView>
+          )}
         </View>
         {sheets}
         {e.chamberLoaders}
@@ -206,6 +236,8 @@ const styles = StyleSheet.create({
   left: { width: 330, flexGrow: 0 },
   centre: { flex: 1, minWidth: 0 },
   right: { width: 420, flexGrow: 0 },
+  under: { flexDirection: 'row', flexWrap: 'wrap', gap: spacing.md, alignItems: 'flex-start' },
+  underColumn: { flexGrow: 1, flexShrink: 1, flexBasis: 360, gap: spacing.md },
   paneContent: { gap: spacing.md, paddingBottom: spacing.xl },
   phoneContent: { gap: spacing.md, paddingBottom: spacing.xxxl },
   tabs: { flexDirection: 'row', gap: spacing.xs, flexWrap: 'wrap' },

@@ -1,12 +1,13 @@
 /** The editor's keyboard shortcuts on the web, as the help sheet lists them. */
-export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'help';
+export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'frame' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'help';
 
 export const SHORTCUTS: { keys: string[]; action: ShortcutAction; label: string }[] = [
   { keys: ['P'], action: 'pack', label: 'Pack the plan (again) with the packing options' },
   { keys: ['Esc'], action: 'cancel', label: 'Stop packing and keep the best layout so far; close a sheet' },
   { keys: ['S', 'Ctrl S'], action: 'save', label: 'Save the plan' },
   { keys: ['K'], action: 'keep', label: 'Keep the layout being shown as a new layout' },
-  { keys: ['0', 'F'], action: 'fit', label: 'Fit the whole chamber in view' },
+  { keys: ['0', 'F'], action: 'fit', label: 'Three-quarter view of the parts (or of the chamber when it is framed)' },
+  { keys: ['C'], action: 'frame', label: 'Frame the whole chamber, or the parts again' },
   { keys: ['1'], action: 'top', label: 'Look down the build direction' },
   { keys: ['2'], action: 'front', label: 'Look at the chamber from the front' },
   { keys: ['3'], action: 'side', label: 'Look at the chamber from the side' },
@@ -36,6 +37,9 @@ export function actionForKey(e: { key: string; ctrlKey?: boolean; metaKey?: bool
     case 'f':
     case 'F':
       return 'fit';
+    case 'c':
+    case 'C':
+      return 'frame';
     case '1':
       return 'top';
     case '2':

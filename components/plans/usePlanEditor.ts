@@ -214,6 +214,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
       save: () => void actions.onSave(),
       keep: () => void actions.onKeep(),
       fit: () => chamberRef.current?.setView('fit'),
+      frame: () => chamberRef.current?.toggleFrame(),
       top: () => chamberRef.current?.setView('top'),
       front: () => chamberRef.current?.setView('front'),
       side: () => chamberRef.current?.setView('side'),

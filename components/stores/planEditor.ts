@@ -40,6 +40,8 @@ interface PlanEditorState {
   /** Layout shown per plan: a stored layout's id, or 'working' for the packing not yet kept. */
   shown: Record<string, string>;
   tab: EditorTab;
+  /** On a wide screen: the numbers and layouts in a column beside the 3D view rather than under it. */
+  numbersBeside: boolean;
   helpOpen: boolean;
   /** Placement indices of the shown layout marked for removal. */
   marked: number[];
@@ -47,7 +49,7 @@ interface PlanEditorState {
 
 export const usePlanEditorStore = create<PlanEditorState>()(
   persist<PlanEditorState, [], [], Pick<PlanEditorState, 'drafts'>>(
-    () => ({ drafts: {}, shown: {}, tab: 'build', helpOpen: false, marked: [] }),
+    () => ({ drafts: {}, shown: {}, tab: 'build', numbersBeside: false, helpOpen: false, marked: [] }),
     {
       name: 'sinterstack.plan-drafts',
       storage: createJSONStorage(() => persistStorage),
@@ -60,6 +62,7 @@ export const usePlanEditorStore = create<PlanEditorState>()(
 export const usePlanDraft = (planId: string) => usePlanEditorStore((s) => s.drafts[planId] ?? null);
 export const useShownLayout = (planId: string) => usePlanEditorStore((s) => s.shown[planId] ?? null);
 export const useEditorTab = () => usePlanEditorStore((s) => s.tab);
+export const useNumbersBeside = () => usePlanEditorStore((s) => s.numbersBeside);
 export const useHelpOpen = () => usePlanEditorStore((s) => s.helpOpen);
 export const useMarked = () => usePlanEditorStore((s) => s.marked);
 
@@ -100,6 +103,10 @@ export function showLayout(planId: string, layoutId: string | null): void {
 
 export function setEditorTab(tab: EditorTab): void {
   usePlanEditorStore.setState({ tab });
+}
+
+export function setNumbersBeside(beside: boolean): void {
+  usePlanEditorStore.setState({ numbersBeside: beside });
 }
 
 export function setHelpOpen(open: boolean): void {

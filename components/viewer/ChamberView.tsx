@@ -13,7 +13,7 @@ export type { ChamberViewHandle, ChamberViewProps };
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView({ chamberMm, placements, cutHeightMm, style }, ref) {
   const [cut, setCut] = useState<number | null>(null);
-  useImperativeHandle(ref, () => ({ setView: () => undefined, setCutHeight: setCut }));
+  useImperativeHandle(ref, () => ({ setView: () => undefined, setFrame: () => undefined, toggleFrame: () => undefined, setCutHeight: setCut }));
   const height = cut ?? cutHeightMm ?? null;
   const n = placements.partIndex.length;
   const parts = useMemo(() => groupByPart(placements.partIndex).parts.length, [placements.partIndex]);

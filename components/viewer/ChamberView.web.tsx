@@ -35,12 +35,14 @@ import {
   LINE_PALETTE,
   UNIT_CUBE,
   boundsOf,
+  framedBounds,
   groupByPart,
   instanceColours,
   instanceMatrices,
   sectionMatrices,
   spanningAt,
   type Bounds,
+  type FrameName,
   type LocalBounds,
   type Vec3,
   type ViewName,
@@ -78,6 +80,7 @@ interface HoverState {
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView(props, ref) {
   const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, style } = props;
+  const [frame, setFrame] = useState<FrameName>(props.initialFrame ?? 'parts');
   const [software] = useState(isSoftwareRenderer);
   const dpr = props.dpr ?? (software ? 1 : [1, 1.5]);
   const antialias = props.antialias ?? !software;
@@ -86,6 +89,8 @@ export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(funct
 
   useImperativeHandle(ref, () => ({
     setView: (view) => controller.current?.setView(view),
+    setFrame,
+    toggleFrame: () => setFrame((f) => (f === 'parts' ? 'chamber' : 'parts')),
     setCutHeight: (h) => {
       cutRef.current = h;
       controller.current?.applyCut(h);
@@ -118,12 +123,13 @@ export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(funct
           meshesByPart={meshesByPart}
           lineColours={lineColours}
           cutHeightMm={cutHeightMm ?? null}
+          frame={frame}
           cutRef={cutRef}
           controller={controller}
           callbacks={callbacks}
         />
       </Canvas>
-      {showToolbar ? <ViewToolbar onView={(v) => controller.current?.setView(v)} style={styles.toolbar} /> : null}
+      {showToolbar ? <ViewToolbar onView={(v) => controller.current?.setView(v)} frame={frame} onFrame={setFrame} style={styles.toolbar} /> : null}
     </View>
   );
 });
@@ -135,12 +141,13 @@ interface SceneProps {
   meshesByPart?: ReadonlyMap<number, PartMesh>;
   lineColours?: readonly string[];
   cutHeightMm: number | null;
+  frame: FrameName;
   cutRef: React.MutableRefObject<number | null>;
   controller: React.MutableRefObject<Controller | null>;
   callbacks: React.MutableRefObject<Pick<ChamberViewProps, 'onHover' | 'onPick' | 'describePlacement' | 'onFirstFrame'>>;
 }
 
-function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, cutRef, controller, callbacks }: SceneProps) {
+function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, frame, cutRef, controller, callbacks }: SceneProps) {
   const camera = useThree((s) => s.camera);
   const controls = useThree((s) => s.controls) as unknown as { target: THREE.Vector3; update(): void } | null;
   const size = useThree((s) => s.size);
@@ -149,6 +156,9 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
 
   const [cx, cy, cz] = chamberMm;
   const chamberBounds: Bounds = useMemo(() => ({ min: [0, 0, 0], max: [cx, cy, cz] }), [cx, cy, cz]);
+  // What the views keep in sight; the camera is fitted again only when these bounds change by a whole millimetre.
+  const framed = useMemo(() => framedBounds(placements, [cx, cy, cz], frame), [placements, cx, cy, cz, frame]);
+  const framedKey = `${frame}|${framed.min.map(Math.round).join(',')}|${framed.max.map(Math.round).join(',')}`;
   const usable: Bounds = { min: [margin.xy, margin.xy, margin.bottom], max: [chamberMm[0] - margin.xy, chamberMm[1] - margin.xy, chamberMm[2] - margin.top] };
   const groups = useMemo(() => groupByPart(placements.partIndex), [placements.partIndex]);
   // Views made once per layout, so a new cut does not look like new instances to the memoised parts.
@@ -189,7 +199,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   };
   controller.current = {
     setView: (view) => {
-      applyView(camera, controls, chamberBounds, view, size.width / Math.max(size.height, 1));
+      applyView(camera, controls, framed, view, size.width / Math.max(size.height, 1));
       invalidate();
     },
     applyCut,
@@ -208,15 +218,16 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     reapplyCut(cutHeightMm);
   }, [cutHeightMm, placements, cutRef]);
 
-  // Fit once the orbit controls exist, and again for a different chamber (not on resize: the user may have orbited).
-  const fit = useEffectEvent((target: NonNullable<typeof controls>, bounds: Bounds) => {
-    applyView(camera, target, bounds, 'fit', size.width / Math.max(size.height, 1));
+  // Fit once the orbit controls exist, and again when what is framed changes: the other frame, a layout of another
+  // extent, a different chamber (not on resize: the user may have orbited).
+  const fit = useEffectEvent((target: NonNullable<typeof controls>) => {
+    applyView(camera, target, framed, 'fit', size.width / Math.max(size.height, 1));
     invalidate();
   });
   useEffect(() => {
     if (!controls) return;
-    fit(controls, chamberBounds);
-  }, [controls, chamberBounds]);
+    fit(controls);
+  }, [controls, framedKey]);
 
   const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);
 

@@ -260,6 +260,30 @@ export function instanceColours(lineIndex: ArrayLike<number>, list: ArrayLike<nu
 
 export type ViewName = 'fit' | 'top' | 'front' | 'side';
 
+/** What the views frame: the placed parts (the default), or the whole chamber. */
+export type FrameName = 'parts' | 'chamber';
+
+/**
+ * The box the camera views keep in sight: the placed parts' boxes (min corners to max corners) for 'parts', the
+ * chamber from its floor corner for 'chamber' or when nothing is placed. A build of a few centimetres in a tall
+ * chamber then fills the view instead of a corner of it.
+ */
+export function framedBounds(placements: { positions: ArrayLike<number>; sizes: ArrayLike<number> }, chamberMm: Vec3, frame: FrameName): Bounds {
+  const n = Math.floor(placements.positions.length / 3);
+  if (frame === 'chamber' || n === 0) return { min: [0, 0, 0], max: [chamberMm[0], chamberMm[1], chamberMm[2]] };
+  const min: Vec3 = [Infinity, Infinity, Infinity];
+  const max: Vec3 = [-Infinity, -Infinity, -Infinity];
+  for (let i = 0; i < n; i++) {
+    for (let a = 0; a < 3; a++) {
+      const lo = placements.positions[3 * i + a];
+      const hi = lo + placements.sizes[3 * i + a];
+      if (lo < min[a]) min[a] = lo;
+      if (hi > max[a]) max[a] = hi;
+    }
+  }
+  return { min, max };
+}
+
 export interface CameraPose {
   position: Vec3;
   target: Vec3;

@@ -5,7 +5,7 @@
  */
 import type { StyleProp, ViewStyle } from 'react-native';
 import type { MeshProblem, MeshWorkerApi, ParseMeshResult, ViewMesh as WorkerMesh } from '../../workers/mesh.protocol';
-import type { Vec3, ViewName } from './math';
+import type { FrameName, Vec3, ViewName } from './math';
 
 export type { MeshProblem, MeshWorkerApi, ParseMeshResult };
 
@@ -36,8 +36,12 @@ export interface PartMesh {
 }
 
 export interface ChamberViewHandle {
-  /** Moves the camera to a named view of the chamber. */
+  /** Moves the camera to a named view of what is framed (the parts, or the whole chamber). */
   setView(view: ViewName): void;
+  /** Frames the placed parts or the whole chamber, and fits the view to it. */
+  setFrame(frame: FrameName): void;
+  /** Switches between framing the parts and the whole chamber. */
+  toggleFrame(): void;
   /** Moves the cut without a React render (for a slider being dragged); null removes it. */
   setCutHeight(heightMm: number | null): void;
 }
@@ -62,7 +66,9 @@ export interface ChamberViewProps {
   describePlacement?: (placementIndex: number) => string;
   /** Called once, on the first rendered frame, with performance.now(). */
   onFirstFrame?: (msSinceNavigation: number) => void;
-  /** The fit / top / front / side buttons; shown unless false. */
+  /** What the views frame at first: the placed parts unless 'chamber'. */
+  initialFrame?: FrameName;
+  /** The frame and fit / top / front / side buttons; shown unless false. */
   showToolbar?: boolean;
   /** Device pixel ratio range; [1, 1.5] by default, 1 on a software renderer. */
   dpr?: number | [number, number];

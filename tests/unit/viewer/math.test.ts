@@ -4,6 +4,7 @@ import {
   UNIT_CUBE,
   boundsOf,
   fitCamera,
+  framedBounds,
   footprintAreaMm2,
   formatMm,
   groupByPart,
@@ -315,5 +316,27 @@ describe('length labels', () => {
     expect(formatMm(12.34)).toBe('12.3 mm');
     expect(formatMm(340.4)).toBe('340 mm');
     expect(formatMm(NaN)).toBe('–');
+  });
+});
+
+describe('what the views frame', () => {
+  // An invented 340 x 340 x 600 mm chamber holding a shallow build: two parts on a 5 mm floor margin, 24 mm tall.
+  const chamber: Vec3 = [340, 340, 600];
+  const placements = { positions: [10, 10, 5, 200, 150, 5], sizes: [50, 30, 20, 40, 40, 24] };
+
+  it('frames the placed parts by default and the whole chamber on request', () => {
+    expect(framedBounds(placements, chamber, 'parts')).toEqual({ min: [10, 10, 5], max: [240, 190, 29] });
+    expect(framedBounds(placements, chamber, 'chamber')).toEqual({ min: [0, 0, 0], max: [340, 340, 600] });
+    // Nothing placed: the chamber is all there is to show.
+    expect(framedBounds({ positions: [], sizes: [] }, chamber, 'parts')).toEqual({ min: [0, 0, 0], max: [340, 340, 600] });
+  });
+
+  it('brings the camera close enough that the parts fill the view', () => {
+    const parts = fitCamera(framedBounds(placements, chamber, 'parts'), 'fit', 40, 1.6);
+    const whole = fitCamera(framedBounds(placements, chamber, 'chamber'), 'fit', 40, 1.6);
+    // The parts' bounding sphere has a radius of about 147 mm (half of the 230 x 180 x 24 mm box's diagonal) against
+    // the chamber's 384 mm: the camera comes more than two and a half times closer.
+    expect(parts.distance * 2.5).toBeLessThan(whole.distance);
+    expect(parts.target).toEqual([125, 100, 17]);
   });
 });
