@@ -3,6 +3,7 @@ import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Server } from 'node:http';
 import { listen, type Running } from '../../server/boot';
+import type { Config } from '../../server/config';
 import { startTestApp } from './app';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 
@@ -15,9 +16,10 @@ export type Served = { running: Running; server: Server; baseUrl: string; browse
 
 /**
  * The real server (exported web app + API on the test database) on a free
- * loopback port, and Debian's Chromium driven by playwright-core.
+ * loopback port, and Debian's Chromium driven by playwright-core. A test may
+ * change the server's settings (a short upload wait, no worker of its own).
  */
-export async function serveAndLaunch(): Promise<Served> {
+export async function serveAndLaunch(overrides: Partial<Config> = {}): Promise<Served> {
   const probe = await startTestApp();
   // APP_URL must be the address the browser uses, for the Origin check and invite links.
   const server0 = await listen(probe.app, 0, '127.0.0.1');
@@ -25,7 +27,7 @@ export async function serveAndLaunch(): Promise<Served> {
   await new Promise<void>((r) => server0.close(() => r()));
   await probe.close();
   const baseUrl = `http://127.0.0.1:${port}`;
-  const running = await startTestApp({ appUrl: baseUrl, webDist: 'dist' });
+  const running = await startTestApp({ appUrl: baseUrl, webDist: 'dist', ...overrides });
   const server = await listen(running.app, port, '127.0.0.1');
   const browser = await chromium.launch({
     executablePath: CHROMIUM,
