@@ -1,5 +1,6 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { requestsRepository, type LineRow, type RequestRow } from '../db/repositories/requests';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
 import type { RequestBuildView, RequestCreate, RequestListQuery, RequestListResponse, RequestPatch, RequestView } from '../../shared/schemas/requests';
 import type { PartsService } from './parts';
@@ -16,84 +17,20 @@ export function earliestDueDate(now: Date = new Date()): string {
   return new Date(now.getTime() - 12 * 3600 * 1000).toISOString().slice(0, 10);
 }
 
-const PRIORITY_RANK_SQL = "(CASE r.priority WHEN 'urgent' THEN 3 WHEN 'high' THEN 2 WHEN 'normal' THEN 1 ELSE 0 END)";
-
-const ORDER_SQL: Record<string, string> = {
-  dueDate: `r.due_date ASC, ${PRIORITY_RANK_SQL} DESC`,
-  '-dueDate': `r.due_date DESC, ${PRIORITY_RANK_SQL} DESC`,
-  priority: `${PRIORITY_RANK_SQL} DESC, r.due_date ASC`,
-  '-priority': `${PRIORITY_RANK_SQL} ASC, r.due_date ASC`,
-  createdAt: 'r.created_at ASC',
-  '-createdAt': 'r.created_at DESC',
-  title: 'lower(r.title) ASC',
-  '-title': 'lower(r.title) DESC',
-};
-
-type RequestRow = {
-  id: string;
-  lab_id: string;
-  title: string;
-  material_id: string | null;
-  material_name: string | null;
-  due_date: string;
-  priority: RequestView['priority'];
-  notes: string;
-  status: RequestView['status'];
-  created_by: string | null;
-  creator_name: string | null;
-  created_at: Date;
-  updated_at: Date;
-};
-type LineRow = {
-  id: string;
-  request_id: string;
-  part_id: string;
-  part_name: string;
-  quantity: number;
-  planned_count: number;
-  printed_count: number;
-  failed_count: number;
-};
-
-type BuildRow = {
-  plan_id: string;
-  plan_name: string;
-  status: PlanStatus;
-  machine_id: string;
-  machine_name: string;
-  material_name: string | null;
-  request_line_id: string;
-  quantity: number;
-  good_count: number | null;
-  failed_count: number | null;
-  done_at: Date | null;
-};
-
 /** When a plan's parts are expected out of the powder, from its machine's queue; null when not in the queue. */
 export type ReadyDates = (labId: string, machineId: string) => Promise<Map<string, string>>;
 
 /** Statuses whose parts are expected from the queue: waiting, or under way on the machine. */
 const IN_QUEUE: readonly PlanStatus[] = ['queued', 'printing', 'cooling', 'breakout'];
 
-const SELECT_REQUESTS = `
-  SELECT r.*, m.name AS material_name, u.name AS creator_name
-    FROM requests r
-    LEFT JOIN materials m ON m.id = r.material_id
-    LEFT JOIN users u ON u.id = r.created_by`;
-
 /** Designers' requests: which parts, how many, in what material, by when. */
 export function requestsService(db: Database, parts: PartsService, deps: { readyDates?: ReadyDates } = {}) {
-  const { sequelize, models } = db;
+  const { sequelize } = db;
+  const repo = requestsRepository(db);
 
   async function views(rows: RequestRow[], transaction?: Transaction): Promise<RequestView[]> {
     if (rows.length === 0) return [];
-    const lines = await sequelize.query<LineRow>(
-      `SELECT l.id, l.request_id, l.part_id, p.name AS part_name, l.quantity, l.planned_count, l.printed_count,
-              COALESCE((SELECT SUM(x.failed_count) FROM run_lines x WHERE x.request_line_id = l.id), 0)::int AS failed_count
-         FROM request_lines l JOIN parts p ON p.id = l.part_id
-        WHERE l.request_id = ANY($1::uuid[]) ORDER BY l.request_id, l.position`,
-      { bind: [rows.map((r) => r.id)], type: QueryTypes.SELECT, transaction },
-    );
+    const lines = await repo.lines(rows.map((r) => r.id), transaction);
     const byRequest = new Map<string, LineRow[]>();
     for (const l of lines) byRequest.set(l.request_id, [...(byRequest.get(l.request_id) ?? []), l]);
     return rows.map((r) => {
@@ -137,28 +74,15 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
 
   async function get(labId: string, requestId: string, transaction?: Transaction): Promise<RequestView> {
     if (!isId(requestId)) throw notFound('That request');
-    const rows = await sequelize.query<RequestRow>(`${SELECT_REQUESTS} WHERE r.lab_id = $1 AND r.id = $2`, {
-      bind: [labId, requestId],
-      type: QueryTypes.SELECT,
-      transaction,
-    });
-    if (!rows[0]) throw notFound('That request');
-    const [view] = await views(rows, transaction);
+    const row = await repo.request(labId, requestId, transaction);
+    if (!row) throw notFound('That request');
+    const [view] = await views([row], transaction);
     return { ...view, builds: await builds(labId, requestId, transaction) };
   }
 
   /** The builds holding the request's parts, each with its lines' counts and when its parts are expected out of the powder. */
   async function builds(labId: string, requestId: string, transaction?: Transaction): Promise<RequestBuildView[]> {
-    const rows = await sequelize.query<BuildRow>(
-      `SELECT p.id AS plan_id, p.name AS plan_name, p.status, p.machine_id, mc.name AS machine_name, mt.name AS material_name,
-              pl.request_line_id, pl.quantity, x.good_count, x.failed_count, r.done_at
-         FROM plan_lines pl JOIN plans p ON p.id = pl.plan_id JOIN request_lines rl ON rl.id = pl.request_line_id
-         JOIN machines mc ON mc.id = p.machine_id LEFT JOIN materials mt ON mt.id = p.material_id
-         LEFT JOIN runs r ON r.plan_id = p.id LEFT JOIN run_lines x ON x.run_id = r.id AND x.plan_line_id = pl.id
-        WHERE rl.request_id = $1 AND p.lab_id = $2 AND p.status <> 'cancelled'
-        ORDER BY p.created_at, pl.position`,
-      { bind: [requestId, labId], type: QueryTypes.SELECT, transaction },
-    );
+    const rows = await repo.builds(labId, requestId, transaction);
     const ready = new Map<string, string>();
     for (const machineId of new Set(rows.filter((r) => IN_QUEUE.includes(r.status)).map((r) => r.machine_id))) {
       for (const [planId, at] of (await deps.readyDates?.(labId, machineId)) ?? []) ready.set(planId, at);
@@ -185,49 +109,20 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
   }
 
   async function checkMaterial(labId: string, materialId: string, transaction: Transaction) {
-    const m = await models.Material.findOne({ where: { id: materialId, labId }, transaction });
-    if (!m) throw badRequest('materialId is not a material of this lab', 'materialId');
+    if (!(await repo.isMaterialOf(labId, materialId, transaction))) throw badRequest('materialId is not a material of this lab', 'materialId');
   }
 
   /** Another lab's part id is answered like an unknown one: its name or data are never shown. */
   async function checkParts(labId: string, lines: { partId: string }[], transaction: Transaction) {
-    const found = await sequelize.query<{ id: string }>('SELECT id FROM parts WHERE lab_id = $1 AND id = ANY($2::uuid[])', {
-      bind: [labId, lines.map((l) => l.partId)],
-      type: QueryTypes.SELECT,
-      transaction,
-    });
-    const ids = new Set(found.map((f) => f.id));
+    const ids = await repo.partIdsOf(labId, lines.map((l) => l.partId), transaction);
     const i = lines.findIndex((l) => !ids.has(l.partId));
     if (i >= 0) throw badRequest(`lines[${i}].partId is not a part of this lab`, `lines[${i}].partId`);
   }
 
-  /**
-   * Writes the lines in the given order. A part already on the request keeps
-   * its line (and the line's id, which plans refer to); parts no longer listed
-   * lose theirs.
-   */
-  async function writeLines(requestId: string, lines: { partId: string; quantity: number }[], transaction: Transaction) {
-    const existing = await models.RequestLine.findAll({ where: { requestId }, transaction });
-    const byPart = new Map(existing.map((row) => [row.get('partId') as string, row]));
-    const keep = new Set(lines.map((l) => l.partId));
-    for (const row of existing) if (!keep.has(row.get('partId') as string)) await row.destroy({ transaction });
-    // Move the kept lines out of the way of the unique (request, position) index first.
-    await sequelize.query('UPDATE request_lines SET position = -1 - position WHERE request_id = $1', { bind: [requestId], transaction });
-    for (const [position, line] of lines.entries()) {
-      const row = byPart.get(line.partId);
-      if (row) await row.update({ quantity: line.quantity, position }, { transaction });
-      else await models.RequestLine.create({ requestId, partId: line.partId, quantity: line.quantity, position, plannedCount: 0, printedCount: 0 }, { transaction });
-    }
-  }
-
   // A part named in a request stays until the request lets go of it.
   parts.addUsageCheck(async (labId, partId, transaction) => {
-    const rows = await sequelize.query<{ title: string }>(
-      `SELECT r.title FROM request_lines l JOIN requests r ON r.id = l.request_id
-        WHERE r.lab_id = $1 AND l.part_id = $2 ORDER BY r.created_at LIMIT 1`,
-      { bind: [labId, partId], type: QueryTypes.SELECT, transaction },
-    );
-    return rows[0] ? `This part is in the request "${rows[0].title}"; remove it from the request before deleting the part.` : null;
+    const title = await repo.firstTitleNaming(labId, partId, transaction);
+    return title !== null ? `This part is in the request "${title}"; remove it from the request before deleting the part.` : null;
   });
 
   return {
@@ -238,46 +133,18 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
       return sequelize.transaction(async (transaction) => {
         await checkMaterial(labId, input.materialId, transaction);
         await checkParts(labId, input.lines, transaction);
-        const row = await models.Request.create(
-          {
-            labId,
-            title: input.title,
-            materialId: input.materialId,
-            dueDate: input.dueDate,
-            priority: input.priority,
-            notes: input.notes,
-            status: 'open',
-            createdBy: userId,
-          },
-          { transaction },
+        const id = await repo.create(
+          { labId, title: input.title, materialId: input.materialId, dueDate: input.dueDate, priority: input.priority, notes: input.notes, createdBy: userId },
+          transaction,
         );
-        const id = row.get('id') as string;
-        await writeLines(id, input.lines, transaction);
+        await repo.writeLines(id, input.lines, transaction);
         return get(labId, id, transaction);
       });
     },
 
     async list(labId: string, q: RequestListQuery): Promise<RequestListResponse> {
-      const where = ['r.lab_id = $1'];
-      const bind: unknown[] = [labId];
-      const param = (v: unknown) => {
-        bind.push(v);
-        return `$${bind.length}`;
-      };
-      if (q.status !== 'all') where.push(`r.status = ${param(q.status)}`);
-      if (q.search) where.push(`r.title ILIKE ${param(`%${q.search.replace(/[\\%_]/g, (c) => `\\${c}`)}%`)}`);
-      const whereSql = where.join(' AND ');
-      const [{ total }] = await sequelize.query<{ total: string }>(`SELECT count(*) AS total FROM requests r WHERE ${whereSql}`, {
-        bind,
-        type: QueryTypes.SELECT,
-      });
-      const limit = param(q.pageSize);
-      const offset = param((q.page - 1) * q.pageSize);
-      const rows = await sequelize.query<RequestRow>(
-        `${SELECT_REQUESTS} WHERE ${whereSql} ORDER BY ${ORDER_SQL[q.sort]}, r.created_at, r.id LIMIT ${limit} OFFSET ${offset}`,
-        { bind, type: QueryTypes.SELECT },
-      );
-      return { items: await views(rows), total: Number(total) };
+      const { rows, total } = await repo.page(labId, q);
+      return { items: await views(rows), total };
     },
 
     /** The creator or a lead, and only while none of it is planned. */
@@ -288,22 +155,19 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
       }
       if (patch.dueDate !== undefined) checkDueDate(patch.dueDate);
       return sequelize.transaction(async (transaction) => {
-        const row = await models.Request.findOne({ where: { id: requestId, labId }, transaction, lock: transaction.LOCK.UPDATE });
-        if (!row) throw notFound('That request');
-        const planned = await models.RequestLine.sum('plannedCount', { where: { requestId }, transaction });
-        if (Number(planned) > 0) {
+        const locked = await repo.lockForChange(labId, requestId, transaction);
+        if (!locked) throw notFound('That request');
+        if (locked.planned > 0) {
           throw conflict('already_planned', 'Parts of this request are already in a build plan, so it can no longer be changed; ask a planner.');
         }
         if (patch.materialId !== undefined) await checkMaterial(labId, patch.materialId, transaction);
         if (patch.lines !== undefined) {
           await checkParts(labId, patch.lines, transaction);
-          await writeLines(requestId, patch.lines, transaction);
+          await repo.writeLines(requestId, patch.lines, transaction);
         }
         const { lines: _lines, ...fields } = patch;
-        // Touch the row even when only the lines changed, so updatedAt moves.
-        row.set({ ...fields });
-        row.changed('updatedAt' as never, true);
-        await row.save({ transaction });
+        // Touched even when only the lines changed, so updatedAt moves.
+        await repo.update(requestId, fields, transaction);
         return get(labId, requestId, transaction);
       });
     },
