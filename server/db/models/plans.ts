@@ -62,6 +62,18 @@ export interface PlanEventRow extends Model<InferAttributes<PlanEventRow>, Infer
   createdAt: CreationOptional<Date>;
 }
 
+/** A lead's reordering of a machine's queue, with the order before and after it (so it can be undone). */
+export interface QueueMoveRow extends Model<InferAttributes<QueueMoveRow>, InferCreationAttributes<QueueMoveRow>> {
+  id: CreationOptional<string>;
+  labId: string;
+  machineId: string;
+  userId: string | null;
+  beforeIds: string[];
+  afterIds: string[];
+  createdAt: CreationOptional<Date>;
+  undoneAt: CreationOptional<Date | null>;
+}
+
 const stamps = {
   createdAt: { type: DataTypes.DATE, allowNull: false, field: 'created_at' },
   updatedAt: { type: DataTypes.DATE, allowNull: false, field: 'updated_at' },
@@ -137,10 +149,25 @@ export function planModels(sequelize: Sequelize) {
     { ...timed, updatedAt: false, tableName: 'plan_events' },
   );
 
+  const QueueMove = sequelize.define<QueueMoveRow>(
+    'QueueMove',
+    {
+      id: { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 },
+      labId: { type: DataTypes.UUID, allowNull: false, field: 'lab_id' },
+      machineId: { type: DataTypes.UUID, allowNull: false, field: 'machine_id' },
+      userId: { type: DataTypes.TEXT, field: 'user_id' },
+      beforeIds: { type: DataTypes.ARRAY(DataTypes.UUID), allowNull: false, field: 'before_ids' },
+      afterIds: { type: DataTypes.ARRAY(DataTypes.UUID), allowNull: false, field: 'after_ids' },
+      createdAt: stamps.createdAt,
+      undoneAt: { type: DataTypes.DATE, field: 'undone_at' },
+    },
+    { ...timed, updatedAt: false, tableName: 'queue_moves' },
+  );
+
   Plan.hasMany(PlanLine, { foreignKey: 'planId', as: 'lines' });
   PlanLine.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
   Plan.hasMany(Layout, { foreignKey: 'planId', as: 'layouts' });
   Plan.belongsTo(Layout, { foreignKey: 'chosenLayoutId', as: 'chosenLayout', constraints: false });
   Plan.hasMany(PlanEvent, { foreignKey: 'planId', as: 'events' });
-  return { Plan, PlanLine, Layout, PlanEvent };
+  return { Plan, PlanLine, Layout, PlanEvent, QueueMove };
 }
