@@ -49,6 +49,10 @@ import { createStorage } from './storage';
 import { meshJobsService, type MeshQueueSettings } from './jobs/meshJobs';
 import type PgBoss from 'pg-boss';
 import { checkedMachineProfileSchema, checkedMaterialProfileSchema, machineProfileSchema, materialProfileSchema } from '../shared/types/profiles';
+import type { LabTopic } from './events/labEvents';
+
+/** Changes after which the powder forecast is looked at again. */
+const FORECAST_TOPICS: ReadonlySet<LabTopic> = new Set<LabTopic>(['powder', 'queue', 'plans', 'runs', 'materials']);
 
 export type Services = ReturnType<typeof createServices>;
 export type AppDeps = {
@@ -100,7 +104,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const queue = queueService(db, { calibration });
   const reviewFlags = reviewFlagsService(db, { labs, queue });
   const takeBack = takeBackService(db);
-  const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl });
+  const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
@@ -174,7 +178,12 @@ export function createApp(deps: AppDeps) {
   });
   api.post('/auth/sign-in', accountLimiter);
   api.post('/invites/:token/accept', limiter, accountLimiter);
-  api.use(announceChanges(deps.events, deps.log));
+  api.use(
+    announceChanges(deps.events, deps.log, ({ labId, topic }) => {
+      // Stock, queue, plans, runs and a material's policy move the powder forecast: a shortage newly in sight is mailed once.
+      if (FORECAST_TOPICS.has(topic)) deps.services.powder.checkShortages(labId).catch((err: Error) => deps.log(`powder forecast: ${err.message}`));
+    }),
+  );
   api.use(eventRoutes(deps));
   api.use(authRoutes(deps, limiter, resetLimiter));
   api.use(labRoutes(deps));

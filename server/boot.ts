@@ -41,10 +41,14 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, databaseUrl: config.databaseUrl, threads, tools: { measure: measureFile, slice: profileLayout }, settings, log });
   const deps: AppDeps = { config, db, pool, auth, mailer, events, services, log };
   const app = createApp(deps);
+  // Forecasts move with time as well as with changes: a shortage can come into its lead time overnight.
+  const sweep = config.powderSweepMinutes > 0 ? setInterval(() => void services.powder.sweepShortages(), config.powderSweepMinutes * 60_000) : null;
+  sweep?.unref();
   return {
     ...deps,
     app,
     async close() {
+      if (sweep) clearInterval(sweep);
       await worker?.stop();
       // Files this process was measuring go back to the queue for another worker.
       await boss.stop({ graceful: true, timeout: 5_000, wait: true }).catch(() => {});

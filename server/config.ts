@@ -64,6 +64,8 @@ const envSchema = z.object({
   JOB_RETENTION_HOURS: z.coerce.number().int().min(1).max(24 * 365).default(168),
   /** How long keeping a layout waits for its parts to be sliced on the job queue before it is estimated by their boxes instead. */
   LAYOUT_SLICE_WAIT_MS: z.coerce.number().int().min(0).max(600_000).default(15_000),
+  /** How often each server looks at every lab's powder forecast for the passing of time (changes are looked at as they happen); 0: never. */
+  POWDER_SWEEP_MINUTES: z.coerce.number().int().min(0).max(24 * 60).default(60),
   /** Where uploads are streamed while they are measured; removed after each request. */
   UPLOAD_TMP_DIR: z.string().optional(),
   /** Where mesh files live: in PostgreSQL (default) or in S3-compatible object storage. */
@@ -121,6 +123,7 @@ export type Config = {
   uploadWaitMs: number;
   layoutSliceWaitMs: number;
   jobRetentionHours: number;
+  powderSweepMinutes: number;
 };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -180,5 +183,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     uploadWaitMs: e.UPLOAD_WAIT_MS,
     layoutSliceWaitMs: e.LAYOUT_SLICE_WAIT_MS,
     jobRetentionHours: e.JOB_RETENTION_HOURS,
+    powderSweepMinutes: e.POWDER_SWEEP_MINUTES,
   };
 }

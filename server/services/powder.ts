@@ -219,10 +219,18 @@ export function powderService(db: Database, deps: PowderDeps) {
     }
   }
 
+  /** Reading the stock changes nothing: the reorder e-mails go out from the changes (checkShortages). */
   async function overview(labId: string, nowMs = Date.now()): Promise<PowderOverview> {
-    const materials = await stockViews(labId, nowMs);
-    await noticeShortages(labId, materials);
-    return { materials, now: iso(nowMs) };
+    return { materials: await stockViews(labId, nowMs), now: iso(nowMs) };
+  }
+
+  /**
+   * The lab's forecasts against their reorder levels: a shortage newly in sight is recorded and mailed to the
+   * leads once; one no longer in sight is closed. Called after a change that moves a forecast (stock, queue,
+   * plans, runs, a material's policy) and now and then for the passing of time.
+   */
+  async function checkShortages(labId: string, nowMs = Date.now()): Promise<void> {
+    await noticeShortages(labId, await stockViews(labId, nowMs));
   }
 
   async function material(labId: string, materialId: string, nowMs = Date.now()): Promise<MaterialDetailView> {
@@ -320,6 +328,13 @@ export function powderService(db: Database, deps: PowderDeps) {
 
   return {
     overview,
+    checkShortages,
+    /** Every lab whose powder is tracked, for the periodic look at the forecasts. */
+    async sweepShortages(nowMs = Date.now()): Promise<void> {
+      for (const labId of await repo.trackedLabs()) {
+        await checkShortages(labId, nowMs).catch((err: Error) => deps.log?.(`powder forecast of lab ${labId}: ${err.message}`));
+      }
+    },
     material,
     drawForRun,
 
@@ -342,7 +357,6 @@ export function powderService(db: Database, deps: PowderDeps) {
         await repo.addMovement({ labId, materialId: input.materialId, lotId: id, kind: 'received', deltaKg: input.kg, at: new Date(`${input.receivedOn}T12:00:00Z`), byUser: user.id }, t);
         return id;
       });
-      void overview(labId).catch((err) => deps.log?.(`powder forecast: ${(err as Error).message}`));
       return lotView((await repo.lot(labId, lotId))!);
     },
 
@@ -377,7 +391,6 @@ export function powderService(db: Database, deps: PowderDeps) {
         const after = pool ? (delta >= 0 ? addToPool(pool, delta, pool.meanAgeBuilds) : takeFromPool(pool, -delta)) : null;
         return repo.addMovement({ ...base, kind: 'adjusted', deltaKg: delta, countedKg: input.countedKg, poolAgeAfter: after ? after.meanAgeBuilds : null }, t);
       });
-      void overview(labId).catch((err) => deps.log?.(`powder forecast: ${(err as Error).message}`));
       const [m] = (await repo.movements({ materialId: input.materialId }, 50)).filter((x) => x.id === id);
       return movementView(m);
     },

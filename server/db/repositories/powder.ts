@@ -403,6 +403,12 @@ export function powderRepository(db: Database) {
       await PowderShortage.update({ closedAt: new Date() }, { where: { materialId, closedAt: null } });
     },
 
+    /** Labs with at least one powder movement (a material is tracked from its first). */
+    async trackedLabs(): Promise<string[]> {
+      const rows = await select<{ lab_id: string }>('SELECT DISTINCT lab_id FROM powder_movements', []);
+      return rows.map((r) => r.lab_id);
+    },
+
     async openShortages(labId: string) {
       const rows = await PowderShortage.findAll({ where: { labId, closedAt: null } });
       return rows.map((r) => ({ id: r.id, materialId: r.materialId, belowAt: r.belowAt, mailedAt: r.mailedAt }));

@@ -1,6 +1,6 @@
 import { Router, type RequestHandler } from 'express';
 import type { AppDeps } from '../../app';
-import { mayHear, topicOfPath, type LabEvent, type LabEvents } from '../../events/labEvents';
+import { mayHear, topicOfPath, type LabEvent, type LabEvents, type LabTopic } from '../../events/labEvents';
 import { labAccess } from '../middleware/auth';
 import { ctx, requireLab } from '../context';
 
@@ -9,9 +9,10 @@ const PING_MS = 20_000;
 
 /**
  * After a request that changed something of a lab has been answered with
- * success, tells the lab's open screens which kind of record changed.
+ * success, tells the lab's open screens which kind of record changed, and
+ * `onChange` (work that follows a change, such as the powder forecast).
  */
-export function announceChanges(events: LabEvents, log: (msg: string) => void): RequestHandler {
+export function announceChanges(events: LabEvents, log: (msg: string) => void, onChange?: (changed: { labId: string; topic: LabTopic }) => void): RequestHandler {
   return (req, res, next) => {
     if (req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS') return next();
     res.on('finish', () => {
@@ -19,6 +20,7 @@ export function announceChanges(events: LabEvents, log: (msg: string) => void): 
       const changed = topicOfPath(req.originalUrl);
       if (!changed) return;
       events.publish(changed).catch((err: Error) => log(`live updates: could not announce a change (${err.message})`));
+      onChange?.(changed);
     });
     next();
   };
