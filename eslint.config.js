@@ -53,13 +53,6 @@ module.exports = [
     },
   },
   {
-    // Rows read with raw SQL or `raw: true` are still untyped in these server
-    // folders: a warning that shows what is left until typed repositories
-    // replace them (then this block goes).
-    files: ['server/services/**/*.ts', 'server/db/**/*.ts'],
-    rules: { '@typescript-eslint/no-explicit-any': 'warn' },
-  },
-  {
     // Tests read response bodies as supertest and the browser give them
     // (untyped JSON) and check their shape with assertions.
     files: ['tests/**/*.ts'],

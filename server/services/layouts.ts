@@ -14,6 +14,7 @@ import {
   reopenIfSentBack,
   type Actor,
   type LineRow,
+  type LayoutSummaryRow,
 } from './planCommon';
 import { isEditable } from '../../shared/plans/status';
 import {
@@ -132,13 +133,24 @@ export function profileInfo(profiles: MeshProfiles | null) {
 
 export type LayoutsDeps = { calibrationFor?: CalibrationLookup; profilesFor?: ProfilesLookup };
 
+/** A whole layout row, with its author's name and whether its plan has it chosen. */
+type LayoutDbRow = Omit<LayoutSummaryRow, 'estimate_summary'> & {
+  plan_id: string;
+  instance: unknown;
+  placements_format: number;
+  placements: Buffer;
+  part_ids: string[];
+  estimate: Record<string, unknown>;
+  chosen_layout_id: string | null;
+};
+
 /** A plan's layouts: saving a packing (checked and estimated), reading it back, choosing, labelling, deleting. */
 export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
   const { sequelize } = db;
 
-  async function layoutRow(labId: string, planId: string, layoutId: string) {
+  async function layoutRow(labId: string, planId: string, layoutId: string): Promise<LayoutDbRow> {
     if (!/^[0-9a-f-]{36}$/i.test(layoutId)) throw notFound('That layout');
-    const [row] = await sequelize.query<any>(
+    const [row] = await sequelize.query<LayoutDbRow>(
       `SELECT l.*, u.name AS created_by_name, p.chosen_layout_id
          FROM layouts l JOIN plans p ON p.id = l.plan_id LEFT JOIN users u ON u.id = l.created_by
         WHERE l.id = $1 AND l.plan_id = $2 AND p.lab_id = $3`,

@@ -9,7 +9,8 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
 import { allowedNext, canTakeBack, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
-import type { LayoutSummaryView, PlanOrientationRule } from '../../shared/schemas/plans';
+import type { LayoutSettings, LayoutSummaryView, PlanOrientationRule } from '../../shared/schemas/plans';
+import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 
 export type Actor = { id: string; name: string; email?: string };
 
@@ -188,26 +189,51 @@ export async function planLines(db: Database, planId: string, transaction?: Tran
   );
 }
 
+export type MachineRow = MachineProfile & { id: string; name: string };
+export type MaterialRow = MaterialProfile & { id: string; name: string };
+
 /** A machine or material of the lab with its profile flattened, as the profile routes show it. */
+export async function profileRow(db: Database, table: 'machines', labId: string, id: string, transaction?: Transaction): Promise<MachineRow | null>;
+export async function profileRow(db: Database, table: 'materials', labId: string, id: string, transaction?: Transaction): Promise<MaterialRow | null>;
 export async function profileRow(
   db: Database,
   table: 'machines' | 'materials',
   labId: string,
   id: string,
   transaction?: Transaction,
-): Promise<(Record<string, any> & { id: string; name: string }) | null> {
+): Promise<MachineRow | MaterialRow | null> {
   const [row] = await db.sequelize.query<{ id: string; name: string; profile: Record<string, unknown> }>(
     `SELECT id, name, profile FROM ${table} WHERE id = $1 AND lab_id = $2${transaction ? ' FOR SHARE' : ''}`,
     { bind: [id, labId], type: QueryTypes.SELECT, transaction },
   );
-  return row ? { id: row.id, ...row.profile, name: row.name } : null;
+  // The profile was checked by its schema when it was stored.
+  return row ? ({ id: row.id, ...row.profile, name: row.name } as MachineRow | MaterialRow) : null;
 }
 
 export const iso = (d: Date | string) => new Date(d).toISOString();
 export const person = (id: string | null, name: string | null) => (id ? { id, name: name ?? '' } : null);
 
+/** The numbers a layout's `summary` column keeps about its packing. */
+export type StoredLayoutSummary = { unplaced?: Array<{ id: string; count: number }>; height: number; layers: number; utilization: number; elapsedMs: number };
+
+/** The columns of a layout row a summary shows, with its author's name and the estimate without its per-layer profile. */
+export type LayoutSummaryRow = {
+  id: string;
+  label: string;
+  locked: boolean;
+  settings: LayoutSettings;
+  lines_key: string;
+  placement_count: number;
+  summary: StoredLayoutSummary;
+  result_format: string;
+  estimate_summary: Record<string, unknown> | null;
+  created_by: string | null;
+  created_by_name: string | null;
+  created_at: Date | string;
+};
+
 /** The layout row's numbers without the placements and the per-layer profile. */
-export function layoutSummary(row: any, plan: { chosen_layout_id: string | null }, currentKey: string): LayoutSummaryView {
+export function layoutSummary(row: LayoutSummaryRow, plan: { chosen_layout_id: string | null }, currentKey: string): LayoutSummaryView {
   return {
     id: row.id,
     label: row.label,
@@ -216,7 +242,7 @@ export function layoutSummary(row: any, plan: { chosen_layout_id: string | null 
     matchesPlan: row.lines_key === currentKey,
     settings: row.settings,
     placedCount: row.placement_count,
-    unplacedCount: (row.summary.unplaced ?? []).reduce((s: number, u: { count: number }) => s + u.count, 0),
+    unplacedCount: (row.summary.unplaced ?? []).reduce((s, u) => s + u.count, 0),
     heightMm: row.summary.height,
     layers: row.summary.layers,
     utilization: row.summary.utilization,

@@ -9,6 +9,7 @@ import {
   INACTIVE_SQL,
   checkPlanId,
   type PlanRow,
+  type LayoutSummaryRow,
   invalidTransition,
   readOnly,
   lockPlan,
@@ -24,7 +25,7 @@ import {
   person,
   layoutSummary,
 } from './planCommon';
-import { allowedNext, canTransition, isEditable } from '../../shared/plans/status';
+import { allowedNext, canTransition, isEditable, type PlanStatus } from '../../shared/plans/status';
 import {
   planMachineViewSchema,
   planMaterialViewSchema,
@@ -41,6 +42,57 @@ import {
   type PlanMoved,
   type PlanView,
 } from '../../shared/schemas/plans';
+
+/** A plan as the list shows it: its machine, material and author by name, and its lines and layouts counted (counts come as text). */
+type PlanListRow = {
+  id: string;
+  name: string;
+  status: PlanStatus;
+  version: number;
+  chosen_layout_id: string | null;
+  queue_position: number | null;
+  created_at: Date;
+  updated_at: Date;
+  machine_id: string;
+  machine_name: string;
+  material_id: string;
+  material_name: string;
+  created_by: string | null;
+  created_by_name: string | null;
+  line_count: string;
+  part_count: string;
+  earliest_due_date: string | null;
+  layout_count: string;
+};
+
+/** An open request line with its part and request, and how much of it other plans hold (a sum, as text). */
+type OpenLineRow = {
+  id: string;
+  quantity: number;
+  part_id: string;
+  part_name: string;
+  size_x_mm: number;
+  size_y_mm: number;
+  size_z_mm: number;
+  volume_mm3: number;
+  orientation: OpenLineView['part']['orientation'];
+  request_id: string;
+  title: string;
+  due_date: string;
+  priority: OpenLineView['request']['priority'];
+  material_id: string | null;
+  held: string;
+};
+
+type PlanEventRow = {
+  id: string;
+  from_status: PlanStatus | null;
+  to_status: PlanStatus;
+  user_id: string | null;
+  user_name: string | null;
+  comment: string | null;
+  created_at: Date;
+};
 
 function addDeltas(into: Map<string, number>, lines: Array<{ requestLineId: string; quantity: number }>, sign: 1 | -1) {
   for (const l of lines) into.set(l.requestLineId, (into.get(l.requestLineId) ?? 0) + sign * l.quantity);
@@ -146,13 +198,13 @@ export function plansService(db: Database, deps: PlansDeps) {
       profileRow(db, 'machines', labId, plan.machine_id),
       profileRow(db, 'materials', labId, plan.material_id),
       planLines(db, plan.id),
-      sequelize.query<any>(
+      sequelize.query<LayoutSummaryRow>(
         `SELECT l.id, l.label, l.locked, l.settings, l.lines_key, l.result_format, l.placement_count, l.summary,
                 l.estimate - 'areaPerLayerMm2' AS estimate_summary, l.created_by, l.created_at, u.name AS created_by_name
            FROM layouts l LEFT JOIN users u ON u.id = l.created_by WHERE l.plan_id = $1 ORDER BY l.created_at`,
         { bind: [plan.id], type: QueryTypes.SELECT },
       ),
-      sequelize.query<any>(
+      sequelize.query<PlanEventRow>(
         `SELECT e.id, e.from_status, e.to_status, e.user_id, u.name AS user_name, e.comment, e.created_at
            FROM plan_events e LEFT JOIN users u ON u.id = e.user_id WHERE e.plan_id = $1 ORDER BY e.created_at, e.id`,
         { bind: [plan.id], type: QueryTypes.SELECT },
@@ -252,7 +304,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     },
 
     async list(labId: string, q: PlanListQuery): Promise<PlanListItem[]> {
-      const rows = await sequelize.query<any>(
+      const rows = await sequelize.query<PlanListRow>(
         `SELECT p.id, p.name, p.status, p.version, p.chosen_layout_id, p.queue_position, p.created_at, p.updated_at,
                 p.machine_id, m.name AS machine_name, p.material_id, mt.name AS material_name,
                 p.created_by, u.name AS created_by_name,
@@ -293,7 +345,7 @@ export function plansService(db: Database, deps: PlansDeps) {
      * (priority, then due date): what a planner picks for a plan.
      */
     async openLines(labId: string, q: OpenLinesQuery): Promise<OpenLineView[]> {
-      const rows = await sequelize.query<any>(
+      const rows = await sequelize.query<OpenLineRow>(
         `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
                 p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
                 rl.planned_count - COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id

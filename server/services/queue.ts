@@ -8,6 +8,7 @@ import type { CalibrationService } from './calibration';
 import type { RunEstimate } from './runs';
 import { scheduleQueue, type CurrentRun, type PlanTimes, type QueuedPlan, type RunStage, type StageDurations } from '../../shared/schedule';
 import type { queueOrderSchema, QueueItemView, QueueView } from '../../shared/schemas/runs';
+import type { MachineProfile } from '../../shared/types/profiles';
 import type { PlanStatus } from '../../shared/plans/status';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -75,7 +76,7 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
 
   async function machineRow(labId: string, machineId: string) {
     if (!UUID.test(machineId)) throw notFound('That machine');
-    const [row] = await sequelize.query<{ id: string; name: string; profile: Record<string, any> }>(
+    const [row] = await sequelize.query<{ id: string; name: string; profile: Partial<MachineProfile> }>(
       'SELECT id, name, profile FROM machines WHERE id = $1 AND lab_id = $2',
       { bind: [machineId, labId], type: QueryTypes.SELECT },
     );

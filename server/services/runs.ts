@@ -1,7 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, badRequest, conflict } from '../errors';
-import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type PlanRow } from './planCommon';
+import { applyTransition, checkPlanId, lockPlan, planLines, profileRow, type Actor, type LineRow, type MachineRow, type MaterialRow, type PlanRow } from './planCommon';
 import { allowedNext, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import {
   checkReading,
@@ -101,8 +101,8 @@ function duration(seconds: number): string {
 /** Everything a run's view and its checks read, at one moment. */
 type RunContext = {
   plan: PlanRow;
-  machine: Record<string, any> & { id: string; name: string };
-  material: Record<string, any> & { id: string; name: string };
+  machine: MachineRow;
+  material: MaterialRow;
   estimate: RunEstimate | null;
   run: RunRow | null;
   readings: ReadingRow[];
@@ -155,10 +155,12 @@ export function runsService(db: Database, hooks: RunHooks & { mailer?: Mailer; a
         )
       : [];
     const runLines = run ? await q<RunLineRow>('SELECT plan_line_id, planned_count, good_count, failed_count FROM run_lines WHERE run_id = $1', [run.id]) : [];
+    // A plan's machine and material cannot be deleted while the plan exists.
+    if (!machine || !material) throw new AppError(404, 'not_found', "That plan's machine or material was not found.");
     return {
       plan,
-      machine: machine ?? { id: plan.machine_id, name: '' },
-      material: material ?? { id: plan.material_id, name: '' },
+      machine,
+      material,
       estimate: layout?.estimate ?? null,
       run: run ?? null,
       readings,

@@ -56,6 +56,16 @@ describe("the server's layers", () => {
     expect(found).toEqual([{ rule: 'import/no-restricted-paths', message: expect.stringContaining('the db layer never imports services') }]);
     expect(await problems('server/db/seeders/x.ts', code.replace('../services', '../../services'))).toEqual([]);
   });
+
+  test('a database row typed as any fails the lint in services and repositories', async () => {
+    const code = "export async function f(q: (sql: string) => Promise<any[]>) {\n  return q('SELECT 1');\n}\n";
+    for (const file of ['server/services/x.ts', 'server/db/repositories/x.ts']) {
+      const found = await problems(file, code);
+      expect(found.map((p) => p.rule)).toEqual(['@typescript-eslint/no-explicit-any']);
+      const [result] = await eslint.lintText(code, { filePath: path.join(root, file) });
+      expect(result.errorCount).toBe(1);
+    }
+  });
 });
 
 describe('hooks', () => {
