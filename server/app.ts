@@ -37,6 +37,7 @@ import { layoutProfilesService } from './services/layoutProfiles';
 import { reviewService } from './services/review';
 import { reviewFlagsService } from './services/reviewFlags';
 import { takeBackService } from './services/takeBack';
+import { partRevisionsService } from './services/partRevisions';
 import { calibrationService } from './services/calibration';
 import { queueService } from './services/queue';
 import { runsService } from './services/runs';
@@ -104,12 +105,13 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const queue = queueService(db, { calibration });
   const reviewFlags = reviewFlagsService(db, { labs, queue });
   const takeBack = takeBackService(db);
+  const partRevisions = partRevisionsService(db, { parts });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });
   const export3mf = export3mfService(db, { storage, layouts });
   const thumbnails = thumbnailsService(db, { storage, parts, draw: partThumbnail });
-  return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, reviewFlags, takeBack, calibration, queue, runs, sheet, export3mf, powder, thumbnails };
+  return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, reviewFlags, takeBack, partRevisions, calibration, queue, runs, sheet, export3mf, powder, thumbnails };
 }
 
 /** The Express app, without listen(), so tests can drive it with supertest. */

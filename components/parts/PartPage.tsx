@@ -15,6 +15,7 @@ import { formatArea, formatBytes, formatCount, formatSize, formatVolume } from '
 import { canUploadParts } from './PartLibrary';
 import { canFileRequests } from '../lab/roles';
 import { PartMeshPreview } from './PartMeshPreview';
+import { PartRevisions } from './PartRevisions';
 import { addQuarterTurn, rotatedSize, type Rotation } from './rotation';
 import { WARNING_EXPLANATIONS, warningLabel } from './warnings';
 
@@ -87,6 +88,7 @@ function PartDetail({ part, back }: { part: Part; back: React.ReactNode }) {
           <Warnings part={part} />
         </View>
       </View>
+      <PartRevisions part={part} />
       {canEdit ? (
         <EditPart part={part} rotationDeg={rotationDeg} />
       ) : (

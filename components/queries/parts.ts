@@ -1,6 +1,7 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import {
   partListResponseSchema,
+  partRevisionsViewSchema,
   partUploadResponseSchema,
   partViewSchema,
   partWarningSchema,
@@ -11,7 +12,8 @@ import {
   type PartView,
   type RejectedFile,
 } from '../../shared/schemas/parts';
-import { api } from '../api/client';
+import { api, ApiError, baseUrl } from '../api/client';
+import type { PickedFile } from '../upload/types';
 
 /** Response shapes of the part routes: the server's own views, parsed at the client's edge. */
 export { partWarningSchema, rejectedFileSchema };
@@ -37,6 +39,7 @@ export const partKeys = {
   all: (labId: string) => ['labs', labId, 'parts'] as const,
   list: (labId: string, params: PartListParams) => ['labs', labId, 'parts', 'list', params] as const,
   one: (labId: string, partId: string) => ['labs', labId, 'parts', 'one', partId] as const,
+  revisions: (labId: string, partId: string) => ['labs', labId, 'parts', 'one', partId, 'revisions'] as const,
 };
 
 export function partListPath(labId: string, params: PartListParams): string {
@@ -96,4 +99,38 @@ export function useDeletePartMutation(labId: string, partId: string) {
 /** After an upload: the library's pages are stale. */
 export function invalidatePartLists(qc: ReturnType<typeof useQueryClient>, labId: string) {
   return qc.invalidateQueries({ queryKey: [...partKeys.all(labId), 'list'] });
+}
+
+/** A part's file revisions, newest first, each with the plans that use it. */
+export function usePartRevisionsQuery(labId: string, partId: string) {
+  return useQuery({
+    queryKey: partKeys.revisions(labId, partId),
+    queryFn: ({ signal }) => api(`/labs/${labId}/parts/${partId}/revisions`, { schema: partRevisionsViewSchema, signal }),
+  });
+}
+
+/** Sends a new file for the part; the answer is the new revision (a part of its own). */
+export function useAddRevisionMutation(labId: string, partId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: async (file: PickedFile) => {
+      const form = new FormData();
+      form.append('unit', 'mm');
+      if (typeof Blob !== 'undefined' && file.body instanceof Blob) form.append('file', file.body, file.name);
+      else form.append('file', file.body as unknown as Blob);
+      const res = await fetch(`${baseUrl}/api/labs/${labId}/parts/${partId}/revisions`, {
+        method: 'POST',
+        credentials: 'same-origin',
+        headers: { Accept: 'application/json' },
+        body: form,
+      });
+      const json: unknown = await res.json().catch(() => null);
+      if (!res.ok) {
+        const err = (json as { error?: { code?: string; message?: string; field?: string } } | null)?.error;
+        throw new ApiError(res.status, err?.code ?? 'http_error', err?.message ?? `The file was not taken (${res.status}).`, err?.field);
+      }
+      return partViewSchema.parse(json);
+    },
+    onSuccess: () => qc.invalidateQueries({ queryKey: partKeys.all(labId) }),
+  });
 }

@@ -357,7 +357,8 @@ export function partsService(db: Database, deps: PartsDeps) {
     },
 
     async list(labId: string, q: PartListQuery): Promise<PartListResponse> {
-      const where = ['p.lab_id = $1'];
+      // The library lists each part once, as its newest file revision.
+      const where = ['p.lab_id = $1', 'p.superseded_by IS NULL'];
       const bind: unknown[] = [labId];
       const param = (v: unknown) => {
         bind.push(v);

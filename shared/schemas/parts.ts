@@ -121,3 +121,21 @@ export type PartUploadResponse = z.infer<typeof partUploadResponseSchema>;
 
 export const partListResponseSchema = z.object({ items: z.array(partViewSchema), total: z.number() });
 export type PartListResponse = z.infer<typeof partListResponseSchema>;
+
+/** One file revision of a part; `current` is the newest, the one the library, new requests and new plans use. */
+export const partRevisionViewSchema = z.object({
+  partId: z.string(),
+  revision: z.number().int(),
+  current: z.boolean(),
+  fileName: z.string(),
+  sizeMm: z.tuple([z.number(), z.number(), z.number()]),
+  volumeMm3: z.number(),
+  watertight: z.boolean(),
+  uploadedBy: z.object({ id: z.string(), name: z.string() }).nullable(),
+  uploadedAt: z.string(),
+  /** Plans (not cancelled or aborted) whose lines use this revision's file. */
+  plans: z.array(z.object({ id: z.string(), name: z.string(), status: z.string() })),
+});
+export type PartRevisionView = z.infer<typeof partRevisionViewSchema>;
+export const partRevisionsViewSchema = z.object({ partId: z.string(), newestPartId: z.string(), revisions: z.array(partRevisionViewSchema) });
+export type PartRevisionsView = z.infer<typeof partRevisionsViewSchema>;

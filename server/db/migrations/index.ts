@@ -14,6 +14,7 @@ import * as m0012 from './0012-lab-currency';
 import * as m0013 from './0013-lab-density-rule';
 import * as m0014 from './0014-mesh-job-tasks';
 import * as m0015 from './0015-queue-moves';
+import * as m0016 from './0016-part-revisions';
 
 export type Migration = {
   name: string;
@@ -38,4 +39,5 @@ export const migrations: Migration[] = [
   { name: '0013-lab-density-rule', ...m0013 },
   { name: '0014-mesh-job-tasks', ...m0014 },
   { name: '0015-queue-moves', ...m0015 },
+  { name: '0016-part-revisions', ...m0016 },
 ];

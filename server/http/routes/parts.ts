@@ -78,6 +78,17 @@ export function partRoutes(deps: AppDeps): Router {
   };
   r.post('/labs/:labId/parts', uploader, uploadMiddleware(deps), uploadFields, importUpload, discardUploadOnError);
 
+  // A new file for an existing part: its next revision (one file, never split).
+  const addRevision: RequestHandler = async (req, res) => {
+    const { labId, user } = requireLab(req);
+    const files = (req.files as Express.Multer.File[] | undefined) ?? [];
+    if (files.length > 1) throw badRequest("file: send one file, the part's new revision", 'file');
+    res.status(201).json(await deps.services.partRevisions.upload(labId, String(req.params.partId), user.id, files[0], uploadFields.input(req).unit));
+  };
+  r.post('/labs/:labId/parts/:partId/revisions', uploader, uploadMiddleware(deps), uploadFields, addRevision, discardUploadOnError);
+  r.get('/labs/:labId/parts/:partId/revisions', member, async (req, res) => {
+    res.json(await deps.services.partRevisions.list(requireLab(req).labId, String(req.params.partId)));
+  });
   r.get('/labs/:labId/parts', member, listQuery, async (req, res) => {
     res.json(await parts.list(requireLab(req).labId, listQuery.input(req)));
   });
