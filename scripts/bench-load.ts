@@ -108,7 +108,8 @@ async function main() {
     const { loadConfig } = await import('../server/config');
     const { boot } = await import('../server/boot');
     const { seedDemoIfEmpty } = await import('../server/db/seeders/demo');
-    const seeding = await boot({ ...loadConfig({ ...process.env, DATABASE_URL: databaseUrl }), meshWorker: false }, () => {});
+    // With a worker of its own: the demo plan's layout is sliced on the queue, as under `npm start`.
+    const seeding = await boot({ ...loadConfig({ ...process.env, DATABASE_URL: databaseUrl }), meshWorker: true }, () => {});
     await seedDemoIfEmpty(seeding.db, seeding.services, { planInReview: true });
     await seeding.close();
 
