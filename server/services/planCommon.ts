@@ -7,6 +7,7 @@
  */
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { profilesRepository } from '../db/repositories/profiles';
 import { AppError, conflict, notFound } from '../errors';
 import { allowedNext, canTakeBack, canTransition, STATUS_LABELS, type PlanStatus } from '../../shared/plans/status';
 import type { LayoutSettings, LayoutSummaryView, PlanOrientationRule } from '../../shared/schemas/plans';
@@ -202,10 +203,7 @@ export async function profileRow(
   id: string,
   transaction?: Transaction,
 ): Promise<MachineRow | MaterialRow | null> {
-  const [row] = await db.sequelize.query<{ id: string; name: string; profile: Record<string, unknown> }>(
-    `SELECT id, name, profile FROM ${table} WHERE id = $1 AND lab_id = $2${transaction ? ' FOR SHARE' : ''}`,
-    { bind: [id, labId], type: QueryTypes.SELECT, transaction },
-  );
+  const row = await profilesRepository(db, table).find(labId, id, transaction);
   // The profile was checked by its schema when it was stored.
   return row ? ({ id: row.id, ...row.profile, name: row.name } as MachineRow | MaterialRow) : null;
 }

@@ -1,3 +1,4 @@
+import type { Transaction } from 'sequelize';
 import type { Database } from '../index';
 
 /** A machine or a material as stored: its name and the rest of its profile (never an ORM instance). */
@@ -16,8 +17,9 @@ export function profilesRepository(db: Database, table: ProfileTable) {
     async list(labId: string): Promise<ProfileRecord[]> {
       return (await model.findAll({ where: { labId }, order: [['name', 'ASC']] })).map(plain);
     },
-    async find(labId: string, id: string): Promise<ProfileRecord | null> {
-      const row = await model.findOne({ where: { id, labId } });
+    /** Inside a transaction the row is share-locked: it cannot change or go until the transaction ends. */
+    async find(labId: string, id: string, transaction?: Transaction): Promise<ProfileRecord | null> {
+      const row = await model.findOne({ where: { id, labId }, transaction, lock: transaction ? transaction.LOCK.SHARE : undefined });
       return row ? plain(row) : null;
     },
     async create(labId: string, name: string, profile: Record<string, unknown>): Promise<ProfileRecord> {
