@@ -92,7 +92,11 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
     log: jobs.log,
   });
   // The queue is made below; a request asks it for its builds' ready dates only when read.
-  const requests = requestsService(db, parts, { readyDates: (labId, machineId) => queue.readyDates(labId, machineId) });
+  const partRevisions = partRevisionsService(db, { parts });
+  const requests = requestsService(db, parts, {
+    readyDates: (labId, machineId) => queue.readyDates(labId, machineId),
+    newestRevisions: (ids, transaction) => partRevisions.newest(ids, transaction),
+  });
   const plans = plansService(db, { labs, mailer, appUrl: config.appUrl });
   const calibration = calibrationService(db);
   const layouts = layoutsService(db, {
@@ -105,7 +109,6 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const queue = queueService(db, { calibration });
   const reviewFlags = reviewFlagsService(db, { labs, queue });
   const takeBack = takeBackService(db);
-  const partRevisions = partRevisionsService(db, { parts });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });

@@ -1,4 +1,4 @@
-import { QueryTypes } from 'sequelize';
+import { QueryTypes, type Transaction } from 'sequelize';
 import { unlink } from 'node:fs/promises';
 import type { Database } from '../db';
 import { AppError, conflict, notFound } from '../errors';
@@ -31,6 +31,19 @@ export function partRevisionsService(db: Database, deps: { parts: PartsService }
   }
 
   return {
+    /** Each part id mapped to its newest revision (itself when it is the newest); unknown ids are left out. */
+    async newest(partIds: string[], transaction?: Transaction): Promise<Map<string, string>> {
+      const rows = await sequelize.query<{ id: string; newest: string }>(
+        `WITH RECURSIVE chain(id, at) AS (
+           SELECT id, id FROM parts WHERE id = ANY($1::uuid[])
+           UNION ALL
+           SELECT c.id, p.superseded_by FROM chain c JOIN parts p ON p.id = c.at WHERE p.superseded_by IS NOT NULL)
+         SELECT c.id, c.at AS newest FROM chain c JOIN parts p ON p.id = c.at WHERE p.superseded_by IS NULL`,
+        { bind: [partIds.filter((id) => UUID.test(id))], type: QueryTypes.SELECT, transaction },
+      );
+      return new Map(rows.map((r) => [r.id, r.newest]));
+    },
+
     async list(labId: string, partId: string): Promise<PartRevisionsView> {
       const part = await head(labId, partId);
       const root = part.first_revision_id ?? part.id;

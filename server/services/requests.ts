@@ -24,7 +24,11 @@ export type ReadyDates = (labId: string, machineId: string) => Promise<Map<strin
 const IN_QUEUE: readonly PlanStatus[] = ['queued', 'printing', 'cooling', 'breakout'];
 
 /** Designers' requests: which parts, how many, in what material, by when. */
-export function requestsService(db: Database, parts: PartsService, deps: { readyDates?: ReadyDates } = {}) {
+export function requestsService(
+  db: Database,
+  parts: PartsService,
+  deps: { readyDates?: ReadyDates; newestRevisions?: (partIds: string[], transaction: Transaction) => Promise<Map<string, string>> } = {},
+) {
   const { sequelize } = db;
   const repo = requestsRepository(db);
 
@@ -112,11 +116,24 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
     if (!(await repo.isMaterialOf(labId, materialId, transaction))) throw badRequest('materialId is not a material of this lab', 'materialId');
   }
 
-  /** Another lab's part id is answered like an unknown one: its name or data are never shown. */
-  async function checkParts(labId: string, lines: { partId: string }[], transaction: Transaction) {
+  /**
+   * Another lab's part id is answered like an unknown one: its name or data are never shown.
+   * A part that has a newer file revision is requested as its newest revision.
+   */
+  async function checkParts<L extends { partId: string }>(labId: string, lines: L[], transaction: Transaction): Promise<L[]> {
     const ids = await repo.partIdsOf(labId, lines.map((l) => l.partId), transaction);
     const i = lines.findIndex((l) => !ids.has(l.partId));
     if (i >= 0) throw badRequest(`lines[${i}].partId is not a part of this lab`, `lines[${i}].partId`);
+    if (!deps.newestRevisions) return lines;
+    const newest = await deps.newestRevisions(lines.map((l) => l.partId), transaction);
+    const mapped = lines.map((l) => ({ ...l, partId: newest.get(l.partId) ?? l.partId }));
+    const seen = new Map<string, number>();
+    mapped.forEach((l, k) => {
+      const j = seen.get(l.partId);
+      if (j !== undefined) throw badRequest(`lines[${k}].partId is a revision of the same part as lines[${j}]; name each part once`, `lines[${k}].partId`);
+      seen.set(l.partId, k);
+    });
+    return mapped;
   }
 
   // A part named in a request stays until the request lets go of it.
@@ -132,12 +149,12 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
       checkDueDate(input.dueDate);
       return sequelize.transaction(async (transaction) => {
         await checkMaterial(labId, input.materialId, transaction);
-        await checkParts(labId, input.lines, transaction);
+        const lines = await checkParts(labId, input.lines, transaction);
         const id = await repo.create(
           { labId, title: input.title, materialId: input.materialId, dueDate: input.dueDate, priority: input.priority, notes: input.notes, createdBy: userId },
           transaction,
         );
-        await repo.writeLines(id, input.lines, transaction);
+        await repo.writeLines(id, lines, transaction);
         return get(labId, id, transaction);
       });
     },
@@ -162,8 +179,7 @@ export function requestsService(db: Database, parts: PartsService, deps: { ready
         }
         if (patch.materialId !== undefined) await checkMaterial(labId, patch.materialId, transaction);
         if (patch.lines !== undefined) {
-          await checkParts(labId, patch.lines, transaction);
-          await repo.writeLines(requestId, patch.lines, transaction);
+          await repo.writeLines(requestId, await checkParts(labId, patch.lines, transaction), transaction);
         }
         const { lines: _lines, ...fields } = patch;
         // Touched even when only the lines changed, so updatedAt moves.

@@ -62,6 +62,16 @@ describe('file revisions of a part', () => {
     expect(before.lines[0].part).toMatchObject({ id: v1, sizeMm: [20, 10, 5] });
     const fresh = await createPlan(lab.agent, lab.labId, lab.machineId, lab.materialId, [{ id: openLine, quantity: 3 }], 'Planned with the new file');
     expect(fresh.view.lines[0].part).toMatchObject({ id: v2, sizeMm: [30, 10, 5] });
+
+    // A new request naming the old revision (from its page, say) is made of the newest; both at once are one part.
+    const viaOld = await designer.post(`/api/labs/${lab.labId}/requests`).send({ title: 'From the old page', materialId: lab.materialId, dueDate: '2027-06-01', lines: [{ partId: v1, quantity: 2 }] });
+    expect(viaOld.status).toBe(201);
+    expect(viaOld.body.lines[0].partId).toBe(v2);
+    const both = await designer
+      .post(`/api/labs/${lab.labId}/requests`)
+      .send({ title: 'Both', materialId: lab.materialId, dueDate: '2027-06-01', lines: [{ partId: v1, quantity: 1 }, { partId: v2, quantity: 1 }] });
+    expect(both.status).toBe(400);
+    expect(both.body.error.field).toBe('lines[1].partId');
   });
 
   test('only the newest revision takes a new file; a bad file, a second file or an operator is refused and nothing changes', async () => {
