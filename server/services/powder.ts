@@ -1,3 +1,4 @@
+// Over 450 lines: one ledger of a material's powder (stock, forecast and reorder notices, draws for runs, recoveries, checks), every change under the material's lock with the same age bookkeeping.
 import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { powderRepository, type Check, type Lot, type Movement } from '../db/repositories/powder';

@@ -1,3 +1,4 @@
+// Over 450 lines: one run at the machine as one state machine (its view, start, counts, finish, readings), every step on the same loaded context inside one transaction.
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { AppError, badRequest, conflict } from '../errors';
