@@ -53,18 +53,12 @@ const sampleMemory = () => {
   peakHeap = Math.max(peakHeap, m.heapUsed);
 };
 
-interface OurRun {
-  result: PackResult;
-  firstLayoutMs: number;
-  wallMs: number;
-  valid: boolean;
-}
-
-function ours(instance: PackInstance): OurRun {
+/** A run of either engine, timed: when its first layout came, when it ended; memory sampled as it goes. */
+function timed<R>(runSync: (hooks: { onProgress(phase: unknown, share: number, best: unknown): void }) => R): { result: R; firstLayoutMs: number; wallMs: number } {
   let firstLayoutMs = -1;
   const t0 = performance.now();
   let lastSample = 0;
-  const result = createPacking(instance).runSync({
+  const result = runSync({
     onProgress(_phase, _share, best) {
       const t = performance.now() - t0;
       if (best && firstLayoutMs < 0) firstLayoutMs = t;
@@ -76,7 +70,12 @@ function ours(instance: PackInstance): OurRun {
   });
   const wallMs = performance.now() - t0;
   sampleMemory();
-  return { result, firstLayoutMs, wallMs, valid: validateLayout(instance, result).length === 0 };
+  return { result, firstLayoutMs, wallMs };
+}
+
+function ours(instance: PackInstance): { result: PackResult; firstLayoutMs: number; wallMs: number; valid: boolean } {
+  const run = timed((hooks) => createPacking(instance).runSync(hooks));
+  return { ...run, valid: validateLayout(instance, run.result).length === 0 };
 }
 
 /**
@@ -174,28 +173,8 @@ function machine(): string {
   return `node ${process.version}, ${nproc} CPUs (nproc), ${model}`;
 }
 
-interface V2Run {
-  result: PackResultV2;
-  firstLayoutMs: number;
-  wallMs: number;
-}
-
-function oursV2(instance: PackInstanceV2): V2Run {
-  let firstLayoutMs = -1;
-  const t0 = performance.now();
-  let lastSample = 0;
-  const result = createPackingV2(instance).runSync({
-    onProgress(_phase, _share, best) {
-      const t = performance.now() - t0;
-      if (best && firstLayoutMs < 0) firstLayoutMs = t;
-      if (t - lastSample > 100) {
-        lastSample = t;
-        sampleMemory();
-      }
-    },
-  });
-  sampleMemory();
-  return { result, firstLayoutMs, wallMs: performance.now() - t0 };
+function oursV2(instance: PackInstanceV2): { result: PackResultV2; firstLayoutMs: number; wallMs: number } {
+  return timed((hooks) => createPackingV2(instance).runSync(hooks));
 }
 
 /**
