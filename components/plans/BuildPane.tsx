@@ -2,8 +2,8 @@ import { forwardRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { ChamberView, LayerSlider, type ChamberPlacements, type ChamberViewHandle, type PartMesh, type Vec3 } from '../viewer';
 import { colors, radius, spacing, useIsWide } from '../theme';
-import { Button, Text } from '../ui';
-import type { BuildStack } from './editorModel';
+import { Button, Notice, Text } from '../ui';
+import type { BuildStack, HandEdit } from './editorModel';
 
 export interface BuildPaneProps {
   chamberMm: Vec3;
@@ -18,6 +18,11 @@ export interface BuildPaneProps {
   describe: (index: number) => string;
   onPick: (index: number | null) => void;
   marked: number;
+  /** Placements a hand edit left closer than the spacing or outside the usable region. */
+  faults: number;
+  spacingMm: number;
+  /** Moves, turns or drops the marked parts; null when they cannot be changed (nothing marked, packing, read-only). */
+  onHandEdit: ((edit: HandEdit) => void) | null;
   onRemoveMarked: () => void;
   onClearMarked: () => void;
   editable: boolean;
@@ -29,10 +34,19 @@ export interface BuildPaneProps {
   loading: boolean;
 }
 
+const STEP_MM = 5;
+/** The plate seen from the front: left and right along x, back (away) and front along y. */
+const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] = [
+  { label: '←', name: `Move ${STEP_MM} mm left`, testID: 'plan-move-left', edit: { kind: 'move', dxMm: -STEP_MM, dyMm: 0 } },
+  { label: '→', name: `Move ${STEP_MM} mm right`, testID: 'plan-move-right', edit: { kind: 'move', dxMm: STEP_MM, dyMm: 0 } },
+  { label: '↑', name: `Move ${STEP_MM} mm back`, testID: 'plan-move-back', edit: { kind: 'move', dxMm: 0, dyMm: STEP_MM } },
+  { label: '↓', name: `Move ${STEP_MM} mm to the front`, testID: 'plan-move-front', edit: { kind: 'move', dxMm: 0, dyMm: -STEP_MM } },
+];
+
 /** What the pointer does: a wide screen has a mouse to hover with, a phone only taps. */
 function pointerHint(wide: boolean, editable: boolean): string {
-  if (wide) return editable ? 'Hover a part to see its line; click to mark it for removal.' : 'Hover a part to see its line.';
-  return editable ? 'Tap a part to see its line and mark it for removal.' : 'Tap a part to see its line.';
+  if (wide) return editable ? 'Hover a part to see its line; click to mark it to move, turn or remove.' : 'Hover a part to see its line.';
+  return editable ? 'Tap a part to see its line and mark it to move, turn or remove.' : 'Tap a part to see its line.';
 }
 
 /** Centre pane: the chamber in 3D with the layer slider; clicking parts marks them for removal. */
@@ -88,9 +102,25 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
           {`Layers count from the floor as printed: ${Number(p.stack.floorMarginMm.toFixed(2))} mm of powder under the parts (floor margin) and ${Number(p.stack.topMarginMm.toFixed(2))} mm over them included.`}
         </Text>
       ) : null}
+      {p.faults > 0 ? (
+        <Notice tone="caution" title="Parts too close" testID="plan-edit-faults">
+          {`${p.faults} part${p.faults === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${p.faults === 1 ? 'it' : 'them'} apart or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then.`}
+        </Notice>
+      ) : null}
       {p.editable && p.marked > 0 ? (
         <View style={styles.marked} testID="plan-marked">
           <Text variant="label">{p.marked} part{p.marked === 1 ? '' : 's'} marked</Text>
+          {p.onHandEdit ? (
+            <>
+              <View style={styles.moves} accessibilityRole="toolbar" accessibilityLabel="Move the marked parts">
+                {MOVES.map((m) => (
+                  <Button key={m.testID} label={m.label} size="sm" variant="secondary" onPress={() => p.onHandEdit?.(m.edit)} accessibilityLabel={m.name} testID={m.testID} />
+                ))}
+              </View>
+              <Button label="Turn (R)" size="sm" variant="secondary" onPress={() => p.onHandEdit?.({ kind: 'turn' })} testID="plan-turn" />
+              <Button label="Drop (D)" size="sm" variant="secondary" onPress={() => p.onHandEdit?.({ kind: 'drop' })} testID="plan-drop" />
+            </>
+          ) : null}
           <Button label="Remove from layout" size="sm" variant="danger" onPress={p.onRemoveMarked} testID="plan-remove-marked" />
           <Button label="Clear" size="sm" variant="ghost" onPress={p.onClearMarked} />
         </View>
@@ -109,4 +139,5 @@ const styles = StyleSheet.create({
   wait: { flex: 1, alignItems: 'center', justifyContent: 'center' },
   slider: { width: 84 },
   marked: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
+  moves: { flexDirection: 'row', gap: spacing.xxs },
 });

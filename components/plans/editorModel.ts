@@ -5,7 +5,19 @@
  * filling may do, when a layout may be kept and a plan sent for review.
  * The editor's hooks call these; tests/unit/plans/editorModel.test.ts checks them.
  */
-import { buildCountLowerBound, parseInstance, type PackInstanceInput, type PackResult, type Placement } from '../../shared/packing';
+import {
+  buildCountLowerBound,
+  droppedPlacements,
+  movedPlacements,
+  parseInstance,
+  placementsAtFault,
+  summariseLayout,
+  turnedPlacements,
+  validateLayout,
+  type PackInstanceInput,
+  type PackResult,
+  type Placement,
+} from '../../shared/packing';
 import { layerCount } from '../../shared/estimate/layers';
 import type { LayoutSummaryView, OpenLineView, PlanLineView, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import type { DraftLine, DraftOptions, PlanDraft } from '../stores/planEditor';
@@ -196,8 +208,39 @@ export function isStale(working: Working | null, fullInstance: PackInstanceInput
   return !!working && partsKey(working.instance) !== partsKey(fullInstance);
 }
 
-export function canKeep(working: Working | null, opts: { editable: boolean; running: boolean; stale: boolean }): boolean {
-  return opts.editable && !!working?.result && !working.problem && !opts.running && !opts.stale && working.result.placements.length > 0;
+/** A layout not kept yet may be kept once its run ended, for the lines as they are, with nothing at fault (`faults`: placements a hand edit left breaking the rules). */
+export function canKeep(working: Working | null, opts: { editable: boolean; running: boolean; stale: boolean; faults?: number }): boolean {
+  return opts.editable && !!working?.result && !working.problem && !opts.running && !opts.stale && !opts.faults && working.result.placements.length > 0;
+}
+
+/** What the planner does to the chosen placements by hand. */
+export type HandEdit = { kind: 'move'; dxMm: number; dyMm: number } | { kind: 'turn' } | { kind: 'drop' };
+
+/**
+ * The layout after a hand edit of the chosen placements, summarised again (height, layers, density): moved
+ * across the plate or turned a quarter turn about z at their height, or dropped to the lowest free height.
+ * A move or turn may leave parts closer than the spacing: editFaults finds them.
+ */
+export function handEdited(instance: PackInstanceInput, result: PackResult, chosen: ReadonlySet<number>, edit: HandEdit): { ok: true; result: PackResult } | { ok: false; message: string } {
+  const parsed = parseInstance(instance);
+  if (!parsed.ok || chosen.size === 0) return { ok: false, message: 'Mark a part first.' };
+  const inst = parsed.instance;
+  let placements: Placement[];
+  if (edit.kind === 'move') placements = movedPlacements(inst, result.placements, chosen, edit.dxMm, edit.dyMm);
+  else if (edit.kind === 'drop') placements = droppedPlacements(inst, result.placements, chosen);
+  else {
+    const turned = turnedPlacements(inst, result.placements, chosen);
+    if (!turned.ok) return turned;
+    placements = turned.placements;
+  }
+  return { ok: true, result: summariseLayout(inst, placements, result.elapsedMs) };
+}
+
+/** The placements of a layout that break the rules (closer than the spacing, outside the usable region), by index. */
+export function editFaults(instance: PackInstanceInput, result: PackResult): Set<number> {
+  const parsed = parseInstance(instance);
+  if (!parsed.ok) return new Set();
+  return placementsAtFault(validateLayout(parsed.instance, result));
 }
 
 /** The label a kept layout gets: how it was made, the seed of a plain packing, and its layers. */

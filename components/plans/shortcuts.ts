@@ -1,5 +1,5 @@
 /** The editor's keyboard shortcuts on the web, as the help sheet lists them. */
-export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'frame' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'help';
+export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'frame' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'moveLeft' | 'moveRight' | 'moveBack' | 'moveFront' | 'turn' | 'drop' | 'help';
 
 export const SHORTCUTS: { keys: string[]; action: ShortcutAction; label: string }[] = [
   { keys: ['P'], action: 'pack', label: 'Pack the plan (again) with the packing options' },
@@ -12,6 +12,9 @@ export const SHORTCUTS: { keys: string[]; action: ShortcutAction; label: string 
   { keys: ['2'], action: 'front', label: 'Look at the chamber from the front' },
   { keys: ['3'], action: 'side', label: 'Look at the chamber from the side' },
   { keys: ['[', ']'], action: 'layerDown', label: 'Move the cut one layer down or up (Shift: ten)' },
+  { keys: ['←', '→', '↑', '↓'], action: 'moveLeft', label: 'Move the marked parts 5 mm across the plate at their height (Shift: 1 mm)' },
+  { keys: ['R'], action: 'turn', label: 'Turn the marked parts a quarter turn about the build direction' },
+  { keys: ['D'], action: 'drop', label: 'Drop the marked parts to the lowest height where they keep the spacing' },
   { keys: ['?'], action: 'help', label: 'Show or hide this sheet' },
 ];
 
@@ -52,6 +55,20 @@ export function actionForKey(e: { key: string; ctrlKey?: boolean; metaKey?: bool
     case '[':
     case '{':
       return 'layerDown';
+    case 'ArrowLeft':
+      return 'moveLeft';
+    case 'ArrowRight':
+      return 'moveRight';
+    case 'ArrowUp':
+      return 'moveBack';
+    case 'ArrowDown':
+      return 'moveFront';
+    case 'r':
+    case 'R':
+      return 'turn';
+    case 'd':
+    case 'D':
+      return 'drop';
     case '?':
       return 'help';
     default:

@@ -37,6 +37,8 @@ export interface LayoutActionsInput {
   working: Working | null;
   running: boolean;
   stale: boolean;
+  /** Placements of the working layout a hand edit left breaking the rules: it cannot be kept until none are. */
+  faults: number;
   dropWorking: () => void;
   /** The layout shown (a kept layout's id, or the working one's). */
   shownId: string | null;
@@ -114,7 +116,7 @@ export function useLayoutActions(a: LayoutActionsInput) {
     if (getPlanDraft(planId)?.baseVersion === before) rebaseDraft(planId, after);
   };
 
-  const keepable = canKeep(a.working, { editable: a.editable, running: a.running, stale: a.stale });
+  const keepable = canKeep(a.working, { editable: a.editable, running: a.running, stale: a.stale, faults: a.faults });
   const onKeep = async () => {
     const working = a.working;
     if (!working?.result || !keepable) return;

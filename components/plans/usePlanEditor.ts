@@ -13,6 +13,7 @@ import {
   clearMarked,
   editDraft,
   setHelpOpen,
+  setMarked,
   showLayout,
   toggleMarked,
   useHelpOpen,
@@ -22,6 +23,7 @@ import {
   type DraftLine,
   type DraftOptions,
 } from '../stores/planEditor';
+import { colors } from '../theme';
 import { lineColour, type ChamberViewHandle } from '../viewer';
 import type { BuildPaneProps } from './BuildPane';
 import {
@@ -35,6 +37,9 @@ import {
   isStale,
   lineInfoOf,
   buildStackOf,
+  editFaults,
+  handEdited,
+  type HandEdit,
   movedCutMm,
   stackNote,
   PACKING_WHAT,
@@ -58,6 +63,9 @@ import { useChamberMeshes } from './useChamberMeshes';
 import { useEditorShortcuts } from './useEditorShortcuts';
 import { useLayoutActions, type EditorMessage } from './useLayoutActions';
 import { usePackingSession } from './usePackingSession';
+
+/** One arrow key press moves the marked parts this far (with Shift, 1 mm). */
+const MOVE_STEP_MM = 5;
 
 type Machine = PlanView['machine'] & { chamberMm: Vec3; layerHeightsMm: number[] };
 type Material = PlanView['material'] & { spacingMm: number; marginXyMm: number; marginBottomMm: number; marginTopMm: number; defaultLayerHeightMm: number };
@@ -120,7 +128,22 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
 
   const colourOrder = useMemo(() => colourOrderOf(lineOrder, shownInstance), [lineOrder, shownInstance]);
   const partIdsInOrder = useMemo(() => colourOrder.map((id) => lineInfo.get(id)?.partId), [colourOrder, lineInfo]);
-  const placements = useMemo(() => (shownResult ? toChamberPlacements(shownResult, colourOrder) : EMPTY_PLACEMENTS), [shownResult, colourOrder]);
+  const marked = useMarked();
+  // A layout changed by hand is checked as it changes: the parts it leaves at fault are drawn in the warning colour.
+  const faults = useMemo(
+    () => (showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result) : new Set<number>()),
+    [showingWorking, working],
+  );
+  const placements = useMemo(() => {
+    if (!shownResult) return EMPTY_PLACEMENTS;
+    const p = toChamberPlacements(shownResult, colourOrder);
+    if (faults.size === 0 && marked.length === 0) return p;
+    // Two colours after the lines': the marked parts (graphite), then those at fault (red, which wins).
+    const lineIndex = p.lineIndex.slice();
+    for (const i of marked) if (i < lineIndex.length) lineIndex[i] = colourOrder.length;
+    for (const i of faults) if (i < lineIndex.length) lineIndex[i] = colourOrder.length + 1;
+    return { ...p, lineIndex };
+  }, [shownResult, colourOrder, faults, marked]);
   const copiesByIndex = useMemo(() => {
     const c = new Uint32Array(colourOrder.length + 1);
     for (const k of placements.partIndex) c[k]++;
@@ -144,7 +167,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const mt = fullInstance.margin?.top ?? 0;
   // Stable props, so that the 3D view does not redo its buffers when the editor draws again.
   const viewMargin = useMemo(() => ({ xy: mx, bottom: mb, top: mt }), [mx, mb, mt]);
-  const viewColours = useMemo(() => colourOrder.map((_, i) => lineColour(i)), [colourOrder]);
+  const viewColours = useMemo(() => [...colourOrder.map((_, i) => lineColour(i)), colors.graphite, colors.danger], [colourOrder]);
 
   // ---- cut, marks ---------------------------------------------------------------
   const chamberRef = useRef<ChamberViewHandle>(null);
@@ -154,9 +177,13 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const stackBottom = shownInstance?.margin?.bottom ?? mb;
   const stackTop = shownInstance?.margin?.top ?? mt;
   const stack = useMemo(() => buildStackOf(usedHeight, { bottom: stackBottom, top: stackTop }, layerHeightMm), [usedHeight, stackBottom, stackTop, layerHeightMm]);
-  const marked = useMarked();
   // Marks are indices into the layout shown: another layout drops them.
-  useEffect(() => clearMarked(), [shownId]);
+  // (A hand edit on a kept layout shows its result as the layout not kept yet: that change keeps the marks.)
+  const marksFollow = useRef(false);
+  useEffect(() => {
+    if (marksFollow.current) marksFollow.current = false;
+    else clearMarked();
+  }, [shownId]);
   const onPick = (i: number | null) => {
     if (i !== null && editable && !running) toggleMarked(i);
   };
@@ -166,6 +193,21 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     if (!next) return;
     clearMarked();
     session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
+  };
+  // Marked parts moved, turned or dropped by hand: the result shown as a layout not kept yet, checked as it changes.
+  const editable3d = editable && !running && !!shownInstance && !!shownResult && marked.length > 0;
+  const onHandEdit = (e: HandEdit) => {
+    if (!editable3d || !shownInstance || !shownResult) return;
+    const out = handEdited(shownInstance, shownResult, new Set(marked), e);
+    if (!out.ok) {
+      say({ tone: 'danger', text: out.message });
+      return;
+    }
+    const keep = [...marked];
+    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: out.result, lines, baseLines: lines, problem: null });
+    // The edited layout holds the same placements in the same order: the marks stay on them.
+    marksFollow.current = shownId !== WORKING;
+    setMarked(keep);
   };
   const moveCut = (layers: number) => setCutMm(movedCutMm(cutMm, stack.topMm, layerHeightMm, layers));
 
@@ -196,6 +238,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     working,
     running,
     stale,
+    faults: faults.size,
     dropWorking: session.dropWorking,
     shownId,
     onOptions,
@@ -215,6 +258,16 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
       keep: () => void actions.onKeep(),
       fit: () => chamberRef.current?.setView('fit'),
       frame: () => chamberRef.current?.toggleFrame(),
+      ...(editable3d
+        ? {
+            moveLeft: ({ shift }: { shift: boolean }) => onHandEdit({ kind: 'move', dxMm: shift ? -1 : -MOVE_STEP_MM, dyMm: 0 }),
+            moveRight: ({ shift }: { shift: boolean }) => onHandEdit({ kind: 'move', dxMm: shift ? 1 : MOVE_STEP_MM, dyMm: 0 }),
+            moveBack: ({ shift }: { shift: boolean }) => onHandEdit({ kind: 'move', dxMm: 0, dyMm: shift ? 1 : MOVE_STEP_MM }),
+            moveFront: ({ shift }: { shift: boolean }) => onHandEdit({ kind: 'move', dxMm: 0, dyMm: shift ? -1 : -MOVE_STEP_MM }),
+            turn: () => onHandEdit({ kind: 'turn' }),
+            drop: () => onHandEdit({ kind: 'drop' }),
+          }
+        : {}),
       top: () => chamberRef.current?.setView('top'),
       front: () => chamberRef.current?.setView('front'),
       side: () => chamberRef.current?.setView('side'),
@@ -264,6 +317,9 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     describe,
     onPick,
     marked: marked.length,
+    faults: faults.size,
+    spacingMm: shownInstance?.spacing ?? fullInstance.spacing ?? 0,
+    onHandEdit: editable3d ? onHandEdit : null,
     onRemoveMarked,
     onClearMarked: clearMarked,
     editable,

@@ -117,6 +117,10 @@ export function toggleMarked(index: number): void {
   usePlanEditorStore.setState((s) => ({ marked: s.marked.includes(index) ? s.marked.filter((i) => i !== index) : [...s.marked, index] }));
 }
 
+export function setMarked(indices: number[]): void {
+  usePlanEditorStore.setState({ marked: indices });
+}
+
 export function clearMarked(): void {
   usePlanEditorStore.setState({ marked: [] });
 }

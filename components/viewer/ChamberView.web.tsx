@@ -339,7 +339,8 @@ function makeEvents(
       setHover(null, -1, null);
     },
     onClick(e) {
-      if (clipped(e)) return;
+      // A drag that turns the view and ends over a part is not a click on it (delta: px moved since the press).
+      if (clipped(e) || e.delta > 4) return;
       e.stopPropagation();
       callbacks.current.onPick?.(placementOf(e));
     },

@@ -149,3 +149,105 @@ describe('the 3D view gets the room and frames the parts', () => {
     await page.context().close();
   });
 });
+
+/** Looks down on the parts and clicks (or taps) points of the view until one marks a part. */
+async function markAPart(page: Page, tap: boolean) {
+  // (tap: a touch; the phone runs here with a mouse, which the view treats alike)
+  await page.getByTestId('view-top').click();
+  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  const canvas = page.locator('[data-testid="plan-build"] canvas');
+  const box = (await canvas.boundingBox())!;
+  // A packed plate may leave its middle empty: points over the view under its button bar, a grid of 9 x 8.
+  const points: [number, number][] = [];
+  for (let i = 0; i < 8; i++) for (let j = 1; j <= 9; j++) points.push([j / 10, 0.25 + i / 10]);
+  for (const [fx, fy] of points) {
+    const x = box.x + box.width * fx;
+    const y = box.y + box.height * fy;
+    if (tap) await page.touchscreen.tap(x, y);
+    else await page.mouse.click(x, y);
+    // A part under the point marks it: the bar naming the marked parts appears.
+    const marked = await page
+      .getByTestId('plan-marked')
+      .waitFor({ timeout: 500 })
+      .then(() => true)
+      .catch(() => false);
+    if (marked) return;
+  }
+  throw new Error('no part under any of the points tried');
+}
+
+/** Moves the marked part step by step one way until it comes within the spacing of another (or the steps run out). */
+async function moveUntilFault(page: Page, step: () => Promise<void>, steps = 40) {
+  for (let i = 0; i < steps && (await page.getByTestId('plan-edit-faults').count()) === 0; i++) {
+    await step();
+    // The screen has drawn the moved layout (and its check) before it is read again.
+    await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  }
+}
+
+describe('moving, turning and dropping parts by hand', () => {
+  test('wide (1440 x 900): arrows move a marked part, the clash is shown and blocks keeping, D drops it clear', async () => {
+    expect(planId).not.toBe('');
+    const page = await newPage(served, WIDE);
+    await signIn(page, 'planner@tinkerfin.example');
+    await page.goto(`/plans/${planId}`);
+    await page.getByTestId('pack-time').fill('2');
+    await page.getByTestId('pack-start').click();
+    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
+    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    await markAPart(page, false);
+    await expect(page.getByTestId('layout-keep').getAttribute('aria-disabled')).resolves.not.toBe('true');
+    await page.getByTestId('plan-status').click();
+    const heightBefore = await page.getByTestId('num-height').textContent();
+    // Left with the arrow key, then right if the wall stopped it before it met another part.
+    // Back, then forward past where it started, then left and right: one of them meets a neighbour.
+    await moveUntilFault(page, () => page.keyboard.press('ArrowUp'));
+    await moveUntilFault(page, () => page.keyboard.press('ArrowDown'), 80);
+    await moveUntilFault(page, () => page.keyboard.press('ArrowLeft'));
+    await moveUntilFault(page, () => page.keyboard.press('ArrowRight'), 80);
+    await page.getByTestId('plan-edit-faults').getByText(/closer than the \d+(\.\d+)? mm spacing/).waitFor();
+    await expect(page.getByTestId('layout-keep').getAttribute('aria-disabled')).resolves.toBe('true');
+    await screenshot(page, 'plan-editor-clash-wide');
+
+    // D: to the lowest free height, which lifts it over the part it met; nothing at fault, the layout can be kept.
+    await page.keyboard.press('d');
+    await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
+    await expect(page.getByTestId('layout-keep').getAttribute('aria-disabled')).resolves.not.toBe('true');
+    expect(await page.getByTestId('num-height').textContent()).not.toBe(heightBefore);
+    await screenshot(page, 'plan-editor-dropped-wide');
+
+    // R turns it a quarter turn (or says why it may not); keeping the edited layout stores it.
+    await page.keyboard.press('r');
+    await page.getByTestId('layout-keep').click();
+    await page.getByText(/^Kept as/).waitFor();
+    await page.context().close();
+  });
+
+  test('phone (390 x 844): the buttons under the view move and drop a tapped part', async () => {
+    expect(planId).not.toBe('');
+    const page = await newPage(served, PHONE);
+    await signIn(page, 'planner@tinkerfin.example');
+    await page.goto(`/plans/${planId}`);
+    await page.getByTestId('plan-tab-lines').click();
+    await page.getByTestId('pack-time').fill('2');
+    await page.getByTestId('pack-start').click();
+    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
+    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    await page.getByTestId('plan-tab-build').click();
+    await page.locator('[data-testid="plan-build"] canvas').waitFor();
+    await markAPart(page, false);
+    await page.getByTestId('plan-move-left').scrollIntoViewIfNeeded();
+    await screenshot(page, 'plan-editor-marked-phone');
+    await moveUntilFault(page, () => page.getByTestId('plan-move-left').click());
+    await moveUntilFault(page, () => page.getByTestId('plan-move-right').click(), 80);
+    await moveUntilFault(page, () => page.getByTestId('plan-move-back').click());
+    await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
+    await page.getByTestId('plan-edit-faults').waitFor();
+    await page.getByTestId('plan-edit-faults').scrollIntoViewIfNeeded();
+    await screenshot(page, 'plan-editor-clash-phone');
+    await page.getByTestId('plan-drop').click();
+    await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
+    await screenshot(page, 'plan-editor-dropped-phone');
+    await page.context().close();
+  });
+});

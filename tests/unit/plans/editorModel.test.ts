@@ -13,6 +13,8 @@ import {
   keptLabel,
   lineInfoOf,
   buildStackOf,
+  editFaults,
+  handEdited,
   movedCutMm,
   stackNote,
   repackAvailability,
@@ -229,5 +231,48 @@ describe('the layout shown', () => {
     expect(movedCutMm(909 * 0.11, stack.topMm, 0.11, 1)).toBeNull();
     expect(movedCutMm(null, stack.topMm, 0.11, -1)).toBeCloseTo(909 * 0.11, 9);
     expect(buildStackOf(0, { bottom: 5, top: 5 }, 0.11).layers).toBe(0);
+  });
+});
+
+describe('editing a layout by hand', () => {
+  // Two 'a' parts (20 x 20 x 10 mm) on the floor keep-out, 10 mm apart; the 'b' part (30 mm cube) further along.
+  const full = instanceOf([line('a', 2), line('b', 1)]);
+  const start = summarised([box('a', 5, 5, 5, [20, 20, 10]), box('a', 35, 5, 5, [20, 20, 10]), box('b', 100, 100, 5, [30, 30, 30])]);
+  function summarised(ps: Placement[]): PackResult {
+    const r = handEdited(full, result(ps), new Set([0]), { kind: 'move', dxMm: 0, dyMm: 0 });
+    if (!r.ok) throw new Error(r.message);
+    return r.result;
+  }
+  const edit = (r: PackResult, chosen: number[], e: Parameters<typeof handEdited>[3]) => {
+    const out = handEdited(full, r, new Set(chosen), e);
+    if (!out.ok) throw new Error(out.message);
+    return out.result;
+  };
+  const asWorking = (r: PackResult): Working => ({ mode: 'edit', instance: full, kept: [], result: r, lines: [line('a', 2), line('b', 1)], baseLines: [], problem: null });
+
+  it('a part moved within the spacing of another is at fault with it, and the layout cannot be kept until it is fixed', () => {
+    expect(editFaults(full, start).size).toBe(0);
+    // 9 mm to the left leaves 1 mm between the two 'a' parts, under the 2 mm spacing.
+    const close = edit(start, [1], { kind: 'move', dxMm: -9, dyMm: 0 });
+    expect(close.placements[1].position).toEqual([26, 5, 5]);
+    const faults = editFaults(full, close);
+    expect([...faults].sort()).toEqual([0, 1]);
+    expect(canKeep(asWorking(close), { editable: true, running: false, stale: false, faults: faults.size })).toBe(false);
+    // Dropping it to the lowest free height puts it over the other, 2 mm clear: nothing at fault, and the build is taller.
+    const dropped = edit(close, [1], { kind: 'drop' });
+    expect(dropped.placements[1].position).toEqual([26, 5, 17]);
+    expect(editFaults(full, dropped).size).toBe(0);
+    expect(dropped.height).toBe(35);
+    expect(canKeep(asWorking(dropped), { editable: true, running: false, stale: false, faults: 0 })).toBe(true);
+    // Moving it back and dropping again brings it down to the floor keep-out.
+    const back = edit(edit(dropped, [1], { kind: 'move', dxMm: 9, dyMm: 0 }), [1], { kind: 'drop' });
+    expect(back.placements[1].position).toEqual([35, 5, 5]);
+  });
+
+  it('a quarter turn about z turns the part in place; a part kept as stored is not turned', () => {
+    const turned = edit(start, [1], { kind: 'turn' });
+    expect(turned.placements[1]).toMatchObject({ position: [35, 5, 5], size: [20, 20, 10], orientation: 'yxz' });
+    const fixed = { ...full, parts: full.parts.map((p) => ({ ...p, orientations: ['xyz' as const] })) };
+    expect(handEdited(fixed, start, new Set([1]), { kind: 'turn' })).toEqual({ ok: false, message: expect.stringMatching(/may not be turned/) });
   });
 });
