@@ -47,11 +47,18 @@ describe('one layer count in the plan editor', () => {
     await expect(page.getByTestId('num-layers-note').textContent()).resolves.toMatch(new RegExp(`^${layers} layers of [\\d.]+ mm as printed: [\\d.]+ mm of powder under the parts \\(floor margin\\)`));
     await page.getByTestId('plan-build-layers-note').getByText(/floor margin/).waitFor();
     // The chart's readout names layers on the same base: hovering its right end reads the last one.
+    // (Hovered again until it reads so: panels that load later move or resize the plot under a pointer that stays put.)
     const plot = page.getByTestId('area-chart-plot');
-    await plot.scrollIntoViewIfNeeded();
-    const box = (await plot.boundingBox())!;
-    await plot.hover({ position: { x: box.width - 1, y: box.height / 2 } });
-    await page.getByTestId('area-chart-readout').getByText(new RegExp(`^Layer ${layers} of ${layers} ·`)).waitFor();
+    const lastLayer = new RegExp(`^Layer ${layers} of ${layers} ·`);
+    let readout = '';
+    for (const until = Date.now() + 30_000; !lastLayer.test(readout) && Date.now() < until; ) {
+      await plot.scrollIntoViewIfNeeded();
+      const box = (await plot.boundingBox())!;
+      await plot.hover({ position: { x: box.width - 1, y: box.height / 2 } });
+      await page.waitForTimeout(200);
+      readout = (await page.getByTestId('area-chart-readout').textContent()) ?? '';
+    }
+    expect(readout).toMatch(lastLayer);
     // Stepping the cut down one layer from the top names the layer under it.
     await page.getByTestId('plan-layer-slider').focus();
     await page.keyboard.press('ArrowDown');
