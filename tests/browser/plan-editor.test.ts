@@ -1,5 +1,8 @@
+import request from 'supertest';
 import type { Page } from 'playwright-core';
 import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
+import { makeRequest } from '../helpers/plans';
+import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 
 jest.setTimeout(300_000);
 
@@ -11,7 +14,35 @@ afterAll(async () => {
   await served?.close();
 });
 
+/**
+ * An urgent open request of this test's own in the demo lab, so a new plan has parts to take whatever the other
+ * browser tests sharing the database have planned already (the new plan form starts with the most urgent lines).
+ */
+let requests = 0;
+async function openLinesOfOurOwn() {
+  const owner = request.agent(served.running.app);
+  owner.set('Origin', served.baseUrl);
+  const signedIn = await owner.post('/api/auth/sign-in').send({ email: 'owner@tinkerfin.example', password: DEMO_PASSWORD });
+  if (signedIn.status !== 200) throw new Error(`sign-in failed: ${signedIn.status}`);
+  const me = (await owner.get('/api/me')).body;
+  const labId = me.labs[0].id as string;
+  const material = (await owner.get(`/api/labs/${labId}/materials`)).body[0];
+  const n = ++requests;
+  await makeRequest(
+    served.running,
+    labId,
+    me.user.id,
+    material.id,
+    [
+      { name: `Editor bracket ${n}`, sizeMm: [40, 30, 12], quantity: 12 },
+      { name: `Editor clip ${n}`, sizeMm: [20, 12, 8], quantity: 24 },
+    ],
+    { title: `Editor check ${n}`, dueDate: '2026-12-03', priority: 'urgent' },
+  );
+}
+
 async function packNewPlan(page: Page): Promise<string> {
+  await openLinesOfOurOwn();
   await signIn(page, 'planner@tinkerfin.example');
   await page.goto('/plans');
   await page.getByTestId('plans-new').click();
