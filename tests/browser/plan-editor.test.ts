@@ -68,6 +68,22 @@ async function sliderLayers(page: Page): Promise<{ at: number; of: number }> {
 
 let planId = '';
 
+/** The plan packed for 2 s, as the planner, on a page of the given size (on a phone from the lines tab). */
+async function openPacked(viewport: typeof PHONE): Promise<Page> {
+  const page = await newPage(served, viewport);
+  await signIn(page, 'planner@tinkerfin.example');
+  await page.goto(`/plans/${planId}`);
+  if (viewport === PHONE) {
+    await page.getByTestId('plan-tabs').waitFor();
+    await page.getByTestId('plan-tab-lines').click();
+  }
+  await page.getByTestId('pack-time').fill('2');
+  await page.getByTestId('pack-start').click();
+  await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
+  await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+  return page;
+}
+
 describe('one layer count in the plan editor', () => {
   test('wide (1440 x 900): the slider, the numbers and the chart count the same layers, the margins explained', async () => {
     const page = await newPage(served, WIDE);
@@ -100,16 +116,8 @@ describe('one layer count in the plan editor', () => {
 
   test('phone (390 x 844): the 3D tab and the numbers tab show the same count', async () => {
     expect(planId).not.toBe('');
-    const page = await newPage(served, PHONE);
-    await signIn(page, 'planner@tinkerfin.example');
-    await page.goto(`/plans/${planId}`);
-    await page.getByTestId('plan-tabs').waitFor();
-    // The packing not kept stays in this browser's draft only on the wide page: pack again here.
-    await page.getByTestId('plan-tab-lines').click();
-    await page.getByTestId('pack-time').fill('2');
-    await page.getByTestId('pack-start').click();
-    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
-    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    // The packing not kept stays in this browser's draft only on the page that made it: pack again here.
+    const page = await openPacked(PHONE);
     await page.getByTestId('plan-tab-numbers').click();
     const layers = Number(await page.getByTestId('num-layers').textContent());
     expect(layers).toBeGreaterThan(0);
@@ -168,15 +176,7 @@ describe('the 3D view gets the room and frames the parts', () => {
 
   test('phone (390 x 844): the 3D tab frames the parts, the chamber on request', async () => {
     expect(planId).not.toBe('');
-    const page = await newPage(served, PHONE);
-    await signIn(page, 'planner@tinkerfin.example');
-    await page.goto(`/plans/${planId}`);
-    await page.getByTestId('plan-tabs').waitFor();
-    await page.getByTestId('plan-tab-lines').click();
-    await page.getByTestId('pack-time').fill('2');
-    await page.getByTestId('pack-start').click();
-    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
-    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    const page = await openPacked(PHONE);
     await page.getByTestId('plan-tab-build').click();
     await page.locator('[data-testid="plan-build"] canvas').waitFor();
     await expect(page.getByTestId('view-parts').getAttribute('aria-checked')).resolves.toBe('true');
@@ -226,13 +226,7 @@ async function moveUntilFault(page: Page, step: () => Promise<void>, steps = 40)
 describe('moving, turning and dropping parts by hand', () => {
   test('wide (1440 x 900): arrows move a marked part, the clash is shown and blocks keeping, D drops it clear', async () => {
     expect(planId).not.toBe('');
-    const page = await newPage(served, WIDE);
-    await signIn(page, 'planner@tinkerfin.example');
-    await page.goto(`/plans/${planId}`);
-    await page.getByTestId('pack-time').fill('2');
-    await page.getByTestId('pack-start').click();
-    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
-    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    const page = await openPacked(WIDE);
     await markAPart(page, false);
     await expect(page.getByTestId('layout-keep').getAttribute('aria-disabled')).resolves.not.toBe('true');
     await page.getByTestId('plan-status').click();
@@ -263,14 +257,7 @@ describe('moving, turning and dropping parts by hand', () => {
 
   test('phone (390 x 844): the buttons under the view move and drop a tapped part', async () => {
     expect(planId).not.toBe('');
-    const page = await newPage(served, PHONE);
-    await signIn(page, 'planner@tinkerfin.example');
-    await page.goto(`/plans/${planId}`);
-    await page.getByTestId('plan-tab-lines').click();
-    await page.getByTestId('pack-time').fill('2');
-    await page.getByTestId('pack-start').click();
-    await page.getByTestId('pack-start').waitFor({ timeout: 60_000 });
-    await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
+    const page = await openPacked(PHONE);
     await page.getByTestId('plan-tab-build').click();
     await page.locator('[data-testid="plan-build"] canvas').waitFor();
     await markAPart(page, false);
