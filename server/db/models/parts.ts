@@ -38,6 +38,12 @@ export interface PartRow extends Model<InferAttributes<PartRow>, InferCreationAt
   orientation: CreationOptional<string>;
   defaultMaterialId: CreationOptional<string | null>;
   uploadedBy: string | null;
+  /** The file's revision: 1 for the first file, then one more for each new file of the part. */
+  revision: CreationOptional<number>;
+  /** The part's first revision (null on the first itself). */
+  firstRevisionId: CreationOptional<string | null>;
+  /** The next revision, once a newer file was added. */
+  supersededBy: CreationOptional<string | null>;
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
 }
@@ -125,6 +131,9 @@ export function partModels(sequelize: Sequelize) {
       orientation: { type: DataTypes.TEXT, allowNull: false, defaultValue: 'any' },
       defaultMaterialId: { type: DataTypes.UUID, field: 'default_material_id' },
       uploadedBy: { type: DataTypes.TEXT, field: 'uploaded_by' },
+      revision: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
+      firstRevisionId: { type: DataTypes.UUID, field: 'first_revision_id' },
+      supersededBy: { type: DataTypes.UUID, field: 'superseded_by' },
       ...stamps,
     },
     { ...timed, tableName: 'parts' },
