@@ -137,7 +137,7 @@ const connectionOf = (transaction: Transaction): Sql => (transaction as unknown 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const FINISHED = ['done', 'rejected'];
 // One lock for handing out turns: two uploads at once must not both take the lab's next turn.
-const TURN_LOCK_SQL = "SELECT pg_advisory_xact_lock(hashtext('upload-turn-order'))";
+const TURN_LOCK_SQL = "SELECT pg_advisory_xact_lock(hashtext('sinter-queue-turns'))";
 
 function allRejected(rejected: RejectedFile[]): AppError {
   const message =
@@ -169,7 +169,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
    * number handed out.
    */
   async function handOut(client: Sql, labId: string): Promise<number> {
-    await client.query("SELECT pg_advisory_xact_lock(hashtext('upload-lab-handout:' || $1))", [labId]);
+    await client.query("SELECT pg_advisory_xact_lock(hashtext('sinter-queue-lab:' || $1))", [labId]);
     const { rows } = await client.query<{ id: string; turn: number }>(
       `SELECT id, turn FROM mesh_job_files WHERE lab_id = $1 AND state = 'waiting' ORDER BY turn, position
         LIMIT greatest(0, $2 - (SELECT count(*) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')))
