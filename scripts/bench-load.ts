@@ -11,11 +11,13 @@
  *   npm run bench:load -- --seconds 15      (a short run)
  *   options: --clients 50 --large 6 --large-triangles 400000
  *
- * Measuring runs in one `npm run worker` process at a lower CPU priority
- * (nice 10) with two threads, and a per-lab limit of one file at a time, so
- * the other labs always find a thread free (MESH_THREADS and
- * MESH_LAB_CONCURRENCY in the environment override them); `--in-process`
- * measures in the server's own worker instead.
+ * Measuring runs in one `npm run worker` process with one bulk thread (large
+ * files, at nice 10: MESH_BULK_NICE) and the quick thread (files up to
+ * MESH_QUICK_MB, at full priority), and a per-lab limit of one file at a
+ * time, so the other labs' small files always find the quick thread free
+ * (MESH_THREADS, MESH_QUICK_MB, MESH_BULK_NICE and MESH_LAB_CONCURRENCY in
+ * the environment override them); `--in-process` measures in the server's
+ * own worker instead.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:net';
@@ -114,7 +116,7 @@ async function main() {
     await seeding.close();
 
     const env = {
-      MESH_THREADS: '2',
+      MESH_THREADS: '1',
       MESH_LAB_CONCURRENCY: '1',
       ...process.env,
       DATABASE_URL: databaseUrl,
@@ -138,7 +140,7 @@ async function main() {
     server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
     await started(server, 'serving on', 'server');
     if (!IN_PROCESS) {
-      worker = spawn('nice', ['-n', '10', process.execPath, '--import', 'tsx', 'scripts/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+      worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
       await started(worker, 'serving queue', 'worker');
     }
 
@@ -178,7 +180,7 @@ async function main() {
     const small = await Promise.all(Array.from({ length: SMALL_LABS }, (_, i) => signUp(`small${i}`)));
     const minor = Math.round(LARGE_TRIANGLES / 2 / 400);
     const large = Array.from({ length: LARGE_FILES }, (_, i) => writeBinaryStl(torus(60 + i, 20, 400, minor), `large ${i}`));
-    log(`server on ${base}; measuring ${IN_PROCESS ? 'in the server' : 'in one worker process (nice 10)'} with MESH_THREADS ${env.MESH_THREADS}, MESH_LAB_CONCURRENCY ${env.MESH_LAB_CONCURRENCY}`);
+    log(`server on ${base}; measuring ${IN_PROCESS ? 'in the server' : 'in one worker process'} with MESH_THREADS ${env.MESH_THREADS} (bulk, nice ${env.MESH_BULK_NICE ?? 10}) and a quick thread for files up to ${env.MESH_QUICK_MB ?? 1} MB, MESH_LAB_CONCURRENCY ${env.MESH_LAB_CONCURRENCY}`);
     log(`${CLIENTS} clients on ${routes.length} read routes for ${SECONDS} s; ` +
       `one lab uploads ${LARGE_FILES} files of ${(2 * 400 * minor).toLocaleString('en')} triangles (${(large[0].byteLength / 1e6).toFixed(1)} MB each); ` +
       `${SMALL_LABS} other labs upload a 12-triangle STL every ${SMALL_EVERY_MS / 1000} s`);

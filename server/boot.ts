@@ -6,7 +6,7 @@ import { createAuth } from './auth/sessions';
 import { createMailer } from './mail/mailer';
 import { createLabEvents } from './events/labEvents';
 import { createApp, createServices, type AppDeps } from './app';
-import { configureMeshPool, defaultMeshThreads, measureFile, profileLayout } from './mesh';
+import { configureMeshPool, defaultMeshThreads, measureFile, meshPool, profileLayout } from './mesh';
 import { startBoss } from './jobs/boss';
 import { startMeshWorker, type MeshWorker } from './jobs/worker';
 import type { MeshQueueSettings } from './jobs/meshJobs';
@@ -33,12 +33,12 @@ export async function boot(config: Config, log: (msg: string) => void = console.
   const mailer = await createMailer(config);
   const events = createLabEvents(pool, config.databaseUrl, log);
   const threads = config.meshThreads ?? defaultMeshThreads();
-  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs });
+  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs, quickBytes: config.meshQuickBytes, bulkNice: config.meshBulkNice });
   const settings = meshQueueSettings(config);
   const boss = await startBoss(config.databaseUrl, settings, log);
   const services = createServices(db, mailer, config, { boss, pool, events, settings, log });
   let worker: MeshWorker | null = null;
-  if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, databaseUrl: config.databaseUrl, threads, tools: { measure: measureFile, slice: profileLayout }, settings, log });
+  if (config.meshWorker) worker = await startMeshWorker({ boss, jobs: services.meshJobs, databaseUrl: config.databaseUrl, threads: meshPool().capacity, tools: { measure: measureFile, slice: profileLayout }, settings, log });
   const deps: AppDeps = { config, db, pool, auth, mailer, events, services, log };
   const app = createApp(deps);
   // Forecasts move with time as well as with changes: a shortage can come into its lead time overnight.

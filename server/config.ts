@@ -50,6 +50,10 @@ const envSchema = z.object({
   MESH_WORKER: z.enum(['on', 'off']).default('on'),
   /** Worker threads measuring meshes in this process (default: half the cores, 1 to 4). */
   MESH_THREADS: z.coerce.number().int().min(1).max(64).optional(),
+  /** Files up to this size are measured on a thread of their own at full priority, never behind a large file; 0: one lane for all. */
+  MESH_QUICK_MB: z.coerce.number().min(0).max(1024).default(1),
+  /** Nice value (0-19) of the threads measuring large files and slicing layouts, so they give way to the web server and small files. */
+  MESH_BULK_NICE: z.coerce.number().int().min(0).max(19).default(10),
   /** Files of one lab measured at once, across every worker. */
   MESH_LAB_CONCURRENCY: z.coerce.number().int().min(1).max(64).default(2),
   /** Time limit for measuring one file. */
@@ -116,6 +120,8 @@ export type Config = {
   storage: StorageConfig;
   meshWorker: boolean;
   meshThreads?: number;
+  meshQuickBytes: number;
+  meshBulkNice: number;
   meshLabConcurrency: number;
   meshTimeoutMs: number;
   meshJobExpireSeconds: number;
@@ -176,6 +182,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     storage,
     meshWorker: e.MESH_WORKER === 'on',
     meshThreads: e.MESH_THREADS,
+    meshQuickBytes: Math.round(e.MESH_QUICK_MB * 1024 * 1024),
+    meshBulkNice: e.MESH_BULK_NICE,
     meshLabConcurrency: e.MESH_LAB_CONCURRENCY,
     meshTimeoutMs: e.MESH_TIMEOUT_S * 1000,
     meshJobExpireSeconds: expire,

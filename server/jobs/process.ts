@@ -26,17 +26,17 @@ export async function runWorkerProcess(config: Config, settings: MeshQueueSettin
   pool.on('error', () => {});
   const events = createLabEvents(pool, config.databaseUrl, log);
   const threads = config.meshThreads ?? defaultMeshThreads();
-  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs });
+  configureMeshPool({ size: threads, timeoutMs: config.meshTimeoutMs, quickBytes: config.meshQuickBytes, bulkNice: config.meshBulkNice });
   const storage = createStorage(db, config.storage);
   const parts = partsService(db, { storage, max3mfExpandedBytes: config.max3mfExpandedBytes, maxMeshTriangles: config.maxMeshTriangles });
   const boss = await startBoss(config.databaseUrl, settings, log);
   const jobs = meshJobsService({ db, pool, boss, storage, parts, settings, publish: (e) => events.publish(e), log });
   // The threads start now (loading the geometry code takes seconds on a busy machine), not with the first file.
-  meshPool();
-  const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads, tools: { measure: measureFile, slice: profileLayout }, settings, log });
+  const capacity = meshPool().capacity;
+  const worker = await startMeshWorker({ boss, jobs, databaseUrl: config.databaseUrl, threads: capacity, tools: { measure: measureFile, slice: profileLayout }, settings, log });
   return {
     name: worker.name,
-    threads,
+    threads: capacity,
     async stop() {
       await worker.stop();
       // Waits for the files being measured (up to their time limit); what is left goes back to the queue.

@@ -1,11 +1,18 @@
 /**
- * The worker threads that measure mesh files and slice layouts: a piscina
- * pool speaking the messages of ./protocol.ts. Tasks queue when every thread
- * is busy; a task that runs past its time limit (a crafted file can make
+ * The worker threads that measure mesh files and slice layouts: piscina
+ * pools speaking the messages of ./protocol.ts, in two lanes. Small files
+ * (up to `quickBytes`) and the pictures of small parts go to one thread of
+ * their own at the process's priority, so a lab's 12-triangle clip is never
+ * stuck behind another lab's 20 MB housing; large files and layouts go to
+ * the bulk threads, which run at a lower CPU priority (`bulkNice`, a
+ * per-thread nice value on Linux) so that big work gives way to the web
+ * server and to the small files when the machine is busy. Tasks queue when
+ * every thread of their lane is busy; a task that runs past its time limit (a crafted file can make
  * inflating or parsing slow) is aborted, which ends its thread (piscina starts
  * another), and is answered with a problem instead of hanging the caller. A
  * thread that dies is answered the same way.
  */
+import { stat } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { Piscina } from 'piscina';
@@ -14,19 +21,30 @@ import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometr
 import type { FileMeasureResult, MeasureReply, MeasureRequest, ServerProblem, ThumbnailJob } from './protocol';
 
 export interface MeshPoolOptions {
-  /** Worker threads (default: half the cores, at least 1, at most 4). */
+  /** Bulk worker threads (default: half the cores, at least 1, at most 4). */
   size?: number;
   /** Time limit per file (default 120 s). */
   timeoutMs?: number;
+  /** Files (and pictures of files) up to this many bytes go to the quick thread; 0: no quick lane (default 1 MB). */
+  quickBytes?: number;
+  /** Nice value of the bulk threads, 0 (as the process) to 19 (yield to everything); default 10. */
+  bulkNice?: number;
 }
+
+export const DEFAULT_QUICK_BYTES = 1024 * 1024;
+export const DEFAULT_BULK_NICE = 10;
 
 export const defaultMeshThreads = () => Math.min(4, Math.max(1, Math.floor(availableParallelism() / 2)));
 
 // The sources are TypeScript (run by tsx or jest): the thread entry registers tsx's loader, then loads worker.ts.
 const THREAD_FILE = path.join(__dirname, 'thread.cjs');
 
+type Lane = Piscina<MeasureRequest, MeasureReply>;
+
 export class MeshPool {
-  private readonly pool: Piscina<MeasureRequest, MeasureReply>;
+  private readonly bulk: Lane;
+  private readonly quick: Lane | null;
+  private readonly quickBytes: number;
   private readonly timeoutMs: number;
   private nextId = 1;
   private closed = false;
@@ -34,17 +52,27 @@ export class MeshPool {
   constructor(options: MeshPoolOptions = {}) {
     const size = options.size ?? defaultMeshThreads();
     this.timeoutMs = options.timeoutMs ?? 120_000;
-    this.pool = new Piscina({ filename: THREAD_FILE, minThreads: size, maxThreads: size, idleTimeout: 60_000 });
+    this.quickBytes = options.quickBytes ?? DEFAULT_QUICK_BYTES;
+    const nice = options.bulkNice ?? DEFAULT_BULK_NICE;
+    this.bulk = new Piscina({ filename: THREAD_FILE, minThreads: size, maxThreads: size, idleTimeout: 60_000, workerData: { nice } });
+    this.quick = this.quickBytes > 0 ? new Piscina({ filename: THREAD_FILE, minThreads: 1, maxThreads: 1, idleTimeout: 60_000, workerData: { nice: 0 } }) : null;
   }
 
+  /** The bulk threads. */
   get size(): number {
-    return this.pool.maxThreads;
+    return this.bulk.maxThreads;
+  }
+
+  /** Files this pool measures at once: the bulk threads and the quick one. */
+  get capacity(): number {
+    return this.bulk.maxThreads + (this.quick ? 1 : 0);
   }
 
   /** Measures a file on disk (a path) or in memory (bytes). */
   async measure(input: string | Uint8Array, options: MeasureOptions): Promise<FileMeasureResult> {
     const request = typeof input === 'string' ? { path: input, options } : { bytes: input, options };
-    const reply = await this.run(request, options.filename);
+    const bytes = typeof input === 'string' ? await stat(input).then((s) => s.size, () => Infinity) : input.byteLength;
+    const reply = await this.run(request, options.filename, this.laneFor(bytes));
     if ('problem' in reply) return { ok: false, problems: [reply.problem] };
     if ('error' in reply) throw new Error(`measuring ${options.filename} failed: ${reply.error}`);
     if (!('result' in reply)) throw new Error('a measuring job got a profile back');
@@ -56,7 +84,7 @@ export class MeshPool {
    * only reads the files). A worker that fails or runs out of time rejects.
    */
   async profile(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
-    const reply = await this.run({ profile: job, options: { filename: 'layout profile' } }, 'layout profile');
+    const reply = await this.run({ profile: job, options: { filename: 'layout profile' } }, 'layout profile', this.bulk);
     if ('problem' in reply) throw new Error(reply.problem.message);
     if ('error' in reply) throw new Error(`slicing the layout failed: ${reply.error}`);
     if (!('profile' in reply)) throw new Error('a layout profile job got a measure result back');
@@ -65,7 +93,7 @@ export class MeshPool {
 
   /** Draws a stored part's picture in a worker; null when the file holds no such part. */
   async thumbnail(job: ThumbnailJob): Promise<Uint8Array | null> {
-    const reply = await this.run({ thumbnail: job, options: { filename: job.filename } }, job.filename);
+    const reply = await this.run({ thumbnail: job, options: { filename: job.filename } }, job.filename, this.laneFor(job.bytes.byteLength));
     if ('problem' in reply) throw new Error(reply.problem.message);
     if ('error' in reply) throw new Error(`drawing ${job.filename} failed: ${reply.error}`);
     if (!('png' in reply)) throw new Error('a thumbnail job got another answer back');
@@ -75,14 +103,18 @@ export class MeshPool {
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
-    await this.pool.destroy();
+    await Promise.all([this.bulk.destroy(), this.quick?.destroy()]);
   }
 
-  private async run(request: Omit<MeasureRequest, 'id'>, filename: string): Promise<MeasureReply | { problem: ServerProblem }> {
+  private laneFor(bytes: number): Lane {
+    return this.quick && bytes <= this.quickBytes ? this.quick : this.bulk;
+  }
+
+  private async run(request: Omit<MeasureRequest, 'id'>, filename: string, lane: Lane): Promise<MeasureReply | { problem: ServerProblem }> {
     if (this.closed) throw new Error('the mesh pool is closed');
     const signal = AbortSignal.timeout(this.timeoutMs);
     try {
-      return await this.pool.run({ id: this.nextId++, ...request }, { signal });
+      return await lane.run({ id: this.nextId++, ...request }, { signal });
     } catch (error) {
       if (this.closed) throw new Error('the mesh pool is closed');
       if (signal.aborted) {

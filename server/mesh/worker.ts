@@ -4,11 +4,23 @@
  * mesh never blocks the event loop of the process that asked.
  */
 import { readFile } from 'node:fs/promises';
+import { setPriority } from 'node:os';
+import { workerData } from 'piscina';
 import { PNG } from 'pngjs';
 import { measureMeshFile, parseMeshFile, SliceCache } from '../../shared/geometry';
 import { profileLayoutFromFiles, restingMesh, RestingMeshCache } from '../../shared/geometry/layoutSlices';
 import { renderThumbnail } from '../../shared/geometry/thumbnail';
 import type { MeasureReply, MeasureRequest, ThumbnailJob } from './protocol';
+
+// A bulk thread yields the CPU to the web server and the quick lane (on Linux a nice value is per thread).
+const nice = Number((workerData as { nice?: number } | undefined)?.nice ?? 0);
+if (nice > 0) {
+  try {
+    setPriority(nice);
+  } catch {
+    // Not allowed here (some containers): the thread runs at the process's priority.
+  }
+}
 
 // Parts read and sliced before, kept for the next layout of the same parts in this thread.
 const caches = { meshes: new RestingMeshCache(), slices: new SliceCache() };

@@ -1,8 +1,8 @@
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { MeshPool } from '../../../server/mesh';
-import { demoLibrary, writeBinaryStl, write3mf, translation } from '../../../shared/geometry';
+import { demoLibrary, writeBinaryStl, write3mf, translation, torus } from '../../../shared/geometry';
 
 jest.setTimeout(60_000);
 
@@ -69,4 +69,41 @@ test('a file that takes longer than the time limit is answered with a problem, a
   } finally {
     await slow.close();
   }
+});
+
+describe('two lanes: small files are never queued behind a large one', () => {
+  test('a small file sent while a large one is being measured comes back first', async () => {
+    const lanes = new MeshPool({ size: 1, timeoutMs: 60_000, quickBytes: 64 * 1024 });
+    try {
+      // about 10 MB of STL: it takes the only bulk thread for a while
+      const large = writeBinaryStl(torus(60, 20, 500, 200), 'housing');
+      const small = writeBinaryStl(demoLibrary()[0].mesh, 'clip');
+      expect(small.byteLength).toBeLessThan(64 * 1024);
+      await lanes.measure(small, { filename: 'warm.stl' }); // both lanes started
+      const finished: string[] = [];
+      const big = lanes.measure(large, { filename: 'housing.stl' }).then((r) => finished.push('housing') && r);
+      await new Promise((r) => setTimeout(r, 20));
+      const little = lanes.measure(small, { filename: 'clip.stl' }).then((r) => finished.push('clip') && r);
+      const [a, b] = await Promise.all([big, little]);
+      expect(a.ok && b.ok).toBe(true);
+      expect(finished).toEqual(['clip', 'housing']);
+    } finally {
+      await lanes.close();
+    }
+  });
+
+  // A nice value per thread is a Linux behaviour (elsewhere the threads share the process's).
+  (process.platform === 'linux' ? test : test.skip)('the bulk threads run at the lower CPU priority, the quick one at the process\'s', async () => {
+    const niceOfThreads = () =>
+      readdirSync('/proc/self/task').map((t) => Number(readFileSync(`/proc/self/task/${t}/stat`, 'utf8').split(') ')[1].split(' ')[16]));
+    const before = niceOfThreads().filter((n) => n === 7).length;
+    const lanes = new MeshPool({ size: 2, bulkNice: 7, quickBytes: 64 * 1024 });
+    try {
+      const bytes = writeBinaryStl(demoLibrary()[0].mesh, 'clip');
+      await Promise.all([lanes.measure(bytes, { filename: 'a.stl' }), lanes.measure(new Uint8Array(200_000), { filename: 'b.stl' })]);
+      expect(niceOfThreads().filter((n) => n === 7).length - before).toBe(2);
+    } finally {
+      await lanes.close();
+    }
+  });
 });
