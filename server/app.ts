@@ -108,7 +108,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const review = reviewService(db, { plans, appUrl: config.appUrl, labs });
   const queue = queueService(db, { calibration });
   const reviewFlags = reviewFlagsService(db, { labs, queue });
-  const takeBack = takeBackService(db);
+  const takeBack = takeBackService(db, { plans, appUrl: config.appUrl });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
   const sheet = sheetService(db, { layouts });

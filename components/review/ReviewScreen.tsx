@@ -214,7 +214,7 @@ function Decision({ plan }: { plan: PlanView }) {
 
   const undone = undo.isSuccess ? (
     <Notice tone="info" title="Approval undone" testID="review-undone">
-      The plan is out of the queue and waits for a decision again.
+      {`The plan is out of the queue and waits for a decision again.${told(undo.data?.notified?.length ?? 0)}`}
     </Notice>
   ) : null;
 

@@ -6,6 +6,7 @@ import type { LabsService } from './labs';
 import { canTransition } from '../../shared/plans/status';
 import type { PlanReviewed, ReviewInput } from '../../shared/schemas/plans';
 import { undoUntil } from './takeBack';
+import { plansRepository } from '../db/repositories/plans';
 
 export type ReviewDeps = { plans: PlansService; appUrl: string; labs: LabsService };
 
@@ -16,6 +17,7 @@ export type ReviewDeps = { plans: PlansService; appUrl: string; labs: LabsServic
  */
 export function reviewService(db: Database, deps: ReviewDeps) {
   const { sequelize } = db;
+  const plans = plansRepository(db);
 
   return {
     async review(labId: string, planId: string, user: Actor, input: ReviewInput): Promise<PlanReviewed> {
@@ -40,13 +42,7 @@ export function reviewService(db: Database, deps: ReviewDeps) {
           if (!canTransition(plan.status, 'changes_requested')) throw invalidTransition(plan.status, 'changes_requested');
           await applyTransition(db, plan, 'changes_requested', user.id, comment, transaction);
         }
-        // Whoever sent it for review last; the plan's author when that is not known.
-        const [planner] = await sequelize.query<{ email: string; name: string }>(
-          `SELECT u.email, u.name FROM users u
-            WHERE u.id = COALESCE((SELECT e.user_id FROM plan_events e WHERE e.plan_id = $1 AND e.to_status = 'in_review'
-                                    ORDER BY e.created_at DESC LIMIT 1), $2)`,
-          { bind: [plan.id, plan.created_by], type: QueryTypes.SELECT, transaction },
-        );
+        const planner = await plans.submitter(plan.id, transaction);
         return { plan, queuePosition, planner, approvedAt: new Date() };
       });
       const { plan, queuePosition, planner } = done;

@@ -4,6 +4,8 @@ import { AppError, conflict, forbidden, notFound } from '../errors';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlanRow } from './planCommon';
 import { canTakeBack, STATUS_LABELS } from '../../shared/plans/status';
 import type { PlanReviewed } from '../../shared/schemas/plans';
+import type { PlansService } from './plans';
+import { plansRepository } from '../db/repositories/plans';
 
 /** How long after approving a plan or moving the queue the lead who did it may undo it. After that, return the plan to draft. */
 export const UNDO_WINDOW_MS = 2 * 60_000;
@@ -27,10 +29,19 @@ export const undoUntil = (at: Date | string) => new Date(new Date(at).getTime() 
  * (the window is the server's, {@link UNDO_WINDOW_MS}, counted by the
  * database's clock), and returning an approved or queued plan to draft, with
  * a reason, at any time before printing. Each is recorded in the plan's
- * history and in the lab's audit log.
+ * history and in the lab's audit log, and the planner who sent the plan for
+ * review is e-mailed, as for the approval itself (not when they did it).
  */
-export function takeBackService(db: Database) {
+export function takeBackService(db: Database, deps: { plans: PlansService; appUrl: string }) {
   const { sequelize } = db;
+  const repo = plansRepository(db);
+
+  /** E-mails the plan's submitter about a take-back by someone else; the addresses reached. */
+  async function tellSubmitter(planId: string, user: Actor, subject: string, lines: string[]): Promise<string[]> {
+    const planner = await repo.submitter(planId);
+    if (!planner || planner.id === user.id) return [];
+    return deps.plans.notify([planner.email], subject, [...lines, '', `${deps.appUrl}/plans/${planId}`].join('\n'));
+  }
 
   /** Takes the plan out of its machine's queue; those behind it move up one place. */
   async function leaveQueue(plan: PlanRow, transaction: Transaction): Promise<void> {
@@ -54,7 +65,7 @@ export function takeBackService(db: Database) {
   return {
     /** The lead who approved a plan puts it back in review, within the window; it leaves the queue. */
     async undoApproval(labId: string, planId: string, user: Actor): Promise<PlanReviewed> {
-      return sequelize.transaction(async (transaction) => {
+      const done = await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!canTakeBack(plan.status, 'in_review')) throw invalidTransition(plan.status, 'in_review');
         const [approval] = await sequelize.query<{ user_id: string | null; created_at: Date; age_ms: number }>(
@@ -72,13 +83,17 @@ export function takeBackService(db: Database) {
         await leaveQueue(plan, transaction);
         const version = await applyTransition(db, plan, 'in_review', user.id, 'Approval undone', transaction, { takeBack: true });
         await recordAudit(plan, user.id, 'approval_undone', { status: 'in_review', from }, transaction);
-        return { id: plan.id, status: plan.status, version, queuePosition: null };
+        return { id: plan.id, name: plan.name, status: plan.status, version };
       });
+      const notified = await tellSubmitter(done.id, user, `Approval undone: plan ${done.name}`, [
+        `${user.name} undid the approval of the build plan "${done.name}". It has left its machine's queue and is waiting for review again.`,
+      ]);
+      return { id: done.id, status: done.status, version: done.version, queuePosition: null, notified };
     },
 
     /** An approved or queued plan back to draft, before printing, with the reason kept in its history. */
     async returnToDraft(labId: string, planId: string, user: Actor, reason: string): Promise<PlanReviewed> {
-      return sequelize.transaction(async (transaction) => {
+      const done = await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!canTakeBack(plan.status, 'draft')) {
           throw conflict(
@@ -92,8 +107,16 @@ export function takeBackService(db: Database) {
         await leaveQueue(plan, transaction);
         const version = await applyTransition(db, plan, 'draft', user.id, reason, transaction, { takeBack: true });
         await recordAudit(plan, user.id, 'returned_to_draft', { status: 'draft', from, reason }, transaction);
-        return { id: plan.id, status: plan.status, version, queuePosition: null };
+        return { id: plan.id, name: plan.name, status: plan.status, version };
       });
+      const notified = await tellSubmitter(done.id, user, `Returned to draft: plan ${done.name}`, [
+        `${user.name} returned the build plan "${done.name}" to draft, with this reason:`,
+        '',
+        reason,
+        '',
+        'It has left its machine\'s queue. Open it to change it and send it for review again:',
+      ]);
+      return { id: done.id, status: done.status, version: done.version, queuePosition: null, notified };
     },
 
     /** Puts a machine's queue back in the order before a move, if the lead who made it asks within the window and nothing changed since. */

@@ -1,4 +1,4 @@
-import { addMember, startTestApp } from '../helpers/app';
+import { addMember, startTestApp, waitForMail } from '../helpers/app';
 import { GEAR, sentForReview } from '../helpers/plans';
 import { labWithCrew, queuedPlan, startBody } from './runs-fixtures';
 import { UNDO_WINDOW_MS } from '../../server/services/takeBack';
@@ -22,24 +22,34 @@ async function ageApproval(planId: string, ms: number) {
 
 describe('undoing an approval', () => {
   test('the lead who approved puts the plan back in review within the window: it leaves the queue and the plans behind move up', async () => {
-    const { agent: lead, labId, ids, userId, machineId } = await sentForReview(running, 'undo-approve', 2);
+    const { agent: lead, labId, ids, userId, machineId, planner } = await sentForReview(running, 'undo-approve', 2);
     const url = (id: string) => `/api/labs/${labId}/plans/${id}`;
+    // With a second approver required, the lead who undoes an approval still is not the one who sent the plan.
+    expect((await lead.patch(`/api/labs/${labId}/settings`).send({ secondApproval: true })).body.secondApproval).toBe(true);
     const approved = await lead.post(`${url(ids[0])}/review`).send({ decision: 'approve' });
     const until = Date.parse(approved.body.undoUntil);
     expect(until - Date.now()).toBeGreaterThan(UNDO_WINDOW_MS - 10_000);
     expect(until - Date.now()).toBeLessThanOrEqual(UNDO_WINDOW_MS);
     await lead.post(`${url(ids[1])}/review`).send({ decision: 'approve' });
 
+    const mailsBefore = running.mailer.caught!.length;
     const undone = await lead.post(`${url(ids[0])}/review/undo`);
     expect(undone.status).toBe(200);
-    expect(undone.body).toMatchObject({ status: 'in_review', queuePosition: null });
+    expect(undone.body).toMatchObject({ status: 'in_review', queuePosition: null, notified: [planner.email] });
+    // The planner who sent it is told, as they were of the approval.
+    const mail = await waitForMail(running, mailsBefore, planner.email);
+    expect(mail.subject).toBe('Approval undone: plan Plan 1');
+    expect(mail.text).toMatch(/undid the approval of the build plan "Plan 1".*waiting for review again/s);
+    expect(mail.text).toContain(`/plans/${ids[0]}`);
     const view = (await lead.get(url(ids[0]))).body;
     expect(view.events.at(-1)).toMatchObject({ from: 'queued', to: 'in_review', by: { id: userId }, comment: 'Approval undone' });
     const queue = (await lead.get(`/api/labs/${labId}/machines/${machineId}/queue`)).body;
     expect(queue.plans.map((p: { planId: string; queuePosition: number }) => [p.planId, p.queuePosition])).toEqual([[ids[1], 1]]);
     // In review again: it can be decided anew, and undone only once.
     expect((await lead.post(`${url(ids[0])}/review/undo`)).status).toBe(409);
-    expect((await lead.post(`${url(ids[0])}/review`).send({ decision: 'approve' })).body).toMatchObject({ status: 'queued', queuePosition: 2 });
+    const again = running.mailer.caught!.length;
+    expect((await lead.post(`${url(ids[0])}/review`).send({ decision: 'approve' })).body).toMatchObject({ status: 'queued', queuePosition: 2, notified: [planner.email] });
+    expect((await waitForMail(running, again, planner.email)).subject).toBe('Approved: plan Plan 1');
   });
 
   test("after the window the server answers 409 saying why; another lead or a planner may not undo someone's approval (403)", async () => {
@@ -134,6 +144,27 @@ describe('returning a plan to draft', () => {
     const designer = await addMember(running, lab.agent, lab.labId, ['designer'], 'designer');
     expect((await designer.agent.post(`${url(lab.ids[1])}/return-to-draft`).send({ reason: 'x' })).status).toBe(403);
     expect((await lab.agent.post(`${url(lab.ids[0])}/return-to-draft`).send({ reason: 'again' })).status).toBe(409);
+  });
+
+  test("the planner who sent the plan is e-mailed the reason when someone else returns it to draft; their own return mails nobody", async () => {
+    const lab = await sentForReview(running, 'return-draft-mail', 2);
+    const url = (id: string) => `/api/labs/${lab.labId}/plans/${id}`;
+    for (const id of lab.ids) await lab.agent.post(`${url(id)}/review`).send({ decision: 'approve' });
+
+    const before = running.mailer.caught!.length;
+    const byLead = await lab.agent.post(`${url(lab.ids[0])}/return-to-draft`).send({ reason: 'The powder lot for this machine was recalled' });
+    expect(byLead.status).toBe(200);
+    expect(byLead.body.notified).toEqual([lab.planner.email]);
+    const mail = await waitForMail(running, before, lab.planner.email);
+    expect(mail.subject).toBe('Returned to draft: plan Plan 1');
+    expect(mail.text).toContain('The powder lot for this machine was recalled');
+    expect(mail.text).toContain(`/plans/${lab.ids[0]}`);
+
+    const own = running.mailer.caught!.length;
+    const byPlanner = await lab.planner.agent.post(`${url(lab.ids[1])}/return-to-draft`).send({ reason: 'Adding two more gears' });
+    expect(byPlanner.status).toBe(200);
+    expect(byPlanner.body.notified).toEqual([]);
+    expect(running.mailer.caught!.slice(own).filter((m) => m.to.includes(lab.planner.email))).toEqual([]);
   });
 
   test('once printing has started the plan cannot be returned to draft', async () => {

@@ -1,4 +1,4 @@
-import type { Transaction } from 'sequelize';
+import { Op, type Transaction } from 'sequelize';
 import type { Database } from '../index';
 import type { PlanStatus } from '../../../shared/plans/status';
 import type { LengthUnit } from '../../../shared/geometry';
@@ -33,7 +33,7 @@ export type PlanPartFile = {
 
 /** Build plans, their lines' part files and their status history, read through the models. */
 export function plansRepository(db: Database) {
-  const { Plan, PlanEvent, PlanLine, RequestLine, Part } = db.models;
+  const { Plan, PlanEvent, PlanLine, RequestLine, Part, User } = db.models;
   return {
     /** Each line's part file, in the plan's line order. */
     async partFiles(planId: string, transaction?: Transaction): Promise<PlanPartFile[]> {
@@ -93,10 +93,22 @@ export function plansRepository(db: Database) {
       return p ? { labId: p.labId } : null;
     },
 
-    /** Who last sent the plan for review (null: nobody, or an account since removed). */
+    /**
+     * Who last sent the plan for review (null: nobody, or an account since removed). An undone approval also
+     * puts the plan in review, by the lead who undid it; that is not a sending, so only moves from a draft count.
+     */
     async lastSentForReviewBy(planId: string, transaction?: Transaction): Promise<string | null> {
-      const e = await PlanEvent.findOne({ where: { planId, toStatus: 'in_review' }, order: [['createdAt', 'DESC']], attributes: ['userId'], transaction });
+      const e = await PlanEvent.findOne({ where: { planId, toStatus: 'in_review', fromStatus: { [Op.in]: ['draft', 'changes_requested'] } }, order: [['createdAt', 'DESC']], attributes: ['userId'], transaction });
       return e?.userId ?? null;
+    },
+
+    /** The planner a decision on the plan is told to: whoever sent it for review last, else its author; null when neither account is there. */
+    async submitter(planId: string, transaction?: Transaction): Promise<{ id: string; email: string; name: string } | null> {
+      const sentBy = await this.lastSentForReviewBy(planId, transaction);
+      const userId = sentBy ?? (await Plan.findByPk(planId, { attributes: ['createdBy'], transaction }))?.createdBy ?? null;
+      if (!userId) return null;
+      const u = await User.findByPk(userId, { attributes: ['id', 'email', 'name'], transaction });
+      return u ? { id: u.id, email: u.email, name: u.name } : null;
     },
   };
 }
