@@ -12,7 +12,7 @@ import { powderModels } from './powder';
  */
 export function initModels(sequelize: Sequelize) {
   const models = { ...accountModels(sequelize), ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize) };
-  const { Lab, Machine, Material, Part, Plan, Run, Layout, PlanLine, RequestLine, User } = models;
+  const { Lab, Machine, Material, Part, Plan, Run, RunReading, Layout, PlanLine, Request, RequestLine, User } = models;
   // Associations across the files above.
   Lab.hasMany(Machine, { foreignKey: 'labId', as: 'machines' });
   Lab.hasMany(Material, { foreignKey: 'labId', as: 'materials' });
@@ -25,6 +25,10 @@ export function initModels(sequelize: Sequelize) {
   Run.belongsTo(Layout, { foreignKey: 'layoutId', as: 'layout' });
   Run.belongsTo(Machine, { foreignKey: 'machineId', as: 'machine' });
   Run.belongsTo(User, { foreignKey: 'calibrationBy', as: 'calibrator' });
+  Run.belongsTo(User, { foreignKey: 'startedBy', as: 'starter' });
+  RunReading.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  RunReading.belongsTo(User, { foreignKey: 'acceptedBy', as: 'acceptor' });
+  Request.belongsTo(User, { foreignKey: 'createdBy', as: 'creator' });
   return models;
 }
 export type Models = ReturnType<typeof initModels>;

@@ -1,4 +1,5 @@
 import type { MeshMetrics } from '../../../shared/geometry/metrics';
+import type { UserRow } from './accounts';
 import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
 
 /** A stored file's bytes (or where they are), shared by every part cut from it. */
@@ -69,6 +70,7 @@ export interface RequestRow extends Model<InferAttributes<RequestRow>, InferCrea
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
   lines?: NonAttribute<RequestLineRow[]>;
+  creator?: NonAttribute<UserRow | null>;
 }
 
 export interface RequestLineRow extends Model<InferAttributes<RequestLineRow>, InferCreationAttributes<RequestLineRow>> {

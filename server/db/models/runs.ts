@@ -8,7 +8,7 @@ export interface RunRow extends Model<InferAttributes<RunRow>, InferCreationAttr
   labId: string;
   machineId: string;
   layoutId: string | null;
-  checklist: unknown;
+  checklist: { chamberInPlace: boolean; opticalWindowClean: boolean };
   freshPowderLoadedKg: number;
   reusedPowderLoadedKg: number;
   startedAt: Date;
@@ -20,7 +20,7 @@ export interface RunRow extends Model<InferAttributes<RunRow>, InferCreationAttr
   doneAt: CreationOptional<Date | null>;
   abortedAt: CreationOptional<Date | null>;
   abortReason: CreationOptional<string | null>;
-  finishingChecklist: CreationOptional<unknown>;
+  finishingChecklist: CreationOptional<{ powderRemoved: boolean; blasted: boolean; inspected: boolean } | null>;
   estimatedPrintHours: number;
   estimatedCoolingHours: number;
   estimatedPreheatHours: number | null;
@@ -41,6 +41,7 @@ export interface RunRow extends Model<InferAttributes<RunRow>, InferCreationAttr
   machine?: NonAttribute<ProfileRow>;
   layout?: NonAttribute<LayoutRow | null>;
   calibrator?: NonAttribute<UserRow | null>;
+  starter?: NonAttribute<UserRow | null>;
 }
 
 export interface RunReadingRow extends Model<InferAttributes<RunReadingRow>, InferCreationAttributes<RunReadingRow>> {
@@ -57,6 +58,8 @@ export interface RunReadingRow extends Model<InferAttributes<RunReadingRow>, Inf
   acceptedReason: CreationOptional<string | null>;
   acceptedAt: CreationOptional<Date | null>;
   createdAt: CreationOptional<Date>;
+  user?: NonAttribute<UserRow | null>;
+  acceptor?: NonAttribute<UserRow | null>;
 }
 
 export interface RunLineRow extends Model<InferAttributes<RunLineRow>, InferCreationAttributes<RunLineRow>> {
