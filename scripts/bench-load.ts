@@ -180,7 +180,7 @@ async function main() {
     const small = await Promise.all(Array.from({ length: SMALL_LABS }, (_, i) => signUp(`small${i}`)));
     const minor = Math.round(LARGE_TRIANGLES / 2 / 400);
     const large = Array.from({ length: LARGE_FILES }, (_, i) => writeBinaryStl(torus(60 + i, 20, 400, minor), `large ${i}`));
-    log(`server on ${base}; measuring ${IN_PROCESS ? 'in the server' : 'in one worker process'} with MESH_THREADS ${env.MESH_THREADS} (bulk, nice ${env.MESH_BULK_NICE ?? 10}) and a quick thread for files up to ${env.MESH_QUICK_MB ?? 1} MB, MESH_LAB_CONCURRENCY ${env.MESH_LAB_CONCURRENCY}`);
+    log(`server on ${base}; measuring ${IN_PROCESS ? 'in the server' : 'in one worker process'} with MESH_THREADS ${env.MESH_THREADS} (bulk, nice ${process.env.MESH_BULK_NICE ?? 10}) and a quick thread for files up to ${process.env.MESH_QUICK_MB ?? 1} MB, MESH_LAB_CONCURRENCY ${env.MESH_LAB_CONCURRENCY}`);
     log(`${CLIENTS} clients on ${routes.length} read routes for ${SECONDS} s; ` +
       `one lab uploads ${LARGE_FILES} files of ${(2 * 400 * minor).toLocaleString('en')} triangles (${(large[0].byteLength / 1e6).toFixed(1)} MB each); ` +
       `${SMALL_LABS} other labs upload a 12-triangle STL every ${SMALL_EVERY_MS / 1000} s`);

@@ -81,9 +81,15 @@ describe('two lanes: small files are never queued behind a large one', () => {
       expect(small.byteLength).toBeLessThan(64 * 1024);
       await lanes.measure(small, { filename: 'warm.stl' }); // both lanes started
       const finished: string[] = [];
-      const big = lanes.measure(large, { filename: 'housing.stl' }).then((r) => finished.push('housing') && r);
+      const big = lanes.measure(large, { filename: 'housing.stl' }).then((r) => {
+        finished.push('housing');
+        return r;
+      });
       await new Promise((r) => setTimeout(r, 20));
-      const little = lanes.measure(small, { filename: 'clip.stl' }).then((r) => finished.push('clip') && r);
+      const little = lanes.measure(small, { filename: 'clip.stl' }).then((r) => {
+        finished.push('clip');
+        return r;
+      });
       const [a, b] = await Promise.all([big, little]);
       expect(a.ok && b.ok).toBe(true);
       expect(finished).toEqual(['clip', 'housing']);

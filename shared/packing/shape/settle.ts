@@ -1,0 +1,173 @@
+/**
+ * Settling a layout by shape: every part, bottom first, is lowered straight
+ * down until its true shape comes within the spacing of a part below it (or
+ * reaches the floor). A layout of bounding boxes stacks a part on the top of
+ * the box below it; settled, the part sinks into that part's hollows (an open
+ * housing, the empty corner of a bracket, the hole of a ring) as far as the
+ * two surfaces allow.
+ *
+ * The distance is kept by geometry on both parts' column profiles (for each
+ * column of a fine plan grid, the lowest and the highest point of the part in
+ * it, exact to the triangles): a column of the part coming down must stay
+ * above every column of the part below within the spacing in plan, by the
+ * height of a ball of that radius over the horizontal distance between the
+ * columns (measured between the nearest points of the two cells, so the
+ * grid can only keep parts further apart, never closer).
+ *
+ * Only parts whose plan boxes come within the spacing of each other matter:
+ * two parts further apart in plan stay apart whatever their heights. Because
+ * each part moves straight down along a free path from above everything it
+ * passes, the settling order stays a lift-out order (Cui et al., ACM TOG
+ * 42(4), 2023: vertical removal keeps a packing free of interlocks).
+ */
+import { usableRegion } from '../geometry';
+import type { PackInstanceV2 } from '../types';
+import type { ShapePart } from './parts';
+import { columnProfile, type Profile } from './profile';
+
+export interface SettleItem {
+  /** Index in the prepared parts. */
+  part: number;
+  /** Rotation 0..23. */
+  rotation: number;
+  /** Minimum corner of the placed bounding box (mm). */
+  position: [number, number, number];
+}
+
+/** A profile as dense maps over its own cells: bottom (+Infinity where empty) and top (-Infinity). */
+interface Dense {
+  nx: number;
+  ny: number;
+  extent: [number, number, number];
+  bottom: Float64Array;
+  top: Float64Array;
+}
+
+function dense(p: Profile): Dense {
+  const bottom = new Float64Array(p.nx * p.ny).fill(Infinity);
+  const top = new Float64Array(p.nx * p.ny).fill(-Infinity);
+  for (let k = 0; k < p.cellX.length; k++) {
+    const id = p.cellX[k] + p.nx * p.cellY[k];
+    bottom[id] = p.bottom[k];
+    top[id] = p.top[k];
+  }
+  return { nx: p.nx, ny: p.ny, extent: p.extent, bottom, top };
+}
+
+/** The plan cell size the settling works at: a third of the spacing, between 0.5 and 1.5 mm. */
+export function settleCell(spacing: number): number {
+  return Math.min(1.5, Math.max(0.5, spacing / 3));
+}
+
+/**
+ * The layout with every part lowered as far as its shape allows, in the same
+ * order (which must be bottom first, as a box layout lists its placements).
+ * `stopped` ends the work early; the parts not reached keep their height.
+ */
+export function settleLayout(
+  instance: PackInstanceV2,
+  parts: ShapePart[],
+  items: readonly SettleItem[],
+  options: { cell?: number; stopped?: () => boolean } = {},
+): SettleItem[] {
+  const g = instance.spacing;
+  const h = options.cell ?? settleCell(g);
+  const floor = usableRegion(instance).min[2];
+  const cache = new Map<string, Dense>();
+  const profileOf = (part: number, rotation: number): Dense => {
+    const key = `${part}:${rotation}`;
+    let d = cache.get(key);
+    if (!d) {
+      const p = parts[part];
+      d = dense(columnProfile(p, rotation, h, g, p.hasMesh && !p.watertight));
+      cache.set(key, d);
+    }
+    return d;
+  };
+  // Plan buckets of the settled parts (by their boxes grown by the spacing), for the near ones.
+  const bucket = Math.max(10, 4 * g);
+  const buckets = new Map<number, number[]>();
+  const keyOf = (i: number, j: number) => i * 100_003 + j;
+  const out: SettleItem[] = [];
+  for (const item of items) {
+    const P = profileOf(item.part, item.rotation);
+    const [x, y, z0] = item.position;
+    let need = floor;
+    if (!options.stopped?.()) {
+      const seen = new Set<number>();
+      const i0 = Math.floor((x - g) / bucket), i1 = Math.floor((x + P.extent[0] + g) / bucket);
+      const j0 = Math.floor((y - g) / bucket), j1 = Math.floor((y + P.extent[1] + g) / bucket);
+      for (let i = i0; i <= i1 && need < z0; i++) {
+        for (let j = j0; j <= j1 && need < z0; j++) {
+          for (const q of buckets.get(keyOf(i, j)) ?? []) {
+            if (seen.has(q)) continue;
+            seen.add(q);
+            const Q = out[q];
+            const QP = profileOf(Q.part, Q.rotation);
+            const gx = Math.max(Q.position[0] - (x + P.extent[0]), x - (Q.position[0] + QP.extent[0]), 0);
+            const gy = Math.max(Q.position[1] - (y + P.extent[1]), y - (Q.position[1] + QP.extent[1]), 0);
+            // Further apart in plan than the spacing: no height brings them closer.
+            if (gx * gx + gy * gy >= g * g) continue;
+            need = Math.max(need, lowestAbove(P, x, y, QP, Q.position, g, h));
+            if (need >= z0) break;
+          }
+        }
+      }
+    } else need = z0;
+    // Never up: the place it had is free by the layout it came from.
+    const z = need < z0 - 1e-6 ? need + 1e-7 : z0;
+    const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, z] };
+    const at = out.length;
+    out.push(placed);
+    const bi0 = Math.floor((x - g) / bucket), bi1 = Math.floor((x + P.extent[0] + g) / bucket);
+    const bj0 = Math.floor((y - g) / bucket), bj1 = Math.floor((y + P.extent[1] + g) / bucket);
+    for (let i = bi0; i <= bi1; i++) {
+      for (let j = bj0; j <= bj1; j++) {
+        const k = keyOf(i, j);
+        let list = buckets.get(k);
+        if (!list) buckets.set(k, (list = []));
+        list.push(at);
+      }
+    }
+  }
+  return out;
+}
+
+/**
+ * The lowest height of P's box bottom (P's box at plan corner x, y) at which
+ * every point of P is at least `g` from every point of Q, coming from above.
+ */
+function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], g: number, h: number): number {
+  let need = -Infinity;
+  const reach = Math.ceil(g / h) + 1;
+  const g2 = g * g;
+  // Cell offsets of Q's grid against P's: Q's cell k starts at q0 + k h.
+  const sx = (x - q[0]) / h, sy = (y - q[1]) / h;
+  for (let j = 0; j < P.ny; j++) {
+    const cy = sy + j; // P's row j in Q's cell units
+    const l0 = Math.max(0, Math.ceil(cy - reach)), l1 = Math.min(Q.ny - 1, Math.floor(cy + reach));
+    if (l0 > l1) continue;
+    for (let i = 0; i < P.nx; i++) {
+      const b = P.bottom[i + P.nx * j];
+      if (b === Infinity) continue;
+      const cx = sx + i;
+      const k0 = Math.max(0, Math.ceil(cx - reach)), k1 = Math.min(Q.nx - 1, Math.floor(cx + reach));
+      for (let l = l0; l <= l1; l++) {
+        const dy = Math.max(0, Math.abs(cy - l) - 1) * h;
+        const dy2 = dy * dy;
+        if (dy2 >= g2) continue;
+        const row = Q.nx * l;
+        for (let k = k0; k <= k1; k++) {
+          const t = Q.top[row + k];
+          if (t === -Infinity) continue;
+          const dx = Math.max(0, Math.abs(cx - k) - 1) * h;
+          const d2 = dx * dx + dy2;
+          if (d2 >= g2) continue;
+          const z = q[2] + t + Math.sqrt(g2 - d2) - b;
+          if (z > need) need = z;
+        }
+      }
+    }
+  }
+  return need;
+}
