@@ -1,6 +1,6 @@
 import { startTestApp } from '../helpers/app';
 import { GEAR } from '../helpers/plans';
-import { labWithCrew, queuedPlan } from './runs-fixtures';
+import { backdateApproval, labWithCrew, queuedPlan, runIdOf, startBody } from './runs-fixtures';
 import { planFlagsViewSchema, type PlanFlagKind } from '../../shared/schemas/review';
 import { labSettingsViewSchema } from '../../shared/schemas/auth';
 import { demoMaterials } from '../../shared/demo/profiles';
@@ -77,6 +77,47 @@ describe('review flags', () => {
     // Once queued, the build before it is the one ahead of it in the queue (the same-powder plan was never approved).
     await lab.agent.post(`${other.base}/review`).send({ decision: 'approve' });
     expect((await flagsOf(lab, other.planId, 'material_change'))[0].details.previousPlanId).toBe(first.planId);
+  });
+
+  test("with nothing queued before the plan, the machine's last run is the build before it: its material counts, and the latest run's, not an older one's", async () => {
+    const lab = await labWithCrew(running, 'flags-last-run', { chamberCount: 1 });
+    const other = await inOtherMaterial(lab);
+    const HOUR = 3_600_000;
+    const iso = (ms: number) => new Date(ms).toISOString();
+    const op = lab.operator.agent;
+    const advance = async (base: string, body: object) => {
+      const res = await op.post(`${base}/run/advance`).send(body);
+      if (res.status !== 200) throw new Error(`advance failed: ${res.status} ${JSON.stringify(res.body)}`);
+    };
+
+    // An older build in the lab's first powder, run to the end hours ago; the queue is empty afterwards.
+    const older = await queuedPlan(running, lab, [GEAR], { name: 'Older nylon run' });
+    const printEnd = older.estimate.print.printSeconds * 1000;
+    const cooled = printEnd + older.estimate.cooling.coolingSeconds * 1000;
+    const t0 = Date.now() - cooled - 3 * HOUR;
+    await backdateApproval(running, older.planId, Date.now() - t0 + HOUR);
+    await advance(older.base, startBody(older.estimate, iso(t0)));
+    const runId = await runIdOf(op, older.base);
+    await advance(older.base, { runId, to: 'cooling', at: iso(t0 + printEnd) });
+    await advance(older.base, { runId, to: 'breakout', at: iso(t0 + cooled) });
+    const counts = older.request.lines.map((l) => ({ requestLineId: l.id, good: 1, failed: 0 }));
+    await advance(older.base, { runId, to: 'finishing', at: iso(t0 + cooled + HOUR), counts });
+    await advance(older.base, { runId, to: 'done', at: iso(t0 + cooled + 2 * HOUR), finishingChecklist: { powderRemoved: true, blasted: true, inspected: true } });
+
+    const inOther = await queuedPlan(running, other, [GEAR], { name: 'Other waiting', approve: false });
+    const afterOlder = await flagsOf(lab, inOther.planId, 'material_change');
+    expect(afterOlder).toHaveLength(1);
+    expect(afterOlder[0].details).toMatchObject({ previousPlanId: older.planId, previousPlanName: 'Older nylon run', previousMaterial: lab.material.name });
+    const sameAsOlder = await queuedPlan(running, lab, [GEAR], { name: 'Nylon waiting', approve: false });
+    expect(await flagsOf(lab, sameAsOlder.planId, 'material_change')).toEqual([]);
+
+    // A newer run in the other powder, printing now: it is the last run, so the powders compare with it.
+    const newer = await queuedPlan(running, other, [GEAR], { name: 'Newer other run' });
+    await advance(newer.base, startBody(newer.estimate));
+    expect(await flagsOf(lab, inOther.planId, 'material_change')).toEqual([]);
+    const [flag] = await flagsOf(lab, sameAsOlder.planId, 'material_change');
+    expect(flag.details).toMatchObject({ previousPlanId: newer.planId, previousPlanName: 'Newer other run', previousMaterial: other.material.name });
+    expect(flag.message).toContain('"Newer other run"');
   });
 
   test("a request due before the queue has the build out of the powder is flagged; one due later is not", async () => {
