@@ -1,5 +1,5 @@
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { queueRepository, type QueueRow } from '../db/repositories/queue';
 import { AppError, notFound } from '../errors';
 import type { z } from 'zod';
 import type { Actor } from './planCommon';
@@ -8,7 +8,6 @@ import type { CalibrationService } from './calibration';
 import type { RunEstimate } from './runs';
 import { scheduleQueue, type CurrentRun, type PlanTimes, type QueuedPlan, type RunStage, type StageDurations } from '../../shared/schedule';
 import type { queueOrderSchema, QueueItemView, QueueView } from '../../shared/schemas/runs';
-import type { MachineProfile } from '../../shared/types/profiles';
 import type { PlanStatus } from '../../shared/plans/status';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -17,19 +16,7 @@ const MS_PER_HOUR = 3_600_000;
 /** In-progress statuses that still hold the machine or a chamber (finishing happens away from both). */
 const ON_MACHINE: readonly PlanStatus[] = ['printing', 'cooling', 'breakout'];
 
-type Row = {
-  id: string;
-  name: string;
-  status: PlanStatus;
-  queue_position: number | null;
-  material_id: string;
-  material_name: string | null;
-  estimate: RunEstimate | null;
-  started_at: Date | null;
-  print_ended_at: Date | null;
-  left_machine_at: Date | null;
-  breakout_at: Date | null;
-};
+type Row = QueueRow<RunEstimate>;
 
 /** A request is due by the end of its due day (UTC): parts out of the powder that day are in time. */
 export function dueEndMs(dueDate: string): number {
@@ -55,31 +42,29 @@ export function durationsFor(estimate: RunEstimate, factors: { printTimeScale: n
 
 /** Where a started run is, as the schedule counts stages. */
 function stageOf(row: Row, d: StageDurations, nowMs: number): { stage: RunStage; stageStartedAtMs: number } {
-  const started = new Date(row.started_at!).getTime();
+  const started = new Date(row.startedAt!).getTime();
   if (row.status === 'printing') {
     const layersFrom = started + d.preheatSeconds * 1000;
     return nowMs < layersFrom ? { stage: 'preheating', stageStartedAtMs: started } : { stage: 'printing', stageStartedAtMs: layersFrom };
   }
   if (row.status === 'cooling') {
-    const ended = new Date(row.print_ended_at!).getTime();
-    if (row.left_machine_at) return { stage: 'cooling_outside', stageStartedAtMs: new Date(row.left_machine_at).getTime() };
+    const ended = new Date(row.printEndedAt!).getTime();
+    if (row.leftMachineAt) return { stage: 'cooling_outside', stageStartedAtMs: new Date(row.leftMachineAt).getTime() };
     // Nobody said it left: presume it did when its in-machine time ran out.
     const presumedOut = ended + d.inMachineCoolingSeconds * 1000;
     return nowMs < presumedOut ? { stage: 'cooling_in_machine', stageStartedAtMs: ended } : { stage: 'cooling_outside', stageStartedAtMs: presumedOut };
   }
-  return { stage: 'breakout', stageStartedAtMs: new Date(row.breakout_at!).getTime() };
+  return { stage: 'breakout', stageStartedAtMs: new Date(row.breakoutAt!).getTime() };
 }
 
 /** A machine's queue with predicted times, and the lead's reordering of it. */
 export function queueService(db: Database, deps: { calibration: CalibrationService }) {
   const { sequelize } = db;
+  const repo = queueRepository(db);
 
   async function machineRow(labId: string, machineId: string) {
     if (!UUID.test(machineId)) throw notFound('That machine');
-    const [row] = await sequelize.query<{ id: string; name: string; profile: Partial<MachineProfile> }>(
-      'SELECT id, name, profile FROM machines WHERE id = $1 AND lab_id = $2',
-      { bind: [machineId, labId], type: QueryTypes.SELECT },
-    );
+    const row = await repo.machine(labId, machineId);
     if (!row) throw notFound('That machine');
     return row;
   }
@@ -88,26 +73,13 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
   async function get(labId: string, machineId: string, nowMs = Date.now(), opts: { asQueued?: string } = {}): Promise<QueueView> {
     const machine = await machineRow(labId, machineId);
     const calibration = await deps.calibration.forMachine(machine.id);
-    const rows = await sequelize.query<Row>(
-      `SELECT p.id, p.name, p.status, p.queue_position, p.material_id, mt.name AS material_name, l.estimate - 'areaPerLayerMm2' AS estimate,
-              r.started_at, r.print_ended_at, r.left_machine_at, r.breakout_at
-         FROM plans p LEFT JOIN layouts l ON l.id = p.chosen_layout_id LEFT JOIN runs r ON r.plan_id = p.id
-         LEFT JOIN materials mt ON mt.id = p.material_id
-        WHERE p.machine_id = $1 AND p.lab_id = $2 AND (p.status = 'queued' OR p.status = ANY($3::text[]) OR p.id = $4::uuid)
-        ORDER BY p.queue_position NULLS LAST, r.started_at DESC NULLS LAST, p.created_at`,
-      { bind: [machine.id, labId, ON_MACHINE, opts.asQueued ?? null], type: QueryTypes.SELECT },
-    );
-    const requests = await sequelize.query<{ plan_id: string; id: string; title: string; due_date: string }>(
-      `SELECT DISTINCT pl.plan_id, r.id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date
-         FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id JOIN requests r ON r.id = rl.request_id
-        WHERE pl.plan_id = ANY($1::uuid[]) ORDER BY due_date, r.title`,
-      { bind: [rows.map((r) => r.id)], type: QueryTypes.SELECT },
-    );
+    const rows = await repo.plans<RunEstimate>(labId, machine.id, ON_MACHINE, opts.asQueued ?? null);
+    const requests = await repo.requests(rows.map((r) => r.id));
     const requestsOf = new Map<string, Array<{ id: string; title: string; dueDate: string }>>();
     for (const r of requests) {
-      const list = requestsOf.get(r.plan_id) ?? [];
-      list.push({ id: r.id, title: r.title, dueDate: r.due_date });
-      requestsOf.set(r.plan_id, list);
+      const list = requestsOf.get(r.planId) ?? [];
+      list.push({ id: r.id, title: r.title, dueDate: r.dueDate });
+      requestsOf.set(r.planId, list);
     }
     // Breakout and cleaning: the machine's hands-on hours per build, the lab's own figure.
     const breakoutSeconds = (machine.profile.labourHoursPerBuild ?? 0) * 3600;
@@ -143,8 +115,8 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
         planId: t.planId,
         name: row.name,
         status: row.status,
-        queuePosition: row.queue_position,
-        material: { id: row.material_id, name: row.material_name ?? '' },
+        queuePosition: row.queuePosition,
+        material: { id: row.materialId, name: row.materialName ?? '' },
         materialChange: null,
         chamberIndex: t.chamberIndex,
         startAt: new Date(t.startMs).toISOString(),
@@ -200,8 +172,8 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     return plans.map((p) => {
       const row = byId.get(p.planId)!;
       const change =
-        prev && prev.material_id !== row.material_id
-          ? { previousPlanId: prev.id, previousPlanName: prev.name, previousMaterial: { id: prev.material_id, name: prev.material_name ?? '' } }
+        prev && prev.materialId !== row.materialId
+          ? { previousPlanId: prev.id, previousPlanName: prev.name, previousMaterial: { id: prev.materialId, name: prev.materialName ?? '' } }
           : null;
       prev = row;
       return { ...p, materialChange: change };
@@ -221,12 +193,7 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
     async reorder(labId: string, machineId: string, user: Actor, input: z.infer<typeof queueOrderSchema>): Promise<QueueView> {
       const machine = await machineRow(labId, machineId);
       const move = await sequelize.transaction(async (transaction) => {
-        // The same lock approval takes, so a plan approved meanwhile is either in the list read here or after it.
-        await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [machine.id], transaction });
-        const rows = await sequelize.query<{ id: string; name: string }>(
-          `SELECT id, name FROM plans WHERE machine_id = $1 AND lab_id = $2 AND status = 'queued' ORDER BY queue_position FOR UPDATE`,
-          { bind: [machine.id, labId], type: QueryTypes.SELECT, transaction },
-        );
+        const rows = await repo.lockQueued(labId, machine.id, transaction);
         const queuedIds = new Set(rows.map((r) => r.id));
         const seen = new Set<string>();
         input.planIds.forEach((id, i) => {
@@ -244,21 +211,11 @@ export function queueService(db: Database, deps: { calibration: CalibrationServi
             { missing: missing.map((m) => m.id) },
           );
         }
-        if (input.planIds.length > 0) {
-          await sequelize.query(
-            `UPDATE plans p SET queue_position = o.pos, updated_at = now()
-               FROM unnest($1::uuid[]) WITH ORDINALITY AS o(id, pos) WHERE p.id = o.id`,
-            { bind: [input.planIds], transaction },
-          );
-        }
+        await repo.setOrder(input.planIds, transaction);
         // Kept with the order before it, so the lead can undo it for a short while (and the audit log shows it).
-        const [kept] = await sequelize.query<{ id: string; created_at: Date }>(
-          `INSERT INTO queue_moves (lab_id, machine_id, user_id, before_ids, after_ids) VALUES ($1, $2, $3, $4::uuid[], $5::uuid[]) RETURNING id, created_at`,
-          { bind: [labId, machine.id, user.id, rows.map((r) => r.id), input.planIds], type: QueryTypes.SELECT, transaction },
-        );
-        return kept;
+        return repo.recordMove({ labId, machineId: machine.id, userId: user.id, beforeIds: rows.map((r) => r.id), afterIds: input.planIds }, transaction);
       });
-      return { ...(await get(labId, machineId)), move: { id: move.id, undoUntil: undoUntil(move.created_at) } };
+      return { ...(await get(labId, machineId)), move: { id: move.id, undoUntil: undoUntil(move.createdAt) } };
     },
   };
 }

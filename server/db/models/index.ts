@@ -22,6 +22,7 @@ export function initModels(sequelize: Sequelize) {
   Plan.belongsTo(Material, { foreignKey: 'materialId', as: 'material' });
   PlanLine.belongsTo(RequestLine, { foreignKey: 'requestLineId', as: 'requestLine' });
   Run.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
+  Plan.hasOne(Run, { foreignKey: 'planId', as: 'run' });
   Run.belongsTo(Layout, { foreignKey: 'layoutId', as: 'layout' });
   Run.belongsTo(Machine, { foreignKey: 'machineId', as: 'machine' });
   Run.belongsTo(User, { foreignKey: 'calibrationBy', as: 'calibrator' });
@@ -29,6 +30,7 @@ export function initModels(sequelize: Sequelize) {
   RunReading.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   RunReading.belongsTo(User, { foreignKey: 'acceptedBy', as: 'acceptor' });
   Request.belongsTo(User, { foreignKey: 'createdBy', as: 'creator' });
+  Part.belongsTo(User, { foreignKey: 'uploadedBy', as: 'uploader' });
   return models;
 }
 export type Models = ReturnType<typeof initModels>;

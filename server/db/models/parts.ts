@@ -47,6 +47,7 @@ export interface PartRow extends Model<InferAttributes<PartRow>, InferCreationAt
   supersededBy: CreationOptional<string | null>;
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
+  uploader?: NonAttribute<UserRow | null>;
 }
 
 /** A part's picture, drawn once per stored file and view. */
@@ -84,6 +85,7 @@ export interface RequestLineRow extends Model<InferAttributes<RequestLineRow>, I
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
   part?: NonAttribute<PartRow>;
+  request?: NonAttribute<RequestRow>;
 }
 
 const stamps = {

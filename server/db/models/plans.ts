@@ -2,6 +2,7 @@ import { DataTypes, type CreationOptional, type InferAttributes, type InferCreat
 import type { PlanStatus } from '../../../shared/plans/status';
 import type { RequestLineRow } from './parts';
 import type { ProfileRow } from './accounts';
+import type { RunRow } from './runs';
 
 export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAttributes<PlanRow>> {
   id: CreationOptional<string>;
@@ -19,10 +20,13 @@ export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAt
   updatedAt: CreationOptional<Date>;
   lines?: NonAttribute<PlanLineRow[]>;
   material?: NonAttribute<ProfileRow | null>;
+  chosenLayout?: NonAttribute<LayoutRow | null>;
+  run?: NonAttribute<RunRow | null>;
 }
 
 export interface PlanLineRow extends Model<InferAttributes<PlanLineRow>, InferCreationAttributes<PlanLineRow>> {
   requestLine?: NonAttribute<RequestLineRow>;
+  plan?: NonAttribute<PlanRow>;
   id: CreationOptional<string>;
   planId: string;
   requestLineId: string;
