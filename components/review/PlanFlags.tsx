@@ -4,13 +4,39 @@ import { usePlanFlagsQuery } from '../queries/review';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Card, ErrorState, LoadingState, Text } from '../ui';
 import type { PlanFlag } from '../../shared/schemas/review';
+import type { PlanStatus } from '../../shared/plans/status';
 
 /**
- * What to look at before approving: each flag the server found, its title and
- * the sentence saying what and why. `compact` is the plan editor's strip: only
- * shown when there is something to say.
+ * The card's heading for where the plan is: the flags are read before sending,
+ * before approving, before printing, and afterwards as the build's record. The
+ * server checks the machine's material and the due dates only before printing.
  */
-export function PlanFlags({ planId, compact = false, testID = 'plan-flags' }: { planId: string; compact?: boolean; testID?: string }) {
+export function flagsHeading(status: PlanStatus | undefined): { title: string; checked: string } {
+  const all = 'density, material, due dates and meshes';
+  switch (status) {
+    case undefined:
+    case 'in_review':
+      return { title: 'Before you approve', checked: all };
+    case 'draft':
+    case 'changes_requested':
+      return { title: 'Before it goes to review', checked: all };
+    case 'approved':
+    case 'queued':
+      return { title: 'Before it prints', checked: all };
+    case 'cancelled':
+      return { title: 'Points on this plan', checked: 'density and meshes' };
+    default:
+      return { title: 'Points on this build', checked: 'density and meshes' };
+  }
+}
+
+/**
+ * What to look at before approving (or before sending, or printing, by the
+ * plan's `status`): each flag the server found, its title and the sentence
+ * saying what and why. `compact` is the plan editor's strip: only shown when
+ * there is something to say.
+ */
+export function PlanFlags({ planId, status, compact = false, testID = 'plan-flags' }: { planId: string; status?: PlanStatus; compact?: boolean; testID?: string }) {
   const lab = useLab();
   const flags = usePlanFlagsQuery(lab.id, planId);
   if (compact) {
@@ -24,10 +50,11 @@ export function PlanFlags({ planId, compact = false, testID = 'plan-flags' }: { 
     );
   }
   const count = flags.data?.flags.length ?? 0;
+  const heading = flagsHeading(status);
   return (
     <Card
-      title="Before you approve"
-      subtitle={flags.data ? (count === 0 ? 'Nothing to flag: density, material, due dates and meshes are in order.' : `${count} point${count === 1 ? '' : 's'} to check`) : undefined}
+      title={heading.title}
+      subtitle={flags.data ? (count === 0 ? `Nothing to flag: ${heading.checked} are in order.` : `${count} point${count === 1 ? '' : 's'} to check`) : undefined}
       actions={flags.data && count > 0 ? <Badge label={`${count} flag${count === 1 ? '' : 's'}`} tone="amber" testID={`${testID}-count`} /> : null}
       testID={testID}
     >

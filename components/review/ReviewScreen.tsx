@@ -122,7 +122,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
 
   const side = (
     <View style={{ gap: spacing.lg }}>
-      <PlanFlags planId={plan.id} testID="review-flags" />
+      <PlanFlags planId={plan.id} status={plan.status} testID="review-flags" />
       <Decision plan={plan} />
       <NumbersPane
         numbers={numbers}

@@ -65,6 +65,17 @@ export async function screenshot(page: Page, name: string) {
   await page.screenshot({ path: join(ARTIFACTS, `${name}.png`), fullPage: false });
 }
 
+/**
+ * The same screen at the other size: resizes the page, waits until the lab's
+ * navigation has switched (the rail when wide, the tab bar on a phone) and
+ * takes the screenshot, without replaying the flow that led there.
+ */
+export async function screenshotAt(page: Page, viewport: { width: number; height: number }, name: string) {
+  await page.setViewportSize(viewport);
+  await page.getByTestId(viewport.width >= WIDE.width ? 'nav-rail' : 'nav-tabs').waitFor();
+  await screenshot(page, name);
+}
+
 /** Signs in through the sign-in screen and waits for home (demo members share one password). */
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
   await page.goto('/');
