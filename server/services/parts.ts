@@ -1,10 +1,11 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import pLimit from 'p-limit';
 import type { Database } from '../db';
+import { partsRepository, type PartChanges, type PartListRow } from '../db/repositories/parts';
 import { badRequest, conflict, forbidden, notFound } from '../errors';
 import { measureFile, type FileMeasureResult } from '../mesh';
 import { sha256Bytes, sha256File, type FileSource, type FileStorage } from '../storage';
-import { formatFromFilename, quoteName, type MeasureOptions, type MeshMetrics } from '../../shared/geometry';
+import { formatFromFilename, quoteName, type MeasureOptions } from '../../shared/geometry';
 import type { PartListQuery, PartListResponse, PartPatch, PartView, RejectedFile } from '../../shared/schemas/parts';
 
 /** Why a part cannot be deleted right now (a message for the user), or null when nothing uses it. */
@@ -62,40 +63,7 @@ export function rotatedSizeMm(size: Vec3, rotationDeg: Vec3): Vec3 {
   return r.map((row) => row.reduce((s, v, j) => s + Math.abs(v) * size[j], 0)) as Vec3;
 }
 
-type PartRow = {
-  id: string;
-  lab_id: string;
-  name: string;
-  tags: string[];
-  file_key: string;
-  file_name: string;
-  file_format: 'stl' | 'obj' | '3mf';
-  file_unit: 'mm' | 'cm' | 'inch';
-  file_split: boolean;
-  file_part_index: number;
-  uploaded_size_mm: number[];
-  rotation_deg: number[];
-  size_x_mm: number;
-  size_y_mm: number;
-  size_z_mm: number;
-  volume_mm3: number;
-  area_mm2: number;
-  triangles: number;
-  watertight: boolean;
-  metrics: MeshMetrics;
-  warnings: { code: string; message: string }[];
-  orientation: PartView['orientation'];
-  default_material_id: string | null;
-  material_name: string | null;
-  uploaded_by: string | null;
-  uploader_name: string | null;
-  file_size_bytes: string | number;
-  times_used: string | number;
-  created_at: Date;
-  updated_at: Date;
-};
-
-function view(r: PartRow): PartView {
+function view(r: PartListRow): PartView {
   return {
     id: r.id,
     labId: r.lab_id,
@@ -132,35 +100,6 @@ function view(r: PartRow): PartView {
   };
 }
 
-// The builds a part is in: plans holding one of its request lines, cancelled ones aside.
-const TIMES_USED_SQL = `(SELECT count(DISTINCT pl.plan_id)
-     FROM plan_lines pl
-     JOIN request_lines rl ON rl.id = pl.request_line_id
-     JOIN plans pn ON pn.id = pl.plan_id
-    WHERE rl.part_id = p.id AND pn.status <> 'cancelled')`;
-
-const SELECT_PARTS = `
-  SELECT p.*, m.name AS material_name, u.name AS uploader_name, f.size_bytes AS file_size_bytes,
-         ${TIMES_USED_SQL} AS times_used
-    FROM parts p
-    JOIN files f ON f.key = p.file_key
-    LEFT JOIN materials m ON m.id = p.default_material_id
-    LEFT JOIN users u ON u.id = p.uploaded_by`;
-
-const SORT_SQL: Record<string, string> = {
-  name: 'lower(p.name)',
-  sizeX: 'p.size_x_mm',
-  sizeY: 'p.size_y_mm',
-  sizeZ: 'p.size_z_mm',
-  volume: 'p.volume_mm3',
-  area: 'p.area_mm2',
-  triangles: 'p.triangles',
-  material: 'lower(m.name)',
-  timesUsed: 'times_used',
-  uploadedBy: 'lower(u.name)',
-  createdAt: 'p.created_at',
-};
-
 /**
  * Files stored at the same time. Measuring runs in parallel in the worker
  * pool, but the PostgreSQL driver holds a file's bytes while it writes them,
@@ -168,14 +107,13 @@ const SORT_SQL: Record<string, string> = {
  */
 const STORE_CONCURRENCY = 2;
 
-const likePattern = (s: string) => `%${s.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
-
 /**
  * The part library: importing (measure, store the file, write the rows in one
  * transaction), listing, editing and deleting parts.
  */
 export function partsService(db: Database, deps: PartsDeps) {
-  const { sequelize, models } = db;
+  const { sequelize } = db;
+  const repo = partsRepository(db);
   const { storage } = deps;
   const measure = deps.measure ?? measureFile;
   const usageChecks: PartUsageCheck[] = [];
@@ -183,12 +121,7 @@ export function partsService(db: Database, deps: PartsDeps) {
 
   async function rowsById(labId: string, ids: string[], transaction?: Transaction): Promise<PartView[]> {
     if (ids.length === 0) return [];
-    const rows = await sequelize.query<PartRow>(`${SELECT_PARTS} WHERE p.lab_id = $1 AND p.id = ANY($2::uuid[]) ORDER BY p.file_part_index`, {
-      bind: [labId, ids],
-      type: QueryTypes.SELECT,
-      transaction,
-    });
-    return rows.map(view);
+    return (await repo.byIds(labId, ids, transaction)).map(view);
   }
 
   async function get(labId: string, partId: string, transaction?: Transaction): Promise<PartView> {
@@ -200,11 +133,8 @@ export function partsService(db: Database, deps: PartsDeps) {
 
   /** The largest chamber of the lab's machines, per sorted axis, for the "does not fit" warning. */
   async function largestChamberMm(labId: string, transaction?: Transaction): Promise<[number, number, number] | undefined> {
-    const machines = await models.Machine.findAll({ where: { labId }, raw: true, transaction });
     let best: number[] | undefined;
-    for (const m of machines as unknown as { profile: { chamberMm?: number[] } }[]) {
-      const c = m.profile.chamberMm;
-      if (!Array.isArray(c) || c.length !== 3) continue;
+    for (const c of await repo.chambersMm(labId, transaction)) {
       const sorted = [...c].sort((a, b) => a - b);
       best = best ? best.map((v, i) => Math.max(v, sorted[i])) : sorted;
     }
@@ -256,11 +186,10 @@ export function partsService(db: Database, deps: PartsDeps) {
     const ids: string[] = [];
     for (const [index, part] of measured.parts.entries()) {
       const m = part.metrics;
-      const row = await models.Part.create(
+      const id = await repo.create(
         {
           labId: input.labId,
           name: part.name.slice(0, 200) || 'part',
-          tags: [],
           fileKey: input.key,
           fileName: input.file,
           fileFormat: format,
@@ -269,7 +198,6 @@ export function partsService(db: Database, deps: PartsDeps) {
           fileSplit: input.split,
           filePartIndex: index,
           uploadedSizeMm: m.sizeMm,
-          rotationDeg: [0, 0, 0],
           sizeXMm: m.sizeMm[0],
           sizeYMm: m.sizeMm[1],
           sizeZMm: m.sizeMm[2],
@@ -279,13 +207,11 @@ export function partsService(db: Database, deps: PartsDeps) {
           watertight: m.watertight,
           metrics: m,
           warnings: part.warnings,
-          orientation: 'any',
-          defaultMaterialId: null,
           uploadedBy: input.userId,
         },
-        { transaction },
+        transaction,
       );
-      ids.push(row.get('id') as string);
+      ids.push(id);
     }
     return { ids, created };
   }
@@ -358,58 +284,29 @@ export function partsService(db: Database, deps: PartsDeps) {
 
     async list(labId: string, q: PartListQuery): Promise<PartListResponse> {
       // The library lists each part once, as its newest file revision.
-      const where = ['p.lab_id = $1', 'p.superseded_by IS NULL'];
-      const bind: unknown[] = [labId];
-      const param = (v: unknown) => {
-        bind.push(v);
-        return `$${bind.length}`;
-      };
-      if (q.search) {
-        const s = param(likePattern(q.search));
-        where.push(`(p.name ILIKE ${s} OR EXISTS (SELECT 1 FROM unnest(p.tags) AS tag WHERE tag ILIKE ${s}))`);
-      }
-      if (q.materialId === 'none') where.push('p.default_material_id IS NULL');
-      else if (q.materialId) where.push(`p.default_material_id = ${param(q.materialId)}`);
-      if (q.warnings === 'any') where.push('jsonb_array_length(p.warnings) > 0');
-      else if (q.warnings === 'none') where.push('jsonb_array_length(p.warnings) = 0');
-      else if (q.warnings) where.push(`p.warnings @> jsonb_build_array(jsonb_build_object('code', ${param(q.warnings)}::text))`);
-      const desc = q.sort.startsWith('-');
-      const key = desc ? q.sort.slice(1) : q.sort;
-      const order = `${SORT_SQL[key]} ${desc ? 'DESC' : 'ASC'} NULLS LAST, p.created_at DESC, p.id`;
-      const whereSql = where.join(' AND ');
-      const [{ total }] = await sequelize.query<{ total: string }>(
-        `SELECT count(*) AS total FROM parts p WHERE ${whereSql}`,
-        { bind, type: QueryTypes.SELECT },
-      );
-      const limit = param(q.pageSize);
-      const offset = param((q.page - 1) * q.pageSize);
-      const rows = await sequelize.query<PartRow>(`${SELECT_PARTS} WHERE ${whereSql} ORDER BY ${order} LIMIT ${limit} OFFSET ${offset}`, {
-        bind,
-        type: QueryTypes.SELECT,
-      });
-      return { items: rows.map(view), total: Number(total) };
+      const { rows, total } = await repo.page(labId, q);
+      return { items: rows.map(view), total };
     },
 
     async update(labId: string, partId: string, patch: PartPatch): Promise<PartView> {
       await get(labId, partId);
-      const row = await models.Part.findOne({ where: { id: partId, labId } });
-      if (!row) throw notFound('That part');
-      const changes: Record<string, unknown> = {};
+      const uploadedSizeMm = await repo.uploadedSizeMm(labId, partId);
+      if (!uploadedSizeMm) throw notFound('That part');
+      const changes: PartChanges = {};
       if (patch.name !== undefined) changes.name = patch.name;
       if (patch.tags !== undefined) changes.tags = patch.tags;
       if (patch.orientation !== undefined) changes.orientation = patch.orientation;
       if (patch.defaultMaterialId !== undefined) {
         if (patch.defaultMaterialId !== null) {
-          const material = await models.Material.findOne({ where: { id: patch.defaultMaterialId, labId } });
-          if (!material) throw badRequest('defaultMaterialId is not a material of this lab', 'defaultMaterialId');
+          if (!(await repo.isMaterialOf(labId, patch.defaultMaterialId))) throw badRequest('defaultMaterialId is not a material of this lab', 'defaultMaterialId');
         }
         changes.defaultMaterialId = patch.defaultMaterialId;
       }
       if (patch.rotationDeg !== undefined) {
-        const size = rotatedSizeMm(row.get('uploadedSizeMm') as Vec3, patch.rotationDeg);
+        const size = rotatedSizeMm(uploadedSizeMm as Vec3, patch.rotationDeg);
         Object.assign(changes, { rotationDeg: patch.rotationDeg, sizeXMm: size[0], sizeYMm: size[1], sizeZMm: size[2] });
       }
-      if (Object.keys(changes).length > 0) await row.update(changes);
+      if (Object.keys(changes).length > 0) await repo.update(labId, partId, changes);
       return get(labId, partId);
     },
 
@@ -421,14 +318,14 @@ export function partsService(db: Database, deps: PartsDeps) {
       }
       await sequelize.transaction(async (transaction) => {
         // Lock the row so a plan or request cannot start using it while it goes.
-        const row = await models.Part.findOne({ where: { id: partId, labId }, transaction, lock: transaction.LOCK.UPDATE });
+        const row = await repo.lockForRemoval(labId, partId, transaction);
         if (!row) throw notFound('That part');
         for (const check of usageChecks) {
           const why = await check(labId, partId, transaction);
           if (why) throw conflict('in_use', why);
         }
-        await row.destroy({ transaction });
-        await storage.delete(row.get('fileKey') as string, { transaction });
+        await repo.remove(partId, transaction);
+        await storage.delete(row.fileKey, { transaction });
       });
     },
 
