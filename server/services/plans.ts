@@ -1,15 +1,14 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { plansRepository, type PlanLineInput } from '../db/repositories/plans';
+import { layoutsRepository } from '../db/repositories/layouts';
 import type { Mailer } from '../mail/mailer';
 import { AppError, badRequest, conflict, notFound } from '../errors';
 import type { LabsService } from './labs';
 import {
   type Actor,
   INACTIVE_STATUSES,
-  INACTIVE_SQL,
   checkPlanId,
-  type PlanRow,
-  type LayoutSummaryRow,
   invalidTransition,
   readOnly,
   lockPlan,
@@ -25,7 +24,7 @@ import {
   person,
   layoutSummary,
 } from './planCommon';
-import { allowedNext, canTransition, isEditable, type PlanStatus } from '../../shared/plans/status';
+import { allowedNext, canTransition, isEditable } from '../../shared/plans/status';
 import {
   planMachineViewSchema,
   planMaterialViewSchema,
@@ -37,69 +36,17 @@ import {
   type PlanEventView,
   type PlanLineView,
   type PlanListItem,
-  type PlanOrientationRule,
   type PlanCreated,
   type PlanMoved,
   type PlanView,
 } from '../../shared/schemas/plans';
-
-/** A plan as the list shows it: its machine, material and author by name, and its lines and layouts counted (counts come as text). */
-type PlanListRow = {
-  id: string;
-  name: string;
-  status: PlanStatus;
-  version: number;
-  chosen_layout_id: string | null;
-  queue_position: number | null;
-  created_at: Date;
-  updated_at: Date;
-  machine_id: string;
-  machine_name: string;
-  material_id: string;
-  material_name: string;
-  created_by: string | null;
-  created_by_name: string | null;
-  line_count: string;
-  part_count: string;
-  earliest_due_date: string | null;
-  layout_count: string;
-};
-
-/** An open request line with its part and request, and how much of it other plans hold (a sum, as text). */
-type OpenLineRow = {
-  id: string;
-  quantity: number;
-  part_id: string;
-  part_name: string;
-  size_x_mm: number;
-  size_y_mm: number;
-  size_z_mm: number;
-  volume_mm3: number;
-  orientation: OpenLineView['part']['orientation'];
-  request_id: string;
-  title: string;
-  due_date: string;
-  priority: OpenLineView['request']['priority'];
-  material_id: string | null;
-  held: string;
-};
-
-type PlanEventRow = {
-  id: string;
-  from_status: PlanStatus | null;
-  to_status: PlanStatus;
-  user_id: string | null;
-  user_name: string | null;
-  comment: string | null;
-  created_at: Date;
-};
 
 function addDeltas(into: Map<string, number>, lines: Array<{ requestLineId: string; quantity: number }>, sign: 1 | -1) {
   for (const l of lines) into.set(l.requestLineId, (into.get(l.requestLineId) ?? 0) + sign * l.quantity);
 }
 
 
-type LineInput = { requestLineId: string; quantity: number; orientation?: PlanOrientationRule | null };
+type LineInput = PlanLineInput;
 
 /**
  * Checks the lines a planner picked: each a request line of this lab, its
@@ -108,29 +55,13 @@ type LineInput = { requestLineId: string; quantity: number; orientation?: PlanOr
  * holds). Locks the request lines so two plans cannot both take the last of one.
  */
 async function checkLines(db: Database, labId: string, materialId: string, lines: LineInput[], planId: string | null, transaction: Transaction) {
-  const ids = lines.map((l) => l.requestLineId);
-  const rows = await db.sequelize.query<{
-    id: string;
-    quantity: number;
-    planned_count: number;
-    status: string;
-    material_id: string | null;
-    title: string;
-    part_name: string;
-  }>(
-    `SELECT rl.id, rl.quantity, rl.planned_count, r.status, r.material_id, r.title, p.name AS part_name
-       FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
-      WHERE rl.id = ANY($1::uuid[]) AND r.lab_id = $2
-      FOR UPDATE OF rl`,
-    { bind: [ids, labId], type: QueryTypes.SELECT, transaction },
+  const repo = plansRepository(db);
+  const rows = await repo.lockPickedLines(
+    labId,
+    lines.map((l) => l.requestLineId),
+    transaction,
   );
-  const own = planId
-    ? await db.sequelize.query<{ request_line_id: string; quantity: number }>('SELECT request_line_id, quantity FROM plan_lines WHERE plan_id = $1', {
-        bind: [planId],
-        type: QueryTypes.SELECT,
-        transaction,
-      })
-    : [];
+  const own = planId ? await repo.lineQuantities(planId, transaction) : [];
   const byId = new Map(rows.map((r) => [r.id, r]));
   const ownBy = new Map(own.map((o) => [o.request_line_id, o.quantity]));
   const problems: Array<{ field: string; message: string }> = [];
@@ -166,20 +97,6 @@ async function checkLines(db: Database, labId: string, materialId: string, lines
   }
 }
 
-async function insertLines(db: Database, planId: string, lines: LineInput[], transaction: Transaction) {
-  if (lines.length === 0) return;
-  const values: string[] = [];
-  const bind: unknown[] = [planId];
-  lines.forEach((l, i) => {
-    bind.push(l.requestLineId, i, l.quantity, l.orientation ?? null);
-    const k = bind.length;
-    values.push(`(gen_random_uuid(), $1, $${k - 3}, $${k - 2}, $${k - 1}, $${k}, now(), now())`);
-  });
-  await db.sequelize.query(
-    `INSERT INTO plan_lines (id, plan_id, request_line_id, position, quantity, orientation, created_at, updated_at) VALUES ${values.join(', ')}`,
-    { bind, transaction },
-  );
-}
 
 
 export type PlansDeps = { labs: LabsService; mailer: Mailer; appUrl: string; log?: (msg: string) => void };
@@ -187,28 +104,18 @@ export type PlansDeps = { labs: LabsService; mailer: Mailer; appUrl: string; log
 /** Build plans: creating them from request lines, listing, reading, saving with a version, sending for review, cancelling. */
 export function plansService(db: Database, deps: PlansDeps) {
   const { sequelize } = db;
+  const repo = plansRepository(db);
+  const layoutsRepo = layoutsRepository(db);
 
   async function get(labId: string, planId: string): Promise<PlanView> {
-    const [plan] = await sequelize.query<PlanRow & { created_by_name: string | null }>(
-      `SELECT p.*, u.name AS created_by_name FROM plans p LEFT JOIN users u ON u.id = p.created_by WHERE p.id = $1 AND p.lab_id = $2`,
-      { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
-    );
+    const plan = await repo.withCreator(labId, checkPlanId(planId));
     if (!plan) throw notFound('That plan');
     const [machine, material, lines, layouts, events] = await Promise.all([
       profileRow(db, 'machines', labId, plan.machine_id),
       profileRow(db, 'materials', labId, plan.material_id),
       planLines(db, plan.id),
-      sequelize.query<LayoutSummaryRow>(
-        `SELECT l.id, l.label, l.locked, l.settings, l.lines_key, l.result_format, l.placement_count, l.summary,
-                l.estimate - 'areaPerLayerMm2' AS estimate_summary, l.created_by, l.created_at, u.name AS created_by_name
-           FROM layouts l LEFT JOIN users u ON u.id = l.created_by WHERE l.plan_id = $1 ORDER BY l.created_at`,
-        { bind: [plan.id], type: QueryTypes.SELECT },
-      ),
-      sequelize.query<PlanEventRow>(
-        `SELECT e.id, e.from_status, e.to_status, e.user_id, u.name AS user_name, e.comment, e.created_at
-           FROM plan_events e LEFT JOIN users u ON u.id = e.user_id WHERE e.plan_id = $1 ORDER BY e.created_at, e.id`,
-        { bind: [plan.id], type: QueryTypes.SELECT },
-      ),
+      layoutsRepo.summaries(plan.id),
+      repo.events(plan.id),
     ]);
     const holds = !INACTIVE_STATUSES.includes(plan.status);
     const key = linesKey(lines);
@@ -288,13 +195,8 @@ export function plansService(db: Database, deps: PlansDeps) {
           throw badRequest('materialId is not a material of this lab', 'materialId');
         }
         await checkLines(db, labId, input.materialId, input.lines, null, transaction);
-        const [rows] = (await sequelize.query(
-          `INSERT INTO plans (id, lab_id, name, machine_id, material_id, status, version, created_by, created_at, updated_at)
-           VALUES (gen_random_uuid(), $1, $2, $3, $4, 'draft', 1, $5, now(), now()) RETURNING id`,
-          { bind: [labId, input.name, input.machineId, input.materialId, user.id], transaction },
-        )) as [Array<{ id: string }>, unknown];
-        const id = rows[0].id;
-        await insertLines(db, id, input.lines, transaction);
+        const id = await repo.create({ labId, name: input.name, machineId: input.machineId, materialId: input.materialId, createdBy: user.id }, transaction);
+        await repo.setLines(id, input.lines, transaction);
         await recordEvent(db, id, null, 'draft', user.id, null, transaction);
         const deltas = new Map<string, number>();
         addDeltas(deltas, input.lines, 1);
@@ -304,23 +206,7 @@ export function plansService(db: Database, deps: PlansDeps) {
     },
 
     async list(labId: string, q: PlanListQuery): Promise<PlanListItem[]> {
-      const rows = await sequelize.query<PlanListRow>(
-        `SELECT p.id, p.name, p.status, p.version, p.chosen_layout_id, p.queue_position, p.created_at, p.updated_at,
-                p.machine_id, m.name AS machine_name, p.material_id, mt.name AS material_name,
-                p.created_by, u.name AS created_by_name,
-                (SELECT COUNT(*) FROM plan_lines pl WHERE pl.plan_id = p.id) AS line_count,
-                (SELECT COALESCE(SUM(pl.quantity), 0) FROM plan_lines pl WHERE pl.plan_id = p.id) AS part_count,
-                (SELECT to_char(MIN(r.due_date), 'YYYY-MM-DD') FROM plan_lines pl JOIN request_lines rl ON rl.id = pl.request_line_id
-                   JOIN requests r ON r.id = rl.request_id WHERE pl.plan_id = p.id) AS earliest_due_date,
-                (SELECT COUNT(*) FROM layouts l WHERE l.plan_id = p.id) AS layout_count
-           FROM plans p
-           JOIN machines m ON m.id = p.machine_id
-           JOIN materials mt ON mt.id = p.material_id
-           LEFT JOIN users u ON u.id = p.created_by
-          WHERE p.lab_id = $1 AND ($2::text[] IS NULL OR p.status = ANY($2::text[])) AND ($3::uuid IS NULL OR p.machine_id = $3::uuid)
-          ORDER BY p.updated_at DESC`,
-        { bind: [labId, q.status ?? null, q.machineId ?? null], type: QueryTypes.SELECT },
-      );
+      const rows = await repo.list(labId, { status: q.status ?? null, machineId: q.machineId ?? null });
       return rows.map((r) => ({
         id: r.id,
         name: r.name,
@@ -345,16 +231,7 @@ export function plansService(db: Database, deps: PlansDeps) {
      * (priority, then due date): what a planner picks for a plan.
      */
     async openLines(labId: string, q: OpenLinesQuery): Promise<OpenLineView[]> {
-      const rows = await sequelize.query<OpenLineRow>(
-        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
-                p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
-                rl.planned_count - COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
-                           WHERE pl.request_line_id = rl.id AND pp.id = $3::uuid AND pp.status NOT IN ${INACTIVE_SQL}), 0) AS held
-           FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
-          WHERE r.lab_id = $1 AND r.status = 'open' AND ($2::uuid IS NULL OR r.material_id = $2::uuid)
-          ORDER BY CASE r.priority WHEN 'urgent' THEN 0 WHEN 'high' THEN 1 WHEN 'normal' THEN 2 ELSE 3 END, r.due_date, r.created_at, rl.position`,
-        { bind: [labId, q.materialId ?? null, q.planId ?? null], type: QueryTypes.SELECT },
-      );
+      const rows = await repo.openLines(labId, { materialId: q.materialId ?? null, exceptPlanId: q.planId ?? null });
       return rows
         .map((r) => ({
           requestLineId: r.id,
@@ -387,29 +264,15 @@ export function plansService(db: Database, deps: PlansDeps) {
         if (input.lines) {
           const before = await planLines(db, plan.id, transaction);
           await checkLines(db, labId, plan.material_id, input.lines, plan.id, transaction);
-          await sequelize.query('DELETE FROM plan_lines WHERE plan_id = $1', { bind: [plan.id], transaction });
-          await insertLines(db, plan.id, input.lines, transaction);
+          await repo.setLines(plan.id, input.lines, transaction);
           const deltas = new Map<string, number>();
           addDeltas(deltas, before.map((l) => ({ requestLineId: l.request_line_id, quantity: l.quantity })), -1);
           addDeltas(deltas, input.lines, 1);
           await adjustPlanned(db, deltas, transaction);
         }
         await reopenIfSentBack(db, plan, user.id, transaction);
-        const sets = ['version = version + 1', 'updated_at = now()'];
-        const bind: unknown[] = [plan.id, plan.version];
-        if (input.name !== undefined) {
-          bind.push(input.name);
-          sets.push(`name = $${bind.length}`);
-        }
-        if (input.draft !== undefined) {
-          bind.push(input.draft === null ? null : JSON.stringify(input.draft));
-          sets.push(`draft = $${bind.length}::jsonb`);
-        }
-        const [rows] = (await sequelize.query(`UPDATE plans SET ${sets.join(', ')} WHERE id = $1 AND version = $2 RETURNING version`, {
-          bind,
-          transaction,
-        })) as [Array<{ version: number }>, unknown];
-        if (rows.length === 0) {
+        const saved = await repo.saveEdits(plan.id, plan.version, { name: input.name, draft: input.draft }, transaction);
+        if (saved === null) {
           throw conflict('version_conflict', 'Someone saved this plan at the same moment; reload it and try again.', 'version', {
             yourVersion: read,
           });
@@ -427,12 +290,8 @@ export function plansService(db: Database, deps: PlansDeps) {
         if (!plan.chosen_layout_id) {
           throw conflict('no_chosen_layout', 'Choose one of the layouts before sending the plan for review.');
         }
-        const [layout] = await sequelize.query<{ lines_key: string }>('SELECT lines_key FROM layouts WHERE id = $1', {
-          bind: [plan.chosen_layout_id],
-          type: QueryTypes.SELECT,
-          transaction,
-        });
-        if (layout.lines_key !== linesKey(await planLines(db, plan.id, transaction))) {
+        const layoutKey = await layoutsRepo.linesKeyOf(plan.chosen_layout_id, transaction);
+        if (layoutKey !== linesKey(await planLines(db, plan.id, transaction))) {
           throw conflict('layout_stale', "The chosen layout was packed before the plan's lines changed; pack again and choose the new layout.");
         }
         const version = await applyTransition(db, plan, 'in_review', user.id, comment, transaction);
@@ -458,7 +317,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         const version = await applyTransition(db, plan, 'cancelled', user.id, comment, transaction);
-        await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [plan.id], transaction });
+        await repo.setQueuePosition(plan.id, null, transaction);
         const lines = await planLines(db, plan.id, transaction);
         const deltas = new Map<string, number>();
         addDeltas(deltas, lines.map((l) => ({ requestLineId: l.request_line_id, quantity: l.quantity })), -1);

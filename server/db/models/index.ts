@@ -12,7 +12,7 @@ import { powderModels } from './powder';
  */
 export function initModels(sequelize: Sequelize) {
   const models = { ...accountModels(sequelize), ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize) };
-  const { Lab, Machine, Material, Part, Plan, Run, RunReading, Layout, PlanLine, Request, RequestLine, User } = models;
+  const { Lab, Machine, Material, Part, Plan, PlanEvent, Run, RunReading, Layout, PlanLine, Request, RequestLine, User } = models;
   // Associations across the files above.
   Lab.hasMany(Machine, { foreignKey: 'labId', as: 'machines' });
   Lab.hasMany(Material, { foreignKey: 'labId', as: 'materials' });
@@ -20,6 +20,10 @@ export function initModels(sequelize: Sequelize) {
   Lab.hasMany(Plan, { foreignKey: 'labId', as: 'plans' });
   Plan.belongsTo(Machine, { foreignKey: 'machineId', as: 'machine' });
   Plan.belongsTo(Material, { foreignKey: 'materialId', as: 'material' });
+  // Authors are kept as ids; an account since removed leaves its id without a user.
+  Plan.belongsTo(User, { foreignKey: 'createdBy', as: 'creator', constraints: false });
+  Layout.belongsTo(User, { foreignKey: 'createdBy', as: 'creator', constraints: false });
+  PlanEvent.belongsTo(User, { foreignKey: 'userId', as: 'user', constraints: false });
   PlanLine.belongsTo(RequestLine, { foreignKey: 'requestLineId', as: 'requestLine' });
   Run.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
   Plan.hasOne(Run, { foreignKey: 'planId', as: 'run' });

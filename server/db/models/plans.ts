@@ -1,7 +1,7 @@
 import { DataTypes, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Model, type NonAttribute, type Sequelize } from 'sequelize';
 import type { PlanStatus } from '../../../shared/plans/status';
 import type { RequestLineRow } from './parts';
-import type { ProfileRow } from './accounts';
+import type { ProfileRow, UserRow } from './accounts';
 import type { RunRow } from './runs';
 
 export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAttributes<PlanRow>> {
@@ -19,9 +19,11 @@ export interface PlanRow extends Model<InferAttributes<PlanRow>, InferCreationAt
   createdAt: CreationOptional<Date>;
   updatedAt: CreationOptional<Date>;
   lines?: NonAttribute<PlanLineRow[]>;
+  machine?: NonAttribute<ProfileRow | null>;
   material?: NonAttribute<ProfileRow | null>;
   chosenLayout?: NonAttribute<LayoutRow | null>;
   run?: NonAttribute<RunRow | null>;
+  creator?: NonAttribute<UserRow | null>;
 }
 
 export interface PlanLineRow extends Model<InferAttributes<PlanLineRow>, InferCreationAttributes<PlanLineRow>> {
@@ -54,6 +56,8 @@ export interface LayoutRow extends Model<InferAttributes<LayoutRow>, InferCreati
   locked: CreationOptional<boolean>;
   createdBy: string | null;
   createdAt: CreationOptional<Date>;
+  plan?: NonAttribute<PlanRow>;
+  creator?: NonAttribute<UserRow | null>;
 }
 
 export interface PlanEventRow extends Model<InferAttributes<PlanEventRow>, InferCreationAttributes<PlanEventRow>> {
@@ -64,6 +68,7 @@ export interface PlanEventRow extends Model<InferAttributes<PlanEventRow>, Infer
   userId: string | null;
   comment: string | null;
   createdAt: CreationOptional<Date>;
+  user?: NonAttribute<UserRow | null>;
 }
 
 /** A lead's reordering of a machine's queue, with the order before and after it (so it can be undone). */
@@ -171,6 +176,7 @@ export function planModels(sequelize: Sequelize) {
   Plan.hasMany(PlanLine, { foreignKey: 'planId', as: 'lines' });
   PlanLine.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
   Plan.hasMany(Layout, { foreignKey: 'planId', as: 'layouts' });
+  Layout.belongsTo(Plan, { foreignKey: 'planId', as: 'plan' });
   Plan.belongsTo(Layout, { foreignKey: 'chosenLayoutId', as: 'chosenLayout', constraints: false });
   Plan.hasMany(PlanEvent, { foreignKey: 'planId', as: 'events' });
   return { Plan, PlanLine, Layout, PlanEvent, QueueMove };
