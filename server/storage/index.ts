@@ -32,10 +32,14 @@ const sourceSize = (source: FileSource) => ('bytes' in source ? source.bytes.byt
  * count in both drivers; with the PostgreSQL driver it also holds the bytes.
  * With the S3 driver the object is written before its row, inside the
  * caller's transaction: when the store fails the transaction fails and no
- * row that would point at a missing object is committed.
+ * row that would point at a missing object is committed. Rows are read and
+ * removed through the StoredFile model; the reference count moves in single
+ * SQL statements (added to on conflict, lowered with RETURNING), so two
+ * uploads of the same bytes never lose a count.
  */
 export function createStorage(db: Database, config: StorageConfig, objects?: ObjectStore): FileStorage {
   const sequelize = db.sequelize;
+  const { StoredFile } = db.models;
   const store: ObjectStore | null = config.driver === 's3' ? (objects ?? s3ObjectStore(config)) : null;
   const driver = config.driver;
 
@@ -55,8 +59,7 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
     if (!store) return;
     await sequelize.transaction(async (transaction) => {
       await lockKey(key, transaction);
-      const rows = await sequelize.query('SELECT 1 FROM files WHERE key = $1', { bind: [key], type: QueryTypes.SELECT, transaction });
-      if (rows.length === 0) await store.deleteObject(key);
+      if ((await StoredFile.count({ where: { key }, transaction })) === 0) await store.deleteObject(key);
     });
   }
 
@@ -102,11 +105,7 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
 
     async get(key) {
       if (!SHA256_HEX.test(key)) return null;
-      const rows = await sequelize.query<{ location: string; data: Buffer | null }>('SELECT location, data FROM files WHERE key = $1', {
-        bind: [key],
-        type: QueryTypes.SELECT,
-      });
-      const row = rows[0];
+      const row = await StoredFile.findByPk(key, { attributes: ['location', 'data'] });
       if (!row) return null;
       if (row.location === 'postgres') return row.data;
       if (!store) throw new AppError(503, 'storage_unavailable', 'This file is kept in object storage, which this server is not configured to reach.');
@@ -125,7 +124,7 @@ export function createStorage(db: Database, config: StorageConfig, objects?: Obj
       );
       const row = rows[0];
       if (!row || row.ref_count > 0) return;
-      await sequelize.query('DELETE FROM files WHERE key = $1 AND ref_count = 0', { bind: [key], transaction });
+      await StoredFile.destroy({ where: { key, refCount: 0 }, transaction });
       if (row.location === 's3' && store) {
         // The object goes only once the row is gone for good, and only if no
         // new upload of the same bytes has brought the row back.
