@@ -71,19 +71,24 @@ describe.each([
   });
 });
 
-test("a part's page files a request for it: the form starts with the part on a line and its default material", async () => {
-  const lab = await labWithProfiles(fixtures, 'request-this-part');
+test.each([
+  ['phone', PHONE],
+  ['wide', WIDE],
+])("on a %s screen a part's page files a request for it: the form starts with the part on a line and its default material", async (name, viewport) => {
+  const lab = await labWithProfiles(fixtures, `request-this-part-${name}`);
   const made = await makeRequest(fixtures, lab.labId, lab.userId, lab.materialId, [{ name: 'Cable saddle', sizeMm: [18, 10, 7], quantity: 1 }]);
   const partId = made.lines[0].partId;
-  const page = await newPage(served, PHONE);
+  const page = await newPage(served, viewport);
   await signIn(page, lab.email, PASSWORD);
   await page.goto(`/parts/${partId}`);
+  await page.getByTestId('part-request').waitFor();
+  await screenshot(page, `part-request-this-part-${name}`);
   await page.getByTestId('part-request').click();
   await page.getByTestId('request-form').waitFor();
   expect(new URL(page.url()).searchParams.get('partId')).toBe(partId);
   await page.getByTestId('request-line-0').getByText('Cable saddle').waitFor();
   expect(await page.getByTestId('request-line-0-quantity').inputValue()).toBe('1');
-  await screenshot(page, 'request-this-part-phone');
+  await screenshot(page, `request-this-part-${name}`);
   await page.getByTestId('request-title').fill('Saddles for the test rig');
   await page.getByTestId('request-line-0-quantity').fill('6');
   await page.getByTestId('request-submit').click();

@@ -36,9 +36,14 @@ test('on a phone every settings section, Account included, is on screen without 
   await page.context().close();
 });
 
-test('an invite starts with no role ticked and is refused until one is chosen', async () => {
-  const lead = await signUp(fixtures, 'settings-invite');
-  const page = await newPage(served, WIDE);
+const SIZES = [
+  ['wide', WIDE],
+  ['phone', PHONE],
+] as const;
+
+test.each(SIZES)('on a %s screen an invite starts with no role ticked and is refused until one is chosen', async (name, viewport) => {
+  const lead = await signUp(fixtures, `settings-invite-${name}`);
+  const page = await newPage(served, viewport);
   await signIn(page, lead.email, PASSWORD);
   await page.goto('/settings/invites');
   await page.getByTestId('invite-form').waitFor();
@@ -48,7 +53,10 @@ test('an invite starts with no role ticked and is refused until one is chosen', 
   await page.getByTestId('invite-email').fill(uniqueEmail('no-role'));
   await page.getByTestId('invite-submit').click();
   await page.getByTestId('invite-roles-error').waitFor();
-  await screenshot(page, 'settings-invite-no-role-wide');
+  await page.getByTestId('invite-roles-error').scrollIntoViewIfNeeded();
+  const form = await page.getByTestId('invite-form').boundingBox();
+  expect(form!.x + form!.width).toBeLessThanOrEqual(viewport.width);
+  await screenshot(page, `settings-invite-no-role-${name}`);
   await page.getByTestId('invite-role-operator').click();
   await page.getByTestId('invite-submit').click();
   await page.getByTestId('invite-sent').waitFor();
@@ -59,10 +67,10 @@ test('an invite starts with no role ticked and is refused until one is chosen', 
   await page.context().close();
 });
 
-test('a role change is asked for first, can be kept as it was, and is reported once saved', async () => {
-  const lead = await signUp(fixtures, 'settings-roles');
+test.each(SIZES)('on a %s screen a role change is asked for first, can be kept as it was, and is reported once saved', async (name, viewport) => {
+  const lead = await signUp(fixtures, `settings-roles-${name}`);
   const member = await addMember(fixtures, lead.agent, lead.labId, ['operator'], 'roles-member');
-  const page = await newPage(served, WIDE);
+  const page = await newPage(served, viewport);
   await signIn(page, lead.email, PASSWORD);
   await page.goto('/settings/members');
   const chip = page.getByTestId(`member-role-${member.userId}-lead`);
@@ -70,8 +78,12 @@ test('a role change is asked for first, can be kept as it was, and is reported o
 
   // One click only asks; keeping it as it was changes nothing on the server.
   await chip.click();
-  await page.getByTestId(`member-confirm-${member.userId}`).getByText(/Give .* the lead role\?/).waitFor();
-  await screenshot(page, 'settings-role-confirm-wide');
+  const confirm = page.getByTestId(`member-confirm-${member.userId}`);
+  await confirm.getByText(/Give .* the lead role\?/).waitFor();
+  await page.getByTestId(`member-confirm-${member.userId}-apply`).scrollIntoViewIfNeeded();
+  const asked = await confirm.boundingBox();
+  expect(asked!.x + asked!.width).toBeLessThanOrEqual(viewport.width);
+  await screenshot(page, `settings-role-confirm-${name}`);
   await page.getByTestId(`member-confirm-${member.userId}-cancel`).click();
   const unchanged = await lead.agent.get(`/api/labs/${lead.labId}/members`);
   const before = (unchanged.body.members ?? unchanged.body) as { userId: string; roles: string[] }[];
@@ -80,7 +92,7 @@ test('a role change is asked for first, can be kept as it was, and is reported o
   await chip.click();
   await page.getByTestId(`member-confirm-${member.userId}-apply`).click();
   await page.getByTestId(`member-saved-${member.userId}`).getByText(/is now lead and operator/).waitFor();
-  await screenshot(page, 'settings-role-saved-wide');
+  await screenshot(page, `settings-role-saved-${name}`);
   const changed = await lead.agent.get(`/api/labs/${lead.labId}/members`);
   const list = (changed.body.members ?? changed.body) as { userId: string; roles: string[] }[];
   expect(list.find((m) => m.userId === member.userId)!.roles.sort()).toEqual(['lead', 'operator']);
@@ -114,9 +126,9 @@ describe.each([
   });
 });
 
-test("a lead sets the lab's currency on a phone, and the machines' rates are shown in it", async () => {
-  const lab = await labWithProfiles(fixtures, 'currency-browser');
-  const page = await newPage(served, PHONE);
+test.each(SIZES)("on a %s screen a lead sets the lab's currency, and the machines' rates are shown in it", async (name, viewport) => {
+  const lab = await labWithProfiles(fixtures, `currency-browser-${name}`);
+  const page = await newPage(served, viewport);
   await signIn(page, lab.email, PASSWORD);
   await page.goto('/settings/rules');
   await page.getByTestId('rules-currency').waitFor();
@@ -128,8 +140,28 @@ test("a lead sets the lab's currency on a phone, and the machines' rates are sho
   await page.getByTestId('rules-currency-code').fill('chf');
   await page.getByTestId('rules-currency-save').click();
   await page.getByTestId('rules-currency-state').getByText('CHF: an amount of 1234.5 reads CHF 1,234.50').waitFor();
-  await screenshot(page, 'settings-currency-phone');
+  await screenshot(page, `settings-currency-${name}`);
   await page.goto('/settings/machines');
   await page.getByText('Rate CHF/h').first().waitFor();
+  await page.context().close();
+});
+
+test.each(SIZES)('on a %s screen the preheat time is listed and typed in the same unit, minutes', async (name, viewport) => {
+  const lab = await labWithProfiles(fixtures, `units-browser-${name}`);
+  const minutes = lab.machine.preheatSeconds / 60;
+  const page = await newPage(served, viewport);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto('/settings/machines');
+  const row = page.getByTestId(`machine-row-${lab.machineId}`);
+  await row.waitFor();
+  await page.getByText('Preheat min').first().waitFor();
+  expect(await row.innerText()).toMatch(new RegExp(`\\b${minutes}(\\.0)?\\b`));
+  await row.click();
+  const field = page.getByTestId('machine-field-preheatSeconds');
+  await field.waitFor();
+  expect(await field.inputValue()).toBe(String(minutes));
+  await page.getByText('Preheat time').first().scrollIntoViewIfNeeded();
+  await page.getByText(/^\s*min$/).first().waitFor();
+  await screenshot(page, `settings-preheat-units-${name}`);
   await page.context().close();
 });
