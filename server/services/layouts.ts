@@ -1,6 +1,7 @@
 import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { plansRepository } from '../db/repositories/plans';
+import { layoutsRepository, type LayoutDbRow } from '../db/repositories/layouts';
 import { AppError, conflict, notFound } from '../errors';
 import {
   checkPlanId,
@@ -14,7 +15,6 @@ import {
   reopenIfSentBack,
   type Actor,
   type LineRow,
-  type LayoutSummaryRow,
 } from './planCommon';
 import { isEditable } from '../../shared/plans/status';
 import {
@@ -133,29 +133,17 @@ export function profileInfo(profiles: MeshProfiles | null) {
 
 export type LayoutsDeps = { calibrationFor?: CalibrationLookup; profilesFor?: ProfilesLookup };
 
-/** A whole layout row, with its author's name and whether its plan has it chosen. */
-type LayoutDbRow = Omit<LayoutSummaryRow, 'estimate_summary'> & {
-  plan_id: string;
-  instance: unknown;
-  placements_format: number;
-  placements: Buffer;
-  part_ids: string[];
-  estimate: Record<string, unknown>;
-  chosen_layout_id: string | null;
-};
-
 /** A plan's layouts: saving a packing (checked and estimated), reading it back, choosing, labelling, deleting. */
 export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
   const { sequelize } = db;
+  const plans = plansRepository(db);
+  const layouts = layoutsRepository(db);
+  /** The layout id as given when it can be one; null (no such layout) otherwise. */
+  const layoutIdOrNull = (layoutId: string) => (/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null);
 
   async function layoutRow(labId: string, planId: string, layoutId: string): Promise<LayoutDbRow> {
     if (!/^[0-9a-f-]{36}$/i.test(layoutId)) throw notFound('That layout');
-    const [row] = await sequelize.query<LayoutDbRow>(
-      `SELECT l.*, u.name AS created_by_name, p.chosen_layout_id
-         FROM layouts l JOIN plans p ON p.id = l.plan_id LEFT JOIN users u ON u.id = l.created_by
-        WHERE l.id = $1 AND l.plan_id = $2 AND p.lab_id = $3`,
-      { bind: [layoutId, checkPlanId(planId), labId], type: QueryTypes.SELECT },
-    );
+    const row = await layouts.find(labId, checkPlanId(planId), layoutId);
     if (!row) throw notFound('That layout');
     return row;
   }
@@ -222,41 +210,31 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
           margin: instance.margin,
         };
         const summary = { unplaced: result.unplaced, height: result.height, layers: result.layers, utilization: result.utilization, elapsedMs: result.elapsedMs };
-        const [count] = await sequelize.query<{ n: string }>('SELECT COUNT(*) AS n FROM layouts WHERE plan_id = $1', {
-          bind: [plan.id],
-          type: QueryTypes.SELECT,
-          transaction,
-        });
-        const label = input.label ?? `Layout ${Number(count.n) + 1}`;
+        const count = await layouts.count(plan.id, transaction);
+        const label = input.label ?? `Layout ${count + 1}`;
         const json = { ...estimateJson(estimate), ...profileInfo(profiles) };
-        const [rows] = (await sequelize.query(
-          `INSERT INTO layouts (id, plan_id, label, settings, instance, lines_key, result_format, placements_format, placement_count,
-                                part_ids, placements, summary, estimate, locked, created_by, created_at)
-           VALUES (gen_random_uuid(), $1, $2, $3::jsonb, $4::jsonb, $5, $6, $7, $8, $9::text[], $10, $11::jsonb, $12::jsonb, $13, $14, now())
-           RETURNING id, created_at`,
+        const id = await layouts.create(
           {
-            bind: [
-              plan.id,
-              label,
-              JSON.stringify(settings),
-              JSON.stringify(instance),
-              linesKey(lines),
-              result.format,
-              PLACEMENTS_FORMAT,
-              result.placements.length,
-              partIds,
-              encodePlacements(result.placements, partIds, result),
-              JSON.stringify(summary),
-              JSON.stringify(json),
-              input.locked ?? false,
-              user.id,
-            ],
-            transaction,
+            planId: plan.id,
+            label,
+            settings,
+            instance,
+            linesKey: linesKey(lines),
+            resultFormat: result.format,
+            placementsFormat: PLACEMENTS_FORMAT,
+            placementCount: result.placements.length,
+            partIds,
+            placements: encodePlacements(result.placements, partIds, result),
+            summary,
+            estimate: json,
+            locked: input.locked ?? false,
+            createdBy: user.id,
           },
-        )) as [Array<{ id: string }>, unknown];
+          transaction,
+        );
         await reopenIfSentBack(db, plan, user.id, transaction);
-        await sequelize.query('UPDATE plans SET updated_at = now() WHERE id = $1', { bind: [plan.id], transaction });
-        return { id: rows[0].id, label, estimate: json };
+        await plans.touch(plan.id, transaction);
+        return { id, label, estimate: json };
       });
     },
 
@@ -294,20 +272,14 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);
-        const [layout] = await sequelize.query<{ id: string; lines_key: string }>(
-          'SELECT id, lines_key FROM layouts WHERE id = $1 AND plan_id = $2',
-          { bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id], type: QueryTypes.SELECT, transaction },
-        );
+        const layout = await layouts.head(plan.id, layoutIdOrNull(layoutId), transaction);
         if (!layout) throw notFound('That layout');
         if (layout.lines_key !== linesKey(await planLines(db, plan.id, transaction))) {
           throw conflict('layout_stale', "This layout was packed before the plan's lines changed; pack again to get one that fits them.");
         }
         await reopenIfSentBack(db, plan, user.id, transaction);
-        const [rows] = (await sequelize.query(
-          'UPDATE plans SET chosen_layout_id = $2, version = version + 1, updated_at = now() WHERE id = $1 RETURNING version',
-          { bind: [plan.id, layout.id], transaction },
-        )) as [Array<{ version: number }>, unknown];
-        return { id: plan.id, chosenLayoutId: layout.id, version: rows[0].version, status: plan.status };
+        const version = await plans.choose(plan.id, layout.id, transaction);
+        return { id: plan.id, chosenLayoutId: layout.id, version, status: plan.status };
       });
     },
 
@@ -315,11 +287,8 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);
-        const [, meta] = (await sequelize.query(
-          'UPDATE layouts SET label = COALESCE($3, label), locked = COALESCE($4, locked) WHERE id = $1 AND plan_id = $2',
-          { bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id, input.label ?? null, input.locked ?? null], transaction },
-        )) as [unknown, { rowCount?: number }];
-        if (!meta?.rowCount) throw notFound('That layout');
+        const found = await layouts.relabel(plan.id, layoutIdOrNull(layoutId), { label: input.label ?? null, locked: input.locked ?? null }, transaction);
+        if (!found) throw notFound('That layout');
       });
       return this.get(labId, planId, layoutId);
     },
@@ -329,17 +298,11 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);
-        const [layout] = await sequelize.query<{ id: string; locked: boolean }>('SELECT id, locked FROM layouts WHERE id = $1 AND plan_id = $2', {
-          bind: [/^[0-9a-f-]{36}$/i.test(layoutId) ? layoutId : null, plan.id],
-          type: QueryTypes.SELECT,
-          transaction,
-        });
+        const layout = await layouts.head(plan.id, layoutIdOrNull(layoutId), transaction);
         if (!layout) throw notFound('That layout');
         if (layout.locked) throw conflict('locked', 'This layout is locked; unlock it before deleting it.');
-        await sequelize.query('DELETE FROM layouts WHERE id = $1', { bind: [layout.id], transaction });
-        if (plan.chosen_layout_id === layout.id) {
-          await sequelize.query('UPDATE plans SET version = version + 1, updated_at = now() WHERE id = $1', { bind: [plan.id], transaction });
-        }
+        await layouts.remove(layout.id, transaction);
+        if (plan.chosen_layout_id === layout.id) await plans.bumpVersion(plan.id, transaction);
         await reopenIfSentBack(db, plan, user.id, transaction);
       });
     },

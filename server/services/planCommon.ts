@@ -19,8 +19,6 @@ export type Actor = { id: string; name: string; email?: string };
 
 /** Statuses whose lines no longer hold request quantities: nothing of them is (or will be) printed. */
 export const INACTIVE_STATUSES: readonly PlanStatus[] = ['cancelled', 'aborted'];
-// The same list as SQL, kept beside the queries that need it; here for the services that still write SQL.
-export { INACTIVE_SQL } from '../db/repositories/plans';
 export type { LayoutSummaryRow, LineRow, PlanRow };
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;

@@ -1,4 +1,3 @@
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
 import { applyTransition, invalidTransition, lockPlan, type Actor } from './planCommon';
 import type { PlansService } from './plans';
@@ -30,14 +29,10 @@ export function reviewService(db: Database, deps: ReviewDeps) {
           await deps.labs.assertSecondApprover(labId, plan.id, user.id, transaction);
           await applyTransition(db, plan, 'approved', user.id, comment, transaction);
           // Locking the machine row makes two approvals for one machine take positions one after the other.
-          await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [plan.machine_id], transaction });
-          const [max] = await sequelize.query<{ pos: number | null }>(
-            'SELECT MAX(queue_position) AS pos FROM plans WHERE machine_id = $1 AND queue_position IS NOT NULL',
-            { bind: [plan.machine_id], type: QueryTypes.SELECT, transaction },
-          );
-          queuePosition = (max?.pos ?? 0) + 1;
+          await plans.lockMachine(plan.machine_id, transaction);
+          queuePosition = ((await plans.lastQueuePosition(plan.machine_id, transaction)) ?? 0) + 1;
           await applyTransition(db, plan, 'queued', user.id, null, transaction);
-          await sequelize.query('UPDATE plans SET queue_position = $2 WHERE id = $1', { bind: [plan.id, queuePosition], transaction });
+          await plans.setQueuePosition(plan.id, queuePosition, transaction);
         } else {
           if (!canTransition(plan.status, 'changes_requested')) throw invalidTransition(plan.status, 'changes_requested');
           await applyTransition(db, plan, 'changes_requested', user.id, comment, transaction);

@@ -1,10 +1,10 @@
-import { QueryTypes } from 'sequelize';
 import type { Database } from '../db';
+import { reviewRepository, type FlaggedPlanRow } from '../db/repositories/review';
 import { checkPlanId, planLines } from './planCommon';
 import { dueEndMs, type QueueService } from './queue';
 import type { LabsService } from './labs';
 import { notFound } from '../errors';
-import { isBeforePrinting, type PlanStatus } from '../../shared/plans/status';
+import { isBeforePrinting } from '../../shared/plans/status';
 import type { PlanFlag, PlanFlagsView } from '../../shared/schemas/review';
 import type { QueueItemView } from '../../shared/schemas/runs';
 
@@ -20,7 +20,7 @@ function utcTime(iso: string): string {
 
 const pct = (fraction: number) => `${(fraction * 100).toFixed(1)} %`;
 
-type PlanRow = { id: string; name: string; status: PlanStatus; machine_id: string; machine_name: string; material_id: string; material_name: string; density: number | null };
+type PlanRow = FlaggedPlanRow;
 
 /**
  * Points a lead should see before approving a plan, worked out on the server
@@ -32,7 +32,7 @@ type PlanRow = { id: string; name: string; status: PlanStatus; machine_id: strin
  * - a part's mesh is not closed (open edges), so its volume, cost and the build file may be wrong.
  */
 export function reviewFlagsService(db: Database, deps: { labs: LabsService; queue: QueueService }) {
-  const { sequelize } = db;
+  const repo = reviewRepository(db);
 
   /** The build that runs on the machine before the plan: the one before it in the queue, else the last started there. */
   async function buildBefore(plan: PlanRow, queue: QueueItemView[]): Promise<{ id: string; name: string; materialId: string; materialName: string } | null> {
@@ -41,26 +41,13 @@ export function reviewFlagsService(db: Database, deps: { labs: LabsService; queu
       const prev = queue[at - 1];
       return { id: prev.planId, name: prev.name, materialId: prev.material.id, materialName: prev.material.name };
     }
-    const [last] = await sequelize.query<{ id: string; name: string; material_id: string; material_name: string }>(
-      `SELECT p.id, p.name, p.material_id, mt.name AS material_name
-         FROM runs r JOIN plans p ON p.id = r.plan_id JOIN materials mt ON mt.id = p.material_id
-        WHERE r.machine_id = $1 AND p.id <> $2
-        ORDER BY r.started_at DESC LIMIT 1`,
-      { bind: [plan.machine_id, plan.id], type: QueryTypes.SELECT },
-    );
+    const last = await repo.lastRunPlan(plan.machine_id, plan.id);
     return last ? { id: last.id, name: last.name, materialId: last.material_id, materialName: last.material_name } : null;
   }
 
   return {
     async forPlan(labId: string, planId: string, nowMs = Date.now()): Promise<PlanFlagsView> {
-      const [plan] = await sequelize.query<PlanRow>(
-        `SELECT p.id, p.name, p.status, p.machine_id, m.name AS machine_name, p.material_id, mt.name AS material_name,
-                COALESCE((l.estimate->'powder'->>'packingDensity')::double precision, (l.summary->>'utilization')::double precision) AS density
-           FROM plans p JOIN machines m ON m.id = p.machine_id JOIN materials mt ON mt.id = p.material_id
-           LEFT JOIN layouts l ON l.id = p.chosen_layout_id
-          WHERE p.id = $1 AND p.lab_id = $2`,
-        { bind: [checkPlanId(planId), labId], type: QueryTypes.SELECT },
-      );
+      const plan = await repo.flaggedPlan(labId, checkPlanId(planId));
       if (!plan) throw notFound('That plan');
       const flags: PlanFlag[] = [];
 
@@ -113,10 +100,7 @@ export function reviewFlagsService(db: Database, deps: { labs: LabsService; queu
 
       const lines = await planLines(db, plan.id);
       const partIds = [...new Set(lines.map((l) => l.part_id))];
-      const open = await sequelize.query<{ id: string; name: string; open_edges: number | null }>(
-        `SELECT id, name, (metrics->>'openEdges')::int AS open_edges FROM parts WHERE id = ANY($1::uuid[]) AND NOT watertight ORDER BY name`,
-        { bind: [partIds], type: QueryTypes.SELECT },
-      );
+      const open = await repo.unclosedParts(partIds);
       for (const part of open) {
         flags.push({
           kind: 'not_watertight',

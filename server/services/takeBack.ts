@@ -1,5 +1,7 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { reviewRepository } from '../db/repositories/review';
+import { auditRepository } from '../db/repositories/audit';
 import { AppError, conflict, forbidden, notFound } from '../errors';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlanRow } from './planCommon';
 import { canTakeBack, STATUS_LABELS } from '../../shared/plans/status';
@@ -43,23 +45,17 @@ export function takeBackService(db: Database, deps: { plans: PlansService; appUr
     return deps.plans.notify([planner.email], subject, [...lines, '', `${deps.appUrl}/plans/${planId}`].join('\n'));
   }
 
+  const decisions = reviewRepository(db);
+  const audit = auditRepository(db);
+
   /** Takes the plan out of its machine's queue; those behind it move up one place. */
   async function leaveQueue(plan: PlanRow, transaction: Transaction): Promise<void> {
-    await sequelize.query('SELECT id FROM machines WHERE id = $1 FOR UPDATE', { bind: [plan.machine_id], transaction });
-    if (plan.queue_position != null) {
-      await sequelize.query(
-        `UPDATE plans SET queue_position = queue_position - 1 WHERE machine_id = $1 AND status = 'queued' AND queue_position > $2 AND id <> $3`,
-        { bind: [plan.machine_id, plan.queue_position, plan.id], transaction },
-      );
-    }
-    await sequelize.query('UPDATE plans SET queue_position = NULL WHERE id = $1', { bind: [plan.id], transaction });
+    await repo.lockMachine(plan.machine_id, transaction);
+    await repo.leaveQueue(plan, transaction);
   }
 
   async function recordAudit(plan: PlanRow, actorId: string, action: string, after: Record<string, unknown>, transaction: Transaction) {
-    await sequelize.query(
-      `INSERT INTO audit_log (lab_id, actor_id, kind, action, target_id, target_label, after) VALUES ($1, $2, 'plan', $3, $4, $5, $6::jsonb)`,
-      { bind: [plan.lab_id, actorId, action, plan.id, plan.name, JSON.stringify(after)], transaction },
-    );
+    await audit.addLabEvent({ labId: plan.lab_id, actorId, kind: 'plan', action, targetId: plan.id, targetLabel: plan.name, after }, transaction);
   }
 
   return {
@@ -68,11 +64,7 @@ export function takeBackService(db: Database, deps: { plans: PlansService; appUr
       const done = await sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!canTakeBack(plan.status, 'in_review')) throw invalidTransition(plan.status, 'in_review');
-        const [approval] = await sequelize.query<{ user_id: string | null; created_at: Date; age_ms: number }>(
-          `SELECT user_id, created_at, EXTRACT(EPOCH FROM (clock_timestamp() - created_at)) * 1000 AS age_ms
-             FROM plan_events WHERE plan_id = $1 AND to_status = 'approved' ORDER BY created_at DESC LIMIT 1`,
-          { bind: [plan.id], type: QueryTypes.SELECT, transaction },
-        );
+        const approval = await decisions.lastApproval(plan.id, transaction);
         if (!approval) throw conflict('not_approved', 'This plan has no approval to undo.');
         if (approval.user_id !== user.id) {
           throw forbidden('Only the lead who approved this plan can undo the approval; another member can return it to draft, with a reason.');
@@ -123,29 +115,19 @@ export function takeBackService(db: Database, deps: { plans: PlansService; appUr
     async undoQueueMove(labId: string, machineId: string, moveId: string, user: Actor): Promise<void> {
       if (!UUID.test(moveId) || !UUID.test(machineId)) throw notFound('That queue move');
       await sequelize.transaction(async (transaction) => {
-        await sequelize.query('SELECT id FROM machines WHERE id = $1 AND lab_id = $2 FOR UPDATE', { bind: [machineId, labId], transaction });
-        const [move] = await sequelize.query<{ id: string; user_id: string | null; before_ids: string[]; after_ids: string[]; undone_at: Date | null; age_ms: number }>(
-          `SELECT id, user_id, before_ids, after_ids, undone_at, EXTRACT(EPOCH FROM (clock_timestamp() - created_at)) * 1000 AS age_ms
-             FROM queue_moves WHERE id = $1 AND machine_id = $2 AND lab_id = $3 FOR UPDATE`,
-          { bind: [moveId, machineId, labId], type: QueryTypes.SELECT, transaction },
-        );
+        await repo.lockMachine(machineId, transaction, labId);
+        const move = await decisions.lockQueueMove(labId, machineId, moveId, transaction);
         if (!move) throw notFound('That queue move');
         if (move.user_id !== user.id) throw forbidden('Only the lead who moved the queue can undo that move; reorder it again instead.');
         if (move.undone_at) throw conflict('already_undone', 'This queue move was already undone.');
         const age = Number(move.age_ms);
         if (age > UNDO_WINDOW_MS) throw windowPassed('The queue move', age, 'Reorder the queue again instead.');
-        const now = await sequelize.query<{ id: string }>(
-          `SELECT id FROM plans WHERE machine_id = $1 AND lab_id = $2 AND status = 'queued' ORDER BY queue_position FOR UPDATE`,
-          { bind: [machineId, labId], type: QueryTypes.SELECT, transaction },
-        );
-        if (now.map((r) => r.id).join(',') !== move.after_ids.join(',')) {
+        const now = await repo.lockQueued(labId, machineId, transaction);
+        if (now.join(',') !== move.after_ids.join(',')) {
           throw conflict('queue_changed', 'The queue has changed since that move (a plan was approved, started, reordered or taken out), so it cannot be undone; reorder it again instead.');
         }
-        await sequelize.query(
-          `UPDATE plans p SET queue_position = o.pos, updated_at = now() FROM unnest($1::uuid[]) WITH ORDINALITY AS o(id, pos) WHERE p.id = o.id`,
-          { bind: [move.before_ids], transaction },
-        );
-        await sequelize.query('UPDATE queue_moves SET undone_at = now() WHERE id = $1', { bind: [move.id], transaction });
+        await repo.putInQueueOrder(move.before_ids, transaction);
+        await decisions.markQueueMoveUndone(move.id, transaction);
       });
     },
   };

@@ -36,6 +36,14 @@ export function auditRepository(db: Database) {
       );
     },
 
+    /** One entry in the lab's log for a change the services make themselves (the triggers see only rows). */
+    async addLabEvent(
+      entry: { labId: string; actorId: string; kind: string; action: string; targetId: string; targetLabel: string; after: Record<string, unknown> },
+      transaction: Transaction,
+    ): Promise<void> {
+      await AuditEntry.create({ ...entry, before: null }, { transaction, fields: ['labId', 'actorId', 'kind', 'action', 'targetId', 'targetLabel', 'after'] });
+    },
+
     /** The lab's entries matching the filter, newest first, at most `limit`. */
     async entries(labId: string, f: AuditFilter): Promise<AuditRecord[]> {
       const at: Array<WhereOptions<AuditEntryRow>> = [];
