@@ -327,19 +327,25 @@ describe('two leads on one plan', () => {
     await signIn(page, 'lead@tinkerfin.example');
     await page.goto(`/review/${other.planId}`);
     await page.getByTestId('review-decision').waitFor();
+    // The same plan open on a phone too.
+    const phone = await newPage(served, PHONE);
+    await signIn(phone, 'lead@tinkerfin.example');
+    await phone.goto(`/review/${other.planId}`);
+    await phone.getByTestId('review-decision').waitFor();
     // This lead starts writing while another lead approves it elsewhere.
     await page.getByTestId('review-comment').fill('Fine by me');
-    // The screen is live: the other decision shows here by itself within moments, without a reload.
-    await page.evaluate('window.__reviewStillOpen = true');
+    // The screens are live: the other decision shows on both by itself within moments, without a reload.
+    for (const p of [page, phone]) await p.evaluate('window.__reviewStillOpen = true');
     const ok = await lead.post(`${other.base}/review`).send({ decision: 'approve' });
     expect(ok.status).toBe(200);
     await waitForText(page, 'review-status', 'Queued');
-    expect(await page.evaluate('window.__reviewStillOpen')).toBe(true);
+    await waitForText(phone, 'review-status', 'Queued');
+    for (const p of [page, phone]) expect(await p.evaluate('window.__reviewStillOpen')).toBe(true);
     await screenshot(page, 'review-conflict-wide');
     await page.context().close();
+    await phone.getByTestId('review-decided').scrollIntoViewIfNeeded();
+    await screenshot(phone, 'review-live-phone');
 
-    const phone = await newPage(served, PHONE);
-    await signIn(phone, 'lead@tinkerfin.example');
     await phone.goto(`/review/${other.planId}`);
     await phone.getByTestId('review-build').waitFor();
     await phone.getByTestId('plan-numbers').waitFor();
