@@ -16,9 +16,12 @@
  * points of two parts are at least the spacing apart along some axis, hence
  * in space. Every layout offered is checked exactly against the meshes first.
  *
- * A first layout comes from a fixed order (largest parts first); then, until
- * the time limit, other orders and rotation choices are tried and the lowest
- * layout kept.
+ * The first layout offered is the box engine's, packed for a share of the
+ * time and then settled by shape (./settle.ts: each part lowered into the
+ * hollows of the ones below it), so a packing by shape is never taller than
+ * the boxes it started from. Then a fixed order (largest parts first) is
+ * dropped into the height map; until the time limit, other orders and
+ * rotation choices are tried and the lowest layout kept.
  */
 import { placementTransform, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
@@ -28,7 +31,9 @@ import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
 import { boxInstance, fromBoxResult } from './boxfit';
-import { packSync } from '../engine';
+import { createPacking, packSync } from '../engine';
+import { settleLayout, lowerTheTop } from './settle';
+import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
 
@@ -46,6 +51,8 @@ export interface ShapeOptions {
   maxRuns?: number;
   /** Plan cell size (mm); by default from the spacing and the chamber. */
   cellMm?: number;
+  /** Share of the time limit the box engine gets for the settled first layout (default 0.25; 0: none). */
+  boxShare?: number;
 }
 
 export interface ShapePacking {
@@ -154,102 +161,6 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
   });
 }
 
-interface Grid {
-  nx: number;
-  ny: number;
-  cell: number;
-  r: number;
-  g: number;
-  origin: [number, number, number];
-  extent: [number, number, number];
-  /** Top of the material per cell (-Infinity where empty). */
-  H: Float64Array;
-  /** Dilated: max of H over the (2r+1)^2 window, plus the spacing. */
-  D: Float64Array;
-}
-
-function newGrid(instance: PackInstanceV2, cell: number): Grid {
-  const { min, extent } = usableRegion(instance);
-  const nx = Math.max(1, Math.ceil(extent[0] / cell - 1e-9));
-  const ny = Math.max(1, Math.ceil(extent[1] / cell - 1e-9));
-  const g = instance.spacing;
-  return {
-    nx,
-    ny,
-    cell,
-    r: g > 0 ? Math.ceil(g / cell - 1e-9) : 0,
-    g,
-    origin: [min[0], min[1], min[2]],
-    extent: [extent[0], extent[1], extent[2]],
-    H: new Float64Array(nx * ny).fill(-Infinity),
-    D: new Float64Array(nx * ny).fill(-Infinity),
-  };
-}
-
-/** Best drop of one profile: the lowest top, then the lowest row, then the leftmost; `bound` is the best score so far. */
-function bestDrop(G: Grid, p: Profile, bound: number): { u: number; v: number; z: number; score: number } | null {
-  const { nx, D, cell, extent, origin } = G;
-  const umax = Math.floor((extent[0] - p.extent[0]) / cell + 1e-9);
-  const vmax = Math.floor((extent[1] - p.extent[1]) / cell + 1e-9);
-  if (umax < 0 || vmax < 0) return null;
-  const floor = origin[2];
-  const ceiling = origin[2] + extent[2] + 1e-9;
-  const ez = p.extent[2];
-  // The lowest this rotation can end: already no better than the bound, skip it.
-  if (floor + ez >= bound) return null;
-  const m = p.cellX.length;
-  const off = new Int32Array(m);
-  for (let k = 0; k < m; k++) off[k] = p.cellX[k] + nx * p.cellY[k];
-  const bot = p.bottom;
-  let best = Math.min(bound, ceiling);
-  let bu = -1, bv = -1, bz = 0;
-  for (let v = 0; v <= vmax; v++) {
-    for (let u = 0; u <= umax; u++) {
-      const base = u + nx * v;
-      let z = floor;
-      const limit = best - ez;
-      let k = 0;
-      for (; k < m; k++) {
-        const h = D[base + off[k]] - bot[k];
-        if (h > z) {
-          z = h;
-          if (z >= limit) break;
-        }
-      }
-      if (k < m) continue;
-      best = z + ez;
-      bu = u;
-      bv = v;
-      bz = z;
-      if (z <= floor) return { u, v, z, score: best };
-    }
-  }
-  return bu < 0 ? null : { u: bu, v: bv, z: bz, score: best };
-}
-
-function drop(G: Grid, p: Profile, u: number, v: number, z: number): void {
-  const { nx, ny, H, D, r, g } = G;
-  for (let k = 0; k < p.cellX.length; k++) {
-    const id = u + p.cellX[k] + nx * (v + p.cellY[k]);
-    const t = z + p.top[k];
-    if (t > H[id]) H[id] = t;
-  }
-  const x0 = Math.max(0, u - r), x1 = Math.min(nx - 1, u + p.nx - 1 + r);
-  const y0 = Math.max(0, v - r), y1 = Math.min(ny - 1, v + p.ny - 1 + r);
-  for (let y = y0; y <= y1; y++) {
-    for (let x = x0; x <= x1; x++) {
-      let h = -Infinity;
-      for (let yy = Math.max(0, y - r), ye = Math.min(ny - 1, y + r); yy <= ye; yy++) {
-        for (let xx = Math.max(0, x - r), xe = Math.min(nx - 1, x + r); xx <= xe; xx++) {
-          const val = H[xx + nx * yy];
-          if (val > h) h = val;
-        }
-      }
-      D[x + nx * y] = h + g;
-    }
-  }
-}
-
 /**
  * One full packing. Copies come in `order` (kind indices), but before each
  * one raises the top of the load, every part that can still drop in below
@@ -302,6 +213,12 @@ function packOnce(instance: PackInstanceV2, kinds: Kind[], order: number[], choi
     }
   }
   return placed;
+}
+
+/** A kind's profile for a rotation (the search's own when it has it; drawn otherwise, only its extent is read). */
+function profileFor(kinds: Kind[], kind: number, rotation: number, cell: number, spacing: number): Profile {
+  const k = kinds[kind];
+  return k.allProfiles.find((p) => p.rotation === rotation) ?? columnProfile(k.part, rotation, cell, spacing, k.part.hasMesh && !k.part.watertight);
 }
 
 function summarise(instance: PackInstanceV2, kinds: Kind[], placed: Placed[], elapsedMs: number, warnings: PackWarning[]): PackResultV2 {
@@ -374,6 +291,34 @@ function* solve(
     hooks.onProgress?.(phase, share(), result);
   };
   const heightOf = (placed: Placed[]) => placed.reduce((h, p) => Math.max(h, p.position[2] + p.profile.extent[2]), 0);
+
+  // The boxes' layout, settled by shape: a first layout at once, never taller than the boxes'.
+  const boxShare = options.boxShare ?? 0.25;
+  if (boxShare > 0 && copies.length > 0) {
+    const boxes = createPacking(boxInstance({ ...instance, timeLimitMs: Math.round(instance.timeLimitMs * boxShare) }, parts), {
+      now,
+      // With a cap on the runs, the box search is capped too (the same result on any machine).
+      maxCompletions: options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined,
+    }).runSync({ shouldStop: stop });
+    const boxLayout = fromBoxResult(instance, parts, boxes);
+    const rotationOf = (code: string, part: ShapePart) => part.rotations.find((r) => codeFor(part, r) === code) ?? part.rotations[0];
+    const byId = new Map(parts.map((p) => [p.id, p] as const));
+    const settled = settleLayout(
+      instance,
+      parts,
+      boxLayout.placements.map((pl) => {
+        const part = byId.get(pl.id)!;
+        return { part: part.index, rotation: rotationOf(pl.orientation, part), position: [pl.position[0], pl.position[1], pl.position[2]] };
+      }),
+      { stopped: stop },
+    );
+    // The settled layout in the drop's own terms, so the search below can be compared with it.
+    const asPlaced: Placed[] = settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
+    offer(asPlaced);
+    // Then its highest parts dropped again where they end lower, while they can.
+    offer(lowerTheTop(instance, asPlaced, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
+    runs++;
+  }
 
   const choices = kinds.map((k) => k.profiles);
   const first = packOnce(instance, kinds, firstOrder, choices, cell, () => false);

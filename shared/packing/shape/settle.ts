@@ -24,6 +24,7 @@ import { usableRegion } from '../geometry';
 import type { PackInstanceV2 } from '../types';
 import type { ShapePart } from './parts';
 import { columnProfile, type Profile } from './profile';
+import { bestDrop, newGrid, type Grid } from './grid';
 
 export interface SettleItem {
   /** Index in the prepared parts. */
@@ -170,4 +171,85 @@ function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly numbe
     }
   }
   return need;
+}
+
+export interface TopItem {
+  kind: number;
+  /** Its column profile on the height map's cells. */
+  profile: Profile;
+  /** Minimum corner of the placed bounding box (mm). */
+  position: [number, number, number];
+}
+
+/** Marks a part placed anywhere (not only on the cells' corners) into H: every cell its columns touch gets its top. */
+function stamp(G: Grid, it: TopItem): void {
+  const { nx, ny, cell, origin, H } = G;
+  const fx = (it.position[0] - origin[0]) / cell, fy = (it.position[1] - origin[1]) / cell;
+  const u0 = Math.floor(fx + 1e-9), v0 = Math.floor(fy + 1e-9);
+  const ex = fx - u0 > 1e-6 ? 1 : 0, ey = fy - v0 > 1e-6 ? 1 : 0;
+  const p = it.profile;
+  for (let k = 0; k < p.cellX.length; k++) {
+    const t = it.position[2] + p.top[k];
+    for (let dv = 0; dv <= ey; dv++) {
+      const v = v0 + p.cellY[k] + dv;
+      if (v < 0 || v >= ny) continue;
+      for (let du = 0; du <= ex; du++) {
+        const u = u0 + p.cellX[k] + du;
+        if (u < 0 || u >= nx) continue;
+        const id = u + nx * v;
+        if (t > H[id]) H[id] = t;
+      }
+    }
+  }
+}
+
+/** D from H over the whole map: the maximum over the square of cells within the spacing, plus the spacing. */
+function dilateAll(G: Grid): void {
+  const { nx, ny, r, g, H, D } = G;
+  const rows = new Float64Array(nx * ny);
+  for (let y = 0; y < ny; y++) {
+    for (let x = 0; x < nx; x++) {
+      let h = -Infinity;
+      for (let xx = Math.max(0, x - r), xe = Math.min(nx - 1, x + r); xx <= xe; xx++) if (H[xx + nx * y] > h) h = H[xx + nx * y];
+      rows[x + nx * y] = h;
+    }
+  }
+  for (let y = 0; y < ny; y++) {
+    for (let x = 0; x < nx; x++) {
+      let h = -Infinity;
+      for (let yy = Math.max(0, y - r), ye = Math.min(ny - 1, y + r); yy <= ye; yy++) if (rows[x + nx * yy] > h) h = rows[x + nx * yy];
+      D[x + nx * y] = h + g;
+    }
+  }
+}
+
+/**
+ * Brings the top of a layout down: the part whose top is highest is taken out
+ * and dropped again, among all the others, at the place and rotation (of
+ * `choices` for its kind) where its top ends lowest, if that is lower than
+ * where it was; then the next highest, until the highest part finds no lower
+ * place. A part dropped so sits above everything in its columns, so it goes
+ * last in the lift-out order.
+ */
+export function lowerTheTop(instance: PackInstanceV2, items: readonly TopItem[], choices: readonly Profile[][], cell: number, stopped?: () => boolean): TopItem[] {
+  const out = items.slice();
+  const topOf = (it: TopItem) => it.position[2] + it.profile.extent[2];
+  for (let round = 0; round < 4 * items.length && !stopped?.(); round++) {
+    let hi = -1;
+    for (let i = 0; i < out.length; i++) if (hi < 0 || topOf(out[i]) > topOf(out[hi])) hi = i;
+    if (hi < 0) break;
+    const moving = out[hi];
+    const G = newGrid(instance, cell);
+    for (let i = 0; i < out.length; i++) if (i !== hi) stamp(G, out[i]);
+    dilateAll(G);
+    let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
+    for (const p of choices[moving.kind]) {
+      const d = bestDrop(G, p, best ? best.score : topOf(moving) - 1e-6);
+      if (d) best = { ...d, p };
+    }
+    if (!best) break;
+    out.splice(hi, 1);
+    out.push({ kind: moving.kind, profile: best.p, position: [G.origin[0] + best.u * cell, G.origin[1] + best.v * cell, best.z] });
+  }
+  return out;
 }
