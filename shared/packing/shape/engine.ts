@@ -51,7 +51,7 @@ export interface ShapeOptions {
   maxRuns?: number;
   /** Plan cell size (mm); by default from the spacing and the chamber. */
   cellMm?: number;
-  /** Share of the time limit the box engine gets for the settled first layout (default 0.25; 0: none). */
+  /** Share of the time limit the box engine gets for the settled first layout (default 0.6; 0: none). */
   boxShare?: number;
 }
 
@@ -292,33 +292,26 @@ function* solve(
   };
   const heightOf = (placed: Placed[]) => placed.reduce((h, p) => Math.max(h, p.position[2] + p.profile.extent[2]), 0);
 
-  // The boxes' layout, settled by shape: a first layout at once, never taller than the boxes'.
-  const boxShare = options.boxShare ?? 0.25;
-  if (boxShare > 0 && copies.length > 0) {
-    const boxes = createPacking(boxInstance({ ...instance, timeLimitMs: Math.round(instance.timeLimitMs * boxShare) }, parts), {
-      now,
-      // With a cap on the runs, the box search is capped too (the same result on any machine).
-      maxCompletions: options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined,
-    }).runSync({ shouldStop: stop });
-    const boxLayout = fromBoxResult(instance, parts, boxes);
+  // The boxes' layout, settled by shape: never taller than the boxes'. First the box engine's first layout
+  // (a layout to show at once), later its search for a share of the time, with the top brought down after.
+  const boxShare = options.boxShare ?? 0.6;
+  const byId = new Map(parts.map((p) => [p.id, p] as const));
+  const settledBoxes = (maxCompletions: number | undefined, ms: number): Placed[] => {
+    const boxes = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, maxCompletions }).runSync({ shouldStop: stop });
     const rotationOf = (code: string, part: ShapePart) => part.rotations.find((r) => codeFor(part, r) === code) ?? part.rotations[0];
-    const byId = new Map(parts.map((p) => [p.id, p] as const));
     const settled = settleLayout(
       instance,
       parts,
-      boxLayout.placements.map((pl) => {
+      fromBoxResult(instance, parts, boxes).placements.map((pl) => {
         const part = byId.get(pl.id)!;
         return { part: part.index, rotation: rotationOf(pl.orientation, part), position: [pl.position[0], pl.position[1], pl.position[2]] };
       }),
       { stopped: stop },
     );
-    // The settled layout in the drop's own terms, so the search below can be compared with it.
-    const asPlaced: Placed[] = settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
-    offer(asPlaced);
-    // Then its highest parts dropped again where they end lower, while they can.
-    offer(lowerTheTop(instance, asPlaced, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
-    runs++;
-  }
+    // In the drop's own terms, so the search below can be compared with it.
+    return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
+  };
+  if (boxShare > 0 && copies.length > 0) offer(settledBoxes(0, instance.timeLimitMs));
 
   const choices = kinds.map((k) => k.profiles);
   const first = packOnce(instance, kinds, firstOrder, choices, cell, () => false);
@@ -327,6 +320,14 @@ function* solve(
   if (copies.length === 0) {
     if (!out.best) offer([]);
     return;
+  }
+  if (boxShare > 0 && copies.length > 0 && !stop()) {
+    // With a cap on the runs, the box search is capped too (the same result on any machine).
+    const searched = settledBoxes(options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined, Math.round(instance.timeLimitMs * boxShare));
+    offer(searched);
+    // Then its highest parts dropped again where they end lower, while they can.
+    offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
+    runs++;
   }
   phase = 'search';
   let order = firstOrder;

@@ -42,17 +42,54 @@ interface Dense {
   extent: [number, number, number];
   bottom: Float64Array;
   top: Float64Array;
+  /**
+   * The top grown by a ball of the spacing, over the cells around the part too
+   * (R cells beyond each side): at cell (k, l), the height a point of another
+   * part in that column must keep above this part's box bottom, taking the
+   * horizontal distance to each column as the gap between the two cells.
+   */
+  grown: Float64Array;
+  R: number;
 }
 
-function dense(p: Profile): Dense {
-  const bottom = new Float64Array(p.nx * p.ny).fill(Infinity);
-  const top = new Float64Array(p.nx * p.ny).fill(-Infinity);
+function dense(p: Profile, g: number, h: number): Dense {
+  const { nx, ny } = p;
+  const bottom = new Float64Array(nx * ny).fill(Infinity);
+  const top = new Float64Array(nx * ny).fill(-Infinity);
   for (let k = 0; k < p.cellX.length; k++) {
-    const id = p.cellX[k] + p.nx * p.cellY[k];
+    const id = p.cellX[k] + nx * p.cellY[k];
     bottom[id] = p.bottom[k];
     top[id] = p.top[k];
   }
-  return { nx: p.nx, ny: p.ny, extent: p.extent, bottom, top };
+  const R = g > 0 ? Math.ceil(g / h) + 1 : 1;
+  const wx = nx + 2 * R, wy = ny + 2 * R;
+  const grown = new Float64Array(wx * wy).fill(-Infinity);
+  const g2 = g * g;
+  // Rise over a column at a gap of (d - 1) cells, d = 0..R (0 and 1: the same or a touching cell).
+  const rise = new Float64Array((R + 1) * (R + 1)).fill(-Infinity);
+  for (let a = 0; a <= R; a++) {
+    for (let b = 0; b <= R; b++) {
+      const dx = Math.max(0, a - 1) * h, dy = Math.max(0, b - 1) * h;
+      const d2 = dx * dx + dy * dy;
+      if (g > 0 ? d2 < g2 : d2 === 0) rise[a + (R + 1) * b] = Math.sqrt(Math.max(0, g2 - d2));
+    }
+  }
+  for (let l = 0; l < ny; l++) {
+    for (let k = 0; k < nx; k++) {
+      const t = top[k + nx * l];
+      if (t === -Infinity) continue;
+      for (let b = -R; b <= R; b++) {
+        const row = wx * (l + b + R);
+        for (let a = -R; a <= R; a++) {
+          const r = rise[Math.abs(a) + (R + 1) * Math.abs(b)];
+          if (r === -Infinity) continue;
+          const id = row + k + a + R;
+          if (t + r > grown[id]) grown[id] = t + r;
+        }
+      }
+    }
+  }
+  return { nx, ny, extent: p.extent, bottom, top, grown, R };
 }
 
 /** The plan cell size the settling works at: a third of the spacing, between 0.5 and 1.5 mm. */
@@ -80,7 +117,7 @@ export function settleLayout(
     let d = cache.get(key);
     if (!d) {
       const p = parts[part];
-      d = dense(columnProfile(p, rotation, h, g, p.hasMesh && !p.watertight));
+      d = dense(columnProfile(p, rotation, h, g, p.hasMesh && !p.watertight), g, h);
       cache.set(key, d);
     }
     return d;
@@ -109,7 +146,7 @@ export function settleLayout(
             const gy = Math.max(Q.position[1] - (y + P.extent[1]), y - (Q.position[1] + QP.extent[1]), 0);
             // Further apart in plan than the spacing: no height brings them closer.
             if (gx * gx + gy * gy >= g * g) continue;
-            need = Math.max(need, lowestAbove(P, x, y, QP, Q.position, g, h));
+            need = Math.max(need, lowestAbove(P, x, y, QP, Q.position, h));
             if (need >= z0) break;
           }
         }
@@ -136,35 +173,31 @@ export function settleLayout(
 
 /**
  * The lowest height of P's box bottom (P's box at plan corner x, y) at which
- * every point of P is at least `g` from every point of Q, coming from above.
+ * every point of P is at least the spacing from every point of Q, coming from
+ * above. P's cell i spans Q's columns floor(sx + i) and the next; the grown
+ * top of either, measured from a whole cell, errs only upwards (its gap to
+ * every column of Q is at most the true one).
  */
-function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], g: number, h: number): number {
+function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], h: number): number {
   let need = -Infinity;
-  const reach = Math.ceil(g / h) + 1;
-  const g2 = g * g;
-  // Cell offsets of Q's grid against P's: Q's cell k starts at q0 + k h.
-  const sx = (x - q[0]) / h, sy = (y - q[1]) / h;
+  const { R, grown } = Q;
+  const wx = Q.nx + 2 * R, wy = Q.ny + 2 * R;
+  const sx = (x - q[0]) / h + R, sy = (y - q[1]) / h + R;
+  const fx = Math.floor(sx + 1e-9), fy = Math.floor(sy + 1e-9);
+  const ex = sx - fx > 1e-6 ? 1 : 0, ey = sy - fy > 1e-6 ? 1 : 0;
   for (let j = 0; j < P.ny; j++) {
-    const cy = sy + j; // P's row j in Q's cell units
-    const l0 = Math.max(0, Math.ceil(cy - reach)), l1 = Math.min(Q.ny - 1, Math.floor(cy + reach));
-    if (l0 > l1) continue;
+    const l0 = fy + j;
+    if (l0 + ey < 0 || l0 >= wy) continue;
     for (let i = 0; i < P.nx; i++) {
       const b = P.bottom[i + P.nx * j];
       if (b === Infinity) continue;
-      const cx = sx + i;
-      const k0 = Math.max(0, Math.ceil(cx - reach)), k1 = Math.min(Q.nx - 1, Math.floor(cx + reach));
-      for (let l = l0; l <= l1; l++) {
-        const dy = Math.max(0, Math.abs(cy - l) - 1) * h;
-        const dy2 = dy * dy;
-        if (dy2 >= g2) continue;
-        const row = Q.nx * l;
-        for (let k = k0; k <= k1; k++) {
-          const t = Q.top[row + k];
+      const k0 = fx + i;
+      if (k0 + ex < 0 || k0 >= wx) continue;
+      for (let l = Math.max(0, l0), le = Math.min(wy - 1, l0 + ey); l <= le; l++) {
+        for (let k = Math.max(0, k0), ke = Math.min(wx - 1, k0 + ex); k <= ke; k++) {
+          const t = grown[k + wx * l];
           if (t === -Infinity) continue;
-          const dx = Math.max(0, Math.abs(cx - k) - 1) * h;
-          const d2 = dx * dx + dy2;
-          if (d2 >= g2) continue;
-          const z = q[2] + t + Math.sqrt(g2 - d2) - b;
+          const z = q[2] + t - b;
           if (z > need) need = z;
         }
       }
