@@ -17,7 +17,14 @@ export interface BuildPaneProps {
   onCut: (heightMm: number | null) => void;
   describe: (index: number) => string;
   onPick: (index: number | null) => void;
+  /** A press on a part: true when it is marked and may be dragged (see ChamberView). */
+  onDragStart: (index: number) => boolean;
+  onDrag: (dxMm: number, dyMm: number, phase: 'move' | 'end' | 'cancel') => void;
   marked: number;
+  /** Where the one marked part is (its box's low corner) and its size, as shown (while dragged too). */
+  markedBox: { position: readonly number[]; size: readonly number[] } | null;
+  /** Takes back the last change by hand; null when there is none. */
+  onUndo: (() => void) | null;
   /** Placements a hand edit left closer than the spacing or outside the usable region. */
   faults: number;
   spacingMm: number;
@@ -28,13 +35,18 @@ export interface BuildPaneProps {
   editable: boolean;
   caption: string;
   live: boolean;
-  /** Fixed height (phone); the pane fills its column when left out. */
-  heightPx?: number;
+  /**
+   * Fixed height of the 3D view: the bars and notices that come and go (marked parts, parts too close) then add to
+   * the pane under it instead of squeezing the view, so the parts stay where the pointer found them. Left out, the
+   * pane fills its column.
+   */
+  viewHeightPx?: number;
   /** A stored layout is on its way: the 3D view waits for it, so its first frame already holds every part. */
   loading: boolean;
 }
 
 const STEP_MM = 5;
+const mm = (v: number) => v.toFixed(1);
 /** The plate seen from the front: left and right along x, back (away) and front along y. */
 const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] = [
   { label: '←', name: `Move ${STEP_MM} mm left`, testID: 'plan-move-left', edit: { kind: 'move', dxMm: -STEP_MM, dyMm: 0 } },
@@ -45,8 +57,8 @@ const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] =
 
 /** What the pointer does: a wide screen has a mouse to hover with, a phone only taps. */
 function pointerHint(wide: boolean, editable: boolean): string {
-  if (wide) return editable ? 'Hover a part to see its line; click to mark it to move, turn or remove.' : 'Hover a part to see its line.';
-  return editable ? 'Tap a part to see its line and mark it to move, turn or remove.' : 'Tap a part to see its line.';
+  if (wide) return editable ? 'Hover a part to see its line; click to mark it, drag a marked part to move it.' : 'Hover a part to see its line.';
+  return editable ? 'Tap a part to mark it; drag a marked part to move it.' : 'Tap a part to see its line.';
 }
 
 /** Centre pane: the chamber in 3D with the layer slider; clicking parts marks them for removal. */
@@ -55,17 +67,18 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
   const wide = useIsWide();
   const top = Math.max(p.stack.topMm, p.stack.layerHeightMm);
   return (
-    <View style={[styles.pane, p.heightPx ? { height: p.heightPx } : styles.fill]} testID="plan-build">
+    <View style={[styles.pane, p.viewHeightPx ? null : styles.fill]} testID="plan-build">
       <View style={styles.caption}>
         <Text variant="label" numberOfLines={1} testID="plan-build-caption">
           {p.caption}
         </Text>
         {p.live ? <Text variant="caption" color="ember" testID="plan-build-live">Best so far, improving…</Text> : null}
-        <Text variant="caption" color="inkMuted" numberOfLines={1} style={{ marginLeft: 'auto' }} testID="plan-build-hover">
+        {/* On a phone the hint keeps a line of its own, so the part named under a finger does not move the view down. */}
+        <Text variant="caption" color="inkMuted" numberOfLines={1} style={wide ? { marginLeft: 'auto' } : styles.ownLine} testID="plan-build-hover">
           {hovered !== null ? p.describe(hovered) : pointerHint(wide, p.editable)}
         </Text>
       </View>
-      <View style={styles.body}>
+      <View style={[styles.body, p.viewHeightPx ? { height: p.viewHeightPx } : styles.fill]}>
         <View style={styles.view}>
           {p.loading ? (
             <View style={styles.wait} testID="plan-build-loading">
@@ -82,6 +95,8 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
             cutHeightMm={p.cutMm}
             onHover={setHovered}
             onPick={p.onPick}
+            onDragStart={p.onDragStart}
+            onDrag={p.onDrag}
             describePlacement={p.describe}
             style={styles.canvas}
           />
@@ -107,10 +122,18 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
           {`${p.faults} part${p.faults === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${p.faults === 1 ? 'it' : 'them'} apart or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then.`}
         </Notice>
       ) : null}
-      {p.editable && p.marked > 0 ? (
-        <View style={styles.marked} testID="plan-marked">
-          <Text variant="label">{p.marked} part{p.marked === 1 ? '' : 's'} marked</Text>
-          {p.onHandEdit ? (
+      {p.editable && (p.marked > 0 || p.onUndo) ? (
+        <View style={styles.marked} testID={p.marked > 0 ? 'plan-marked' : 'plan-edit-bar'}>
+          {p.onUndo ? (
+            <Button label="Undo" size="sm" variant="secondary" onPress={p.onUndo} accessibilityLabel="Undo the last change by hand (Ctrl Z)" testID="plan-undo" />
+          ) : null}
+          {p.marked > 0 ? <Text variant="label">{p.marked} part{p.marked === 1 ? '' : 's'} marked</Text> : null}
+          {p.markedBox ? (
+            <Text variant="caption" color="inkMuted" testID="plan-marked-at">
+              {`at x ${mm(p.markedBox.position[0])}, y ${mm(p.markedBox.position[1])}, z ${mm(p.markedBox.position[2])} mm`}
+            </Text>
+          ) : null}
+          {p.marked > 0 && p.onHandEdit ? (
             <>
               <View style={styles.moves} accessibilityRole="toolbar" accessibilityLabel="Move the marked parts">
                 {MOVES.map((m) => (
@@ -121,8 +144,12 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
               <Button label="Drop (D)" size="sm" variant="secondary" onPress={() => p.onHandEdit?.({ kind: 'drop' })} testID="plan-drop" />
             </>
           ) : null}
-          <Button label="Remove from layout" size="sm" variant="danger" onPress={p.onRemoveMarked} testID="plan-remove-marked" />
-          <Button label="Clear" size="sm" variant="ghost" onPress={p.onClearMarked} />
+          {p.marked > 0 ? (
+            <>
+              <Button label="Remove from layout" size="sm" variant="danger" onPress={p.onRemoveMarked} testID="plan-remove-marked" />
+              <Button label="Clear" size="sm" variant="ghost" onPress={p.onClearMarked} />
+            </>
+          ) : null}
         </View>
       ) : null}
     </View>
@@ -132,8 +159,9 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
 const styles = StyleSheet.create({
   pane: { gap: spacing.sm, minHeight: 320 },
   fill: { flex: 1 },
+  ownLine: { flexBasis: '100%' },
   caption: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, flexWrap: 'wrap' },
-  body: { flex: 1, flexDirection: 'row', gap: spacing.sm, minHeight: 0 },
+  body: { flexDirection: 'row', gap: spacing.sm, minHeight: 0 },
   view: { flex: 1, borderRadius: radius.lg, overflow: 'hidden', backgroundColor: colors.graphite },
   canvas: { flex: 1 },
   wait: { flex: 1, alignItems: 'center', justifyContent: 'center' },

@@ -55,9 +55,10 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
   const beside = useNumbersBeside();
 
   const linesPane = <LinesPane {...e.linesPane} />;
-  // Under the 3D view, the numbers start just above the bottom of a wide screen, so they are seen to be there.
-  const buildHeight = wide ? (beside ? undefined : Math.max(420, height - 240)) : Math.max(360, Math.round(height * 0.62));
-  const buildPane = <BuildPane ref={e.chamberRef} {...e.buildPane} heightPx={buildHeight} />;
+  // Under the 3D view (and its caption and note), the numbers start just above the bottom of a wide screen, so they
+  // are seen to be there.
+  const viewHeight = wide ? (beside ? undefined : Math.max(360, height - 300)) : Math.max(300, Math.round(height * 0.5));
+  const buildPane = <BuildPane ref={e.chamberRef} {...e.buildPane} viewHeightPx={viewHeight} />;
   const numbersPane = <NumbersPane {...e.numbersPane} />;
   const powderPane = <PlanPowderPanel planId={planId} freshKg={e.shownNumbers?.freshKg} reusedKg={e.shownNumbers?.reusedKg} layoutLabel={e.shownLabel} />;
   const layoutsPane = (

@@ -1,5 +1,5 @@
 /** The editor's keyboard shortcuts on the web, as the help sheet lists them. */
-export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'frame' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'moveLeft' | 'moveRight' | 'moveBack' | 'moveFront' | 'turn' | 'drop' | 'help';
+export type ShortcutAction = 'pack' | 'cancel' | 'save' | 'keep' | 'fit' | 'frame' | 'top' | 'front' | 'side' | 'layerUp' | 'layerDown' | 'moveLeft' | 'moveRight' | 'moveBack' | 'moveFront' | 'turn' | 'drop' | 'undo' | 'help';
 
 export const SHORTCUTS: { keys: string[]; action: ShortcutAction; label: string }[] = [
   { keys: ['P'], action: 'pack', label: 'Pack the plan (again) with the packing options' },
@@ -15,6 +15,7 @@ export const SHORTCUTS: { keys: string[]; action: ShortcutAction; label: string 
   { keys: ['←', '→', '↑', '↓'], action: 'moveLeft', label: 'Move the marked parts 5 mm across the plate at their height (Shift: 1 mm)' },
   { keys: ['R'], action: 'turn', label: 'Turn the marked parts a quarter turn about the build direction' },
   { keys: ['D'], action: 'drop', label: 'Drop the marked parts to the lowest height where they keep the spacing' },
+  { keys: ['Ctrl Z'], action: 'undo', label: 'Take back the last move, turn, drop or removal by hand (a drag counts once)' },
   { keys: ['?'], action: 'help', label: 'Show or hide this sheet' },
 ];
 
@@ -24,6 +25,8 @@ export type ShortcutHandlers = Partial<Record<ShortcutAction, (opts: { shift: bo
 export function actionForKey(e: { key: string; ctrlKey?: boolean; metaKey?: boolean; altKey?: boolean; shiftKey?: boolean }, inField: boolean): ShortcutAction | null {
   const mod = !!(e.ctrlKey || e.metaKey);
   if (mod && e.key.toLowerCase() === 's') return 'save';
+  // In a text field Ctrl Z undoes the typing.
+  if (mod && !inField && !e.altKey && !e.shiftKey && e.key.toLowerCase() === 'z') return 'undo';
   if (e.key === 'Escape') return 'cancel';
   if (inField || mod || e.altKey) return null;
   switch (e.key) {

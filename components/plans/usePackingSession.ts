@@ -40,6 +40,8 @@ export interface PackingSession {
   showWorking(w: Working): void;
   /** Drops the layout not kept (after it was kept, or the plan reloaded). */
   dropWorking(): void;
+  /** Puts back a layout not kept as it was before a change by hand (or none), without showing it. */
+  restoreWorking(w: Working | null): void;
   pack(): void;
   repack(locked: Pick<PackResult, 'placements'>): void;
   fill(shown: readonly Placement[], candidates: readonly FillCandidate[]): void;
@@ -95,6 +97,7 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
       showLayout(planId, WORKING);
     },
     dropWorking: () => setWorking(null),
+    restoreWorking: (w) => setWorking(w),
     pack: () => {
       if (!editable || running || fullInstance.parts.length === 0) return;
       run({ mode: 'pack', instance: fullInstance, kept: [], ...base }, fullInstance);

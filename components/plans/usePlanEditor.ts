@@ -40,6 +40,7 @@ import {
   editFaults,
   handEdited,
   type HandEdit,
+  type Working,
   movedCutMm,
   stackNote,
   PACKING_WHAT,
@@ -66,6 +67,14 @@ import { usePackingSession } from './usePackingSession';
 
 /** One arrow key press moves the marked parts this far (with Shift, 1 mm). */
 const MOVE_STEP_MM = 5;
+/** Changes by hand that can be taken back. */
+const UNDO_STEPS = 50;
+
+interface UndoStep {
+  working: Working | null;
+  shownId: string | null;
+  marked: number[];
+}
 
 type Machine = PlanView['machine'] & { chamberMm: Vec3; layerHeightsMm: number[] };
 type Material = PlanView['material'] & { spacingMm: number; marginXyMm: number; marginBottomMm: number; marginTopMm: number; defaultLayerHeightMm: number };
@@ -129,21 +138,29 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const colourOrder = useMemo(() => colourOrderOf(lineOrder, shownInstance), [lineOrder, shownInstance]);
   const partIdsInOrder = useMemo(() => colourOrder.map((id) => lineInfo.get(id)?.partId), [colourOrder, lineInfo]);
   const marked = useMarked();
+  // Marked parts being dragged across the plate: the layout as it would be released, shown and checked live.
+  const [dragMm, setDragMm] = useState<[number, number] | null>(null);
+  const dragged = useMemo(() => {
+    if (!dragMm || !shownInstance || !shownResult || marked.length === 0) return null;
+    const out = handEdited(shownInstance, shownResult, new Set(marked), { kind: 'move', dxMm: dragMm[0], dyMm: dragMm[1] });
+    return out.ok ? out.result : null;
+  }, [dragMm, shownInstance, shownResult, marked]);
+  const viewResult = dragged ?? shownResult;
   // A layout changed by hand is checked as it changes: the parts it leaves at fault are drawn in the warning colour.
-  const faults = useMemo(
-    () => (showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result) : new Set<number>()),
-    [showingWorking, working],
-  );
+  const faults = useMemo(() => {
+    if (dragged && shownInstance) return editFaults(shownInstance, dragged);
+    return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result) : new Set<number>();
+  }, [dragged, shownInstance, showingWorking, working]);
   const placements = useMemo(() => {
-    if (!shownResult) return EMPTY_PLACEMENTS;
-    const p = toChamberPlacements(shownResult, colourOrder);
+    if (!viewResult) return EMPTY_PLACEMENTS;
+    const p = toChamberPlacements(viewResult, colourOrder);
     if (faults.size === 0 && marked.length === 0) return p;
     // Two colours after the lines': the marked parts (graphite), then those at fault (red, which wins).
     const lineIndex = p.lineIndex.slice();
     for (const i of marked) if (i < lineIndex.length) lineIndex[i] = colourOrder.length;
     for (const i of faults) if (i < lineIndex.length) lineIndex[i] = colourOrder.length + 1;
     return { ...p, lineIndex };
-  }, [shownResult, colourOrder, faults, marked]);
+  }, [viewResult, colourOrder, faults, marked]);
   const copiesByIndex = useMemo(() => {
     const c = new Uint32Array(colourOrder.length + 1);
     for (const k of placements.partIndex) c[k]++;
@@ -187,10 +204,31 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const onPick = (i: number | null) => {
     if (i !== null && editable && !running) toggleMarked(i);
   };
+  // Changes by hand can be taken back one by one: each remembers the layout not kept, the layout shown and the marks
+  // from before it. A new packing run, or keeping or reloading, starts afresh.
+  const [undoable, setUndoable] = useState<UndoStep[]>([]);
+  const remember = () => setUndoable((u) => [...u.slice(-(UNDO_STEPS - 1)), { working, shownId, marked: [...marked] }]);
+  useEffect(() => {
+    if (running) setUndoable([]);
+  }, [running]);
+  const onUndo = () => {
+    const last = undoable.at(-1);
+    if (!last || running) return;
+    setUndoable((u) => u.slice(0, -1));
+    session.restoreWorking(last.working);
+    marksFollow.current = last.shownId !== shownId;
+    showLayout(planId, last.shownId);
+    setMarked(last.marked);
+  };
+  const dropWorking = () => {
+    setUndoable([]);
+    session.dropWorking();
+  };
   const onRemoveMarked = () => {
     if (!shownInstance || !shownResult) return;
     const next = withoutPlacements(shownInstance, shownResult, new Set(marked));
     if (!next) return;
+    remember();
     clearMarked();
     session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
   };
@@ -204,10 +242,21 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
       return;
     }
     const keep = [...marked];
+    remember();
     session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: out.result, lines, baseLines: lines, problem: null });
     // The edited layout holds the same placements in the same order: the marks stay on them.
     marksFollow.current = shownId !== WORKING;
     setMarked(keep);
+  };
+  // A drag starts on a marked part; it moves every marked part, and its release is one change by hand like a key's.
+  const onDragStart = (i: number) => editable3d && marked.includes(i);
+  const onDrag = (dxMm: number, dyMm: number, phase: 'move' | 'end' | 'cancel') => {
+    if (phase === 'move') {
+      setDragMm([dxMm, dyMm]);
+      return;
+    }
+    setDragMm(null);
+    if (phase === 'end' && (dxMm !== 0 || dyMm !== 0)) onHandEdit({ kind: 'move', dxMm, dyMm });
   };
   const moveCut = (layers: number) => setCutMm(movedCutMm(cutMm, stack.topMm, layerHeightMm, layers));
 
@@ -239,7 +288,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     running,
     stale,
     faults: faults.size,
-    dropWorking: session.dropWorking,
+    dropWorking,
     shownId,
     onOptions,
     say,
@@ -268,6 +317,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
             drop: () => onHandEdit({ kind: 'drop' }),
           }
         : {}),
+      ...(undoable.length > 0 && !running ? { undo: onUndo } : {}),
       top: () => chamberRef.current?.setView('top'),
       front: () => chamberRef.current?.setView('front'),
       side: () => chamberRef.current?.setView('side'),
@@ -305,7 +355,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     fill: { available: fillAvailable, reason: fillReason, onFill },
     repack: { available: repack.available, reason: repack.reason, onRepack },
   };
-  const buildPane: Omit<BuildPaneProps, 'heightPx'> = {
+  const buildPane: Omit<BuildPaneProps, 'viewHeightPx'> = {
     chamberMm: machine.chamberMm,
     margin: viewMargin,
     placements,
@@ -316,7 +366,11 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     onCut: setCutMm,
     describe,
     onPick,
+    onDragStart,
+    onDrag,
     marked: marked.length,
+    markedBox: marked.length === 1 && viewResult?.placements[marked[0]] ? { position: viewResult.placements[marked[0]].position, size: viewResult.placements[marked[0]].size } : null,
+    onUndo: undoable.length > 0 && !running ? onUndo : null,
     faults: faults.size,
     spacingMm: shownInstance?.spacing ?? fullInstance.spacing ?? 0,
     onHandEdit: editable3d ? onHandEdit : null,

@@ -11,6 +11,10 @@
  * clipping plane and refills the section buffer through refs, and the canvas
  * only renders on demand (orbit, hover, a new cut).
  *
+ * Parts the editor lets move are dragged across the plate with the pointer
+ * (usePlateDrag): the view reports the travel and the editor redraws the
+ * layout as it would be released, checked as it goes.
+ *
  * Time to interactive: on the first rendered frame the view sets
  * `window.__chamberReady = performance.now()` (ms since navigation) and
  * `window.__chamberStats = { placements, parts, drawCalls, triangles }`, and
@@ -48,6 +52,7 @@ import {
   type ViewName,
 } from './math';
 import { BoxOutline, FloorGrid, Lights, VIEW_FOV_DEG, applyView, isSoftwareRenderer, labelStyle, sceneColours } from './scene';
+import { usePlateDrag, type PlateDrag } from './usePlateDrag';
 import { ViewToolbar } from './ViewToolbar';
 import type { ChamberPlacements, ChamberViewHandle, ChamberViewProps, PartMesh } from './types';
 
@@ -59,7 +64,19 @@ declare global {
   interface Window {
     __chamberReady?: number;
     __chamberStats?: { placements: number; parts: number; drawCalls: number; triangles: number };
+    __chamberProbe?: ChamberProbe;
   }
+}
+
+/**
+ * What a browser test reads of the view as drawn: where a point of the chamber lands on the page, which placement
+ * is under a page point (as a click would pick it), and a placement's box.
+ */
+interface ChamberProbe {
+  screenOf(pointMm: Vec3): { x: number; y: number };
+  placementAt(clientX: number, clientY: number): number | null;
+  boxOf(index: number): { position: Vec3; size: Vec3 } | null;
+  count: number;
 }
 
 const HIGHLIGHT = new THREE.Color(colors.ember);
@@ -79,7 +96,7 @@ interface HoverState {
 }
 
 export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(function ChamberView(props, ref) {
-  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, describePlacement, onFirstFrame, showToolbar = true, style } = props;
+  const { chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, onHover, onPick, onDragStart, onDrag, describePlacement, onFirstFrame, showToolbar = true, style } = props;
   const [frame, setFrame] = useState<FrameName>(props.initialFrame ?? 'parts');
   const [software] = useState(isSoftwareRenderer);
   const dpr = props.dpr ?? (software ? 1 : [1, 1.5]);
@@ -98,38 +115,41 @@ export const ChamberView = forwardRef<ChamberViewHandle, ChamberViewProps>(funct
   }));
 
   // The latest callbacks, read by event handlers without re-rendering the scene when a parent passes new closures.
-  const callbacks = useRef({ onHover, onPick, describePlacement, onFirstFrame });
-  callbacks.current = { onHover, onPick, describePlacement, onFirstFrame };
+  const callbacks = useRef({ onHover, onPick, onDragStart, onDrag, describePlacement, onFirstFrame });
+  callbacks.current = { onHover, onPick, onDragStart, onDrag, describePlacement, onFirstFrame };
 
   const span = Math.max(chamberMm[0], chamberMm[1], chamberMm[2]);
   return (
     <View style={[styles.frame, style]} testID="chamber-view">
-      <Canvas
-        frameloop="demand"
-        dpr={dpr}
-        camera={{ up: [0, 0, 1], fov: VIEW_FOV_DEG, position: [span, -span, span], near: 1, far: span * 20 }}
-        gl={{ antialias, powerPreference: 'high-performance' }}
-        style={{ width: '100%', height: '100%' }}
-        onCreated={({ gl, scene }) => {
-          gl.localClippingEnabled = true;
-          scene.background = new THREE.Color(sceneColours.background);
-        }}
-        onPointerMissed={() => callbacks.current.onPick?.(null)}
-      >
-        <ChamberScene
-          chamberMm={chamberMm}
-          margin={margin}
-          placements={placements}
-          meshesByPart={meshesByPart}
-          lineColours={lineColours}
-          cutHeightMm={cutHeightMm ?? null}
-          frame={frame}
-          cutRef={cutRef}
-          controller={controller}
-          callbacks={callbacks}
-        />
-      </Canvas>
+      {/* Over the canvas, not on it: laid on the picture it hid the parts framed at its top edge (a phone wraps it). */}
       {showToolbar ? <ViewToolbar onView={(v) => controller.current?.setView(v)} frame={frame} onFrame={setFrame} style={styles.toolbar} /> : null}
+      <View style={styles.canvasBox}>
+        <Canvas
+          frameloop="demand"
+          dpr={dpr}
+          camera={{ up: [0, 0, 1], fov: VIEW_FOV_DEG, position: [span, -span, span], near: 1, far: span * 20 }}
+          gl={{ antialias, powerPreference: 'high-performance' }}
+          style={{ width: '100%', height: '100%' }}
+          onCreated={({ gl, scene }) => {
+            gl.localClippingEnabled = true;
+            scene.background = new THREE.Color(sceneColours.background);
+          }}
+          onPointerMissed={() => callbacks.current.onPick?.(null)}
+        >
+          <ChamberScene
+            chamberMm={chamberMm}
+            margin={margin}
+            placements={placements}
+            meshesByPart={meshesByPart}
+            lineColours={lineColours}
+            cutHeightMm={cutHeightMm ?? null}
+            frame={frame}
+            cutRef={cutRef}
+            controller={controller}
+            callbacks={callbacks}
+          />
+        </Canvas>
+      </View>
     </View>
   );
 });
@@ -144,7 +164,7 @@ interface SceneProps {
   frame: FrameName;
   cutRef: React.MutableRefObject<number | null>;
   controller: React.MutableRefObject<Controller | null>;
-  callbacks: React.MutableRefObject<Pick<ChamberViewProps, 'onHover' | 'onPick' | 'describePlacement' | 'onFirstFrame'>>;
+  callbacks: React.MutableRefObject<Pick<ChamberViewProps, 'onHover' | 'onPick' | 'onDragStart' | 'onDrag' | 'describePlacement' | 'onFirstFrame'>>;
 }
 
 function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours, cutHeightMm, frame, cutRef, controller, callbacks }: SceneProps) {
@@ -152,6 +172,11 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   const controls = useThree((s) => s.controls) as unknown as { target: THREE.Vector3; update(): void } | null;
   const size = useThree((s) => s.size);
   const invalidate = useThree((s) => s.invalidate);
+  const scene = useThree((s) => s.scene);
+  const gl = useThree((s) => s.gl);
+  const plateDrag = usePlateDrag(callbacks);
+  // The view last asked for (fit, top, front, side): a refit for new bounds keeps looking the same way.
+  const lastView = useRef<ViewName>('fit');
   const palette = lineColours && lineColours.length > 0 ? lineColours : LINE_PALETTE;
 
   const [cx, cy, cz] = chamberMm;
@@ -199,6 +224,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   };
   controller.current = {
     setView: (view) => {
+      lastView.current = view;
       applyView(camera, controls, framed, view, size.width / Math.max(size.height, 1));
       invalidate();
     },
@@ -219,9 +245,11 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   }, [cutHeightMm, placements, cutRef]);
 
   // Fit once the orbit controls exist, and again when what is framed changes: the other frame, a layout of another
-  // extent, a different chamber (not on resize: the user may have orbited).
+  // extent, a different chamber (not on resize: the user may have orbited). Not while parts are dragged: the camera
+  // holds still under the pointer, and the layout released has the extent last seen while dragging.
   const fit = useEffectEvent((target: NonNullable<typeof controls>) => {
-    applyView(camera, target, framed, 'fit', size.width / Math.max(size.height, 1));
+    if (plateDrag.active()) return;
+    applyView(camera, target, framed, lastView.current, size.width / Math.max(size.height, 1));
     invalidate();
   });
   useEffect(() => {
@@ -229,7 +257,40 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     fit(controls);
   }, [controls, framedKey]);
 
-  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements), [callbacks, cutRef, invalidate, placements]);
+  const events = useMemo(() => makeEvents(hover, cutRef, callbacks, label, invalidate, placements, plateDrag), [callbacks, cutRef, invalidate, placements, plateDrag]);
+
+  useEffect(() => {
+    const v = new THREE.Vector3();
+    const caster = new THREE.Raycaster();
+    window.__chamberProbe = {
+      count: placements.partIndex.length,
+      screenOf(point) {
+        v.set(...point).project(camera);
+        const r = gl.domElement.getBoundingClientRect();
+        return { x: r.left + ((v.x + 1) / 2) * r.width, y: r.top + ((1 - v.y) / 2) * r.height };
+      },
+      placementAt(clientX, clientY) {
+        const r = gl.domElement.getBoundingClientRect();
+        caster.setFromCamera(new THREE.Vector2(((clientX - r.left) / r.width) * 2 - 1, 1 - ((clientY - r.top) / r.height) * 2), camera);
+        for (const hit of caster.intersectObjects(scene.children, true)) {
+          const list = (hit.object.userData as { list?: Uint32Array }).list;
+          if (!list || hit.instanceId === undefined) continue;
+          if (cutRef.current !== null && hit.point.z > cutRef.current + 1e-3) continue;
+          return list[hit.instanceId];
+        }
+        return null;
+      },
+      boxOf(i) {
+        if (i < 0 || i >= placements.partIndex.length) return null;
+        const p = placements.positions;
+        const s = placements.sizes;
+        return { position: [p[3 * i], p[3 * i + 1], p[3 * i + 2]], size: [s[3 * i], s[3 * i + 1], s[3 * i + 2]] };
+      },
+    };
+    return () => {
+      delete window.__chamberProbe;
+    };
+  }, [camera, gl, scene, placements, cutRef]);
 
   const parts: React.ReactNode[] = [];
   for (let k = 0; k < groups.parts.length; k++) {
@@ -273,6 +334,7 @@ function span10(sizeMm: number): number {
 }
 
 interface PartEvents {
+  onPointerDown(e: ThreeEvent<PointerEvent>): void;
   onPointerMove(e: ThreeEvent<PointerEvent>): void;
   onPointerOut(e: ThreeEvent<PointerEvent>): void;
   onClick(e: ThreeEvent<MouseEvent>): void;
@@ -290,6 +352,7 @@ function makeEvents(
   label: React.MutableRefObject<{ show(at: Vec3 | null, text: string): void } | null>,
   invalidate: () => void,
   placements: ChamberPlacements,
+  plateDrag: PlateDrag,
 ): PartEvents {
   // A ray ignores clipping: a hit above the cut lands on a part that is not drawn, so let the event pass to the next hit.
   const clipped = (e: ThreeEvent<PointerEvent | MouseEvent>) => cutRef.current !== null && e.point.z > cutRef.current + 1e-3;
@@ -330,8 +393,15 @@ function makeEvents(
   };
 
   return {
-    onPointerMove(e) {
+    onPointerDown(e) {
       if (clipped(e)) return;
+      const i = placementOf(e);
+      if (i === null || !plateDrag.press(e.nativeEvent, i, placements.positions[3 * i + 2])) return;
+      e.stopPropagation();
+      setHover(null, -1, null);
+    },
+    onPointerMove(e) {
+      if (clipped(e) || plateDrag.active()) return;
       e.stopPropagation();
       setHover(e.object as THREE.InstancedMesh, e.instanceId ?? -1, placementOf(e));
     },
@@ -398,6 +468,7 @@ const PartInstances = memo(function PartInstances({ list, placements, mesh, boxG
     <instancedMesh
       ref={ref}
       args={[geometry, material, list.length]}
+      onPointerDown={events.onPointerDown}
       onPointerMove={events.onPointerMove}
       onPointerOut={events.onPointerOut}
       onClick={events.onClick}
@@ -523,5 +594,6 @@ function FirstFrame({ callbacks, placements, parts }: { callbacks: SceneProps['c
 
 const styles = StyleSheet.create({
   frame: { width: '100%', height: '100%', minHeight: 320, borderRadius: 8, overflow: 'hidden', backgroundColor: colors.powderDeep },
-  toolbar: { position: 'absolute', top: 8, right: 8 },
+  toolbar: { alignSelf: 'flex-end', maxWidth: '100%', margin: 6 },
+  canvasBox: { flex: 1, minHeight: 0 },
 });

@@ -62,6 +62,16 @@ export interface ChamberViewProps {
   onHover?: (placementIndex: number | null) => void;
   /** Placement clicked or tapped (null for a click on empty space). */
   onPick?: (placementIndex: number | null) => void;
+  /**
+   * A press on a placement: return true to drag the parts the editor moves (the camera holds still until release).
+   * Left out, or false, the press turns the view as usual.
+   */
+  onDragStart?: (placementIndex: number) => boolean;
+  /**
+   * The drag's travel across the plate since the press, in mm along x and y: while moving (at most once a frame),
+   * once more on release ('end'), or 'cancel' when the pointer was taken away (nothing is to change then).
+   */
+  onDrag?: (dxMm: number, dyMm: number, phase: 'move' | 'end' | 'cancel') => void;
   /** Text for the label shown at the hovered placement, e.g. its line and part. */
   describePlacement?: (placementIndex: number) => string;
   /** Called once, on the first rendered frame, with performance.now(). */

@@ -1,3 +1,4 @@
+// Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
 import request from 'supertest';
 import type { Page } from 'playwright-core';
 import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
@@ -273,6 +274,180 @@ describe('moving, turning and dropping parts by hand', () => {
     await page.getByTestId('plan-drop').click();
     await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
     await screenshot(page, 'plan-editor-dropped-phone');
+    await page.context().close();
+  });
+});
+
+// ---- dragging marked parts across the plate ------------------------------------------------------------------
+
+type Xy = { x: number; y: number };
+type Box = { position: [number, number, number]; size: [number, number, number] };
+/** Asks the view's probe (see ChamberView.web.tsx): where chamber points land on the page, what is under a page point. */
+// (A script in a string: the test's own code is compiled with helpers the page does not have.)
+const probe = <T,>(page: Page, fn: string, ...args: unknown[]) =>
+  page.evaluate(
+    `(() => { const p = window.__chamberProbe; if (!p) throw new Error('the chamber view has no probe'); const v = p[${JSON.stringify(fn)}]; return typeof v === 'function' ? v.apply(p, ${JSON.stringify(args)}) : v; })()`,
+  ) as Promise<T>;
+const boxOf = (page: Page, i: number) => probe<Box | null>(page, 'boxOf', i);
+const centreAt = (b: Box, z: number) => [b.position[0] + b.size[0] / 2, b.position[1] + b.size[1] / 2, z];
+const overlapZ = (a: Box, b: Box) => a.position[2] < b.position[2] + b.size[2] && b.position[2] < a.position[2] + a.size[2];
+
+/**
+ * Looking down on the plate: a part whose top is in sight (not under the camera buttons, inside the page), and the
+ * nearest other part at an overlapping height. Clicks the first to mark it; returns both and the point pressed.
+ */
+async function markPartBesideAnother(page: Page): Promise<{ i: number; j: number; at: Xy }> {
+  await page.getByTestId('view-top').click();
+  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  const canvas = (await page.locator('[data-testid="plan-build"] canvas').boundingBox())!;
+  const bar = (await page.getByRole('toolbar', { name: 'Camera views' }).boundingBox())!;
+  const viewport = page.viewportSize()!;
+  const inView = (p: Xy) =>
+    p.x > canvas.x + 8 && p.x < canvas.x + canvas.width - 8 && p.y > canvas.y + 8 && p.y < Math.min(canvas.y + canvas.height, viewport.height) - 8 &&
+    !(p.x > bar.x - 4 && p.x < bar.x + bar.width + 4 && p.y > bar.y - 4 && p.y < bar.y + bar.height + 4);
+  const n = await probe<number>(page, 'count');
+  const boxes: Box[] = [];
+  for (let k = 0; k < n; k++) boxes.push((await boxOf(page, k))!);
+  let best: { i: number; j: number; at: Xy; d: number } | null = null;
+  for (let i = 0; i < n; i++) {
+    const a = boxes[i];
+    const at = await probe<Xy>(page, 'screenOf', centreAt(a, a.position[2] + a.size[2]));
+    if (!inView(at) || (await probe<number | null>(page, 'placementAt', at.x, at.y)) !== i) continue;
+    for (let j = 0; j < n; j++) {
+      if (j === i || !overlapZ(a, boxes[j])) continue;
+      const target = await probe<Xy>(page, 'screenOf', centreAt(boxes[j], a.position[2] + a.size[2]));
+      const d = Math.hypot(target.x - at.x, target.y - at.y);
+      if (inView(target) && d > 30 && (!best || d < best.d)) best = { i, j, at, d };
+    }
+  }
+  if (!best) throw new Error('no part in sight with a neighbour at its height');
+  await page.mouse.click(best.at.x, best.at.y);
+  await page.getByTestId('plan-marked-at').waitFor();
+  return { i: best.i, j: best.j, at: await topOf(page, best.i) };
+}
+
+/** Where the top of a placement's box is on the page now, checked to be that placement's (nothing over it). */
+async function topOf(page: Page, i: number): Promise<Xy> {
+  // The bar naming the marked parts takes room from the view as it appears: read the view once it has drawn since.
+  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  const b = (await boxOf(page, i))!;
+  const at = await probe<Xy>(page, 'screenOf', centreAt(b, b.position[2] + b.size[2]));
+  expect(await probe<number | null>(page, 'placementAt', at.x, at.y)).toBe(i);
+  return at;
+}
+
+/** Whether the layout shown may be kept (on a phone, read on the layouts tab, then back to the 3D view from the top). */
+async function keepDisabled(page: Page, phone: boolean): Promise<boolean> {
+  if (phone) await page.getByTestId('plan-tab-layouts').click();
+  const disabled = (await page.getByTestId('layout-keep').getAttribute('aria-disabled')) === 'true';
+  if (phone) {
+    await page.getByTestId('plan-tab-build').click();
+    await page.locator('[data-testid="plan-build"] canvas').waitFor();
+  }
+  return disabled;
+}
+
+/** Presses at `from`, moves to `to` in steps as a hand would, and (unless told not to) releases there. */
+async function drag(page: Page, from: Xy, to: Xy, release = true) {
+  await page.mouse.move(from.x, from.y);
+  await page.mouse.down();
+  for (let k = 1; k <= 12; k++) await page.mouse.move(from.x + ((to.x - from.x) * k) / 12, from.y + ((to.y - from.y) * k) / 12);
+  if (release) await page.mouse.up();
+}
+
+/** Waits until the placement's box is drawn at a position other than `not` (or equal to `is`), and returns it. */
+async function boxWhen(page: Page, i: number, test: (b: Box) => boolean): Promise<Box> {
+  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  let b = (await boxOf(page, i))!;
+  for (const until = Date.now() + 10_000; !test(b) && Date.now() < until; ) {
+    await page.waitForTimeout(50);
+    b = (await boxOf(page, i))!;
+  }
+  expect(test(b)).toBe(true);
+  return b;
+}
+const samePlace = (a: Box) => (b: Box) => b.position.every((v, k) => Math.abs(v - a.position[k]) < 1e-6);
+
+async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
+  const phone = size === 'phone';
+  expect(await keepDisabled(page, phone)).toBe(false);
+  // The camera buttons sit over the picture, not on it: they hide none of the parts framed.
+  const bar = (await page.getByRole('toolbar', { name: 'Camera views' }).boundingBox())!;
+  const canvas = (await page.locator('[data-testid="plan-build"] canvas').boundingBox())!;
+  expect(bar.y + bar.height).toBeLessThanOrEqual(canvas.y + 0.5);
+  const { i, j, at } = await markPartBesideAnother(page);
+  const before = (await boxOf(page, i))!;
+  const other = (await boxOf(page, j))!;
+  const z = before.position[2];
+
+  // 1. 20 mm towards the neighbour: the pointer's travel is what 20 mm on the plate at the part's base looks like.
+  const c = centreAt(before, z);
+  const towards = [other.position[0] + other.size[0] / 2 - c[0], other.position[1] + other.size[1] / 2 - c[1]];
+  const len = Math.hypot(towards[0], towards[1]);
+  const u = [towards[0] / len, towards[1] / len];
+  const D = 20;
+  const p0 = await probe<Xy>(page, 'screenOf', c);
+  const p1 = await probe<Xy>(page, 'screenOf', [c[0] + D * u[0], c[1] + D * u[1], z]);
+  await drag(page, at, { x: at.x + p1.x - p0.x, y: at.y + p1.y - p0.y });
+  const moved = await boxWhen(page, i, (b) => !samePlace(before)(b));
+  const dx = moved.position[0] - before.position[0];
+  const dy = moved.position[1] - before.position[1];
+  // Along the drag by about its length (a pixel of the pointer is a fraction of a millimetre here), not across it.
+  expect(dx * u[0] + dy * u[1]).toBeGreaterThan(D * 0.85);
+  expect(dx * u[0] + dy * u[1]).toBeLessThan(D * 1.15);
+  expect(Math.abs(-dx * u[1] + dy * u[0])).toBeLessThan(D * 0.15);
+  expect(moved.position[2]).toBe(z);
+  await expect(page.getByTestId('plan-marked-at').textContent()).resolves.toBe(
+    `at x ${moved.position[0].toFixed(1)}, y ${moved.position[1].toFixed(1)}, z ${z.toFixed(1)} mm`,
+  );
+  await screenshot(page, `plan-editor-dragged-${size}`);
+
+  // Undo puts it back where it was.
+  await page.getByTestId('plan-undo').click();
+  await boxWhen(page, i, samePlace(before));
+
+  // 2. Onto the neighbour: while the pointer is still down the clash is shown, and after release it blocks keeping.
+  await page.getByTestId('view-top').click();
+  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+  const q0 = await probe<Xy>(page, 'screenOf', c);
+  const q1 = await probe<Xy>(page, 'screenOf', centreAt(other, z));
+  const from = await topOf(page, i);
+  await drag(page, from, { x: from.x + q1.x - q0.x, y: from.y + q1.y - q0.y }, false);
+  await page.getByTestId('plan-edit-faults').waitFor();
+  await screenshot(page, `plan-editor-dragging-clash-${size}`);
+  await page.mouse.up();
+  await boxWhen(page, i, (b) => !samePlace(before)(b));
+  await page.getByTestId('plan-edit-faults').getByText(/closer than the \d+(\.\d+)? mm spacing/).waitFor();
+  expect(await keepDisabled(page, phone)).toBe(true);
+
+  // Undo (Ctrl Z on a wide screen) takes the drag back as one change: the part where it was, nothing at fault, the
+  // layout may be kept again.
+  if (phone) {
+    await page.getByTestId('plan-undo').click();
+  } else {
+    await page.getByTestId('plan-status').click();
+    await page.keyboard.press('Control+z');
+  }
+  await boxWhen(page, i, samePlace(before));
+  await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
+  expect(await keepDisabled(page, phone)).toBe(false);
+}
+
+describe('dragging marked parts across the plate', () => {
+  test('wide (1440 x 900): a drag moves the marked part under the mouse, a drag onto another shows the clash and blocks keeping, undo takes it back', async () => {
+    const page = await newPage(served, WIDE);
+    planId = await packNewPlan(page);
+    await dragMarkedPart(page, 'wide');
+    await page.context().close();
+  });
+
+  test('phone (390 x 844): the same on the 3D tab', async () => {
+    expect(planId).not.toBe('');
+    const page = await openPacked(PHONE);
+    await page.getByTestId('plan-tab-build').click();
+    await page.locator('[data-testid="plan-build"] canvas').waitFor();
+    await screenshot(page, 'plan-editor-drag-phone-before');
+    await dragMarkedPart(page, 'phone');
     await page.context().close();
   });
 });
