@@ -51,7 +51,7 @@ export interface ShapeOptions {
   maxRuns?: number;
   /** Plan cell size (mm); by default from the spacing and the chamber. */
   cellMm?: number;
-  /** Share of the time limit the box engine gets for the settled first layout (default 0.6; 0: none). */
+  /** Share of the time limit the box engine gets for the settled first layout (default 0.8; 0: none). */
   boxShare?: number;
 }
 
@@ -294,7 +294,7 @@ function* solve(
 
   // The boxes' layout, settled by shape: never taller than the boxes'. First the box engine's first layout
   // (a layout to show at once), later its search for a share of the time, with the top brought down after.
-  const boxShare = options.boxShare ?? 0.6;
+  const boxShare = options.boxShare ?? 0.8;
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   const settledBoxes = (maxCompletions: number | undefined, ms: number): Placed[] => {
     const boxes = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, maxCompletions }).runSync({ shouldStop: stop });
