@@ -315,6 +315,12 @@ describe('the demo operator on a phone (390 x 844)', () => {
     await waitForText(page, 'queue-item-0-name', `Review me ${tag}`);
     expect(await page.getByTestId('queue-up-0').count()).toBe(0);
     await page.getByTestId('queue-timeline').waitFor();
+    // On a phone too: where now is, dates with the month named, and a time axis that stays on the screen.
+    expect(await page.getByTestId('queue-now').innerText()).toMatch(/^Now \d{1,2} [A-Z][a-z]{2} \d{2}:\d{2}/);
+    expect(await page.getByTestId('queue-item-0-start').textContent()).toMatch(/^\d{1,2} [A-Z][a-z]{2} \d{2}:\d{2}$/);
+    const axis = await page.getByTestId('queue-axis').boundingBox();
+    expect(axis!.x).toBeGreaterThanOrEqual(0);
+    expect(axis!.x + axis!.width).toBeLessThanOrEqual(PHONE.width);
     await screenshot(page, 'queue-phone');
     await page.context().close();
   });
