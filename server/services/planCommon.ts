@@ -1,9 +1,11 @@
 /**
- * What several services share about plans: the row types, the plan id check,
- * the row lock, status moves with their events, the request lines' planned
- * counts, the plan's lines, a machine or material row, and a layout's summary.
- * The plans service, layouts, review, runs, queue, the build sheet and the
- * build file use these; the plans service's own use cases are in plans.ts.
+ * What several services share about plans: the plan id check, the locked
+ * plan, status moves with their events, the request lines' planned counts,
+ * the plan's lines, a machine or material row, and a layout's summary. The
+ * rows themselves are read and written by the plans repository
+ * (server/db/repositories/plans.ts); its row types are re-exported here.
+ * The plans service, layouts, review, runs, the build sheet and the build
+ * file use these; the plans service's own use cases are in plans.ts.
  */
 import type { Transaction } from 'sequelize';
 import type { Database } from '../db';

@@ -2,6 +2,7 @@ import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { reviewRepository } from '../db/repositories/review';
 import { auditRepository } from '../db/repositories/audit';
+import { queueRepository } from '../db/repositories/queue';
 import { AppError, conflict, forbidden, notFound } from '../errors';
 import { applyTransition, invalidTransition, lockPlan, type Actor, type PlanRow } from './planCommon';
 import { canTakeBack, STATUS_LABELS } from '../../shared/plans/status';
@@ -37,6 +38,9 @@ export const undoUntil = (at: Date | string) => new Date(new Date(at).getTime() 
 export function takeBackService(db: Database, deps: { plans: PlansService; appUrl: string }) {
   const { sequelize } = db;
   const repo = plansRepository(db);
+  const decisions = reviewRepository(db);
+  const queue = queueRepository(db);
+  const audit = auditRepository(db);
 
   /** E-mails the plan's submitter about a take-back by someone else; the addresses reached. */
   async function tellSubmitter(planId: string, user: Actor, subject: string, lines: string[]): Promise<string[]> {
@@ -44,9 +48,6 @@ export function takeBackService(db: Database, deps: { plans: PlansService; appUr
     if (!planner || planner.id === user.id) return [];
     return deps.plans.notify([planner.email], subject, [...lines, '', `${deps.appUrl}/plans/${planId}`].join('\n'));
   }
-
-  const decisions = reviewRepository(db);
-  const audit = auditRepository(db);
 
   /** Takes the plan out of its machine's queue; those behind it move up one place. */
   async function leaveQueue(plan: PlanRow, transaction: Transaction): Promise<void> {
@@ -122,11 +123,11 @@ export function takeBackService(db: Database, deps: { plans: PlansService; appUr
         if (move.undone_at) throw conflict('already_undone', 'This queue move was already undone.');
         const age = Number(move.age_ms);
         if (age > UNDO_WINDOW_MS) throw windowPassed('The queue move', age, 'Reorder the queue again instead.');
-        const now = await repo.lockQueued(labId, machineId, transaction);
-        if (now.join(',') !== move.after_ids.join(',')) {
+        const now = await queue.lockQueued(labId, machineId, transaction);
+        if (now.map((p) => p.id).join(',') !== move.after_ids.join(',')) {
           throw conflict('queue_changed', 'The queue has changed since that move (a plan was approved, started, reordered or taken out), so it cannot be undone; reorder it again instead.');
         }
-        await repo.putInQueueOrder(move.before_ids, transaction);
+        await queue.setOrder(move.before_ids, transaction);
         await decisions.markQueueMoveUndone(move.id, transaction);
       });
     },

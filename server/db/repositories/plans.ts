@@ -500,25 +500,6 @@ export function plansRepository(db: Database) {
       }
       await Plan.update({ queuePosition: null }, { where: { id: plan.id }, silent: true, transaction });
     },
-
-    /** The ids of the machine's queued plans in queue order, locked. */
-    async lockQueued(labId: string, machineId: string, transaction: Transaction): Promise<string[]> {
-      const rows = await Plan.findAll({
-        where: { machineId, labId, status: 'queued' },
-        attributes: ['id'],
-        order: [['queuePosition', 'ASC']],
-        lock: transaction.LOCK.UPDATE,
-        transaction,
-      });
-      return rows.map((r) => r.id);
-    },
-
-    /** Gives the plans the queue places 1, 2, ... in the order given. */
-    async putInQueueOrder(planIds: string[], transaction: Transaction): Promise<void> {
-      for (const [i, id] of planIds.entries()) {
-        await Plan.update({ queuePosition: i + 1, ...touched }, { where: { id }, silent: true, transaction });
-      }
-    },
   };
 }
 export type PlansRepository = ReturnType<typeof plansRepository>;
