@@ -82,6 +82,7 @@ test.each([
   await signIn(page, lab.email, PASSWORD);
   await page.goto(`/parts/${partId}`);
   await page.getByTestId('part-request').waitFor();
+  await page.getByTestId('part-preview').locator('canvas').waitFor();
   await screenshot(page, `part-request-this-part-${name}`);
   await page.getByTestId('part-request').click();
   await page.getByTestId('request-form').waitFor();
