@@ -1,4 +1,4 @@
-import { literal, Op, type Transaction } from 'sequelize';
+import { fn, literal, Op, type Transaction } from 'sequelize';
 import type { Database } from '../index';
 import type { PlanStatus } from '../../../shared/plans/status';
 
@@ -115,7 +115,7 @@ export function reviewRepository(db: Database) {
     },
 
     async markQueueMoveUndone(moveId: string, transaction: Transaction): Promise<void> {
-      await QueueMove.update({ undoneAt: literal('now()') }, { where: { id: moveId }, transaction });
+      await QueueMove.update({ undoneAt: fn('now') }, { where: { id: moveId }, transaction });
     },
   };
 }
