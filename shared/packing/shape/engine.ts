@@ -51,7 +51,7 @@ export interface ShapeOptions {
   maxRuns?: number;
   /** Plan cell size (mm); by default from the spacing and the chamber. */
   cellMm?: number;
-  /** Share of the time limit the box engine gets for the settled first layout (default 0.8; 0: none). */
+  /** Share of the time limit the box engine searches for the layout that is settled by shape (default 0.8; 0: no box layout). */
   boxShare?: number;
 }
 
