@@ -1,6 +1,6 @@
 // Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
 import request from 'supertest';
-import type { Page } from 'playwright-core';
+import type { CDPSession, Page } from 'playwright-core';
 import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { makeRequest } from '../helpers/plans';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
@@ -70,8 +70,8 @@ async function sliderLayers(page: Page): Promise<{ at: number; of: number }> {
 let planId = '';
 
 /** The plan packed for 2 s, as the planner, on a page of the given size (on a phone from the lines tab). */
-async function openPacked(viewport: typeof PHONE): Promise<Page> {
-  const page = await newPage(served, viewport);
+async function openPacked(viewport: typeof PHONE, opts: { touch?: boolean } = {}): Promise<Page> {
+  const page = await newPage(served, viewport, opts);
   await signIn(page, 'planner@tinkerfin.example');
   await page.goto(`/plans/${planId}`);
   if (viewport === PHONE) {
@@ -296,7 +296,7 @@ const overlapZ = (a: Box, b: Box) => a.position[2] < b.position[2] + b.size[2] &
  * Looking down on the plate: a part whose top is in sight (not under the camera buttons, inside the page), and the
  * nearest other part at an overlapping height. Clicks the first to mark it; returns both and the point pressed.
  */
-async function markPartBesideAnother(page: Page): Promise<{ i: number; j: number; at: Xy }> {
+async function markPartBesideAnother(page: Page, input: Input): Promise<{ i: number; j: number; at: Xy }> {
   await page.getByTestId('view-top').click();
   await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
   const canvas = (await page.locator('[data-testid="plan-build"] canvas').boundingBox())!;
@@ -321,7 +321,8 @@ async function markPartBesideAnother(page: Page): Promise<{ i: number; j: number
     }
   }
   if (!best) throw new Error('no part in sight with a neighbour at its height');
-  await page.mouse.click(best.at.x, best.at.y);
+  if (input === 'touch') await page.touchscreen.tap(best.at.x, best.at.y);
+  else await page.mouse.click(best.at.x, best.at.y);
   await page.getByTestId('plan-marked-at').waitFor();
   return { i: best.i, j: best.j, at: await topOf(page, best.i) };
 }
@@ -347,35 +348,54 @@ async function keepDisabled(page: Page, phone: boolean): Promise<boolean> {
   return disabled;
 }
 
-/** Presses at `from`, moves to `to` in steps as a hand would, and (unless told not to) releases there. */
-async function drag(page: Page, from: Xy, to: Xy, release = true) {
-  await page.mouse.move(from.x, from.y);
-  await page.mouse.down();
-  for (let k = 1; k <= 12; k++) await page.mouse.move(from.x + ((to.x - from.x) * k) / 12, from.y + ((to.y - from.y) * k) / 12);
-  if (release) await page.mouse.up();
+type Input = 'mouse' | 'touch';
+
+/** A finger on the screen, through the browser's own input (the page's touch events, then its pointer events). */
+const fingers = new WeakMap<Page, CDPSession>();
+async function touch(page: Page, type: 'touchStart' | 'touchMove' | 'touchEnd', at?: Xy) {
+  // One session holds the touch from start to end.
+  if (!fingers.has(page)) fingers.set(page, await page.context().newCDPSession(page));
+  const cdp = fingers.get(page)!;
+  await cdp.send('Input.dispatchTouchEvent', { type, touchPoints: at ? [{ x: at.x, y: at.y }] : [] });
 }
 
+/** Presses at `from` (mouse button or finger), moves to `to` in steps as a hand would, and (unless told not to) lets go there. */
+async function drag(page: Page, input: Input, from: Xy, to: Xy, release = true) {
+  const at = (k: number) => ({ x: from.x + ((to.x - from.x) * k) / 12, y: from.y + ((to.y - from.y) * k) / 12 });
+  if (input === 'touch') {
+    await touch(page, 'touchStart', from);
+    for (let k = 1; k <= 12; k++) await touch(page, 'touchMove', at(k));
+  } else {
+    await page.mouse.move(from.x, from.y);
+    await page.mouse.down();
+    for (let k = 1; k <= 12; k++) await page.mouse.move(at(k).x, at(k).y);
+  }
+  if (release) await letGo(page, input);
+}
+const letGo = (page: Page, input: Input) => (input === 'touch' ? touch(page, 'touchEnd') : page.mouse.up());
+
 /** Waits until the placement's box is drawn at a position other than `not` (or equal to `is`), and returns it. */
-async function boxWhen(page: Page, i: number, test: (b: Box) => boolean): Promise<Box> {
+async function boxWhen(page: Page, i: number, what: string, test: (b: Box) => boolean): Promise<Box> {
   await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
   let b = (await boxOf(page, i))!;
   for (const until = Date.now() + 10_000; !test(b) && Date.now() < until; ) {
     await page.waitForTimeout(50);
     b = (await boxOf(page, i))!;
   }
-  expect(test(b)).toBe(true);
+  expect(test(b) ? what : `${what}: not so, the box is at ${b.position.join(', ')}`).toBe(what);
   return b;
 }
 const samePlace = (a: Box) => (b: Box) => b.position.every((v, k) => Math.abs(v - a.position[k]) < 1e-6);
 
-async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
+async function dragMarkedPart(page: Page, size: 'wide' | 'phone', input: Input = 'mouse') {
   const phone = size === 'phone';
   expect(await keepDisabled(page, phone)).toBe(false);
   // The camera buttons sit over the picture, not on it: they hide none of the parts framed.
   const bar = (await page.getByRole('toolbar', { name: 'Camera views' }).boundingBox())!;
   const canvas = (await page.locator('[data-testid="plan-build"] canvas').boundingBox())!;
   expect(bar.y + bar.height).toBeLessThanOrEqual(canvas.y + 0.5);
-  const { i, j, at } = await markPartBesideAnother(page);
+  const { i, j, at } = await markPartBesideAnother(page, input);
+  await screenshot(page, `plan-editor-drag-marked-${size}-${input}`);
   const before = (await boxOf(page, i))!;
   const other = (await boxOf(page, j))!;
   const z = before.position[2];
@@ -388,8 +408,8 @@ async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
   const D = 20;
   const p0 = await probe<Xy>(page, 'screenOf', c);
   const p1 = await probe<Xy>(page, 'screenOf', [c[0] + D * u[0], c[1] + D * u[1], z]);
-  await drag(page, at, { x: at.x + p1.x - p0.x, y: at.y + p1.y - p0.y });
-  const moved = await boxWhen(page, i, (b) => !samePlace(before)(b));
+  await drag(page, input, at, { x: at.x + p1.x - p0.x, y: at.y + p1.y - p0.y });
+  const moved = await boxWhen(page, i, 'moved by the drag', (b) => !samePlace(before)(b));
   const dx = moved.position[0] - before.position[0];
   const dy = moved.position[1] - before.position[1];
   // Along the drag by about its length (a pixel of the pointer is a fraction of a millimetre here), not across it.
@@ -400,11 +420,11 @@ async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
   await expect(page.getByTestId('plan-marked-at').textContent()).resolves.toBe(
     `at x ${moved.position[0].toFixed(1)}, y ${moved.position[1].toFixed(1)}, z ${z.toFixed(1)} mm`,
   );
-  await screenshot(page, `plan-editor-dragged-${size}`);
+  await screenshot(page, `plan-editor-dragged-${size}-${input}`);
 
   // Undo puts it back where it was.
   await page.getByTestId('plan-undo').click();
-  await boxWhen(page, i, samePlace(before));
+  await boxWhen(page, i, 'back after undo', samePlace(before));
 
   // 2. Onto the neighbour: while the pointer is still down the clash is shown, and after release it blocks keeping.
   await page.getByTestId('view-top').click();
@@ -412,11 +432,11 @@ async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
   const q0 = await probe<Xy>(page, 'screenOf', c);
   const q1 = await probe<Xy>(page, 'screenOf', centreAt(other, z));
   const from = await topOf(page, i);
-  await drag(page, from, { x: from.x + q1.x - q0.x, y: from.y + q1.y - q0.y }, false);
+  await drag(page, input, from, { x: from.x + q1.x - q0.x, y: from.y + q1.y - q0.y }, false);
   await page.getByTestId('plan-edit-faults').waitFor();
-  await screenshot(page, `plan-editor-dragging-clash-${size}`);
-  await page.mouse.up();
-  await boxWhen(page, i, (b) => !samePlace(before)(b));
+  await screenshot(page, `plan-editor-dragging-clash-${size}-${input}`);
+  await letGo(page, input);
+  await boxWhen(page, i, 'moved onto the neighbour', (b) => !samePlace(before)(b));
   await page.getByTestId('plan-edit-faults').getByText(/closer than the \d+(\.\d+)? mm spacing/).waitFor();
   expect(await keepDisabled(page, phone)).toBe(true);
 
@@ -428,7 +448,7 @@ async function dragMarkedPart(page: Page, size: 'wide' | 'phone') {
     await page.getByTestId('plan-status').click();
     await page.keyboard.press('Control+z');
   }
-  await boxWhen(page, i, samePlace(before));
+  await boxWhen(page, i, 'back after undo', samePlace(before));
   await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
   expect(await keepDisabled(page, phone)).toBe(false);
 }
@@ -446,8 +466,16 @@ describe('dragging marked parts across the plate', () => {
     const page = await openPacked(PHONE);
     await page.getByTestId('plan-tab-build').click();
     await page.locator('[data-testid="plan-build"] canvas').waitFor();
-    await screenshot(page, 'plan-editor-drag-phone-before');
     await dragMarkedPart(page, 'phone');
+    await page.context().close();
+  });
+
+  test('phone (390 x 844), by touch: a finger drags the marked part the same way', async () => {
+    expect(planId).not.toBe('');
+    const page = await openPacked(PHONE, { touch: true });
+    await page.getByTestId('plan-tab-build').click();
+    await page.locator('[data-testid="plan-build"] canvas').waitFor();
+    await dragMarkedPart(page, 'phone', 'touch');
     await page.context().close();
   });
 });

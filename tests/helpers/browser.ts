@@ -53,8 +53,8 @@ export async function serveAndLaunch(overrides: Partial<Config> = {}): Promise<S
  * as strings, which the app's Content-Security-Policy (no eval) would block,
  * so pages bypass it unless a test checks the policy itself (`enforceCsp`).
  */
-export async function newPage(served: Served, viewport: { width: number; height: number }, opts: { enforceCsp?: boolean } = {}): Promise<Page> {
-  const context = await served.browser.newContext({ viewport, baseURL: served.baseUrl, bypassCSP: !opts.enforceCsp });
+export async function newPage(served: Served, viewport: { width: number; height: number }, opts: { enforceCsp?: boolean; touch?: boolean } = {}): Promise<Page> {
+  const context = await served.browser.newContext({ viewport, baseURL: served.baseUrl, bypassCSP: !opts.enforceCsp, hasTouch: !!opts.touch });
   const page = await context.newPage();
   page.setDefaultTimeout(20_000);
   return page;
