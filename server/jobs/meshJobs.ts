@@ -28,14 +28,15 @@ import { randomUUID } from 'node:crypto';
 import { unlink } from 'node:fs/promises';
 import type pg from 'pg';
 import type PgBoss from 'pg-boss';
-import { QueryTypes, type Transaction } from 'sequelize';
+import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
+import { meshJobsRepository, type MeshJobFileRecord, type Sql } from '../db/repositories/meshJobs';
 import { AppError, badRequest, notFound } from '../errors';
 import type { FileMeasureResult } from '../mesh';
 import { sha256File, type FileStorage } from '../storage';
 import type { LabEvent } from '../events/labEvents';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
-import type { JobState, JobView } from '../../shared/schemas/jobs';
+import type { JobView } from '../../shared/schemas/jobs';
 import type { ProfileLayoutJob, ProfileLayoutResult, ProfilePartFile } from '../../shared/geometry/layoutSlices';
 import type { PartUploadResponse, PartView, RejectedFile } from '../../shared/schemas/parts';
 
@@ -81,7 +82,7 @@ export type WorkerTools = { measure: Measure; slice: Slice };
 /** A layout's sections to slice on the queue: its parts by stored file (read by the worker), placed as the layout places them. */
 export type LayoutTask = Omit<ProfileLayoutJob, 'parts'> & { planId: string; parts: (Omit<ProfilePartFile, 'bytes'> & { fileKey: string | null })[] };
 /** A sliced layout as stored with its row (the arrays as plain numbers). */
-type StoredSections = { areaProfile: number[]; contourProfile: number[]; meshPlacements: number; boxPlacements: number; boxReasons: ProfileLayoutResult['boxReasons'] };
+export type StoredSections = { areaProfile: number[]; contourProfile: number[]; meshPlacements: number; boxPlacements: number; boxReasons: ProfileLayoutResult['boxReasons'] };
 /** How a layout's slicing on the queue ended, or that it did not finish in the time given. */
 export type SliceOutcome = { ok: true; result: ProfileLayoutResult; jobId: string } | { ok: false; reason: string; jobId: string };
 
@@ -100,44 +101,13 @@ export type MeshJobsDeps = {
   log?: (msg: string) => void;
 };
 
-/** A connection in a transaction, as pg speaks to it. */
-type Sql = Pick<pg.ClientBase, 'query'>;
+/** What an upload's files are measured with (a job's options). */
+export type JobOptions = { unit: 'mm' | 'cm' | 'inch'; split: boolean; measure: Omit<MeasureOptions, 'filename'> };
 
-type JobOptions = { unit: 'mm' | 'cm' | 'inch'; split: boolean; measure: Omit<MeasureOptions, 'filename'> };
-
-type FileRow = {
-  id: string;
-  job_id: string;
-  lab_id: string;
-  position: number;
-  file_name: string;
-  file_key: string | null;
-  state: 'waiting' | 'queued' | 'running' | 'done' | 'rejected';
-  attempts: number;
-  part_ids: string[];
-  rejected: RejectedFile | null;
-  /** A layout to slice (a `layout` job's one row) instead of a file. */
-  task: LayoutTask | null;
-};
-
-type JobRow = {
-  id: string;
-  lab_id: string;
-  user_id: string | null;
-  state: JobState;
-  options: JobOptions;
-  created_at: Date;
-  started_at: Date | null;
-  finished_at: Date | null;
-};
-
-/** The connection a transaction runs on (for the queue's own statements in the same transaction). */
-const connectionOf = (transaction: Transaction): Sql => (transaction as unknown as { connection: Sql }).connection;
+type FileRow = MeshJobFileRecord;
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const FINISHED = ['done', 'rejected'];
-// One lock for handing out turns: two uploads at once must not both take the lab's next turn.
-const TURN_LOCK_SQL = "SELECT pg_advisory_xact_lock(hashtext('sinter-queue-turns'))";
 
 function allRejected(rejected: RejectedFile[]): AppError {
   const message =
@@ -154,13 +124,11 @@ const notSaved = (file: string): RejectedFile => ({
 export function meshJobsService(deps: MeshJobsDeps) {
   const { db, pool, boss, storage, parts, settings } = deps;
   const { sequelize } = db;
+  const repo = meshJobsRepository(db);
   const log = deps.log ?? (() => {});
   const publish = (e: Omit<LabEvent, 'at'>) => (deps.publish ? deps.publish(e).catch(() => {}) : Promise.resolve());
   /** Pollers of this process, woken at once when this process hands out work. */
   const localWorkers: string[] = [];
-
-  const query = <T extends object>(sql: string, bind: unknown[], transaction?: Transaction) =>
-    sequelize.query<T>(sql, { bind, type: QueryTypes.SELECT, transaction });
 
   /**
    * Hands the lab's waiting files to the queue while it has fewer than its
@@ -169,13 +137,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
    * number handed out.
    */
   async function handOut(client: Sql, labId: string): Promise<number> {
-    await client.query("SELECT pg_advisory_xact_lock(hashtext('sinter-queue-lab:' || $1))", [labId]);
-    const { rows } = await client.query<{ id: string; turn: number }>(
-      `SELECT id, turn FROM mesh_job_files WHERE lab_id = $1 AND state = 'waiting' ORDER BY turn, position
-        LIMIT greatest(0, $2 - (SELECT count(*) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')))
-        FOR UPDATE`,
-      [labId, settings.labConcurrency],
-    );
+    const rows = await repo.lockWaiting(client, labId, settings.labConcurrency);
     if (rows.length === 0) return 0;
     const db: PgBoss.Db = { executeSql: (text, values) => client.query(text, values) };
     for (const row of rows) {
@@ -190,10 +152,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
       });
     }
     // The notice is delivered when the transaction commits.
-    await client.query(
-      "WITH handed AS (UPDATE mesh_job_files SET state = 'queued' WHERE id = ANY($1::uuid[]) RETURNING id) SELECT pg_notify($2, $3) FROM (SELECT 1 FROM handed LIMIT 1) h",
-      [rows.map((r) => r.id), MESH_WORK_CHANNEL, settings.queue],
-    );
+    await repo.markQueued(client, rows.map((r) => r.id), MESH_WORK_CHANNEL, settings.queue);
     return rows.length;
   }
 
@@ -204,68 +163,23 @@ export function meshJobsService(deps: MeshJobsDeps) {
 
   /** Hands out the lab's waiting files in a transaction of its own. */
   async function dispatch(labId: string): Promise<number> {
-    const client = await pool.connect();
-    let sent = 0;
-    try {
-      await client.query('BEGIN');
-      sent = await handOut(client, labId);
-      await client.query('COMMIT');
-    } catch (err) {
-      await client.query('ROLLBACK').catch(() => {});
-      throw err;
-    } finally {
-      client.release();
-    }
+    const sent = await repo.inPoolTransaction(pool, (client) => handOut(client, labId));
     wakeLocal(sent);
     return sent;
   }
 
-  /**
-   * Locks the turn order (until the caller's transaction ends) and gives the
-   * lab's next turn: its last pending turn plus one, never below the lowest
-   * turn pending anywhere (or the last one given, when nothing is pending).
-   */
-  async function firstTurn(labId: string, transaction: Transaction): Promise<number> {
-    await sequelize.query(TURN_LOCK_SQL, { transaction });
-    const [t] = await query<{ floor: number | null; last: number | null; lab: number | null }>(
-      `SELECT (SELECT min(turn) FROM mesh_job_files WHERE state IN ('waiting', 'queued', 'running')) AS floor,
-              (SELECT max(turn) FROM mesh_job_files) AS last,
-              (SELECT max(turn) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('waiting', 'queued', 'running')) AS lab`,
-      [labId],
-      transaction,
-    );
-    return Math.max(t.floor ?? t.last ?? 0, t.lab === null ? -Infinity : t.lab + 1);
-  }
-
   /** Every lab with files waiting: after a crash between an upload and its hand-over, nothing stays behind. */
   async function dispatchAll(): Promise<number> {
-    const labs = await query<{ lab_id: string }>("SELECT DISTINCT lab_id FROM mesh_job_files WHERE state = 'waiting'", []);
     let sent = 0;
-    for (const { lab_id } of labs) sent += await dispatch(lab_id);
+    for (const labId of await repo.labsWaiting()) sent += await dispatch(labId);
     return sent;
   }
 
-  async function jobRow(labId: string, jobId: string, transaction?: Transaction): Promise<JobRow> {
+  async function jobRow(labId: string, jobId: string) {
     if (!UUID.test(jobId)) throw notFound('That job');
-    const [row] = await query<JobRow>('SELECT * FROM mesh_jobs WHERE id = $1 AND lab_id = $2', [jobId, labId], transaction);
+    const row = await repo.job(labId, jobId);
     if (!row) throw notFound('That job');
     return row;
-  }
-
-  /** Marks the job finished once none of its files is left: done when a part was kept, failed otherwise. */
-  async function settleJob(jobId: string, transaction: Transaction): Promise<void> {
-    const [c] = await query<{ open: number; done: number }>(
-      `SELECT count(*) FILTER (WHERE state NOT IN ('done', 'rejected'))::int AS open,
-              count(*) FILTER (WHERE state = 'done')::int AS done
-         FROM mesh_job_files WHERE job_id = $1`,
-      [jobId],
-      transaction,
-    );
-    if (c.open > 0) return;
-    await sequelize.query(
-      `UPDATE mesh_jobs SET state = $2, finished_at = now(), started_at = COALESCE(started_at, now()) WHERE id = $1 AND state IN ('queued', 'running')`,
-      { bind: [jobId, c.done > 0 ? 'done' : 'failed'], transaction },
-    );
   }
 
   /**
@@ -274,31 +188,27 @@ export function meshJobsService(deps: MeshJobsDeps) {
    */
   async function rejectFile(fileId: string, rejected: (row: FileRow) => RejectedFile): Promise<FileRow | null> {
     return sequelize.transaction(async (transaction) => {
-      const [head] = await query<FileRow>('SELECT job_id FROM mesh_job_files WHERE id = $1', [fileId], transaction);
-      if (!head) return null;
-      await query('SELECT id FROM mesh_jobs WHERE id = $1 FOR UPDATE', [head.job_id], transaction);
-      const [row] = await query<FileRow>('SELECT * FROM mesh_job_files WHERE id = $1 FOR UPDATE', [fileId], transaction);
+      const jobId = await repo.jobIdOf(fileId, transaction);
+      if (!jobId) return null;
+      const row = await repo.lockJobAndFile(jobId, fileId, transaction);
       if (!row || FINISHED.includes(row.state)) return null;
-      await sequelize.query(
-        "UPDATE mesh_job_files SET state = 'rejected', rejected = $2::jsonb, finished_at = now() WHERE id = $1",
-        { bind: [fileId, JSON.stringify(rejected(row))], transaction },
-      );
-      if (row.file_key) await storage.delete(row.file_key, { transaction });
-      await settleJob(row.job_id, transaction);
+      await repo.markRejected(fileId, rejected(row), transaction);
+      if (row.fileKey) await storage.delete(row.fileKey, { transaction });
+      await repo.settleJob(row.jobId, transaction);
       return row;
     });
   }
 
   async function afterFile(row: FileRow, partsChanged: boolean) {
     // Told at once (a waiting upload answers on it), not waited for: the next files' hand-out does not wait on the notices.
-    void publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
-    if (partsChanged) void publish({ labId: row.lab_id, topic: 'parts' });
-    await dispatch(row.lab_id).catch((err: Error) => log(`mesh jobs: handing out the next files failed: ${err.message}`));
+    void publish({ labId: row.labId, topic: 'jobs', id: row.jobId });
+    if (partsChanged) void publish({ labId: row.labId, topic: 'parts' });
+    await dispatch(row.labId).catch((err: Error) => log(`mesh jobs: handing out the next files failed: ${err.message}`));
   }
 
   async function view(labId: string, jobId: string): Promise<JobView> {
     const job = await jobRow(labId, jobId);
-    const files = await query<FileRow>('SELECT * FROM mesh_job_files WHERE job_id = $1 ORDER BY position', [jobId]);
+    const files = await repo.files(jobId);
     const out: JobView = {
       job: {
         id: job.id,
@@ -308,13 +218,13 @@ export function meshJobsService(deps: MeshJobsDeps) {
           finished: files.filter((f) => FINISHED.includes(f.state)).length,
           running: files.filter((f) => f.state === 'running').length,
         },
-        createdAt: new Date(job.created_at).toISOString(),
-        startedAt: job.started_at ? new Date(job.started_at).toISOString() : null,
-        finishedAt: job.finished_at ? new Date(job.finished_at).toISOString() : null,
+        createdAt: new Date(job.createdAt).toISOString(),
+        startedAt: job.startedAt ? new Date(job.startedAt).toISOString() : null,
+        finishedAt: job.finishedAt ? new Date(job.finishedAt).toISOString() : null,
       },
     };
     if (job.state === 'done' || job.state === 'failed') {
-      out.parts = await parts.byIds(labId, files.flatMap((f) => f.part_ids));
+      out.parts = await parts.byIds(labId, files.flatMap((f) => f.partIds));
       out.rejected = files.filter((f) => f.state === 'rejected' && f.rejected).map((f) => f.rejected!);
       if (job.state === 'failed') {
         const e = failure(out.rejected);
@@ -331,11 +241,6 @@ export function meshJobsService(deps: MeshJobsDeps) {
     return allRejected(rejected);
   }
 
-  async function stateOf(jobId: string): Promise<JobState | null> {
-    const [row] = await query<{ state: JobState }>('SELECT state FROM mesh_jobs WHERE id = $1', [jobId]);
-    return row?.state ?? null;
-  }
-
   /** Waits up to `ms` for the job to finish (woken by the lab's events, checked twice a second besides). */
   async function waitFor(labId: string, jobId: string, ms: number): Promise<JobView> {
     const deadline = Date.now() + ms;
@@ -347,7 +252,7 @@ export function meshJobsService(deps: MeshJobsDeps) {
       : null;
     try {
       for (;;) {
-        const state = await stateOf(jobId);
+        const state = await repo.jobState(jobId);
         const left = deadline - Date.now();
         if (state === 'done' || state === 'failed' || left <= 0) break;
         await new Promise<void>((resolve) => {
@@ -383,19 +288,15 @@ export function meshJobsService(deps: MeshJobsDeps) {
       sections = { ...out, areaProfile: Array.from(out.areaProfile), contourProfile: Array.from(out.contourProfile) };
     } catch (err) {
       const why = err instanceof Error ? err.message : String(err);
-      const done = await rejectFile(row.id, (r) => ({ file: r.file_name, code: 'measure-failed', message: `${quoteName(r.file_name)} could not be sliced: ${why}` }));
+      const done = await rejectFile(row.id, (r) => ({ file: r.fileName, code: 'measure-failed', message: `${quoteName(r.fileName)} could not be sliced: ${why}` }));
       if (done) await afterFile(done, false);
       return;
     }
     const stored = await sequelize.transaction(async (transaction) => {
-      await query('SELECT id FROM mesh_jobs WHERE id = $1 FOR UPDATE', [row.job_id], transaction);
-      const [locked] = await query<FileRow>('SELECT * FROM mesh_job_files WHERE id = $1 FOR UPDATE', [row.id], transaction);
+      const locked = await repo.lockJobAndFile(row.jobId, row.id, transaction);
       if (!locked || FINISHED.includes(locked.state)) return null;
-      await sequelize.query("UPDATE mesh_job_files SET state = 'done', result = $2::jsonb, finished_at = now() WHERE id = $1", {
-        bind: [row.id, JSON.stringify(sections)],
-        transaction,
-      });
-      await settleJob(row.job_id, transaction);
+      await repo.markSliced(row.id, sections, transaction);
+      await repo.settleJob(row.jobId, transaction);
       return locked;
     });
     if (stored) await afterFile(stored, false);
@@ -409,20 +310,9 @@ export function meshJobsService(deps: MeshJobsDeps) {
    */
   async function prune(): Promise<{ jobs: number; queueRecords: number }> {
     const hours = settings.retentionHours;
-    const [jobs] = await query<{ n: number }>(
-      `WITH gone AS (DELETE FROM mesh_jobs WHERE state IN ('done', 'failed') AND finished_at < now() - make_interval(hours => $1) RETURNING 1)
-       SELECT count(*)::int AS n FROM gone`,
-      [hours],
-    );
-    const names = [settings.queue, deadLetterQueue(settings.queue)];
-    const [records] = await query<{ n: number }>(
-      `WITH a AS (DELETE FROM pgboss.job WHERE name = ANY($2::text[]) AND state IN ('completed', 'failed', 'cancelled')
-                    AND completed_on < now() - make_interval(hours => $1) RETURNING 1),
-            b AS (DELETE FROM pgboss.archive WHERE name = ANY($2::text[]) AND archived_on < now() - make_interval(hours => $1) RETURNING 1)
-       SELECT (SELECT count(*) FROM a)::int + (SELECT count(*) FROM b)::int AS n`,
-      [hours, names],
-    );
-    return { jobs: jobs.n, queueRecords: records.n };
+    const jobs = await repo.deleteFinishedJobs(hours);
+    const queueRecords = await repo.deleteQueueRecords([settings.queue, deadLetterQueue(settings.queue)], hours);
+    return { jobs, queueRecords };
   }
   // Once a maintenance round of the queue (one process of the installation at a time).
   boss.on('maintenance', () => {
@@ -443,32 +333,25 @@ export function meshJobsService(deps: MeshJobsDeps) {
       const jobId = randomUUID();
       let sent = 0;
       await sequelize.transaction(async (transaction) => {
-        const turn = await firstTurn(labId, transaction);
-        await sequelize.query("INSERT INTO mesh_jobs (id, lab_id, user_id, options, kind) VALUES ($1, $2, $3, $4::jsonb, 'layout')", {
-          bind: [jobId, labId, userId, JSON.stringify({ planId: task.planId })],
-          transaction,
-        });
-        await sequelize.query(
-          `INSERT INTO mesh_job_files (id, job_id, lab_id, position, file_name, turn, state, task)
-           VALUES ($1, $2, $3, 0, 'layout sections', $4, 'waiting', $5::jsonb)`,
-          { bind: [randomUUID(), jobId, labId, turn, JSON.stringify(task)], transaction },
-        );
-        sent = await handOut(connectionOf(transaction), labId);
+        const turn = await repo.nextTurn(labId, transaction);
+        await repo.createJob({ id: jobId, labId, userId, options: { planId: task.planId }, kind: 'layout' }, transaction);
+        await repo.addWaitingFile({ id: randomUUID(), jobId, labId, position: 0, fileName: 'layout sections', turn, task }, transaction);
+        sent = await handOut(repo.connectionOf(transaction), labId);
       });
       wakeLocal(sent);
       const v = await waitFor(labId, jobId, waitMs);
-      const [row] = await query<FileRow & { result: StoredSections | null }>('SELECT * FROM mesh_job_files WHERE job_id = $1', [jobId]);
+      const row = await repo.layoutRow(jobId);
       if (v.job.state === 'done' && row?.result) {
         const r = row.result;
         return { ok: true, jobId, result: { ...r, areaProfile: Float64Array.from(r.areaProfile), contourProfile: Float64Array.from(r.contourProfile) } };
       }
       if (v.job.state === 'failed') return { ok: false, jobId, reason: row?.rejected?.message ?? 'the slicing failed' };
       const reason = `no worker finished slicing it within ${Math.round(waitMs / 100) / 10} s`;
-      const called = row ? await rejectFile(row.id, (r) => ({ file: r.file_name, code: 'not_needed', message: `${quoteName(r.file_name)} was not sliced: ${reason}; the layout was estimated by its boxes.` })) : null;
+      const called = row ? await rejectFile(row.id, (r) => ({ file: r.fileName, code: 'not_needed', message: `${quoteName(r.fileName)} was not sliced: ${reason}; the layout was estimated by its boxes.` })) : null;
       if (called) await afterFile(called, false);
       else {
         // Finished between the wait and the calling off: use it.
-        const [late] = await query<{ result: StoredSections | null }>('SELECT result FROM mesh_job_files WHERE job_id = $1', [jobId]);
+        const late = await repo.layoutRow(jobId);
         if (late?.result) {
           const r = late.result;
           return { ok: true, jobId, result: { ...r, areaProfile: Float64Array.from(r.areaProfile), contourProfile: Float64Array.from(r.contourProfile) } };
@@ -510,31 +393,23 @@ export function meshJobsService(deps: MeshJobsDeps) {
               const key = keys[position];
               if (checked[position].ok && key && (await storage.put(key, { path: f.path, sizeBytes: f.size }, { transaction })).created) created.push(key);
             }
-            const base = await firstTurn(labId, transaction);
-            await sequelize.query('INSERT INTO mesh_jobs (id, lab_id, user_id, options) VALUES ($1, $2, $3, $4::jsonb)', {
-              bind: [jobId, labId, userId, JSON.stringify(options)],
-              transaction,
-            });
+            const base = await repo.nextTurn(labId, transaction);
+            await repo.createJob({ id: jobId, labId, userId, options }, transaction);
             let turn = base;
             for (const [position, f] of files.entries()) {
               const c = checked[position];
               const key = keys[position];
               if (!c.ok || !key) {
-                await sequelize.query(
-                  `INSERT INTO mesh_job_files (id, job_id, lab_id, position, file_name, turn, state, rejected, finished_at)
-                   VALUES ($1, $2, $3, $4, $5, $6, 'rejected', $7::jsonb, now())`,
-                  { bind: [randomUUID(), jobId, labId, position, c.ok ? c.file : c.rejected.file, base, JSON.stringify(c.ok ? null : c.rejected)], transaction },
+                await repo.addRejectedFile(
+                  { id: randomUUID(), jobId, labId, position, fileName: c.ok ? c.file : c.rejected.file, turn: base, rejected: c.ok ? null : c.rejected },
+                  transaction,
                 );
                 continue;
               }
-              await sequelize.query(
-                `INSERT INTO mesh_job_files (id, job_id, lab_id, position, file_name, file_key, size_bytes, turn, state)
-                 VALUES ($1, $2, $3, $4, $5, $6, $7, $8, 'waiting')`,
-                { bind: [randomUUID(), jobId, labId, position, c.file, key, f.size, turn++], transaction },
-              );
+              await repo.addWaitingFile({ id: randomUUID(), jobId, labId, position, fileName: c.file, fileKey: key, sizeBytes: f.size, turn: turn++ }, transaction);
             }
             // Handed to the queue in the same transaction: a worker may take the first files as soon as it commits.
-            sent = await handOut(connectionOf(transaction), labId);
+            sent = await handOut(repo.connectionOf(transaction), labId);
           });
         } catch (err) {
           for (const key of created) await storage.discard(key);
@@ -568,35 +443,23 @@ export function meshJobsService(deps: MeshJobsDeps) {
      * failures (the database away), so the queue tries again.
      */
     async processFile(fileId: string, worker: string, tools: WorkerTools): Promise<void> {
-      const [row] = await query<FileRow & { options: JobOptions; user_id: string | null }>(
-        `SELECT f.*, j.options, j.user_id FROM mesh_job_files f JOIN mesh_jobs j ON j.id = f.job_id WHERE f.id = $1`,
-        [fileId],
-      );
-      if (!row || FINISHED.includes(row.state) || (!row.file_key && !row.task)) return;
-      await sequelize.transaction(async (transaction) => {
-        await sequelize.query(
-          "UPDATE mesh_job_files SET state = 'running', attempts = attempts + 1, worker = $2, started_at = now() WHERE id = $1 AND state NOT IN ('done', 'rejected')",
-          { bind: [fileId, worker], transaction },
-        );
-        await sequelize.query("UPDATE mesh_jobs SET state = 'running', started_at = COALESCE(started_at, now()) WHERE id = $1 AND state = 'queued'", {
-          bind: [row.job_id],
-          transaction,
-        });
-      });
-      void publish({ labId: row.lab_id, topic: 'jobs', id: row.job_id });
+      const row = await repo.fileWithJob(fileId);
+      if (!row || FINISHED.includes(row.state) || (!row.fileKey && !row.task)) return;
+      await sequelize.transaction((transaction) => repo.markRunning(fileId, row.jobId, worker, transaction));
+      void publish({ labId: row.labId, topic: 'jobs', id: row.jobId });
       if (row.task) return sliceLayout(row, row.task, tools.slice);
 
-      const bytes = await storage.get(row.file_key!);
+      const bytes = await storage.get(row.fileKey!);
       if (!bytes) {
-        const done = await rejectFile(fileId, (r) => ({ file: r.file_name, code: 'not_saved', message: `${quoteName(r.file_name)} was lost from the file store before it could be measured; upload it again.` }));
+        const done = await rejectFile(fileId, (r) => ({ file: r.fileName, code: 'not_saved', message: `${quoteName(r.fileName)} was lost from the file store before it could be measured; upload it again.` }));
         if (done) await afterFile(done, false);
         return;
       }
       const view = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-      const measured = await tools.measure(view, { ...row.options.measure, filename: row.file_name });
+      const measured = await tools.measure(view, { ...row.options.measure, filename: row.fileName });
       if (!measured.ok) {
         const problems = measured.problems;
-        const done = await rejectFile(fileId, (r) => ({ file: r.file_name, code: problems[0].code, message: problems.map((p) => p.message).join(' ') }));
+        const done = await rejectFile(fileId, (r) => ({ file: r.fileName, code: problems[0].code, message: problems.map((p) => p.message).join(' ') }));
         if (done) await afterFile(done, false);
         return;
       }
@@ -604,26 +467,22 @@ export function meshJobsService(deps: MeshJobsDeps) {
       try {
         stored = await sequelize.transaction(async (transaction) => {
           // The job's row first, then the file's: the same order as every other writer.
-          await query('SELECT id FROM mesh_jobs WHERE id = $1 FOR UPDATE', [row.job_id], transaction);
-          const [locked] = await query<FileRow>('SELECT * FROM mesh_job_files WHERE id = $1 FOR UPDATE', [fileId], transaction);
+          const locked = await repo.lockJobAndFile(row.jobId, fileId, transaction);
           if (!locked || FINISHED.includes(locked.state)) return null;
           const ids = await parts.storeMeasured(
-            { labId: row.lab_id, userId: row.user_id, file: row.file_name, key: row.file_key!, bytes: view, unit: row.options.unit, split: row.options.split },
+            { labId: row.labId, userId: row.userId, file: row.fileName, key: row.fileKey!, bytes: view, unit: row.options.unit, split: row.options.split },
             measured,
             transaction,
           );
-          await sequelize.query("UPDATE mesh_job_files SET state = 'done', part_ids = $2::uuid[], finished_at = now() WHERE id = $1", {
-            bind: [fileId, ids],
-            transaction,
-          });
+          await repo.markMeasured(fileId, ids, transaction);
           // The parts hold their own references now; the job's goes.
-          await storage.delete(row.file_key!, { transaction });
-          await settleJob(row.job_id, transaction);
+          await storage.delete(row.fileKey!, { transaction });
+          await repo.settleJob(row.jobId, transaction);
           return locked;
         });
       } catch (err) {
-        log(`mesh jobs: ${row.file_name} was measured but not saved: ${(err as Error)?.stack ?? String(err)}`);
-        const done = await rejectFile(fileId, (r) => notSaved(r.file_name));
+        log(`mesh jobs: ${row.fileName} was measured but not saved: ${(err as Error)?.stack ?? String(err)}`);
+        const done = await rejectFile(fileId, (r) => notSaved(r.fileName));
         if (done) await afterFile(done, false);
         return;
       }
@@ -633,9 +492,9 @@ export function meshJobsService(deps: MeshJobsDeps) {
     /** The queue gave up on a file (its workers kept dying on it): it is refused, and the job goes on. */
     async giveUp(fileId: string): Promise<void> {
       const done = await rejectFile(fileId, (r) => ({
-        file: r.file_name,
+        file: r.fileName,
         code: 'measure-failed',
-        message: `${quoteName(r.file_name)} could not be measured: the worker measuring it stopped ${r.attempts} time${r.attempts === 1 ? '' : 's'}. The file may be far larger than it looks.`,
+        message: `${quoteName(r.fileName)} could not be measured: the worker measuring it stopped ${r.attempts} time${r.attempts === 1 ? '' : 's'}. The file may be far larger than it looks.`,
       }));
       if (done) await afterFile(done, false);
     },

@@ -13,8 +13,6 @@ const WITHOUT_MODEL: Record<string, string> = {
   schema_migrations: 'the migrator keeps it',
   file_key_locks: 'only ever locked by key (SELECT ... FOR UPDATE) in the file store',
   rate_limit_hits: "the rate limiter's counter store, one upsert",
-  mesh_jobs: "the job queue's own rows, written by the jobs module",
-  mesh_job_files: "the job queue's own rows, written by the jobs module",
 };
 
 /** Sequelize's type key and PostgreSQL's data_type, for every type the models use. */

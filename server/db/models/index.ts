@@ -4,6 +4,7 @@ import { partModels } from './parts';
 import { planModels } from './plans';
 import { runModels } from './runs';
 import { powderModels } from './powder';
+import { jobModels } from './jobs';
 
 /**
  * The tables as typed Sequelize models. The schema itself comes only from
@@ -11,7 +12,7 @@ import { powderModels } from './powder';
  * each model's columns with the migrated database's.
  */
 export function initModels(sequelize: Sequelize) {
-  const models = { ...accountModels(sequelize), ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize) };
+  const models = { ...accountModels(sequelize), ...partModels(sequelize), ...planModels(sequelize), ...runModels(sequelize), ...powderModels(sequelize), ...jobModels(sequelize) };
   const { Lab, Machine, Material, Part, Plan, PlanEvent, Run, RunReading, Layout, PlanLine, Request, RequestLine, User } = models;
   // Associations across the files above.
   Lab.hasMany(Machine, { foreignKey: 'labId', as: 'machines' });
