@@ -1,7 +1,7 @@
 import pg from 'pg';
-import { QueryTypes } from 'sequelize';
 import type { Config } from '../config';
 import { connectDatabase } from '../db';
+import { meshJobsRepository } from '../db/repositories/meshJobs';
 import { createStorage } from '../storage';
 import { partsService } from '../services/parts';
 import { createLabEvents } from '../events/labEvents';
@@ -17,8 +17,7 @@ import { startMeshWorker } from './worker';
  */
 export async function runWorkerProcess(config: Config, settings: MeshQueueSettings, log: (msg: string) => void) {
   const db = connectDatabase(config.databaseUrl);
-  const [{ ok }] = await db.sequelize.query<{ ok: boolean }>("SELECT to_regclass('mesh_job_files') IS NOT NULL AS ok", { type: QueryTypes.SELECT });
-  if (!ok) {
+  if (!(await meshJobsRepository(db).tablesExist())) {
     await db.close();
     throw new Error('the database has no job tables yet: start a server once (npm start), which applies the migrations');
   }

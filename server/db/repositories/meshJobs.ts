@@ -80,6 +80,15 @@ export function meshJobsRepository(db: Database) {
   const { MeshJob, MeshJobFile } = db.models;
 
   return {
+    /**
+     * Whether the migrations have made the queue's tables (a worker process does not migrate).
+     * Raw SQL: a question to the catalog, which no model describes.
+     */
+    async tablesExist(): Promise<boolean> {
+      const [{ ok }] = await sequelize.query<{ ok: boolean }>("SELECT to_regclass('mesh_job_files') IS NOT NULL AS ok", { type: QueryTypes.SELECT });
+      return ok;
+    },
+
     /** The connection a Sequelize transaction runs on (so the hand-out and pg-boss's send join that transaction). */
     connectionOf(transaction: Transaction): Sql {
       return (transaction as unknown as { connection: Sql }).connection;
