@@ -189,7 +189,8 @@ async function main() {
     const errors = new Map<string, number>();
     const errorSamples: string[] = [];
     let requests = 0;
-    const stopAt = performance.now() + SECONDS * 1000;
+    const startedAt = performance.now();
+    const stopAt = startedAt + SECONDS * 1000;
     const fail = (what: string, why: string) => {
       errors.set(what, (errors.get(what) ?? 0) + 1);
       if (errorSamples.length < 5) errorSamples.push(`${what}: ${why}`);
@@ -235,6 +236,7 @@ async function main() {
 
     // Small uploads of the other labs, each timed from sending to the measured part.
     const smallTimes: number[] = [];
+    const slowSmall: string[] = [];
     const smallFailures: string[] = [];
     await new Promise((r) => setTimeout(r, 1500));
     const uploaders = small.map(async ({ client, labId: lab }, i) => {
@@ -247,8 +249,11 @@ async function main() {
         try {
           const res = await client.fetch(`/labs/${lab}/parts`, { method: 'POST', body: stlForm(`small-${i}-${n}.stl`, bytes) });
           await res.arrayBuffer();
-          if (res.status === 201) smallTimes.push((performance.now() - t0) / 1000);
-          else smallFailures.push(`HTTP ${res.status}`);
+          const took = (performance.now() - t0) / 1000;
+          if (res.status === 201) {
+            smallTimes.push(took);
+            if (took > 2) slowSmall.push(`${took.toFixed(2)} s (sent ${((t0 - startedAt) / 1000).toFixed(0)} s in)`);
+          } else smallFailures.push(`HTTP ${res.status}`);
         } catch (e) {
           smallFailures.push((e as Error).message);
         }
@@ -272,6 +277,7 @@ async function main() {
     const st = [...smallTimes].sort((a, b) => a - b);
     log(`small uploads of other labs: ${st.length} measured (201), ${smallFailures.length} failed; ` +
       `median ${percentile(st, 50).toFixed(2)} s, max ${(st[st.length - 1] ?? NaN).toFixed(2)} s, within 2 s: ${st.filter((t) => t <= 2).length}/${st.length}`);
+    if (slowSmall.length > 0) log(`  over 2 s: ${slowSmall.join(', ')}`);
     for (const f of smallFailures.slice(0, 5)) log(`  small upload failed: ${f}`);
     log(`large batch: answered ${batchResult.answered}${'state' in batchResult ? `, job ${batchResult.state}` : ''}, ${batchResult.parts} parts, ${batchResult.seconds.toFixed(1)} s after sending`);
   } finally {
