@@ -6,19 +6,18 @@
  */
 import { prismWithHoles } from '@/shared/geometry';
 import {
-  parseInstanceV2,
   summariseShapeLayout,
   validateShapeLayout,
   generateShapeMix,
   createBoxFitPacking,
   createShapePacking,
-  type PackInstanceV2,
   type PartMesh,
 } from '@/shared/packing';
 import { shapeParts } from '@/shared/packing/shape/parts';
 import { columnProfile } from '@/shared/packing/shape/profile';
 import { settleLayout, lowerTheTop, type SettleItem } from '@/shared/packing/shape/settle';
 import { box } from '../../geometry/helpers';
+import { shapeInstance } from './instance';
 
 const square = (x0: number, y0: number, s: number): Array<[number, number]> => [
   [x0, y0],
@@ -27,18 +26,9 @@ const square = (x0: number, y0: number, s: number): Array<[number, number]> => [
   [x0, y0 + s],
 ];
 
-function instance(parts: Array<{ id: string; mesh: PartMesh; quantity: number }>, spacing: number): PackInstanceV2 {
-  const parsed = parseInstanceV2({
-    format: 'pack-instance/2',
-    chamber: [200, 200, 200],
-    spacing,
-    layerHeight: 0.1,
-    fit: 'shape',
-    parts: parts.map((p) => ({ id: p.id, mesh: { positions: p.mesh.positions, indices: p.mesh.indices }, quantity: p.quantity, orientations: ['xyz'] })),
-  });
-  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-  return parsed.instance;
-}
+/** Each part upright as modelled (the box layouts below are given in that turn). */
+const instance = (parts: Array<{ id: string; mesh: PartMesh; quantity: number }>, spacing: number) =>
+  shapeInstance(parts.map((p) => ({ ...p, orientations: ['xyz'] })), spacing);
 
 // A square ring 40 mm outside, a 20 mm hole, 10 mm high, on the floor; a 10 mm cube above the middle of the hole.
 const ring = prismWithHoles(square(0, 0, 40), [square(10, 10, 20).reverse()], 0, 10);

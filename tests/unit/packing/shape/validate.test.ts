@@ -2,26 +2,14 @@ import { readModelXml, mergeMeshes, torus } from '@/shared/geometry';
 import { decodeText } from '@/shared/geometry/text';
 import {
   summariseShapeLayout,
-  parseInstanceV2,
   validateShapeLayout,
   type PackInstanceV2,
   type PackResultV2,
-  type PartMesh,
 } from '@/shared/packing';
 import { box, fixture } from '../../geometry/helpers';
+import { shapeInstance } from './instance';
 
-function instance(parts: Array<{ id: string; mesh: PartMesh; quantity: number; orientations?: string[] }>, spacing: number): PackInstanceV2 {
-  const parsed = parseInstanceV2({
-    format: 'pack-instance/2',
-    chamber: [200, 200, 200],
-    spacing,
-    layerHeight: 0.1,
-    fit: 'shape',
-    parts: parts.map((p) => ({ id: p.id, mesh: { positions: p.mesh.positions, indices: p.mesh.indices }, quantity: p.quantity, orientations: p.orientations })),
-  });
-  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-  return parsed.instance;
-}
+const instance = shapeInstance;
 
 /** A result for placements given as (id, rotation, minimum corner), listed in the given order. */
 function layout(inst: PackInstanceV2, items: Array<[string, number, [number, number, number]]>): PackResultV2 {
