@@ -249,8 +249,12 @@ describe('moving, turning and dropping parts by hand', () => {
     expect(await page.getByTestId('num-height').textContent()).not.toBe(heightBefore);
     await screenshot(page, 'plan-editor-dropped-wide');
 
-    // R turns it a quarter turn (or says why it may not); keeping the edited layout stores it.
+    // R turns it a quarter turn in place (or says why it may not). Turned, it may now reach a neighbour, which
+    // is shown and blocks keeping; D again puts it at the lowest free height, clear of all. Keeping stores it.
     await page.keyboard.press('r');
+    await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+    await page.keyboard.press('d');
+    await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
     await page.getByTestId('layout-keep').click();
     await page.getByText(/^Kept as/).waitFor();
     await page.context().close();
