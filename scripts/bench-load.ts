@@ -9,7 +9,7 @@
  *
  *   npm run bench:load                      (60 s)
  *   npm run bench:load -- --seconds 15      (a short run)
- *   options: --clients 50 --large 6 --large-triangles 400000
+ *   options: --clients 50 --large 6 --large-triangles 400000 --profile DIR
  *
  * Measuring runs in one `npm run worker` process with one bulk thread (large
  * files, at nice 10: MESH_BULK_NICE) and the quick thread (files up to
@@ -38,6 +38,9 @@ const CLIENTS = arg('clients', 50);
 const LARGE_FILES = arg('large', 6);
 const LARGE_TRIANGLES = arg('large-triangles', 400_000);
 const IN_PROCESS = process.argv.includes('--in-process');
+/** `--profile DIR`: the server and the worker write V8 CPU profiles there (open them in Chrome's DevTools). */
+const PROFILE_DIR = process.argv.includes('--profile') ? path.resolve(process.argv[process.argv.indexOf('--profile') + 1] ?? '') : null;
+const profiling = PROFILE_DIR ? ['--cpu-prof', '--cpu-prof-dir', PROFILE_DIR] : [];
 const SMALL_LABS = 3;
 const SMALL_EVERY_MS = 4000;
 const ROOT = path.resolve(__dirname, '..');
@@ -137,10 +140,10 @@ async function main() {
         }
       })();
     };
-    server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    server = spawn(process.execPath, [...profiling, '--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
     await started(server, 'serving on', 'server');
     if (!IN_PROCESS) {
-      worker = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
+      worker = spawn(process.execPath, [...profiling, '--import', 'tsx', 'scripts/worker.ts'], { cwd: ROOT, env, stdio: ['ignore', 'pipe', 'pipe'] });
       await started(worker, 'serving queue', 'worker');
     }
 
@@ -237,6 +240,8 @@ async function main() {
     // Small uploads of the other labs, each timed from sending to the measured part.
     const smallTimes: number[] = [];
     const slowSmall: string[] = [];
+    /** Each measured small upload's wall-clock send and answer times and its part, to split its time into phases. */
+    const smallTraces: { sentAt: number; answeredAt: number; partId: string; label: string }[] = [];
     const smallFailures: string[] = [];
     await new Promise((r) => setTimeout(r, 1500));
     const uploaders = small.map(async ({ client, labId: lab }, i) => {
@@ -247,12 +252,15 @@ async function main() {
         const bytes = writeBinaryStl(prism([[0, 0], [side, 0], [side, side], [0, side]], 0, 5), `small ${i}`);
         const t0 = performance.now();
         try {
+          const sentAt = Date.now();
           const res = await client.fetch(`/labs/${lab}/parts`, { method: 'POST', body: stlForm(`small-${i}-${n}.stl`, bytes) });
-          await res.arrayBuffer();
+          const body = (await res.json()) as { parts?: { id: string }[] };
           const took = (performance.now() - t0) / 1000;
           if (res.status === 201) {
             smallTimes.push(took);
-            if (took > 2) slowSmall.push(`${took.toFixed(2)} s (sent ${((t0 - startedAt) / 1000).toFixed(0)} s in)`);
+            const label = `${took.toFixed(2)} s (sent ${((t0 - startedAt) / 1000).toFixed(0)} s in)`;
+            if (took > 2) slowSmall.push(label);
+            if (body.parts?.[0]) smallTraces.push({ sentAt, answeredAt: Date.now(), partId: body.parts[0].id, label });
           } else smallFailures.push(`HTTP ${res.status}`);
         } catch (e) {
           smallFailures.push((e as Error).message);
@@ -278,11 +286,14 @@ async function main() {
     log(`small uploads of other labs: ${st.length} measured (201), ${smallFailures.length} failed; ` +
       `median ${percentile(st, 50).toFixed(2)} s, max ${(st[st.length - 1] ?? NaN).toFixed(2)} s, within 2 s: ${st.filter((t) => t <= 2).length}/${st.length}`);
     if (slowSmall.length > 0) log(`  over 2 s: ${slowSmall.join(', ')}`);
+    await printPhases(databaseUrl, smallTraces, log);
     for (const f of smallFailures.slice(0, 5)) log(`  small upload failed: ${f}`);
     log(`large batch: answered ${batchResult.answered}${'state' in batchResult ? `, job ${batchResult.state}` : ''}, ${batchResult.parts} parts, ${batchResult.seconds.toFixed(1)} s after sending`);
   } finally {
     if (worker && worker.exitCode === null) {
-      worker.kill('SIGKILL');
+      // A profiled worker must stop by itself to write its profile.
+      worker.kill(PROFILE_DIR ? 'SIGTERM' : 'SIGKILL');
+      if (PROFILE_DIR) setTimeout(() => worker?.kill('SIGKILL'), 15_000).unref();
       await new Promise((r) => worker!.once('exit', r));
     }
     if (server && server.exitCode === null) {
@@ -290,6 +301,41 @@ async function main() {
       await new Promise((r) => server!.once('exit', r));
     }
     await dropDatabase(cluster, dbName).catch(() => {});
+  }
+}
+
+/**
+ * Splits each small upload's time by the job's own timestamps (the database's clock, on this machine): sent to
+ * job created (the server took the file in and stored it), created to started (handed out and fetched by a
+ * worker), started to finished (read and measured: the finishing transaction's start), finished to answered (the part stored, the server told, the answer sent).
+ */
+async function printPhases(databaseUrl: string, traces: { sentAt: number; answeredAt: number; partId: string; label: string }[], log: (s: string) => void) {
+  if (traces.length === 0) return;
+  const pg = (await import('pg')).default;
+  const client = new pg.Client({ connectionString: databaseUrl });
+  await client.connect();
+  try {
+    const { rows } = await client.query<{ part_id: string; created: string; started: string | null; finished: string | null }>(
+      `SELECT p.id AS part_id, (extract(epoch FROM j.created_at) * 1000)::float8 AS created,
+              (extract(epoch FROM f.started_at) * 1000)::float8 AS started, (extract(epoch FROM f.finished_at) * 1000)::float8 AS finished
+         FROM unnest($1::uuid[]) AS p(id) JOIN mesh_job_files f ON p.id = ANY (f.part_ids) JOIN mesh_jobs j ON j.id = f.job_id`,
+      [traces.map((t) => t.partId)],
+    );
+    const byPart = new Map(rows.map((r) => [r.part_id, r]));
+    const phases = ['taken in', 'to a worker', 'read and measured', 'stored and answered'] as const;
+    const split = traces.flatMap((t) => {
+      const r = byPart.get(t.partId);
+      if (!r || r.started === null || r.finished === null) return [];
+      const at = [t.sentAt, Number(r.created), Number(r.started), Number(r.finished), t.answeredAt];
+      return [{ t, ms: phases.map((_, k) => at[k + 1] - at[k]) }];
+    });
+    const med = (k: number) => percentile(split.map((s) => s.ms[k]).sort((a, b) => a - b), 50);
+    log(`  small uploads' phases, median ms: ${phases.map((p, k) => `${p} ${med(k).toFixed(0)}`).join(', ')}`);
+    for (const s of split.filter((x) => x.ms.reduce((a, b) => a + b, 0) > 2000)) {
+      log(`    ${s.t.label}: ${phases.map((p, k) => `${p} ${s.ms[k].toFixed(0)}`).join(', ')}`);
+    }
+  } finally {
+    await client.end();
   }
 }
 

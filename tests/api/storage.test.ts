@@ -68,6 +68,37 @@ describe('the PostgreSQL driver', () => {
     expect(await storage.get(key)).toBeNull();
   });
 
+  test('a file of several read slices (5 MB and 3 bytes) comes back byte for byte', async () => {
+    // Pseudo-random bytes (a linear congruential sequence): every base64 slice boundary meets different bytes.
+    const bytes = Buffer.alloc(5 * 1024 * 1024 + 3);
+    for (let i = 0, x = 12345; i < bytes.length; i++) {
+      x = (Math.imul(x, 1103515245) + 12345) >>> 0;
+      bytes[i] = x >>> 24;
+    }
+    const key = sha256Bytes(bytes);
+    const storage = running.services.storage;
+    await running.db.sequelize.transaction((transaction) => storage.put(key, { bytes }, { transaction }));
+    const back = await storage.get(key);
+    expect(back?.length).toBe(bytes.length);
+    expect(Buffer.compare(back!, bytes)).toBe(0);
+    await running.db.sequelize.transaction((transaction) => storage.delete(key, { transaction }));
+    expect(await storage.get(key)).toBeNull();
+  });
+
+  test('stored bytes are kept uncompressed, even when they would compress (so a slice is read without the bytes before it)', async () => {
+    const bytes = Buffer.alloc(3 * 1024 * 1024, 7);
+    const key = sha256Bytes(bytes);
+    const storage = running.services.storage;
+    await running.db.sequelize.transaction((transaction) => storage.put(key, { bytes }, { transaction }));
+    const [[row]] = (await running.db.sequelize.query('SELECT pg_column_size(data)::int AS stored FROM files WHERE key = $1', { bind: [key] })) as [
+      { stored: number }[],
+      unknown,
+    ];
+    expect(row.stored).toBeGreaterThanOrEqual(bytes.length);
+    expect(Buffer.compare((await storage.get(key))!, bytes)).toBe(0);
+    await running.db.sequelize.transaction((transaction) => storage.delete(key, { transaction }));
+  });
+
   test('a key that is not a SHA-256 digest is refused', async () => {
     await expect(
       running.db.sequelize.transaction((transaction) => running.services.storage.put('../etc/passwd', { bytes: new Uint8Array(1) }, { transaction })),

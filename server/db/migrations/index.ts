@@ -15,6 +15,7 @@ import * as m0013 from './0013-lab-density-rule';
 import * as m0014 from './0014-mesh-job-tasks';
 import * as m0015 from './0015-queue-moves';
 import * as m0016 from './0016-part-revisions';
+import * as m0017 from './0017-files-stored-uncompressed';
 
 export type Migration = {
   name: string;
@@ -40,4 +41,5 @@ export const migrations: Migration[] = [
   { name: '0014-mesh-job-tasks', ...m0014 },
   { name: '0015-queue-moves', ...m0015 },
   { name: '0016-part-revisions', ...m0016 },
+  { name: '0017-files-stored-uncompressed', ...m0017 },
 ];
