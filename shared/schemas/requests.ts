@@ -36,12 +36,12 @@ const linesSchema = z
     });
   });
 
-const titleSchema = z.string().trim().min(1, 'is required').max(200, 'must be at most 200 characters');
+const titleSchema = z.string().trim().min(1, 'is required: give the request a short title').max(200, 'must be at most 200 characters');
 const notesSchema = z.string().max(5000, 'must be at most 5,000 characters');
 
 export const requestCreateSchema = z.strictObject({
   title: titleSchema,
-  materialId: uuid,
+  materialId: z.uuid("must be one of the lab's materials: choose one"),
   dueDate: dueDateSchema,
   priority: prioritySchema.default('normal'),
   notes: notesSchema.default(''),
@@ -50,7 +50,7 @@ export const requestCreateSchema = z.strictObject({
 
 export const requestPatchSchema = z.strictObject({
   title: titleSchema.optional(),
-  materialId: uuid.optional(),
+  materialId: z.uuid("must be one of the lab's materials: choose one").optional(),
   dueDate: dueDateSchema.optional(),
   priority: prioritySchema.optional(),
   notes: notesSchema.optional(),

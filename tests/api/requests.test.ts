@@ -86,6 +86,16 @@ describe('filing a request', () => {
     expect((await designer.agent.get(`/api/labs/${labId}/requests`)).body.total).toBe(before);
   });
 
+  test('an empty title or no material is refused with a message that says what to give', async () => {
+    const { designer, labId, materialId, latch } = await labWithParts('messages');
+    const noTitle = await designer.agent.post(`/api/labs/${labId}/requests`).send(body(materialId, [{ partId: latch, quantity: 1 }], { title: '   ' }));
+    expect(noTitle.status).toBe(400);
+    expect(noTitle.body.error).toMatchObject({ field: 'title', message: expect.stringContaining('give the request a short title') });
+    const noMaterial = await designer.agent.post(`/api/labs/${labId}/requests`).send(body('', [{ partId: latch, quantity: 1 }]));
+    expect(noMaterial.status).toBe(400);
+    expect(noMaterial.body.error).toMatchObject({ field: 'materialId', message: expect.stringContaining("one of the lab's materials: choose one") });
+  });
+
   test("another lab's part or material is refused as unknown, without showing its data", async () => {
     const mine = await labWithParts('mine');
     const theirs = await labWithParts('theirs');

@@ -49,6 +49,8 @@ describe.each([
       undefined,
       { timeout: 5000 },
     );
+    // The message says what to do, not only that something is missing.
+    expect(await titleError.textContent()).toBe('Is required: give the request a short title');
     await screenshot(page, `request-form-first-error-${name}`);
     await page.getByTestId('request-line-0-error').waitFor();
 
