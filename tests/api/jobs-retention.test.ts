@@ -26,9 +26,10 @@ const stl = (tag: string) =>
 
 beforeAll(async () => {
   db = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 2 });
-  // One app measures its uploads; the other's queue has no worker, so its upload stays waiting.
+  // One app measures its uploads; the other's queue (a queue of its own: the first app's worker would serve a
+  // shared one, and once did before the test looked) has no worker, so its upload stays waiting.
   measuring = await startTestApp({ jobRetentionHours: RETENTION_HOURS });
-  idle = await startTestApp({ meshWorker: false, uploadWaitMs: 0, jobRetentionHours: RETENTION_HOURS });
+  idle = await startTestApp({ meshWorker: false, uploadWaitMs: 0, jobRetentionHours: RETENTION_HOURS, jobQueue: `retention-idle-${process.pid}` });
 });
 
 afterAll(async () => {

@@ -56,6 +56,25 @@ async function until<T>(what: string, fn: () => Promise<T | null | undefined | f
 
 const said = (child: Child, text: string) => async () => child.output.join('').includes(text);
 
+/**
+ * A second server process on a free port. The port is free when chosen but the process listens seconds later;
+ * when something took the port meanwhile (it says so and stops), it starts again on another.
+ */
+async function startSecondServer(): Promise<{ child: Child; port: number }> {
+  for (let attempt = 1; ; attempt++) {
+    const port = await freePort();
+    const child = start('server/index.ts', { PORT: String(port), APP_URL: ORIGIN, MESH_WORKER: 'off' });
+    const outcome = await until(
+      'the second server',
+      async () => (child.output.join('').includes('serving on') ? 'up' : child.output.join('').includes('is already in use') ? 'taken' : null),
+      120_000,
+      250,
+    );
+    if (outcome === 'up') return { child, port };
+    if (attempt === 3) throw new Error(`three free ports were taken before the second server could listen on them:\n${child.output.join('')}`);
+  }
+}
+
 function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const s = createServer();
@@ -79,10 +98,8 @@ afterAll(async () => {
 });
 
 test('a worker killed in the middle of a file loses nothing: the other worker measures it and the part is stored once', async () => {
-  const port = await freePort();
-  const server2 = start('server/index.ts', { PORT: String(port), APP_URL: ORIGIN, MESH_WORKER: 'off' });
   const workers = [start('scripts/worker.ts', { MESH_THREADS: '1' }), start('scripts/worker.ts', { MESH_THREADS: '1' })];
-  await until('the second server', said(server2, 'serving on'), 120_000, 250);
+  const { port } = await startSecondServer();
   for (const w of workers) await until('a worker to start', said(w, 'serving queue'), 120_000, 250);
 
   // A 1,000,000-triangle torus (48 MB): seconds of measuring, so the kill lands in the middle of it.

@@ -1,8 +1,8 @@
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import type { Server } from 'node:http';
-import { listen, type Running } from '../../server/boot';
+import { createServer, type Server } from 'node:http';
+import type { Running } from '../../server/boot';
 import type { Config } from '../../server/config';
 import { startTestApp } from './app';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
@@ -20,22 +20,35 @@ export type Served = { running: Running; server: Server; baseUrl: string; browse
  * change the server's settings (a short upload wait, no worker of its own).
  */
 export async function serveAndLaunch(overrides: Partial<Config> = {}): Promise<Served> {
-  const probe = await startTestApp();
-  // APP_URL must be the address the browser uses, for the Origin check and invite links.
-  const server0 = await listen(probe.app, 0, '127.0.0.1');
-  const port = (server0.address() as { port: number }).port;
-  await new Promise<void>((r) => server0.close(() => r()));
-  await probe.close();
-  const baseUrl = `http://127.0.0.1:${port}`;
-  const running = await startTestApp({ appUrl: baseUrl, webDist: 'dist', ...overrides });
-  const server = await listen(running.app, port, '127.0.0.1');
-  const browser = await chromium.launch({
-    executablePath: CHROMIUM,
-    // SwiftShader gives headless Chromium software WebGL for the 3D views.
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+  // APP_URL must be the address the browser uses, for the Origin check and invite links, so the port is taken
+  // first and held while the app starts (a port let go and listened on again was once taken meanwhile by another
+  // connection, and every test of the file failed); the app answers on it once it is ready.
+  const server = createServer();
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(0, '127.0.0.1', () => resolve());
   });
+  const port = (server.address() as { port: number }).port;
+  const baseUrl = `http://127.0.0.1:${port}`;
+  let running: Running | null = null;
+  let browser: Browser;
+  try {
+    running = await startTestApp({ appUrl: baseUrl, webDist: 'dist', ...overrides });
+    server.on('request', running.app);
+    browser = await chromium.launch({
+      executablePath: CHROMIUM,
+      // SwiftShader gives headless Chromium software WebGL for the 3D views.
+      args: ['--headless', '--no-sandbox', '--disable-gpu', '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+    });
+  } catch (err) {
+    // Nothing is left open when the set-up fails (an app left running keeps jest from exiting after the run).
+    server.close();
+    await running?.close();
+    throw err;
+  }
+  const app = running;
   return {
-    running,
+    running: app,
     server,
     baseUrl,
     browser,
@@ -43,7 +56,7 @@ export async function serveAndLaunch(overrides: Partial<Config> = {}): Promise<S
       await browser.close();
       server.closeAllConnections();
       await new Promise<void>((r) => server.close(() => r()));
-      await running.close();
+      await app.close();
     },
   };
 }
