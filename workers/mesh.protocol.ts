@@ -4,6 +4,7 @@
  * types). Meshes cross the thread boundary as transferred typed arrays.
  */
 import type { LengthUnit, ProblemCode } from '../shared/geometry';
+import type { ProfileLayoutPlacement } from '../shared/geometry/layoutSlices';
 
 export interface ViewMesh {
   /** xyz triples in millimetres, in the file's own coordinates (z is the build direction). */
@@ -32,6 +33,43 @@ export interface ParseMeshOptions {
   partName?: string;
 }
 
+/** One distinct part of a layout on screen and where its stored file is (as the server slices a kept layout). */
+export interface LayoutProfilePart {
+  /** Names the turned mesh for the worker's caches: file hash, part in the file, stored turns (the server's key). */
+  key: string;
+  /** The stored file's download address; null when the part has no closed mesh (it counts as its box). */
+  url: string | null;
+  filename: string;
+  unit: LengthUnit;
+  split: boolean;
+  partIndex: number;
+  rotationDeg: [number, number, number];
+  /** Closed and consistently oriented: only such a mesh has sections. */
+  watertight: boolean;
+}
+
+export interface LayoutProfileJob {
+  parts: LayoutProfilePart[];
+  placements: ProfileLayoutPlacement[];
+  layerHeightMm: number;
+  layers: number;
+}
+
+export type LayoutProfileAnswer =
+  | {
+      ok: true;
+      /** Summed section area (mm^2) and contour (mm) at the middle of each layer. */
+      areaProfile: Float64Array;
+      contourProfile: Float64Array;
+      meshPlacements: number;
+      boxPlacements: number;
+      /** Parts (by index in the job) counted as their box, and why. */
+      boxReasons: { part: number; reason: string }[];
+    }
+  | { ok: false; message: string };
+
 export interface MeshWorkerApi {
   parseMesh(bytes: ArrayBuffer, filename: string, unit: LengthUnit, options?: ParseMeshOptions): Promise<ParseMeshResult>;
+  /** Slices a layout's parts from their stored files (downloaded and cached by the worker) for the editor's estimates. */
+  profileLayout(job: LayoutProfileJob): Promise<LayoutProfileAnswer>;
 }

@@ -10,7 +10,8 @@
  */
 import * as Comlink from 'comlink';
 import { MM_PER_UNIT, formatFromFilename, isBinaryStlSize, mergeMeshes, parseMeshFile, type LengthUnit } from '../shared/geometry';
-import type { MeshProblem, MeshWorkerApi, ParseMeshOptions, ParseMeshResult, ViewMesh } from './mesh.protocol';
+import { createLayoutProfiler } from './layoutProfile';
+import type { LayoutProfileAnswer, MeshProblem, MeshWorkerApi, ParseMeshOptions, ParseMeshResult, ViewMesh } from './mesh.protocol';
 
 export type { MeshProblem, ParseMeshOptions, ParseMeshResult, ViewMesh };
 
@@ -89,7 +90,13 @@ export function sniffExtension(bytes: Uint8Array): '.3mf' | '.stl' | '.obj' | nu
 }
 
 /** Comlink answers with promises; the worker's own calls are plain. */
-type Plain<A> = { [K in keyof A]: A[K] extends (...args: infer P) => Promise<infer R> ? (...args: P) => R : never };
+type Plain<A> = { [K in keyof A]: A[K] extends (...args: infer P) => Promise<infer R> ? (...args: P) => R | Promise<R> : never };
+
+/** Stored files are read with the page's session (same origin); a file that cannot be had counts as its box. */
+const profileLayout = createLayoutProfiler(async (url) => {
+  const res = await fetch(url, { credentials: 'same-origin' });
+  return res.ok ? new Uint8Array(await res.arrayBuffer()) : null;
+});
 
 const api: Plain<MeshWorkerApi> = {
   parseMesh(bytes, filename, unit, options) {
@@ -102,6 +109,19 @@ const api: Plain<MeshWorkerApi> = {
     }
     if (!result.ok) return result;
     return Comlink.transfer(result, [result.mesh.positions.buffer as ArrayBuffer, result.mesh.indices.buffer as ArrayBuffer]);
+  },
+  async profileLayout(job) {
+    let answer: LayoutProfileAnswer;
+    try {
+      answer = await profileLayout(job);
+    } catch (err) {
+      answer = { ok: false, message: err instanceof Error ? err.message : String(err) };
+    }
+    if (!answer.ok) return answer;
+    // Copies: the sums may be views the caches keep, which must not be detached.
+    const area = answer.areaProfile.slice();
+    const contour = answer.contourProfile.slice();
+    return Comlink.transfer({ ...answer, areaProfile: area, contourProfile: contour }, [area.buffer, contour.buffer]);
   },
 };
 

@@ -1,4 +1,5 @@
-import { estimateLayout, type AreaJump, type CostEstimate, type LayoutEstimate } from '../../shared/estimate';
+import { estimateLayout, profileInfo, type CalibrationFactors, type AreaJump, type CostEstimate, type LayoutEstimate } from '../../shared/estimate';
+import type { WorkingProfile } from './useWorkingProfile';
 import type { PackInstanceInput, PackResult } from '../../shared/packing';
 import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
 
@@ -92,6 +93,10 @@ export function estimateWorking(
   machine: Record<string, unknown>,
   material: Record<string, unknown>,
   volumeByLine: ReadonlyMap<string, number>,
+  /** The layout's sections from the parts' meshes, when they have been sliced; the boxes otherwise. */
+  profile: WorkingProfile | null = null,
+  /** The machine's calibration from its recorded runs (none: the model's figures as they are). */
+  calibration?: CalibrationFactors,
 ): ShownNumbers | null {
   try {
     const profiles = profilesOf(machine, material);
@@ -106,8 +111,11 @@ export function estimateWorking(
       // Each part's own volume, as the server takes it, so the cost per part is the same before and after keeping.
       volumeById: volumeByLine,
       partCount: result.placements.length,
+      calibration,
+      // As the server estimates a layout it keeps: the sliced areas when any placement was sliced.
+      ...(profile && profile.meshPlacements > 0 ? { areaPerLayerMm2: profile.areaPerLayerMm2 } : {}),
     });
-    return numbersFromEstimate(e, result);
+    return numbersFromEstimate({ ...e, ...profileInfo(profile) }, result);
   } catch {
     return null;
   }

@@ -64,6 +64,9 @@ import { useChamberMeshes } from './useChamberMeshes';
 import { useEditorShortcuts } from './useEditorShortcuts';
 import { useLayoutActions, type EditorMessage } from './useLayoutActions';
 import { usePackingSession } from './usePackingSession';
+import { useWorkingProfile } from './useWorkingProfile';
+import { useCalibrationQuery } from '../queries/runs';
+import { layoutCalibration } from '../../shared/estimate/calibration';
 
 /** One arrow key press moves the marked parts this far (with Shift, 1 mm). */
 const MOVE_STEP_MM = 5;
@@ -129,9 +132,15 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const volumeByLine = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.volumeMm3] as const)), [lineInfo]);
   const workingResult = working?.result;
   const workingInstance = working?.instance;
+  // The layout not kept yet, sliced from the parts' meshes once the packing stops (the box estimate until then).
+  const partIdOfLine = useCallback((requestLineId: string) => lineInfo.get(requestLineId)?.partId, [lineInfo]);
+  const workingProfile = useWorkingProfile(lab.id, workingInstance, workingResult, partIdOfLine, running);
+  // The machine's calibration from its recorded runs, as the server applies it to a layout it keeps.
+  const calibrationView = useCalibrationQuery(lab.id, machine.id).data;
+  const calibration = useMemo(() => (calibrationView ? layoutCalibration(calibrationView) : undefined), [calibrationView]);
   const workingNumbers = useMemo(
-    () => (workingResult && workingInstance ? estimateWorking(workingInstance, workingResult, machine, material, volumeByLine) : null),
-    [workingResult, workingInstance, machine, material, volumeByLine],
+    () => (workingResult && workingInstance ? estimateWorking(workingInstance, workingResult, machine, material, volumeByLine, workingProfile, calibration) : null),
+    [workingResult, workingInstance, machine, material, volumeByLine, workingProfile, calibration],
   );
   const shownNumbers: ShownNumbers | null = showingWorking ? workingNumbers : stored.data ? numbersFromEstimate(stored.data.estimate, stored.data.result) : null;
 

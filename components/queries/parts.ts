@@ -66,12 +66,17 @@ export function usePartsQuery(labId: string | undefined, params: PartListParams,
   });
 }
 
-export function usePartQuery(labId: string | undefined, partId: string | undefined) {
-  return useQuery({
+/** One part's record, as a query (for useQuery, or useQueries over several parts). */
+export function partQueryOptions(labId: string | undefined, partId: string | undefined) {
+  return {
     queryKey: partKeys.one(labId ?? '', partId ?? ''),
-    queryFn: ({ signal }) => api(`/labs/${labId}/parts/${partId}`, { schema: partSchema, signal }),
+    queryFn: ({ signal }: { signal: AbortSignal }) => api(`/labs/${labId}/parts/${partId}`, { schema: partSchema, signal }),
     enabled: !!labId && !!partId,
-  });
+  };
+}
+
+export function usePartQuery(labId: string | undefined, partId: string | undefined) {
+  return useQuery(partQueryOptions(labId, partId));
 }
 
 export function useUpdatePartMutation(labId: string, partId: string) {

@@ -7,7 +7,7 @@ export { ChamberView, type ChamberViewHandle, type ChamberViewProps } from './Ch
 export { LayerSlider, type LayerSliderProps } from './LayerSlider';
 export { ViewToolbar } from './ViewToolbar';
 export { useMeshFile, type MeshFileOptions, type MeshFileState, type MeshFileError, type MeshUnit } from './useMeshFile';
-export { fetchMeshFile, MeshFileLoadError } from './meshFileLoader';
+export { fetchMeshFile, MeshFileLoadError, profileLayoutInWorker } from './meshFileLoader';
 export type { ViewMesh, PartMesh, ChamberPlacements, MeshProblem, ParseMeshResult, MeshWorkerApi } from './types';
 export {
   LINE_PALETTE,

@@ -5,6 +5,7 @@
  * failure a person can act on.
  */
 import * as Comlink from 'comlink';
+import type { LayoutProfileAnswer, LayoutProfileJob } from '../../workers/mesh.protocol';
 import type { MeshProblem, MeshWorkerApi, ParseMeshResult, ViewMesh } from './types';
 
 export type MeshUnit = 'mm' | 'cm' | 'inch';
@@ -58,6 +59,24 @@ function resetWorker() {
 }
 
 const parseInWorker: ParseMesh = (bytes, filename, unit, options) => meshWorker().parseMesh(Comlink.transfer(bytes, [bytes]), filename, unit, options);
+
+/**
+ * A layout's per-layer areas from its parts' real meshes, sliced in the mesh
+ * worker (which downloads and caches the files); null without a worker (the
+ * native app) or when the worker failed, so the caller keeps its box estimate.
+ */
+export async function profileLayoutInWorker(job: LayoutProfileJob): Promise<Extract<LayoutProfileAnswer, { ok: true }> | null> {
+  if (typeof Worker !== 'function') return null;
+  try {
+    // The worker may run from a bundle's own address: it is given whole addresses to download from.
+    const parts = job.parts.map((p) => (p.url ? { ...p, url: new URL(p.url, pageUrl()).href } : p));
+    const answer = await meshWorker().profileLayout({ ...job, parts });
+    return answer.ok && answer.areaProfile instanceof Float64Array && answer.areaProfile.length === job.layers ? answer : null;
+  } catch {
+    resetWorker();
+    return null;
+  }
+}
 
 function pageUrl(): string {
   return typeof location === 'undefined' ? 'http://localhost/' : location.href;

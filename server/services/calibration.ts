@@ -17,6 +17,7 @@ import {
 } from '../../shared/calibration';
 import type { CalibrationChoiceInput, CalibrationRunView, CalibrationView } from '../../shared/schemas/runs';
 import type { CalibrationLookup } from './layouts';
+import { layoutCalibration } from '../../shared/estimate/calibration';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -143,8 +144,7 @@ export function calibrationService(db: Database) {
 
   /** For the layouts' estimates: the machine's separate factors on its fixed time, its scan time and its cooling. */
   const lookup: CalibrationLookup = async (_labId, machineId) => {
-    const c = await forMachine(machineId);
-    return { layerTimeScale: c.perLayerScale, scanTimeScale: c.scanScale, coolingScale: c.coolingScale, runs: c.runs, calibrated: c.calibrated };
+    return layoutCalibration(await forMachine(machineId));
   };
 
   async function get(labId: string, machineId: string): Promise<CalibrationView> {

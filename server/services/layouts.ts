@@ -33,8 +33,8 @@ import {
   type Placement,
   type Vec3,
 } from '../../shared/packing';
-import { estimateLayout, InvalidInputError, layerCount, type CalibrationInput, type LayoutEstimate } from '../../shared/estimate';
-import type { MeshProfiles, ProfilesLookup } from './layoutProfiles';
+import { estimateLayout, InvalidInputError, layerCount, profileInfo, type CalibrationInput, type LayoutEstimate } from '../../shared/estimate';
+import type { ProfilesLookup } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 import type { LayoutChosen, LayoutCreate, LayoutCreated, LayoutPatch, LayoutSummaryView, LayoutViewAnswer } from '../../shared/schemas/plans';
 
@@ -122,14 +122,6 @@ function estimateJson(e: LayoutEstimate) {
 /** Estimate factors fitted from the machine's recorded runs, once runs are recorded. */
 export type CalibrationLookup = (labId: string, machineId: string) => Promise<CalibrationInput | undefined>;
 
-/** Where the layout's per-layer areas came from, stored with its estimate for every screen that shows it. */
-export function profileInfo(profiles: MeshProfiles | null) {
-  return {
-    profileSource: profiles && profiles.meshPlacements > 0 ? ('mesh' as const) : ('box' as const),
-    profileBoxPlacements: profiles ? profiles.boxPlacements : null,
-    profileBoxParts: profiles ? profiles.boxParts : [],
-  };
-}
 
 export type LayoutsDeps = { calibrationFor?: CalibrationLookup; profilesFor?: ProfilesLookup };
 

@@ -30,6 +30,11 @@ export type CalibrationInput = CalibrationFactors | PrintScaleFactors;
 
 export const NO_CALIBRATION: CalibrationFactors = { layerTimeScale: 1, scanTimeScale: 1, coolingScale: 1, runs: 0, calibrated: false };
 
+/** A machine's fitted calibration (its separate factors) as new layouts' estimates take it: the server and the editor alike. */
+export function layoutCalibration(c: { perLayerScale: number; scanScale: number; coolingScale: number; runs: number; calibrated: boolean }): CalibrationFactors {
+  return { layerTimeScale: c.perLayerScale, scanTimeScale: c.scanScale, coolingScale: c.coolingScale, runs: c.runs, calibrated: c.calibrated };
+}
+
 export function calibrationFactors(input: CalibrationInput | undefined): CalibrationFactors {
   if (input === undefined) return NO_CALIBRATION;
   if ('layerTimeScale' in input) {

@@ -10,3 +10,4 @@ export * from './conduction';
 export * from './boxContour';
 export * from './calibration';
 export * from './estimateLayout';
+export * from './profileSource';

@@ -483,3 +483,23 @@ describe('dragging marked parts across the plate', () => {
     await page.context().close();
   });
 });
+
+describe("a layout not kept yet is estimated from the parts' shapes", () => {
+  test('wide (1440 x 900): once the packing stops the numbers say they come from the shapes, and keeping the layout keeps them', async () => {
+    const page = await newPage(served, WIDE);
+    planId = await packNewPlan(page);
+    // The mesh worker downloads the parts' files and slices the layout; until then the box estimate says so.
+    const source = page.getByTestId('num-profile-source');
+    await source.getByText(/^From the parts' shapes/).waitFor({ timeout: 30_000 });
+    const before = { print: await page.getByTestId('num-print').textContent(), cake: await page.getByTestId('num-cake').textContent() };
+    await source.scrollIntoViewIfNeeded();
+    await screenshot(page, 'plan-editor-working-from-shapes-wide');
+
+    // The server slices the kept layout the same way: the same print time and powder, from the shapes.
+    await page.getByTestId('layout-keep').click();
+    await page.getByText(/^Kept as/).waitFor();
+    await source.getByText(/^From the parts' shapes/).waitFor({ timeout: 30_000 });
+    expect({ print: await page.getByTestId('num-print').textContent(), cake: await page.getByTestId('num-cake').textContent() }).toEqual(before);
+    await page.context().close();
+  });
+});
