@@ -67,6 +67,10 @@ export function profileJob(
   return { job, names };
 }
 
+function loadedParts(results: { data?: PartView }[]): { loaded: boolean; parts: PartView[] } {
+  return { loaded: results.every((q) => !!q.data), parts: results.flatMap((q) => (q.data ? [q.data] : [])) };
+}
+
 export function useWorkingProfile(
   labId: string,
   instance: PackInstanceInput | null | undefined,
@@ -83,15 +87,9 @@ export function useWorkingProfile(
     }
     return [...ids].sort();
   }, [result, partIdOfLine]);
-  const parts = useQueries({ queries: partIds.map((id) => partQueryOptions(labId, id)) });
-  const loaded = parts.every((q) => !!q.data);
-  // useQueries answers a new array every render: the records are taken again only when one of them changed.
-  const partsKey = parts.map((q) => `${q.data?.id ?? ''}@${q.dataUpdatedAt}`).join(',');
-  const byId = useMemo(
-    () => new Map(parts.flatMap((q) => (q.data ? [[q.data.id, q.data] as const] : []))),
-    // eslint-disable-next-line react-hooks/exhaustive-deps -- partsKey names every record and when it was read
-    [partsKey],
-  );
+  // Combined (and structurally shared by react-query), so the records keep their identity until one changes.
+  const { loaded, parts } = useQueries({ queries: partIds.map((id) => partQueryOptions(labId, id)), combine: loadedParts });
+  const byId = useMemo(() => new Map(parts.map((p) => [p.id, p] as const)), [parts]);
 
   const [sliced, setSliced] = useState<{ for: PackResult; profile: WorkingProfile } | null>(null);
   useEffect(() => {
