@@ -37,7 +37,8 @@ import { sha256File, type FileStorage } from '../storage';
 import type { LabEvent } from '../events/labEvents';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
 import type { JobView } from '../../shared/schemas/jobs';
-import type { ProfileLayoutJob, ProfileLayoutResult, ProfilePartFile } from '../../shared/geometry/layoutSlices';
+import type { ProfileLayoutResult, ProfilePartFile } from '../../shared/geometry/layoutSlices';
+import type { LayoutSliceJob, LayoutSliceResult } from '../mesh/protocol';
 import type { PartUploadResponse, PartView, RejectedFile } from '../../shared/schemas/parts';
 
 export type MeshQueueSettings = {
@@ -75,16 +76,16 @@ export type PartsForJobs = {
 export type UploadedFile = { originalname: string; path: string; size: number };
 export type UploadFields = { unit: 'mm' | 'cm' | 'inch'; split: boolean };
 export type Measure = (input: Uint8Array, options: MeasureOptions) => Promise<FileMeasureResult>;
-export type Slice = (job: ProfileLayoutJob) => Promise<ProfileLayoutResult>;
+export type Slice = (job: LayoutSliceJob) => Promise<LayoutSliceResult>;
 /** What a worker runs its turns with: the mesh pool's measuring and slicing. */
 export type WorkerTools = { measure: Measure; slice: Slice };
 
 /** A layout's sections to slice on the queue: its parts by stored file (read by the worker), placed as the layout places them. */
-export type LayoutTask = Omit<ProfileLayoutJob, 'parts'> & { planId: string; parts: (Omit<ProfilePartFile, 'bytes'> & { fileKey: string | null })[] };
+export type LayoutTask = Omit<LayoutSliceJob, 'parts'> & { planId: string; parts: (Omit<ProfilePartFile, 'bytes'> & { fileKey: string | null })[] };
 /** A sliced layout as stored with its row (the arrays as plain numbers). */
-export type StoredSections = { areaProfile: number[]; contourProfile: number[]; meshPlacements: number; boxPlacements: number; boxReasons: ProfileLayoutResult['boxReasons'] };
+export type StoredSections = { areaProfile: number[]; contourProfile: number[]; meshPlacements: number; boxPlacements: number; boxReasons: ProfileLayoutResult['boxReasons']; problems?: LayoutSliceResult['problems'] };
 /** How a layout's slicing on the queue ended, or that it did not finish in the time given. */
-export type SliceOutcome = { ok: true; result: ProfileLayoutResult; jobId: string } | { ok: false; reason: string; jobId: string };
+export type SliceOutcome = { ok: true; result: LayoutSliceResult; jobId: string } | { ok: false; reason: string; jobId: string };
 
 export type MeshJobsDeps = {
   db: Database;

@@ -17,8 +17,7 @@ import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { Piscina } from 'piscina';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
-import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
-import type { FileMeasureResult, MeasureReply, MeasureRequest, ServerProblem, ThumbnailJob } from './protocol';
+import type { FileMeasureResult, LayoutSliceJob, LayoutSliceResult, MeasureReply, MeasureRequest, ServerProblem, ThumbnailJob } from './protocol';
 
 export interface MeshPoolOptions {
   /** Bulk worker threads (default: half the cores, at least 1, at most 4). */
@@ -83,7 +82,7 @@ export class MeshPool {
    * Slices a layout's parts from their files in a worker (the calling thread
    * only reads the files). A worker that fails or runs out of time rejects.
    */
-  async profile(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
+  async profile(job: LayoutSliceJob): Promise<LayoutSliceResult> {
     const reply = await this.run({ profile: job, options: { filename: 'layout profile' } }, 'layout profile', this.bulk);
     if ('problem' in reply) throw new Error(reply.problem.message);
     if ('error' in reply) throw new Error(`slicing the layout failed: ${reply.error}`);
@@ -160,7 +159,7 @@ export function measureFile(input: string | Uint8Array, options: MeasureOptions)
 }
 
 /** Slices a layout's parts from their files in a worker thread of the process-wide pool. */
-export function profileLayout(job: ProfileLayoutJob): Promise<ProfileLayoutResult> {
+export function profileLayout(job: LayoutSliceJob): Promise<LayoutSliceResult> {
   return meshPool().profile(job);
 }
 

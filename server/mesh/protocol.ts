@@ -1,5 +1,12 @@
 import type { LengthUnit, MeasureOptions, MeasureResult, Problem } from '../../shared/geometry';
 import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
+import type { FieldProblem } from '../../shared/packing/types';
+import type { ShapeCheck } from '../../shared/packing/shape/check';
+
+/** A layout to slice; with `check`, a layout packed by shape to check against the same meshes too. */
+export type LayoutSliceJob = ProfileLayoutJob & { check?: ShapeCheck };
+/** The sections; `problems` (none: an empty list) when the job asked for the check. */
+export type LayoutSliceResult = ProfileLayoutResult & { problems?: FieldProblem[] };
 
 /** A part's picture for the library: one part of a stored file, turned as stored, drawn `sizePx` square. */
 export interface ThumbnailJob {
@@ -22,13 +29,13 @@ export interface MeasureRequest {
   path?: string;
   bytes?: Uint8Array;
   options: MeasureOptions;
-  profile?: ProfileLayoutJob;
+  profile?: LayoutSliceJob;
   thumbnail?: ThumbnailJob;
 }
 
 export type MeasureReply =
   | { id: number; result: MeasureResult }
-  | { id: number; profile: ProfileLayoutResult }
+  | { id: number; profile: LayoutSliceResult }
   /** A PNG, or null when the file holds no such part. */
   | { id: number; png: Uint8Array | null }
   | { id: number; error: string };

@@ -8,7 +8,8 @@ import { setPriority } from 'node:os';
 import { workerData } from 'piscina';
 import { PNG } from 'pngjs';
 import { measureMeshFile, parseMeshFile, SliceCache } from '../../shared/geometry';
-import { profileLayoutFromFiles, restingMesh, RestingMeshCache } from '../../shared/geometry/layoutSlices';
+import { profileLayoutFromFiles, readPartMeshes, restingMesh, RestingMeshCache } from '../../shared/geometry/layoutSlices';
+import { checkShapeLayout } from '../../shared/packing/shape/check';
 import { renderThumbnail } from '../../shared/geometry/thumbnail';
 import type { MeasureReply, MeasureRequest, ThumbnailJob } from './protocol';
 
@@ -30,7 +31,13 @@ export default async function handle(request: MeasureRequest): Promise<MeasureRe
     if (request.thumbnail) return { id: request.id, png: thumbnailPng(request.thumbnail) };
     if (request.profile) {
       // Copied back by structured clone: a profile is a few numbers a layer.
-      return { id: request.id, profile: profileLayoutFromFiles(request.profile, caches) };
+      const { check, ...job } = request.profile;
+      const read = readPartMeshes(job.parts, caches.meshes);
+      const profile = profileLayoutFromFiles(job, caches, read);
+      if (!check) return { id: request.id, profile };
+      // A layout packed by shape: checked against the same meshes the sections came from.
+      const problems = checkShapeLayout(check, read.sources.map((s) => s.mesh), profile.areaProfile);
+      return { id: request.id, profile: { ...profile, problems } };
     }
     // A view on the read buffer, not a copy: the file is held once.
     const file = request.path !== undefined ? await readFile(request.path) : undefined;

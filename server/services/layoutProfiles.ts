@@ -10,7 +10,11 @@ import type { Transaction } from 'sequelize';
 import type { Database } from '../db';
 import { plansRepository } from '../db/repositories/plans';
 import type { LayoutTask, SliceOutcome } from '../jobs/meshJobs';
-import type { PackInstance, PackResult } from '../../shared/packing';
+import type { FieldProblem, PackInstance, PackResult } from '../../shared/packing';
+import type { ShapeCheck } from '../../shared/packing/shape/check';
+
+/** A layout packed by shape to check against the meshes: its lines' parts without their place among the files (found here). */
+export type ShapeCheckRequest = Omit<ShapeCheck, 'parts'> & { parts: Omit<ShapeCheck['parts'][number], 'source'>[] };
 
 export interface MeshProfiles {
   areaPerLayerMm2: Float64Array;
@@ -20,6 +24,8 @@ export interface MeshProfiles {
   boxPlacements: number;
   /** Parts counted by their box, and why. */
   boxParts: { name: string; reason: string }[];
+  /** When a check was asked for: what the meshes say is wrong with the layout (empty: nothing). */
+  problems?: FieldProblem[];
 }
 
 export type ProfilesLookup = (
@@ -30,6 +36,8 @@ export type ProfilesLookup = (
   transaction?: Transaction,
   /** Who keeps the layout (recorded with the slicing job). */
   userId?: string | null,
+  /** A layout packed by shape: checked against the same meshes by the worker that slices it. */
+  check?: ShapeCheckRequest,
 ) => Promise<MeshProfiles | null>;
 
 export function layoutProfilesService(
@@ -40,7 +48,7 @@ export function layoutProfilesService(
   },
 ): ProfilesLookup {
   const plans = plansRepository(db);
-  return async (planId, instance, result, layers, transaction, userId = null) => {
+  return async (planId, instance, result, layers, transaction, userId = null, check) => {
     if (result.placements.length === 0 || layers === 0) return null;
     const rows = await plans.partFiles(planId, transaction);
     const plan = await plans.labOf(planId, transaction);
@@ -76,7 +84,24 @@ export function layoutProfilesService(
       const transform = (p as { transform?: number[] }).transform;
       placements.push({ part, orientation: p.orientation, position: p.position, size: p.size, transform });
     }
-    const outcome = await deps.slice(plan.labId, userId, { planId, parts: files, placements, layerHeightMm: instance.layerHeight, layers });
+    let shapeCheck: ShapeCheck | undefined;
+    if (check) {
+      const parts: ShapeCheck['parts'] = [];
+      for (const p of check.parts) {
+        const source = partOfLine.get(p.id);
+        if (source === undefined) return null;
+        parts.push({ ...p, source });
+      }
+      shapeCheck = { ...check, parts };
+    }
+    const outcome = await deps.slice(plan.labId, userId, {
+      planId,
+      parts: files,
+      placements,
+      layerHeightMm: instance.layerHeight,
+      layers,
+      ...(shapeCheck ? { check: shapeCheck } : {}),
+    });
     if (!outcome.ok) {
       console.warn(`layout profile of plan ${planId} fell back to boxes (job ${outcome.jobId}): ${outcome.reason}`);
       return null;
@@ -88,6 +113,7 @@ export function layoutProfilesService(
       meshPlacements: out.meshPlacements,
       boxPlacements: out.boxPlacements,
       boxParts: out.boxReasons.map((r) => ({ name: names[r.part], reason: r.reason })),
+      ...(out.problems ? { problems: out.problems } : {}),
     };
   };
 }

@@ -1,4 +1,4 @@
-import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
+import { RULE_ORIENTATIONS, RULE_ROTATIONS } from '../../shared/plans/instance';
 import type { Database } from '../db';
 import { plansRepository } from '../db/repositories/plans';
 import { layoutsRepository, type LayoutDbRow } from '../db/repositories/layouts';
@@ -24,17 +24,19 @@ import {
   parseInstance,
   PlacementBytesError,
   PLACEMENTS_FORMAT,
+  RESULT_FORMAT_V2,
   toPlacementArrays,
   validateLayout,
   type FieldProblem,
   type LayoutProfiles,
   type PackInstance,
   type PackResult,
+  type PackResultV2,
   type Placement,
   type Vec3,
 } from '../../shared/packing';
 import { estimateLayout, InvalidInputError, layerCount, profileInfo, type CalibrationInput, type LayoutEstimate } from '../../shared/estimate';
-import type { ProfilesLookup } from './layoutProfiles';
+import type { ProfilesLookup, ShapeCheckRequest } from './layoutProfiles';
 import type { MachineProfile, MaterialProfile } from '../../shared/types/profiles';
 import type { LayoutChosen, LayoutCreate, LayoutCreated, LayoutPatch, LayoutSummaryView, LayoutViewAnswer } from '../../shared/schemas/plans';
 
@@ -107,6 +109,27 @@ export function instanceProblems(instance: PackInstance, machine: MachineProfile
   return problems;
 }
 
+/** What a mesh worker needs to check a layout packed by shape: the build, and per line its quantity and the rotations its rule allows. */
+function shapeCheckOf(instance: PackInstance, result: PackResultV2, lines: LineRow[]): ShapeCheckRequest {
+  const byLine = new Map(lines.map((l) => [l.request_line_id, l]));
+  return {
+    chamber: instance.chamber,
+    margin: instance.margin,
+    spacing: instance.spacing,
+    layerHeight: instance.layerHeight,
+    objective: instance.objective,
+    // instanceProblems has already matched every part with a line.
+    parts: instance.parts.map((p) => ({ id: p.id, quantity: p.quantity, size: p.size, rotations: [...RULE_ROTATIONS[effectiveRule(byLine.get(p.id)!)]] })),
+    result,
+  };
+}
+
+/** The sliced sections from z = 0 to the layout's top, one number a layer (the result's own profile length). */
+function storedSections(p: { areaPerLayerMm2: Float64Array; contourPerLayerMm: Float64Array }, height: number, layerHeight: number): LayoutProfiles {
+  const n = height > 0 ? Math.min(p.areaPerLayerMm2.length, Math.ceil(height / layerHeight - 1e-9)) : 0;
+  return { areaProfile: p.areaPerLayerMm2.subarray(0, n), contourProfile: p.contourPerLayerMm.subarray(0, n) };
+}
+
 function refuse(problems: FieldProblem[], root = ''): never {
   const withRoot = problems.map((p) => ({ field: root ? `${root}.${p.field}` : p.field, message: p.message }));
   const first = withRoot[0];
@@ -149,7 +172,10 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       const parsed = parseInstance(input.instance);
       if (!parsed.ok) refuse(parsed.problems, 'instance');
       const instance = parsed.instance;
-      const result = input.result as PackResult;
+      // Packed by shape, parts may share box space (a clip in a housing): the meshes decide, on a mesh worker below.
+      const byShape = input.result.format === RESULT_FORMAT_V2;
+      // Both formats place parts the same way for the codec and the estimate (a v2 placement adds its transform).
+      const result = input.result as unknown as PackResult;
 
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
@@ -161,8 +187,10 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
 
         const mismatch = instanceProblems(instance, machine as unknown as MachineProfile, material as unknown as MaterialProfile, lines);
         if (mismatch.length > 0) refuse(mismatch);
-        const invalid = validateLayout(instance, result);
-        if (invalid.length > 0) refuse(invalid, 'result');
+        if (!byShape) {
+          const invalid = validateLayout(instance, result);
+          if (invalid.length > 0) refuse(invalid, 'result');
+        }
 
         const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, plan.machine_id) : undefined;
         const volumeOf = new Map(lines.map((l) => [l.request_line_id, l.volume_mm3]));
@@ -170,7 +198,18 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
         for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
         // Sections of the real meshes, sliced in the mesh workers; the boxes when they cannot be had.
         const layers = layerCount(result.height, instance.margin.top, instance.layerHeight);
-        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction, user.id) : null;
+        const check = byShape ? shapeCheckOf(instance, result as unknown as PackResultV2, lines) : undefined;
+        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction, user.id, check) : null;
+        if (byShape) {
+          if (!profiles?.problems) {
+            throw new AppError(
+              503,
+              'shape_check_unavailable',
+              "This layout packed by shape could not be checked against the parts' meshes just now (no mesh worker finished in time); nothing was kept. Try keeping it again in a moment.",
+            );
+          }
+          if (profiles.problems.length > 0) refuse(profiles.problems, 'result');
+        }
         let estimate: LayoutEstimate;
         try {
           const { id: _m, ...machineProfile } = machine;
@@ -216,7 +255,8 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
             placementsFormat: PLACEMENTS_FORMAT,
             placementCount: result.placements.length,
             partIds,
-            placements: encodePlacements(result.placements, partIds, result),
+            // A layout packed by shape keeps the sections its check sliced, not the ones it came with.
+            placements: encodePlacements(result.placements, partIds, byShape && profiles ? storedSections(profiles, result.height, instance.layerHeight) : result),
             summary,
             estimate: json,
             locked: input.locked ?? false,

@@ -136,10 +136,33 @@ export class RestingMeshCache {
 export function profileLayoutFromFiles(
   job: ProfileLayoutJob,
   caches: { meshes?: RestingMeshCache; slices?: SliceCache } = {},
+  read: PartMeshes = readPartMeshes(job.parts, caches.meshes),
 ): ProfileLayoutResult {
-  const meshes = caches.meshes ?? new RestingMeshCache();
+  const { sources, boxReasons } = read;
+  const placements: ProfilePlacement[] = job.placements.map((p) => {
+    const mesh = sources[p.part]?.mesh as (MeshData & { extentMm: number[] }) | null | undefined;
+    let transform: readonly number[] | null = p.transform ?? null;
+    if (!transform && mesh && p.orientation !== undefined) {
+      const r = rotationIndex(p.orientation);
+      if (r >= 0) transform = placementTransform(r, [0, 0, 0], mesh.extentMm, p.position);
+    }
+    return { part: p.part, transform, position: p.position, size: p.size };
+  });
+  const profiles = layoutProfiles({ parts: sources, placements, layerHeightMm: job.layerHeightMm, layers: job.layers, cache: caches.slices });
+  return { ...profiles, boxReasons: [...boxReasons] };
+}
+
+/** Each part's resting mesh (null: it counts as its box) and why a part has none. */
+export interface PartMeshes {
+  sources: ProfileSource[];
+  boxReasons: { part: number; reason: string }[];
+}
+
+/** Reads each part's file once (or takes its resting mesh from the cache). */
+export function readPartMeshes(files: readonly ProfilePartFile[], cache: RestingMeshCache = new RestingMeshCache()): PartMeshes {
+  const meshes = cache;
   const boxReasons: { part: number; reason: string }[] = [];
-  const sources: ProfileSource[] = job.parts.map((f, i) => {
+  const sources: ProfileSource[] = files.map((f, i) => {
     if (!f.watertight) {
       boxReasons.push({ part: i, reason: `"${f.filename}" is not a closed, consistently oriented mesh, so its sections are not defined` });
       return { key: f.key, mesh: null };
@@ -158,15 +181,5 @@ export function profileLayoutFromFiles(
     if (!mesh) boxReasons.push({ part: i, reason: `"${f.filename}" cannot be read as a mesh` });
     return { key: f.key, mesh };
   });
-  const placements: ProfilePlacement[] = job.placements.map((p) => {
-    const mesh = sources[p.part]?.mesh as (MeshData & { extentMm: number[] }) | null | undefined;
-    let transform: readonly number[] | null = p.transform ?? null;
-    if (!transform && mesh && p.orientation !== undefined) {
-      const r = rotationIndex(p.orientation);
-      if (r >= 0) transform = placementTransform(r, [0, 0, 0], mesh.extentMm, p.position);
-    }
-    return { part: p.part, transform, position: p.position, size: p.size };
-  });
-  const profiles = layoutProfiles({ parts: sources, placements, layerHeightMm: job.layerHeightMm, layers: job.layers, cache: caches.slices });
-  return { ...profiles, boxReasons };
+  return { sources, boxReasons };
 }

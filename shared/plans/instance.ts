@@ -4,6 +4,7 @@
  * against it, and the demo lab's seeded plan is packed from it.
  */
 import { INSTANCE_FORMAT, ORIENTATIONS, type Orientation, type PackInstanceInput, type Vec3 } from '../packing';
+import { ROTATION_COUNT, UPRIGHT_ROTATIONS } from '../geometry/rotations';
 import type { PlanOrientationRule } from '../schemas/plans';
 
 /** The orientations each rule allows. */
@@ -12,6 +13,24 @@ export const RULE_ORIENTATIONS: Record<PlanOrientationRule, readonly Orientation
   // A turn about the vertical axis keeps the part's own z up.
   keep_up: ['xyz', 'yxz'],
   fixed: ['xyz'],
+};
+
+/** The rule whose orientations an instance part allows (a plan's instance lists exactly one rule's). */
+export function ruleOfOrientations(orientations: readonly string[] | undefined): PlanOrientationRule {
+  const list = orientations ?? ORIENTATIONS;
+  if (list.length >= ORIENTATIONS.length) return 'any';
+  return list.includes('yxz') ? 'keep_up' : 'fixed';
+}
+
+/**
+ * The quarter-turn rotations (indices of shared/geometry/rotations.ts) each
+ * rule allows a part packed by its shape: any of the 24; the four turns about
+ * the vertical axis; none (the part as stored).
+ */
+export const RULE_ROTATIONS: Record<PlanOrientationRule, readonly number[]> = {
+  any: Array.from({ length: ROTATION_COUNT }, (_, k) => k),
+  keep_up: UPRIGHT_ROTATIONS,
+  fixed: [0],
 };
 
 export interface InstanceLine {

@@ -1,7 +1,8 @@
 import { z } from 'zod';
 import { PLAN_STATUSES } from '../plans/status';
 import { MAX_TOTAL_QUANTITY } from '../packing/parse';
-import { ORIENTATIONS, RESULT_FORMAT, type Orientation, type PackInstanceInput, type PackResult } from '../packing/types';
+import { ORIENTATIONS, RESULT_FORMAT, RESULT_FORMAT_V2, type Orientation, type PackInstanceInput, type PackResult } from '../packing/types';
+import { ROTATION_CODES } from '../geometry/rotations';
 import { parseInstance } from '../packing/parse';
 import { machineProfileSchema, materialProfileSchema } from '../types/profiles';
 import { ORIENTATION_RULES } from './parts';
@@ -109,10 +110,46 @@ export const packResultSchema = z.strictObject({
   elapsedMs: z.number().min(0),
 });
 
+const SIGNED_OR_BOX_CODES = [...ORIENTATIONS, ...ROTATION_CODES] as [string, ...string[]];
+const perLayer = z.array(finite).max(1_000_000, 'must be at most 1,000,000 layers');
+
+/**
+ * A layout packed by the parts' shapes: placements may overlap as boxes (a
+ * clip inside a housing), turn by any quarter turn and carry the 3MF
+ * transform from the part's resting mesh to the chamber. Whether the shapes
+ * keep apart is checked against the meshes on the server's mesh workers.
+ */
+export const packResultV2Schema = z.strictObject({
+  format: z.literal(RESULT_FORMAT_V2, { error: `must be "${RESULT_FORMAT_V2}"` }),
+  placements: z
+    .array(
+      z.strictObject({
+        id: z.string().min(1).max(200),
+        position: vec3,
+        size: vec3,
+        orientation: z.enum(SIGNED_OR_BOX_CODES, { error: 'must be a rotation code such as "+x+y+z" or "-y+x+z"' }),
+        transform: z.array(finite).length(12, 'must be the 12 numbers of a 3MF transform').optional(),
+      }),
+    )
+    .max(MAX_TOTAL_QUANTITY, `must be at most ${MAX_TOTAL_QUANTITY.toLocaleString('en-US')} placements`),
+  unplaced: z.array(z.strictObject({ id: z.string().min(1).max(200), count: z.number().int().min(0) })).max(MAX_PLAN_LINES * 4),
+  height: finite,
+  layers: z.number().int().min(0),
+  utilization: finite,
+  elapsedMs: z.number().min(0),
+  areaProfile: perLayer.optional(),
+  contourProfile: perLayer.optional(),
+  warnings: z.array(z.strictObject({ id: z.string().max(200), code: z.string().max(60), message: z.string().max(2000) })).max(MAX_PLAN_LINES * 4).optional(),
+});
+export type PackResultV2Input = z.infer<typeof packResultV2Schema>;
+
 export const layoutCreateSchema = z.strictObject({
   /** The packing instance as sent to the engine (checked by the engine's own parser). */
   instance: z.unknown(),
-  result: packResultSchema,
+  /** Packed by boxes ("pack-result/1") or by the parts' shapes ("pack-result/2"). */
+  result: z.discriminatedUnion('format', [packResultSchema, packResultV2Schema], {
+    error: `format must be "${RESULT_FORMAT}" (packed by boxes) or "${RESULT_FORMAT_V2}" (packed by shapes)`,
+  }),
   label: z.string().trim().min(1).max(120, 'must be at most 120 characters').optional(),
   /** A locked layout is kept as it is: it cannot be deleted until unlocked. */
   locked: z.boolean().optional(),

@@ -1,6 +1,6 @@
 import { RULE_ORIENTATIONS } from '../../shared/plans/instance';
 import { createHash, randomBytes } from 'node:crypto';
-import { measureMesh, prism, writeBinaryStl } from '../../shared/geometry';
+import { measureMesh, prism, writeBinaryStl, type MeshData } from '../../shared/geometry';
 import type { Running } from '../../server/boot';
 import { addMember, signUp } from './app';
 import { demoMachines, demoMaterials } from '../../shared/demo/profiles';
@@ -28,7 +28,8 @@ export async function labWithProfiles(running: Running, tag: string) {
   return { ...owner, machineId: m.body.id as string, materialId: mt.body.id as string, machine, material };
 }
 
-export type FixturePart = { name: string; sizeMm: [number, number, number]; quantity: number; orientation?: 'any' | 'keep_up' | 'fixed' };
+/** A part as its box of `sizeMm`, or as `mesh` (whose bounding box starts at the origin and measures `sizeMm`). */
+export type FixturePart = { name: string; sizeMm: [number, number, number]; quantity: number; orientation?: 'any' | 'keep_up' | 'fixed'; mesh?: MeshData };
 
 /**
  * A request with one line per part, written straight into the tables the
@@ -54,7 +55,7 @@ export async function makeRequest(
     // A real box: its STL is what the 3D views and the 3MF export read, its
     // measured metrics what the part library shows.
     const [x, y, z] = part.sizeMm;
-    const mesh = prism([[0, 0], [x, 0], [x, y], [0, y]], 0, z);
+    const mesh = part.mesh ?? prism([[0, 0], [x, 0], [x, y], [0, y]], 0, z);
     const bytes = Buffer.from(writeBinaryStl(mesh, part.name));
     const metrics = measureMesh(mesh);
     const key = createHash('sha256').update(bytes).update(randomBytes(8)).digest('hex');

@@ -1,0 +1,157 @@
+/**
+ * Keeping a layout packed by the parts' shapes ("pack-result/2"): the server
+ * is the trust boundary, so before it keeps one it checks the placed meshes
+ * themselves on a mesh worker (the same worker and files that slice the
+ * layout for its estimate). A peg standing in a frame's hole shares the
+ * frame's box but keeps clear of its walls: kept by shape, refused by boxes.
+ * Moved against a wall, or turned in a way its line's rule forbids, it is
+ * refused naming the placement. With no worker to check it, nothing is kept.
+ */
+import type { Running } from '../../server/boot';
+import { startTestApp } from '../helpers/app';
+import { createPlan, labWithProfiles, makeRequest, planInstance } from '../helpers/plans';
+import { prism, prismWithHoles } from '../../shared/geometry';
+import { ROTATION_CODES } from '../../shared/geometry/rotations';
+import { RULE_ROTATIONS } from '../../shared/plans/instance';
+import { INSTANCE_FORMAT_V2, parseInstance, type PackInstanceV2 } from '../../shared/packing';
+import { createShapePacking, summariseShapeLayout } from '../../shared/packing/shape';
+
+jest.setTimeout(240_000);
+
+const apps: Running[] = [];
+afterAll(async () => {
+  for (const app of apps.reverse()) await app.close();
+});
+
+// A 60 x 60 x 20 mm frame with a 30 x 30 mm square hole through it, and a 16 x 16 x 10 mm peg.
+const frame = prismWithHoles(
+  [[0, 0], [60, 0], [60, 60], [0, 60]],
+  [[[15, 15], [15, 45], [45, 45], [45, 15]]],
+  0,
+  20,
+);
+const peg = prism([[0, 0], [16, 0], [16, 16], [0, 16]], 0, 10);
+// Prism volumes (base area x height): 60² x 20 − 30² x 20 and 16² x 10 mm³.
+const FRAME_VOLUME = 60 * 60 * 20 - 30 * 30 * 20;
+const PEG_VOLUME = 16 * 16 * 10;
+
+async function framePlan(app: Running, tag: string) {
+  const lab = await labWithProfiles(app, tag);
+  const { lines } = await makeRequest(app, lab.labId, lab.userId, lab.materialId, [
+    { name: 'Frame', sizeMm: [60, 60, 20], quantity: 1, orientation: 'any', mesh: frame },
+    { name: 'Peg', sizeMm: [16, 16, 10], quantity: 1, orientation: 'keep_up', mesh: peg },
+  ]);
+  const plan = await createPlan(lab.agent, lab.labId, lab.machineId, lab.materialId, lines);
+  const instance = planInstance(plan.view, lab.machine, lab.material);
+  const parsed = parseInstance(instance);
+  if (!parsed.ok) throw new Error('fixture instance');
+  // The same build by shape, each line's part as its mesh, turned as its rule allows.
+  const rules = ['any', 'keep_up'] as const;
+  const byShape: PackInstanceV2 = {
+    ...parsed.instance,
+    format: INSTANCE_FORMAT_V2,
+    fit: 'shape',
+    parts: parsed.instance.parts.map((p, i) => ({
+      id: p.id,
+      size: null,
+      quantity: p.quantity,
+      rotations: [...RULE_ROTATIONS[rules[i]]],
+      meshPath: null,
+      mesh: { positions: Float64Array.from((i === 0 ? frame : peg).positions), indices: Uint32Array.from((i === 0 ? frame : peg).indices) },
+    })),
+  };
+  const [frameId, pegId] = byShape.parts.map((p) => p.id);
+  return { lab, plan, instance, byShape, frameId, pegId, url: `/api/labs/${lab.labId}/plans/${plan.id}/layouts` };
+}
+
+describe('with a mesh worker', () => {
+  let app: Running;
+  beforeAll(async () => {
+    app = await startTestApp();
+    apps.push(app);
+  });
+
+  test('a peg standing in the hole of a frame is kept by shape, with its transforms, and estimated from the meshes', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapekeep');
+    // Usable region from (8, 8, 5) (the material's margins); the peg centred in the hole: 7 mm from each wall.
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [30, 30, 5] },
+    ]);
+
+    // As boxes the two overlap, so the box rules refuse the same placements.
+    const asBoxes = await lab.agent.post(url).send({
+      instance,
+      result: { ...result, format: 'pack-result/1', placements: result.placements.map(({ transform: _t, ...p }) => ({ ...p, orientation: 'xyz' })), areaProfile: undefined, warnings: undefined },
+    });
+    expect(asBoxes.status).toBe(400);
+
+    const kept = await lab.agent.post(url).send({ instance, result });
+    expect(kept.status).toBe(201);
+    expect(kept.body.estimate.profileSource).toBe('mesh');
+    // Cavalieri: the sections times the layer height hold the two prisms' volume (within one layer's worth of outline).
+    const area: number[] = kept.body.estimate.areaPerLayerMm2;
+    const volume = area.reduce((s, a) => s + a, 0) * instance.layerHeight!;
+    expect(Math.abs(volume - (FRAME_VOLUME + PEG_VOLUME))).toBeLessThan(0.01 * (FRAME_VOLUME + PEG_VOLUME));
+
+    const back = await lab.agent.get(`${url}/${kept.body.id}`);
+    expect(back.status).toBe(200);
+    expect(back.body.resultFormat).toBe('pack-result/2');
+    expect(back.body.result.placements).toHaveLength(2);
+    expect(back.body.result.placements[1].transform).toEqual(result.placements[1].transform);
+    expect(back.body.result.placements[1].position).toEqual([30, 30, 5]);
+  });
+
+  test('a peg 1 mm from the wall of the hole is refused naming the two placements, and nothing is kept', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeclash');
+    // The hole's wall is at x = 8 + 15 = 23; the peg's side at 24: 1 mm, under the material's 3 mm spacing.
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [24, 30, 5] },
+    ]);
+    const res = await lab.agent.post(url).send({ instance, result });
+    expect(res.status).toBe(400);
+    expect(res.body.error.field).toMatch(/^result\.placements\[[01]\]$/);
+    expect(res.body.error.message).toMatch(/only 1\.0+ mm from placements\[[01]\]: the surfaces must be at least 3 mm apart/);
+    const plan = await lab.agent.get(url.replace(/\/layouts$/, ''));
+    expect(plan.body.layouts).toHaveLength(0);
+  });
+
+  test("a peg laid on its side, which its line's rule (keep up) forbids, is refused naming its rotation", async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shaperule');
+    // Allowed by the frame's rule; the check against the peg's line is the server's own.
+    const lying = ROTATION_CODES.indexOf('+x+z-y');
+    const result = summariseShapeLayout({ ...byShape, parts: byShape.parts.map((p) => ({ ...p, rotations: [...RULE_ROTATIONS.any] })) }, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: lying, position: [120, 8, 5] },
+    ]);
+    const res = await lab.agent.post(url).send({ instance, result });
+    expect(res.status).toBe(400);
+    expect(res.body.error.field).toBe('result.placements[1].orientation');
+    expect(res.body.error.message).toContain('+x+z-y is not a rotation');
+  });
+
+  test("the shape engine's own layout of the plan is kept as it is", async () => {
+    const { lab, byShape, instance, url } = await framePlan(app, 'shapeengine');
+    const result = createShapePacking({ ...byShape, timeLimitMs: 500 }, { maxRuns: 3 }).runSync();
+    expect(result.unplaced).toEqual([]);
+    const res = await lab.agent.post(url).send({ instance, result });
+    expect(res.status).toBe(201);
+    expect(res.body.estimate.profileSource).toBe('mesh');
+  });
+});
+
+test('with no mesh worker to check it in time, a layout by shape is not kept: 503, and the plan has no layout', async () => {
+  const app = await startTestApp({ meshWorker: false, layoutSliceWaitMs: 1500 });
+  apps.push(app);
+  const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapenoworker');
+  const result = summariseShapeLayout(byShape, [
+    { id: frameId, rotation: 0, position: [8, 8, 5] },
+    { id: pegId, rotation: 0, position: [30, 30, 5] },
+  ]);
+  const res = await lab.agent.post(url).send({ instance, result });
+  expect(res.status).toBe(503);
+  expect(res.body.error.code).toBe('shape_check_unavailable');
+  const plan = await lab.agent.get(url.replace(/\/layouts$/, ''));
+  expect(plan.body.layouts).toHaveLength(0);
+});
