@@ -47,6 +47,8 @@ export interface PackOptions {
 export interface Packing {
   run(hooks?: PackRunHooks): Promise<PackResult>;
   runSync(hooks?: PackRunHooks): PackResult;
+  /** The same work as steps: it pauses (yields) every `yieldMs`, for a caller that drives it inside its own loop. */
+  steps(hooks?: PackRunHooks): Generator<void, PackResult, void>;
 }
 
 interface TypeInfo {
@@ -594,6 +596,11 @@ export function createPacking(instance: PackInstance, options: PackOptions = {})
       const ctx = makeCtx(hooks);
       const it = solve(ctx);
       while (!it.next().done) await macrotask();
+      return finish(ctx);
+    },
+    *steps(hooks = {}) {
+      const ctx = makeCtx(hooks);
+      yield* solve(ctx);
       return finish(ctx);
     },
   };

@@ -296,8 +296,16 @@ function* solve(
   // (a layout to show at once), later its search for a share of the time, with the top brought down after.
   const boxShare = options.boxShare ?? 0.8;
   const byId = new Map(parts.map((p) => [p.id, p] as const));
-  const settledBoxes = (maxCompletions: number | undefined, ms: number): Placed[] => {
-    const boxes = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, maxCompletions }).runSync({ shouldStop: stop });
+  // The box engine's own pauses are this run's: progress and a stop get through while it searches.
+  const settledBoxes = function* (maxCompletions: number | undefined, ms: number): Generator<void, Placed[], void> {
+    const search = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
+    let step = search.next();
+    while (!step.done) {
+      hooks.onProgress?.(phase, share(), out.best);
+      yield;
+      step = search.next();
+    }
+    const boxes = step.value;
     const rotationOf = (code: string, part: ShapePart) => part.rotations.find((r) => codeFor(part, r) === code) ?? part.rotations[0];
     const settled = settleLayout(
       instance,
@@ -311,7 +319,7 @@ function* solve(
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
-  if (boxShare > 0 && copies.length > 0) offer(settledBoxes(0, instance.timeLimitMs));
+  if (boxShare > 0 && copies.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs));
 
   const choices = kinds.map((k) => k.profiles);
   const first = packOnce(instance, kinds, firstOrder, choices, cell, () => false);
@@ -323,7 +331,7 @@ function* solve(
   }
   if (boxShare > 0 && copies.length > 0 && !stop()) {
     // With a cap on the runs, the box search is capped too (the same result on any machine).
-    const searched = settledBoxes(options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined, Math.round(instance.timeLimitMs * boxShare));
+    const searched = yield* settledBoxes(options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined, Math.round(instance.timeLimitMs * boxShare));
     offer(searched);
     // Then its highest parts dropped again where they end lower, while they can.
     offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
