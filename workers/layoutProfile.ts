@@ -9,12 +9,12 @@
  * resting meshes and their sections stay cached), so nothing large crosses
  * from the page. Exported without the thread so it can be tested in node.
  */
-import { profileLayoutFromFiles, RestingMeshCache, type ProfileLayoutPlacement, type ProfilePartFile } from '../shared/geometry/layoutSlices';
+import { profileLayoutFromFiles, RestingMeshCache, type ProfileLayoutPlacement } from '../shared/geometry/layoutSlices';
 import { SliceCache } from '../shared/geometry/slice';
 import type { LayoutProfileJob, LayoutProfileAnswer } from './mesh.protocol';
+import { partFiles, type FetchBytes } from './partMeshes';
 
-/** Reads a stored file's bytes; null when it cannot be had (the part then counts as its box, with the reason). */
-export type FetchBytes = (url: string) => Promise<Uint8Array | null>;
+export type { FetchBytes } from './partMeshes';
 
 /** Keeps its caches between calls: a layout moved by hand is summed again without reading or slicing any file. */
 export function createLayoutProfiler(fetchBytes: FetchBytes) {
@@ -23,14 +23,7 @@ export function createLayoutProfiler(fetchBytes: FetchBytes) {
   return async function profile(job: LayoutProfileJob): Promise<LayoutProfileAnswer> {
     const problem = checkJob(job);
     if (problem) return { ok: false, message: problem };
-    const parts: ProfilePartFile[] = await Promise.all(
-      job.parts.map(async (p) => {
-        // A part without a closed mesh counts as its box, and a mesh read before needs no bytes.
-        const needed = p.watertight && p.url !== null && meshes.get(p.key) === undefined;
-        const bytes = needed ? await fetchBytes(p.url!).catch(() => null) : null;
-        return { key: p.key, bytes, filename: p.filename, unit: p.unit, split: p.split, partIndex: p.partIndex, rotationDeg: p.rotationDeg, watertight: p.watertight };
-      }),
-    );
+    const parts = await partFiles(job.parts, meshes, fetchBytes);
     const placements: ProfileLayoutPlacement[] = job.placements;
     const out = profileLayoutFromFiles({ parts, placements, layerHeightMm: job.layerHeightMm, layers: job.layers }, { meshes, slices });
     return {

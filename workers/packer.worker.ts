@@ -1,25 +1,53 @@
 /**
  * Web worker running the packing engine off the main thread. The engine hands
  * control back every few tens of milliseconds, so cancel messages get through.
+ * Packing by shape, the worker first downloads the parts' stored files (once:
+ * their resting meshes stay cached for the next run).
  */
 import * as Comlink from 'comlink';
-import { createPacking, encodeLayout, layoutTransferables, parseInstance, type PackResult } from '../shared/packing';
+import { RestingMeshCache } from '../shared/geometry/layoutSlices';
+import { createPacking, encodeLayout, layoutTransferables, parseInstance, type PackPhase, type PackResult } from '../shared/packing';
+import { createPackingV2 } from '../shared/packing/shape';
+import type { FetchBytes } from './partMeshes';
 import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions } from './protocol';
+import { shapeInstanceOf } from './shapeInstance';
 
-export function createPackerApi(): PackerApi {
+interface Run {
+  run(hooks: { shouldStop: () => boolean; onProgress: (phase: PackPhase, shareDone: number, best: PackResult | null) => void }): Promise<PackResult>;
+}
+
+/** Stored files are read with the page's session (same origin). */
+const fetchSameOrigin: FetchBytes = async (url) => {
+  const res = await fetch(url, { credentials: 'same-origin' });
+  return res.ok ? new Uint8Array(await res.arrayBuffer()) : null;
+};
+
+export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): PackerApi {
   const cancelled = new Set<number>();
   const running = new Set<number>();
+  const meshes = new RestingMeshCache();
   return {
     async start(runId: number, instance: unknown, onProgress: PackerProgressCallback, options: PackerStartOptions = {}): Promise<PackerOutcome> {
       const parsed = parseInstance(instance);
       if (!parsed.ok) return { ok: false, runId, problems: parsed.problems };
       running.add(runId);
       const every = options.progressEveryMs ?? 100;
+      const yieldMs = Math.min(50, every);
       let lastSent = -Infinity;
       let sentBest: PackResult | null = null;
       const clock = () => globalThis.performance.now();
       try {
-        const result = await createPacking(parsed.instance, { yieldMs: Math.min(50, every) }).run({
+        let packing: Run;
+        if (options.shapes) {
+          void onProgress({ phase: 'greedy', shareDone: 0 });
+          const shaped = await shapeInstanceOf(parsed.instance, options.shapes, meshes, fetchBytes);
+          if (!shaped.ok) return { ok: false, runId, problems: shaped.problems };
+          // A "pack-result/2" places parts as a "pack-result/1" does, each with its transform besides: the codec carries both.
+          packing = createPackingV2(shaped.instance, { yieldMs }) as unknown as Run;
+        } else {
+          packing = createPacking(parsed.instance, { yieldMs });
+        }
+        const result = await packing.run({
           shouldStop: () => cancelled.has(runId),
           onProgress(phase, shareDone, best) {
             const t = clock();

@@ -3,8 +3,9 @@
  * boundary as typed arrays (EncodedLayout) sent as transferables.
  */
 import type { EncodedLayout, FieldProblem, PackPhase } from '../shared/packing';
+import type { ShapeFiles } from './shapeInstance';
 
-export type { EncodedLayout, FieldProblem, PackPhase };
+export type { EncodedLayout, FieldProblem, PackPhase, ShapeFiles };
 
 export interface PackerProgress {
   phase: PackPhase;
@@ -24,12 +25,15 @@ export type PackerOutcome =
 export interface PackerStartOptions {
   /** Minimum time between two progress messages (ms); 100 when absent. */
   progressEveryMs?: number;
+  /** Pack by the parts' shapes: every part's stored file and allowed rotations; by boxes when absent. */
+  shapes?: ShapeFiles;
 }
 
 export interface PackerApi {
   /**
-   * Checks `instance` (a "pack-instance/1" object) and packs it. Resolves when
-   * done or cancelled, with the best layout; bad input resolves with the problems.
+   * Checks `instance` (a "pack-instance/1" object) and packs it, by boxes or
+   * (with `options.shapes`) by the parts' meshes. Resolves when done or
+   * cancelled, with the best layout; bad input resolves with the problems.
    */
   start(runId: number, instance: unknown, onProgress: PackerProgressCallback, options?: PackerStartOptions): Promise<PackerOutcome>;
   /** Ends the run soon with its best layout so far; unknown ids are ignored. */

@@ -1,9 +1,13 @@
 import { MessageChannel } from 'node:worker_threads';
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/umd/node-adapter';
-import { decodeLayout, parseInstance, validateLayout, type PackInstance } from '@/shared/packing';
+import { decodeLayout, INSTANCE_FORMAT_V2, parseInstance, RESULT_FORMAT_V2, validateLayout, type PackInstance, type PackResultV2 } from '@/shared/packing';
+import { validateShapeLayout } from '@/shared/packing/shape';
+import { prism, prismWithHoles, writeBinaryStl } from '@/shared/geometry';
+import { UPRIGHT_ROTATIONS } from '@/shared/geometry/rotations';
 import { createPackerApi } from '@/workers/packer.worker';
-import type { PackerApi, PackerProgress } from '@/workers/protocol';
+import type { FetchBytes } from '@/workers/partMeshes';
+import type { PackerApi, PackerProgress, ShapeFiles } from '@/workers/protocol';
 
 // Comlink opens a channel for every proxied callback; keep them to close after the tests so jest can exit.
 const opened: Array<{ close(): void }> = [];
@@ -23,9 +27,9 @@ afterAll(() => {
 });
 
 // The worker's API runs behind comlink over a real message channel, as it does in a browser worker.
-function connect() {
+function connect(fetchBytes?: FetchBytes) {
   const { port1, port2 } = new MessageChannel();
-  Comlink.expose(createPackerApi(), nodeEndpoint(port1 as never));
+  Comlink.expose(createPackerApi(fetchBytes), nodeEndpoint(port1 as never));
   const remote = Comlink.wrap<PackerApi>(nodeEndpoint(port2 as never));
   return {
     remote,
@@ -110,6 +114,123 @@ describe('packing worker protocol', () => {
       expect(outcome.ok).toBe(false);
       if (outcome.ok) return;
       expect(outcome.problems).toContainEqual({ field: 'parts[0].size[1]', message: 'must be a positive number' });
+    } finally {
+      close();
+    }
+  });
+});
+
+// Packing by shape: a 60 x 60 x 20 mm frame with a 30 x 30 mm hole through it, and a 16 x 16 x 10 mm peg.
+const frame = prismWithHoles([[0, 0], [60, 0], [60, 60], [0, 60]], [[[15, 15], [15, 45], [45, 45], [45, 15]]], 0, 20);
+const peg = prism([[0, 0], [16, 0], [16, 16], [0, 16]], 0, 10);
+const files: Record<string, Uint8Array> = { '/files/frame': writeBinaryStl(frame, 'frame'), '/files/peg': writeBinaryStl(peg, 'peg') };
+const file = (name: 'frame' | 'peg') => ({ key: `${name}|all|0,0,0`, url: `/files/${name}`, filename: `${name}.stl`, unit: 'mm' as const, split: false, partIndex: 0, rotationDeg: [0, 0, 0] as [number, number, number], watertight: true });
+/** Two frames fill the plate (136 x 66 mm usable): beside them there is no room for a peg, only in their holes or above. */
+const nestInstance = {
+  format: 'pack-instance/1',
+  chamber: [152, 82, 200],
+  margin: { xy: 8, bottom: 5, top: 5 },
+  spacing: 3,
+  layerHeight: 0.1,
+  objective: 'min-height',
+  timeLimitMs: 1500,
+  seed: 1,
+  parts: [
+    { id: 'frame', size: [60, 60, 20], quantity: 2, orientations: ['xyz', 'yxz'] },
+    { id: 'peg', size: [16, 16, 10], quantity: 2, orientations: ['xyz', 'yxz'] },
+  ],
+};
+const shapes: ShapeFiles = {
+  parts: [
+    { id: 'frame', file: file('frame'), rotations: [...UPRIGHT_ROTATIONS] },
+    { id: 'peg', file: file('peg'), rotations: [...UPRIGHT_ROTATIONS] },
+  ],
+};
+
+describe('packing by shape in the worker', () => {
+  test('downloads each file once, stands the pegs in the frames\' holes, and every layout it sends passes the check against the meshes', async () => {
+    const fetched: string[] = [];
+    const { remote, close } = connect(async (url) => {
+      fetched.push(url);
+      return files[url] ?? null;
+    });
+    const sent: PackResultV2[] = [];
+    try {
+      const onProgress = (m: PackerProgress) => {
+        if (!m.best) return;
+        const d = decodeLayout(m.best);
+        if (d.ok) sent.push(d.result as unknown as PackResultV2);
+      };
+      const outcome = await remote.start(7, nestInstance, Comlink.proxy(onProgress), { progressEveryMs: 20, shapes });
+      expect(outcome.ok).toBe(true);
+      if (!outcome.ok) return;
+      const decoded = decodeLayout(outcome.layout);
+      expect(decoded.ok).toBe(true);
+      if (!decoded.ok) return;
+      const result = decoded.result as unknown as PackResultV2;
+      expect(result.format).toBe(RESULT_FORMAT_V2);
+      expect(result.unplaced).toEqual([]);
+      expect(result.placements.every((p) => p.transform?.length === 12)).toBe(true);
+      // Nested, the build is as tall as the frames (bottom margin 5 + 20 mm); by boxes the pegs would lie on them: 5 + 20 + 3 + 10.
+      expect(result.height).toBeCloseTo(25, 6);
+      expect(fetched.sort()).toEqual(['/files/frame', '/files/peg']);
+
+      // The independent check, against the meshes themselves (surface gaps, containment, lift-out order).
+      const v2 = {
+        ...(parseInstance(nestInstance) as { ok: true; instance: PackInstance }).instance,
+        format: INSTANCE_FORMAT_V2,
+        fit: 'shape' as const,
+        parts: [
+          { id: 'frame', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: frame },
+          { id: 'peg', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: peg },
+        ],
+      };
+      // Let the last proxied callbacks arrive.
+      await new Promise((r) => setTimeout(r, 20));
+      expect(sent.length).toBeGreaterThan(0);
+      for (const layout of [...sent, result]) expect(validateShapeLayout(v2, layout)).toEqual([]);
+
+      // A second run reads the meshes kept from the first: nothing is downloaded again.
+      const again = await remote.start(8, { ...nestInstance, timeLimitMs: 300 }, Comlink.proxy(() => undefined), { shapes });
+      expect(again.ok).toBe(true);
+      expect(fetched).toHaveLength(2);
+    } finally {
+      close();
+    }
+  });
+
+  test('cancel gets through while the shape packing searches its box layout, and ends it with its best layout so far', async () => {
+    const { remote, close } = connect(async (url) => files[url] ?? null);
+    try {
+      // Far more frames and pegs than the plate holds, and a long limit: the box search alone would take 16 s.
+      const long = { ...nestInstance, chamber: [400, 400, 600], timeLimitMs: 20_000, parts: nestInstance.parts.map((p) => ({ ...p, quantity: 200 })) };
+      const started = Date.now();
+      const pending = remote.start(10, long, Comlink.proxy(() => undefined), { shapes });
+      await new Promise((r) => setTimeout(r, 1500));
+      await remote.cancel(10);
+      const outcome = await pending;
+      expect(Date.now() - started).toBeLessThan(10_000);
+      expect(outcome.ok && outcome.cancelled).toBe(true);
+      if (!outcome.ok) return;
+      const decoded = decodeLayout(outcome.layout);
+      expect(decoded.ok && decoded.result.placements.length).toBeGreaterThan(0);
+    } finally {
+      close();
+    }
+  });
+
+  test('a part without a file entry comes back as a problem naming it, before anything is downloaded', async () => {
+    const fetched: string[] = [];
+    const { remote, close } = connect(async (url) => {
+      fetched.push(url);
+      return files[url] ?? null;
+    });
+    try {
+      const outcome = await remote.start(9, nestInstance, Comlink.proxy(() => undefined), { shapes: { parts: [shapes.parts[0]] } });
+      expect(outcome.ok).toBe(false);
+      if (outcome.ok) return;
+      expect(outcome.problems).toContainEqual({ field: 'parts[1]', message: '"peg" has no stored file to pack by shape' });
+      expect(fetched).toEqual([]);
     } finally {
       close();
     }
