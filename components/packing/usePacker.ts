@@ -14,7 +14,7 @@ import {
   type PackPhase,
   type PackResult,
 } from '../../shared/packing';
-import type { PackerApi, PackerOutcome, PackerProgressCallback } from '../../workers/protocol';
+import type { PackerApi, PackerOutcome, PackerProgressCallback, ShapeFiles } from '../../workers/protocol';
 
 export type PackerStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
 
@@ -40,6 +40,8 @@ export interface UsePacker {
 export interface StartOptions {
   /** How long the worker may go without a word before it is taken as lost (crashed or out of memory). */
   lostAfterMs?: number;
+  /** Pack by the parts' shapes (their stored files and allowed rotations) instead of their boxes. */
+  shapes?: ShapeFiles;
 }
 
 export const WORKER_LOST_MESSAGE = 'The packing worker stopped answering: it may have run out of memory or crashed.';
@@ -78,9 +80,11 @@ function createClient(onWorkerError: (message: string) => void): PackerClient {
 function createInlineApi(): PackerApi {
   const cancelled = new Set<number>();
   return {
-    async start(runId, instance, onProgress) {
+    async start(runId, instance, onProgress, options) {
       const parsed = parseInstance(instance);
       if (!parsed.ok) return { ok: false, runId, problems: parsed.problems };
+      // The meshes are downloaded and packed in the packing worker only; without one the boxes are packed.
+      if (options?.shapes) return { ok: false, runId, problems: [{ field: 'fit', message: 'packing by shape needs a web worker, which this platform does not offer: pack by boxes here' }] };
       let sent: PackResult | null = null;
       const result = await createPacking(parsed.instance).run({
         shouldStop: () => cancelled.has(runId),
@@ -161,7 +165,7 @@ export function usePacker(): UsePacker {
       }
     };
     client.api
-      .start(runId, instance, onProgress)
+      .start(runId, instance, onProgress, options.shapes ? { shapes: options.shapes } : undefined)
       .then((outcome: PackerOutcome) => {
         if (runRef.current !== runId) return;
         if (!outcome.ok) {

@@ -33,6 +33,8 @@ export interface BuildPaneProps {
   onRemoveMarked: () => void;
   onClearMarked: () => void;
   editable: boolean;
+  /** The layout shown was packed by shape: its parts are not moved by hand. */
+  byShape: boolean;
   caption: string;
   live: boolean;
   /**
@@ -56,7 +58,8 @@ const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] =
 ];
 
 /** What the pointer does: a wide screen has a mouse to hover with, a phone only taps. */
-function pointerHint(wide: boolean, editable: boolean): string {
+function pointerHint(wide: boolean, editable: boolean, byShape: boolean): string {
+  if (editable && byShape) return wide ? 'Hover a part to see its line. Packed by shape: pack again to change this layout.' : 'Packed by shape: pack again to change it.';
   if (wide) return editable ? 'Hover a part to see its line; click to mark it, drag a marked part to move it.' : 'Hover a part to see its line.';
   return editable ? 'Tap a part to mark it; drag a marked part to move it.' : 'Tap a part to see its line.';
 }
@@ -75,7 +78,7 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
         {p.live ? <Text variant="caption" color="ember" testID="plan-build-live">Best so far, improving…</Text> : null}
         {/* On a phone the hint keeps a line of its own, so the part named under a finger does not move the view down. */}
         <Text variant="caption" color="inkMuted" numberOfLines={1} style={wide ? { marginLeft: 'auto' } : styles.ownLine} testID="plan-build-hover">
-          {hovered !== null ? p.describe(hovered) : pointerHint(wide, p.editable)}
+          {hovered !== null ? p.describe(hovered) : pointerHint(wide, p.editable, p.byShape)}
         </Text>
       </View>
       <View style={[styles.body, p.viewHeightPx ? { height: p.viewHeightPx } : styles.fill]}>

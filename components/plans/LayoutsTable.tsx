@@ -26,7 +26,7 @@ export function rowsOf(layouts: LayoutSummaryView[]): LayoutRow[] {
     chosen: l.chosen,
     locked: l.locked,
     matchesPlan: l.matchesPlan,
-    settings: `${l.settings.layerHeightMm} mm layers · seed ${l.settings.seed} · ${l.settings.spacingMm} mm gap · ${(l.settings.timeLimitMs / 1000).toFixed(0)} s`,
+    settings: `${l.resultFormat === 'pack-result/2' ? 'by shape · ' : 'by boxes · '}${l.settings.layerHeightMm} mm layers · seed ${l.settings.seed} · ${l.settings.spacingMm} mm gap · ${(l.settings.timeLimitMs / 1000).toFixed(0)} s`,
     working: false,
   }));
 }

@@ -155,6 +155,21 @@ export function LinesPane(p: LinesPaneProps) {
               <NumberInput value={p.options.timeLimitMs / 1000} min={0.5} max={600} onCommit={(n) => p.onOptions({ timeLimitMs: Math.round(n * 1000) })} label="Time limit in seconds" testID="pack-time" />
             </View>
           </View>
+          <Text variant="caption" color="inkMuted">Fit parts by</Text>
+          <Choice
+            compact
+            value={p.options.fit ?? 'box'}
+            onChange={(fit) => p.onOptions({ fit: fit as 'box' | 'shape' })}
+            options={[
+              { value: 'box', label: 'Boxes', testID: 'pack-fit-box', accessibilityLabel: 'Fit parts by their bounding boxes' },
+              { value: 'shape', label: 'Shapes', testID: 'pack-fit-shape', accessibilityLabel: "Fit parts by their meshes, into each other's hollows" },
+            ]}
+          />
+          {p.options.fit === 'shape' ? (
+            <Text variant="caption" color="inkFaint" testID="pack-fit-note">
+              Parts nest into each other's hollows, and every part can still be lifted straight out. The parts' files are downloaded first; a part without a closed mesh is packed by its box. The server checks the meshes again when you keep the layout.
+            </Text>
+          ) : null}
           <Text variant="caption" color="inkMuted">Layer height</Text>
           <Choice
             compact

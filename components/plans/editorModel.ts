@@ -246,7 +246,8 @@ export function editFaults(instance: PackInstanceInput, result: PackResult): Set
 /** The label a kept layout gets: how it was made, the seed of a plain packing, and its layers. */
 export function keptLabel(working: Working & { result: PackResult }): string {
   const how = working.mode === 'fill' ? 'Filled' : working.mode === 'repack' ? 'Re-packed' : working.mode === 'edit' ? 'Edited' : 'Seed';
-  return `${`${how} ${working.mode === 'pack' ? working.instance.seed : ''}`.trim()} · ${working.result.layers} layers`;
+  const byShape = working.result.placements.some((p) => !!p.transform) ? ' by shape' : '';
+  return `${`${how} ${working.mode === 'pack' ? working.instance.seed : ''}`.trim()}${byShape} · ${working.result.layers} layers`;
 }
 
 export const PACKING_WHAT: Record<WorkMode, string> = {

@@ -17,6 +17,7 @@ import {
 } from '../queries/plans';
 import { discardDraft, getPlanDraft, rebaseDraft, showLayout, type DraftLine, type DraftOptions, type PlanDraft } from '../stores/planEditor';
 import { canKeep, keptLabel, sameLines, submitBlockOf, type Working } from './editorModel';
+import { isByShape, shapeResultOf } from './byShape';
 
 export interface EditorMessage {
   tone: 'danger' | 'success' | 'info';
@@ -128,7 +129,9 @@ export function useLayoutActions(a: LayoutActionsInput) {
       if (!ok) return;
     }
     try {
-      const res = await addLayout.mutateAsync({ instance: kept.instance, result: kept.result, label: keptLabel(kept) });
+      // A packing by shape is kept as one: the server checks its meshes before it keeps it.
+      const result = isByShape(kept.result) ? shapeResultOf(kept.result) : kept.result;
+      const res = await addLayout.mutateAsync({ instance: kept.instance, result, label: keptLabel(kept) });
       a.dropWorking();
       showLayout(planId, res.id);
       say({ tone: 'success', text: `Kept as "${res.label}".` });

@@ -11,9 +11,12 @@ import { usePacker, type UsePacker } from '../packing/usePacker';
 import { editDraft, showLayout, type DraftLine, type DraftOptions, type PlanDraft } from '../stores/planEditor';
 import { fillInstanceOf, foldBest, repackOf, WORKING, type FillCandidate, type Working } from './editorModel';
 import type { MachineLike, MaterialLike } from './instance';
+import type { ShapeFiles } from '../../workers/protocol';
 
 /** A packing that has not answered this long after its time limit is taken as lost (crashed or out of memory). */
 const WORKER_GRACE_MS = 20_000;
+/** Packing by shape first downloads and reads the parts' files: more time before silence means a lost worker. */
+const SHAPE_GRACE_MS = 60_000;
 
 export interface PackingSessionInput {
   planId: string;
@@ -30,6 +33,8 @@ export interface PackingSessionInput {
   options: DraftOptions;
   /** Called as a run starts, so an old message does not stay beside a new run. */
   onRunStart: () => void;
+  /** The parts' stored files for a packing by shape (options.fit); rejects naming what could not be had. */
+  shapeFilesFor: (instance: PackInstanceInput) => Promise<ShapeFiles>;
 }
 
 export interface PackingSession {
@@ -51,7 +56,7 @@ export interface PackingSession {
   retry: (() => void) | null;
 }
 
-export function usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart }: PackingSessionInput): PackingSession {
+export function usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart, shapeFilesFor }: PackingSessionInput): PackingSession {
   const packer = usePacker();
   const [working, setWorking] = useState<Working | null>(null);
   const [lastRun, setLastRun] = useState<(() => void) | null>(null);
@@ -73,17 +78,25 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
 
   const { start } = packer;
   const run = useCallback(
-    (w: Working, engine: PackInstanceInput) => {
+    (w: Working, engine: PackInstanceInput, byShape = false) => {
       const go = () => {
         setWorking(w);
         showLayout(planId, WORKING);
-        start(engine, { lostAfterMs: (w.instance.timeLimitMs ?? options.timeLimitMs) + WORKER_GRACE_MS });
+        const limit = (w.instance.timeLimitMs ?? options.timeLimitMs) + WORKER_GRACE_MS;
+        if (!byShape) {
+          start(engine, { lostAfterMs: limit });
+          return;
+        }
+        shapeFilesFor(engine).then(
+          (shapes) => start(engine, { lostAfterMs: limit + SHAPE_GRACE_MS, shapes }),
+          (e: unknown) => setWorking({ ...w, problem: `Not packed by shape: ${e instanceof Error ? e.message : String(e)}` }),
+        );
       };
       onRunStart();
       setLastRun(() => go);
       go();
     },
-    [planId, start, options.timeLimitMs, onRunStart],
+    [planId, start, options.timeLimitMs, onRunStart, shapeFilesFor],
   );
 
   const running = packer.status === 'running';
@@ -100,7 +113,8 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
     restoreWorking: (w) => setWorking(w),
     pack: () => {
       if (!editable || running || fullInstance.parts.length === 0) return;
-      run({ mode: 'pack', instance: fullInstance, kept: [], ...base }, fullInstance);
+      // Re-packing above a locked layout and filling the rest stay by boxes: they add to a layout of boxes.
+      run({ mode: 'pack', instance: fullInstance, kept: [], ...base }, fullInstance, options.fit === 'shape');
     },
     repack: (locked) => {
       const { kept, engine } = repackOf(locked, fullInstance);

@@ -4,6 +4,7 @@
  * the chamber with its cut and marks, and the actions on the server. It hands
  * each pane its props; PlanEditor only lays the panes out.
  */
+import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { PackInstanceInput, PackResult, Vec3 } from '../../shared/packing';
 import type { PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
@@ -66,6 +67,8 @@ import { useLayoutActions, type EditorMessage } from './useLayoutActions';
 import { usePackingSession } from './usePackingSession';
 import { useWorkingProfile } from './useWorkingProfile';
 import { useCalibrationQuery } from '../queries/runs';
+import { partQueryOptions } from '../queries/parts';
+import { isByShape, shapeFilesOf } from './byShape';
 import { layoutCalibration } from '../../shared/estimate/calibration';
 
 /** One arrow key press moves the marked parts this far (with Shift, 1 mm). */
@@ -115,7 +118,21 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   // ---- packing -------------------------------------------------------------------
   const [message, say] = useState<EditorMessage | null>(null);
   const clearMessage = useCallback(() => say(null), []);
-  const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart: clearMessage });
+  // Packing by shape: the worker downloads each line's stored file; the records say where it is and how the part is turned.
+  const queryClient = useQueryClient();
+  const shapeFilesFor = useCallback(
+    async (instance: PackInstanceInput) => {
+      const partIdOf = (lineId: string) => lineInfo.get(lineId)?.partId;
+      const ids = [...new Set(instance.parts.map((p) => partIdOf(p.id)).filter((id): id is string => !!id))];
+      const records = await Promise.all(ids.map((id) => queryClient.ensureQueryData(partQueryOptions(lab.id, id))));
+      const byId = new Map(records.map((r) => [r.id, r] as const));
+      const files = shapeFilesOf(lab.id, instance, (lineId) => byId.get(partIdOf(lineId) ?? ''));
+      if (!files) throw new Error("a line's part is not in the library any more");
+      return files;
+    },
+    [queryClient, lab.id, lineInfo],
+  );
+  const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart: clearMessage, shapeFilesFor });
   const { working, packer, running } = session;
   const stale = isStale(working, fullInstance);
 
@@ -127,6 +144,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const shownResult: PackResult | null = showingWorking ? working.result : (stored.data?.result ?? null);
   const shownInstance: PackInstanceInput | null = showingWorking ? working.instance : (stored.data?.instance ?? null);
   const shownSummary = storedId ? (plan.layouts.find((l) => l.id === storedId) ?? null) : null;
+  // Parts packed by shape may share box space: the checks by hand (boxes) do not apply, so such a layout changes only by packing.
+  const shownByShape = isByShape(shownResult);
 
   const partNames = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.partName] as const)), [lineInfo]);
   const volumeByLine = useMemo(() => new Map([...lineInfo].map(([id, i]) => [id, i.volumeMm3] as const)), [lineInfo]);
@@ -157,9 +176,10 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const viewResult = dragged ?? shownResult;
   // A layout changed by hand is checked as it changes: the parts it leaves at fault are drawn in the warning colour.
   const faults = useMemo(() => {
+    if (shownByShape) return new Set<number>();
     if (dragged && shownInstance) return editFaults(shownInstance, dragged);
     return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result) : new Set<number>();
-  }, [dragged, shownInstance, showingWorking, working]);
+  }, [dragged, shownInstance, showingWorking, working, shownByShape]);
   const placements = useMemo(() => {
     if (!viewResult) return EMPTY_PLACEMENTS;
     const p = toChamberPlacements(viewResult, colourOrder);
@@ -233,8 +253,12 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     setUndoable([]);
     session.dropWorking();
   };
+  const refuseByShape = () => {
+    say({ tone: 'info', text: "This layout was packed by shape: its parts nest into each other, and changes by hand are checked by boxes only. Pack again to change it." });
+  };
   const onRemoveMarked = () => {
     if (!shownInstance || !shownResult) return;
+    if (shownByShape) return refuseByShape();
     const next = withoutPlacements(shownInstance, shownResult, new Set(marked));
     if (!next) return;
     remember();
@@ -245,6 +269,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const editable3d = editable && !running && !!shownInstance && !!shownResult && marked.length > 0;
   const onHandEdit = (e: HandEdit) => {
     if (!editable3d || !shownInstance || !shownResult) return;
+    if (shownByShape) return refuseByShape();
     const out = handEdited(shownInstance, shownResult, new Set(marked), e);
     if (!out.ok) {
       say({ tone: 'danger', text: out.message });
@@ -258,7 +283,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     setMarked(keep);
   };
   // A drag starts on a marked part; it moves every marked part, and its release is one change by hand like a key's.
-  const onDragStart = (i: number) => editable3d && marked.includes(i);
+  const onDragStart = (i: number) => editable3d && !shownByShape && marked.includes(i);
   const onDrag = (dxMm: number, dyMm: number, phase: 'move' | 'end' | 'cancel') => {
     if (phase === 'move') {
       setDragMm([dxMm, dyMm]);
@@ -271,13 +296,21 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
 
   // ---- re-pack what is new, fill the rest ------------------------------------------
   const lockedInstance = !showingWorking && shownSummary?.locked && stored.data ? stored.data.instance : null;
-  const repack = useMemo(() => repackAvailability(lockedInstance, fullInstance), [lockedInstance, fullInstance]);
+  const repack = useMemo(
+    () =>
+      lockedInstance && shownByShape
+        ? { available: false, reason: 'Re-packing adds parts by their boxes above a layout of boxes: pack the whole plan again by shape instead.' }
+        : repackAvailability(lockedInstance, fullInstance),
+    [lockedInstance, fullInstance, shownByShape],
+  );
   const onRepack = () => {
     if (stored.data && repack.available) session.repack(stored.data.result);
   };
   const fillCandidates = useMemo(() => fillCandidatesOf(openLines.data ?? [], lines), [openLines.data, lines]);
   const fillAvailable = fillCandidates.reduce((s, c) => s + c.extra, 0);
-  const fillReason = fillReasonOf(shownResult, shownInstance, fullInstance, fillAvailable);
+  const fillReason = shownByShape
+    ? 'Filling adds parts by their boxes above a layout of boxes: add the lines and pack again by shape instead.'
+    : fillReasonOf(shownResult, shownInstance, fullInstance, fillAvailable);
   const onFill = () => {
     if (shownResult && shownInstance && !fillReason) session.fill(shownResult.placements, fillCandidates);
   };
@@ -385,6 +418,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     onHandEdit: editable3d ? onHandEdit : null,
     onRemoveMarked,
     onClearMarked: clearMarked,
+    byShape: shownByShape,
     editable,
     caption: shownLabel,
     live: running && showingWorking && !!working?.result,

@@ -11,7 +11,7 @@ import { layerCount } from '../../shared/estimate';
 import type { ProfileCounts } from '../../shared/estimate';
 import type { PackInstanceInput, PackResult } from '../../shared/packing';
 import type { PartView } from '../../shared/schemas/parts';
-import type { LayoutProfileJob } from '../../workers/mesh.protocol';
+import type { LayoutProfileJob, LayoutProfilePart } from '../../workers/mesh.protocol';
 import { partFileUrl, partQueryOptions } from '../queries/parts';
 import { profileLayoutInWorker } from '../viewer';
 
@@ -24,6 +24,22 @@ const SETTLE_MS = 250;
 /** The part's key as the server's slicing names it: the file, the part in it and the stored turns. */
 function partKey(part: PartView): string {
   return `${part.file.sha256}|${part.file.split ? part.file.partIndex : 'all'}|${part.rotationDeg.join(',')}`;
+}
+
+/** A part's stored file as a worker downloads and reads it. */
+export function profilePartOf(labId: string, part: PartView): LayoutProfilePart {
+  // Only a closed, consistently oriented mesh has sections (the server's rule); the others count as boxes.
+  const closed = part.watertight && part.oriented;
+  return {
+    key: partKey(part),
+    url: closed ? partFileUrl(labId, part.id) : null,
+    filename: part.file.name,
+    unit: part.file.unit,
+    split: part.file.split,
+    partIndex: part.file.split ? part.file.partIndex : 0,
+    rotationDeg: [part.rotationDeg[0], part.rotationDeg[1], part.rotationDeg[2]],
+    watertight: closed,
+  };
 }
 
 /** The job for the mesh worker, or null when a part's record is missing or there is nothing to slice. */
@@ -47,18 +63,7 @@ export function profileJob(
     if (k === undefined) {
       k = job.parts.length;
       index.set(part.id, k);
-      // Only a closed, consistently oriented mesh has sections (the server's rule); the others count as boxes.
-      const closed = part.watertight && part.oriented;
-      job.parts.push({
-        key: partKey(part),
-        url: closed ? partFileUrl(labId, part.id) : null,
-        filename: part.file.name,
-        unit: part.file.unit,
-        split: part.file.split,
-        partIndex: part.file.split ? part.file.partIndex : 0,
-        rotationDeg: [part.rotationDeg[0], part.rotationDeg[1], part.rotationDeg[2]],
-        watertight: closed,
-      });
+      job.parts.push(profilePartOf(labId, part));
       names.push(part.name);
     }
     const transform = (p as { transform?: number[] }).transform;

@@ -11,6 +11,7 @@ import {
   planMovedSchema,
   planViewSchema,
   type LayoutView,
+  type PackResultV2Input,
   type PlanOrientationRule,
 } from '../../shared/schemas/plans';
 import type { PlanStatus } from '../../shared/plans/status';
@@ -110,7 +111,7 @@ export function useSavePlanMutation(labId: string, planId: string) {
 export function useAddLayoutMutation(labId: string, planId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: { instance: PackInstanceInput; result: PackResult; label?: string; locked?: boolean }) =>
+    mutationFn: (input: { instance: PackInstanceInput; result: PackResult | PackResultV2Input; label?: string; locked?: boolean }) =>
       api(`/labs/${labId}/plans/${planId}/layouts`, { method: 'POST', body: input, schema: layoutCreatedSchema }),
     onSuccess: () => refreshPlan(qc, labId, planId),
   });

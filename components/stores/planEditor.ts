@@ -22,6 +22,8 @@ export interface DraftOptions {
   spacingMm: number;
   timeLimitMs: number;
   layerHeightMm: number;
+  /** Pack the parts by their boxes (the default) or by their shapes. */
+  fit?: 'box' | 'shape';
 }
 
 export interface PlanDraft {
