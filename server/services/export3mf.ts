@@ -59,7 +59,8 @@ export function export3mfService(db: Database, deps: { storage: FileStorage; lay
         if (!part) throw new AppError(500, 'corrupt_layout', `Placement ${i} names a line that is not in the plan.`);
         const object = objectOf.get(part.partId)!;
         // The resting mesh fills [0, extent]; the placement's rotation and corner give its 3MF transform.
-        const transform = placementTransform(rotationIndex(p.orientation), [0, 0, 0], object.extentMm, p.position);
+        // A layout packed by shape carries the transform itself (its rotation may be any of the 24, not only a box orientation).
+        const transform = p.transform ?? placementTransform(rotationIndex(p.orientation), [0, 0, 0], object.extentMm, p.position);
         return { objectIndex: object.index, transform, partNumber: `${i + 1}` };
       });
       return { name: plan.name, bytes: write3mf(objects, items, 'millimeter') };

@@ -3,8 +3,11 @@ import { startTestApp } from '../helpers/app';
 import { labWithProfiles } from '../helpers/plans';
 import type { Running } from '../../server/boot';
 import { labWithCrew, queuedPlan } from './runs-fixtures';
-import { parse3mf, read3mfModel, writeBinaryStl } from '../../shared/geometry';
-import { parseInstance, summariseLayout, type PackInstanceInput, type Placement } from '../../shared/packing';
+import { parse3mf, prism, read3mfModel, writeBinaryStl } from '../../shared/geometry';
+import { ROTATION_CODES } from '../../shared/geometry/rotations';
+import { INSTANCE_FORMAT_V2, parseInstance, summariseLayout, type PackInstanceInput, type PackResult, type Placement } from '../../shared/packing';
+import { summariseShapeLayout } from '../../shared/packing/shape';
+import { RULE_ROTATIONS } from '../../shared/plans/instance';
 
 jest.setTimeout(30_000);
 
@@ -132,5 +135,36 @@ describe('the packed build as a 3MF package', () => {
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('part_file_unreadable');
     expect(res.body.error.message).toContain('"Bar"');
+  });
+
+  test('a layout packed by shape exports each part by its own transform: an L turned half a turn about z lies mirrored across its box, not as stored', async () => {
+    // An L of 30 x 20 mm, 8 mm thick: its six corners average x = 13.3 mm, left of its box's middle (15 mm).
+    const ell = prism([[0, 0], [30, 0], [30, 10], [10, 10], [10, 20], [0, 20]], 0, 8);
+    const halfTurn = ROTATION_CODES.indexOf('-x-y+z');
+    const lab = await labWithCrew(running, 'exportshape');
+    const shapeLayout = (input: PackInstanceInput) => {
+      const parsed = parseInstance(input);
+      if (!parsed.ok) throw new Error('bad instance');
+      const parts = parsed.instance.parts.map((p) => ({ id: p.id, size: null, quantity: p.quantity, rotations: [...RULE_ROTATIONS.any], meshPath: null, mesh: ell }));
+      // Half a turn has the same extents as none: only the transform tells them apart.
+      return summariseShapeLayout({ ...parsed.instance, format: INSTANCE_FORMAT_V2, fit: 'shape', parts }, [{ id: parts[0].id, rotation: halfTurn, position: [10, 10, 5] }]) as unknown as PackResult;
+    };
+    const plan = await queuedPlan(running, lab, [{ name: 'Ell', sizeMm: [30, 20, 8], quantity: 1, mesh: ell }], { name: 'Ells', layout: shapeLayout });
+    const res = await lab.operator.agent.get(`${plan.base}/build.3mf`).buffer(true).parse(binary);
+    expect(res.status).toBe(200);
+    const parsed = parse3mf(new Uint8Array(res.body), { filename: 'Ells.3mf', splitObjects: true });
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+    expect(parsed.parts).toHaveLength(1);
+    const p = parsed.parts[0].positions;
+    let minX = Infinity, maxX = -Infinity, sumX = 0;
+    for (let v = 0; v < p.length; v += 3) {
+      minX = Math.min(minX, p[v]);
+      maxX = Math.max(maxX, p[v]);
+      sumX += p[v];
+    }
+    expect(minX).toBeCloseTo(10, 9);
+    expect(maxX).toBeCloseTo(40, 9);
+    // Turned half a turn, the corners average 30 - 13.3 = 16.7 mm from the box's low side (as stored they would average 13.3).
+    expect(sumX / (p.length / 3) - minX).toBeCloseTo(30 - 80 / 6, 9);
   });
 });
