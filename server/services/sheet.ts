@@ -141,6 +141,12 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
       const hSide = drawView(doc, 'Side view (x, z)', chamber, placements, [0, 2], 1, left + half + 20, viewTop, half, 210);
       doc.x = left;
       doc.y = viewTop + Math.max(hTop, hSide) + 20;
+      if (layout.resultFormat === 'pack-result/2') {
+        doc.font('Helvetica').fontSize(8).fillColor(MUTED);
+        doc.text("Packed by the parts' shapes: the views draw each part's bounding box, so the boxes of parts nested in each other overlap. The build file (3MF) holds each part's exact placement.");
+        doc.moveDown(0.8);
+        doc.fillColor(INK);
+      }
 
       doc.fillColor(INK).font('Helvetica-Bold').fontSize(11).text('Parts by request line');
       doc.font('Helvetica').fontSize(9);
