@@ -23,21 +23,26 @@
  * dropped into the height map; until the time limit, other orders and
  * rotation choices are tried and the lowest layout kept.
  */
-import { placementTransform, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
+import { extentCode, placementTransform, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
 import { createRandom, type Random } from '../prng';
-import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2 } from '../types';
+import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2, Vec3 } from '../types';
 import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
 import { boxInstance, fromBoxResult } from './boxfit';
 import { createPacking, packSync } from '../engine';
-import { settleLayout, lowerTheTop } from './settle';
+import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
+import { buildNests, nestParts, type Nest } from './nest';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
+
+const V1_CODES = ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'];
+/** Box ids of nests in the box engine's instance (nests are not boxed when a part's id starts so). */
+const NEST_ID = '\u0000nest:';
 
 export interface ShapeRunHooks {
   onProgress?: (phase: ShapePhase, shareDone: number, best: PackResultV2 | null) => void;
@@ -53,6 +58,10 @@ export interface ShapeOptions {
   cellMm?: number;
   /** Share of the time limit the box engine searches for the layout that is settled by shape (default 0.8; 0: no box layout). */
   boxShare?: number;
+  /** Fill the parts' hollows before packing (./nest.ts); true by default. */
+  nest?: boolean;
+  /** Share of the box search given to the nests' boxes when there are nests (default 0.6; the parts' own boxes get the rest). */
+  nestShare?: number;
 }
 
 export interface ShapePacking {
@@ -168,16 +177,17 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
  * dropped there first, larger kinds first: the hollows are filled before they
  * are covered.
  */
-function packOnce(instance: PackInstanceV2, kinds: Kind[], order: number[], choices: Profile[][], cell: number, abort: () => boolean): Placed[] | null {
+function packOnce(instance: PackInstanceV2, kinds: Kind[], nests: readonly Nest[], order: number[], choices: Profile[][], cell: number, abort: () => boolean): Placed[] | null {
   const G = newGrid(instance, cell);
   const placed: Placed[] = [];
-  const left = new Array<number>(kinds.length).fill(0);
+  const count = kinds.length + nests.length;
+  const left = new Array<number>(count).fill(0);
   for (const k of order) left[k]++;
   // Kinds in the order of their first copy.
   const fillOrder: number[] = [];
   for (const k of order) if (!fillOrder.includes(k)) fillOrder.push(k);
   /** The load's top when a kind last failed to drop in below it (it cannot fit under that top again). */
-  const failedAt = new Array<number>(kinds.length).fill(-Infinity);
+  const failedAt = new Array<number>(count).fill(-Infinity);
   let top = G.origin[2];
   let steps = 0;
   const place = (kind: number, bound: number): boolean => {
@@ -188,7 +198,13 @@ function packOnce(instance: PackInstanceV2, kinds: Kind[], order: number[], choi
     }
     if (!best) return false;
     drop(G, best.p, best.u, best.v, best.z);
-    placed.push({ kind, profile: best.p, position: [G.origin[0] + best.u * cell, G.origin[1] + best.v * cell, best.z] });
+    if (kind < kinds.length) placed.push({ kind, profile: best.p, position: [G.origin[0] + best.u * cell, G.origin[1] + best.v * cell, best.z] });
+    else {
+      // A nest: its holder, then what it holds, each where it lies in the nest.
+      for (const m of nestParts(nests[kind - kinds.length])) {
+        placed.push({ kind: m.kind, profile: m.profile, position: [G.origin[0] + (best.u + m.du) * cell, G.origin[1] + (best.v + m.dv) * cell, best.z + m.dz] });
+      }
+    }
     left[kind]--;
     if (best.score > top) top = best.score;
     return true;
@@ -268,11 +284,17 @@ function* solve(
   const random: Random = createRandom(instance.seed);
 
   // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
+  // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
+  const { nests, used } =
+    options.nest === false
+      ? { nests: [] as Nest[], used: kinds.map(() => 0) }
+      : buildNests(kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles })), cell, instance.spacing, undefined, stop);
   const copies: number[] = [];
   kinds.forEach((k, i) => {
-    if (k.fits) for (let c = 0; c < k.part.quantity; c++) copies.push(i);
+    if (k.fits) for (let c = used[i]; c < k.part.quantity; c++) copies.push(i);
   });
-  const weight = kinds.map((k) => (k.fits ? k.profiles[0].cost : 0));
+  nests.forEach((_, n) => copies.push(kinds.length + n));
+  const weight = [...kinds.map((k) => (k.fits ? k.profiles[0].cost : 0)), ...nests.map((n) => n.profile.cost)];
   const firstOrder = [...copies].sort((a, b) => weight[b] - weight[a] || a - b);
   let bestHeight = Infinity;
   let bestPlacedCount = -1;
@@ -297,8 +319,20 @@ function* solve(
   const boxShare = options.boxShare ?? 0.8;
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   // The box engine's own pauses are this run's: progress and a stop get through while it searches.
-  const settledBoxes = function* (maxCompletions: number | undefined, ms: number): Generator<void, Placed[], void> {
-    const search = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
+  // With `withNests`, each nest is one box (turned only as it was filled) and its members follow it.
+  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, withNests = false): Generator<void, Placed[], void> {
+    const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
+    const nestId = (j: number) => `${NEST_ID}${j}`;
+    const boxes1 = withNests && !parts.some((p) => p.id.startsWith(NEST_ID))
+      ? {
+          ...base,
+          parts: [
+            ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - used[i] })).filter((p) => p.quantity > 0),
+            ...nests.map((n, j) => ({ id: nestId(j), size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3, quantity: 1, orientations: ['xyz' as const] })),
+          ],
+        }
+      : base;
+    const search = createPacking(boxes1, { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
     let step = search.next();
     while (!step.done) {
       hooks.onProgress?.(phase, share(), out.best);
@@ -306,23 +340,33 @@ function* solve(
       step = search.next();
     }
     const boxes = step.value;
-    const rotationOf = (code: string, part: ShapePart) => part.rotations.find((r) => codeFor(part, r) === code) ?? part.rotations[0];
-    const settled = settleLayout(
-      instance,
-      parts,
-      fromBoxResult(instance, parts, boxes).placements.map((pl) => {
-        const part = byId.get(pl.id)!;
-        return { part: part.index, rotation: rotationOf(pl.orientation, part), position: [pl.position[0], pl.position[1], pl.position[2]] };
-      }),
-      { stopped: stop },
-    );
+    const items: SettleItem[] = [];
+    // Bottom first, as the settling needs them; a nest's holder before what it holds.
+    for (const pl of [...boxes.placements].sort((a, b) => a.position[2] - b.position[2])) {
+      if (pl.id.startsWith(NEST_ID)) {
+        const n = nests[Number(pl.id.slice(NEST_ID.length))];
+        for (const m of nestParts(n)) {
+          items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + m.du * cell, pl.position[1] + m.dv * cell, pl.position[2] + m.dz] });
+        }
+        continue;
+      }
+      const part = byId.get(pl.id)!;
+      // The allowed rotation with these extents; the box orientation's own index when allowed.
+      const v1 = V1_CODES.indexOf(pl.orientation);
+      const rotation = part.rotations.includes(v1) ? v1 : (part.rotations.find((k) => extentCode(k) === pl.orientation) ?? part.rotations[0]);
+      items.push({ part: part.index, rotation, position: [pl.position[0], pl.position[1], pl.position[2]] });
+    }
+    const settled = settleLayout(instance, parts, items, { stopped: stop });
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
-  if (boxShare > 0 && copies.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs));
+  if (boxShare > 0 && copies.length > 0) {
+    offer(yield* settledBoxes(0, instance.timeLimitMs));
+    if (nests.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs, true));
+  }
 
-  const choices = kinds.map((k) => k.profiles);
-  const first = packOnce(instance, kinds, firstOrder, choices, cell, () => false);
+  const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
+  const first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => false);
   runs++;
   if (first) offer(first);
   if (copies.length === 0) {
@@ -331,8 +375,20 @@ function* solve(
   }
   if (boxShare > 0 && copies.length > 0 && !stop()) {
     // With a cap on the runs, the box search is capped too (the same result on any machine).
-    const searched = yield* settledBoxes(options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined, Math.round(instance.timeLimitMs * boxShare));
-    offer(searched);
+    // With nests, their boxes get most of the box search; the parts' own boxes the rest, so a packing by
+    // shape is never taller than the boxes even where nesting does not pay (few parts, little to hold).
+    const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
+    const nestShare = nests.length > 0 ? (options.nestShare ?? 0.6) : 0;
+    let searched: Placed[] = [];
+    if (nestShare > 0) {
+      searched = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * nestShare), true);
+      offer(searched);
+    }
+    if (nestShare < 1 && !stop()) {
+      const plain = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * (1 - nestShare)));
+      offer(plain);
+      if (searched.length === 0 || heightOf(plain) < heightOf(searched)) searched = plain;
+    }
     // Then its highest parts dropped again where they end lower, while they can.
     offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
     runs++;
@@ -362,7 +418,7 @@ function* solve(
         nextChoices[k] = random() < 0.5 ? [pick] : [...new Set([...kinds[k].profiles, pick])];
       }
     }
-    const placed = packOnce(instance, kinds, nextOrder, nextChoices, cell, () => now() >= deadline || stop());
+    const placed = packOnce(instance, kinds, nests, nextOrder, nextChoices, cell, () => now() >= deadline || stop());
     runs++;
     if (placed) {
       const h = heightOf(placed);
