@@ -23,7 +23,7 @@
  * dropped into the height map; until the time limit, other orders and
  * rotation choices are tried and the lowest layout kept.
  */
-import { extentCode, placementTransform, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
+import { composeRotations, extentCode, placementTransform, ROTATION_CODES, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
 import { createRandom, type Random } from '../prng';
 import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2, Vec3 } from '../types';
@@ -41,6 +41,8 @@ import { buildNests, nestParts, type Nest } from './nest';
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
 const V1_CODES = ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'];
+/** A quarter turn about +z: chamber (x, y) -> (-y, x). */
+const QUARTER_Z = ROTATION_CODES.indexOf('-y+x+z');
 /** Box ids of nests in the box engine's instance (nests are not boxed when a part's id starts so). */
 const NEST_ID = '\u0000nest:';
 
@@ -319,7 +321,8 @@ function* solve(
   const boxShare = options.boxShare ?? 0.8;
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   // The box engine's own pauses are this run's: progress and a stop get through while it searches.
-  // With `withNests`, each nest is one box (turned only as it was filled) and its members follow it.
+  // With `withNests`, each nest is one box, turned a quarter about z when all it holds may turn so, its members following it.
+  const turnable = nests.map((n) => nestParts(n).every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
   const settledBoxes = function* (maxCompletions: number | undefined, ms: number, withNests = false): Generator<void, Placed[], void> {
     const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
     const nestId = (j: number) => `${NEST_ID}${j}`;
@@ -328,7 +331,12 @@ function* solve(
           ...base,
           parts: [
             ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - used[i] })).filter((p) => p.quantity > 0),
-            ...nests.map((n, j) => ({ id: nestId(j), size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3, quantity: 1, orientations: ['xyz' as const] })),
+            ...nests.map((n, j) => ({
+              id: nestId(j),
+              size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3,
+              quantity: 1,
+              orientations: turnable[j] ? ['xyz' as const, 'yxz' as const] : ['xyz' as const],
+            })),
           ],
         }
       : base;
@@ -345,8 +353,20 @@ function* solve(
     for (const pl of [...boxes.placements].sort((a, b) => a.position[2] - b.position[2])) {
       if (pl.id.startsWith(NEST_ID)) {
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
+        const turned = pl.orientation === 'yxz';
         for (const m of nestParts(n)) {
-          items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + m.du * cell, pl.position[1] + m.dv * cell, pl.position[2] + m.dz] });
+          const [mx, my] = [m.du * cell, m.dv * cell];
+          if (!turned) {
+            items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + mx, pl.position[1] + my, pl.position[2] + m.dz] });
+            continue;
+          }
+          // The whole nest a quarter turn about +z ((x, y) -> (-y, x)), its box's corner kept at the placed one.
+          const ey = m.profile.extent[1];
+          items.push({
+            part: m.kind,
+            rotation: composeRotations(m.profile.rotation, QUARTER_Z),
+            position: [pl.position[0] + n.profile.extent[1] - my - ey, pl.position[1] + mx, pl.position[2] + m.dz],
+          });
         }
         continue;
       }
