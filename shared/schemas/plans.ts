@@ -90,24 +90,28 @@ export const openLinesQuerySchema = z.strictObject({
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
 const vec3 = z.tuple([finite, finite, finite], { error: 'must be three numbers' });
 
-/** The packing result's shape; whether it is a valid layout is the layout validator's call. */
-export const packResultSchema = z.strictObject({
-  format: z.literal(RESULT_FORMAT, { error: `must be "${RESULT_FORMAT}"` }),
-  placements: z
-    .array(
-      z.strictObject({
-        id: z.string().min(1).max(200),
-        position: vec3,
-        size: vec3,
-        orientation: z.enum(ORIENTATIONS as unknown as [string, ...string[]], { error: `must be one of ${ORIENTATIONS.join(', ')}` }),
-      }),
-    )
-    .max(MAX_TOTAL_QUANTITY, `must be at most ${MAX_TOTAL_QUANTITY.toLocaleString('en-US')} placements`),
+/** What both result formats share: a placement's part and box, and the summary. */
+const placementBase = { id: z.string().min(1).max(200), position: vec3, size: vec3 };
+const placementsOf = <T extends z.ZodType>(placement: T) =>
+  z.array(placement).max(MAX_TOTAL_QUANTITY, `must be at most ${MAX_TOTAL_QUANTITY.toLocaleString('en-US')} placements`);
+const resultSummary = {
   unplaced: z.array(z.strictObject({ id: z.string().min(1).max(200), count: z.number().int().min(0) })).max(MAX_PLAN_LINES * 4),
   height: finite,
   layers: z.number().int().min(0),
   utilization: finite,
   elapsedMs: z.number().min(0),
+};
+
+/** The packing result's shape; whether it is a valid layout is the layout validator's call. */
+export const packResultSchema = z.strictObject({
+  format: z.literal(RESULT_FORMAT, { error: `must be "${RESULT_FORMAT}"` }),
+  placements: placementsOf(
+    z.strictObject({
+      ...placementBase,
+      orientation: z.enum(ORIENTATIONS as unknown as [string, ...string[]], { error: `must be one of ${ORIENTATIONS.join(', ')}` }),
+    }),
+  ),
+  ...resultSummary,
 });
 
 const SIGNED_OR_BOX_CODES = [...ORIENTATIONS, ...ROTATION_CODES] as [string, ...string[]];
@@ -121,22 +125,14 @@ const perLayer = z.array(finite).max(1_000_000, 'must be at most 1,000,000 layer
  */
 export const packResultV2Schema = z.strictObject({
   format: z.literal(RESULT_FORMAT_V2, { error: `must be "${RESULT_FORMAT_V2}"` }),
-  placements: z
-    .array(
-      z.strictObject({
-        id: z.string().min(1).max(200),
-        position: vec3,
-        size: vec3,
-        orientation: z.enum(SIGNED_OR_BOX_CODES, { error: 'must be a rotation code such as "+x+y+z" or "-y+x+z"' }),
-        transform: z.array(finite).length(12, 'must be the 12 numbers of a 3MF transform').optional(),
-      }),
-    )
-    .max(MAX_TOTAL_QUANTITY, `must be at most ${MAX_TOTAL_QUANTITY.toLocaleString('en-US')} placements`),
-  unplaced: z.array(z.strictObject({ id: z.string().min(1).max(200), count: z.number().int().min(0) })).max(MAX_PLAN_LINES * 4),
-  height: finite,
-  layers: z.number().int().min(0),
-  utilization: finite,
-  elapsedMs: z.number().min(0),
+  placements: placementsOf(
+    z.strictObject({
+      ...placementBase,
+      orientation: z.enum(SIGNED_OR_BOX_CODES, { error: 'must be a rotation code such as "+x+y+z" or "-y+x+z"' }),
+      transform: z.array(finite).length(12, 'must be the 12 numbers of a 3MF transform').optional(),
+    }),
+  ),
+  ...resultSummary,
   areaProfile: perLayer.optional(),
   contourProfile: perLayer.optional(),
   warnings: z.array(z.strictObject({ id: z.string().max(200), code: z.string().max(60), message: z.string().max(2000) })).max(MAX_PLAN_LINES * 4).optional(),

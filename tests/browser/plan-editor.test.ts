@@ -1,9 +1,6 @@
 // Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
-import request from 'supertest';
 import type { CDPSession, Page } from 'playwright-core';
-import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
-import { makeRequest } from '../helpers/plans';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 
 jest.setTimeout(300_000);
 
@@ -15,30 +12,16 @@ afterAll(async () => {
   await served?.close();
 });
 
-/**
- * An urgent open request of this test's own in the demo lab, so a new plan has parts to take whatever the other
- * browser tests sharing the database have planned already (the new plan form starts with the most urgent lines).
- */
 let requests = 0;
 async function openLinesOfOurOwn() {
-  const owner = request.agent(served.running.app);
-  owner.set('Origin', served.baseUrl);
-  const signedIn = await owner.post('/api/auth/sign-in').send({ email: 'owner@tinkerfin.example', password: DEMO_PASSWORD });
-  if (signedIn.status !== 200) throw new Error(`sign-in failed: ${signedIn.status}`);
-  const me = (await owner.get('/api/me')).body;
-  const labId = me.labs[0].id as string;
-  const material = (await owner.get(`/api/labs/${labId}/materials`)).body[0];
   const n = ++requests;
-  await makeRequest(
-    served.running,
-    labId,
-    me.user.id,
-    material.id,
+  await urgentDemoRequest(
+    served,
     [
       { name: `Editor bracket ${n}`, sizeMm: [40, 30, 12], quantity: 12 },
       { name: `Editor clip ${n}`, sizeMm: [20, 12, 8], quantity: 24 },
     ],
-    { title: `Editor check ${n}`, dueDate: '2026-12-03', priority: 'urgent' },
+    `Editor check ${n}`,
   );
 }
 

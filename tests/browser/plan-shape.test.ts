@@ -1,11 +1,8 @@
 // Packing a plan by the parts' shapes in the editor: the choice, the packing worker downloading the parts' files,
 // keeping the layout (the server checks the meshes), and what a layout by shape no longer offers (hand moves, fill).
-import request from 'supertest';
 import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
-import { makeRequest } from '../helpers/plans';
+import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 import { prism, prismWithHoles } from '../../shared/geometry';
-import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
 
 jest.setTimeout(300_000);
 
@@ -24,24 +21,14 @@ const peg = prism([[0, 0], [16, 0], [16, 16], [0, 16]], 0, 10);
 /** An urgent request of frames and pegs in the demo lab, so the new plan form starts with them. */
 let requests = 0;
 async function framesAndPegs() {
-  const owner = request.agent(served.running.app);
-  owner.set('Origin', served.baseUrl);
-  const signedIn = await owner.post('/api/auth/sign-in').send({ email: 'owner@tinkerfin.example', password: DEMO_PASSWORD });
-  if (signedIn.status !== 200) throw new Error(`sign-in failed: ${signedIn.status}`);
-  const me = (await owner.get('/api/me')).body;
-  const labId = me.labs[0].id as string;
-  const material = (await owner.get(`/api/labs/${labId}/materials`)).body[0];
   const n = ++requests;
-  await makeRequest(
-    served.running,
-    labId,
-    me.user.id,
-    material.id,
+  await urgentDemoRequest(
+    served,
     [
       { name: `Shape frame ${n}`, sizeMm: [60, 60, 20], quantity: 6, orientation: 'keep_up', mesh: frame },
       { name: `Shape peg ${n}`, sizeMm: [16, 16, 10], quantity: 6, orientation: 'keep_up', mesh: peg },
     ],
-    { title: `Shape check ${n}`, dueDate: '2026-12-03', priority: 'urgent' },
+    `Shape check ${n}`,
   );
 }
 

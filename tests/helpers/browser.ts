@@ -6,6 +6,8 @@ import type { Running } from '../../server/boot';
 import type { Config } from '../../server/config';
 import { startTestApp } from './app';
 import { DEMO_PASSWORD } from '../../server/db/seeders/demo';
+import request from 'supertest';
+import { makeRequest, type FixturePart } from './plans';
 
 export const CHROMIUM = '/usr/bin/chromium';
 export const ARTIFACTS = join(__dirname, '..', '..', 'test-artifacts');
@@ -109,4 +111,20 @@ export async function openSection(page: Page, key: string) {
   await tabs.waitFor();
   if ((await tabs.getByTestId(`nav-${key}`).count()) === 0) await tabs.getByTestId('nav-more').click();
   await tabs.getByTestId(`nav-${key}`).click();
+}
+
+/**
+ * An urgent open request of a test's own in the demo lab (written straight into the tables by makeRequest),
+ * so a new plan has these parts to take whatever other browser tests sharing the database have planned
+ * already: the new plan form starts with the most urgent lines.
+ */
+export async function urgentDemoRequest(served: Served, parts: FixturePart[], title: string) {
+  const owner = request.agent(served.running.app);
+  owner.set('Origin', served.baseUrl);
+  const signedIn = await owner.post('/api/auth/sign-in').send({ email: 'owner@tinkerfin.example', password: DEMO_PASSWORD });
+  if (signedIn.status !== 200) throw new Error(`sign-in failed: ${signedIn.status}`);
+  const me = (await owner.get('/api/me')).body;
+  const labId = me.labs[0].id as string;
+  const material = (await owner.get(`/api/labs/${labId}/materials`)).body[0];
+  return makeRequest(served.running, labId, me.user.id, material.id, parts, { title, dueDate: '2026-12-03', priority: 'urgent' });
 }

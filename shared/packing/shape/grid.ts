@@ -24,17 +24,21 @@ export interface Grid {
 
 export function newGrid(instance: PackInstanceV2, cell: number): Grid {
   const { min, extent } = usableRegion(instance);
+  return gridOf([min[0], min[1], min[2]], [extent[0], extent[1], extent[2]], cell, instance.spacing);
+}
+
+/** An empty height map of a box from `origin` with `extent`, cells of `cell` mm, dilated by `spacing`. */
+export function gridOf(origin: [number, number, number], extent: [number, number, number], cell: number, spacing: number): Grid {
   const nx = Math.max(1, Math.ceil(extent[0] / cell - 1e-9));
   const ny = Math.max(1, Math.ceil(extent[1] / cell - 1e-9));
-  const g = instance.spacing;
   return {
     nx,
     ny,
     cell,
-    r: g > 0 ? Math.ceil(g / cell - 1e-9) : 0,
-    g,
-    origin: [min[0], min[1], min[2]],
-    extent: [extent[0], extent[1], extent[2]],
+    r: spacing > 0 ? Math.ceil(spacing / cell - 1e-9) : 0,
+    g: spacing,
+    origin,
+    extent,
     H: new Float64Array(nx * ny).fill(-Infinity),
     D: new Float64Array(nx * ny).fill(-Infinity),
   };

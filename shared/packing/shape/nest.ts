@@ -13,8 +13,8 @@
  * a housing (its top ends as low either way); filling the hollows first is
  * what lets the hollows be used.
  */
-import { bestDrop, drop, type Grid } from './grid';
-import type { Profile } from './profile';
+import { bestDrop, drop, gridOf, type Grid } from './grid';
+import { profileOfColumns, type Profile } from './profile';
 
 export interface NestMember {
   kind: number;
@@ -49,20 +49,8 @@ function hollowShare(p: Profile, cell: number): number {
 }
 
 function localGrid(p: Profile, cell: number, spacing: number): Grid {
-  const nx = p.nx;
-  const ny = p.ny;
-  return {
-    nx,
-    ny,
-    cell,
-    r: spacing > 0 ? Math.ceil(spacing / cell - 1e-9) : 0,
-    g: spacing,
-    origin: [0, 0, 0],
-    // The holder's own box: what it holds stays inside it.
-    extent: [p.extent[0], p.extent[1], p.extent[2]],
-    H: new Float64Array(nx * ny).fill(-Infinity),
-    D: new Float64Array(nx * ny).fill(-Infinity),
-  };
+  // The holder's own box: what it holds stays inside it.
+  return gridOf([0, 0, 0], [p.extent[0], p.extent[1], p.extent[2]], cell, spacing);
 }
 
 /** The members' column profiles together, on the holder's grid. */
@@ -81,37 +69,9 @@ function nestProfile(holder: Profile, members: NestMember[], cell: number, spaci
       if (t > top[id]) top[id] = t;
     }
   }
-  const ids: number[] = [];
   let zTop = 0;
-  for (let id = 0; id < nx * ny; id++) {
-    if (top[id] >= bot[id]) {
-      ids.push(id);
-      if (top[id] > zTop) zTop = top[id];
-    }
-  }
-  ids.sort((u, v) => bot[u] - bot[v] || u - v);
-  const cellX = new Int32Array(ids.length), cellY = new Int32Array(ids.length);
-  const bottom = new Float64Array(ids.length), topOut = new Float64Array(ids.length);
-  let cost = 0;
-  ids.forEach((id, k) => {
-    cellX[k] = id % nx;
-    cellY[k] = Math.floor(id / nx);
-    bottom[k] = bot[id];
-    topOut[k] = top[id];
-    cost += (top[id] + bot[id] + spacing) * cell * cell;
-  });
-  return {
-    rotation: holder.rotation,
-    extent: [holder.extent[0], holder.extent[1], Math.max(holder.extent[2], zTop)],
-    rotatedMin: holder.rotatedMin,
-    nx,
-    ny,
-    cellX,
-    cellY,
-    bottom,
-    top: topOut,
-    cost,
-  };
+  for (let id = 0; id < nx * ny; id++) if (top[id] >= bot[id] && top[id] > zTop) zTop = top[id];
+  return profileOfColumns(holder.rotation, [holder.extent[0], holder.extent[1], Math.max(holder.extent[2], zTop)], holder.rotatedMin, nx, ny, bot, top, cell, spacing);
 }
 
 /**

@@ -106,6 +106,24 @@ export function columnProfile(part: ShapePart, rotation: number, cell: number, s
       }
     }
   }
+  return profileOfColumns(rotation, extent, [mn[0], mn[1], mn[2]], nx, ny, bot, top, cell, spacing);
+}
+
+/**
+ * A profile from per-cell lowest and highest points (cells without material
+ * have top < bottom): the columns with material, sorted by bottom, and their cost.
+ */
+export function profileOfColumns(
+  rotation: number,
+  extent: [number, number, number],
+  rotatedMin: [number, number, number],
+  nx: number,
+  ny: number,
+  bot: Float64Array,
+  top: Float64Array,
+  cell: number,
+  spacing: number,
+): Profile {
   const ids: number[] = [];
   for (let id = 0; id < nx * ny; id++) if (top[id] >= bot[id]) ids.push(id);
   ids.sort((u, v) => bot[u] - bot[v] || u - v);
@@ -119,7 +137,7 @@ export function columnProfile(part: ShapePart, rotation: number, cell: number, s
     topOut[k] = top[id];
     cost += (top[id] + bot[id] + spacing) * cell * cell;
   });
-  return { rotation, extent, rotatedMin: [mn[0], mn[1], mn[2]], nx, ny, cellX, cellY, bottom, top: topOut, cost };
+  return { rotation, extent, rotatedMin, nx, ny, cellX, cellY, bottom, top: topOut, cost };
 }
 
 /**
