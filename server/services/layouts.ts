@@ -190,6 +190,11 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
         if (!byShape) {
           const invalid = validateLayout(instance, result);
           if (invalid.length > 0) refuse(invalid, 'result');
+        } else {
+          // What needs no mesh is refused here, before any worker is asked.
+          const ids = new Set(instance.parts.map((p) => p.id));
+          const unknown = result.placements.findIndex((p) => !ids.has(p.id));
+          if (unknown >= 0) refuse([{ field: `placements[${unknown}].id`, message: `must name a part of the instance ("${result.placements[unknown].id}" is unknown)` }], 'result');
         }
 
         const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, plan.machine_id) : undefined;

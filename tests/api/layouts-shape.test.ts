@@ -117,6 +117,17 @@ describe('with a mesh worker', () => {
     expect(plan.body.layouts).toHaveLength(0);
   });
 
+  test('a placement naming no line of the plan is refused with 400 naming it, before any worker is asked', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeunknown');
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [30, 30, 5] },
+    ]);
+    const res = await lab.agent.post(url).send({ instance, result: { ...result, placements: [result.placements[0], { ...result.placements[1], id: 'not-a-line' }] } });
+    expect(res.status).toBe(400);
+    expect(res.body.error.field).toBe('result.placements[1].id');
+  });
+
   test("a peg laid on its side, which its line's rule (keep up) forbids, is refused naming its rotation", async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shaperule');
     // Allowed by the frame's rule; the check against the peg's line is the server's own.
