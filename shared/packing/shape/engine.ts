@@ -395,8 +395,8 @@ function* solve(
   }
   if (boxShare > 0 && copies.length > 0 && !stop()) {
     // With a cap on the runs, the box search is capped too (the same result on any machine).
-    // With nests, their boxes get most of the box search; the parts' own boxes the rest, so a packing by
-    // shape is never taller than the boxes even where nesting does not pay (few parts, little to hold).
+    // With nests, their boxes get most of the box search; the parts' own boxes the rest, so where nesting
+    // does not pay (few parts, little to hold) the settled box layout is still there to keep.
     const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
     const nestShare = nests.length > 0 ? (options.nestShare ?? 0.6) : 0;
     let searched: Placed[] = [];
@@ -407,7 +407,8 @@ function* solve(
     if (nestShare < 1 && !stop()) {
       const plain = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * (1 - nestShare)));
       offer(plain);
-      if (searched.length === 0 || heightOf(plain) < heightOf(searched)) searched = plain;
+      const better = plain.length > searched.length || (plain.length === searched.length && heightOf(plain) < heightOf(searched));
+      if (searched.length === 0 || better) searched = plain;
     }
     // Then its highest parts dropped again where they end lower, while they can.
     offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
