@@ -116,7 +116,7 @@ export function meshJobsRepository(db: Database) {
      * Raw SQL: an advisory lock on a key, and a limit computed from a count, on a pg connection (not Sequelize's).
      */
     async lockWaiting(client: Sql, labId: string, limit: number): Promise<Array<{ id: string; turn: number }>> {
-      await client.query("SELECT pg_advisory_xact_lock(hashtext('mesh-queue-lab:' || $1))", [labId]);
+      await client.query("SELECT pg_advisory_xact_lock(hashtext('sinterstack:measuring-lab:' || $1))", [labId]);
       const { rows } = await client.query<{ id: string; turn: number }>(
         `SELECT id, turn FROM mesh_job_files WHERE lab_id = $1 AND state = 'waiting' ORDER BY turn, position
           LIMIT greatest(0, $2 - (SELECT count(*) FROM mesh_job_files WHERE lab_id = $1 AND state IN ('queued', 'running')))
@@ -144,7 +144,7 @@ export function meshJobsRepository(db: Database) {
      * Raw SQL: an advisory lock on a key, and three aggregates read together under it.
      */
     async nextTurn(labId: string, transaction: Transaction): Promise<number> {
-      await sequelize.query("SELECT pg_advisory_xact_lock(hashtext('mesh-queue-turn-order'))", { transaction });
+      await sequelize.query("SELECT pg_advisory_xact_lock(hashtext('sinterstack:measuring-turns'))", { transaction });
       const [t] = await sequelize.query<{ floor: number | null; last: number | null; lab: number | null }>(
         `SELECT (SELECT min(turn) FROM mesh_job_files WHERE state IN ('waiting', 'queued', 'running')) AS floor,
                 (SELECT max(turn) FROM mesh_job_files) AS last,
