@@ -14,8 +14,6 @@ import { SliceCache } from '../shared/geometry/slice';
 import type { LayoutProfileJob, LayoutProfileAnswer } from './mesh.protocol';
 import { partFiles, type FetchBytes } from './partMeshes';
 
-export type { FetchBytes } from './partMeshes';
-
 /** Keeps its caches between calls: a layout moved by hand is summed again without reading or slicing any file. */
 export function createLayoutProfiler(fetchBytes: FetchBytes) {
   const meshes = new RestingMeshCache();

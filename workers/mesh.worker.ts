@@ -11,6 +11,7 @@
 import * as Comlink from 'comlink';
 import { MM_PER_UNIT, formatFromFilename, isBinaryStlSize, mergeMeshes, parseMeshFile, type LengthUnit } from '../shared/geometry';
 import { createLayoutProfiler } from './layoutProfile';
+import { fetchSameOrigin } from './partMeshes';
 import type { LayoutProfileAnswer, MeshProblem, MeshWorkerApi, ParseMeshOptions, ParseMeshResult, ViewMesh } from './mesh.protocol';
 
 export type { MeshProblem, ParseMeshOptions, ParseMeshResult, ViewMesh };
@@ -92,11 +93,8 @@ export function sniffExtension(bytes: Uint8Array): '.3mf' | '.stl' | '.obj' | nu
 /** Comlink answers with promises; the worker's own calls are plain. */
 type Plain<A> = { [K in keyof A]: A[K] extends (...args: infer P) => Promise<infer R> ? (...args: P) => R | Promise<R> : never };
 
-/** Stored files are read with the page's session (same origin); a file that cannot be had counts as its box. */
-const profileLayout = createLayoutProfiler(async (url) => {
-  const res = await fetch(url, { credentials: 'same-origin' });
-  return res.ok ? new Uint8Array(await res.arrayBuffer()) : null;
-});
+/** Stored files are read with the page's session; a file that cannot be had counts as its box. */
+const profileLayout = createLayoutProfiler(fetchSameOrigin);
 
 const api: Plain<MeshWorkerApi> = {
   parseMesh(bytes, filename, unit, options) {

@@ -8,19 +8,13 @@ import * as Comlink from 'comlink';
 import { RestingMeshCache } from '../shared/geometry/layoutSlices';
 import { createPacking, encodeLayout, layoutTransferables, parseInstance, type PackPhase, type PackResult } from '../shared/packing';
 import { createPackingV2 } from '../shared/packing/shape';
-import type { FetchBytes } from './partMeshes';
+import { fetchSameOrigin, type FetchBytes } from './partMeshes';
 import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions } from './protocol';
 import { shapeInstanceOf } from './shapeInstance';
 
 interface Run {
   run(hooks: { shouldStop: () => boolean; onProgress: (phase: PackPhase, shareDone: number, best: PackResult | null) => void }): Promise<PackResult>;
 }
-
-/** Stored files are read with the page's session (same origin). */
-const fetchSameOrigin: FetchBytes = async (url) => {
-  const res = await fetch(url, { credentials: 'same-origin' });
-  return res.ok ? new Uint8Array(await res.arrayBuffer()) : null;
-};
 
 export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): PackerApi {
   const cancelled = new Set<number>();

@@ -10,6 +10,12 @@ import type { LayoutProfilePart } from './mesh.protocol';
 /** Reads a stored file's bytes; null when it cannot be had (the part then counts as its box, with the reason). */
 export type FetchBytes = (url: string) => Promise<Uint8Array | null>;
 
+/** Stored files are read with the page's session (same origin); a file that cannot be had is null. */
+export const fetchSameOrigin: FetchBytes = async (url) => {
+  const res = await fetch(url, { credentials: 'same-origin' });
+  return res.ok ? new Uint8Array(await res.arrayBuffer()) : null;
+};
+
 /** The files of the parts with their bytes where needed: a part without a closed mesh, or one read before, needs none. */
 export function partFiles(parts: readonly LayoutProfilePart[], meshes: RestingMeshCache, fetchBytes: FetchBytes): Promise<ProfilePartFile[]> {
   return Promise.all(

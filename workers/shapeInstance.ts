@@ -54,14 +54,9 @@ export async function shapeInstanceOf(instance: PackInstance, shapes: ShapeFiles
   return {
     ok: true,
     instance: {
+      // The build as it is; only the parts change, to meshes and rotations.
+      ...instance,
       format: INSTANCE_FORMAT_V2,
-      chamber: instance.chamber,
-      margin: instance.margin,
-      spacing: instance.spacing,
-      layerHeight: instance.layerHeight,
-      objective: instance.objective,
-      timeLimitMs: instance.timeLimitMs,
-      seed: instance.seed,
       fit: 'shape',
       parts: instance.parts.map((part) => {
         const s = byId.get(part.id)!;

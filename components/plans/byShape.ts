@@ -1,8 +1,8 @@
 /**
  * Layouts packed by the parts' shapes in the editor: what the packing worker
  * needs to pack by shape (each line's stored file and the rotations its rule
- * allows), how such a layout is told apart (its placements carry 3MF
- * transforms), and the "pack-result/2" it is kept as.
+ * allows) and the "pack-result/2" it is kept as (editorModel.isByShape
+ * tells such a layout apart).
  */
 import { placementRotation, RESULT_FORMAT_V2, type PackInstanceInput, type PackResult } from '../../shared/packing';
 import { ROTATION_CODES } from '../../shared/geometry/rotations';
@@ -21,11 +21,6 @@ export function shapeFilesOf(labId: string, instance: Pick<PackInstanceInput, 'p
     parts.push({ id: p.id, file: profilePartOf(labId, part), rotations: [...RULE_ROTATIONS[ruleOfOrientations(p.orientations)]] });
   }
   return { parts };
-}
-
-/** A layout packed by shape: its mesh parts carry their transforms (a layout of boxes never does). */
-export function isByShape(result: Pick<PackResult, 'placements'> | null | undefined): boolean {
-  return !!result && result.placements.some((p) => !!p.transform);
 }
 
 /**

@@ -243,10 +243,15 @@ export function editFaults(instance: PackInstanceInput, result: PackResult): Set
   return placementsAtFault(validateLayout(parsed.instance, result));
 }
 
+/** A layout packed by shape: its mesh parts carry their transforms (a layout of boxes never does). */
+export function isByShape(result: Pick<PackResult, 'placements'> | null | undefined): boolean {
+  return !!result && result.placements.some((p) => !!p.transform);
+}
+
 /** The label a kept layout gets: how it was made, the seed of a plain packing, and its layers. */
 export function keptLabel(working: Working & { result: PackResult }): string {
   const how = working.mode === 'fill' ? 'Filled' : working.mode === 'repack' ? 'Re-packed' : working.mode === 'edit' ? 'Edited' : 'Seed';
-  const byShape = working.result.placements.some((p) => !!p.transform) ? ' by shape' : '';
+  const byShape = isByShape(working.result) ? ' by shape' : '';
   return `${`${how} ${working.mode === 'pack' ? working.instance.seed : ''}`.trim()}${byShape} · ${working.result.layers} layers`;
 }
 

@@ -16,8 +16,8 @@ import {
   useSubmitPlanMutation,
 } from '../queries/plans';
 import { discardDraft, getPlanDraft, rebaseDraft, showLayout, type DraftLine, type DraftOptions, type PlanDraft } from '../stores/planEditor';
-import { canKeep, keptLabel, sameLines, submitBlockOf, type Working } from './editorModel';
-import { isByShape, shapeResultOf } from './byShape';
+import { canKeep, isByShape, keptLabel, sameLines, submitBlockOf, type Working } from './editorModel';
+import { shapeResultOf } from './byShape';
 
 export interface EditorMessage {
   tone: 'danger' | 'success' | 'info';

@@ -40,6 +40,7 @@ import {
   buildStackOf,
   editFaults,
   handEdited,
+  isByShape,
   type HandEdit,
   type Working,
   movedCutMm,
@@ -68,7 +69,7 @@ import { usePackingSession } from './usePackingSession';
 import { useWorkingProfile } from './useWorkingProfile';
 import { useCalibrationQuery } from '../queries/runs';
 import { partQueryOptions } from '../queries/parts';
-import { isByShape, shapeFilesOf } from './byShape';
+import { shapeFilesOf } from './byShape';
 import { layoutCalibration } from '../../shared/estimate/calibration';
 
 /** One arrow key press moves the marked parts this far (with Shift, 1 mm). */

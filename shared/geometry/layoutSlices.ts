@@ -149,7 +149,7 @@ export function profileLayoutFromFiles(
     return { part: p.part, transform, position: p.position, size: p.size };
   });
   const profiles = layoutProfiles({ parts: sources, placements, layerHeightMm: job.layerHeightMm, layers: job.layers, cache: caches.slices });
-  return { ...profiles, boxReasons: [...boxReasons] };
+  return { ...profiles, boxReasons };
 }
 
 /** Each part's resting mesh (null: it counts as its box) and why a part has none. */
@@ -159,8 +159,7 @@ export interface PartMeshes {
 }
 
 /** Reads each part's file once (or takes its resting mesh from the cache). */
-export function readPartMeshes(files: readonly ProfilePartFile[], cache: RestingMeshCache = new RestingMeshCache()): PartMeshes {
-  const meshes = cache;
+export function readPartMeshes(files: readonly ProfilePartFile[], meshes: RestingMeshCache = new RestingMeshCache()): PartMeshes {
   const boxReasons: { part: number; reason: string }[] = [];
   const sources: ProfileSource[] = files.map((f, i) => {
     if (!f.watertight) {

@@ -5,7 +5,7 @@
  * transform of its mesh, and the placements are listed bottom first, which
  * is a lift-out order for boxes kept apart along some axis.
  */
-import { extentCode, placementTransform } from '../../geometry/rotations';
+import { extentCode, placementTransform, rotationIndex } from '../../geometry/rotations';
 import { createPacking, type PackOptions, type PackPhase } from '../engine';
 import { INSTANCE_FORMAT, type Orientation, type PackInstance, type PackInstanceV2, type PackResult, type PackResultV2, type PlacementV2 } from '../types';
 import type { PlacedPart } from './area';
@@ -32,6 +32,13 @@ export function boxInstance(instance: PackInstanceV2, parts: ShapePart[]): PackI
   };
 }
 
+/** The rotation a placed box of `part` stands for: the box orientation's own index when allowed, else an allowed one with its extents. */
+export function rotationForBox(part: Pick<ShapePart, 'rotations'>, orientation: string): number {
+  const v1 = rotationIndex(orientation);
+  if (v1 >= 0 && v1 < 6 && part.rotations.includes(v1)) return v1;
+  return part.rotations.find((k) => extentCode(k) === orientation) ?? part.rotations[0];
+}
+
 /** A version 1 result of the parts' boxes as a version 2 result (transforms, lift-out order, area profile). */
 export function fromBoxResult(instance: PackInstanceV2, parts: ShapePart[], r: PackResult): PackResultV2 {
   const byId = new Map(parts.map((p) => [p.id, p] as const));
@@ -43,9 +50,7 @@ export function fromBoxResult(instance: PackInstanceV2, parts: ShapePart[], r: P
   let volume = 0;
   for (const { p } of sorted) {
     const part = byId.get(p.id)!;
-    // The allowed rotation with these extents; the box orientation's own index when allowed.
-    const v1 = ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'].indexOf(p.orientation);
-    const rot = part.rotations.includes(v1) ? v1 : part.rotations.find((k) => extentCode(k) === p.orientation)!;
+    const rot = rotationForBox(part, p.orientation);
     const transform = placementTransform(rot, part.min, part.max, p.position);
     const out: PlacementV2 = { id: p.id, position: [...p.position], size: [...p.size], orientation: codeFor(part, rot) };
     if (part.hasMesh) out.transform = [...transform];

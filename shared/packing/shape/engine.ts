@@ -23,24 +23,23 @@
  * dropped into the height map; until the time limit, other orders and
  * rotation choices are tried and the lowest layout kept.
  */
-import { composeRotations, extentCode, placementTransform, ROTATION_CODES, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
+import { composeRotations, placementTransform, ROTATION_CODES, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
 import { createRandom, type Random } from '../prng';
 import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2, Vec3 } from '../types';
 import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
-import { boxInstance, fromBoxResult } from './boxfit';
+import { boxInstance, fromBoxResult, rotationForBox } from './boxfit';
 import { createPacking, packSync } from '../engine';
 import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
-import { buildNests, nestParts, type Nest } from './nest';
+import { buildNests, type Nest } from './nest';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
-const V1_CODES = ['xyz', 'xzy', 'yxz', 'yzx', 'zxy', 'zyx'];
 /** A quarter turn about +z: chamber (x, y) -> (-y, x). */
 const QUARTER_Z = ROTATION_CODES.indexOf('-y+x+z');
 /** Box ids of nests in the box engine's instance (nests are not boxed when a part's id starts so). */
@@ -203,7 +202,7 @@ function packOnce(instance: PackInstanceV2, kinds: Kind[], nests: readonly Nest[
     if (kind < kinds.length) placed.push({ kind, profile: best.p, position: [G.origin[0] + best.u * cell, G.origin[1] + best.v * cell, best.z] });
     else {
       // A nest: its holder, then what it holds, each where it lies in the nest.
-      for (const m of nestParts(nests[kind - kinds.length])) {
+      for (const m of nests[kind - kinds.length].members) {
         placed.push({ kind: m.kind, profile: m.profile, position: [G.origin[0] + (best.u + m.du) * cell, G.origin[1] + (best.v + m.dv) * cell, best.z + m.dz] });
       }
     }
@@ -322,11 +321,11 @@ function* solve(
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   // The box engine's own pauses are this run's: progress and a stop get through while it searches.
   // With `withNests`, each nest is one box, turned a quarter about z when all it holds may turn so, its members following it.
-  const turnable = nests.map((n) => nestParts(n).every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
+  const turnable = nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
   const settledBoxes = function* (maxCompletions: number | undefined, ms: number, withNests = false): Generator<void, Placed[], void> {
     const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
     const nestId = (j: number) => `${NEST_ID}${j}`;
-    const boxes1 = withNests && !parts.some((p) => p.id.startsWith(NEST_ID))
+    const boxed = withNests && !parts.some((p) => p.id.startsWith(NEST_ID))
       ? {
           ...base,
           parts: [
@@ -340,7 +339,7 @@ function* solve(
           ],
         }
       : base;
-    const search = createPacking(boxes1, { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
+    const search = createPacking(boxed, { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
     let step = search.next();
     while (!step.done) {
       hooks.onProgress?.(phase, share(), out.best);
@@ -354,7 +353,7 @@ function* solve(
       if (pl.id.startsWith(NEST_ID)) {
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
         const turned = pl.orientation === 'yxz';
-        for (const m of nestParts(n)) {
+        for (const m of n.members) {
           const [mx, my] = [m.du * cell, m.dv * cell];
           if (!turned) {
             items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + mx, pl.position[1] + my, pl.position[2] + m.dz] });
@@ -371,10 +370,7 @@ function* solve(
         continue;
       }
       const part = byId.get(pl.id)!;
-      // The allowed rotation with these extents; the box orientation's own index when allowed.
-      const v1 = V1_CODES.indexOf(pl.orientation);
-      const rotation = part.rotations.includes(v1) ? v1 : (part.rotations.find((k) => extentCode(k) === pl.orientation) ?? part.rotations[0]);
-      items.push({ part: part.index, rotation, position: [pl.position[0], pl.position[1], pl.position[2]] });
+      items.push({ part: part.index, rotation: rotationForBox(part, pl.orientation), position: [pl.position[0], pl.position[1], pl.position[2]] });
     }
     const settled = settleLayout(instance, parts, items, { stopped: stop });
     // In the drop's own terms, so the search below can be compared with it.
@@ -407,8 +403,7 @@ function* solve(
     if (nestShare < 1 && !stop()) {
       const plain = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * (1 - nestShare)));
       offer(plain);
-      const better = plain.length > searched.length || (plain.length === searched.length && heightOf(plain) < heightOf(searched));
-      if (searched.length === 0 || better) searched = plain;
+      if (plain.length > searched.length || (plain.length === searched.length && heightOf(plain) < heightOf(searched))) searched = plain;
     }
     // Then its highest parts dropped again where they end lower, while they can.
     offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));

@@ -19,8 +19,6 @@ import { profileOfColumns, type Profile } from './profile';
 export interface NestMember {
   kind: number;
   profile: Profile;
-  /** A smaller nest held whole (kind is then its holder's). */
-  nest?: Nest;
   /** Offset of the member's placed box from the nest's: whole cells along x and y, millimetres along z. */
   du: number;
   dv: number;
@@ -75,11 +73,10 @@ function nestProfile(holder: Profile, members: NestMember[], cell: number, spaci
 }
 
 /**
- * Nests made of the kinds' copies: holders smallest first, each filled with
- * the largest copies (or smaller nests) that still fit under its top, so a
- * small housing filled with clips can itself go into a large one. Returns the
- * top-level nests and how many copies of each kind they use; a kind whose
- * copy holds nothing is not tried again.
+ * Nests made of the kinds' copies: holders largest first, each filled with
+ * the largest copies that still fit under its top. Returns the nests and how
+ * many copies of each kind they use; a kind whose copy holds nothing is not
+ * tried again.
  */
 export function buildNests(kinds: readonly NestKind[], cell: number, spacing: number, minHollow = 0.35, stop: () => boolean = () => false): { nests: Nest[]; used: number[] } {
   const left = kinds.map((k) => (k.profiles.length > 0 ? k.quantity : 0));
@@ -88,12 +85,12 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
     .map((k, i) => i)
     .filter((i) => left[i] > 0 && hollowShare(kinds[i].profiles[0], cell) >= minHollow)
     .sort((a, b) => volume(kinds[b].profiles[0]) - volume(kinds[a].profiles[0]) || a - b);
+  // Contents largest first: the small ones then fill what the large leave.
   const byCost = kinds
     .map((k, i) => i)
     .filter((i) => left[i] > 0)
     .sort((a, b) => kinds[b].profiles[0].cost - kinds[a].profiles[0].cost || a - b);
-  /** Nests not (yet) inside another. */
-  let pool: Nest[] = [];
+  const nests: Nest[] = [];
   for (const h of holders) {
     const holder = kinds[h].profiles[0];
     while (left[h] > 0 && !stop()) {
@@ -102,32 +99,22 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
       left[h]--;
       const members: NestMember[] = [{ kind: h, profile: holder, du: 0, dv: 0, dz: 0 }];
       const bound = holder.extent[2] + 1e-9;
+      // A copy as large as the holder (its own kind among them) cannot go inside it.
       const fits = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1] && volume(p) < volume(holder);
       for (let placed = true; placed; ) {
         placed = false;
-        // Candidates largest first: the smaller nests made so far, then the kinds' copies.
-        const candidates: Array<{ cost: number; nest?: Nest; kind?: number }> = [
-          ...pool.map((n) => ({ cost: n.profile.cost, nest: n })),
-          ...byCost.filter((k) => left[k] > 0).map((k) => ({ cost: kinds[k].profiles[0].cost, kind: k })),
-        ].sort((a, b) => b.cost - a.cost);
-        for (const c of candidates) {
-          if (c.kind !== undefined && left[c.kind] === 0) continue;
-          const profiles = c.nest ? [c.nest.profile] : kinds[c.kind!].profiles;
+        for (const k of byCost) {
+          if (left[k] === 0) continue;
           let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
-          for (const p of profiles) {
+          for (const p of kinds[k].profiles) {
             if (!fits(p)) continue;
             const d = bestDrop(G, p, best ? best.score : bound);
             if (d) best = { ...d, p };
           }
           if (!best) continue;
           drop(G, best.p, best.u, best.v, best.z);
-          if (c.nest) {
-            members.push({ kind: c.nest.members[0].kind, profile: best.p, nest: c.nest, du: best.u, dv: best.v, dz: best.z });
-            pool = pool.filter((n) => n !== c.nest);
-          } else {
-            members.push({ kind: c.kind!, profile: best.p, du: best.u, dv: best.v, dz: best.z });
-            left[c.kind!]--;
-          }
+          members.push({ kind: k, profile: best.p, du: best.u, dv: best.v, dz: best.z });
+          left[k]--;
           placed = true;
         }
       }
@@ -136,18 +123,8 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
         left[h]++;
         break;
       }
-      pool.push({ members, profile: nestProfile(holder, members, cell, spacing) });
+      nests.push({ members, profile: nestProfile(holder, members, cell, spacing) });
     }
   }
-  return { nests: pool, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };
-}
-
-/** Every part of a nest with its offset from the nest's box (whole cells along x and y, mm along z), holders before what they hold. */
-export function nestParts(nest: Nest): Array<{ kind: number; profile: Profile; du: number; dv: number; dz: number }> {
-  const out: Array<{ kind: number; profile: Profile; du: number; dv: number; dz: number }> = [];
-  for (const m of nest.members) {
-    if (!m.nest) out.push({ kind: m.kind, profile: m.profile, du: m.du, dv: m.dv, dz: m.dz });
-    else for (const inner of nestParts(m.nest)) out.push({ ...inner, du: inner.du + m.du, dv: inner.dv + m.dv, dz: inner.dz + m.dz });
-  }
-  return out;
+  return { nests, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };
 }

@@ -9,7 +9,7 @@
 import { housing } from '@/shared/geometry';
 import { createShapePacking, createBoxFitPacking, parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
 import { columnProfile, shapeParts, defaultCell } from '@/shared/packing/shape';
-import { buildNests, nestParts } from '@/shared/packing/shape/nest';
+import { buildNests } from '@/shared/packing/shape/nest';
 import { box } from '../../geometry/helpers';
 
 // 80 x 50 x 30 mm outside, walls and floor 2.5 mm: inside 75 x 45 mm, 27.5 mm deep.
@@ -43,7 +43,7 @@ test('the cup holds the six blocks: the nest uses every copy and lists the cup b
   const { nests, used } = buildNests(kinds, cell, inst.spacing);
   expect(nests).toHaveLength(1);
   expect(used).toEqual([1, 6]);
-  const members = nestParts(nests[0]);
+  const members = nests[0].members;
   expect(members.map((m) => m.kind)).toEqual([0, 1, 1, 1, 1, 1, 1]);
   // Every block stands on the cup's floor (2.5 mm) plus the spacing, under the rim (30 mm).
   for (const m of members.slice(1)) {
