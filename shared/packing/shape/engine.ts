@@ -36,7 +36,7 @@ import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
-import { buildNests, type Nest } from './nest';
+import { bestPair, buildNests, type Nest } from './nest';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
@@ -63,6 +63,8 @@ export interface ShapeOptions {
   nest?: boolean;
   /** Share of the box search given to the nests' boxes when there are nests (default 0.6; the parts' own boxes get the rest). */
   nestShare?: number;
+  /** Two copies pair up when their box is at most this share of two boxes apart (./nest.ts bestPair; default 0.85). */
+  pairGain?: number;
 }
 
 export interface ShapePacking {
@@ -225,7 +227,16 @@ function packOnce(instance: PackInstanceV2, kinds: Kind[], nests: readonly Nest[
     if (next >= order.length) break;
     const kind = order[next];
     if (!place(kind, Infinity)) {
-      // Fits nowhere any more: every copy left of this kind stays unplaced.
+      // Fits nowhere any more: every copy left of this kind stays unplaced. A nest that no longer fits
+      // whole gives its members a place each where they still fit.
+      if (kind >= kinds.length) {
+        for (; left[kind] > 0; left[kind]--) {
+          for (const m of nests[kind - kinds.length].members) {
+            left[m.kind]++;
+            if (!place(m.kind, Infinity)) left[m.kind]--;
+          }
+        }
+      }
       left[kind] = 0;
     }
   }
@@ -286,10 +297,20 @@ function* solve(
 
   // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
   // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
-  const { nests, used } =
-    options.nest === false
-      ? { nests: [] as Nest[], used: kinds.map(() => 0) }
-      : buildNests(kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles })), cell, instance.spacing, undefined, stop);
+  // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
+  const nests: Nest[] = [];
+  const used = kinds.map(() => 0);
+  const plate = usableRegion(instance).extent;
+  if (options.nest !== false) {
+    const built = buildNests(kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles })), cell, instance.spacing, undefined, stop);
+    nests.push(...built.nests);
+    built.used.forEach((n, i) => (used[i] = n));
+    kinds.forEach((k, i) => {
+      if (!k.fits || k.part.quantity - used[i] < 2 || stop()) return;
+      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
+      for (; pair && k.part.quantity - used[i] >= 2; used[i] += 2) nests.push(pair);
+    });
+  }
   const copies: number[] = [];
   kinds.forEach((k, i) => {
     if (k.fits) for (let c = used[i]; c < k.part.quantity; c++) copies.push(i);

@@ -51,10 +51,10 @@ function localGrid(p: Profile, cell: number, spacing: number): Grid {
   return gridOf([0, 0, 0], [p.extent[0], p.extent[1], p.extent[2]], cell, spacing);
 }
 
-/** The members' column profiles together, on the holder's grid. */
-function nestProfile(holder: Profile, members: NestMember[], cell: number, spacing: number): Profile {
-  const nx = holder.nx;
-  const ny = holder.ny;
+/** The members' column profiles together, on the holder's grid (or on a grid of `size` from the same corner). */
+function nestProfile(holder: Profile, members: NestMember[], cell: number, spacing: number, size: [number, number] = [holder.extent[0], holder.extent[1]]): Profile {
+  const nx = Math.max(holder.nx, Math.ceil(size[0] / cell - 1e-9));
+  const ny = Math.max(holder.ny, Math.ceil(size[1] / cell - 1e-9));
   const bot = new Float64Array(nx * ny).fill(Infinity);
   const top = new Float64Array(nx * ny).fill(-Infinity);
   for (const m of members) {
@@ -69,7 +69,7 @@ function nestProfile(holder: Profile, members: NestMember[], cell: number, spaci
   }
   let zTop = 0;
   for (let id = 0; id < nx * ny; id++) if (top[id] >= bot[id] && top[id] > zTop) zTop = top[id];
-  return profileOfColumns(holder.rotation, [holder.extent[0], holder.extent[1], Math.max(holder.extent[2], zTop)], holder.rotatedMin, nx, ny, bot, top, cell, spacing);
+  return profileOfColumns(holder.rotation, [size[0], size[1], Math.max(holder.extent[2], zTop)], holder.rotatedMin, nx, ny, bot, top, cell, spacing);
 }
 
 /**
@@ -127,4 +127,68 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
     }
   }
   return { nests, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };
+}
+
+/**
+ * The best pair of two copies of one kind side by side on the floor, each
+ * reaching into the other's empty columns (two L brackets corner to corner,
+ * a clip turned into another's opening): the second copy is tried in every
+ * allowed rotation at every offset where it rests on the floor clear of the
+ * first by the spacing, and the pair whose box (grown by the spacing) is
+ * smallest (and on the plate) is kept if it is at most `gain` of the two
+ * boxes apart. The
+ * second is dropped after the first, so the pair lifts out top copy first
+ * like any nest; the spacing is the drop's (dilated height map), checked
+ * exactly against the meshes with the rest of the layout.
+ */
+export function bestPair(
+  kind: number,
+  first: readonly Profile[],
+  turns: readonly Profile[],
+  cell: number,
+  spacing: number,
+  plate: readonly [number, number],
+  gain = 0.85,
+): Nest | null {
+  const grown = (x: number, y: number, z: number) => (x + spacing) * (y + spacing) * (z + spacing);
+  let best: { volume: number; members: NestMember[]; holder: Profile; size: [number, number] } | null = null;
+  for (const a of first) {
+    const single = grown(a.extent[0], a.extent[1], a.extent[2]);
+    for (const b of turns) {
+      let limit = Math.min(best ? best.volume : Infinity, 2 * gain * Math.min(single, grown(b.extent[0], b.extent[1], b.extent[2])));
+      // The first at (b.nx, b.ny) of a grid with room for the second on every side.
+      const G = gridOf([0, 0, 0], [(a.nx + 2 * b.nx) * cell, (a.ny + 2 * b.ny) * cell, Math.max(a.extent[2], b.extent[2])], cell, spacing);
+      drop(G, a, b.nx, b.ny, 0);
+      const m = b.cellX.length;
+      const off = new Int32Array(m);
+      for (let k = 0; k < m; k++) off[k] = b.cellX[k] + G.nx * b.cellY[k];
+      const ez = Math.max(a.extent[2], b.extent[2]);
+      for (let v = 0; v <= a.ny + b.ny; v++) {
+        for (let u = 0; u <= a.nx + b.nx; u++) {
+          const x0 = Math.min(u, b.nx) * cell, y0 = Math.min(v, b.ny) * cell;
+          const x1 = Math.max(u * cell + b.extent[0], b.nx * cell + a.extent[0]);
+          const y1 = Math.max(v * cell + b.extent[1], b.ny * cell + a.extent[1]);
+          const volume = grown(x1 - x0, y1 - y0, ez);
+          if (volume >= limit || x1 - x0 > plate[0] + 1e-9 || y1 - y0 > plate[1] + 1e-9) continue;
+          const base = u + G.nx * v;
+          let k = 0;
+          for (; k < m; k++) if (G.D[base + off[k]] - b.bottom[k] > 1e-9) break;
+          if (k < m) continue;
+          const du = Math.min(u, b.nx), dv = Math.min(v, b.ny);
+          limit = volume;
+          best = {
+            volume,
+            holder: a,
+            size: [x1 - x0, y1 - y0],
+            members: [
+              { kind, profile: a, du: b.nx - du, dv: b.ny - dv, dz: 0 },
+              { kind, profile: b, du: u - du, dv: v - dv, dz: 0 },
+            ],
+          };
+        }
+      }
+    }
+  }
+  if (!best) return null;
+  return { members: best.members, profile: nestProfile(best.holder, best.members, cell, spacing, best.size) };
 }

@@ -6,10 +6,10 @@
  * Each layout is checked exactly against the meshes by the validator
  * (triangle-to-triangle gaps, containment, lift-out order).
  */
-import { housing } from '@/shared/geometry';
+import { bracket, housing } from '@/shared/geometry';
 import { createShapePacking, createBoxFitPacking, parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
 import { columnProfile, shapeParts, defaultCell } from '@/shared/packing/shape';
-import { buildNests } from '@/shared/packing/shape/nest';
+import { bestPair, buildNests } from '@/shared/packing/shape/nest';
 import { box } from '../../geometry/helpers';
 
 // 80 x 50 x 30 mm outside, walls and floor 2.5 mm: inside 75 x 45 mm, 27.5 mm deep.
@@ -67,4 +67,54 @@ test('without nesting first, the same packing by shape still keeps every part ap
   const inst = plateOfTheCup('shape');
   const result = createShapePacking(inst, { maxRuns: 2, nest: false, boxShare: 0 }).runSync();
   expect(validateShapeLayout(inst, result)).toEqual([]);
+});
+
+// Two L brackets, legs 40 and 30 mm long and 4 mm thick, 15 mm wide, lying flat. Corner to corner, the second
+// turned a half turn about z and moved along the long leg by a leg's thickness and the spacing, each leg of one
+// runs 3 mm clear of the other's: they take 40 + 4 + 3 by 30 mm (47 x 30), where their two boxes side by side
+// take 83 x 30 or 40 x 63 (elementary geometry, worked by hand).
+const ell = bracket({ legAMm: 40, legBMm: 30, thicknessMm: 4, widthMm: 15, gussetMm: 0 });
+
+function plateOfTwoBrackets(fit: 'box' | 'shape', plate: [number, number]): PackInstanceV2 {
+  const parsed = parseInstanceV2({
+    format: 'pack-instance/2',
+    chamber: [plate[0], plate[1], 200],
+    margin: { xy: 0, bottom: 0, top: 0 },
+    spacing: 3,
+    layerHeight: 0.1,
+    timeLimitMs: 400,
+    fit,
+    parts: [{ id: 'bracket', mesh: { positions: ell.positions, indices: ell.indices }, quantity: 2, orientations: ['upright'] }],
+  });
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.instance;
+}
+
+test('two L brackets pair corner to corner in one box little larger than a bracket\'s, the second turned a half turn', () => {
+  const inst = plateOfTwoBrackets('shape', [100, 100]);
+  const [part] = shapeParts(inst);
+  const cell = defaultCell(inst);
+  const profiles = part.rotations.map((r) => columnProfile(part, r, cell, inst.spacing)).sort((a, b) => a.cost - b.cost);
+  const pair = bestPair(0, profiles.slice(0, 3), profiles, cell, inst.spacing, [100, 100]);
+  expect(pair).not.toBeNull();
+  const [x, y, z] = pair!.profile.extent;
+  // Lying flat (15 mm), 47 x 30 mm either way round, the 47 within a cell (the plan grid rounds the gap up).
+  expect(z).toBeCloseTo(15, 6);
+  expect(Math.max(x, y)).toBeGreaterThanOrEqual(47 - 1e-9);
+  expect(Math.max(x, y)).toBeLessThanOrEqual(47 + cell + 1e-9);
+  expect(Math.min(x, y)).toBeCloseTo(30, 6);
+  expect(pair!.members.map((m) => m.kind)).toEqual([0, 0]);
+  expect(pair!.members[0].profile.rotation).not.toBe(pair!.members[1].profile.rotation);
+  // Moved along the short leg instead they take 40 by 30 + 4 + 3 mm: a plate of 46 x 36 mm holds neither way.
+  expect(bestPair(0, profiles.slice(0, 3), profiles, cell, inst.spacing, [46, 36])).toBeNull();
+});
+
+test('on a plate of 48 x 31 mm the two brackets lie side by side packed by shape, one on the other packed by boxes', () => {
+  const inst = plateOfTwoBrackets('shape', [48, 31]);
+  const byShape = createShapePacking(inst, { maxRuns: 2 }).runSync();
+  expect(byShape.unplaced).toEqual([]);
+  expect(byShape.height).toBeCloseTo(15, 6);
+  expect(validateShapeLayout(inst, byShape)).toEqual([]);
+  // 15 + 3 + 15 mm.
+  expect(createBoxFitPacking(plateOfTwoBrackets('box', [48, 31])).runSync().height).toBeCloseTo(33, 6);
 });
