@@ -21,7 +21,7 @@ import {
 import { layerCount } from '../../shared/estimate/layers';
 import type { LayoutSummaryView, OpenLineView, PlanLineView, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import type { DraftLine, DraftOptions, PlanDraft } from '../stores/planEditor';
-import { buildInstance, instanceAbove, mergeLayouts, type InstanceLine, type MachineLike, type MaterialLike } from './instance';
+import { buildInstance, instanceAbove, mergeAbove, mergeLayouts, type InstanceLine, type MachineLike, type MaterialLike } from './instance';
 import type { ShownNumbers } from './estimate';
 import type { LayoutRow } from './LayoutsTable';
 import type { EditorLine } from './LinesPane';
@@ -184,7 +184,14 @@ export function editorLinesOf(
  * full instance; a failure is the layout's problem, and the result shown stays.
  * `instanceOf` builds the plan's instance for a list of lines.
  */
-export function foldBest(w: Working, best: PackResult, check: boolean, instanceOf: (lines: DraftLine[]) => PackInstanceInput): Working {
+export function foldBest(
+  w: Working,
+  best: PackResult,
+  check: boolean,
+  instanceOf: (lines: DraftLine[]) => PackInstanceInput,
+  /** Each line's part volume (its mesh's), for a layout by shape's density. */
+  volumeOf?: (requestLineId: string) => number | undefined,
+): Working {
   if (w.mode === 'pack') return { ...w, result: best, problem: null };
   let instance = w.instance;
   let lines = w.lines;
@@ -199,7 +206,9 @@ export function foldBest(w: Working, best: PackResult, check: boolean, instanceO
     const height = Math.max(best.height, ...w.kept.map((p) => p.position[2] + p.size[2]));
     return { ...w, instance, lines, result: { ...best, placements: [...w.kept, ...best.placements], height }, problem: null };
   }
-  const merged = mergeLayouts(instance, w.kept, best.placements, best.elapsedMs);
+  // Parts placed by shape may share box space: then only what joins the kept and the new is checked (mergeAbove).
+  const byShape = isByShape({ placements: w.kept }) || isByShape(best);
+  const merged = byShape ? mergeAbove(instance, w.kept, best.placements, best.elapsedMs, volumeOf) : mergeLayouts(instance, w.kept, best.placements, best.elapsedMs);
   return merged.ok ? { ...w, instance, lines, result: merged.result, problem: null } : { ...w, instance, lines, problem: merged.message };
 }
 

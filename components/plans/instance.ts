@@ -6,6 +6,8 @@ import {
   parseInstance,
   summariseLayout,
   toPlacementArrays,
+  TOLERANCE_MM,
+  usableRegion,
   validateLayout,
   type PackInstance,
   type PackInstanceInput,
@@ -59,6 +61,52 @@ export function mergeLayouts(full: PackInstanceInput, kept: Placement[], added: 
   const problems = validateLayout(parsed.instance, result);
   if (problems.length > 0) return { ok: false, message: problems.slice(0, 3).map((p) => `${p.field} ${p.message}`).join('; ') };
   return { ok: true, result };
+}
+
+/**
+ * Kept placements plus new ones packed in the slab above them (a re-pack or a
+ * fill), when either holds parts placed by shape: such parts may share box
+ * space (the shapes nest), so the boxes' check of the whole layout does not
+ * apply. The kept ones were checked when they were kept and the new ones by
+ * the packing that placed them; what joins them is checked here: every new
+ * part lies in the slab (at least the spacing above the kept top), inside
+ * the usable region, and no line gets more parts than it asks for. The
+ * server checks the whole layout against the meshes again when it is kept.
+ */
+export function mergeAbove(full: PackInstanceInput, kept: Placement[], added: Placement[], elapsedMs: number, volumeOf?: (id: string) => number | undefined): MergeOutcome {
+  const parsed = parseInstance(full);
+  if (!parsed.ok) return { ok: false, message: parsed.problems.map((p) => `${p.field} ${p.message}`).join('; ') };
+  const inst = parsed.instance;
+  const { min, max } = usableRegion(inst);
+  const floor = kept.length > 0 ? kept.reduce((m, p) => Math.max(m, p.position[2] + p.size[2]), 0) + inst.spacing : min[2];
+  const problems: string[] = [];
+  added.forEach((p, i) => {
+    const low = p.position;
+    const high = [low[0] + p.size[0], low[1] + p.size[1], low[2] + p.size[2]];
+    if (low[2] < floor - TOLERANCE_MM) problems.push(`added[${i}] ("${p.id}") is ${(floor - low[2]).toFixed(2)} mm too low: new parts go at least the spacing above the kept ones`);
+    else if ([0, 1, 2].some((a) => low[a] < min[a] - TOLERANCE_MM || high[a] > max[a] + TOLERANCE_MM)) problems.push(`added[${i}] ("${p.id}") is outside the usable region`);
+  });
+  const wanted = new Map(inst.parts.map((p) => [p.id, p.quantity] as const));
+  const count = new Map<string, number>();
+  for (const p of [...kept, ...added]) count.set(p.id, (count.get(p.id) ?? 0) + 1);
+  for (const [id, n] of count) {
+    if (!wanted.has(id)) problems.push(`"${id}" is not a line of the plan`);
+    else if (n > wanted.get(id)!) problems.push(`"${id}" is placed ${n} times where its line asks for ${wanted.get(id)}`);
+  }
+  if (problems.length > 0) return { ok: false, message: problems.slice(0, 3).join('; ') };
+  const result = summariseLayout(inst, [...kept, ...added], elapsedMs);
+  // A layout by shape counts each part's own volume (its mesh's), as the server's check does; boxes where unknown.
+  if (!volumeOf || result.utilization === 0) return { ok: true, result };
+  let boxes = 0;
+  let parts = 0;
+  for (const p of result.placements) {
+    const box = p.size[0] * p.size[1] * p.size[2];
+    const own = volumeOf(p.id);
+    boxes += box;
+    // An inside-out mesh measures negative; its size is the same.
+    parts += own !== undefined && Number.isFinite(own) && own !== 0 ? Math.abs(own) : box;
+  }
+  return { ok: true, result: { ...result, utilization: (result.utilization / boxes) * parts } };
 }
 
 /** A layout's placements without those at the given indices, summarised again. */

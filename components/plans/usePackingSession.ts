@@ -26,6 +26,8 @@ export interface PackingSessionInput {
   lines: DraftLine[];
   /** The plan's instance for other lines (a fill's). */
   instanceOf: (lines: DraftLine[]) => PackInstanceInput;
+  /** A line's part volume (its mesh's): a layout by shape's density counts it. */
+  volumeOf: (requestLineId: string) => number | undefined;
   /** The saved plan, for a draft begun by a fill. */
   startDraft: () => Omit<PlanDraft, 'changedAt'>;
   machine: MachineLike;
@@ -56,7 +58,7 @@ export interface PackingSession {
   retry: (() => void) | null;
 }
 
-export function usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart, shapeFilesFor }: PackingSessionInput): PackingSession {
+export function usePackingSession({ planId, editable, fullInstance, lines, instanceOf, volumeOf, startDraft, machine, material, options, onRunStart, shapeFilesFor }: PackingSessionInput): PackingSession {
   const packer = usePacker();
   const [working, setWorking] = useState<Working | null>(null);
   const [lastRun, setLastRun] = useState<(() => void) | null>(null);
@@ -64,7 +66,7 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
   // Reads the latest working layout and plan; only the worker's answers make it run (below).
   const takeBest = useEffectEvent((best: PackResult, final: boolean) => {
     if (!working) return;
-    const next = foldBest(working, best, final, instanceOf);
+    const next = foldBest(working, best, final, instanceOf, volumeOf);
     setWorking(next);
     if (final && next.mode === 'fill' && !next.problem) {
       // The plan's lines follow the fill, so keeping the layout saves both.
@@ -113,16 +115,17 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
     restoreWorking: (w) => setWorking(w),
     pack: () => {
       if (!editable || running || fullInstance.parts.length === 0) return;
-      // Re-packing above a locked layout and filling the rest stay by boxes: they add to a layout of boxes.
       run({ mode: 'pack', instance: fullInstance, kept: [], ...base }, fullInstance, options.fit === 'shape');
     },
+    // Re-packing above a locked layout and filling the space above the shown one pack the new parts in the
+    // slab above the others, by box or by shape as the plan's options say, whichever way the others were packed.
     repack: (locked) => {
       const { kept, engine } = repackOf(locked, fullInstance);
-      run({ mode: 'repack', instance: fullInstance, kept, ...base }, engine);
+      run({ mode: 'repack', instance: fullInstance, kept, ...base }, engine, options.fit === 'shape');
     },
     fill: (shown, candidates) => {
       const engine = fillInstanceOf(candidates, fullInstance, shown, machine, material, options);
-      run({ mode: 'fill', instance: fullInstance, kept: [...shown], ...base }, engine);
+      run({ mode: 'fill', instance: fullInstance, kept: [...shown], ...base }, engine, options.fit === 'shape');
     },
     error: packer.error ?? working?.problem ?? null,
     retry: lastRun,

@@ -133,7 +133,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     },
     [queryClient, lab.id, lineInfo],
   );
-  const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, startDraft, machine, material, options, onRunStart: clearMessage, shapeFilesFor });
+  const volumeOf = useCallback((lineId: string) => lineInfo.get(lineId)?.volumeMm3, [lineInfo]);
+  const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, volumeOf, startDraft, machine, material, options, onRunStart: clearMessage, shapeFilesFor });
   const { working, packer, running } = session;
   const stale = isStale(working, fullInstance);
 
@@ -297,21 +298,13 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
 
   // ---- re-pack what is new, fill the rest ------------------------------------------
   const lockedInstance = !showingWorking && shownSummary?.locked && stored.data ? stored.data.instance : null;
-  const repack = useMemo(
-    () =>
-      lockedInstance && shownByShape
-        ? { available: false, reason: 'Re-packing adds parts by their boxes above a layout of boxes: pack the whole plan again by shape instead.' }
-        : repackAvailability(lockedInstance, fullInstance),
-    [lockedInstance, fullInstance, shownByShape],
-  );
+  const repack = useMemo(() => repackAvailability(lockedInstance, fullInstance), [lockedInstance, fullInstance]);
   const onRepack = () => {
     if (stored.data && repack.available) session.repack(stored.data.result);
   };
   const fillCandidates = useMemo(() => fillCandidatesOf(openLines.data ?? [], lines), [openLines.data, lines]);
   const fillAvailable = fillCandidates.reduce((s, c) => s + c.extra, 0);
-  const fillReason = shownByShape
-    ? 'Filling adds parts by their boxes above a layout of boxes: add the lines and pack again by shape instead.'
-    : fillReasonOf(shownResult, shownInstance, fullInstance, fillAvailable);
+  const fillReason = fillReasonOf(shownResult, shownInstance, fullInstance, fillAvailable);
   const onFill = () => {
     if (shownResult && shownInstance && !fillReason) session.fill(shownResult.placements, fillCandidates);
   };

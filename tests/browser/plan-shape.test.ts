@@ -1,5 +1,6 @@
 // Packing a plan by the parts' shapes in the editor: the choice, the packing worker downloading the parts' files,
-// keeping the layout (the server checks the meshes), and what a layout by shape no longer offers (hand moves, fill).
+// keeping the layout (the server checks the meshes), filling the rest by shape above it, and what a layout by shape
+// does not offer (moves by hand).
 import type { Page } from 'playwright-core';
 import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 import { prism, prismWithHoles } from '../../shared/geometry';
@@ -42,6 +43,18 @@ async function newPlan(page: Page) {
   await page.getByTestId('screen-plan-editor').waitFor();
 }
 
+type ShownPlacement = { id: string; position: [number, number, number] };
+
+/** The newest kept layout of the plan on screen, as the API returns it. */
+async function layoutShown(page: Page): Promise<{ placements: ShownPlacement[] }> {
+  const get = async (path: string) => (await page.request.get(`/api${path}`)).json();
+  const labId = (await get('/me')).labs[0].id as string;
+  const planId = /\/plans\/([0-9a-f-]{36})/.exec(page.url())![1];
+  const plan = await get(`/labs/${labId}/plans/${planId}`);
+  const newest = [...plan.layouts].sort((x: { createdAt: string }, y: { createdAt: string }) => (x.createdAt < y.createdAt ? 1 : -1))[0];
+  return (await get(`/labs/${labId}/plans/${planId}/layouts/${newest.id}`)).result;
+}
+
 async function packByShape(page: Page) {
   await page.getByTestId('pack-fit-shape').click();
   await page.getByTestId('pack-fit-note').waitFor();
@@ -53,7 +66,7 @@ async function packByShape(page: Page) {
   await page.waitForFunction("!document.querySelector('[data-testid=\"pack-progress\"]')");
 }
 
-test('wide (1440 x 900): packed by shape, kept after the server checks the meshes, labelled by shape; fill is not offered on it', async () => {
+test('wide (1440 x 900): packed by shape, kept after the server checks the meshes, labelled by shape, then filled by shape above it', async () => {
   const page = await newPage(served, WIDE);
   await newPlan(page);
   await packByShape(page);
@@ -64,9 +77,27 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.getByTestId('layout-keep').click();
   await page.getByText(/^Kept as "Seed \d+ by shape · \d+ layers"/).waitFor({ timeout: 60_000 });
   await page.getByText(/^by shape · /).first().waitFor();
-  // Filling adds boxes above a layout of boxes: on a layout by shape the planner is told to pack again instead.
-  expect(await page.getByTestId('pack-fill').getAttribute('aria-disabled')).toBe('true');
-  await page.getByText(/^Filling adds parts by their boxes/).waitFor();
+  // Filling the rest packs the material's other open lines by shape in the space above the kept parts, which
+  // stay where they are; the whole layout is checked against the meshes again when it is kept.
+  const keptLayout = await layoutShown(page);
+  // Another request of pegs in the material comes in: the plan does not hold its line yet.
+  await urgentDemoRequest(served, [{ name: `Shape peg later ${requests}`, sizeMm: [16, 16, 10], quantity: 4, orientation: 'keep_up', mesh: peg }], `Shape fill ${requests}`);
+  await page.reload();
+  await page.getByTestId('screen-plan-editor').waitFor();
+  await page.getByTestId('pack-fit-shape').click();
+  await page.getByText('Fill the rest (4 open parts)').waitFor({ timeout: 30_000 });
+  await page.getByTestId('pack-fill').click();
+  await page.getByTestId('pack-progress').waitFor();
+  await page.getByTestId('pack-start').waitFor({ timeout: 120_000 });
+  await page.getByText('Added').first().waitFor();
+  await screenshot(page, 'plan-editor-filled-by-shape-wide');
+  await page.getByTestId('layout-keep').click();
+  await page.getByText(/^Kept as "Filled by shape · \d+ layers"/).waitFor({ timeout: 90_000 });
+  const filled = await layoutShown(page);
+  expect(filled.placements.length).toBeGreaterThan(keptLayout.placements.length);
+  const at = (p: ShownPlacement) => `${p.id}@${p.position.map((v) => v.toFixed(6)).join(',')}`;
+  const filledKeys = new Set(filled.placements.map(at));
+  for (const p of keptLayout.placements) expect(filledKeys.has(at(p))).toBe(true);
   await page.context().close();
 });
 

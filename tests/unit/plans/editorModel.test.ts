@@ -142,6 +142,49 @@ describe('a fill', () => {
   });
 });
 
+describe('a fill or re-pack above a layout packed by shape', () => {
+  // Two 20 x 20 x 10 parts of line a packed by shape: their boxes overlap by 5 mm (the shapes nest), which the
+  // boxes' check would refuse. The transform is a plain translation to each box's corner.
+  const shaped = (x: number, y: number, z: number): Placement => ({ ...box('a', x, y, z, [20, 20, 10]), transform: [1, 0, 0, 0, 1, 0, 0, 0, 1, x, y, z] });
+  const kept = [shaped(5, 5, 5), shaped(20, 5, 5)];
+  const base: Working = { mode: 'fill', instance: instanceOf([line('a', 2)]), kept, result: null, lines: [line('a', 2)], baseLines: [line('a', 2)], problem: null };
+
+  it('adds the new parts in the slab above without checking the nested boxes below against each other', () => {
+    // Kept top 15 mm plus the 2 mm spacing: the slab starts at 17 mm.
+    const next = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), true, instanceOf);
+    expect(next.problem).toBeNull();
+    expect(next.result?.placements.map((p) => p.id)).toEqual(['a', 'a', 'c', 'c']);
+    // Still a layout by shape: it is kept as one and checked against the meshes by the server.
+    expect(next.result?.placements.filter((p) => p.transform)).toHaveLength(2);
+    expect(next.lines).toEqual([line('a', 2), line('c', 2)]);
+  });
+
+  it("counts each part's own volume in the density, as the server's check of a layout by shape does", () => {
+    const volumes = new Map([['a', 1500], ['c', 400]]);
+    const next = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), true, instanceOf, (id) => volumes.get(id));
+    // Usable plate 290 x 290 mm (300 less 5 mm each side), from the 5 mm floor margin to the top at 27 mm.
+    expect(next.result?.utilization).toBeCloseTo((2 * 1500 + 2 * 400) / (290 * 290 * (27 - 5)), 12);
+    // Without the volumes, the boxes'.
+    const boxes = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), true, instanceOf);
+    expect(boxes.result?.utilization).toBeCloseTo((2 * 4000 + 2 * 1000) / (290 * 290 * (27 - 5)), 12);
+  });
+
+  it('refuses a new part lower than the slab, naming it and by how much', () => {
+    const low = foldBest(base, result([box('c', 5, 5, 16, [10, 10, 10])]), true, instanceOf);
+    expect(low.problem).toMatch(/added\[0\] \("c"\) is 1\.00 mm too low/);
+    expect(canKeep(low, { editable: true, running: false, stale: false })).toBe(false);
+  });
+
+  it('refuses a new part outside the usable region and more parts than a line asks for', () => {
+    // The usable plate ends at 300 - 5 mm.
+    const out = foldBest(base, result([box('c', 290, 5, 17, [10, 10, 10])]), true, instanceOf);
+    expect(out.problem).toMatch(/outside the usable region/);
+    const repack: Working = { ...base, mode: 'repack', instance: instanceOf([line('a', 2)]), lines: [line('a', 2)] };
+    const extra = foldBest(repack, result([shaped(5, 5, 20)]), true, instanceOf);
+    expect(extra.problem).toMatch(/"a" is placed 3 times where its line asks for 2/);
+  });
+});
+
 describe('re-packing above a locked layout', () => {
   const locked = result([box('a', 5, 5, 5, [20, 20, 10]), box('a', 27, 5, 5, [20, 20, 10]), box('b', 49, 5, 5, [30, 30, 30])]);
 
