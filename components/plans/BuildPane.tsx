@@ -33,7 +33,7 @@ export interface BuildPaneProps {
   onRemoveMarked: () => void;
   onClearMarked: () => void;
   editable: boolean;
-  /** The layout shown was packed by shape: its parts are not moved by hand. */
+  /** The layout shown was packed by shape: a part moved by hand is checked by its box (it cannot be moved into a hollow). */
   byShape: boolean;
   caption: string;
   live: boolean;
@@ -59,7 +59,11 @@ const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] =
 
 /** What the pointer does: a wide screen has a mouse to hover with, a phone only taps. */
 function pointerHint(wide: boolean, editable: boolean, byShape: boolean): string {
-  if (editable && byShape) return wide ? 'Hover a part to see its line. Packed by shape: pack again to change this layout.' : 'Packed by shape: pack again to change it.';
+  if (editable && byShape) {
+    return wide
+      ? 'Hover a part to see its line; click to mark it, drag to move it. Packed by shape: moved parts keep their boxes clear of the others.'
+      : 'Tap to mark; moved parts keep their boxes clear.';
+  }
   if (wide) return editable ? 'Hover a part to see its line; click to mark it, drag a marked part to move it.' : 'Hover a part to see its line.';
   return editable ? 'Tap a part to mark it; drag a marked part to move it.' : 'Tap a part to see its line.';
 }
@@ -122,7 +126,9 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
       ) : null}
       {p.faults > 0 ? (
         <Notice tone="caution" title="Parts too close" testID="plan-edit-faults">
-          {`${p.faults} part${p.faults === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${p.faults === 1 ? 'it' : 'them'} apart or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then.`}
+          {p.byShape
+            ? `${p.faults} part${p.faults === 1 ? "'s box is" : "s' boxes are"} closer than the ${p.spacingMm} mm spacing to another part's box, outside the usable region, or in the way of a part lifted out before it (red). Move ${p.faults === 1 ? 'it' : 'them'} clear or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then. Packing again nests parts into each other.`
+            : `${p.faults} part${p.faults === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${p.faults === 1 ? 'it' : 'them'} apart or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then.`}
         </Notice>
       ) : null}
       {p.editable && (p.marked > 0 || p.onUndo) ? (

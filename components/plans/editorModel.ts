@@ -10,7 +10,9 @@ import {
   droppedPlacements,
   movedPlacements,
   parseInstance,
+  inLiftOrder,
   placementsAtFault,
+  shapeEditFaults,
   summariseLayout,
   turnedPlacements,
   validateLayout,
@@ -44,6 +46,8 @@ export interface Working {
   /** The lines before the run began: a fill adds to these, however often its best layout changes. */
   baseLines: DraftLine[];
   problem: string | null;
+  /** Placements (by index) moved, turned or dropped by hand in a layout packed by shape: the ones its check looks at. */
+  handMoved?: number[];
 }
 
 /** Everything the editor knows about a request line, whether saved in the plan or offered from the open lines. */
@@ -228,9 +232,17 @@ export type HandEdit = { kind: 'move'; dxMm: number; dyMm: number } | { kind: 't
 /**
  * The layout after a hand edit of the chosen placements, summarised again (height, layers, density): moved
  * across the plate or turned a quarter turn about z at their height, or dropped to the lowest free height.
- * A move or turn may leave parts closer than the spacing: editFaults finds them.
+ * A move or turn may leave parts closer than the spacing: editFaults finds them. In a layout packed by shape
+ * the changed parts are listed again where they can be lifted out in turn (inLiftOrder) unless `reorder` is
+ * false; `indexOf` then gives each old index's new one.
  */
-export function handEdited(instance: PackInstanceInput, result: PackResult, chosen: ReadonlySet<number>, edit: HandEdit): { ok: true; result: PackResult } | { ok: false; message: string } {
+export function handEdited(
+  instance: PackInstanceInput,
+  result: PackResult,
+  chosen: ReadonlySet<number>,
+  edit: HandEdit,
+  reorder = true,
+): { ok: true; result: PackResult; indexOf?: number[] } | { ok: false; message: string } {
   const parsed = parseInstance(instance);
   if (!parsed.ok || chosen.size === 0) return { ok: false, message: 'Mark a part first.' };
   const inst = parsed.instance;
@@ -242,14 +254,26 @@ export function handEdited(instance: PackInstanceInput, result: PackResult, chos
     if (!turned.ok) return turned;
     placements = turned.placements;
   }
+  if (reorder && isByShape(result)) {
+    const ordered = inLiftOrder(placements, chosen);
+    return { ok: true, result: summariseLayout(inst, ordered.placements, result.elapsedMs), indexOf: ordered.indexOf };
+  }
   return { ok: true, result: summariseLayout(inst, placements, result.elapsedMs) };
 }
 
 /** The placements of a layout that break the rules (closer than the spacing, outside the usable region), by index. */
-export function editFaults(instance: PackInstanceInput, result: PackResult): Set<number> {
+export function editFaults(instance: PackInstanceInput, result: PackResult, handMoved?: Iterable<number>): Set<number> {
   const parsed = parseInstance(instance);
   if (!parsed.ok) return new Set();
+  // Packed by shape, parts may share box space: only what was changed by hand is checked (shapeEditFaults).
+  if (isByShape(result)) return shapeEditFaults(parsed.instance, result.placements, handMoved ?? []);
   return placementsAtFault(validateLayout(parsed.instance, result));
+}
+
+/** The indices moved by hand after placements at `removed` are taken out: those left, renumbered. */
+export function movedAfterRemoval(handMoved: readonly number[], removed: ReadonlySet<number>): number[] {
+  const gone = [...removed].sort((a, b) => a - b);
+  return handMoved.filter((i) => !removed.has(i)).map((i) => i - gone.filter((r) => r < i).length);
 }
 
 /** A layout packed by shape: its mesh parts carry their transforms (a layout of boxes never does). */

@@ -94,9 +94,15 @@ export function mergeAbove(full: PackInstanceInput, kept: Placement[], added: Pl
     else if (n > wanted.get(id)!) problems.push(`"${id}" is placed ${n} times where its line asks for ${wanted.get(id)}`);
   }
   if (problems.length > 0) return { ok: false, message: problems.slice(0, 3).join('; ') };
-  const result = summariseLayout(inst, [...kept, ...added], elapsedMs);
-  // A layout by shape counts each part's own volume (its mesh's), as the server's check does; boxes where unknown.
-  if (!volumeOf || result.utilization === 0) return { ok: true, result };
+  return { ok: true, result: withPartVolumes(summariseLayout(inst, [...kept, ...added], elapsedMs), volumeOf) };
+}
+
+/**
+ * A layout by shape's density counts each part's own volume (its mesh's), as the server's check does; the
+ * summary of a layout counts boxes. Parts whose volume is not known count as their boxes.
+ */
+export function withPartVolumes(result: PackResult, volumeOf?: (id: string) => number | undefined): PackResult {
+  if (!volumeOf || result.utilization === 0) return result;
   let boxes = 0;
   let parts = 0;
   for (const p of result.placements) {
@@ -106,7 +112,7 @@ export function mergeAbove(full: PackInstanceInput, kept: Placement[], added: Pl
     // An inside-out mesh measures negative; its size is the same.
     parts += own !== undefined && Number.isFinite(own) && own !== 0 ? Math.abs(own) : box;
   }
-  return { ok: true, result: { ...result, utilization: (result.utilization / boxes) * parts } };
+  return { ...result, utilization: (result.utilization / boxes) * parts };
 }
 
 /** A layout's placements without those at the given indices, summarised again. */

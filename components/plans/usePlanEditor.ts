@@ -41,6 +41,7 @@ import {
   editFaults,
   handEdited,
   isByShape,
+  movedAfterRemoval,
   type HandEdit,
   type Working,
   movedCutMm,
@@ -59,7 +60,7 @@ import {
   WORKING,
 } from './editorModel';
 import { estimateWorking, numbersFromEstimate, type ShownNumbers } from './estimate';
-import { buildInstance, defaultOptions, EMPTY_PLACEMENTS, toChamberPlacements, withoutPlacements } from './instance';
+import { buildInstance, defaultOptions, EMPTY_PLACEMENTS, toChamberPlacements, withoutPlacements, withPartVolumes } from './instance';
 import { rowsOf, type LayoutRow } from './LayoutsTable';
 import type { LinesPaneProps } from './LinesPane';
 import { useChamberMeshes } from './useChamberMeshes';
@@ -172,16 +173,18 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const [dragMm, setDragMm] = useState<[number, number] | null>(null);
   const dragged = useMemo(() => {
     if (!dragMm || !shownInstance || !shownResult || marked.length === 0) return null;
-    const out = handEdited(shownInstance, shownResult, new Set(marked), { kind: 'move', dxMm: dragMm[0], dyMm: dragMm[1] });
+    // (Listed again in lift-out order only on release: the marks and the check read the same indices meanwhile.)
+    const out = handEdited(shownInstance, shownResult, new Set(marked), { kind: 'move', dxMm: dragMm[0], dyMm: dragMm[1] }, false);
     return out.ok ? out.result : null;
   }, [dragMm, shownInstance, shownResult, marked]);
   const viewResult = dragged ?? shownResult;
   // A layout changed by hand is checked as it changes: the parts it leaves at fault are drawn in the warning colour.
+  // Packed by shape, only the parts changed by hand are checked (by their boxes); the meshes on the server.
+  const handMoved = useMemo(() => (showingWorking && working.mode === 'edit' ? (working.handMoved ?? []) : []), [showingWorking, working]);
   const faults = useMemo(() => {
-    if (shownByShape) return new Set<number>();
-    if (dragged && shownInstance) return editFaults(shownInstance, dragged);
-    return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result) : new Set<number>();
-  }, [dragged, shownInstance, showingWorking, working, shownByShape]);
+    if (dragged && shownInstance) return editFaults(shownInstance, dragged, [...handMoved, ...marked]);
+    return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result, handMoved) : new Set<number>();
+  }, [dragged, shownInstance, showingWorking, working, handMoved, marked]);
   const placements = useMemo(() => {
     if (!viewResult) return EMPTY_PLACEMENTS;
     const p = toChamberPlacements(viewResult, colourOrder);
@@ -255,37 +258,39 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     setUndoable([]);
     session.dropWorking();
   };
-  const refuseByShape = () => {
-    say({ tone: 'info', text: "This layout was packed by shape: its parts nest into each other, and changes by hand are checked by boxes only. Pack again to change it." });
-  };
   const onRemoveMarked = () => {
     if (!shownInstance || !shownResult) return;
-    if (shownByShape) return refuseByShape();
-    const next = withoutPlacements(shownInstance, shownResult, new Set(marked));
+    const removed = new Set(marked);
+    const next = withoutPlacements(shownInstance, shownResult, removed);
     if (!next) return;
     remember();
     clearMarked();
-    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: next, lines, baseLines: lines, problem: null });
+    // Packed by shape, the density counts the parts' own volumes, and what was moved by hand keeps being checked.
+    const result = shownByShape ? withPartVolumes(next, volumeOf) : next;
+    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result, lines, baseLines: lines, problem: null, handMoved: movedAfterRemoval(handMoved, removed) });
   };
   // Marked parts moved, turned or dropped by hand: the result shown as a layout not kept yet, checked as it changes.
   const editable3d = editable && !running && !!shownInstance && !!shownResult && marked.length > 0;
   const onHandEdit = (e: HandEdit) => {
     if (!editable3d || !shownInstance || !shownResult) return;
-    if (shownByShape) return refuseByShape();
     const out = handEdited(shownInstance, shownResult, new Set(marked), e);
     if (!out.ok) {
       say({ tone: 'danger', text: out.message });
       return;
     }
-    const keep = [...marked];
+    // Packed by shape, the changed parts may be listed anew (lift-out order): the marks follow them.
+    const at = (i: number) => out.indexOf?.[i] ?? i;
+    const keep = marked.map(at);
     remember();
-    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result: out.result, lines, baseLines: lines, problem: null });
-    // The edited layout holds the same placements in the same order: the marks stay on them.
+    const result = shownByShape ? withPartVolumes(out.result, volumeOf) : out.result;
+    const moved = shownByShape ? [...new Set([...handMoved, ...marked])].map(at) : undefined;
+    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result, lines, baseLines: lines, problem: null, handMoved: moved });
+    // The edited layout holds the same placements: the marks stay on them.
     marksFollow.current = shownId !== WORKING;
     setMarked(keep);
   };
   // A drag starts on a marked part; it moves every marked part, and its release is one change by hand like a key's.
-  const onDragStart = (i: number) => editable3d && !shownByShape && marked.includes(i);
+  const onDragStart = (i: number) => editable3d && marked.includes(i);
   const onDrag = (dxMm: number, dyMm: number, phase: 'move' | 'end' | 'cancel') => {
     if (phase === 'move') {
       setDragMm([dxMm, dyMm]);

@@ -139,3 +139,77 @@ export function placementsAtFault(problems: readonly { field: string; message: s
   }
   return at;
 }
+
+/** True when two boxes come closer than `spacing` along every axis (their boxes, not their shapes, meet). */
+function boxesMeet(a: Placement, b: Placement, spacing: number): boolean {
+  for (let k = 0; k < 3; k++) {
+    const gap = Math.max(b.position[k] - (a.position[k] + a.size[k]), a.position[k] - (b.position[k] + b.size[k]));
+    if (gap >= spacing - TOLERANCE_MM) return false;
+  }
+  return true;
+}
+
+/**
+ * The placements at fault after parts of a layout packed by shape were moved, turned or dropped by hand
+ * (`moved`, by index). Parts packed by shape may share box space where they nest, so only the moved ones are
+ * checked, and by their boxes, which hold their shapes: a moved part whose box comes within the spacing of
+ * another part's box is at fault (a move into another part's hollow is refused this way; packing nests them),
+ * and so is one that would block or be blocked on the way out: the layout lists parts in the order they are
+ * placed (lifted out in reverse), so a part above a moved one over the same footprint must come after it, and
+ * one below before it. What is not moved keeps the exact check it passed; the server checks the meshes again.
+ */
+export function shapeEditFaults(instance: Pick<PackInstance, 'chamber' | 'margin' | 'spacing'>, placements: readonly Placement[], moved: Iterable<number>): Set<number> {
+  const at = new Set<number>();
+  const g = instance.spacing;
+  const U = usableRegion(instance);
+  for (const i of moved) {
+    const p = placements[i];
+    if (!p) continue;
+    for (let k = 0; k < 3; k++) {
+      if (p.position[k] < U.min[k] - TOLERANCE_MM || p.position[k] + p.size[k] > U.max[k] + TOLERANCE_MM) at.add(i);
+    }
+    placements.forEach((q, j) => {
+      if (j === i) return;
+      if (boxesMeet(p, q, g)) {
+        at.add(i);
+        return;
+      }
+      // Footprints that overlap: the upper one goes out first, so it must be listed after the lower one.
+      if (!footprintsMeet(p, q, 0)) return;
+      const qAbove = q.position[2] >= p.position[2] + p.size[2] - TOLERANCE_MM;
+      if (qAbove ? j < i : i < j) at.add(i);
+    });
+  }
+  return at;
+}
+
+/**
+ * The placements of a layout packed by shape in an order they can be lifted out (in reverse) after the `moved`
+ * ones changed place: each moved part, lowest first, stays where it is listed if that order holds, else is
+ * listed again just after the last part under it (over the same footprint), when that is before every part
+ * over it; a part with no such place stays where it was
+ * (shapeEditFaults then names it). Returns the new list and, for each old index, its new index.
+ */
+export function inLiftOrder(placements: readonly Placement[], moved: Iterable<number>): { placements: Placement[]; indexOf: number[] } {
+  let order = placements.map((_, i) => i);
+  const ids = [...new Set(moved)].filter((i) => placements[i]).sort((a, b) => placements[a].position[2] - placements[b].position[2]);
+  for (const i of ids) {
+    const p = placements[i];
+    const rest = order.filter((k) => k !== i);
+    let lastBelow = -1;
+    let firstAbove = rest.length;
+    rest.forEach((k, at) => {
+      const q = placements[k];
+      if (!footprintsMeet(p, q, 0)) return;
+      if (q.position[2] + q.size[2] <= p.position[2] + TOLERANCE_MM) lastBelow = at;
+      else if (q.position[2] >= p.position[2] + p.size[2] - TOLERANCE_MM && at < firstAbove) firstAbove = at;
+    });
+    // Where it is may do already (nothing under it listed after it, nothing over it before it): it stays.
+    const at = order.indexOf(i);
+    if (lastBelow < at && at <= firstAbove) continue;
+    if (lastBelow < firstAbove) order = [...rest.slice(0, lastBelow + 1), i, ...rest.slice(lastBelow + 1)];
+  }
+  const indexOf = new Array<number>(placements.length);
+  order.forEach((old, at) => (indexOf[old] = at));
+  return { placements: order.map((k) => placements[k]), indexOf };
+}

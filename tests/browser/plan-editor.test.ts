@@ -1,6 +1,6 @@
 // Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
 import type { CDPSession, Page } from 'playwright-core';
-import { ARTIFACTS, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { ARTIFACTS, markAPart, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 
 jest.setTimeout(300_000);
 
@@ -171,41 +171,6 @@ describe('the 3D view gets the room and frames the parts', () => {
     await page.context().close();
   });
 });
-
-/** Looks down on the parts and clicks (or taps) points of the view until one marks a part. */
-async function markAPart(page: Page, tap: boolean) {
-  // (tap: a touch; the phone runs here with a mouse, which the view treats alike)
-  await page.getByTestId('view-top').click();
-  await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
-  const canvas = page.locator('[data-testid="plan-build"] canvas');
-  const box = (await canvas.boundingBox())!;
-  // A packed plate may leave its middle empty: points over the view under its button bar, a grid of 9 x 8.
-  const points: [number, number][] = [];
-  for (let i = 0; i < 8; i++) for (let j = 1; j <= 9; j++) points.push([j / 10, 0.25 + i / 10]);
-  for (const [fx, fy] of points) {
-    const x = box.x + box.width * fx;
-    const y = box.y + box.height * fy;
-    if (tap) await page.touchscreen.tap(x, y);
-    else await page.mouse.click(x, y);
-    // A part under the point marks it: the bar naming the marked parts appears.
-    const marked = await page
-      .getByTestId('plan-marked')
-      .waitFor({ timeout: 500 })
-      .then(() => true)
-      .catch(() => false);
-    if (marked) return;
-  }
-  throw new Error('no part under any of the points tried');
-}
-
-/** Moves the marked part step by step one way until it comes within the spacing of another (or the steps run out). */
-async function moveUntilFault(page: Page, step: () => Promise<void>, steps = 40) {
-  for (let i = 0; i < steps && (await page.getByTestId('plan-edit-faults').count()) === 0; i++) {
-    await step();
-    // The screen has drawn the moved layout (and its check) before it is read again.
-    await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
-  }
-}
 
 describe('moving, turning and dropping parts by hand', () => {
   test('wide (1440 x 900): arrows move a marked part, the clash is shown and blocks keeping, D drops it clear', async () => {

@@ -1,8 +1,7 @@
 // Packing a plan by the parts' shapes in the editor: the choice, the packing worker downloading the parts' files,
-// keeping the layout (the server checks the meshes), filling the rest by shape above it, and what a layout by shape
-// does not offer (moves by hand).
+// keeping the layout (the server checks the meshes), filling the rest by shape above it, and moving a part by hand.
 import type { Page } from 'playwright-core';
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { markAPart, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 import { prism, prismWithHoles } from '../../shared/geometry';
 
 jest.setTimeout(300_000);
@@ -101,7 +100,7 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.context().close();
 });
 
-test('phone (390 x 844): the choice and the packing on the lines tab, the parts drawn in the 3D tab', async () => {
+test('phone (390 x 844): the choice and the packing on the lines tab, the parts drawn in the 3D tab, a part moved and dropped by hand', async () => {
   const page = await newPage(served, PHONE);
   await newPlan(page);
   await page.getByTestId('plan-tabs').waitFor();
@@ -114,9 +113,25 @@ test('phone (390 x 844): the choice and the packing on the lines tab, the parts 
   await page.getByText(/^Kept as "Seed \d+ by shape/).waitFor({ timeout: 60_000 });
   await page.getByTestId('plan-tab-build').click();
   await page.locator('[data-testid="plan-build"] canvas').waitFor();
-  await page.getByText(/Packed by shape: pack again to change/).waitFor();
+  await page.getByText(/moved parts keep their boxes clear/).waitFor();
   await page.waitForFunction('!!window.__chamberProbe', undefined, { timeout: 10_000 });
   await page.waitForTimeout(500);
   await screenshot(page, 'plan-editor-kept-by-shape-phone');
+
+  // A part moved by hand is checked by its box: moved into another part's box it is at fault and the layout
+  // cannot be kept; dropped, it goes to the lowest height clear of every box, is listed again where it can be
+  // lifted out in turn, and the layout is kept once the server has checked the meshes.
+  await markAPart(page, false);
+  await page.getByTestId('plan-move-left').scrollIntoViewIfNeeded();
+  await moveUntilFault(page, () => page.getByTestId('plan-move-left').click());
+  await moveUntilFault(page, () => page.getByTestId('plan-move-right').click(), 80);
+  await moveUntilFault(page, () => page.getByTestId('plan-move-back').click());
+  await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
+  await page.getByTestId('plan-edit-faults').waitFor();
+  await page.getByTestId('plan-drop').click();
+  await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
+  await page.getByTestId('plan-tab-layouts').click();
+  await page.getByTestId('layout-keep').click();
+  await page.getByText(/^Kept as "Edited by shape · \d+ layers"/).waitFor({ timeout: 60_000 });
   await page.context().close();
 });

@@ -4,6 +4,8 @@ import {
   movedPlacements,
   parseInstance,
   placementsAtFault,
+  shapeEditFaults,
+  inLiftOrder,
   summariseLayout,
   turnedPlacements,
   validateLayout,
@@ -94,5 +96,65 @@ describe('dropping to the lowest free height', () => {
     // it, at 16 + 10 + 2 = 28 mm.
     const low = [place('bracket', [5, 5, 16], [20, 10, 10]), start[1], place('cube', [8, 5, 60], [10, 10, 10])];
     expect(lowestFreeZ(instance, low, 2)).toBe(28);
+  });
+});
+
+describe('parts of a layout packed by shape changed by hand', () => {
+  // A 40 x 40 x 20 mm cup at the floor holding a 10 mm cube (their boxes overlap: the cube is in the hollow),
+  // and a bracket standing free. Listed in the order they were placed: the cup before what it holds.
+  const cup = place('bracket', [5, 5, 5], [40, 40, 20]);
+  const held = place('cube', [20, 20, 8], [10, 10, 10]);
+  const free = place('bracket', [60, 60, 5], [20, 10, 10]);
+  const layout = [cup, held, free];
+
+  it('leaves the nested parts alone when nothing was moved by hand, though their boxes overlap', () => {
+    expect(shapeEditFaults(instance, layout, [])).toEqual(new Set());
+    // The boxes' check would flag them.
+    expect(validateLayout(instance, summariseLayout(instance, layout)).length).toBeGreaterThan(0);
+  });
+
+  it('lets a moved part stand where its box is clear of the others by the spacing', () => {
+    const moved = movedPlacements(instance, layout, new Set([2]), -10, 0);
+    expect(shapeEditFaults(instance, moved, [2])).toEqual(new Set());
+  });
+
+  it('flags a part moved closer than the spacing to another box, or into a hollow (its box meets the cup\'s)', () => {
+    // The free bracket 14 mm to the left and 20 mm to the front: beside the cup, 1 mm from its box (which ends at
+    // x = 45 mm), less than the 2 mm spacing.
+    const near = movedPlacements(instance, layout, new Set([2]), -14, -20);
+    expect(shapeEditFaults(instance, near, [2])).toEqual(new Set([2]));
+    // The held cube moved 5 mm stays inside the cup's box: checked by boxes it is at fault (packing nests it).
+    const inside = movedPlacements(instance, layout, new Set([1]), 5, 0);
+    expect(shapeEditFaults(instance, inside, [1])).toEqual(new Set([1]));
+  });
+
+  it('flags a moved part that would be lifted out before a part above it, listed earlier', () => {
+    // The free bracket dropped under a plate listed before it (the plate is lifted out after it: blocked).
+    const plate = place('bracket', [55, 55, 40], [30, 20, 4]);
+    const stacked = [plate, cup, free];
+    expect(shapeEditFaults(instance, stacked, [2])).toEqual(new Set([2]));
+    // Listed after the plate it sits under is fine the other way round: the bracket under, listed first.
+    expect(shapeEditFaults(instance, [free, cup, plate], [0])).toEqual(new Set());
+  });
+
+  it('lists a moved part again where it can be lifted out in turn: before what is over it, after what is under it', () => {
+    const plate = place('bracket', [55, 55, 40], [30, 20, 4]);
+    const under = inLiftOrder([plate, cup, free], [2]);
+    expect(under.placements).toEqual([free, plate, cup]);
+    expect(under.indexOf).toEqual([1, 2, 0]);
+    expect(shapeEditFaults(instance, under.placements, [0])).toEqual(new Set());
+    // Dropped on top of the cup (listed last already, over it): it stays where it is.
+    const onCup = place('cube', [20, 20, 27], [10, 10, 10]);
+    expect(inLiftOrder([cup, free, onCup], [2]).indexOf).toEqual([0, 1, 2]);
+    // Moved over the free bracket but listed first: it goes after it.
+    const over = place('cube', [62, 60, 17], [10, 10, 10]);
+    const after = inLiftOrder([over, cup, free], [0]);
+    expect(after.placements).toEqual([cup, free, over]);
+    // Caught between a part under it listed after one over it: no place for it, it stays (and is at fault).
+    const low = place('cube', [62, 60, 5], [10, 10, 5]);
+    const high = place('cube', [62, 60, 30], [10, 10, 5]);
+    const mid = place('cube', [62, 60, 15], [10, 10, 5]);
+    expect(inLiftOrder([high, mid, low], [1]).indexOf).toEqual([0, 1, 2]);
+    expect(shapeEditFaults(instance, [high, mid, low], [1])).toEqual(new Set([1]));
   });
 });

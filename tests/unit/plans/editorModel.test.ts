@@ -15,6 +15,7 @@ import {
   buildStackOf,
   editFaults,
   handEdited,
+  movedAfterRemoval,
   movedCutMm,
   stackNote,
   repackAvailability,
@@ -182,6 +183,29 @@ describe('a fill or re-pack above a layout packed by shape', () => {
     const repack: Working = { ...base, mode: 'repack', instance: instanceOf([line('a', 2)]), lines: [line('a', 2)] };
     const extra = foldBest(repack, result([shaped(5, 5, 20)]), true, instanceOf);
     expect(extra.problem).toMatch(/"a" is placed 3 times where its line asks for 2/);
+  });
+});
+
+describe('a layout packed by shape changed by hand', () => {
+  const shaped = (id: string, x: number, y: number, z: number, size: Vec3): Placement => ({ ...box(id, x, y, z, size), transform: [1, 0, 0, 0, 1, 0, 0, 0, 1, x, y, z] });
+  // A 20 x 20 x 10 part of line a holding one of line c in its hollow (their boxes overlap), another a beside.
+  const layout = result([shaped('a', 5, 5, 5, [20, 20, 10]), shaped('c', 10, 10, 7, [10, 10, 6]), shaped('a', 40, 5, 5, [20, 20, 10])]);
+  const full = instanceOf([line('a', 2), line('c', 1)]);
+
+  it('checks only the parts moved by hand, by their boxes, and keeps the transforms with the moves', () => {
+    expect(editFaults(full, layout, [])).toEqual(new Set());
+    const moved = handEdited(full, layout, new Set([2]), { kind: 'move', dxMm: 20, dyMm: 0 });
+    if (!moved.ok) throw new Error(moved.message);
+    expect(moved.result.placements[2].transform?.slice(9)).toEqual([60, 5, 5]);
+    expect(editFaults(full, moved.result, [2])).toEqual(new Set());
+    // Back beside the first one, 1 mm from its box (less than the 2 mm spacing).
+    const close = handEdited(full, layout, new Set([2]), { kind: 'move', dxMm: -14, dyMm: 0 });
+    if (!close.ok) throw new Error(close.message);
+    expect(editFaults(full, close.result, [2])).toEqual(new Set([2]));
+  });
+
+  it('renumbers the parts moved by hand when others are taken out', () => {
+    expect(movedAfterRemoval([0, 3, 5], new Set([1, 3]))).toEqual([0, 3]);
   });
 });
 
