@@ -1,6 +1,6 @@
 // Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
 import type { CDPSession, Page } from 'playwright-core';
-import { ARTIFACTS, markAPart, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { ARTIFACTS, markAPart, moveIntoClash, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 
 jest.setTimeout(300_000);
 
@@ -216,11 +216,7 @@ describe('moving, turning and dropping parts by hand', () => {
     await markAPart(page, false);
     await page.getByTestId('plan-move-left').scrollIntoViewIfNeeded();
     await screenshot(page, 'plan-editor-marked-phone');
-    await moveUntilFault(page, () => page.getByTestId('plan-move-left').click());
-    await moveUntilFault(page, () => page.getByTestId('plan-move-right').click(), 80);
-    await moveUntilFault(page, () => page.getByTestId('plan-move-back').click());
-    await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
-    await page.getByTestId('plan-edit-faults').waitFor();
+    await moveIntoClash(page);
     await page.getByTestId('plan-edit-faults').scrollIntoViewIfNeeded();
     await screenshot(page, 'plan-editor-clash-phone');
     await page.getByTestId('plan-drop').click();

@@ -1,7 +1,7 @@
 // Packing a plan by the parts' shapes in the editor: the choice, the packing worker downloading the parts' files,
 // keeping the layout (the server checks the meshes), filling the rest by shape above it, and moving a part by hand.
 import type { Page } from 'playwright-core';
-import { markAPart, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { markAPart, moveIntoClash, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 import { prism, prismWithHoles } from '../../shared/geometry';
 
 jest.setTimeout(300_000);
@@ -123,11 +123,7 @@ test('phone (390 x 844): the choice and the packing on the lines tab, the parts 
   // lifted out in turn, and the layout is kept once the server has checked the meshes.
   await markAPart(page, false);
   await page.getByTestId('plan-move-left').scrollIntoViewIfNeeded();
-  await moveUntilFault(page, () => page.getByTestId('plan-move-left').click());
-  await moveUntilFault(page, () => page.getByTestId('plan-move-right').click(), 80);
-  await moveUntilFault(page, () => page.getByTestId('plan-move-back').click());
-  await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
-  await page.getByTestId('plan-edit-faults').waitFor();
+  await moveIntoClash(page);
   await page.getByTestId('plan-drop').click();
   await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
   await page.getByTestId('plan-tab-layouts').click();

@@ -163,3 +163,12 @@ export async function moveUntilFault(page: Page, step: () => Promise<void>, step
     await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
   }
 }
+
+/** With the buttons under the view: the marked part moved left, right, back and front until it clashes with another. */
+export async function moveIntoClash(page: Page) {
+  await moveUntilFault(page, () => page.getByTestId('plan-move-left').click());
+  await moveUntilFault(page, () => page.getByTestId('plan-move-right').click(), 80);
+  await moveUntilFault(page, () => page.getByTestId('plan-move-back').click());
+  await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
+  await page.getByTestId('plan-edit-faults').waitFor();
+}
