@@ -131,15 +131,14 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
 
 /**
  * The best pair of two copies of one kind side by side on the floor, each
- * reaching into the other's empty columns (two L brackets corner to corner,
- * a clip turned into another's opening): the second copy is tried in every
- * allowed rotation at every offset where it rests on the floor clear of the
- * first by the spacing, and the pair whose box (grown by the spacing) is
- * smallest (and on the plate) is kept if it is at most `gain` of the two
- * boxes apart. The
- * second is dropped after the first, so the pair lifts out top copy first
- * like any nest; the spacing is the drop's (dilated height map), checked
- * exactly against the meshes with the rest of the layout.
+ * reaching into the other's empty columns (two L brackets corner to corner):
+ * the second copy is tried in every allowed rotation at every offset where it
+ * rests on the floor clear of the first by the spacing, and the pair whose
+ * box (grown by the spacing) is smallest and fits the plate is kept if it is
+ * at most `gain` of the two boxes apart. The second is dropped after the
+ * first, so the pair lifts out like any nest; the spacing is the drop's
+ * (dilated height map), checked exactly against the meshes with the rest of
+ * the layout.
  */
 export function bestPair(
   kind: number,
