@@ -4,6 +4,7 @@
  */
 import {
   parseInstance,
+  insideRegion,
   summariseLayout,
   toPlacementArrays,
   TOLERANCE_MM,
@@ -77,14 +78,11 @@ export function mergeAbove(full: PackInstanceInput, kept: Placement[], added: Pl
   const parsed = parseInstance(full);
   if (!parsed.ok) return { ok: false, message: parsed.problems.map((p) => `${p.field} ${p.message}`).join('; ') };
   const inst = parsed.instance;
-  const { min, max } = usableRegion(inst);
-  const floor = kept.length > 0 ? kept.reduce((m, p) => Math.max(m, p.position[2] + p.size[2]), 0) + inst.spacing : min[2];
+  const floor = kept.length > 0 ? kept.reduce((m, p) => Math.max(m, p.position[2] + p.size[2]), 0) + inst.spacing : usableRegion(inst).min[2];
   const problems: string[] = [];
   added.forEach((p, i) => {
-    const low = p.position;
-    const high = [low[0] + p.size[0], low[1] + p.size[1], low[2] + p.size[2]];
-    if (low[2] < floor - TOLERANCE_MM) problems.push(`added[${i}] ("${p.id}") is ${(floor - low[2]).toFixed(2)} mm too low: new parts go at least the spacing above the kept ones`);
-    else if ([0, 1, 2].some((a) => low[a] < min[a] - TOLERANCE_MM || high[a] > max[a] + TOLERANCE_MM)) problems.push(`added[${i}] ("${p.id}") is outside the usable region`);
+    if (p.position[2] < floor - TOLERANCE_MM) problems.push(`added[${i}] ("${p.id}") is ${(floor - p.position[2]).toFixed(2)} mm too low: new parts go at least the spacing above the kept ones`);
+    else if (!insideRegion(inst, p)) problems.push(`added[${i}] ("${p.id}") is outside the usable region`);
   });
   const wanted = new Map(inst.parts.map((p) => [p.id, p.quantity] as const));
   const count = new Map<string, number>();

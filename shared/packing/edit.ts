@@ -17,13 +17,22 @@ export function turnedOrientation(o: Orientation): Orientation {
   return `${o[1]}${o[0]}${o[2]}` as Orientation;
 }
 
-/** True when two boxes' footprints come closer than `spacing` on both x and y (so one must clear the other in z). */
-function footprintsMeet(a: Placement, b: Placement, spacing: number): boolean {
-  for (let k = 0; k < 2; k++) {
+/** True when two boxes come closer than `spacing` along each of the first `axes` axes (2: their footprints, 3: the boxes). */
+function closerThan(a: Placement, b: Placement, spacing: number, axes: 2 | 3): boolean {
+  for (let k = 0; k < axes; k++) {
     const gap = Math.max(b.position[k] - (a.position[k] + a.size[k]), a.position[k] - (b.position[k] + b.size[k]));
     if (gap >= spacing - TOLERANCE_MM) return false;
   }
   return true;
+}
+
+/** True when two boxes' footprints come closer than `spacing` on both x and y (so one must clear the other in z). */
+const footprintsMeet = (a: Placement, b: Placement, spacing: number) => closerThan(a, b, spacing, 2);
+
+/** True when a placement's box lies inside the usable region. */
+export function insideRegion(instance: Pick<PackInstance, 'chamber' | 'margin'>, p: Placement): boolean {
+  const U = usableRegion(instance);
+  return [0, 1, 2].every((k) => p.position[k] >= U.min[k] - TOLERANCE_MM && p.position[k] + p.size[k] <= U.max[k] + TOLERANCE_MM);
 }
 
 /**
@@ -140,15 +149,6 @@ export function placementsAtFault(problems: readonly { field: string; message: s
   return at;
 }
 
-/** True when two boxes come closer than `spacing` along every axis (their boxes, not their shapes, meet). */
-function boxesMeet(a: Placement, b: Placement, spacing: number): boolean {
-  for (let k = 0; k < 3; k++) {
-    const gap = Math.max(b.position[k] - (a.position[k] + a.size[k]), a.position[k] - (b.position[k] + b.size[k]));
-    if (gap >= spacing - TOLERANCE_MM) return false;
-  }
-  return true;
-}
-
 /**
  * The placements at fault after parts of a layout packed by shape were moved, turned or dropped by hand
  * (`moved`, by index). Parts packed by shape may share box space where they nest, so only the moved ones are
@@ -161,16 +161,14 @@ function boxesMeet(a: Placement, b: Placement, spacing: number): boolean {
 export function shapeEditFaults(instance: Pick<PackInstance, 'chamber' | 'margin' | 'spacing'>, placements: readonly Placement[], moved: Iterable<number>): Set<number> {
   const at = new Set<number>();
   const g = instance.spacing;
-  const U = usableRegion(instance);
   for (const i of moved) {
     const p = placements[i];
     if (!p) continue;
-    for (let k = 0; k < 3; k++) {
-      if (p.position[k] < U.min[k] - TOLERANCE_MM || p.position[k] + p.size[k] > U.max[k] + TOLERANCE_MM) at.add(i);
-    }
+    if (!insideRegion(instance, p)) at.add(i);
     placements.forEach((q, j) => {
       if (j === i) return;
-      if (boxesMeet(p, q, g)) {
+      // Their boxes, not their shapes, meet.
+      if (closerThan(p, q, g, 3)) {
         at.add(i);
         return;
       }
@@ -187,8 +185,8 @@ export function shapeEditFaults(instance: Pick<PackInstance, 'chamber' | 'margin
  * The placements of a layout packed by shape in an order they can be lifted out (in reverse) after the `moved`
  * ones changed place: each moved part, lowest first, stays where it is listed if that order holds, else is
  * listed again just after the last part under it (over the same footprint), when that is before every part
- * over it; a part with no such place stays where it was
- * (shapeEditFaults then names it). Returns the new list and, for each old index, its new index.
+ * over it; a part with no such place stays where it was (shapeEditFaults then names it). Returns the new list
+ * and, for each old index, its new index.
  */
 export function inLiftOrder(placements: readonly Placement[], moved: Iterable<number>): { placements: Placement[]; indexOf: number[] } {
   let order = placements.map((_, i) => i);

@@ -9,7 +9,7 @@ export { parseBischoffRatcliff } from './br';
 export { generatePowderBed, type PowderBedOptions } from './generate';
 export { splitIntoBuilds, type BuildLine, type BuildSettings, type PlannedBuild, type SplitOutcome } from './split';
 export { summariseLayout } from './engine';
-export { droppedPlacements, lowestFreeZ, movedPlacements, placementsAtFault, shapeEditFaults, inLiftOrder, turnedOrientation, turnedPlacements, type TurnOutcome } from './edit';
+export { droppedPlacements, lowestFreeZ, movedPlacements, insideRegion, placementsAtFault, shapeEditFaults, inLiftOrder, turnedOrientation, turnedPlacements, type TurnOutcome } from './edit';
 export {
   encodeLayout,
   decodeLayout,
