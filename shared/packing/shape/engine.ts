@@ -302,7 +302,13 @@ function* solve(
   const used = kinds.map(() => 0);
   const plate = usableRegion(instance).extent;
   if (options.nest !== false) {
-    const built = buildNests(kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles })), cell, instance.spacing, undefined, stop);
+    const built = buildNests(
+      kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles })),
+      cell,
+      instance.spacing,
+      undefined,
+      stop,
+    );
     nests.push(...built.nests);
     built.used.forEach((n, i) => (used[i] = n));
     kinds.forEach((k, i) => {

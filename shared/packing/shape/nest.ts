@@ -35,6 +35,11 @@ interface NestKind {
   quantity: number;
   /** Candidate profiles, best first; empty when the kind fits nowhere. */
   profiles: Profile[];
+  /**
+   * The profiles it may take inside a holder (default: `profiles`). Under a rim a turn that costs more room on
+   * the plate costs nothing (a thin plate that packs best on end lies flat in a shallow housing).
+   */
+  inside?: Profile[];
 }
 
 /** Room under a profile's top that the part does not take, as a share of its box. */
@@ -106,7 +111,7 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
         for (const k of byCost) {
           if (left[k] === 0) continue;
           let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
-          for (const p of kinds[k].profiles) {
+          for (const p of kinds[k].inside ?? kinds[k].profiles) {
             if (!fits(p)) continue;
             const d = bestDrop(G, p, best ? best.score : bound);
             if (d) best = { ...d, p };

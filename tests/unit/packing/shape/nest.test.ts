@@ -69,6 +69,58 @@ test('without nesting first, the same packing by shape still keeps every part ap
   expect(validateShapeLayout(inst, result)).toEqual([]);
 });
 
+// A shallow tray, 80 x 50 x 15 mm outside, walls and floor 2.5 mm (12.5 mm deep inside), and thin plates 40 x 20 x 3 mm.
+// On the open plate a plate costs least on end (its footprint 3 mm wide); on end it stands 20 or 40 mm tall, over
+// the tray's rim. Lying flat it is 3 mm tall: on the tray's floor (2.5 mm) plus the spacing (3 mm) its top is at
+// 8.5 mm, under the 15 mm rim. Inside a holder every allowed turn counts, not only the cheapest on the plate.
+const tray = housing({ lengthMm: 80, widthMm: 50, heightMm: 15, wallMm: 2.5, floorMm: 2.5, cornerRadiusMm: 5, cornerSegments: 6 });
+const plate = box(40, 20, 3);
+
+function trayAndPlates(plates: number): PackInstanceV2 {
+  const parsed = parseInstanceV2({
+    format: 'pack-instance/2',
+    // The usable plate is the tray's footprint plus 2 mm: nothing fits beside it.
+    chamber: [82, 52, 200],
+    margin: { xy: 0, bottom: 0, top: 0 },
+    spacing: 3,
+    layerHeight: 0.1,
+    timeLimitMs: 400,
+    fit: 'shape',
+    parts: [
+      { id: 'tray', mesh: { positions: tray.positions, indices: tray.indices }, quantity: 1, orientations: ['upright'] },
+      { id: 'plate', mesh: { positions: plate.positions, indices: plate.indices }, quantity: plates },
+    ],
+  });
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.instance;
+}
+
+test('a thin plate that packs best on end lies flat in a shallow tray: the turns a holder may take count, not only the cheapest', () => {
+  const inst = trayAndPlates(1);
+  const parts = shapeParts(inst);
+  const cell = defaultCell(inst);
+  const all = parts.map((p) => p.rotations.map((r) => columnProfile(p, r, cell, inst.spacing)).sort((a, b) => a.cost - b.cost));
+  // The plate's cheapest turns on the plate stand it on end.
+  const onEnd = all[1].filter((p) => p.extent[2] >= 20 - 1e-9);
+  expect(onEnd[0]).toBe(all[1][0]);
+  const only = buildNests([{ quantity: 1, profiles: all[0] }, { quantity: 1, profiles: onEnd }], cell, inst.spacing);
+  expect(only.nests).toHaveLength(0);
+  const { nests, used } = buildNests([{ quantity: 1, profiles: all[0] }, { quantity: 1, profiles: onEnd, inside: all[1] }], cell, inst.spacing);
+  expect(used).toEqual([1, 1]);
+  const held = nests[0].members[1];
+  expect(held.profile.extent[2]).toBeCloseTo(3, 9);
+  expect(held.dz).toBeGreaterThanOrEqual(2.5 + 3 - 1e-9);
+  expect(held.dz + held.profile.extent[2]).toBeLessThanOrEqual(15 + 1e-9);
+});
+
+test('packed by shape, the tray and the plate it holds are as tall as the tray, checked against the meshes', () => {
+  const inst = trayAndPlates(1);
+  const result = createShapePacking(inst, { maxRuns: 2 }).runSync();
+  expect(result.unplaced).toEqual([]);
+  expect(result.height).toBeCloseTo(15, 6);
+  expect(validateShapeLayout(inst, result)).toEqual([]);
+});
+
 // Two L brackets, legs 40 and 30 mm long and 4 mm thick, 15 mm wide, lying flat. Corner to corner, the second
 // turned a half turn about z and moved along the long leg by a leg's thickness and the spacing, each leg of one
 // runs 3 mm clear of the other's: they take 40 + 4 + 3 by 30 mm (47 x 30), where their two boxes side by side
