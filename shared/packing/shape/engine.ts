@@ -65,6 +65,8 @@ export interface ShapeOptions {
   nestShare?: number;
   /** Two copies pair up when their box is at most this share of two boxes apart (./nest.ts bestPair; default 0.85). */
   pairGain?: number;
+  /** Holder turns the second set of nests tries (./nest.ts buildNests `ways`; default 4; 1: one set only). */
+  holderWays?: number;
 }
 
 export interface ShapePacking {
@@ -79,6 +81,12 @@ interface Kind {
   /** Every allowed rotation's profile, for the search to draw other choices from. */
   allProfiles: Profile[];
   fits: boolean;
+}
+
+/** Units the box search may pack as one box each, and how many copies of each kind they hold. */
+interface NestSet {
+  nests: Nest[];
+  used: number[];
 }
 
 interface Placed {
@@ -298,25 +306,30 @@ function* solve(
   // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
   // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
   // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
-  const nests: Nest[] = [];
-  const used = kinds.map(() => 0);
   const plate = usableRegion(instance).extent;
-  if (options.nest !== false) {
+  /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
+  const nestSet = (ways: number, halt: () => boolean): NestSet => {
+    const set: NestSet = { nests: [], used: kinds.map(() => 0) };
+    if (options.nest === false) return set;
     const built = buildNests(
       kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles })),
       cell,
       instance.spacing,
       undefined,
-      stop,
+      halt,
+      ways,
     );
-    nests.push(...built.nests);
-    built.used.forEach((n, i) => (used[i] = n));
+    set.nests.push(...built.nests);
+    built.used.forEach((n, i) => (set.used[i] = n));
     kinds.forEach((k, i) => {
-      if (!k.fits || k.part.quantity - used[i] < 2 || stop()) return;
+      if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
       const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
-      for (; pair && k.part.quantity - used[i] >= 2; used[i] += 2) nests.push(pair);
+      for (; pair && k.part.quantity - set.used[i] >= 2; set.used[i] += 2) set.nests.push(pair);
     });
-  }
+    return set;
+  };
+  const primary = nestSet(1, stop);
+  const { nests, used } = primary;
   const copies: number[] = [];
   kinds.forEach((k, i) => {
     if (k.fits) for (let c = used[i]; c < k.part.quantity; c++) copies.push(i);
@@ -347,16 +360,17 @@ function* solve(
   const boxShare = options.boxShare ?? 0.8;
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   // The box engine's own pauses are this run's: progress and a stop get through while it searches.
-  // With `withNests`, each nest is one box, turned a quarter about z when all it holds may turn so, its members following it.
-  const turnable = nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
-  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, withNests = false): Generator<void, Placed[], void> {
+  // With a nest set, each nest is one box, turned a quarter about z when all it holds may turn so, its members following it.
+  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null): Generator<void, Placed[], void> {
     const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
     const nestId = (j: number) => `${NEST_ID}${j}`;
-    const boxed = withNests && !parts.some((p) => p.id.startsWith(NEST_ID))
+    const nests = set ? set.nests : [];
+    const turnable = nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
+    const boxed = set && !parts.some((p) => p.id.startsWith(NEST_ID))
       ? {
           ...base,
           parts: [
-            ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - used[i] })).filter((p) => p.quantity > 0),
+            ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - set.used[i] })).filter((p) => p.quantity > 0),
             ...nests.map((n, j) => ({
               id: nestId(j),
               size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3,
@@ -405,7 +419,7 @@ function* solve(
   };
   if (boxShare > 0 && copies.length > 0) {
     offer(yield* settledBoxes(0, instance.timeLimitMs));
-    if (nests.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs, true));
+    if (nests.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs, primary));
   }
 
   const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
@@ -422,15 +436,28 @@ function* solve(
     // does not pay (few parts, little to hold) the settled box layout is still there to keep.
     const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
     const nestShare = nests.length > 0 ? (options.nestShare ?? 0.6) : 0;
+    const better = (a: Placed[], b: Placed[]) => a.length > b.length || (a.length === b.length && heightOf(a) < heightOf(b));
     let searched: Placed[] = [];
     if (nestShare > 0) {
-      searched = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * nestShare), true);
-      offer(searched);
+      // A second set of nests whose holders may stand other ways up (./nest.ts buildNests `ways`): the
+      // box search of so few, large units is lumpy, and either set can come out lower. They share its time.
+      const ways = options.holderWays ?? 4;
+      const sets = [primary];
+      if (ways > 1 && !stop()) {
+        const other = nestSet(ways, () => stop() || now() >= deadline);
+        if (other.nests.length > 0) sets.push(other);
+      }
+      for (const set of sets) {
+        if (stop()) break;
+        const layout = yield* settledBoxes(capped, Math.round((instance.timeLimitMs * boxShare * nestShare) / sets.length), set);
+        offer(layout);
+        if (better(layout, searched)) searched = layout;
+      }
     }
     if (nestShare < 1 && !stop()) {
       const plain = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * (1 - nestShare)));
       offer(plain);
-      if (plain.length > searched.length || (plain.length === searched.length && heightOf(plain) < heightOf(searched))) searched = plain;
+      if (better(plain, searched)) searched = plain;
     }
     // Then its highest parts dropped again where they end lower, while they can.
     offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));

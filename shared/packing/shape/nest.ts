@@ -81,9 +81,19 @@ function nestProfile(holder: Profile, members: NestMember[], cell: number, spaci
  * Nests made of the kinds' copies: holders largest first, each filled with
  * the largest copies that still fit under its top. Returns the nests and how
  * many copies of each kind they use; a kind whose copy holds nothing is not
- * tried again.
+ * tried again. With `ways` above 1, each holder copy is filled in each of its
+ * first `ways` candidate turns that leave room under the top, and the one
+ * that saves the most room is kept (the grown boxes of what it holds, less
+ * what its own grown box gains over its cheapest turn's).
  */
-export function buildNests(kinds: readonly NestKind[], cell: number, spacing: number, minHollow = 0.35, stop: () => boolean = () => false): { nests: Nest[]; used: number[] } {
+export function buildNests(
+  kinds: readonly NestKind[],
+  cell: number,
+  spacing: number,
+  minHollow = 0.35,
+  stop: () => boolean = () => false,
+  ways = 1,
+): { nests: Nest[]; used: number[] } {
   const left = kinds.map((k) => (k.profiles.length > 0 ? k.quantity : 0));
   const volume = (p: Profile) => p.extent[0] * p.extent[1] * p.extent[2];
   const holders = kinds
@@ -96,39 +106,51 @@ export function buildNests(kinds: readonly NestKind[], cell: number, spacing: nu
     .filter((i) => left[i] > 0)
     .sort((a, b) => kinds[b].profiles[0].cost - kinds[a].profiles[0].cost || a - b);
   const nests: Nest[] = [];
-  for (const h of holders) {
-    const holder = kinds[h].profiles[0];
-    while (left[h] > 0 && !stop()) {
-      const G = localGrid(holder, cell, spacing);
-      drop(G, holder, 0, 0, 0);
-      left[h]--;
-      const members: NestMember[] = [{ kind: h, profile: holder, du: 0, dv: 0, dz: 0 }];
-      const bound = holder.extent[2] + 1e-9;
-      // A copy as large as the holder (its own kind among them) cannot go inside it.
-      const fits = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1] && volume(p) < volume(holder);
-      for (let placed = true; placed; ) {
-        placed = false;
-        for (const k of byCost) {
-          if (left[k] === 0) continue;
-          let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
-          for (const p of kinds[k].inside ?? kinds[k].profiles) {
-            if (!fits(p)) continue;
-            const d = bestDrop(G, p, best ? best.score : bound);
-            if (d) best = { ...d, p };
-          }
-          if (!best) continue;
-          drop(G, best.p, best.u, best.v, best.z);
-          members.push({ kind: k, profile: best.p, du: best.u, dv: best.v, dz: best.z });
-          left[k]--;
-          placed = true;
+  const grown = (p: Profile) => (p.extent[0] + spacing) * (p.extent[1] + spacing) * (p.extent[2] + spacing);
+  /** One copy of `holder` filled from the copies `left` (which it takes from). */
+  const fill = (h: number, holder: Profile, left: number[]): NestMember[] => {
+    const G = localGrid(holder, cell, spacing);
+    drop(G, holder, 0, 0, 0);
+    left[h]--;
+    const members: NestMember[] = [{ kind: h, profile: holder, du: 0, dv: 0, dz: 0 }];
+    const bound = holder.extent[2] + 1e-9;
+    // A copy as large as the holder (its own kind among them) cannot go inside it.
+    const fits = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1] && volume(p) < volume(holder);
+    for (let placed = true; placed; ) {
+      placed = false;
+      for (const k of byCost) {
+        if (left[k] === 0) continue;
+        let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
+        for (const p of kinds[k].inside ?? kinds[k].profiles) {
+          if (!fits(p)) continue;
+          const d = bestDrop(G, p, best ? best.score : bound);
+          if (d) best = { ...d, p };
         }
+        if (!best) continue;
+        drop(G, best.p, best.u, best.v, best.z);
+        members.push({ kind: k, profile: best.p, du: best.u, dv: best.v, dz: best.z });
+        left[k]--;
+        placed = true;
       }
-      if (members.length === 1) {
-        // Nothing fits in this kind's hollow: its copies pack on their own.
-        left[h]++;
-        break;
+    }
+    return members;
+  };
+  for (const h of holders) {
+    const up = ways > 1 ? kinds[h].profiles.filter((p) => hollowShare(p, cell) >= minHollow).slice(0, ways) : [kinds[h].profiles[0]];
+    while (left[h] > 0 && !stop()) {
+      // The way up that saves the most room: the boxes of what it holds, less what its own box grows.
+      let best: { members: NestMember[]; left: number[]; saved: number } | null = null;
+      for (const holder of up) {
+        const after = left.slice();
+        const members = fill(h, holder, after);
+        if (members.length === 1) continue;
+        const saved = members.slice(1).reduce((v, m) => v + grown(kinds[m.kind].profiles[0]), 0) - grown(holder) + grown(kinds[h].profiles[0]);
+        if (!best || saved > best.saved) best = { members, left: after, saved };
       }
-      nests.push({ members, profile: nestProfile(holder, members, cell, spacing) });
+      // Nothing fits in this kind's hollow: its copies pack on their own.
+      if (!best) break;
+      best.left.forEach((n, i) => (left[i] = n));
+      nests.push({ members: best.members, profile: nestProfile(best.members[0].profile, best.members, cell, spacing) });
     }
   }
   return { nests, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };

@@ -113,6 +113,30 @@ test('a thin plate that packs best on end lies flat in a shallow tray: the turns
   expect(held.dz + held.profile.extent[2]).toBeLessThanOrEqual(15 + 1e-9);
 });
 
+test('a holder filled in another of its turns when that one holds more: a 60 mm bar fits along the cup, not across it', () => {
+  // Inside 75 x 45 mm less the spacing on each side: 69 x 39 mm. A 60 x 8 x 8 mm bar fits only along the long side.
+  const bar = box(60, 8, 8);
+  const inst = plateOfTheCup('shape');
+  const cell = defaultCell(inst);
+  const [cupPart] = shapeParts(inst);
+  const barPart = shapeParts({ ...inst, parts: [{ ...inst.parts[1], id: 'bar', mesh: { positions: bar.positions, indices: bar.indices } }] })[0];
+  // Upright, long side along x (rotation 0) and along y (a quarter turn about z).
+  const upright = columnProfile(cupPart, 0, cell, inst.spacing);
+  const across = cupPart.rotations.map((r) => columnProfile(cupPart, r, cell, inst.spacing)).find((p) => p.extent[0] < p.extent[1] && p.extent[2] === upright.extent[2])!;
+  expect(across.extent[1]).toBeCloseTo(80, 6);
+  const barAlongX = columnProfile(barPart, 0, cell, inst.spacing);
+  expect(barAlongX.extent).toEqual([60, 8, 8].map((v) => expect.closeTo(v, 6)));
+  const kinds = [
+    { quantity: 1, profiles: [across, upright] },
+    { quantity: 1, profiles: [barAlongX] },
+  ];
+  // Only its first turn: the bar does not fit across, nothing is held.
+  expect(buildNests(kinds, cell, inst.spacing, 0.35, undefined, 1).nests).toHaveLength(0);
+  const { nests, used } = buildNests(kinds, cell, inst.spacing, 0.35, undefined, 2);
+  expect(used).toEqual([1, 1]);
+  expect(nests[0].members[0].profile).toBe(upright);
+});
+
 test('packed by shape, the tray and the plate it holds are as tall as the tray, checked against the meshes', () => {
   const inst = trayAndPlates(1);
   const result = createShapePacking(inst, { maxRuns: 2 }).runSync();
