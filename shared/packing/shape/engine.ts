@@ -342,12 +342,30 @@ function* solve(
   let runs = 0;
   const maxRuns = options.maxRuns ?? Infinity;
 
-  const offer = (placed: Placed[]) => {
+  // Time: each stage after the first layout gets what is left of the limit less what finishing it costs (settling
+  // its layout and the exact check), as measured on the way; a layout with nests, whose parts lie within the
+  // spacing of many others, takes several times longer to check than one without (6 to 9 times in the
+  // benchmark's mixes), so until one has been checked its check is reckoned at 8 times the other's. With a cap
+  // on the runs (reproducible tests) the stages run as capped, whatever the clock.
+  const timed = options.maxRuns === undefined;
+  const checkMs = { plain: 0, nested: 0 };
+  let settleMs = 0;
+  const checkCost = (nested: boolean) => (nested ? checkMs.nested || 8 * checkMs.plain : checkMs.plain);
+  /** Time left for a stage whose layout (with nests or not) still has to be settled and checked. */
+  const leftFor = (nested: boolean) => deadline - now() - settleMs - checkCost(nested);
+  const offer = (placed: Placed[], nested = false) => {
     const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && heightOf(placed) < bestHeight - 1e-9);
     if (!better) return;
+    // No time left to check it: the layout checked before stands.
+    if (timed && out.best && now() + checkCost(nested) > deadline) return;
+    const t = now();
     const result = summarise(instance, kinds, placed, now() - start, warnings);
     // Never hand out a layout that fails the exact check (it would be a bug of the drop, so it is dropped too).
-    if (validateShapeLayout(instance, result, parts).length > 0) return;
+    const failed = validateShapeLayout(instance, result, parts).length > 0;
+    const took = now() - t;
+    if (nested) checkMs.nested = Math.max(checkMs.nested, took);
+    else checkMs.plain = Math.max(checkMs.plain, took);
+    if (failed) return;
     bestHeight = result.height;
     bestPlacedCount = placed.length;
     out.best = result;
@@ -413,62 +431,83 @@ function* solve(
       const part = byId.get(pl.id)!;
       items.push({ part: part.index, rotation: rotationForBox(part, pl.orientation), position: [pl.position[0], pl.position[1], pl.position[2]] });
     }
+    const t = now();
     const settled = settleLayout(instance, parts, items, { stopped: stop });
+    settleMs = Math.max(settleMs, now() - t);
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
   if (boxShare > 0 && copies.length > 0) {
     offer(yield* settledBoxes(0, instance.timeLimitMs));
-    if (nests.length > 0) offer(yield* settledBoxes(0, instance.timeLimitMs, primary));
+    // Timed, the search of the nests' boxes below starts from this layout anyway.
+    if (nests.length > 0 && !timed) offer(yield* settledBoxes(0, instance.timeLimitMs, primary), true);
   }
 
   const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
-  const first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => false);
+  // The drop packing in a fixed order (largest first, hollows filled before they are covered): the drop search
+  // below starts from it; on a small plate it is often the lowest.
+  const first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => (timed && leftFor(nests.length > 0) <= 0) || stop());
   runs++;
-  if (first) offer(first);
+  if (first) offer(first, nests.length > 0);
   if (copies.length === 0) {
     if (!out.best) offer([]);
     return;
   }
-  if (boxShare > 0 && copies.length > 0 && !stop()) {
+  if (boxShare > 0 && !stop()) {
     // With a cap on the runs, the box search is capped too (the same result on any machine).
     // With nests, their boxes get most of the box search; the parts' own boxes the rest, so where nesting
     // does not pay (few parts, little to hold) the settled box layout is still there to keep.
     const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
     const nestShare = nests.length > 0 ? (options.nestShare ?? 0.6) : 0;
     const better = (a: Placed[], b: Placed[]) => a.length > b.length || (a.length === b.length && heightOf(a) < heightOf(b));
+    /** A stage's search time: its share, or timed, what is left for it (null: none left). */
+    const budget = (shareMs: number, nested: boolean): number | null => {
+      if (!timed) return Math.round(shareMs);
+      const ms = Math.min(shareMs, leftFor(nested));
+      return ms > 0 ? Math.round(ms) : null;
+    };
     let searched: Placed[] = [];
+    let searchedNested = false;
     if (nestShare > 0) {
       // A second set of nests whose holders may stand other ways up (./nest.ts buildNests `ways`): the
       // box search of so few, large units is lumpy, and either set can come out lower. They share its time.
       const ways = options.holderWays ?? 4;
+      const perSet = (instance.timeLimitMs * boxShare * nestShare) / (ways > 1 ? 2 : 1);
       const sets = [primary];
-      if (ways > 1 && !stop()) {
-        const other = nestSet(ways, () => stop() || now() >= deadline);
-        if (other.nests.length > 0) sets.push(other);
-      }
-      for (const set of sets) {
-        if (stop()) break;
-        const layout = yield* settledBoxes(capped, Math.round((instance.timeLimitMs * boxShare * nestShare) / sets.length), set);
-        offer(layout);
-        if (better(layout, searched)) searched = layout;
+      for (let k = 0; k < 2 && !stop(); k++) {
+        if (k === 1) {
+          if (ways <= 1 || (timed && leftFor(true) < perSet / 2)) break;
+          const other = nestSet(ways, () => stop() || (timed && leftFor(true) < perSet / 2));
+          if (other.nests.length === 0) break;
+          sets.push(other);
+        }
+        const ms = budget(perSet, true);
+        if (ms === null) break;
+        const layout = yield* settledBoxes(capped, ms, sets[k]);
+        offer(layout, true);
+        if (better(layout, searched)) [searched, searchedNested] = [layout, true];
       }
     }
-    if (nestShare < 1 && !stop()) {
-      const plain = yield* settledBoxes(capped, Math.round(instance.timeLimitMs * boxShare * (1 - nestShare)));
+    const plainMs = nestShare < 1 && !stop() ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
+    if (plainMs !== null) {
+      const plain = yield* settledBoxes(capped, plainMs);
       offer(plain);
-      if (better(plain, searched)) searched = plain;
+      if (better(plain, searched)) [searched, searchedNested] = [plain, false];
     }
     // Then its highest parts dropped again where they end lower, while they can.
-    offer(lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => now() >= deadline || stop()));
+    if (searched.length > 0) {
+      const lowered = lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => (timed ? leftFor(searchedNested) <= 0 : now() >= deadline) || stop());
+      offer(lowered, searchedNested);
+    }
     runs++;
   }
+  // Then the drop search, from the fixed order, until the time left is what checking takes.
   phase = 'search';
   let order = firstOrder;
   let current = first ? heightOf(first) : Infinity;
   let currentCount = first ? first.length : -1;
   let currentChoices = choices;
-  while (runs < maxRuns && now() < deadline && !stop()) {
+  while (runs < maxRuns && (timed ? leftFor(nests.length > 0) > 0 : now() < deadline) && !stop()) {
     // A neighbour: a few copies moved in the order, and now and then another set of rotations for one part.
     const nextOrder = [...order];
     const moves = 1 + Math.floor(random() * 4);
@@ -488,7 +527,7 @@ function* solve(
         nextChoices[k] = random() < 0.5 ? [pick] : [...new Set([...kinds[k].profiles, pick])];
       }
     }
-    const placed = packOnce(instance, kinds, nests, nextOrder, nextChoices, cell, () => now() >= deadline || stop());
+    const placed = packOnce(instance, kinds, nests, nextOrder, nextChoices, cell, () => (timed ? leftFor(nests.length > 0) <= 0 : now() >= deadline) || stop());
     runs++;
     if (placed) {
       const h = heightOf(placed);
@@ -497,7 +536,7 @@ function* solve(
         currentChoices = nextChoices;
         current = h;
         currentCount = placed.length;
-        offer(placed);
+        offer(placed, nests.length > 0);
       }
     }
     if (now() - lastYield >= yieldMs) {
