@@ -346,13 +346,14 @@ function* solve(
   // its layout and the exact check), as measured on the way; a layout with nests, whose parts lie within the
   // spacing of many others, takes several times longer to check than one without (6 to 9 times in the
   // benchmark's mixes), so until one has been checked its check is reckoned at 8 times the other's. With a cap
-  // on the runs (reproducible tests) the stages run as capped, whatever the clock.
+  // on the runs (reproducible tests) the stages run as capped, whatever the clock. 3 % of the limit is kept in
+  // hand for what the estimates miss.
   const timed = options.maxRuns === undefined;
   const checkMs = { plain: 0, nested: 0 };
   let settleMs = 0;
   const checkCost = (nested: boolean) => (nested ? checkMs.nested || 8 * checkMs.plain : checkMs.plain);
   /** Time left for a stage whose layout (with nests or not) still has to be settled and checked. */
-  const leftFor = (nested: boolean) => deadline - now() - settleMs - checkCost(nested);
+  const leftFor = (nested: boolean) => deadline - now() - settleMs - checkCost(nested) - 0.03 * instance.timeLimitMs;
   const offer = (placed: Placed[], nested = false) => {
     const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && heightOf(placed) < bestHeight - 1e-9);
     if (!better) return;
