@@ -51,7 +51,7 @@ export interface Working {
 }
 
 /** Everything the editor knows about a request line, whether saved in the plan or offered from the open lines. */
-export type LineInfo = Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; partId: string };
+export type LineInfo = Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; watertight: boolean; partId: string };
 
 // ---- lines -----------------------------------------------------------------
 
@@ -88,6 +88,17 @@ export function isDirty(draft: Pick<PlanDraft, 'name' | 'lines'> | null, planNam
   return !!draft && (draft.name !== planName || !sameLines(draft.lines, savedLines));
 }
 
+/**
+ * The volume a layout by shape counts for a line's parts in its density: the part's own, or none (its box) when
+ * its mesh is not closed, as the server's check against the meshes counts it (an open mesh has no inside).
+ */
+export function densityVolumeOf(lineInfo: ReadonlyMap<string, LineInfo>): (requestLineId: string) => number | undefined {
+  return (requestLineId) => {
+    const info = lineInfo.get(requestLineId);
+    return info && info.watertight ? info.volumeMm3 : undefined;
+  };
+}
+
 /** The plan's own lines win over the open lines offered for the same request line. */
 export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readonly OpenLineView[]): Map<string, LineInfo> {
   const m = new Map<string, LineInfo>();
@@ -102,6 +113,7 @@ export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readon
       maxQuantity: o.remaining,
       partRule: o.part.orientation,
       volumeMm3: o.part.volumeMm3,
+      watertight: o.part.watertight,
       partId: o.part.id,
     });
   }
@@ -116,6 +128,7 @@ export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readon
       maxQuantity: l.lineQuantity - l.plannedElsewhere,
       partRule: l.part.orientation,
       volumeMm3: l.part.volumeMm3,
+      watertight: l.part.watertight,
       partId: l.part.id,
     });
   }

@@ -36,6 +36,7 @@ import {
   instanceLinesOf,
   isDirty,
   isStale,
+  densityVolumeOf,
   lineInfoOf,
   buildStackOf,
   editFaults,
@@ -134,7 +135,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     },
     [queryClient, lab.id, lineInfo],
   );
-  const volumeOf = useCallback((lineId: string) => lineInfo.get(lineId)?.volumeMm3, [lineInfo]);
+  const volumeOf = useMemo(() => densityVolumeOf(lineInfo), [lineInfo]);
   const session = usePackingSession({ planId, editable, fullInstance, lines, instanceOf, volumeOf, startDraft, machine, material, options, onRunStart: clearMessage, shapeFilesFor });
   const { working, packer, running } = session;
   const stale = isStale(working, fullInstance);

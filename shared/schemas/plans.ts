@@ -196,7 +196,15 @@ export const planEventViewSchema = z.object({
 });
 export type PlanEventView = z.infer<typeof planEventViewSchema>;
 
-const planPartView = z.object({ id: z.string(), name: z.string(), sizeMm: vec3View, volumeMm3: z.number(), orientation: planOrientationRuleSchema });
+const planPartView = z.object({
+  id: z.string(),
+  name: z.string(),
+  sizeMm: vec3View,
+  volumeMm3: z.number(),
+  /** Whether the part's mesh is closed: a layout by shape counts an open one as its box, for the density as for the gaps. */
+  watertight: z.boolean(),
+  orientation: planOrientationRuleSchema,
+});
 
 export const planLineViewSchema = z.object({
   id: z.string(),

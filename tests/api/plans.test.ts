@@ -51,11 +51,17 @@ describe('creating a plan', () => {
       requestLineId: req.lines[0].id,
       quantity: 12,
       orientation: 'any',
-      part: { name: 'Bracket', sizeMm: [40, 20, 10], volumeMm3: 8000 },
+      part: { name: 'Bracket', sizeMm: [40, 20, 10], volumeMm3: 8000, watertight: true },
       request: { title: 'Robot arm', dueDate: '2027-02-10', priority: 'high' },
       lineQuantity: 30,
     });
     expect(view.lines[1].orientation).toBe('keep_up');
+    // Whether a part's mesh is closed shows with it (a layout by shape counts an open one as its box).
+    await running.db.sequelize.query('UPDATE parts SET watertight = false WHERE id = $1', { bind: [view.lines[0].part.id] });
+    const again = (await planner.agent.get(`/api/labs/${labId}/plans/${res.body.id}`)).body;
+    expect(again.lines.map((l: any) => l.part.watertight)).toEqual([false, true]);
+    const open = (await planner.agent.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
+    expect(open.find((l: any) => l.part.id === view.lines[0].part.id)?.part.watertight).toBe(false);
     expect(view.events).toEqual([expect.objectContaining({ from: null, to: 'draft', by: { id: planner.userId, name: 'Test planner' } })]);
     expect(await plannedCount(req.lines[0].id)).toBe(12);
     expect(await plannedCount(req.lines[1].id)).toBe(50);

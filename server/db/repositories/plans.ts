@@ -42,6 +42,7 @@ export type LineRow = {
   size_y_mm: number;
   size_z_mm: number;
   volume_mm3: number;
+  watertight: boolean;
   part_orientation: PlanOrientationRule;
   request_id: string;
   request_title: string;
@@ -85,6 +86,7 @@ export type OpenLineRow = {
   size_y_mm: number;
   size_z_mm: number;
   volume_mm3: number;
+  watertight: boolean;
   orientation: OpenLineView['part']['orientation'];
   request_id: string;
   title: string;
@@ -345,7 +347,7 @@ export function plansRepository(db: Database) {
             required: true,
             include: [
               { model: Request, as: 'request', required: true, attributes: ['id', 'title', 'dueDate', 'priority', 'status'] },
-              { model: Part, as: 'part', required: true, attributes: ['id', 'name', 'sizeXMm', 'sizeYMm', 'sizeZMm', 'volumeMm3', 'orientation'] },
+              { model: Part, as: 'part', required: true, attributes: ['id', 'name', 'sizeXMm', 'sizeYMm', 'sizeZMm', 'volumeMm3', 'watertight', 'orientation'] },
             ],
           },
         ],
@@ -370,6 +372,7 @@ export function plansRepository(db: Database) {
             size_y_mm: p.sizeYMm,
             size_z_mm: p.sizeZMm,
             volume_mm3: p.volumeMm3,
+            watertight: p.watertight,
             part_orientation: p.orientation as PlanOrientationRule,
             request_id: r.id,
             request_title: r.title,
@@ -463,7 +466,7 @@ export function plansRepository(db: Database) {
     async openLines(labId: string, q: { materialId?: string | null; exceptPlanId?: string | null }): Promise<OpenLineRow[]> {
       // A sum over the other plans' lines and an order by a rank of priority: typed SQL.
       return select<OpenLineRow>(
-        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
+        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3, p.watertight,
                 p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
                 rl.planned_count - COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
                            WHERE pl.request_line_id = rl.id AND pp.id = $3::uuid AND pp.status NOT IN ${INACTIVE_SQL}), 0) AS held

@@ -12,6 +12,7 @@ import {
   isStale,
   keptLabel,
   lineInfoOf,
+  densityVolumeOf,
   buildStackOf,
   editFaults,
   handEdited,
@@ -34,7 +35,7 @@ const machine = { chamberMm: [300, 300, 300] as Vec3, layerHeightsMm: [0.1, 0.12
 const material = { spacingMm: 2, marginXyMm: 5, marginBottomMm: 5, marginTopMm: 5, defaultLayerHeightMm: 0.1 };
 const options = { seed: 3, spacingMm: 2, timeLimitMs: 1000, layerHeightMm: 0.1 };
 
-const part = (id: string, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any') => ({ id: `part-${id}`, name: `Part ${id}`, sizeMm, volumeMm3: sizeMm[0] * sizeMm[1] * sizeMm[2], orientation });
+const part = (id: string, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any') => ({ id: `part-${id}`, name: `Part ${id}`, sizeMm, volumeMm3: sizeMm[0] * sizeMm[1] * sizeMm[2], watertight: true, orientation });
 const planLine = (id: string, quantity: number, sizeMm: Vec3, extra: Partial<PlanLineView> = {}): PlanLineView => ({
   id: `pl-${id}`,
   requestLineId: id,
@@ -168,6 +169,22 @@ describe('a fill or re-pack above a layout packed by shape', () => {
     // Without the volumes, the boxes'.
     const boxes = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), true, instanceOf);
     expect(boxes.result?.utilization).toBeCloseTo((2 * 4000 + 2 * 1000) / (290 * 290 * (27 - 5)), 12);
+  });
+
+  it('counts a part whose mesh is not closed as its box, as the server\'s check against the meshes does (an open mesh has no inside)', () => {
+    const lines = lineInfoOf(
+      [
+        planLine('a', 2, [20, 20, 10], { part: { ...part('a', [20, 20, 10]), volumeMm3: 1500 } }),
+        planLine('c', 2, [10, 10, 10], { part: { ...part('c', [10, 10, 10]), volumeMm3: 400, watertight: false } }),
+      ],
+      [],
+    );
+    const volumeOf = densityVolumeOf(lines);
+    expect(volumeOf('a')).toBe(1500);
+    expect(volumeOf('c')).toBeUndefined();
+    const next = foldBest(base, result([box('c', 5, 5, 17, [10, 10, 10]), box('c', 17, 5, 17, [10, 10, 10])]), true, instanceOf, volumeOf);
+    // The closed parts by their volume, the open ones by their 10 x 10 x 10 mm boxes.
+    expect(next.result?.utilization).toBeCloseTo((2 * 1500 + 2 * 1000) / (290 * 290 * (27 - 5)), 12);
   });
 
   it('refuses a new part lower than the slab, naming it and by how much', () => {
