@@ -196,6 +196,14 @@ function boxGap(a0: Float64Array, a1: Float64Array, b0: Float64Array, b1: Float6
   return Math.sqrt(d2);
 }
 
+/** A placed triangle's box: min x, y, z then max x, y, z. */
+function triangleBox(t: Float64Array, at: number, out: Float64Array, o: number): void {
+  for (let a = 0; a < 3; a++) {
+    out[o + a] = Math.min(t[at + a], t[at + 3 + a], t[at + 6 + a]);
+    out[o + 3 + a] = Math.max(t[at + a], t[at + 3 + a], t[at + 6 + a]);
+  }
+}
+
 /**
  * The smallest distance between the surfaces of A and B if it is below `cap`,
  * else `cap`. With `stopBelow`, the search ends as soon as a distance below it
@@ -204,7 +212,11 @@ function boxGap(a0: Float64Array, a1: Float64Array, b0: Float64Array, b1: Float6
 export function surfaceDistance(A: PlacedBvh, B: PlacedBvh, cap: number, stopBelow = -Infinity): number {
   let best = cap;
   const amn = new Float64Array(3), amx = new Float64Array(3), bmn = new Float64Array(3), bmx = new Float64Array(3);
-  const ta = new Float64Array(9), tb = new Float64Array(9);
+  const ta = new Float64Array(9);
+  // B's leaf, placed once per pair of leaves, with each triangle's box: a pair of triangles whose boxes are
+  // already further apart than the best so far needs no exact distance.
+  let tb = new Float64Array(9 * 8);
+  let boxesB = new Float64Array(6 * 8);
   const stack: number[] = [0, 0];
   while (stack.length > 0) {
     const nb = stack.pop()!;
@@ -216,12 +228,27 @@ export function surfaceDistance(A: PlacedBvh, B: PlacedBvh, cap: number, stopBel
     const cb = B.bvh.child[nb];
     if (ca < 0 && cb < 0) {
       const sa = A.bvh.start[na], ea = sa + A.bvh.count[na];
-      const sb = B.bvh.start[nb], eb = sb + B.bvh.count[nb];
+      const sb = B.bvh.start[nb], m = B.bvh.count[nb];
+      if (tb.length < 9 * m) {
+        tb = new Float64Array(9 * m);
+        boxesB = new Float64Array(6 * m);
+      }
+      for (let j = 0; j < m; j++) {
+        B.triangle(sb + j, tb, 9 * j);
+        triangleBox(tb, 9 * j, boxesB, 6 * j);
+      }
       for (let i = sa; i < ea; i++) {
         A.triangle(i, ta, 0);
-        for (let j = sb; j < eb; j++) {
-          B.triangle(j, tb, 0);
-          const d = triangleDistance(ta, 0, tb, 0);
+        const x0 = Math.min(ta[0], ta[3], ta[6]), x1 = Math.max(ta[0], ta[3], ta[6]);
+        const y0 = Math.min(ta[1], ta[4], ta[7]), y1 = Math.max(ta[1], ta[4], ta[7]);
+        const z0 = Math.min(ta[2], ta[5], ta[8]), z1 = Math.max(ta[2], ta[5], ta[8]);
+        for (let j = 0; j < m; j++) {
+          const o = 6 * j;
+          const dx = Math.max(boxesB[o] - x1, x0 - boxesB[o + 3], 0);
+          const dy = Math.max(boxesB[o + 1] - y1, y0 - boxesB[o + 4], 0);
+          const dz = Math.max(boxesB[o + 2] - z1, z0 - boxesB[o + 5], 0);
+          if (dx * dx + dy * dy + dz * dz >= best * best) continue;
+          const d = triangleDistance(ta, 0, tb, 9 * j);
           if (d < best) {
             best = d;
             if (best < stopBelow) return best;
@@ -298,6 +325,11 @@ function zOn(t: Float64Array, x: number, y: number): number {
 
 /** Over the plan-view overlap of triangles a and b (positive area), is b anywhere more than tol above a? */
 function aboveOver(a: Float64Array, b: Float64Array, tol: number): boolean {
+  // Every point of the overlap lies on both triangles, so within their heights: b's highest no more than tol
+  // above a's lowest answers at once; and plan boxes that do not overlap have no overlap to look at.
+  if (Math.max(b[2], b[5], b[8]) - Math.min(a[2], a[5], a[8]) <= tol) return false;
+  if (Math.max(a[0], a[3], a[6]) <= Math.min(b[0], b[3], b[6]) || Math.max(b[0], b[3], b[6]) <= Math.min(a[0], a[3], a[6])) return false;
+  if (Math.max(a[1], a[4], a[7]) <= Math.min(b[1], b[4], b[7]) || Math.max(b[1], b[4], b[7]) <= Math.min(a[1], a[4], a[7])) return false;
   const pa = [a[0], a[1], a[3], a[4], a[6], a[7]];
   const pb = [b[0], b[1], b[3], b[4], b[6], b[7]];
   const sa = area2(pa);
@@ -309,13 +341,14 @@ function aboveOver(a: Float64Array, b: Float64Array, tol: number): boolean {
   let poly = pa;
   for (let e = 0; e < 3 && poly.length >= 6; e++) {
     const x0 = ccw[2 * e], y0 = ccw[2 * e + 1], x1 = ccw[(2 * e + 2) % 6], y1 = ccw[(2 * e + 3) % 6];
-    const side = (x: number, y: number) => (x1 - x0) * (y - y0) - (y1 - y0) * (x - x0);
+    const ex = x1 - x0, ey = y1 - y0;
     const out: number[] = [];
     const n = poly.length / 2;
     for (let i = 0; i < n; i++) {
       const j = (i + 1) % n;
       const xi = poly[2 * i], yi = poly[2 * i + 1], xj = poly[2 * j], yj = poly[2 * j + 1];
-      const si = side(xi, yi), sj = side(xj, yj);
+      // Which side of the edge each end is on (no closure here: this runs for every pair of triangles).
+      const si = ex * (yi - y0) - ey * (xi - x0), sj = ex * (yj - y0) - ey * (xj - x0);
       if (si >= 0) out.push(xi, yi);
       if ((si >= 0) !== (sj >= 0)) {
         const t = si / (si - sj);
