@@ -246,15 +246,14 @@ export type HandEdit = { kind: 'move'; dxMm: number; dyMm: number } | { kind: 't
  * The layout after a hand edit of the chosen placements, summarised again (height, layers, density): moved
  * across the plate or turned a quarter turn about z at their height, or dropped to the lowest free height.
  * A move or turn may leave parts closer than the spacing: editFaults finds them. In a layout packed by shape
- * the changed parts are listed again where they can be lifted out in turn (inLiftOrder) unless `reorder` is
- * false; `indexOf` then gives each old index's new one.
+ * the changed parts are listed again where they can be lifted out in turn (inLiftOrder); `indexOf` then gives
+ * each old index's new one.
  */
 export function handEdited(
   instance: PackInstanceInput,
   result: PackResult,
   chosen: ReadonlySet<number>,
   edit: HandEdit,
-  reorder = true,
 ): { ok: true; result: PackResult; indexOf?: number[] } | { ok: false; message: string } {
   const parsed = parseInstance(instance);
   if (!parsed.ok || chosen.size === 0) return { ok: false, message: 'Mark a part first.' };
@@ -267,11 +266,35 @@ export function handEdited(
     if (!turned.ok) return turned;
     placements = turned.placements;
   }
-  if (reorder && isByShape(result)) {
+  if (isByShape(result)) {
     const ordered = inLiftOrder(placements, chosen);
     return { ok: true, result: summariseLayout(inst, ordered.placements, result.elapsedMs), indexOf: ordered.indexOf };
   }
   return { ok: true, result: summariseLayout(inst, placements, result.elapsedMs) };
+}
+
+/**
+ * Marked parts dragged by (dxMm, dyMm), as the release would leave them: the layout in its own order (the marks
+ * and the view keep their indices while dragging) and the parts at fault, checked as after the release (packed
+ * by shape, the moved parts first listed again where they can be lifted out in turn), by their indices here.
+ */
+export function dragPreview(
+  instance: PackInstanceInput,
+  result: PackResult,
+  chosen: ReadonlySet<number>,
+  dxMm: number,
+  dyMm: number,
+  handMoved: readonly number[] = [],
+): { result: PackResult; faults: Set<number> } | null {
+  const out = handEdited(instance, result, chosen, { kind: 'move', dxMm, dyMm });
+  if (!out.ok) return null;
+  const moved = [...handMoved, ...chosen];
+  const idx = out.indexOf;
+  if (!idx) return { result: out.result, faults: editFaults(instance, out.result, moved) };
+  const back = new Array<number>(idx.length);
+  idx.forEach((n, o) => (back[n] = o));
+  const faults = editFaults(instance, out.result, moved.map((i) => idx[i]));
+  return { result: { ...out.result, placements: idx.map((n) => out.result.placements[n]) }, faults: new Set([...faults].map((n) => back[n])) };
 }
 
 /** The placements of a layout that break the rules (closer than the spacing, outside the usable region), by index. */

@@ -39,6 +39,7 @@ import {
   densityVolumeOf,
   lineInfoOf,
   buildStackOf,
+  dragPreview,
   editFaults,
   handEdited,
   isByShape,
@@ -172,20 +173,20 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const marked = useMarked();
   // Marked parts being dragged across the plate: the layout as it would be released, shown and checked live.
   const [dragMm, setDragMm] = useState<[number, number] | null>(null);
-  const dragged = useMemo(() => {
-    if (!dragMm || !shownInstance || !shownResult || marked.length === 0) return null;
-    // (Listed again in lift-out order only on release: the marks and the check read the same indices meanwhile.)
-    const out = handEdited(shownInstance, shownResult, new Set(marked), { kind: 'move', dxMm: dragMm[0], dyMm: dragMm[1] }, false);
-    return out.ok ? out.result : null;
-  }, [dragMm, shownInstance, shownResult, marked]);
-  const viewResult = dragged ?? shownResult;
   // A layout changed by hand is checked as it changes: the parts it leaves at fault are drawn in the warning colour.
   // Packed by shape, only the parts changed by hand are checked (by their boxes); the meshes on the server.
   const handMoved = useMemo(() => (showingWorking && working.mode === 'edit' ? (working.handMoved ?? []) : []), [showingWorking, working]);
+  // Checked as the release will check it (by shape, in lift-out order), shown in the order the marks read.
+  const drag = useMemo(() => {
+    if (!dragMm || !shownInstance || !shownResult || marked.length === 0) return null;
+    return dragPreview(shownInstance, shownResult, new Set(marked), dragMm[0], dragMm[1], handMoved);
+  }, [dragMm, shownInstance, shownResult, marked, handMoved]);
+  const dragged = drag?.result ?? null;
+  const viewResult = dragged ?? shownResult;
   const faults = useMemo(() => {
-    if (dragged && shownInstance) return editFaults(shownInstance, dragged, [...handMoved, ...marked]);
+    if (drag) return drag.faults;
     return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result, handMoved) : new Set<number>();
-  }, [dragged, shownInstance, showingWorking, working, handMoved, marked]);
+  }, [drag, showingWorking, working, handMoved]);
   const placements = useMemo(() => {
     if (!viewResult) return EMPTY_PLACEMENTS;
     const p = toChamberPlacements(viewResult, colourOrder);

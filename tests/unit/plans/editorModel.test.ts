@@ -14,6 +14,7 @@ import {
   lineInfoOf,
   densityVolumeOf,
   buildStackOf,
+  dragPreview,
   editFaults,
   handEdited,
   movedAfterRemoval,
@@ -219,6 +220,27 @@ describe('a layout packed by shape changed by hand', () => {
     const close = handEdited(full, layout, new Set([2]), { kind: 'move', dxMm: -14, dyMm: 0 });
     if (!close.ok) throw new Error(close.message);
     expect(editFaults(full, close.result, [2])).toEqual(new Set([2]));
+  });
+
+  it('checks a drag as the release will: a part dragged under one listed before it is listed again first, not at fault', () => {
+    // A 60 x 60 x 3 mm plate at 20 mm listed before a 10 x 10 x 6 mm block beside it on the floor. Dragged 65 mm
+    // towards -x the block stands under the plate (its top at 11 mm, 9 mm below the plate): it can be lifted
+    // out once the plate is, so the release lists it first.
+    const bridge = result([shaped('b', 5, 5, 20, [60, 60, 3]), shaped('c', 80, 20, 5, [10, 10, 6])]);
+    const inst = instanceOf([line('b', 1), line('c', 1)]);
+    const drag = dragPreview(inst, bridge, new Set([1]), -65, 0);
+    if (!drag) throw new Error('no preview');
+    // Shown in the order the marks read: the block is still index 1, moved.
+    expect(drag.result.placements.map((p) => p.id)).toEqual(['b', 'c']);
+    expect(drag.result.placements[1].position).toEqual([15, 20, 5]);
+    expect(drag.faults).toEqual(new Set());
+    // Left in the order it had, the block could not be lifted out past the plate above it.
+    const unordered = { ...drag.result, placements: [...drag.result.placements] };
+    expect(editFaults(inst, unordered, [1])).toEqual(new Set([1]));
+    // Dragged onto another block under the plate instead, it is at fault, under its index here.
+    const two = result([shaped('b', 5, 5, 20, [60, 60, 3]), shaped('c', 80, 20, 5, [10, 10, 6]), shaped('c', 40, 20, 5, [10, 10, 6])]);
+    const onto = dragPreview(instanceOf([line('b', 1), line('c', 2)]), two, new Set([1]), -39, 0);
+    expect(onto?.faults.has(1)).toBe(true);
   });
 
   it('renumbers the parts moved by hand when others are taken out', () => {
