@@ -6,7 +6,7 @@
  * Each layout is checked exactly against the meshes by the validator
  * (triangle-to-triangle gaps, containment, lift-out order).
  */
-import { bracket, housing } from '@/shared/geometry';
+import { bracket, housing, type MeshData } from '@/shared/geometry';
 import { createShapePacking, createBoxFitPacking, parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
 import { columnProfile, shapeParts, defaultCell } from '@/shared/packing/shape';
 import { bestPair, buildNests } from '@/shared/packing/shape/nest';
@@ -16,23 +16,28 @@ import { box } from '../../geometry/helpers';
 const cup = housing({ lengthMm: 80, widthMm: 50, heightMm: 30, wallMm: 2.5, floorMm: 2.5, cornerRadiusMm: 5, cornerSegments: 6 });
 const block = box(10, 10, 8);
 
-function plateOfTheCup(fit: 'box' | 'shape'): PackInstanceV2 {
+/** Parts on an 82 x 52 mm plate, no margins, 3 mm spacing: the usable plate is a 80 x 50 mm holder's footprint plus 2 mm. */
+function onSmallPlate(fit: 'box' | 'shape', parts: Array<{ id: string; mesh: MeshData; quantity: number; upright?: boolean }>): PackInstanceV2 {
   const parsed = parseInstanceV2({
     format: 'pack-instance/2',
-    // The usable plate is the cup's footprint plus 2 mm: nothing fits beside it.
     chamber: [82, 52, 200],
     margin: { xy: 0, bottom: 0, top: 0 },
     spacing: 3,
     layerHeight: 0.1,
     timeLimitMs: 400,
     fit,
-    parts: [
-      { id: 'cup', mesh: { positions: cup.positions, indices: cup.indices }, quantity: 1, orientations: ['upright'] },
-      { id: 'block', mesh: { positions: block.positions, indices: block.indices }, quantity: 6, orientations: ['upright'] },
-    ],
+    parts: parts.map((p) => ({ id: p.id, mesh: { positions: p.mesh.positions, indices: p.mesh.indices }, quantity: p.quantity, ...(p.upright ? { orientations: ['upright'] } : {}) })),
   });
   if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
   return parsed.instance;
+}
+
+// Nothing fits beside the cup on this plate.
+function plateOfTheCup(fit: 'box' | 'shape'): PackInstanceV2 {
+  return onSmallPlate(fit, [
+    { id: 'cup', mesh: cup, quantity: 1, upright: true },
+    { id: 'block', mesh: block, quantity: 6, upright: true },
+  ]);
 }
 
 test('the cup holds the six blocks: the nest uses every copy and lists the cup before what it holds', () => {
@@ -76,23 +81,12 @@ test('without nesting first, the same packing by shape still keeps every part ap
 const tray = housing({ lengthMm: 80, widthMm: 50, heightMm: 15, wallMm: 2.5, floorMm: 2.5, cornerRadiusMm: 5, cornerSegments: 6 });
 const plate = box(40, 20, 3);
 
+// Nothing fits beside the tray on this plate.
 function trayAndPlates(plates: number): PackInstanceV2 {
-  const parsed = parseInstanceV2({
-    format: 'pack-instance/2',
-    // The usable plate is the tray's footprint plus 2 mm: nothing fits beside it.
-    chamber: [82, 52, 200],
-    margin: { xy: 0, bottom: 0, top: 0 },
-    spacing: 3,
-    layerHeight: 0.1,
-    timeLimitMs: 400,
-    fit: 'shape',
-    parts: [
-      { id: 'tray', mesh: { positions: tray.positions, indices: tray.indices }, quantity: 1, orientations: ['upright'] },
-      { id: 'plate', mesh: { positions: plate.positions, indices: plate.indices }, quantity: plates },
-    ],
-  });
-  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-  return parsed.instance;
+  return onSmallPlate('shape', [
+    { id: 'tray', mesh: tray, quantity: 1, upright: true },
+    { id: 'plate', mesh: plate, quantity: plates },
+  ]);
 }
 
 test('a thin plate that packs best on end lies flat in a shallow tray: the turns a holder may take count, not only the cheapest', () => {
