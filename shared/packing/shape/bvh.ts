@@ -212,7 +212,7 @@ function triangleBox(t: Float64Array, at: number, out: Float64Array, o: number):
 export function surfaceDistance(A: PlacedBvh, B: PlacedBvh, cap: number, stopBelow = -Infinity): number {
   let best = cap;
   const amn = new Float64Array(3), amx = new Float64Array(3), bmn = new Float64Array(3), bmx = new Float64Array(3);
-  const ta = new Float64Array(9);
+  const ta = new Float64Array(9), boxA = new Float64Array(6);
   // B's leaf, placed once per pair of leaves, with each triangle's box: a pair of triangles whose boxes are
   // already further apart than the best so far needs no exact distance.
   let tb = new Float64Array(9 * 8);
@@ -239,14 +239,12 @@ export function surfaceDistance(A: PlacedBvh, B: PlacedBvh, cap: number, stopBel
       }
       for (let i = sa; i < ea; i++) {
         A.triangle(i, ta, 0);
-        const x0 = Math.min(ta[0], ta[3], ta[6]), x1 = Math.max(ta[0], ta[3], ta[6]);
-        const y0 = Math.min(ta[1], ta[4], ta[7]), y1 = Math.max(ta[1], ta[4], ta[7]);
-        const z0 = Math.min(ta[2], ta[5], ta[8]), z1 = Math.max(ta[2], ta[5], ta[8]);
+        triangleBox(ta, 0, boxA, 0);
         for (let j = 0; j < m; j++) {
           const o = 6 * j;
-          const dx = Math.max(boxesB[o] - x1, x0 - boxesB[o + 3], 0);
-          const dy = Math.max(boxesB[o + 1] - y1, y0 - boxesB[o + 4], 0);
-          const dz = Math.max(boxesB[o + 2] - z1, z0 - boxesB[o + 5], 0);
+          const dx = Math.max(boxesB[o] - boxA[3], boxA[0] - boxesB[o + 3], 0);
+          const dy = Math.max(boxesB[o + 1] - boxA[4], boxA[1] - boxesB[o + 4], 0);
+          const dz = Math.max(boxesB[o + 2] - boxA[5], boxA[2] - boxesB[o + 5], 0);
           if (dx * dx + dy * dy + dz * dz >= best * best) continue;
           const d = triangleDistance(ta, 0, tb, 9 * j);
           if (d < best) {

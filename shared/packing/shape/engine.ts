@@ -309,9 +309,8 @@ function* solve(
   const plate = usableRegion(instance).extent;
   /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
   const nestSet = (ways: number, halt: () => boolean): NestSet => {
-    const set: NestSet = { nests: [], used: kinds.map(() => 0) };
-    if (options.nest === false) return set;
-    const built = buildNests(
+    if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
+    const set: NestSet = buildNests(
       kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles })),
       cell,
       instance.spacing,
@@ -319,8 +318,6 @@ function* solve(
       halt,
       ways,
     );
-    set.nests.push(...built.nests);
-    built.used.forEach((n, i) => (set.used[i] = n));
     kinds.forEach((k, i) => {
       if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
       const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
@@ -354,6 +351,8 @@ function* solve(
   const checkCost = (nested: boolean) => (nested ? checkMs.nested || 8 * checkMs.plain : checkMs.plain);
   /** Time left for a stage whose layout (with nests or not) still has to be settled and checked. */
   const leftFor = (nested: boolean) => deadline - now() - settleMs - checkCost(nested) - 0.03 * instance.timeLimitMs;
+  /** A search's stop: timed, when only checking its layout would fit in what is left; capped, at the deadline. */
+  const outOfTime = (nested: boolean) => (timed ? leftFor(nested) <= 0 : now() >= deadline) || stop();
   const offer = (placed: Placed[], nested = false) => {
     const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && heightOf(placed) < bestHeight - 1e-9);
     if (!better) return;
@@ -474,19 +473,19 @@ function* solve(
       // box search of so few, large units is lumpy, and either set can come out lower. They share its time.
       const ways = options.holderWays ?? 4;
       const perSet = (instance.timeLimitMs * boxShare * nestShare) / (ways > 1 ? 2 : 1);
-      const sets = [primary];
-      for (let k = 0; k < 2 && !stop(); k++) {
-        if (k === 1) {
-          if (ways <= 1 || (timed && leftFor(true) < perSet / 2)) break;
-          const other = nestSet(ways, () => stop() || (timed && leftFor(true) < perSet / 2));
-          if (other.nests.length === 0) break;
-          sets.push(other);
-        }
-        const ms = budget(perSet, true);
-        if (ms === null) break;
-        const layout = yield* settledBoxes(capped, ms, sets[k]);
+      /** The box search of one set's nests for its share of the time; false when no time was left for it. */
+      const searchSet = function* (set: NestSet): Generator<void, boolean, void> {
+        const ms = stop() ? null : budget(perSet, true);
+        if (ms === null) return false;
+        const layout = yield* settledBoxes(capped, ms, set);
         offer(layout, true);
         if (better(layout, searched)) [searched, searchedNested] = [layout, true];
+        return true;
+      };
+      const tooLate = () => stop() || (timed && leftFor(true) < perSet / 2);
+      if ((yield* searchSet(primary)) && ways > 1 && !tooLate()) {
+        const other = nestSet(ways, tooLate);
+        if (other.nests.length > 0) yield* searchSet(other);
       }
     }
     const plainMs = nestShare < 1 && !stop() ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
@@ -497,7 +496,7 @@ function* solve(
     }
     // Then its highest parts dropped again where they end lower, while they can.
     if (searched.length > 0) {
-      const lowered = lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => (timed ? leftFor(searchedNested) <= 0 : now() >= deadline) || stop());
+      const lowered = lowerTheTop(instance, searched, kinds.map((k) => k.allProfiles), cell, () => outOfTime(searchedNested));
       offer(lowered, searchedNested);
     }
     runs++;
@@ -508,7 +507,7 @@ function* solve(
   let current = first ? heightOf(first) : Infinity;
   let currentCount = first ? first.length : -1;
   let currentChoices = choices;
-  while (runs < maxRuns && (timed ? leftFor(nests.length > 0) > 0 : now() < deadline) && !stop()) {
+  while (runs < maxRuns && !outOfTime(nests.length > 0)) {
     // A neighbour: a few copies moved in the order, and now and then another set of rotations for one part.
     const nextOrder = [...order];
     const moves = 1 + Math.floor(random() * 4);
@@ -528,7 +527,7 @@ function* solve(
         nextChoices[k] = random() < 0.5 ? [pick] : [...new Set([...kinds[k].profiles, pick])];
       }
     }
-    const placed = packOnce(instance, kinds, nests, nextOrder, nextChoices, cell, () => (timed ? leftFor(nests.length > 0) <= 0 : now() >= deadline) || stop());
+    const placed = packOnce(instance, kinds, nests, nextOrder, nextChoices, cell, () => outOfTime(nests.length > 0));
     runs++;
     if (placed) {
       const h = heightOf(placed);
