@@ -55,7 +55,8 @@ export function lowestFreeZ(instance: Pick<PackInstance, 'chamber' | 'margin' | 
   return null;
 }
 
-function withPosition(p: Placement, position: Vec3): Placement {
+/** The placement moved so that its box starts at `position` (its transform, if any, moved with it). */
+export function withPosition(p: Placement, position: Vec3): Placement {
   const d = [position[0] - p.position[0], position[1] - p.position[1], position[2] - p.position[2]];
   const transform = p.transform ? (p.transform.map((v, k) => (k >= 9 ? v + d[k - 9] : v)) as Placement['transform']) : undefined;
   return transform ? { ...p, position, transform } : { ...p, position };
@@ -181,26 +182,39 @@ export function shapeEditFaults(instance: Pick<PackInstance, 'chamber' | 'margin
   return at;
 }
 
+/** How placement `q` stands to placement `p` (by index): under it, over it, or neither (apart, or side by side). */
+export type LiftRelation = (p: number, q: number) => 'below' | 'above' | null;
+
+/** By their boxes: over the same footprint, one box wholly under or over the other. */
+function boxRelation(placements: readonly Placement[]): LiftRelation {
+  return (i, k) => {
+    const p = placements[i], q = placements[k];
+    if (!footprintsMeet(p, q, 0)) return null;
+    if (q.position[2] + q.size[2] <= p.position[2] + TOLERANCE_MM) return 'below';
+    if (q.position[2] >= p.position[2] + p.size[2] - TOLERANCE_MM) return 'above';
+    return null;
+  };
+}
+
 /**
  * The placements of a layout packed by shape in an order they can be lifted out (in reverse) after the `moved`
  * ones changed place: each moved part, lowest first, stays where it is listed if that order holds, else is
- * listed again just after the last part under it (over the same footprint), when that is before every part
- * over it; a part with no such place stays where it was (shapeEditFaults then names it). Returns the new list
- * and, for each old index, its new index.
+ * listed again just after the last part under it, when that is before every part over it; a part with no such
+ * place stays where it was (the check then names it). Which part is under which is `relation`'s answer (by
+ * default the boxes': over the same footprint, one wholly under the other). Returns the new list and, for each
+ * old index, its new index.
  */
-export function inLiftOrder(placements: readonly Placement[], moved: Iterable<number>): { placements: Placement[]; indexOf: number[] } {
+export function inLiftOrder(placements: readonly Placement[], moved: Iterable<number>, relation: LiftRelation = boxRelation(placements)): { placements: Placement[]; indexOf: number[] } {
   let order = placements.map((_, i) => i);
   const ids = [...new Set(moved)].filter((i) => placements[i]).sort((a, b) => placements[a].position[2] - placements[b].position[2]);
   for (const i of ids) {
-    const p = placements[i];
     const rest = order.filter((k) => k !== i);
     let lastBelow = -1;
     let firstAbove = rest.length;
     rest.forEach((k, at) => {
-      const q = placements[k];
-      if (!footprintsMeet(p, q, 0)) return;
-      if (q.position[2] + q.size[2] <= p.position[2] + TOLERANCE_MM) lastBelow = at;
-      else if (q.position[2] >= p.position[2] + p.size[2] - TOLERANCE_MM && at < firstAbove) firstAbove = at;
+      const r = relation(i, k);
+      if (r === 'below') lastBelow = at;
+      else if (r === 'above' && at < firstAbove) firstAbove = at;
     });
     // Where it is may do already (nothing under it listed after it, nothing over it before it): it stays.
     const at = order.indexOf(i);

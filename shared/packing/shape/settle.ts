@@ -20,6 +20,7 @@
  * passes, the settling order stays a lift-out order (Cui et al., ACM TOG
  * 42(4), 2023: vertical removal keeps a packing free of interlocks).
  */
+import { rotatedExtent } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
 import type { PackInstanceV2 } from '../types';
 import type { ShapePart } from './parts';
@@ -111,17 +112,7 @@ export function settleLayout(
   const g = instance.spacing;
   const h = options.cell ?? settleCell(g);
   const floor = usableRegion(instance).min[2];
-  const cache = new Map<string, Dense>();
-  const profileOf = (part: number, rotation: number): Dense => {
-    const key = `${part}:${rotation}`;
-    let d = cache.get(key);
-    if (!d) {
-      const p = parts[part];
-      d = dense(columnProfile(p, rotation, h, g, p.hasMesh && !p.watertight), g, h);
-      cache.set(key, d);
-    }
-    return d;
-  };
+  const profileOf = denseProfiles(parts, g, h);
   // Plan buckets of the settled parts (by their boxes grown by the spacing), for the near ones.
   const bucket = Math.max(10, 4 * g);
   const buckets = new Map<number, number[]>();
@@ -141,20 +132,13 @@ export function settleLayout(
             if (seen.has(q)) continue;
             seen.add(q);
             const Q = out[q];
-            const QP = profileOf(Q.part, Q.rotation);
-            const gx = Math.max(Q.position[0] - (x + P.extent[0]), x - (Q.position[0] + QP.extent[0]), 0);
-            const gy = Math.max(Q.position[1] - (y + P.extent[1]), y - (Q.position[1] + QP.extent[1]), 0);
-            // Further apart in plan than the spacing: no height brings them closer.
-            if (gx * gx + gy * gy >= g * g) continue;
-            need = Math.max(need, lowestAbove(P, x, y, QP, Q.position, h));
+            need = Math.max(need, clearAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, g, h));
             if (need >= z0) break;
           }
         }
       }
     } else need = z0;
-    // Never up: the place it had is free by the layout it came from.
-    const z = need < z0 - 1e-6 ? need + 1e-7 : z0;
-    const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, z] };
+    const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, restingZ(need, z0)] };
     const at = out.length;
     out.push(placed);
     const bi0 = Math.floor((x - g) / bucket), bi1 = Math.floor((x + P.extent[0] + g) / bucket);
@@ -169,6 +153,61 @@ export function settleLayout(
     }
   }
   return out;
+}
+
+/** Never up: the place a part had is free by the layout it came from; lowered, it keeps a hair above what stops it. */
+function restingZ(need: number, z0: number): number {
+  return need < z0 - 1e-6 ? need + 1e-7 : z0;
+}
+
+/** Dense profiles of the parts' turns on cells of `h`, each drawn once. */
+function denseProfiles(parts: ShapePart[], g: number, h: number): (part: number, rotation: number) => Dense {
+  const cache = new Map<string, Dense>();
+  return (part, rotation) => {
+    const key = `${part}:${rotation}`;
+    let d = cache.get(key);
+    if (!d) {
+      const p = parts[part];
+      d = dense(columnProfile(p, rotation, h, g, p.hasMesh && !p.watertight), g, h);
+      cache.set(key, d);
+    }
+    return d;
+  };
+}
+
+/**
+ * The lowest height of P's box bottom (at plan corner x, y) that keeps it the spacing clear of Q coming from
+ * above; -Infinity when their plan boxes are further apart than the spacing (no height brings them closer).
+ */
+function clearAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], g: number, h: number): number {
+  const gx = Math.max(q[0] - (x + P.extent[0]), x - (q[0] + Q.extent[0]), 0);
+  const gy = Math.max(q[1] - (y + P.extent[1]), y - (q[1] + Q.extent[1]), 0);
+  if (gx * gx + gy * gy >= g * g) return -Infinity;
+  return lowestAbove(P, x, y, Q, q, h);
+}
+
+/**
+ * Where one part comes to rest lowered straight down from where it is: the lowest box bottom (never above its
+ * own) at which it keeps the spacing from every one of `others` that it comes down onto, or the floor. A part
+ * with another over it within the spacing in plan stays where it is (it would have to pass through it).
+ */
+export function restingHeight(instance: PackInstanceV2, parts: ShapePart[], item: SettleItem, others: readonly SettleItem[], options: { cell?: number } = {}): number {
+  const g = instance.spacing;
+  const h = options.cell ?? settleCell(g);
+  const profileOf = denseProfiles(parts, g, h);
+  const P = profileOf(item.part, item.rotation);
+  const [x, y, z0] = item.position;
+  let need = usableRegion(instance).min[2];
+  for (const Q of others) {
+    if (need >= z0) break;
+    // Only the parts within the spacing in plan are drawn as profiles.
+    const e = rotatedExtent(Q.rotation, parts[Q.part].size);
+    const gx = Math.max(Q.position[0] - (x + P.extent[0]), x - (Q.position[0] + e[0]), 0);
+    const gy = Math.max(Q.position[1] - (y + P.extent[1]), y - (Q.position[1] + e[1]), 0);
+    if (gx * gx + gy * gy >= g * g) continue;
+    need = Math.max(need, clearAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, g, h));
+  }
+  return restingZ(need, z0);
 }
 
 /**

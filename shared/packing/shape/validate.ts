@@ -66,8 +66,7 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     } else {
       rotation = typeof p.orientation === 'string' ? rotationIndex(p.orientation) : -1;
       if (rotation < 0) return bad(`${at}.orientation`, `"${p.orientation}" is not a rotation code`);
-      const box = rotatedBox(rotation, part.min, part.max);
-      translation = [0, 1, 2].map((a) => p.position[a] - box.min[a]);
+      translation = translationOf(part, rotation, p);
     }
     if (!part.rotations.includes(rotation) && !(!part.hasMesh && part.rotations.some((k) => extentCode(k) === extentCode(rotation)))) {
       bad(`${at}.orientation`, `${ROTATION_CODES[rotation]} is not a rotation part "${p.id}" allows`);
@@ -128,6 +127,13 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     if (!(Math.abs(sum - volume) <= 0.1 * volume)) bad('areaProfile', `sums to ${sum.toFixed(1)} mm^3 times the layer height, far from the placed volume ${volume.toFixed(1)} mm^3`);
   }
   return problems;
+}
+
+/** The translation that places a part turned by `rotation`: its transform's, or for a part known by its box, from where its box lies. */
+export function translationOf(part: ShapePart, rotation: number, p: { position: readonly number[]; transform?: readonly number[] }): number[] {
+  if (part.hasMesh && p.transform) return [p.transform[9], p.transform[10], p.transform[11]];
+  const box = rotatedBox(rotation, part.min, part.max);
+  return [0, 1, 2].map((a) => p.position[a] - box.min[a]);
 }
 
 function checkGapsAndLift(
