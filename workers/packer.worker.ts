@@ -6,10 +6,11 @@
  */
 import * as Comlink from 'comlink';
 import { RestingMeshCache } from '../shared/geometry/layoutSlices';
-import { createPacking, encodeLayout, layoutTransferables, parseInstance, type PackPhase, type PackResult } from '../shared/packing';
-import { createPackingV2 } from '../shared/packing/shape';
+import { createPacking, decodeLayout, encodeLayout, layoutTransferables, parseInstance, type PackPhase, type PackResult } from '../shared/packing';
+import { createPackingV2, shapeParts, type ShapePart } from '../shared/packing/shape';
+import { droppedByShape, shapeLayoutFaults } from '../shared/packing/shape/handEdit';
 import { fetchSameOrigin, type FetchBytes } from './partMeshes';
-import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions } from './protocol';
+import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions, ShapeEditOutcome, ShapeEditRequest } from './protocol';
 import { shapeInstanceOf } from './shapeInstance';
 
 interface Run {
@@ -20,6 +21,8 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
   const cancelled = new Set<number>();
   const running = new Set<number>();
   const meshes = new RestingMeshCache();
+  // The parts of the last layout checked by hand, with their trees: the next edit of the same layout reuses them.
+  let lastParts: { key: string; parts: ShapePart[] } | null = null;
   return {
     async start(runId: number, instance: unknown, onProgress: PackerProgressCallback, options: PackerStartOptions = {}): Promise<PackerOutcome> {
       const parsed = parseInstance(instance);
@@ -69,6 +72,27 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
     },
     cancel(runId: number) {
       if (running.has(runId)) cancelled.add(runId);
+    },
+    async checkByShape(request: ShapeEditRequest): Promise<ShapeEditOutcome> {
+      const parsed = parseInstance(request?.instance);
+      if (!parsed.ok) return { ok: false, problems: parsed.problems };
+      const decoded = decodeLayout(request.layout);
+      if (!decoded.ok) return { ok: false, problems: decoded.problems };
+      const shaped = await shapeInstanceOf(parsed.instance, request.shapes, meshes, fetchBytes);
+      if (!shaped.ok) return { ok: false, problems: shaped.problems };
+      const key = JSON.stringify(shaped.instance.parts.map((p) => [p.id, p.quantity, p.rotations, request.shapes.parts.find((s) => s.id === p.id)?.file.key]));
+      if (lastParts?.key !== key) lastParts = { key, parts: shapeParts(shaped.instance) };
+      const parts = lastParts.parts;
+      let result = decoded.result;
+      const drop = Array.isArray(request.drop) ? request.drop.filter((i) => Number.isInteger(i) && i >= 0 && i < result.placements.length) : [];
+      let dropped: { layout: ReturnType<typeof encodeLayout>; indexOf: number[] } | undefined;
+      if (drop.length > 0) {
+        const out = droppedByShape(shaped.instance, result.placements, drop, parts);
+        result = { ...result, placements: out.placements };
+        dropped = { layout: encodeLayout(result), indexOf: out.indexOf };
+      }
+      const { faults, problems } = shapeLayoutFaults(shaped.instance, result, parts);
+      return { ok: true, faults: [...faults].sort((a, b) => a - b), problems, ...(dropped ? { dropped } : {}) };
     },
   };
 }

@@ -29,6 +29,28 @@ export interface PackerStartOptions {
   shapes?: ShapeFiles;
 }
 
+/** A layout packed by shape and changed by hand, to be checked against the parts' meshes (and, first, some of it dropped). */
+export interface ShapeEditRequest {
+  /** The layout's "pack-instance/1", as the editor holds it. */
+  instance: unknown;
+  layout: EncodedLayout;
+  shapes: ShapeFiles;
+  /** Placements (by index) to lower as far as their shapes allow before the check: a drop by hand. */
+  drop?: number[];
+}
+
+export type ShapeEditOutcome =
+  | {
+      ok: true;
+      /** The placements at fault, by index in the layout checked (after the drop, when there was one). */
+      faults: number[];
+      /** What the check found, in the layout's own field names. */
+      problems: FieldProblem[];
+      /** After a drop: the placements, listed again in lift-out order (its totals are the editor's to work out), and each old index's new one. */
+      dropped?: { layout: EncodedLayout; indexOf: number[] };
+    }
+  | { ok: false; problems: FieldProblem[] };
+
 export interface PackerApi {
   /**
    * Checks `instance` (a "pack-instance/1" object) and packs it, by boxes or
@@ -38,4 +60,6 @@ export interface PackerApi {
   start(runId: number, instance: unknown, onProgress: PackerProgressCallback, options?: PackerStartOptions): Promise<PackerOutcome>;
   /** Ends the run soon with its best layout so far; unknown ids are ignored. */
   cancel(runId: number): void;
+  /** Checks a layout packed by shape and changed by hand against the meshes (dropping the chosen parts first); bad input comes back as problems. */
+  checkByShape(request: ShapeEditRequest): Promise<ShapeEditOutcome>;
 }

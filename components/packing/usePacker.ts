@@ -14,7 +14,7 @@ import {
   type PackPhase,
   type PackResult,
 } from '../../shared/packing';
-import type { PackerApi, PackerOutcome, PackerProgressCallback, ShapeFiles } from '../../workers/protocol';
+import type { PackerApi, PackerOutcome, PackerProgressCallback, ShapeEditOutcome, ShapeEditRequest, ShapeFiles } from '../../workers/protocol';
 
 export type PackerStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
 
@@ -35,6 +35,8 @@ export interface UsePacker {
    */
   start(instance: unknown, options?: StartOptions): void;
   cancel(): void;
+  /** Checks a layout packed by shape and changed by hand against the meshes, in the worker (see PackerApi.checkByShape). */
+  checkByShape(request: ShapeEditRequest): Promise<ShapeEditOutcome>;
 }
 
 export interface StartOptions {
@@ -66,6 +68,7 @@ function createClient(onWorkerError: (message: string) => void): PackerClient {
       api: {
         start: (runId, instance, onProgress, options) => remote.start(runId, instance, Comlink.proxy(onProgress), options),
         cancel: (runId) => void remote.cancel(runId),
+        checkByShape: (request) => remote.checkByShape(request),
       },
       dispose: () => {
         remote[Comlink.releaseProxy]();
@@ -99,6 +102,9 @@ function createInlineApi(): PackerApi {
     },
     cancel(runId) {
       cancelled.add(runId);
+    },
+    async checkByShape() {
+      return { ok: false, problems: [{ field: 'shapes', message: 'checking by shape needs a web worker, which this platform does not offer' }] };
     },
   };
 }
@@ -136,7 +142,7 @@ export function usePacker(): UsePacker {
     [],
   );
 
-  const start = useCallback((instance: unknown, options: StartOptions = {}) => {
+  const clientOf = useCallback((): PackerClient => {
     if (!clientRef.current) {
       clientRef.current = createClient((message) => {
         setError(message);
@@ -145,7 +151,11 @@ export function usePacker(): UsePacker {
         clientRef.current = null;
       });
     }
-    const client = clientRef.current;
+    return clientRef.current;
+  }, []);
+
+  const start = useCallback((instance: unknown, options: StartOptions = {}) => {
+    const client = clientOf();
     if (status === 'running') client.api.cancel(runRef.current);
     const runId = ++runRef.current;
     setStatus('running');
@@ -190,11 +200,13 @@ export function usePacker(): UsePacker {
         setError(e instanceof Error ? e.message : String(e));
         setStatus('error');
       });
-  }, [status]);
+  }, [status, clientOf]);
 
   const cancel = useCallback(() => {
     clientRef.current?.api.cancel(runRef.current);
   }, []);
 
-  return { status, phase, progress, best, error, problems, start, cancel };
+  const checkByShape = useCallback((request: ShapeEditRequest) => clientOf().api.checkByShape(request), [clientOf]);
+
+  return { status, phase, progress, best, error, problems, start, cancel, checkByShape };
 }

@@ -33,8 +33,15 @@ export interface BuildPaneProps {
   onRemoveMarked: () => void;
   onClearMarked: () => void;
   editable: boolean;
-  /** The layout shown was packed by shape: a part moved by hand is checked by its box (it cannot be moved into a hollow). */
+  /**
+   * The layout shown was packed by shape: a part changed by hand is checked by its box at once, then against the
+   * parts' meshes in the packing worker (so it may be moved into a hollow), and a drop lowers it as far as its shape allows.
+   */
   byShape: boolean;
+  /** Where the check against the meshes of a layout by shape changed by hand stands (null: none under way or due). */
+  shapeCheck: 'checking' | 'checked' | 'failed' | 'dropping' | null;
+  /** Why the check against the meshes could not be made, when it failed. */
+  shapeCheckMessage: string | null;
   caption: string;
   live: boolean;
   /**
@@ -61,11 +68,24 @@ const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] =
 function pointerHint(wide: boolean, editable: boolean, byShape: boolean): string {
   if (editable && byShape) {
     return wide
-      ? 'Hover a part to see its line; click to mark it, drag to move it. Packed by shape: moved parts keep their boxes clear of the others.'
-      : 'Tap to mark; moved parts keep their boxes clear.';
+      ? "Hover a part to see its line; click to mark it, drag to move it. Packed by shape: a moved part is checked against the others' shapes, and a drop lowers it into their hollows."
+      : 'Tap to mark; a drop lowers parts into hollows.';
   }
   if (wide) return editable ? 'Hover a part to see its line; click to mark it, drag a marked part to move it.' : 'Hover a part to see its line.';
   return editable ? 'Tap a part to mark it; drag a marked part to move it.' : 'Tap a part to see its line.';
+}
+
+/** What the parts at fault break, as the check that found them sees it. */
+function faultText(p: Pick<BuildPaneProps, 'faults' | 'byShape' | 'shapeCheck' | 'spacingMm'>): string {
+  const n = p.faults;
+  const them = n === 1 ? 'it' : 'them';
+  if (!p.byShape) {
+    return `${n} part${n === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${them} apart or drop ${them} to a free height: the layout cannot be kept until then.`;
+  }
+  if (p.shapeCheck === 'checked') {
+    return `By the parts' shapes, ${n} part${n === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another, outside the usable region, or in the way of a part lifted out before ${them} (red). Move ${them} clear or drop ${them}: the layout cannot be kept until then.`;
+  }
+  return `${n} part${n === 1 ? "'s box is" : "s' boxes are"} closer than the ${p.spacingMm} mm spacing to another part's box, outside the usable region, or in the way of a part lifted out before it (red). Their shapes are checked once the change is made; the layout cannot be kept while any is at fault.`;
 }
 
 /** Centre pane: the chamber in 3D with the layer slider; clicking parts marks them for removal. */
@@ -124,11 +144,18 @@ export const BuildPane = forwardRef<ChamberViewHandle, BuildPaneProps>(function 
           {`Layers count from the floor as printed: ${Number(p.stack.floorMarginMm.toFixed(2))} mm of powder under the parts (floor margin) and ${Number(p.stack.topMarginMm.toFixed(2))} mm over them included.`}
         </Text>
       ) : null}
+      {p.byShape && p.shapeCheck && p.shapeCheck !== 'checked' ? (
+        <Text variant="caption" color={p.shapeCheck === 'failed' ? 'danger' : 'inkMuted'} testID="plan-shape-check">
+          {p.shapeCheck === 'dropping'
+            ? 'Dropping the marked parts by their shapes…'
+            : p.shapeCheck === 'checking'
+              ? "Checking the change against the parts' shapes…"
+              : `The change could not be checked against the parts' shapes (${p.shapeCheckMessage ?? 'no answer'}): its parts are checked by their boxes, and the server checks the shapes when the layout is kept.`}
+        </Text>
+      ) : null}
       {p.faults > 0 ? (
         <Notice tone="caution" title="Parts too close" testID="plan-edit-faults">
-          {p.byShape
-            ? `${p.faults} part${p.faults === 1 ? "'s box is" : "s' boxes are"} closer than the ${p.spacingMm} mm spacing to another part's box, outside the usable region, or in the way of a part lifted out before it (red). Move ${p.faults === 1 ? 'it' : 'them'} clear or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then. Packing again nests parts into each other.`
-            : `${p.faults} part${p.faults === 1 ? ' is' : 's are'} closer than the ${p.spacingMm} mm spacing to another or outside the usable region (red). Move ${p.faults === 1 ? 'it' : 'them'} apart or drop ${p.faults === 1 ? 'it' : 'them'} to a free height: the layout cannot be kept until then.`}
+          {faultText(p)}
         </Notice>
       ) : null}
       {p.editable && (p.marked > 0 || p.onUndo) ? (

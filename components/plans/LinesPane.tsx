@@ -6,6 +6,7 @@ import type { DraftOptions } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, Choice, Text, TextInput } from '../ui';
 import { priorityLabel, priorityTone } from '../requests/labels';
+import { shapeTimeNote } from './editorModel';
 import { RULE_LABELS, RULE_ORIENTATIONS } from './instance';
 
 export interface EditorLine {
@@ -79,6 +80,7 @@ export interface LinesPaneProps {
 export function LinesPane(p: LinesPaneProps) {
   const running = p.packer.status === 'running';
   const total = p.lines.reduce((s, l) => s + l.quantity, 0);
+  const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs) : null;
   return (
     <View style={styles.pane} testID="plan-lines">
       <View style={styles.section}>
@@ -168,6 +170,11 @@ export function LinesPane(p: LinesPaneProps) {
           {p.options.fit === 'shape' ? (
             <Text variant="caption" color="inkFaint" testID="pack-fit-note">
               Parts nest into each other's hollows, and every part can still be lifted straight out. The parts' files are downloaded first; a part without a closed mesh is packed by its box. The server checks the meshes again when you keep the layout.
+            </Text>
+          ) : null}
+          {timeNote ? (
+            <Text variant="caption" color="ember" testID="pack-time-note">
+              {timeNote}
             </Text>
           ) : null}
           <Text variant="caption" color="inkMuted">Layer height</Text>

@@ -274,6 +274,16 @@ export function handEdited(
 }
 
 /**
+ * A layout by shape after a drop worked out against the meshes (in the packing worker): its placements, listed
+ * again in lift-out order, summarised (height, layers, density) as a hand edit is; null when the instance does not
+ * read.
+ */
+export function droppedByShapeResult(instance: PackInstanceInput, result: PackResult, placements: Placement[]): PackResult | null {
+  const parsed = parseInstance(instance);
+  return parsed.ok ? summariseLayout(parsed.instance, placements, result.elapsedMs) : null;
+}
+
+/**
  * Marked parts dragged by (dxMm, dyMm), as the release would leave them: the layout in its own order (the marks
  * and the view keep their indices while dragging) and the parts at fault, checked as after the release (packed
  * by shape, the moved parts first listed again where they can be lifted out in turn), by their indices here.
@@ -513,3 +523,21 @@ export function submitBlockOf(layouts: readonly Pick<LayoutSummaryView, 'chosen'
   if (dirty) return 'Save or undo your changes first.';
   return null;
 }
+
+/**
+ * The time limit a packing by shape of `parts` parts is suggested, in seconds: 1 s per 50 parts, at least 4 s.
+ * Measured with the packing benchmark (docs/benchmarks.md): the first layout by shape alone takes about 1.5 ms a
+ * part and its check about 0.5 ms more, so 2,000 parts at 10 s get no further than it, while 40 s leaves room for
+ * the search that nests them (and 10 s does for 500).
+ */
+export function suggestedShapeSeconds(parts: number): number {
+  return Math.max(4, Math.ceil(parts / 50));
+}
+
+/** A note when packing by shape is given less time than its parts are suggested (null when the limit will do). */
+export function shapeTimeNote(parts: number, timeLimitMs: number): string | null {
+  const s = suggestedShapeSeconds(parts);
+  if (timeLimitMs >= s * 1000) return null;
+  return `With ${parts} parts, packing by shape needs about ${s} s to search beyond its first layout: set the time limit to ${s} s or more for a lower build.`;
+}
+

@@ -40,7 +40,7 @@ export interface PackingSessionInput {
 }
 
 export interface PackingSession {
-  packer: Pick<UsePacker, 'status' | 'progress' | 'phase' | 'cancel'>;
+  packer: Pick<UsePacker, 'status' | 'progress' | 'phase' | 'cancel' | 'checkByShape'>;
   running: boolean;
   working: Working | null;
   /** Shows a layout made by hand (placements removed) as the one not kept yet. */

@@ -6,7 +6,7 @@
  */
 import { useQueryClient } from '@tanstack/react-query';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
-import type { PackInstanceInput, PackResult, Vec3 } from '../../shared/packing';
+import { decodeLayout, encodeLayout, type PackInstanceInput, type PackResult, type Vec3 } from '../../shared/packing';
 import type { PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import { useLab } from '../lab/useCurrentLab';
 import { useLayoutQuery, useOpenLinesQuery } from '../queries/plans';
@@ -40,6 +40,7 @@ import {
   lineInfoOf,
   buildStackOf,
   dragPreview,
+  droppedByShapeResult,
   editFaults,
   handEdited,
   isByShape,
@@ -183,10 +184,50 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   }, [dragMm, shownInstance, shownResult, marked, handMoved]);
   const dragged = drag?.result ?? null;
   const viewResult = dragged ?? shownResult;
+  // Packed by shape, a layout changed by hand is then checked against the parts' meshes in the packing worker; the
+  // boxes' quick check stands while dragging and until the worker answers (it can only find more at fault).
+  const checkByShape = packer.checkByShape;
+  const exactFaults = useRef(new WeakMap<PackResult, Set<number>>());
+  const [shapeCheck, setShapeCheck] = useState<{ result: PackResult; state: 'checking' | 'checked' | 'failed'; message?: string } | null>(null);
+  const checkResult = showingWorking && working.mode === 'edit' && shownByShape && editable ? (working.result ?? null) : null;
+  const checkInstance = checkResult ? working?.instance : null;
+  useEffect(() => {
+    if (!checkResult || !checkInstance || running) return;
+    if (exactFaults.current.has(checkResult)) {
+      setShapeCheck({ result: checkResult, state: 'checked' });
+      return;
+    }
+    let live = true;
+    setShapeCheck({ result: checkResult, state: 'checking' });
+    // A burst of arrow keys is checked once, when it pauses.
+    const timer = setTimeout(() => {
+      shapeFilesFor(checkInstance)
+        .then((shapes) => checkByShape({ instance: checkInstance, layout: encodeLayout(checkResult), shapes }))
+        .then((outcome) => {
+          if (!live) return;
+          if (!outcome.ok) {
+            setShapeCheck({ result: checkResult, state: 'failed', message: outcome.problems.map((p) => `${p.field} ${p.message}`).join('; ') });
+            return;
+          }
+          exactFaults.current.set(checkResult, new Set(outcome.faults));
+          setShapeCheck({ result: checkResult, state: 'checked' });
+        })
+        .catch((e: unknown) => {
+          if (live) setShapeCheck({ result: checkResult, state: 'failed', message: e instanceof Error ? e.message : String(e) });
+        });
+    }, 250);
+    return () => {
+      live = false;
+      clearTimeout(timer);
+    };
+  }, [checkResult, checkInstance, running, shapeFilesFor, checkByShape]);
+  const shapeCheckState = checkResult && shapeCheck?.result === checkResult ? shapeCheck : null;
   const faults = useMemo(() => {
     if (drag) return drag.faults;
-    return showingWorking && working.mode === 'edit' && working.result ? editFaults(working.instance, working.result, handMoved) : new Set<number>();
-  }, [drag, showingWorking, working, handMoved]);
+    if (!(showingWorking && working.mode === 'edit' && working.result)) return new Set<number>();
+    const exact = shapeCheckState?.state === 'checked' ? exactFaults.current.get(working.result) : undefined;
+    return exact ?? editFaults(working.instance, working.result, handMoved);
+  }, [drag, showingWorking, working, handMoved, shapeCheckState]);
   const placements = useMemo(() => {
     if (!viewResult) return EMPTY_PLACEMENTS;
     const p = toChamberPlacements(viewResult, colourOrder);
@@ -273,23 +314,59 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   };
   // Marked parts moved, turned or dropped by hand: the result shown as a layout not kept yet, checked as it changes.
   const editable3d = editable && !running && !!shownInstance && !!shownResult && marked.length > 0;
-  const onHandEdit = (e: HandEdit) => {
-    if (!editable3d || !shownInstance || !shownResult) return;
-    const out = handEdited(shownInstance, shownResult, new Set(marked), e);
-    if (!out.ok) {
-      say({ tone: 'danger', text: out.message });
-      return;
-    }
+  /** Shows the layout a hand edit of `instance` left as the layout not kept yet; returns it as shown. */
+  const showEdited = (instance: PackInstanceInput, out: { result: PackResult; indexOf?: number[] }): PackResult => {
     // Packed by shape, the changed parts may be listed anew (lift-out order): the marks follow them.
     const at = (i: number) => out.indexOf?.[i] ?? i;
     const keep = marked.map(at);
     remember();
     const result = shownByShape ? withPartVolumes(out.result, volumeOf) : out.result;
     const moved = shownByShape ? [...new Set([...handMoved, ...marked])].map(at) : undefined;
-    session.showWorking({ mode: 'edit', instance: shownInstance, kept: [], result, lines, baseLines: lines, problem: null, handMoved: moved });
+    session.showWorking({ mode: 'edit', instance, kept: [], result, lines, baseLines: lines, problem: null, handMoved: moved });
     // The edited layout holds the same placements: the marks stay on them.
     marksFollow.current = shownId !== WORKING;
     setMarked(keep);
+    return result;
+  };
+  // Packed by shape, a drop lowers the marked parts as far as their shapes allow (into a hollow, through a hole),
+  // worked out against the meshes in the packing worker; the layout it answers comes checked.
+  const [dropping, setDropping] = useState(false);
+  const latestShown = useRef(shownResult);
+  latestShown.current = shownResult;
+  const dropByShape = async (instance: PackInstanceInput, result: PackResult) => {
+    setDropping(true);
+    try {
+      const shapes = await shapeFilesFor(instance);
+      const outcome = await checkByShape({ instance, layout: encodeLayout(result), shapes, drop: [...marked] });
+      // Changed meanwhile (undone, packed again): this answer is for a layout no longer shown.
+      if (latestShown.current !== result) return;
+      const decoded = outcome.ok && outcome.dropped ? decodeLayout(outcome.dropped.layout) : null;
+      const next = decoded?.ok ? droppedByShapeResult(instance, result, decoded.result.placements) : null;
+      if (!outcome.ok || !outcome.dropped || !next) {
+        const why = outcome.ok ? 'the packing worker sent no layout back' : outcome.problems.map((p) => `${p.field} ${p.message}`).join('; ');
+        say({ tone: 'danger', text: `The marked parts could not be dropped by their shapes: ${why}.` });
+        return;
+      }
+      const shown = showEdited(instance, { result: next, indexOf: outcome.dropped.indexOf });
+      exactFaults.current.set(shown, new Set(outcome.faults));
+    } catch (e) {
+      if (latestShown.current === result) say({ tone: 'danger', text: `The marked parts could not be dropped by their shapes: ${e instanceof Error ? e.message : String(e)}.` });
+    } finally {
+      setDropping(false);
+    }
+  };
+  const onHandEdit = (e: HandEdit) => {
+    if (!editable3d || !shownInstance || !shownResult || dropping) return;
+    if (e.kind === 'drop' && shownByShape) {
+      void dropByShape(shownInstance, shownResult);
+      return;
+    }
+    const out = handEdited(shownInstance, shownResult, new Set(marked), e);
+    if (!out.ok) {
+      say({ tone: 'danger', text: out.message });
+      return;
+    }
+    showEdited(shownInstance, out);
   };
   // A drag starts on a marked part; it moves every marked part, and its release is one change by hand like a key's.
   const onDragStart = (i: number) => editable3d && marked.includes(i);
@@ -420,6 +497,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     onRemoveMarked,
     onClearMarked: clearMarked,
     byShape: shownByShape,
+    shapeCheck: dropping ? 'dropping' : (shapeCheckState?.state ?? null),
+    shapeCheckMessage: shapeCheckState?.message ?? null,
     editable,
     caption: shownLabel,
     live: running && showingWorking && !!working?.result,

@@ -58,6 +58,8 @@ async function packByShape(page: Page) {
   await page.getByTestId('pack-fit-shape').click();
   await page.getByTestId('pack-fit-note').waitFor();
   await page.getByTestId('pack-time').fill('3');
+  // Under the time suggested for this many parts by shape (1 s per 50, at least 4 s), the screen says so.
+  await page.getByTestId('pack-time-note').getByText(/^With 12 parts, .* 4 s or more/).waitFor();
   await page.getByTestId('pack-start').click();
   // Three seconds of packing after the parts' files are read: the progress shows meanwhile.
   await page.getByTestId('pack-progress').waitFor();
@@ -113,19 +115,31 @@ test('phone (390 x 844): the choice and the packing on the lines tab, the parts 
   await page.getByText(/^Kept as "Seed \d+ by shape/).waitFor({ timeout: 60_000 });
   await page.getByTestId('plan-tab-build').click();
   await page.locator('[data-testid="plan-build"] canvas').waitFor();
-  await page.getByText(/moved parts keep their boxes clear/).waitFor();
+  await page.getByText(/a drop lowers parts into hollows/).waitFor();
   await page.waitForFunction('!!window.__chamberProbe', undefined, { timeout: 10_000 });
   await page.waitForTimeout(500);
   await screenshot(page, 'plan-editor-kept-by-shape-phone');
 
-  // A part moved by hand is checked by its box: moved into another part's box it is at fault and the layout
-  // cannot be kept; dropped, it goes to the lowest height clear of every box, is listed again where it can be
-  // lifted out in turn, and the layout is kept once the server has checked the meshes.
+  // A part moved by hand is checked by its box at once, then against the meshes in the packing worker: moved
+  // into another part it is at fault and the layout cannot be kept; dropped, it is lifted clear and comes down as
+  // far as its shape allows, is listed again where it can be lifted out in turn, and the layout is kept once the
+  // server has checked the meshes.
   await markAPart(page, false);
   await page.getByTestId('plan-move-left').scrollIntoViewIfNeeded();
   await moveIntoClash(page);
+  // The check against the meshes answers: the notice then speaks of the shapes (or is gone, if only the boxes met).
+  await page.waitForFunction(
+    () => {
+      const notice = document.querySelector('[data-testid="plan-edit-faults"]');
+      return !document.querySelector('[data-testid="plan-shape-check"]') && (!notice || /By the parts' shapes/.test(notice.textContent ?? ''));
+    },
+    undefined,
+    { timeout: 30_000 },
+  );
   await page.getByTestId('plan-drop').click();
   await page.getByTestId('plan-edit-faults').waitFor({ state: 'detached' });
+  await page.getByTestId('plan-shape-check').waitFor({ state: 'detached' });
+  await screenshot(page, 'plan-editor-dropped-by-shape-phone');
   await page.getByTestId('plan-tab-layouts').click();
   await page.getByTestId('layout-keep').click();
   await page.getByText(/^Kept as "Edited by shape · \d+ layers"/).waitFor({ timeout: 60_000 });

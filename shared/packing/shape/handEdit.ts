@@ -8,12 +8,12 @@
  */
 import { placementRotation } from '../codec';
 import { inLiftOrder, placementsAtFault, withPosition, type LiftRelation } from '../edit';
-import { TOLERANCE_MM } from '../geometry';
+import { TOLERANCE_MM, usableRegion } from '../geometry';
 import { RESULT_FORMAT_V2, type FieldProblem, type PackInstanceV2, type PackResult, type PackResultV2, type Placement } from '../types';
-import { blocksLift, PlacedBvh } from './bvh';
+import { blocksLift, PlacedBvh, surfaceDistance } from './bvh';
 import { shapeParts, type ShapePart } from './parts';
 import { restingHeight, type SettleItem } from './settle';
-import { translationOf, validateShapeLayout } from './validate';
+import { inside, translationOf, validateShapeLayout } from './validate';
 
 /** The placements at fault (by index) and the problems naming them, from the check against the meshes. */
 export function shapeLayoutFaults(instance: PackInstanceV2, result: PackResult, parts: ShapePart[] = shapeParts(instance)): { faults: Set<number>; problems: FieldProblem[] } {
@@ -24,10 +24,12 @@ export function shapeLayoutFaults(instance: PackInstanceV2, result: PackResult, 
 }
 
 /**
- * The chosen placements, lowest first, each lowered straight down until its shape comes within the spacing of
- * a part under it (or reaches the floor keep-out); one held by a part reaching over it stays. Each lowered part is
- * then listed after the parts it now lies over and before those over it (found by the meshes), so that the
- * list stays a lift-out order. Returns the new list and, for each old index, its new index.
+ * The chosen placements, lowest first, each dropped: one clear of the others where it is comes straight down
+ * until its shape comes within the spacing of a part under it (or reaches the floor keep-out), and stays if a
+ * part reaching over it holds it; one that clashes with another (closer than the spacing, by the meshes) is
+ * first lifted over every part around it, as a drop by boxes would, and then comes down the same way. Each
+ * dropped part is then listed after the parts it now lies over and before those over it (found by the meshes),
+ * so that the list stays a lift-out order. Returns the new list and, for each old index, its new index.
  */
 export function droppedByShape(
   instance: PackInstanceV2,
@@ -36,31 +38,53 @@ export function droppedByShape(
   parts: ShapePart[] = shapeParts(instance),
 ): { placements: Placement[]; indexOf: number[] } {
   const byId = new Map(parts.map((p) => [p.id, p] as const));
+  const g = instance.spacing;
+  const top = usableRegion(instance).max[2];
   const out = placements.slice();
   const itemOf = (p: Placement): SettleItem => ({ part: byId.get(p.id)!.index, rotation: placementRotation(p), position: [p.position[0], p.position[1], p.position[2]] });
-  const order = [...new Set(chosen)].filter((i) => out[i] && byId.has(out[i].id)).sort((a, b) => out[a].position[2] - out[b].position[2]);
-  for (const i of order) {
-    // A part wholly over this one's box only gets further away as it comes down.
-    const p = out[i];
-    const others = out.filter((q, j) => j !== i && byId.has(q.id) && q.position[2] < p.position[2] + p.size[2] - TOLERANCE_MM).map(itemOf);
-    const z = restingHeight(instance, parts, itemOf(out[i]), others);
-    if (z < p.position[2]) out[i] = withPosition(p, [p.position[0], p.position[1], z]);
-  }
-  // Which part lies over which, by the meshes: a part in a housing lies over its floor, not beside its walls.
-  const placed = new Map<number, PlacedBvh | null>();
-  const placedAt = (i: number): PlacedBvh | null => {
-    if (!placed.has(i)) {
-      const p = out[i];
+  // Each placement's mesh where it is (a moved placement is a new object).
+  const placed = new WeakMap<Placement, PlacedBvh | null>();
+  const placedOf = (p: Placement): PlacedBvh | null => {
+    if (!placed.has(p)) {
       const part = byId.get(p.id);
       const rotation = part ? placementRotation(p) : -1;
-      placed.set(i, part && rotation >= 0 ? new PlacedBvh(part.bvh(), rotation, translationOf(part, rotation, p)) : null);
+      placed.set(p, part && rotation >= 0 ? new PlacedBvh(part.bvh(), rotation, translationOf(part, rotation, p)) : null);
     }
-    return placed.get(i)!;
+    return placed.get(p)!;
   };
+  const planNear = (p: Placement, q: Placement) => {
+    let d2 = 0;
+    for (let a = 0; a < 2; a++) {
+      const d = Math.max(q.position[a] - (p.position[a] + p.size[a]), p.position[a] - (q.position[a] + q.size[a]), 0);
+      d2 += d * d;
+    }
+    return d2 < g * g;
+  };
+  const clashes = (p: Placement, q: Placement): boolean => {
+    const A = placedOf(p), B = placedOf(q);
+    if (!A || !B) return false;
+    const need = g > TOLERANCE_MM ? g : 2 * TOLERANCE_MM;
+    return surfaceDistance(A, B, need, need - TOLERANCE_MM) < need - TOLERANCE_MM || inside(A, B) || inside(B, A);
+  };
+  const order = [...new Set(chosen)].filter((i) => out[i] && byId.has(out[i].id)).sort((a, b) => out[a].position[2] - out[b].position[2]);
+  for (const i of order) {
+    let p = out[i];
+    const near = out.filter((q, j) => j !== i && byId.has(q.id) && planNear(p, q));
+    if (near.some((q) => clashes(p, q))) {
+      // Lifted over every part around it, the spacing clear, if the chamber has the room.
+      const over = Math.max(p.position[2], ...near.map((q) => q.position[2] + q.size[2] + g));
+      if (over + p.size[2] <= top + TOLERANCE_MM) p = withPosition(p, [p.position[0], p.position[1], over]);
+    }
+    // A part wholly over this one's box only gets further away as it comes down.
+    const others = near.filter((q) => q.position[2] < p.position[2] + p.size[2] - TOLERANCE_MM).map(itemOf);
+    const z = restingHeight(instance, parts, itemOf(p), others);
+    out[i] = z < p.position[2] ? withPosition(p, [p.position[0], p.position[1], z]) : p;
+  }
+  // Which part lies over which, by the meshes: a part in a housing lies over its floor, not beside its walls.
   const relation: LiftRelation = (i, k) => {
     const p = out[i], q = out[k];
     for (let a = 0; a < 2; a++) if (q.position[a] >= p.position[a] + p.size[a] - TOLERANCE_MM || p.position[a] >= q.position[a] + q.size[a] - TOLERANCE_MM) return null;
-    const A = placedAt(i), B = placedAt(k);
+    const A = placedOf(p), B = placedOf(q);
     if (!A || !B) return null;
     if (blocksLift(A, B, TOLERANCE_MM)) return 'above';
     if (blocksLift(B, A, TOLERANCE_MM)) return 'below';

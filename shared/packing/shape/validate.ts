@@ -204,7 +204,7 @@ function checkGapsAndLift(
 }
 
 /** Does B lie inside A? Only possible when A's box holds B's; then one vertex of B decides (their surfaces are apart). */
-function inside(A: PlacedBvh, B: PlacedBvh): boolean {
+export function inside(A: PlacedBvh, B: PlacedBvh): boolean {
   for (let a = 0; a < 3; a++) if (B.min[a] < A.min[a] || B.max[a] > A.max[a]) return false;
   const v = new Float64Array(9);
   B.triangle(0, v, 0);

@@ -22,6 +22,7 @@ import {
   stackNote,
   repackAvailability,
   repackOf,
+  shapeTimeNote,
   shownLayoutId,
   submitBlockOf,
   withRuleForAll,
@@ -382,3 +383,21 @@ describe('editing a layout by hand', () => {
     expect(handEdited(fixed, start, new Set([1]), { kind: 'turn' })).toEqual({ ok: false, message: expect.stringMatching(/may not be turned/) });
   });
 });
+
+describe('the time limit of a packing by shape', () => {
+  // From the packing benchmark's measurements (docs/benchmarks.md): at 2,000 parts a 10 s limit gives only the
+  // first layout, 40 s the nested one; 500 parts are searched within 10 s.
+  test('2,000 parts at the default 4 s are told to take 40 s; at 40 s, or 500 parts at 10 s, nothing is said', () => {
+    expect(shapeTimeNote(2000, 4000)).toMatch(/With 2000 parts, .* 40 s or more/);
+    expect(shapeTimeNote(2000, 10_000)).toMatch(/40 s or more/);
+    expect(shapeTimeNote(2000, 40_000)).toBeNull();
+    expect(shapeTimeNote(500, 10_000)).toBeNull();
+    expect(shapeTimeNote(500, 4000)).toMatch(/10 s or more/);
+  });
+
+  test('a small plate is never asked for less than 4 s, the editor\'s default', () => {
+    expect(shapeTimeNote(12, 4000)).toBeNull();
+    expect(shapeTimeNote(12, 2000)).toMatch(/4 s or more/);
+  });
+});
+

@@ -1,8 +1,8 @@
 import { MessageChannel } from 'node:worker_threads';
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/umd/node-adapter';
-import { decodeLayout, INSTANCE_FORMAT_V2, parseInstance, RESULT_FORMAT_V2, validateLayout, type PackInstance, type PackResultV2 } from '@/shared/packing';
-import { validateShapeLayout } from '@/shared/packing/shape';
+import { decodeLayout, encodeLayout, INSTANCE_FORMAT_V2, parseInstance, RESULT_FORMAT_V2, validateLayout, type PackInstance, type PackResult, type PackResultV2 } from '@/shared/packing';
+import { summariseShapeLayout, validateShapeLayout } from '@/shared/packing/shape';
 import { prism, prismWithHoles, writeBinaryStl } from '@/shared/geometry';
 import { UPRIGHT_ROTATIONS } from '@/shared/geometry/rotations';
 import { createPackerApi } from '@/workers/packer.worker';
@@ -147,6 +147,17 @@ const shapes: ShapeFiles = {
   ],
 };
 
+/** The frames-and-pegs build as a "pack-instance/2" of the meshes themselves, for the independent check. */
+const nestV2 = () => ({
+  ...(parseInstance(nestInstance) as { ok: true; instance: PackInstance }).instance,
+  format: INSTANCE_FORMAT_V2,
+  fit: 'shape' as const,
+  parts: [
+    { id: 'frame', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: frame },
+    { id: 'peg', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: peg },
+  ],
+});
+
 describe('packing by shape in the worker', () => {
   test('downloads each file once, stands the pegs in the frames\' holes, and every layout it sends passes the check against the meshes', async () => {
     const fetched: string[] = [];
@@ -176,15 +187,7 @@ describe('packing by shape in the worker', () => {
       expect(fetched.sort()).toEqual(['/files/frame', '/files/peg']);
 
       // The independent check, against the meshes themselves (surface gaps, containment, lift-out order).
-      const v2 = {
-        ...(parseInstance(nestInstance) as { ok: true; instance: PackInstance }).instance,
-        format: INSTANCE_FORMAT_V2,
-        fit: 'shape' as const,
-        parts: [
-          { id: 'frame', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: frame },
-          { id: 'peg', size: null, quantity: 2, rotations: [...UPRIGHT_ROTATIONS], meshPath: null, mesh: peg },
-        ],
-      };
+      const v2 = nestV2();
       // Let the last proxied callbacks arrive.
       await new Promise((r) => setTimeout(r, 20));
       expect(sent.length).toBeGreaterThan(0);
@@ -231,6 +234,48 @@ describe('packing by shape in the worker', () => {
       if (outcome.ok) return;
       expect(outcome.problems).toContainEqual({ field: 'parts[1]', message: '"peg" has no stored file to pack by shape' });
       expect(fetched).toEqual([]);
+    } finally {
+      close();
+    }
+  });
+});
+
+describe('a hand edit of a layout by shape, checked in the worker', () => {
+  // The usable plate starts at (8, 8, 5): a frame in the corner has its hole over x and y 23 to 53.
+  const layoutOf = (items: Array<{ id: 'frame' | 'peg'; at: [number, number, number] }>) =>
+    encodeLayout(summariseShapeLayout(nestV2(), items.map((it) => ({ id: it.id, rotation: 0, position: it.at }))) as unknown as PackResult);
+
+  test("a peg dropped by hand over a frame's hole goes down through it to the floor, and the layout passes the check", async () => {
+    const { remote, close } = connect(async (url) => files[url] ?? null);
+    try {
+      // Held on the frame's box (5 + 20 + 3 mm), as a drop by boxes leaves it; 7 mm from the hole's walls each side.
+      const layout = layoutOf([
+        { id: 'peg', at: [30, 30, 28] },
+        { id: 'frame', at: [8, 8, 5] },
+      ]);
+      const outcome = await remote.checkByShape({ instance: nestInstance, layout, shapes, drop: [0] });
+      expect(outcome.ok).toBe(true);
+      if (!outcome.ok || !outcome.dropped) throw new Error('expected a dropped layout');
+      const decoded = decodeLayout(outcome.dropped.layout);
+      if (!decoded.ok) throw new Error('the dropped layout must decode');
+      expect(decoded.result.placements[outcome.dropped.indexOf[0]].position[2]).toBeCloseTo(5, 5);
+      expect(outcome.faults).toEqual([]);
+    } finally {
+      close();
+    }
+  });
+
+  test("a peg moved into the frame's wall is at fault with the frame; moved into the hole, nothing is", async () => {
+    const { remote, close } = connect(async (url) => files[url] ?? null);
+    try {
+      const into = await remote.checkByShape({ instance: nestInstance, layout: layoutOf([{ id: 'frame', at: [8, 8, 5] }, { id: 'peg', at: [30, 30, 5] }]), shapes });
+      expect(into).toEqual({ ok: true, faults: [], problems: [] });
+      const wall = await remote.checkByShape({ instance: nestInstance, layout: layoutOf([{ id: 'frame', at: [8, 8, 5] }, { id: 'peg', at: [20, 30, 5] }]), shapes });
+      expect(wall.ok && wall.faults).toEqual([0, 1]);
+      // Bad input is named, not thrown.
+      const bad = await remote.checkByShape({ instance: { ...nestInstance, spacing: -1 }, layout: layoutOf([]), shapes });
+      expect(bad.ok).toBe(false);
+      if (!bad.ok) expect(bad.problems[0].field).toBe('spacing');
     } finally {
       close();
     }

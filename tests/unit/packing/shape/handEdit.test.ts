@@ -131,4 +131,15 @@ describe('a drop by hand, by shape', () => {
     expect(both[0]).toBeCloseTo(0, 5);
     expect(both[1]).toBeCloseTo(12, 5);
   });
+
+  test('a cube moved into another (5 mm overlap) is lifted over it and comes to rest on it, 2 mm clear, as a drop by boxes would leave it', () => {
+    const result = layout([
+      { id: 'cube', at: [120, 120, 0] },
+      { id: 'cube', at: [125, 120, 0] },
+    ]);
+    const dropped = droppedByShape(inst, result.placements, [1], parts);
+    expect(dropped.placements[1].position[2]).toBeCloseTo(12, 5);
+    expect(droppedPlacements(inst, result.placements, new Set([1]))[1].position[2]).toBeCloseTo(12, 9);
+    expect(shapeLayoutFaults(inst, { ...result, placements: dropped.placements }, parts).faults.size).toBe(0);
+  });
 });
