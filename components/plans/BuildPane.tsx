@@ -68,7 +68,7 @@ const MOVES: { label: string; name: string; testID: string; edit: HandEdit }[] =
 function pointerHint(wide: boolean, editable: boolean, byShape: boolean): string {
   if (editable && byShape) {
     return wide
-      ? "Hover a part to see its line; click to mark it, drag to move it. Packed by shape: a moved part is checked against the others' shapes, and a drop lowers it into their hollows."
+      ? 'Hover a part to see its line; click to mark it, drag to move it. Drop (D) sinks marked parts into hollows.'
       : 'Tap to mark; a drop lowers parts into hollows.';
   }
   if (wide) return editable ? 'Hover a part to see its line; click to mark it, drag a marked part to move it.' : 'Hover a part to see its line.';

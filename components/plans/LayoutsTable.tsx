@@ -31,10 +31,18 @@ export function rowsOf(layouts: LayoutSummaryView[]): LayoutRow[] {
   }));
 }
 
-type Metric = { key: string; title: string; get: (n: ShownNumbers) => number | null; show: (n: ShownNumbers, currency?: string) => string; better: 'low' | 'high' };
+type Metric = {
+  key: string;
+  title: string;
+  get: (n: ShownNumbers) => number | null;
+  show: (n: ShownNumbers, currency?: string) => string;
+  better: 'low' | 'high';
+  /** A second, smaller figure under it (the box estimate beside the one from the meshes). */
+  beside?: (n: ShownNumbers) => string | null;
+};
 const METRICS: Metric[] = [
   { key: 'layers', title: 'Layers', get: (n) => n.layers, show: (n) => String(n.layers), better: 'low' },
-  { key: 'hours', title: 'Print', get: (n) => n.printSeconds, show: (n) => hours(n.printSeconds), better: 'low' },
+  { key: 'hours', title: 'Print', get: (n) => n.printSeconds, show: (n) => hours(n.printSeconds), better: 'low', beside: (n) => (n.byBoxes && n.profileSource === 'mesh' ? `boxes ${hours(n.byBoxes.printSeconds)}` : null) },
   { key: 'density', title: 'Density', get: (n) => n.packingDensity, show: (n) => percent(n.packingDensity), better: 'high' },
   { key: 'cost', title: 'Cost/part', get: (n) => n.costPerPart, show: (n, currency) => money(n.costPerPart, currency), better: 'low' },
   { key: 'unplaced', title: 'Not placed', get: (n) => n.unplaced, show: (n) => String(n.unplaced), better: 'low' },
@@ -108,6 +116,11 @@ export function LayoutsTable({
                   <Text variant="figure" style={isBest ? styles.best : undefined} testID={`layout-${m.key}-${r.working ? 'working' : r.id}`}>
                     {r.numbers ? m.show(r.numbers, currency) : '–'}
                   </Text>
+                  {r.numbers && m.beside?.(r.numbers) ? (
+                    <Text variant="caption" color="inkFaint" testID={`layout-${m.key}-boxes-${r.working ? 'working' : r.id}`}>
+                      {m.beside(r.numbers)}
+                    </Text>
+                  ) : null}
                 </View>
               );
             })}

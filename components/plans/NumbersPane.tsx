@@ -4,7 +4,7 @@ import { StyleSheet, View } from 'react-native';
 import { AreaPerLayerChart } from '../charts';
 import { colors, radius, spacing } from '../theme';
 import { Figure, Text } from '../ui';
-import { profileSourceText, type ShownNumbers } from './estimate';
+import { byBoxesText, profileSourceText, type ShownNumbers } from './estimate';
 import { hours, kg, mm, money, percent } from './format';
 
 function Cell({ label, value, testID, tone }: { label: string; value: string; testID?: string; tone?: 'danger' }) {
@@ -74,6 +74,11 @@ export function NumbersPane({
         <Text variant="caption" color={n.profileSource === 'box' ? 'amber' : 'inkMuted'} testID="num-profile-source">
           {profileSourceText(n)}
         </Text>
+        {byBoxesText(n, hours) ? (
+          <Text variant="caption" color="inkMuted" testID="num-by-boxes">
+            {byBoxesText(n, hours)}
+          </Text>
+        ) : null}
         <AreaPerLayerChart areaPerLayerMm2={n.areaPerLayerMm2} layerHeightMm={n.layerHeightMm} jumps={n.areaJumps} bedAreaMm2={bedAreaMm2} cutLayer={cutLayer} heightPx={110} />
       </View>
       <Text variant="caption" color="inkFaint">

@@ -28,6 +28,8 @@ export interface ShownNumbers {
   /** Placements counted by their box although the layout is estimated from the meshes, and which parts, why. */
   boxPlacements: number;
   boxParts: { name: string; reason: string }[];
+  /** Read from the meshes: what counting every part as its box would have said (print, scanning, heat-load warnings). */
+  byBoxes: { printSeconds: number; scanSeconds: number; areaJumps: number } | null;
 }
 
 function pick<T>(keys: string[], from: Record<string, unknown>): T {
@@ -65,7 +67,24 @@ export function numbersFromEstimate(e: LayoutEstimate | Record<string, unknown>,
     areaJumps: Array.isArray(est.areaJumps) ? est.areaJumps : undefined,
     layerHeightMm: est.layerHeightMm,
     ...profileOf(e as Record<string, unknown>),
+    byBoxes: byBoxesOf((e as Record<string, unknown>).byBoxes),
   };
+}
+
+/** The box figures stored beside an estimate from the meshes, when they are there and read as numbers. */
+function byBoxesOf(v: unknown): ShownNumbers['byBoxes'] {
+  const b = v as Record<string, unknown> | null | undefined;
+  const ok = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x) && x >= 0;
+  return b && ok(b.printSeconds) && ok(b.scanSeconds) && ok(b.areaJumps) ? { printSeconds: b.printSeconds, scanSeconds: b.scanSeconds, areaJumps: b.areaJumps } : null;
+}
+
+/** One line comparing an estimate from the meshes with the same layout counted as boxes; null without the box figures. */
+export function byBoxesText(n: Pick<ShownNumbers, 'printSeconds' | 'areaJumps' | 'byBoxes' | 'profileSource'>, hours: (s: number) => string): string | null {
+  const b = n.byBoxes;
+  if (!b || n.profileSource !== 'mesh') return null;
+  const jumps = n.areaJumps?.length ?? 0;
+  const warnings = (k: number) => `${k} heat-load warning${k === 1 ? '' : 's'}`;
+  return `Counted as boxes, the same layout would read ${hours(b.printSeconds)} to print (${hours(Math.max(0, b.printSeconds - n.printSeconds))} more) and ${warnings(b.areaJumps)} (here ${jumps}).`;
 }
 
 /** The estimate's profile source as stored with it; estimates made before the meshes were sliced are box estimates. */

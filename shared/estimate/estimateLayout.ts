@@ -97,6 +97,11 @@ export interface LayoutEstimate {
   powder: PowderEstimate;
   cost: CostEstimate;
   /**
+   * The same layout with every part counted as its bounding box, when the areas came from the meshes: the print
+   * time, its scanning (hatch and contour) and the heat-load warnings a box estimate would give, for comparison.
+   */
+  byBoxes?: { printSeconds: number; scanSeconds: number; areaJumps: number };
+  /**
    * The factors the estimate was made with, and their overall effect on the print time (scaled / unscaled print
    * seconds) for readers that rescale a stored estimate by one print factor.
    */
@@ -366,6 +371,18 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
     ...input.jumpOptions,
   });
 
+  // Read from the meshes, the boxes' figures go alongside: what counting every part as its box would have said.
+  let byBoxes: LayoutEstimate['byBoxes'];
+  if (meshArea) {
+    const boxArea = boxAreaProfile(boxes, layerHeightMm, layers);
+    const boxPrint = printTimeEstimate(boxArea, boxContourProfile(boxes, layerHeightMm, layers), layerHeightMm, machine, material, factors);
+    byBoxes = {
+      printSeconds: boxPrint.printSeconds,
+      scanSeconds: boxPrint.scanSeconds + boxPrint.contourSeconds,
+      areaJumps: findAreaJumps(boxArea, { minDeltaMm2: AREA_JUMP_MIN_SHARE_OF_BED * bedAreaMm2, ...input.jumpOptions }).length,
+    };
+  }
+
   return {
     layerHeightMm,
     layerCount: layers,
@@ -384,6 +401,7 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
     machineSeconds,
     powder,
     cost,
+    ...(byBoxes ? { byBoxes } : {}),
     calibration: { ...factors, printTimeScale: print.printSeconds > 0 ? print.printSeconds / unscaledPrintSeconds(areaPerLayerMm2, contourPerLayerMm, layerHeightMm, machine, material) : 1 },
   };
 }

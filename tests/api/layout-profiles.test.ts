@@ -89,6 +89,9 @@ test('a layout of open housings and gears is estimated from their sections, far 
   const boxVolume = Array.from(boxes.areaPerLayerMm2).reduce((s, a) => s + a, 0) * h;
   expect(sliced).toBeLessThan(0.5 * boxVolume);
   expect(res.body.estimate.print.printSeconds).toBeLessThan(boxes.print.printSeconds);
+  // Kept beside it for the planner to compare: what the same layout counted as boxes reads.
+  expect(res.body.estimate.byBoxes.printSeconds).toBeCloseTo(boxes.print.printSeconds, 6);
+  expect(res.body.estimate.byBoxes.areaJumps).toBe(boxes.areaJumps.length);
 });
 
 test('a part whose mesh is not closed counts as its box, and the estimate says why', async () => {

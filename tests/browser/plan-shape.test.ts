@@ -73,11 +73,15 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await packByShape(page);
   // The numbers of the layout not kept come from the meshes, as for a packing by boxes.
   await page.getByTestId('num-profile-source').getByText(/^From the parts' shapes/).waitFor({ timeout: 30_000 });
+  // Beside them, what the same layout counted as boxes would read.
+  await page.getByTestId('num-by-boxes').getByText(/^Counted as boxes, the same layout would read [\d.]+ h to print/).waitFor();
   await screenshot(page, 'plan-editor-packed-by-shape-wide');
 
   await page.getByTestId('layout-keep').click();
   await page.getByText(/^Kept as "Seed \d+ by shape · \d+ layers"/).waitFor({ timeout: 60_000 });
   await page.getByText(/^by shape · /).first().waitFor();
+  // The layouts compared: the kept one's print time from the shapes, with the boxes' under it.
+  await page.locator('[data-testid^="layout-hours-boxes-"]').getByText(/^boxes [\d.]+ h$/).first().waitFor();
   // Filling the rest packs the material's other open lines by shape in the space above the kept parts, which
   // stay where they are; the whole layout is checked against the meshes again when it is kept.
   const keptLayout = await layoutShown(page);

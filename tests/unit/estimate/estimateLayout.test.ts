@@ -215,6 +215,21 @@ describe('a layout estimate', () => {
     expect(() => estimateLayout({ layout, machine: wren, material: nylon12, areaPerLayerMm2: new Float32Array(layers + 3) })).toThrow(InvalidInputError);
   });
 
+  test("beside an estimate from the meshes, the boxes' figures: a cylinder scans pi/4 of its box (circle in its square)", () => {
+    // A 40 mm cylinder standing in its 40 x 40 x 40 mm box: each slice is pi 20^2 against the box's 40^2.
+    const layout = { placements: [{ position: [10, 10, 5], size: [40, 40, 40] }], heightMm: 45 };
+    const boxes = estimateLayout({ layout, machine: wren, material: nylon12 });
+    expect(boxes.byBoxes).toBeUndefined();
+    const cylinder = boxes.areaPerLayerMm2.map((a) => (a * Math.PI) / 4);
+    const e = estimateLayout({ layout, machine: wren, material: nylon12, areaPerLayerMm2: cylinder });
+    expect(e.byBoxes).toBeDefined();
+    // The same box figures as the estimate that only knows the boxes.
+    expect(e.byBoxes!.printSeconds).toBeCloseTo(boxes.print.printSeconds, 6);
+    expect(e.byBoxes!.areaJumps).toBe(boxes.areaJumps.length);
+    // Both count the box's contour (no contour sliced here): the hatching alone differs, by 4 / pi.
+    expect((e.byBoxes!.scanSeconds - e.print.contourSeconds) / e.print.scanSeconds).toBeCloseTo(4 / Math.PI, 5);
+  });
+
   test('a block standing over a wide plate flags the layers where the scanned area changes sharply', () => {
     const e = estimateLayout({
       layout: {
