@@ -184,8 +184,9 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   }, [dragMm, shownInstance, shownResult, marked, handMoved]);
   const dragged = drag?.result ?? null;
   const viewResult = dragged ?? shownResult;
-  // Packed by shape, a layout changed by hand is then checked against the parts' meshes in the packing worker; the
-  // boxes' quick check stands while dragging and until the worker answers (it can only find more at fault).
+  // Packed by shape, a layout changed by hand is then checked against the parts' meshes in the packing worker: the
+  // boxes' quick check of the moved parts stands while dragging and until the worker answers, and its answer (the
+  // whole layout, by the shapes: a part in a hollow is clear, one the boxes missed is not) replaces it.
   const checkByShape = packer.checkByShape;
   const exactFaults = useRef(new WeakMap<PackResult, Set<number>>());
   const [shapeCheck, setShapeCheck] = useState<{ result: PackResult; state: 'checking' | 'checked' | 'failed'; message?: string } | null>(null);

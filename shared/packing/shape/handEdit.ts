@@ -2,7 +2,7 @@
  * A layout packed by shape changed by hand, against the parts' meshes: which
  * placements the change leaves at fault (the exact check a kept layout gets on
  * the server), and the chosen placements dropped straight down as far as their
- * shapes allow (into a housing's hollow, under a bracket's leg), listed again
+ * shapes allow (into a housing's hollow, through a ring's hole), listed again
  * where they can be lifted out in turn. The plan editor runs both in its
  * packing worker, where the meshes are.
  */
