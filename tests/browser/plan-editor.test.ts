@@ -1,6 +1,6 @@
 // Over 450 lines: the plan editor on both screen sizes, step by step (layers, framing, keys, drags) sharing one packed plan.
 import type { CDPSession, Page } from 'playwright-core';
-import { ARTIFACTS, markAPart, moveIntoClash, moveUntilFault, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { ARTIFACTS, boxOf, markAPart, moveIntoClash, moveUntilFault, newPage, PHONE, probe, screenshot, serveAndLaunch, WIDE, type Box, type Served, signIn, urgentDemoRequest, type Xy } from '../helpers/browser';
 
 jest.setTimeout(300_000);
 
@@ -228,18 +228,6 @@ describe('moving, turning and dropping parts by hand', () => {
 
 // ---- dragging marked parts across the plate ------------------------------------------------------------------
 
-type Xy = { x: number; y: number };
-type Box = { position: [number, number, number]; size: [number, number, number] };
-/** Asks the view's probe (see ChamberView.web.tsx): where chamber points land on the page, what is under a page point. */
-// (A script in a string: the test's own code is compiled with helpers the page does not have.)
-// The canvas is in the page a moment before the scene inside it has set its probe up: the probe is waited for.
-const probe = async <T,>(page: Page, fn: string, ...args: unknown[]) => {
-  await page.waitForFunction('!!window.__chamberProbe', undefined, { timeout: 10_000 }).catch(() => {});
-  return (await page.evaluate(
-    `(() => { const p = window.__chamberProbe; if (!p) throw new Error('the chamber view has no probe'); const v = p[${JSON.stringify(fn)}]; return typeof v === 'function' ? v.apply(p, ${JSON.stringify(args)}) : v; })()`,
-  )) as T;
-};
-const boxOf = (page: Page, i: number) => probe<Box | null>(page, 'boxOf', i);
 const centreAt = (b: Box, z: number) => [b.position[0] + b.size[0] / 2, b.position[1] + b.size[1] / 2, z];
 const overlapZ = (a: Box, b: Box) => a.position[2] < b.position[2] + b.size[2] && b.position[2] < a.position[2] + a.size[2];
 

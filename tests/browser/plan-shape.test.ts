@@ -1,7 +1,7 @@
 // Packing a plan by the parts' shapes in the editor: the choice, the packing worker downloading the parts' files,
 // keeping the layout (the server checks the meshes), filling the rest by shape above it, and moving a part by hand.
 import type { Page } from 'playwright-core';
-import { markAPart, moveIntoClash, newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
+import { boxOf, markAPart, moveIntoClash, newPage, PHONE, probe, screenshot, serveAndLaunch, WIDE, type Box, type Served, signIn, urgentDemoRequest } from '../helpers/browser';
 import { prism, prismWithHoles } from '../../shared/geometry';
 
 jest.setTimeout(300_000);
@@ -106,19 +106,11 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.context().close();
 });
 
-type Box = { position: [number, number, number]; size: [number, number, number] };
-/** Asks the view's probe (see ChamberView.web.tsx); a script in a string, as the page has none of the test's helpers. */
-const probe = async <T,>(page: Page, fn: string, ...args: unknown[]) => {
-  await page.waitForFunction('!!window.__chamberProbe', undefined, { timeout: 10_000 });
-  return (await page.evaluate(
-    `(() => { const p = window.__chamberProbe; const v = p[${JSON.stringify(fn)}]; return typeof v === 'function' ? v.apply(p, ${JSON.stringify(args)}) : v; })()`,
-  )) as T;
-};
 async function boxesShown(page: Page): Promise<Box[]> {
   await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
   const n = await probe<number>(page, 'count');
   const out: Box[] = [];
-  for (let k = 0; k < n; k++) out.push((await probe<Box>(page, 'boxOf', k))!);
+  for (let k = 0; k < n; k++) out.push((await boxOf(page, k))!);
   return out;
 }
 const isPeg = (b: Box) => Math.abs(b.size[2] - 10) < 0.01;

@@ -172,3 +172,20 @@ export async function moveIntoClash(page: Page) {
   await moveUntilFault(page, () => page.getByTestId('plan-move-front').click(), 80);
   await page.getByTestId('plan-edit-faults').waitFor();
 }
+
+export type Xy = { x: number; y: number };
+/** A placement's box as the chamber view draws it (low corner, size). */
+export type Box = { position: [number, number, number]; size: [number, number, number] };
+/**
+ * Asks the chamber view's probe (see ChamberView.web.tsx): where chamber points land on the page, what is under a
+ * page point, a placement's box. A script in a string: the test's own code is compiled with helpers the page does
+ * not have. The canvas is in the page a moment before the scene inside it has set its probe up: it is waited for.
+ */
+export async function probe<T>(page: Page, fn: string, ...args: unknown[]): Promise<T> {
+  await page.waitForFunction('!!window.__chamberProbe', undefined, { timeout: 10_000 }).catch(() => {});
+  return (await page.evaluate(
+    `(() => { const p = window.__chamberProbe; if (!p) throw new Error('the chamber view has no probe'); const v = p[${JSON.stringify(fn)}]; return typeof v === 'function' ? v.apply(p, ${JSON.stringify(args)}) : v; })()`,
+  )) as T;
+}
+export const boxOf = (page: Page, i: number) => probe<Box | null>(page, 'boxOf', i);
+
