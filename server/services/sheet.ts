@@ -71,8 +71,28 @@ type SheetEstimate = {
   calibration?: { calibrated?: boolean; runs?: number };
   profileSource?: string;
   profileBoxPlacements?: number;
+  byBoxes?: { printSeconds?: number };
   cost?: SheetCost;
 };
+
+/**
+ * The build sheet's estimate lines: layers, print, cooling, powder, and what the scan areas were made of (with,
+ * from the meshes, what the print would read with every part counted as its box). An older layout's estimate may
+ * lack any of it: a dash stands in.
+ */
+export function estimateLines(est: SheetEstimate | undefined, machine?: { removalTempC?: number | null; handlingTempC?: number | null }): string[] {
+  const calib = est?.calibration?.calibrated ? `calibrated from ${est.calibration.runs} runs` : 'not calibrated yet';
+  const boxes = typeof est?.byBoxes?.printSeconds === 'number' ? `; counted as boxes, the print would read ${hours(est.byBoxes.printSeconds)}` : '';
+  return [
+    `${est?.layerCount ?? '-'} layers of ${fmt(est?.layerHeightMm, 2)} mm, parts up to ${fmt(est?.heightMm)} mm`,
+    `Print ${hours(est?.print?.printSeconds)} (preheat ${hours(est?.print?.preheatSeconds)}) · ${calib}`,
+    `Cooling ${hours(est?.cooling?.inMachineSeconds)} in the machine to ${machine?.removalTempC ?? '-'} °C, then ${hours(est?.cooling?.outsideSeconds)} outside to ${machine?.handlingTempC ?? '-'} °C`,
+    `Powder: ${fmt(est?.powder?.freshPowderKg, 2)} kg fresh + ${fmt(est?.powder?.reusedPowderKg, 2)} kg reused (cake ${fmt(est?.powder?.cakeMassKg, 2)} kg) · packing density ${fmt((est?.powder?.packingDensity ?? 0) * 100)} %`,
+    est?.profileSource === 'mesh'
+      ? `Scan areas from the parts' sliced shapes${est.profileBoxPlacements ? ` (${est.profileBoxPlacements} placed parts counted as boxes)` : ''}${boxes}`
+      : "Box estimate: scan areas from the parts' bounding boxes, which read high",
+  ];
+}
 
 /**
  * The build sheet's cost lines: what the build costs by what it pays for, then each request line's parts with the
@@ -158,16 +178,7 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
 
       doc.font('Helvetica-Bold').fontSize(11).text('Estimates');
       doc.font('Helvetica').fontSize(9);
-      const calib = est?.calibration?.calibrated ? `calibrated from ${est.calibration.runs} runs` : 'not calibrated yet';
-      for (const line of [
-        `${est?.layerCount ?? '-'} layers of ${fmt(est?.layerHeightMm, 2)} mm, parts up to ${fmt(est?.heightMm)} mm`,
-        `Print ${hours(est?.print?.printSeconds)} (preheat ${hours(est?.print?.preheatSeconds)}) · ${calib}`,
-        `Cooling ${hours(est?.cooling?.inMachineSeconds)} in the machine to ${machine?.removalTempC ?? '-'} °C, then ${hours(est?.cooling?.outsideSeconds)} outside to ${machine?.handlingTempC ?? '-'} °C`,
-        `Powder: ${fmt(est?.powder?.freshPowderKg, 2)} kg fresh + ${fmt(est?.powder?.reusedPowderKg, 2)} kg reused (cake ${fmt(est?.powder?.cakeMassKg, 2)} kg) · packing density ${fmt((est?.powder?.packingDensity ?? 0) * 100)} %`,
-        est?.profileSource === 'mesh'
-          ? `Scan areas from the parts' sliced shapes${est.profileBoxPlacements ? ` (${est.profileBoxPlacements} placed parts counted as boxes)` : ''}`
-          : 'Box estimate: scan areas from the parts\' bounding boxes, which read high',
-      ]) {
+      for (const line of estimateLines(est, machine ?? undefined)) {
         doc.text(line);
       }
       doc.moveDown();

@@ -1,6 +1,6 @@
 import { demoMachines, demoMaterials } from '@/shared/demo/profiles';
 import { estimateLayout } from '@/shared/estimate';
-import { costLines } from '@/server/services/sheet';
+import { costLines, estimateLines } from '@/server/services/sheet';
 
 const [wren] = demoMachines;
 const [nylon12] = demoMaterials;
@@ -38,3 +38,24 @@ describe("the build sheet's cost lines", () => {
     expect(costLines(undefined, [])).toEqual([]);
   });
 });
+
+describe("the build sheet's estimate lines", () => {
+  // A 40 mm cylinder standing in its box: its slices are pi/4 of the box's (circle in its square).
+  const layout = { placements: [{ position: [10, 10, 5], size: [40, 40, 40] }], heightMm: 45 };
+  const boxes = estimateLayout({ layout, machine: wren, material: nylon12 });
+  const meshes = estimateLayout({ layout, machine: wren, material: nylon12, areaPerLayerMm2: boxes.areaPerLayerMm2.map((a) => (a * Math.PI) / 4) });
+  const stored = (e: object) => JSON.parse(JSON.stringify(e));
+
+  test('from the meshes, the scan line says what the print would read counted as boxes', () => {
+    const lines = estimateLines(stored(meshes), wren);
+    expect(lines[1]).toBe(`Print ${(meshes.print.printSeconds / 3600).toFixed(1)} h (preheat ${(meshes.print.preheatSeconds / 3600).toFixed(1)} h) · not calibrated yet`);
+    expect(lines[4]).toBe(`Scan areas from the parts' sliced shapes; counted as boxes, the print would read ${(boxes.print.printSeconds / 3600).toFixed(1)} h`);
+    expect(lines[2]).toContain(`to ${wren.removalTempC} °C`);
+  });
+
+  test('a box estimate says so, and an older estimate with nothing in it shows dashes', () => {
+    expect(estimateLines(stored(boxes), wren)[4]).toBe("Box estimate: scan areas from the parts' bounding boxes, which read high");
+    expect(estimateLines(undefined)[0]).toBe('- layers of - mm, parts up to - mm');
+  });
+});
+
