@@ -74,9 +74,9 @@ export function NumbersPane({
         <Text variant="caption" color={n.profileSource === 'box' ? 'amber' : 'inkMuted'} testID="num-profile-source">
           {profileSourceText(n)}
         </Text>
-        {byBoxesText(n, hours) ? (
+        {byBoxesText(n) ? (
           <Text variant="caption" color="inkMuted" testID="num-by-boxes">
-            {byBoxesText(n, hours)}
+            {byBoxesText(n)}
           </Text>
         ) : null}
         <AreaPerLayerChart areaPerLayerMm2={n.areaPerLayerMm2} layerHeightMm={n.layerHeightMm} jumps={n.areaJumps} bedAreaMm2={bedAreaMm2} cutLayer={cutLayer} heightPx={110} />

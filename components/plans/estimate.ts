@@ -1,4 +1,5 @@
 import { estimateLayout, profileInfo, type CalibrationFactors, type AreaJump, type CostEstimate, type LayoutEstimate } from '../../shared/estimate';
+import { hours } from './format';
 import type { WorkingProfile } from './useWorkingProfile';
 import type { PackInstanceInput, PackResult } from '../../shared/packing';
 import { machineProfileSchema, materialProfileSchema, type MachineProfile, type MaterialProfile } from '../../shared/types/profiles';
@@ -79,7 +80,7 @@ function byBoxesOf(v: unknown): ShownNumbers['byBoxes'] {
 }
 
 /** One line comparing an estimate from the meshes with the same layout counted as boxes; null without the box figures. */
-export function byBoxesText(n: Pick<ShownNumbers, 'printSeconds' | 'areaJumps' | 'byBoxes' | 'profileSource'>, hours: (s: number) => string): string | null {
+export function byBoxesText(n: Pick<ShownNumbers, 'printSeconds' | 'areaJumps' | 'byBoxes' | 'profileSource'>): string | null {
   const b = n.byBoxes;
   if (!b || n.profileSource !== 'mesh') return null;
   const jumps = n.areaJumps?.length ?? 0;

@@ -27,7 +27,7 @@ function closerThan(a: Placement, b: Placement, spacing: number, axes: 2 | 3): b
 }
 
 /** True when two boxes' footprints come closer than `spacing` on both x and y (so one must clear the other in z). */
-const footprintsMeet = (a: Placement, b: Placement, spacing: number) => closerThan(a, b, spacing, 2);
+export const footprintsMeet = (a: Placement, b: Placement, spacing: number) => closerThan(a, b, spacing, 2);
 
 /** True when a placement's box lies inside the usable region. */
 export function insideRegion(instance: Pick<PackInstance, 'chamber' | 'margin'>, p: Placement): boolean {

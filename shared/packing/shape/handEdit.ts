@@ -7,13 +7,13 @@
  * packing worker, where the meshes are.
  */
 import { placementRotation } from '../codec';
-import { inLiftOrder, placementsAtFault, withPosition, type LiftRelation } from '../edit';
+import { footprintsMeet, inLiftOrder, placementsAtFault, withPosition, type LiftRelation } from '../edit';
 import { TOLERANCE_MM, usableRegion } from '../geometry';
 import { RESULT_FORMAT_V2, type FieldProblem, type PackInstanceV2, type PackResult, type PackResultV2, type Placement } from '../types';
-import { blocksLift, PlacedBvh, surfaceDistance } from './bvh';
+import { blocksLift, PlacedBvh } from './bvh';
 import { shapeParts, type ShapePart } from './parts';
-import { restingHeight, type SettleItem } from './settle';
-import { inside, translationOf, validateShapeLayout } from './validate';
+import { restingHeights, type SettleItem } from './settle';
+import { pairGap, translationOf, validateShapeLayout } from './validate';
 
 /** The placements at fault (by index) and the problems naming them, from the check against the meshes. */
 export function shapeLayoutFaults(instance: PackInstanceV2, result: PackResult, parts: ShapePart[] = shapeParts(instance)): { faults: Set<number>; problems: FieldProblem[] } {
@@ -62,10 +62,9 @@ export function droppedByShape(
   };
   const clashes = (p: Placement, q: Placement): boolean => {
     const A = placedOf(p), B = placedOf(q);
-    if (!A || !B) return false;
-    const need = g > TOLERANCE_MM ? g : 2 * TOLERANCE_MM;
-    return surfaceDistance(A, B, need, need - TOLERANCE_MM) < need - TOLERANCE_MM || inside(A, B) || inside(B, A);
+    return !!A && !!B && pairGap(A, B, g, TOLERANCE_MM) !== null;
   };
+  const restingHeight = restingHeights(instance, parts);
   const order = [...new Set(chosen)].filter((i) => out[i] && byId.has(out[i].id)).sort((a, b) => out[a].position[2] - out[b].position[2]);
   for (const i of order) {
     let p = out[i];
@@ -77,13 +76,13 @@ export function droppedByShape(
     }
     // A part wholly over this one's box only gets further away as it comes down.
     const others = near.filter((q) => q.position[2] < p.position[2] + p.size[2] - TOLERANCE_MM).map(itemOf);
-    const z = restingHeight(instance, parts, itemOf(p), others);
+    const z = restingHeight(itemOf(p), others);
     out[i] = z < p.position[2] ? withPosition(p, [p.position[0], p.position[1], z]) : p;
   }
   // Which part lies over which, by the meshes: a part in a housing lies over its floor, not beside its walls.
   const relation: LiftRelation = (i, k) => {
     const p = out[i], q = out[k];
-    for (let a = 0; a < 2; a++) if (q.position[a] >= p.position[a] + p.size[a] - TOLERANCE_MM || p.position[a] >= q.position[a] + q.size[a] - TOLERANCE_MM) return null;
+    if (!footprintsMeet(p, q, 0)) return null;
     const A = placedOf(p), B = placedOf(q);
     if (!A || !B) return null;
     if (blocksLift(A, B, TOLERANCE_MM)) return 'above';

@@ -175,39 +175,46 @@ function denseProfiles(parts: ShapePart[], g: number, h: number): (part: number,
   };
 }
 
+/** True when two plan boxes (corners x, y, extents ex, ey) are at least the spacing apart: no height brings them closer. */
+function apartInPlan(x: number, y: number, ex: number, ey: number, qx: number, qy: number, qex: number, qey: number, g: number): boolean {
+  const gx = Math.max(qx - (x + ex), x - (qx + qex), 0);
+  const gy = Math.max(qy - (y + ey), y - (qy + qey), 0);
+  return gx * gx + gy * gy >= g * g;
+}
+
 /**
  * The lowest height of P's box bottom (at plan corner x, y) that keeps it the spacing clear of Q coming from
  * above; -Infinity when their plan boxes are further apart than the spacing (no height brings them closer).
  */
 function clearAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], g: number, h: number): number {
-  const gx = Math.max(q[0] - (x + P.extent[0]), x - (q[0] + Q.extent[0]), 0);
-  const gy = Math.max(q[1] - (y + P.extent[1]), y - (q[1] + Q.extent[1]), 0);
-  if (gx * gx + gy * gy >= g * g) return -Infinity;
+  if (apartInPlan(x, y, P.extent[0], P.extent[1], q[0], q[1], Q.extent[0], Q.extent[1], g)) return -Infinity;
   return lowestAbove(P, x, y, Q, q, h);
 }
 
 /**
- * Where one part comes to rest lowered straight down from where it is: the lowest box bottom (never above its
- * own) at which it keeps the spacing from every one of `others` that it comes down onto, or the floor. A part
- * with another over it within the spacing in plan stays where it is (it would have to pass through it).
+ * Where parts come to rest lowered straight down from where they are: for an item, the lowest box bottom (never
+ * above its own) at which it keeps the spacing from every one of `others` that it comes down onto, or the floor.
+ * A part with another over it within the spacing in plan stays where it is (it would have to pass through it).
+ * The profiles drawn are kept for the next item.
  */
-export function restingHeight(instance: PackInstanceV2, parts: ShapePart[], item: SettleItem, others: readonly SettleItem[], options: { cell?: number } = {}): number {
+export function restingHeights(instance: PackInstanceV2, parts: ShapePart[], options: { cell?: number } = {}): (item: SettleItem, others: readonly SettleItem[]) => number {
   const g = instance.spacing;
   const h = options.cell ?? settleCell(g);
+  const floor = usableRegion(instance).min[2];
   const profileOf = denseProfiles(parts, g, h);
-  const P = profileOf(item.part, item.rotation);
-  const [x, y, z0] = item.position;
-  let need = usableRegion(instance).min[2];
-  for (const Q of others) {
-    if (need >= z0) break;
-    // Only the parts within the spacing in plan are drawn as profiles.
-    const e = rotatedExtent(Q.rotation, parts[Q.part].size);
-    const gx = Math.max(Q.position[0] - (x + P.extent[0]), x - (Q.position[0] + e[0]), 0);
-    const gy = Math.max(Q.position[1] - (y + P.extent[1]), y - (Q.position[1] + e[1]), 0);
-    if (gx * gx + gy * gy >= g * g) continue;
-    need = Math.max(need, clearAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, g, h));
-  }
-  return restingZ(need, z0);
+  return (item, others) => {
+    const P = profileOf(item.part, item.rotation);
+    const [x, y, z0] = item.position;
+    let need = floor;
+    for (const Q of others) {
+      if (need >= z0) break;
+      // Only the parts within the spacing in plan are drawn as profiles.
+      const e = rotatedExtent(Q.rotation, parts[Q.part].size);
+      if (apartInPlan(x, y, P.extent[0], P.extent[1], Q.position[0], Q.position[1], e[0], e[1], g)) continue;
+      need = Math.max(need, lowestAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, h));
+    }
+    return restingZ(need, z0);
+  };
 }
 
 /**

@@ -187,11 +187,10 @@ function checkGapsAndLift(
           for (let a = 0; a < 3; a++) if (B.min[a] >= A.max[a] - tol || A.min[a] >= B.max[a] - tol) overlap = false;
           // With no spacing, parts whose boxes only touch are apart; otherwise their surfaces must not meet.
           if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) continue;
-          const need = g > tol ? g : 2 * tol;
-          const d = surfaceDistance(A, B, need, need - tol);
+          const gap = pairGap(A, B, g, tol);
           let problem: string | null = null;
-          if (d < need - tol) problem = `is only ${d.toFixed(6)} mm from`;
-          else if (inside(A, B) || inside(B, A)) problem = 'lies inside (or holds inside it)';
+          if (gap === 'inside') problem = 'lies inside (or holds inside it)';
+          else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;
           if (problem) {
             gapTotal++;
             if (gapReports++ < MAX_REPORTS) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
@@ -203,8 +202,19 @@ function checkGapsAndLift(
   if (liftTotal > MAX_REPORTS) bad('placements', `${liftTotal - MAX_REPORTS} more parts are blocked on their way up`);
 }
 
+/**
+ * What keeps two placed meshes from being the spacing `g` apart: their surface distance when it is less, "inside"
+ * when one lies inside the other, null when they are apart (with no spacing, surfaces that only touch are apart).
+ */
+export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number): number | 'inside' | null {
+  const need = g > tol ? g : 2 * tol;
+  const d = surfaceDistance(A, B, need, need - tol);
+  if (d < need - tol) return d;
+  return inside(A, B) || inside(B, A) ? 'inside' : null;
+}
+
 /** Does B lie inside A? Only possible when A's box holds B's; then one vertex of B decides (their surfaces are apart). */
-export function inside(A: PlacedBvh, B: PlacedBvh): boolean {
+function inside(A: PlacedBvh, B: PlacedBvh): boolean {
   for (let a = 0; a < 3; a++) if (B.min[a] < A.min[a] || B.max[a] > A.max[a]) return false;
   const v = new Float64Array(9);
   B.triangle(0, v, 0);
