@@ -84,14 +84,17 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
       if (lastParts?.key !== key) lastParts = { key, parts: shapeParts(shaped.instance) };
       const parts = lastParts.parts;
       let result = decoded.result;
-      const drop = Array.isArray(request.drop) ? request.drop.filter((i) => Number.isInteger(i) && i >= 0 && i < result.placements.length) : [];
+      const count = result.placements.length;
+      const inRange = (v: unknown): number[] => (Array.isArray(v) ? v.filter((i) => Number.isInteger(i) && i >= 0 && i < count) : []);
+      const drop = inRange(request.drop);
       let dropped: { layout: ReturnType<typeof encodeLayout>; indexOf: number[] } | undefined;
       if (drop.length > 0) {
         const out = droppedByShape(shaped.instance, result.placements, drop, parts);
         result = { ...result, placements: out.placements };
         dropped = { layout: encodeLayout(result), indexOf: out.indexOf };
       }
-      const { faults, problems } = shapeLayoutFaults(shaped.instance, result, parts);
+      const only = drop.length === 0 && Array.isArray(request.only) ? inRange(request.only) : undefined;
+      const { faults, problems } = shapeLayoutFaults(shaped.instance, result, parts, only);
       return { ok: true, faults: [...faults].sort((a, b) => a - b), problems, ...(dropped ? { dropped } : {}) };
     },
   };

@@ -37,6 +37,11 @@ export interface ShapeEditRequest {
   shapes: ShapeFiles;
   /** Placements (by index) to lower as far as their shapes allow before the check: a drop by hand. */
   drop?: number[];
+  /**
+   * Check only the pairs that hold one of these placements (by index; ignored with `drop`): parts being moved over
+   * a layout that passed, quick enough to follow a drag.
+   */
+  only?: number[];
 }
 
 export type ShapeEditOutcome =

@@ -15,11 +15,20 @@ import { shapeParts, type ShapePart } from './parts';
 import { restingHeights, type SettleItem } from './settle';
 import { pairGap, translationOf, validateShapeLayout } from './validate';
 
-/** The placements at fault (by index) and the problems naming them, from the check against the meshes. */
-export function shapeLayoutFaults(instance: PackInstanceV2, result: PackResult, parts: ShapePart[] = shapeParts(instance)): { faults: Set<number>; problems: FieldProblem[] } {
+/**
+ * The placements at fault (by index) and the problems naming them, from the check against the meshes. With
+ * `only`, just the pairs that hold one of those placements are checked (parts being moved over a layout that
+ * passed: the rest cannot have changed), which is what makes the check quick enough to follow a drag.
+ */
+export function shapeLayoutFaults(
+  instance: PackInstanceV2,
+  result: PackResult,
+  parts: ShapePart[] = shapeParts(instance),
+  only?: Iterable<number>,
+): { faults: Set<number>; problems: FieldProblem[] } {
   const asV2 = { ...(result as unknown as PackResultV2), format: RESULT_FORMAT_V2 };
   // The totals (height, density, area profile) are worked out again wherever the layout is kept: only the placements count here.
-  const problems = validateShapeLayout(instance, asV2, parts).filter((p) => p.field.startsWith('placements'));
+  const problems = validateShapeLayout(instance, asV2, parts, only ? new Set(only) : undefined).filter((p) => p.field.startsWith('placements'));
   return { faults: placementsAtFault(problems), problems };
 }
 

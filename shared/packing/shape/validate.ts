@@ -23,7 +23,11 @@ interface Placed {
   placed: PlacedBvh;
 }
 
-export function validateShapeLayout(instance: PackInstanceV2, result: PackResultV2, prepared?: ShapePart[]): FieldProblem[] {
+/**
+ * `focus` (placement indices) limits the check of gaps and of the lift-out order to the pairs that hold one of
+ * those placements: after a hand change of a layout that passed, only they can be at fault.
+ */
+export function validateShapeLayout(instance: PackInstanceV2, result: PackResultV2, prepared?: ShapePart[], focus?: ReadonlySet<number>): FieldProblem[] {
   const problems: FieldProblem[] = [];
   const bad = (field: string, message: string) => problems.push({ field, message });
   const tol = TOLERANCE_MM;
@@ -87,7 +91,7 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     placed.push({ at: i, part, rotation, placed: new PlacedBvh(part.bvh(), rotation, translation) });
   });
 
-  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad);
+  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad, focus);
 
   const unplacedCount = new Array<number>(parts.length).fill(0);
   const unplaced = Array.isArray(result.unplaced) ? result.unplaced : [];
@@ -143,6 +147,7 @@ function checkGapsAndLift(
   origin: readonly number[],
   extent: readonly number[],
   bad: (field: string, message: string) => void,
+  focus?: ReadonlySet<number>,
 ): void {
   const n = placed.length;
   if (n < 2) return;
@@ -160,41 +165,48 @@ function checkGapsAndLift(
     range[4 * i + 3] = cellOf(P.max[1] + g, 1);
     for (let x = range[4 * i]; x <= range[4 * i + 2]; x++) for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) buckets[x * G + y].push(i);
   }
+  const inFocus = (k: number) => !focus || focus.has(placed[k].at);
   const seenBy = new Int32Array(n).fill(-1);
   let gapReports = 0, gapTotal = 0, liftReports = 0, liftTotal = 0;
+  // Lift-out: `earlier`, listed before `later`, must not block its way up.
+  const liftCheck = (later: number, earlier: number) => {
+    if (!blocksLift(placed[later].placed, placed[earlier].placed, tol)) return;
+    liftTotal++;
+    if (liftReports++ < MAX_REPORTS) {
+      bad(`placements[${placed[later].at}]`, `cannot be lifted straight up: placements[${placed[earlier].at}], listed before it, is above it`);
+    }
+  };
+  const gapCheck = (i: number, j: number) => {
+    const A = placed[i].placed, B = placed[j].placed;
+    let boxGap2 = 0;
+    for (let a = 0; a < 3; a++) {
+      const d = Math.max(B.min[a] - A.max[a], A.min[a] - B.max[a], 0);
+      boxGap2 += d * d;
+    }
+    let overlap = true;
+    for (let a = 0; a < 3; a++) if (B.min[a] >= A.max[a] - tol || A.min[a] >= B.max[a] - tol) overlap = false;
+    // With no spacing, parts whose boxes only touch are apart; otherwise their surfaces must not meet.
+    if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) return;
+    const gap = pairGap(A, B, g, tol);
+    let problem: string | null = null;
+    if (gap === 'inside') problem = 'lies inside (or holds inside it)';
+    else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;
+    if (problem) {
+      gapTotal++;
+      if (gapReports++ < MAX_REPORTS) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
+    }
+  };
   for (let i = 0; i < n; i++) {
-    const A = placed[i].placed;
+    if (!inFocus(i)) continue;
     for (let x = range[4 * i]; x <= range[4 * i + 2]; x++)
       for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) {
         for (const j of buckets[x * G + y]) {
           if (j === i || seenBy[j] === i) continue;
           seenBy[j] = i;
-          const B = placed[j].placed;
-          // Lift-out: B listed before A must not block A's way up.
-          if (j < i && blocksLift(A, B, tol)) {
-            liftTotal++;
-            if (liftReports++ < MAX_REPORTS) {
-              bad(`placements[${placed[i].at}]`, `cannot be lifted straight up: placements[${placed[j].at}], listed before it, is above it`);
-            }
-          }
-          if (j < i) continue;
-          let boxGap2 = 0;
-          for (let a = 0; a < 3; a++) {
-            const d = Math.max(B.min[a] - A.max[a], A.min[a] - B.max[a], 0);
-            boxGap2 += d * d;
-          }
-          let overlap = true;
-          for (let a = 0; a < 3; a++) if (B.min[a] >= A.max[a] - tol || A.min[a] >= B.max[a] - tol) overlap = false;
-          // With no spacing, parts whose boxes only touch are apart; otherwise their surfaces must not meet.
-          if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) continue;
-          const gap = pairGap(A, B, g, tol);
-          let problem: string | null = null;
-          if (gap === 'inside') problem = 'lies inside (or holds inside it)';
-          else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;
-          if (problem) {
-            gapTotal++;
-            if (gapReports++ < MAX_REPORTS) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
-          }
+          // A pair of two placements in focus is looked at once, from the later one's side for the lift.
+          if (j < i) liftCheck(i, j);
+          else if (!inFocus(j)) liftCheck(j, i);
+          if (j > i || !inFocus(j)) gapCheck(Math.min(i, j), Math.max(i, j));
         }
       }
   }

@@ -272,6 +272,11 @@ describe('a hand edit of a layout by shape, checked in the worker', () => {
       expect(into).toEqual({ ok: true, faults: [], problems: [] });
       const wall = await remote.checkByShape({ instance: nestInstance, layout: layoutOf([{ id: 'frame', at: [8, 8, 5] }, { id: 'peg', at: [20, 30, 5] }]), shapes });
       expect(wall.ok && wall.faults).toEqual([0, 1]);
+      // Checked for the moved part only (while dragging): the same pair is found from the peg's side; a peg whose
+      // pairs are all clear answers nothing, though the other peg sits in the frame's wall.
+      const two = layoutOf([{ id: 'frame', at: [8, 8, 5] }, { id: 'peg', at: [20, 30, 5] }, { id: 'peg', at: [100, 30, 5] }]);
+      expect(await remote.checkByShape({ instance: nestInstance, layout: two, shapes, only: [1] })).toMatchObject({ ok: true, faults: [0, 1] });
+      expect(await remote.checkByShape({ instance: nestInstance, layout: two, shapes, only: [2] })).toEqual({ ok: true, faults: [], problems: [] });
       // Bad input is named, not thrown.
       const bad = await remote.checkByShape({ instance: { ...nestInstance, spacing: -1 }, layout: layoutOf([]), shapes });
       expect(bad.ok).toBe(false);

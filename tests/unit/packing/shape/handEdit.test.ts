@@ -77,6 +77,30 @@ describe('the check of a hand edit against the meshes', () => {
     expect(faults).toEqual(new Set([0, 1]));
     expect(problems[0].message).toMatch(/cannot be lifted straight up/);
   });
+
+  test('checked for the moved parts only (as while dragging), the pairs without one of them are left out, theirs are not', () => {
+    // Two cubes 1 mm apart (a clash the moved part has nothing to do with), the ring, and a cube moved 1 mm from
+    // the ring's hole wall; then a cube under another, listed first (a lift fault), as the moved part.
+    const result = layout([
+      { id: 'cube', at: [150, 150, 0] },
+      { id: 'cube', at: [161, 150, 0] },
+      { id: 'ring', at: [50, 50, 0] },
+    ]);
+    const withCube = (at: [number, number, number]) => ({ ...result, placements: [...result.placements.slice(0, 2), result.placements[2], moved(result.placements[0], at)] }) as PackResult;
+    const near = withCube([61, 65, 0]);
+    expect(shapeLayoutFaults(inst, near, parts).faults).toEqual(new Set([0, 1, 2, 3]));
+    const focused = shapeLayoutFaults(inst, near, parts, [3]);
+    expect(focused.faults).toEqual(new Set([2, 3]));
+    expect(focused.problems[0].message).toMatch(/is only 1\.0000\d* mm from placements\[2\]/);
+    // Clear in the hole: nothing found for it, while the full check still names the other pair.
+    expect(shapeLayoutFaults(inst, withCube([65, 65, 0]), parts, [3]).faults).toEqual(new Set());
+    // A cube put over the first cube but listed before it (the lower one would go out first, under it): found with
+    // either of the two in focus, from either side of the pair.
+    const over = { ...result, placements: [moved(result.placements[0], [150, 150, 12]), result.placements[0]] } as PackResult;
+    expect(shapeLayoutFaults(inst, over, parts, [0]).faults).toEqual(new Set([0, 1]));
+    expect(shapeLayoutFaults(inst, over, parts, [1]).faults).toEqual(new Set([0, 1]));
+    expect(shapeLayoutFaults(inst, over, parts, [1]).problems[0].message).toMatch(/cannot be lifted straight up: placements\[0\]/);
+  });
 });
 
 describe('a drop by hand, by shape', () => {
