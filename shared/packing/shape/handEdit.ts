@@ -34,9 +34,10 @@ export function shapeLayoutFaults(
 
 /**
  * The chosen placements, lowest first, each dropped: one clear of the others where it is comes straight down
- * until its shape comes within the spacing of a part under it (or reaches the floor keep-out), and stays if a
- * part reaching over it holds it; one that clashes with another (closer than the spacing, by the meshes) is
- * first lifted over every part around it, as a drop by boxes would, and then comes down the same way. Each
+ * until its shape comes within the spacing of a part under it (or reaches the floor keep-out), also from under a
+ * part reaching over it (a bridge's deck), and stays where a part reaches both over and under it; one that
+ * clashes with another (closer than the spacing, by the meshes) is first lifted over every part around it, as a
+ * drop by boxes would, and then comes down the same way. Each
  * dropped part is then listed after the parts it now lies over and before those over it (found by the meshes),
  * so that the list stays a lift-out order. Returns the new list and, for each old index, its new index.
  */

@@ -50,6 +50,8 @@ interface Dense {
    * horizontal distance to each column as the gap between the two cells.
    */
   grown: Float64Array;
+  /** The bottom lowered by the same ball: below it, in that column, a point of another part is clear of this one. */
+  low: Float64Array;
   R: number;
 }
 
@@ -65,6 +67,7 @@ function dense(p: Profile, g: number, h: number): Dense {
   const R = g > 0 ? Math.ceil(g / h) + 1 : 1;
   const wx = nx + 2 * R, wy = ny + 2 * R;
   const grown = new Float64Array(wx * wy).fill(-Infinity);
+  const low = new Float64Array(wx * wy).fill(Infinity);
   const g2 = g * g;
   // Rise over a column at a gap of (d - 1) cells, d = 0..R (0 and 1: the same or a touching cell).
   const rise = new Float64Array((R + 1) * (R + 1)).fill(-Infinity);
@@ -79,6 +82,7 @@ function dense(p: Profile, g: number, h: number): Dense {
     for (let k = 0; k < nx; k++) {
       const t = top[k + nx * l];
       if (t === -Infinity) continue;
+      const u = bottom[k + nx * l];
       for (let b = -R; b <= R; b++) {
         const row = wx * (l + b + R);
         for (let a = -R; a <= R; a++) {
@@ -86,11 +90,12 @@ function dense(p: Profile, g: number, h: number): Dense {
           if (r === -Infinity) continue;
           const id = row + k + a + R;
           if (t + r > grown[id]) grown[id] = t + r;
+          if (u - r < low[id]) low[id] = u - r;
         }
       }
     }
   }
-  return { nx, ny, extent: p.extent, bottom, top, grown, R };
+  return { nx, ny, extent: p.extent, bottom, top, grown, low, R };
 }
 
 /** The plan cell size the settling works at: a third of the spacing, between 0.5 and 1.5 mm. */
@@ -194,8 +199,9 @@ function clearAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number
 /**
  * Where parts come to rest lowered straight down from where they are: for an item, the lowest box bottom (never
  * above its own) at which it keeps the spacing from every one of `others` that it comes down onto, or the floor.
- * A part with another over it within the spacing in plan stays where it is (it would have to pass through it).
- * The profiles drawn are kept for the next item.
+ * Where another part reaches over it (an overhang, a bracket's arm) it comes down from under it: a column of the
+ * other part wholly above this one's, the spacing clear, only gets further away. A part with another both over
+ * and under it in one column stays where it is. The profiles drawn are kept for the next item.
  */
 export function restingHeights(instance: PackInstanceV2, parts: ShapePart[], options: { cell?: number } = {}): (item: SettleItem, others: readonly SettleItem[]) => number {
   const g = instance.spacing;
@@ -211,7 +217,7 @@ export function restingHeights(instance: PackInstanceV2, parts: ShapePart[], opt
       // Only the parts within the spacing in plan are drawn as profiles.
       const e = rotatedExtent(Q.rotation, parts[Q.part].size);
       if (apartInPlan(x, y, P.extent[0], P.extent[1], Q.position[0], Q.position[1], e[0], e[1], g)) continue;
-      need = Math.max(need, lowestAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, h));
+      need = Math.max(need, lowestAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, h, z0));
     }
     return restingZ(need, z0);
   };
@@ -224,9 +230,9 @@ export function restingHeights(instance: PackInstanceV2, parts: ShapePart[], opt
  * top of either, measured from a whole cell, errs only upwards (its gap to
  * every column of Q is at most the true one).
  */
-function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], h: number): number {
+function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly number[], h: number, from?: number): number {
   let need = -Infinity;
-  const { R, grown } = Q;
+  const { R, grown, low } = Q;
   const wx = Q.nx + 2 * R, wy = Q.ny + 2 * R;
   const sx = (x - q[0]) / h + R, sy = (y - q[1]) / h + R;
   const fx = Math.floor(sx + 1e-9), fy = Math.floor(sy + 1e-9);
@@ -239,10 +245,13 @@ function lowestAbove(P: Dense, x: number, y: number, Q: Dense, q: readonly numbe
       if (b === Infinity) continue;
       const k0 = fx + i;
       if (k0 + ex < 0 || k0 >= wx) continue;
+      // Lowered from `from`: P's top in this column, under which Q's grown bottom leaves it clear all the way down.
+      const pTop = from === undefined ? Infinity : from + P.top[i + P.nx * j];
       for (let l = Math.max(0, l0), le = Math.min(wy - 1, l0 + ey); l <= le; l++) {
         for (let k = Math.max(0, k0), ke = Math.min(wx - 1, k0 + ex); k <= ke; k++) {
           const t = grown[k + wx * l];
           if (t === -Infinity) continue;
+          if (pTop <= q[2] + low[k + wx * l]) continue;
           const z = q[2] + t - b;
           if (z > need) need = z;
         }

@@ -7,7 +7,7 @@
  * each side of the cube in the hole; a 40 x 40 x 12 mm cup with a 2 mm floor:
  * a cube in it rests 2 + 2 mm over the cup's bottom).
  */
-import { prismWithHoles } from '@/shared/geometry';
+import { prism, prismWithHoles } from '@/shared/geometry';
 import { housing } from '@/shared/geometry/generate';
 import { placementTransform } from '@/shared/geometry/rotations';
 import { droppedPlacements, shapeEditFaults, summariseShapeLayout, type PackResult, type Placement } from '@/shared/packing';
@@ -154,6 +154,38 @@ describe('a drop by hand, by shape', () => {
     const both = droppedByShape(inst, result.placements, [1, 0], parts).placements.map((p) => p.position[2]);
     expect(both[0]).toBeCloseTo(0, 5);
     expect(both[1]).toBeCloseTo(12, 5);
+  });
+
+  test("a cube held in a bridge's tunnel, under its deck, comes down from under the deck to the floor", () => {
+    // A 40 x 40 x 20 mm bridge: two 5 mm legs and a 5 mm deck over a 30 mm wide, 15 mm high tunnel (drawn in x and
+    // height, extruded 40 mm, then stood up by a quarter turn about x: (x, y, z) -> (x, -z, y)).
+    const side = prism([[0, 0], [5, 0], [5, 15], [35, 15], [35, 0], [40, 0], [40, 20], [0, 20]], 0, 40);
+    const pos = side.positions.slice();
+    for (let v = 0; v < pos.length; v += 3) [pos[v + 1], pos[v + 2]] = [-side.positions[v + 2], side.positions[v + 1]];
+    const bridgeInst = shapeInstance(
+      [
+        { id: 'bridge', mesh: { positions: pos, indices: side.indices }, quantity: 1, orientations: ['xyz'] },
+        { id: 'cube', mesh: cube, quantity: 1, orientations: ['xyz'] },
+      ],
+      2,
+    );
+    const bridgeParts = shapeParts(bridgeInst);
+    // The cube in the middle of the tunnel, 10 mm from each leg, held 2 mm up (its top 3 mm under the deck), listed
+    // first: the bridge goes out before it.
+    const held = summariseShapeLayout(
+      bridgeInst,
+      [
+        { id: 'cube', rotation: 0, position: [65, 65, 2] },
+        { id: 'bridge', rotation: 0, position: [50, 50, 0] },
+      ],
+      bridgeParts,
+    ) as unknown as PackResult;
+    expect(shapeLayoutFaults(bridgeInst, held, bridgeParts).faults.size).toBe(0);
+    const dropped = droppedByShape(bridgeInst, held.placements, [0], bridgeParts);
+    expect(dropped.placements.find((p) => p.id === 'cube')!.position[2]).toBeCloseTo(0, 5);
+    // Still under the deck: listed before the bridge, which goes out first.
+    expect(dropped.placements.map((p) => p.id)).toEqual(['cube', 'bridge']);
+    expect(shapeLayoutFaults(bridgeInst, { ...held, placements: dropped.placements }, bridgeParts).faults.size).toBe(0);
   });
 
   test('a cube moved into another (5 mm overlap) is lifted over it and comes to rest on it, 2 mm clear, as a drop by boxes would leave it', () => {
