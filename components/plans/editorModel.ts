@@ -283,6 +283,20 @@ export function droppedByShapeResult(instance: PackInstanceInput, result: PackRe
   return parsed.ok ? summariseLayout(parsed.instance, placements, result.elapsedMs) : null;
 }
 
+/** Marked parts dragged across the plate, as the release would leave them (see dragPreview). */
+export interface DragPreview {
+  /** The layout in its own order: the marks and the view keep their indices while dragging. */
+  result: PackResult;
+  /** The parts at fault by the quick check (boxes, for a layout by shape), by their indices in `result`. */
+  faults: Set<number>;
+  /** The same layout as the release lists it (packed by shape: the moved parts listed again in lift-out order). */
+  lifted: PackResult;
+  /** The parts changed by hand, by their indices in `lifted`: what an exact check of the drag looks at. */
+  liftedMoved: number[];
+  /** Index in `result` of each index in `lifted`. */
+  shownIndex: (lifted: number) => number;
+}
+
 /**
  * Marked parts dragged by (dxMm, dyMm), as the release would leave them: the layout in its own order (the marks
  * and the view keep their indices while dragging) and the parts at fault, checked as after the release (packed
@@ -295,16 +309,23 @@ export function dragPreview(
   dxMm: number,
   dyMm: number,
   handMoved: readonly number[] = [],
-): { result: PackResult; faults: Set<number> } | null {
+): DragPreview | null {
   const out = handEdited(instance, result, chosen, { kind: 'move', dxMm, dyMm });
   if (!out.ok) return null;
-  const moved = [...handMoved, ...chosen];
+  const moved = [...new Set([...handMoved, ...chosen])];
   const idx = out.indexOf;
-  if (!idx) return { result: out.result, faults: editFaults(instance, out.result, moved) };
+  if (!idx) return { result: out.result, faults: editFaults(instance, out.result, moved), lifted: out.result, liftedMoved: moved, shownIndex: (n) => n };
   const back = new Array<number>(idx.length);
   idx.forEach((n, o) => (back[n] = o));
-  const faults = editFaults(instance, out.result, moved.map((i) => idx[i]));
-  return { result: { ...out.result, placements: idx.map((n) => out.result.placements[n]) }, faults: new Set([...faults].map((n) => back[n])) };
+  const liftedMoved = moved.map((i) => idx[i]);
+  const faults = editFaults(instance, out.result, liftedMoved);
+  return {
+    result: { ...out.result, placements: idx.map((n) => out.result.placements[n]) },
+    faults: new Set([...faults].map((n) => back[n])),
+    lifted: out.result,
+    liftedMoved,
+    shownIndex: (n) => back[n],
+  };
 }
 
 /** The placements of a layout that break the rules (closer than the spacing, outside the usable region), by index. */
