@@ -85,7 +85,12 @@ export function byBoxesText(n: Pick<ShownNumbers, 'printSeconds' | 'areaJumps' |
   if (!b || n.profileSource !== 'mesh') return null;
   const jumps = n.areaJumps?.length ?? 0;
   const warnings = (k: number) => `${k} heat-load warning${k === 1 ? '' : 's'}`;
-  return `Counted as boxes, the same layout would read ${hours(b.printSeconds)} to print (${hours(Math.max(0, b.printSeconds - n.printSeconds))} more) and ${warnings(b.areaJumps)} (here ${jumps}).`;
+  // Box-like parts: the two readings agree to the figure shown.
+  const time =
+    hours(b.printSeconds) === hours(n.printSeconds)
+      ? `also read ${hours(b.printSeconds)} to print`
+      : `read ${hours(b.printSeconds)} to print (${hours(Math.max(0, b.printSeconds - n.printSeconds))} more)`;
+  return `Counted as boxes, the same layout would ${time} and ${warnings(b.areaJumps)} (here ${jumps}).`;
 }
 
 /** The estimate's profile source as stored with it; estimates made before the meshes were sliced are box estimates. */

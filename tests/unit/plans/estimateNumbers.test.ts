@@ -28,6 +28,13 @@ describe('the box figures beside an estimate from the meshes', () => {
     );
   });
 
+  test('when the shapes and the boxes give the same print time to the figure shown, it says so instead of "0.0 h more"', () => {
+    // Box-shaped parts: the slices of a block are its box's (the same area profile), so the two estimates agree.
+    const block = estimateLayout({ layout, machine: wren, material: nylon12, areaPerLayerMm2: boxes.areaPerLayerMm2 });
+    const n = numbersFromEstimate(stored(block), { placedCount: 1, unplacedCount: 0 });
+    expect(byBoxesText(n)).toBe(`Counted as boxes, the same layout would also read ${hours(boxes.print.printSeconds)} to print and ${boxes.areaJumps.length} heat-load warning${boxes.areaJumps.length === 1 ? '' : 's'} (here ${block.areaJumps.length}).`);
+  });
+
   test('a box estimate, an older stored estimate without them, or figures that are not numbers say nothing', () => {
     expect(byBoxesText(numbersFromEstimate(stored(boxes), { placedCount: 1, unplacedCount: 0 }))).toBeNull();
     const older = stored(meshes);
