@@ -28,7 +28,9 @@ export function shapeLayoutFaults(
 ): { faults: Set<number>; problems: FieldProblem[] } {
   const asV2 = { ...(result as unknown as PackResultV2), format: RESULT_FORMAT_V2 };
   // The totals (height, density, area profile) are worked out again wherever the layout is kept: only the placements count here.
-  const problems = validateShapeLayout(instance, asV2, parts, only ? new Set(only) : undefined).filter((p) => p.field.startsWith('placements'));
+  // Every part at fault is named, so the editor can mark each one.
+  const focus = only ? new Set(only) : undefined;
+  const problems = validateShapeLayout(instance, asV2, parts, { focus, maxReports: Infinity }).filter((p) => p.field.startsWith('placements'));
   return { faults: placementsAtFault(problems), problems };
 }
 

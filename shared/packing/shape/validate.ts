@@ -13,7 +13,7 @@ import { RESULT_FORMAT_V2, type FieldProblem, type PackInstanceV2, type PackResu
 import { blocksLift, containsPoint, PlacedBvh, surfaceDistance } from './bvh';
 import { shapeParts, type ShapePart } from './parts';
 
-/** At most this many problems of one kind are listed; one more line gives the total. */
+/** By default at most this many problems of one kind are listed; one more line gives the rest's count. */
 const MAX_REPORTS = 20;
 
 interface Placed {
@@ -23,11 +23,17 @@ interface Placed {
   placed: PlacedBvh;
 }
 
-/**
- * `focus` (placement indices) limits the check of gaps and of the lift-out order to the pairs that hold one of
- * those placements: after a hand change of a layout that passed, only they can be at fault.
- */
-export function validateShapeLayout(instance: PackInstanceV2, result: PackResultV2, prepared?: ShapePart[], focus?: ReadonlySet<number>): FieldProblem[] {
+export interface ShapeCheckOptions {
+  /**
+   * Placement indices: the check of gaps and of the lift-out order looks only at the pairs that hold one of them
+   * (after a hand change of a layout that passed, only they can be at fault).
+   */
+  focus?: ReadonlySet<number>;
+  /** Problems listed of each kind before one line gives the rest's count (default 20; the editor names them all). */
+  maxReports?: number;
+}
+
+export function validateShapeLayout(instance: PackInstanceV2, result: PackResultV2, prepared?: ShapePart[], options: ShapeCheckOptions = {}): FieldProblem[] {
   const problems: FieldProblem[] = [];
   const bad = (field: string, message: string) => problems.push({ field, message });
   const tol = TOLERANCE_MM;
@@ -91,7 +97,7 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     placed.push({ at: i, part, rotation, placed: new PlacedBvh(part.bvh(), rotation, translation) });
   });
 
-  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad, focus);
+  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad, options.focus, options.maxReports ?? MAX_REPORTS);
 
   const unplacedCount = new Array<number>(parts.length).fill(0);
   const unplaced = Array.isArray(result.unplaced) ? result.unplaced : [];
@@ -147,7 +153,8 @@ function checkGapsAndLift(
   origin: readonly number[],
   extent: readonly number[],
   bad: (field: string, message: string) => void,
-  focus?: ReadonlySet<number>,
+  focus: ReadonlySet<number> | undefined,
+  maxReports: number,
 ): void {
   const n = placed.length;
   if (n < 2) return;
@@ -172,7 +179,7 @@ function checkGapsAndLift(
   const liftCheck = (later: number, earlier: number) => {
     if (!blocksLift(placed[later].placed, placed[earlier].placed, tol)) return;
     liftTotal++;
-    if (liftReports++ < MAX_REPORTS) {
+    if (liftReports++ < maxReports) {
       bad(`placements[${placed[later].at}]`, `cannot be lifted straight up: placements[${placed[earlier].at}], listed before it, is above it`);
     }
   };
@@ -193,7 +200,7 @@ function checkGapsAndLift(
     else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;
     if (problem) {
       gapTotal++;
-      if (gapReports++ < MAX_REPORTS) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
+      if (gapReports++ < maxReports) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
     }
   };
   for (let i = 0; i < n; i++) {
@@ -210,8 +217,8 @@ function checkGapsAndLift(
         }
       }
   }
-  if (gapTotal > MAX_REPORTS) bad('placements', `${gapTotal - MAX_REPORTS} more pairs are closer than the spacing`);
-  if (liftTotal > MAX_REPORTS) bad('placements', `${liftTotal - MAX_REPORTS} more parts are blocked on their way up`);
+  if (gapTotal > maxReports) bad('placements', `${gapTotal - maxReports} more pairs are closer than the spacing`);
+  if (liftTotal > maxReports) bad('placements', `${liftTotal - maxReports} more parts are blocked on their way up`);
 }
 
 /**

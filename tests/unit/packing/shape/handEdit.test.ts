@@ -13,6 +13,7 @@ import { placementTransform } from '@/shared/geometry/rotations';
 import { droppedPlacements, shapeEditFaults, summariseShapeLayout, type PackResult, type Placement } from '@/shared/packing';
 import { shapeParts } from '@/shared/packing/shape/parts';
 import { droppedByShape, shapeLayoutFaults } from '@/shared/packing/shape/handEdit';
+import { validateShapeLayout } from '@/shared/packing/shape/validate';
 import { box } from '../../geometry/helpers';
 import { shapeInstance } from './instance';
 
@@ -100,6 +101,23 @@ describe('the check of a hand edit against the meshes', () => {
     expect(shapeLayoutFaults(inst, over, parts, [0]).faults).toEqual(new Set([0, 1]));
     expect(shapeLayoutFaults(inst, over, parts, [1]).faults).toEqual(new Set([0, 1]));
     expect(shapeLayoutFaults(inst, over, parts, [1]).problems[0].message).toMatch(/cannot be lifted straight up: placements\[0\]/);
+  });
+});
+
+describe('many faults at once', () => {
+  test('every part at fault is named for the editor, while the plain check lists 20 of a kind and counts the rest', () => {
+    // 24 pairs of cubes, each pair 1 mm apart (spacing 2 mm): 48 parts at fault, 24 pairs.
+    const many = shapeInstance([{ id: 'cube', mesh: cube, quantity: 48, orientations: ['xyz'] }], 2);
+    const manyParts = shapeParts(many);
+    const items = Array.from({ length: 24 }, (_, k) => [
+      { id: 'cube', rotation: 0, position: [(k % 6) * 30, Math.floor(k / 6) * 30, 0] as [number, number, number] },
+      { id: 'cube', rotation: 0, position: [(k % 6) * 30 + 11, Math.floor(k / 6) * 30, 0] as [number, number, number] },
+    ]).flat();
+    const result = summariseShapeLayout(many, items, manyParts);
+    expect(shapeLayoutFaults(many, result as unknown as PackResult, manyParts).faults.size).toBe(48);
+    const listed = validateShapeLayout(many, result, manyParts);
+    expect(listed.filter((p) => /is only 1\.0000\d* mm from/.test(p.message))).toHaveLength(20);
+    expect(listed.map((p) => p.message)).toContain('4 more pairs are closer than the spacing');
   });
 });
 
