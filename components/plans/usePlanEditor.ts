@@ -194,8 +194,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const checkResult = showingWorking && working.mode === 'edit' && shownByShape && editable ? (working.result ?? null) : null;
   const checkInstance = checkResult ? working?.instance : null;
   // The layout came checked (from the packing, or kept by the server): only pairs with a part changed by hand can be
-  // at fault, as the moved parts alone are listed again and a removal brings no two parts closer. On 2,000 parts this is
-  // tens of milliseconds instead of most of a second.
+  // at fault, as the moved parts alone are listed again and a removal brings no two parts closer. On 2,000 parts
+  // this takes tens of milliseconds instead of most of a second.
   const checkMoved = checkResult ? handMoved : undefined;
   useEffect(() => {
     if (!checkResult || !checkInstance || running) return;
@@ -247,7 +247,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
         .then((outcome) => {
           if (outcome.ok && dragLatest.current) setDragExact({ dxMm, dyMm, faults: new Set(outcome.faults.map(preview.shownIndex)) });
         })
-        // The boxes' check stands; the release is checked in full.
+        // The boxes' check stands; the released layout is checked again.
         .catch(() => undefined)
         .finally(() => {
           dragSent.current = null;
