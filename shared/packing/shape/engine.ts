@@ -36,12 +36,14 @@ import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
-import { bestPair, buildNests, type Nest } from './nest';
+import { bestPair, buildNests, lidsMayHold, type Nest } from './nest';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
 /** A quarter turn about +z: chamber (x, y) -> (-y, x). */
 const QUARTER_Z = ROTATION_CODES.indexOf('-y+x+z');
+/** Half a turn about +x: (x, y, z) -> (x, -y, -z), upside down. */
+const HALF_X = ROTATION_CODES.indexOf('+x-y-z');
 /** Box ids of nests in the box engine's instance (nests are not boxed when a part's id starts so). */
 const NEST_ID = '\u0000nest:';
 
@@ -67,6 +69,8 @@ export interface ShapeOptions {
   pairGain?: number;
   /** Holder turns the second set of nests tries (./nest.ts buildNests `ways`; default 4; 1: one set only). */
   holderWays?: number;
+  /** Let two copies of a holder face each other, the second upside down over what they hold (default true). */
+  lids?: boolean;
 }
 
 export interface ShapePacking {
@@ -81,6 +85,8 @@ interface Kind {
   /** Every allowed rotation's profile, for the search to draw other choices from. */
   allProfiles: Profile[];
   fits: boolean;
+  /** The profile of a turn, turned upside down (half a turn about x), when the part allows it and it fits. */
+  flip?: (p: Profile) => Profile | null;
 }
 
 /** Units the box search may pack as one box each, and how many copies of each kind they hold. */
@@ -177,7 +183,13 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
       }
     });
     chosen.sort((a, b) => a.cost - b.cost);
-    return { part, profiles: chosen, allProfiles: all, fits: true };
+    const flip = (p: Profile) => {
+      const r = composeRotations(p.rotation, HALF_X);
+      if (!part.rotations.includes(r)) return null;
+      const q = profileOf(r);
+      return fitsIn(q) ? q : null;
+    };
+    return { part, profiles: chosen, allProfiles: all, fits: true, flip };
   });
 }
 
@@ -308,10 +320,11 @@ function* solve(
   // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
   const plate = usableRegion(instance).extent;
   /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
-  const nestSet = (ways: number, halt: () => boolean): NestSet => {
+  const nestKinds = (lids: boolean) => kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
+  const nestSet = (ways: number, halt: () => boolean, lids = false): NestSet => {
     if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
     const set: NestSet = buildNests(
-      kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles })),
+      nestKinds(lids),
       cell,
       instance.spacing,
       undefined,
@@ -325,7 +338,11 @@ function* solve(
     });
     return set;
   };
-  const primary = nestSet(1, stop);
+  const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
+  const single = nestSet(1, stop);
+  // When nothing nests in one holder, two copies facing each other may still hold what is too tall for one.
+  const alone = single.nests.length === 0 && lids && !stop() ? nestSet(1, stop, true) : null;
+  const primary = alone && alone.nests.some((n) => n.lidded) ? alone : single;
   const { nests, used } = primary;
   const copies: number[] = [];
   kinds.forEach((k, i) => {
@@ -472,7 +489,10 @@ function* solve(
       // A second set of nests whose holders may stand other ways up (./nest.ts buildNests `ways`): the
       // box search of so few, large units is lumpy, and either set can come out lower. They share its time.
       const ways = options.holderWays ?? 4;
-      const perSet = (instance.timeLimitMs * boxShare * nestShare) / (ways > 1 ? 2 : 1);
+      // A third set lets two copies of a holder face each other, the second upside down as a lid over both
+      // hollows (./nest.ts buildNests `flip`): tall units, lower where they take what no single holder can.
+      const lidSet = lids && primary !== alone;
+      const perSet = (instance.timeLimitMs * boxShare * nestShare) / ((ways > 1 ? 2 : 1) + (lidSet ? 1 : 0));
       /** The box search of one set's nests for its share of the time; false when no time was left for it. */
       const searchSet = function* (set: NestSet): Generator<void, boolean, void> {
         const ms = stop() ? null : budget(perSet, true);
@@ -486,6 +506,10 @@ function* solve(
       if ((yield* searchSet(primary)) && ways > 1 && !tooLate()) {
         const other = nestSet(ways, tooLate);
         if (other.nests.length > 0) yield* searchSet(other);
+      }
+      if (lidSet && !tooLate()) {
+        const lidded = nestSet(ways, tooLate, true);
+        if (lidded.nests.some((n) => n.lidded)) yield* searchSet(lidded);
       }
     }
     const plainMs = nestShare < 1 && !stop() ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;

@@ -44,8 +44,12 @@ export function gridOf(origin: [number, number, number], extent: [number, number
   };
 }
 
-/** Best drop of one profile: the lowest top, then the lowest row, then the leftmost; `bound` is the best score so far. */
-export function bestDrop(G: Grid, p: Profile, bound: number): { u: number; v: number; z: number; score: number } | null {
+/**
+ * Best drop of one profile: the lowest top, then the lowest row, then the leftmost; `bound` is the best score so far.
+ * With `C` (per cell, the highest a point may reach there: a part over the drop, lowered by the spacing), a place
+ * where the part's top in some column would pass it is not taken.
+ */
+export function bestDrop(G: Grid, p: Profile, bound: number, C?: Float64Array): { u: number; v: number; z: number; score: number } | null {
   const { nx, D, cell, extent, origin } = G;
   const umax = Math.floor((extent[0] - p.extent[0]) / cell + 1e-9);
   const vmax = Math.floor((extent[1] - p.extent[1]) / cell + 1e-9);
@@ -75,6 +79,10 @@ export function bestDrop(G: Grid, p: Profile, bound: number): { u: number; v: nu
         }
       }
       if (k < m) continue;
+      if (C) {
+        for (k = 0; k < m; k++) if (z + p.top[k] > C[base + off[k]] + 1e-9) break;
+        if (k < m) continue;
+      }
       best = z + ez;
       bu = u;
       bv = v;
@@ -83,6 +91,23 @@ export function bestDrop(G: Grid, p: Profile, bound: number): { u: number; v: nu
     }
   }
   return bu < 0 ? null : { u: bu, v: bv, z: bz, score: best };
+}
+
+/**
+ * The ceiling a part placed over the grid at `z` (its box bottom, corner at cell u, v) leaves: per cell, its lowest
+ * point over any cell within the spacing, less the spacing (the same square window as the dilation D).
+ */
+export function ceilingOf(G: Grid, p: Profile, u: number, v: number, z: number): Float64Array {
+  const { nx, ny, r, g } = G;
+  const C = new Float64Array(nx * ny).fill(Infinity);
+  for (let k = 0; k < p.cellX.length; k++) {
+    const x = u + p.cellX[k], y = v + p.cellY[k];
+    const b = z + p.bottom[k] - g;
+    for (let yy = Math.max(0, y - r), ye = Math.min(ny - 1, y + r); yy <= ye; yy++) {
+      for (let xx = Math.max(0, x - r), xe = Math.min(nx - 1, x + r); xx <= xe; xx++) if (b < C[xx + nx * yy]) C[xx + nx * yy] = b;
+    }
+  }
+  return C;
 }
 
 export function drop(G: Grid, p: Profile, u: number, v: number, z: number): void {

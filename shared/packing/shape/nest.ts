@@ -13,7 +13,7 @@
  * a housing (its top ends as low either way); filling the hollows first is
  * what lets the hollows be used.
  */
-import { bestDrop, drop, gridOf, type Grid } from './grid';
+import { bestDrop, ceilingOf, drop, gridOf } from './grid';
 import { profileOfColumns, type Profile } from './profile';
 
 export interface NestMember {
@@ -26,9 +26,11 @@ export interface NestMember {
 }
 
 export interface Nest {
-  /** The holder first, then its contents in the order they were dropped (a lift-out order, reversed). */
+  /** The holder first, then its contents in the order they were dropped (a lift-out order, reversed), then its lid. */
   members: NestMember[];
   profile: Profile;
+  /** The last member is a second copy of the holder, upside down over it (see buildNests). */
+  lidded?: boolean;
 }
 
 interface NestKind {
@@ -40,7 +42,12 @@ interface NestKind {
    * the plate costs nothing (a thin plate that packs best on end lies flat in a shallow housing).
    */
   inside?: Profile[];
+  /** A profile turned upside down (half a turn about x), when the part allows it: a second copy as a lid. */
+  flip?: (p: Profile) => Profile | null;
 }
+
+/** A part holds others when at least this share of its box is room under its top. */
+const MIN_HOLLOW = 0.35;
 
 /** Room under a profile's top that the part does not take, as a share of its box. */
 function hollowShare(p: Profile, cell: number): number {
@@ -51,9 +58,21 @@ function hollowShare(p: Profile, cell: number): number {
   return (room * cell * cell) / Math.max(1e-9, p.extent[0] * p.extent[1] * p.extent[2]);
 }
 
-function localGrid(p: Profile, cell: number, spacing: number): Grid {
-  // The holder's own box: what it holds stays inside it.
-  return gridOf([0, 0, 0], [p.extent[0], p.extent[1], p.extent[2]], cell, spacing);
+/** A kind whose copies fit the holder's plan in some turn, but in none under its rim. */
+function tooTallFor(holder: Profile, kind: NestKind): boolean {
+  const turns = kind.inside ?? kind.profiles;
+  const inPlan = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1];
+  return turns.some(inPlan) && !turns.some((p) => inPlan(p) && p.extent[2] <= holder.extent[2]);
+}
+
+/**
+ * Whether buildNests could put a lid on any holder: a holder kind with two copies or more that may turn upside
+ * down, and another kind too tall for its hollow (tooTallFor). Cheap: no nest is filled.
+ */
+export function lidsMayHold(kinds: readonly NestKind[], cell: number, minHollow = MIN_HOLLOW): boolean {
+  return kinds.some(
+    (k, h) => k.quantity >= 2 && !!k.flip && k.profiles.length > 0 && hollowShare(k.profiles[0], cell) >= minHollow && kinds.some((o, j) => j !== h && o.quantity > 0 && o.profiles.length > 0 && tooTallFor(k.profiles[0], o)),
+  );
 }
 
 /** The members' column profiles together, on the holder's grid (or on a grid of `size` from the same corner). */
@@ -84,13 +103,19 @@ function nestProfile(holder: Profile, members: NestMember[], cell: number, spaci
  * tried again. With `ways` above 1, each holder copy is filled in each of its
  * first `ways` candidate turns that leave room under the top, and the one
  * that saves the most room is kept (the grown boxes of what it holds, less
- * what its own grown box gains over its cheapest turn's).
+ * what its own grown box gains over its cheapest turn's). With a kind's
+ * `flip`, two of its copies may face each other: the second upside down, its
+ * rim the spacing over the first's, as a lid; what they hold is dropped into
+ * the first under a ceiling (the lid lowered by the spacing, ./grid.ts
+ * ceilingOf), so it may rise into the lid's hollow. The lid is listed last: it
+ * is lifted out first, and what was dropped under it then lifts out as in any
+ * nest.
  */
 export function buildNests(
   kinds: readonly NestKind[],
   cell: number,
   spacing: number,
-  minHollow = 0.35,
+  minHollow = MIN_HOLLOW,
   stop: () => boolean = () => false,
   ways = 1,
 ): { nests: Nest[]; used: number[] } {
@@ -107,13 +132,21 @@ export function buildNests(
     .sort((a, b) => kinds[b].profiles[0].cost - kinds[a].profiles[0].cost || a - b);
   const nests: Nest[] = [];
   const grown = (p: Profile) => (p.extent[0] + spacing) * (p.extent[1] + spacing) * (p.extent[2] + spacing);
-  /** One copy of `holder` filled from the copies `left` (which it takes from). */
-  const fill = (h: number, holder: Profile, left: number[]): NestMember[] => {
-    const G = localGrid(holder, cell, spacing);
+  /**
+   * One copy of `holder` filled from the copies `left` (which it takes from). With a `lid` (a second copy upside
+   * down, the spacing over the first), what it holds may rise into the lid's hollow too, under its ceiling.
+   */
+  const fill = (h: number, holder: Profile, left: number[], lid?: Profile): NestMember[] => {
+    const lidZ = holder.extent[2] + spacing;
+    const height = lid ? lidZ + lid.extent[2] : holder.extent[2];
+    // The holder's own box (with its lid): what it holds stays inside it.
+    const G = gridOf([0, 0, 0], [holder.extent[0], holder.extent[1], height], cell, spacing);
     drop(G, holder, 0, 0, 0);
     left[h]--;
+    const C = lid ? ceilingOf(G, lid, 0, 0, lidZ) : undefined;
+    if (lid) left[h]--;
     const members: NestMember[] = [{ kind: h, profile: holder, du: 0, dv: 0, dz: 0 }];
-    const bound = holder.extent[2] + 1e-9;
+    const bound = height + 1e-9;
     // A copy as large as the holder (its own kind among them) cannot go inside it.
     const fits = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1] && volume(p) < volume(holder);
     for (let placed = true; placed; ) {
@@ -123,7 +156,7 @@ export function buildNests(
         let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
         for (const p of kinds[k].inside ?? kinds[k].profiles) {
           if (!fits(p)) continue;
-          const d = bestDrop(G, p, best ? best.score : bound);
+          const d = bestDrop(G, p, best ? best.score : bound, C);
           if (d) best = { ...d, p };
         }
         if (!best) continue;
@@ -133,24 +166,44 @@ export function buildNests(
         placed = true;
       }
     }
+    // Listed last, the lid is lifted out first.
+    if (lid) members.push({ kind: h, profile: lid, du: 0, dv: 0, dz: lidZ });
     return members;
   };
+  /** Room saved: the grown boxes of what is held, less what the unit's grown box takes over its holders' own. */
+  const savedBy = (held: NestMember[], h: number, box: readonly number[], holders: number) =>
+    held.reduce((v, m) => v + grown(kinds[m.kind].profiles[0]), 0) - (box[0] + spacing) * (box[1] + spacing) * (box[2] + spacing) + holders * grown(kinds[h].profiles[0]);
+  // Holder kinds a lid did not pay for once are not tried with one again.
+  const noLid = new Set<number>();
   for (const h of holders) {
     const up = ways > 1 ? kinds[h].profiles.filter((p) => hollowShare(p, cell) >= minHollow).slice(0, ways) : [kinds[h].profiles[0]];
     while (left[h] > 0 && !stop()) {
       // The way up that saves the most room: the boxes of what it holds, less what its own box grows.
-      let best: { members: NestMember[]; left: number[]; saved: number } | null = null;
+      let best: { members: NestMember[]; left: number[]; saved: number; lidded?: boolean } | null = null;
       for (const holder of up) {
         const after = left.slice();
         const members = fill(h, holder, after);
         if (members.length === 1) continue;
-        const saved = members.slice(1).reduce((v, m) => v + grown(kinds[m.kind].profiles[0]), 0) - grown(holder) + grown(kinds[h].profiles[0]);
+        const saved = savedBy(members.slice(1), h, holder.extent, 1);
         if (!best || saved > best.saved) best = { members, left: after, saved };
+      }
+      // Two copies facing each other, the second upside down as a lid: what is too tall for one stands in both.
+      // Tried only while copies are left that fit the holder's plan but in no turn under its rim; taken when it
+      // saves more room than this copy and the next filled alone (reckoned as twice this one: the largest go first).
+      const holder = up[0];
+      const rest = best ? best.left : left;
+      const lid = left[h] >= 2 && kinds[h].flip && !noLid.has(h) && kinds.some((_, k) => k !== h && rest[k] > 0 && tooTallFor(holder, kinds[k])) ? kinds[h].flip(holder) : null;
+      if (lid && Math.abs(lid.extent[0] - holder.extent[0]) < 1e-6 && Math.abs(lid.extent[1] - holder.extent[1]) < 1e-6) {
+        const after = left.slice();
+        const members = fill(h, holder, after, lid);
+        const saved = savedBy(members.slice(1, -1), h, [holder.extent[0], holder.extent[1], holder.extent[2] + spacing + lid.extent[2]], 2);
+        if (members.length > 2 && saved > (best ? 2 * Math.max(0, best.saved) : 0)) best = { members, left: after, saved, lidded: true };
+        else noLid.add(h);
       }
       // Nothing fits in this kind's hollow: its copies pack on their own.
       if (!best) break;
       best.left.forEach((n, i) => (left[i] = n));
-      nests.push({ members: best.members, profile: nestProfile(best.members[0].profile, best.members, cell, spacing) });
+      nests.push({ members: best.members, profile: nestProfile(best.members[0].profile, best.members, cell, spacing), ...(best.lidded ? { lidded: true } : {}) });
     }
   }
   return { nests, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };

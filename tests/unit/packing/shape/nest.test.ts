@@ -10,6 +10,7 @@ import { bracket, housing, type MeshData } from '@/shared/geometry';
 import { createShapePacking, createBoxFitPacking, parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
 import { columnProfile, shapeParts, defaultCell } from '@/shared/packing/shape';
 import { bestPair, buildNests } from '@/shared/packing/shape/nest';
+import { composeRotations, ROTATION_CODES } from '@/shared/geometry/rotations';
 import { box } from '../../geometry/helpers';
 
 // 80 x 50 x 30 mm outside, walls and floor 2.5 mm: inside 75 x 45 mm, 27.5 mm deep.
@@ -187,4 +188,52 @@ test('on a plate of 48 x 31 mm the two brackets lie side by side packed by shape
   expect(validateShapeLayout(inst, byShape)).toEqual([]);
   // 15 + 3 + 15 mm.
   expect(createBoxFitPacking(plateOfTwoBrackets('box', [48, 31])).runSync().height).toBeCloseTo(33, 6);
+});
+
+// Two of the cups and a 10 x 10 x 40 mm post that must stand upright: on the cup's floor (2.5 mm) plus the spacing
+// its top is at 45.5 mm, over one cup's 30 mm rim. A second cup upside down, its rim the spacing over the first's
+// (at 33 mm), has its floor's underside at 33 + 27.5 = 60.5 mm: the post stands in both hollows, the spacing under it.
+const post = box(10, 10, 40);
+function cupsAndPost(): PackInstanceV2 {
+  return onSmallPlate('shape', [
+    { id: 'cup', mesh: cup, quantity: 2 },
+    { id: 'post', mesh: post, quantity: 1, upright: true },
+  ]);
+}
+
+test('two cups facing each other hold a post too tall for one: the second, upside down, is the lid and is lifted out first', () => {
+  const inst = cupsAndPost();
+  const [cupPart, postPart] = shapeParts(inst);
+  const cell = defaultCell(inst);
+  const upright = columnProfile(cupPart, 0, cell, inst.spacing);
+  // Half a turn about x: (x, y, z) -> (x, -y, -z).
+  const halfX = ROTATION_CODES.indexOf('+x-y-z');
+  const flip = (p: typeof upright) => columnProfile(cupPart, composeRotations(p.rotation, halfX), cell, inst.spacing);
+  const standing = columnProfile(postPart, 0, cell, inst.spacing);
+  const kinds = [
+    { quantity: 2, profiles: [upright] },
+    { quantity: 1, profiles: [standing] },
+  ];
+  // One cup alone holds nothing: the post is taller than its rim.
+  expect(buildNests(kinds, cell, inst.spacing).nests).toHaveLength(0);
+  const { nests, used } = buildNests([{ ...kinds[0], flip }, kinds[1]], cell, inst.spacing);
+  expect(used).toEqual([2, 1]);
+  expect(nests).toHaveLength(1);
+  expect(nests[0].lidded).toBe(true);
+  const [holder, held, lid] = nests[0].members;
+  expect([holder.kind, held.kind, lid.kind]).toEqual([0, 1, 0]);
+  expect(lid.dz).toBeCloseTo(30 + 3, 9);
+  expect(lid.profile.rotation).toBe(halfX);
+  expect(held.dz).toBeGreaterThanOrEqual(2.5 + 3 - 1e-9);
+  expect(held.dz + 40).toBeLessThanOrEqual(60.5 - 3 + 1e-9);
+  expect(nests[0].profile.extent[2]).toBeCloseTo(63, 9);
+});
+
+test('packed by shape the two cups and the post are 63 mm tall (two cups and the spacing), checked against the meshes', () => {
+  // Without the lid the post would stand in the upper cup, over its rim: 33 + 2.5 + 3 + 40 = 78.5 mm.
+  const inst = cupsAndPost();
+  const lidded = createShapePacking(inst, { maxRuns: 2 }).runSync();
+  expect(lidded.unplaced).toEqual([]);
+  expect(validateShapeLayout(inst, lidded)).toEqual([]);
+  expect(lidded.height).toBeCloseTo(63, 6);
 });
