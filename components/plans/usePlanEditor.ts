@@ -189,6 +189,12 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   // boxes' quick check of the moved parts stands until the worker answers, and its answer (every pair that holds a
   // moved part, by the shapes: a part in a hollow is clear, one the boxes missed is not) replaces it.
   const checkByShape = packer.checkByShape;
+  /** A layout checked against the parts' meshes in the packing worker (its files fetched first), with the drop or focus given. */
+  const checkShapes = useCallback(
+    (instance: PackInstanceInput, result: PackResult, how: { only?: number[]; drop?: number[] } = {}) =>
+      shapeFilesFor(instance).then((shapes) => checkByShape({ instance, layout: encodeLayout(result), shapes, ...how })),
+    [shapeFilesFor, checkByShape],
+  );
   const exactFaults = useRef(new WeakMap<PackResult, Set<number>>());
   const [shapeCheck, setShapeCheck] = useState<{ result: PackResult; state: 'checking' | 'checked' | 'failed'; message?: string } | null>(null);
   const checkResult = showingWorking && working.mode === 'edit' && shownByShape && editable ? (working.result ?? null) : null;
@@ -207,8 +213,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     setShapeCheck({ result: checkResult, state: 'checking' });
     // A burst of arrow keys is checked once, when it pauses.
     const timer = setTimeout(() => {
-      shapeFilesFor(checkInstance)
-        .then((shapes) => checkByShape({ instance: checkInstance, layout: encodeLayout(checkResult), shapes, only: checkMoved }))
+      checkShapes(checkInstance, checkResult, { only: checkMoved })
         .then((outcome) => {
           if (!live) return;
           if (!outcome.ok) {
@@ -226,7 +231,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
       live = false;
       clearTimeout(timer);
     };
-  }, [checkResult, checkInstance, checkMoved, running, shapeFilesFor, checkByShape]);
+  }, [checkResult, checkInstance, checkMoved, running, checkShapes]);
   const shapeCheckState = checkResult && shapeCheck?.result === checkResult ? shapeCheck : null;
   // While a drag of a layout by shape moves, the moved parts' pairs are checked against the meshes too, one check at
   // a time: when an answer comes, the latest position is sent. The last answer stands (a few millimetres behind the
@@ -242,8 +247,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     const instance = shownInstance;
     const send = (preview: DragPreview, [dxMm, dyMm]: [number, number]) => {
       dragSent.current = preview;
-      shapeFilesFor(instance)
-        .then((shapes) => checkByShape({ instance, layout: encodeLayout(preview.lifted), shapes, only: preview.liftedMoved }))
+      checkShapes(instance, preview.lifted, { only: preview.liftedMoved })
         .then((outcome) => {
           if (outcome.ok && dragLatest.current) setDragExact({ dxMm, dyMm, faults: new Set(outcome.faults.map(preview.shownIndex)) });
         })
@@ -256,7 +260,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
         });
     };
     send(drag, dragMm);
-  }, [drag, dragMm, dragCheckable, shownInstance, shapeFilesFor, checkByShape]);
+  }, [drag, dragMm, dragCheckable, shownInstance, checkShapes]);
   // Released where it was last checked: those faults stand until the check of the released layout answers.
   const releasedFaults = useRef(new WeakMap<PackResult, Set<number>>());
   const faults = useMemo(() => {
@@ -373,8 +377,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const dropByShape = async (instance: PackInstanceInput, result: PackResult) => {
     setDropping(true);
     try {
-      const shapes = await shapeFilesFor(instance);
-      const outcome = await checkByShape({ instance, layout: encodeLayout(result), shapes, drop: [...marked] });
+      const outcome = await checkShapes(instance, result, { drop: [...marked] });
       // Changed meanwhile (undone, packed again): this answer is for a layout no longer shown.
       if (latestShown.current !== result) return;
       const decoded = outcome.ok && outcome.dropped ? decodeLayout(outcome.dropped.layout) : null;

@@ -366,10 +366,8 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
   });
 
   const bedAreaMm2 = cakeMm[0] * cakeMm[1];
-  const areaJumps = findAreaJumps(areaPerLayerMm2, {
-    minDeltaMm2: AREA_JUMP_MIN_SHARE_OF_BED * bedAreaMm2,
-    ...input.jumpOptions,
-  });
+  const jumpOptions = { minDeltaMm2: AREA_JUMP_MIN_SHARE_OF_BED * bedAreaMm2, ...input.jumpOptions };
+  const areaJumps = findAreaJumps(areaPerLayerMm2, jumpOptions);
 
   // Read from the meshes, the boxes' figures go alongside: what counting every part as its box would have said.
   let byBoxes: LayoutEstimate['byBoxes'];
@@ -379,7 +377,7 @@ export function estimateLayout(input: EstimateInput): LayoutEstimate {
     byBoxes = {
       printSeconds: boxPrint.printSeconds,
       scanSeconds: boxPrint.scanSeconds + boxPrint.contourSeconds,
-      areaJumps: findAreaJumps(boxArea, { minDeltaMm2: AREA_JUMP_MIN_SHARE_OF_BED * bedAreaMm2, ...input.jumpOptions }).length,
+      areaJumps: findAreaJumps(boxArea, jumpOptions).length,
     };
   }
 
