@@ -1,11 +1,18 @@
 // Three projects: pure unit tests, API tests against the real PostgreSQL,
 // and browser tests against the exported web app. `npm test` runs all three
 // after scripts/test.ts has started the database.
+const { createHash } = require('node:crypto');
+const { readFileSync } = require('node:fs');
+
 const esm = ['lucia', 'oslo', '@lucia-auth', '@oslojs', 'fflate', 'comlink', 'binpackingjs', 'p-limit', 'yocto-queue'];
 const transformIgnorePatterns = [`node_modules/(?!(${esm.join('|')})/)`];
+// The plugin's own text is in its options, so jest's transform cache is renewed when the plugin changes.
+const localGlobalsFile = require.resolve('./tests/helpers/localGlobals.js');
+const localGlobals = [localGlobalsFile, { version: createHash('sha256').update(readFileSync(localGlobalsFile)).digest('hex').slice(0, 16) }];
 const common = {
   testEnvironment: 'node',
-  transform: { '^.+\\.[jt]sx?$': 'babel-jest', '^.+\\.mjs$': 'babel-jest' },
+  // The project's modules read the built-in globals once each (tests/helpers/localGlobals.js: jest's globals are slow).
+  transform: { '^.+\\.[jt]sx?$': ['babel-jest', { plugins: [localGlobals] }], '^.+\\.mjs$': 'babel-jest' },
   transformIgnorePatterns,
   moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
   moduleFileExtensions: ['ts', 'tsx', 'js', 'mjs', 'cjs', 'json'],
