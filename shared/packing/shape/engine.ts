@@ -315,42 +315,6 @@ function* solve(
   let phase: ShapePhase = 'greedy';
   const random: Random = createRandom(instance.seed);
 
-  // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
-  // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
-  // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
-  const plate = usableRegion(instance).extent;
-  /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
-  const nestKinds = (lids: boolean) => kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
-  const nestSet = (ways: number, halt: () => boolean, lids = false): NestSet => {
-    if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
-    const set: NestSet = buildNests(
-      nestKinds(lids),
-      cell,
-      instance.spacing,
-      undefined,
-      halt,
-      ways,
-    );
-    kinds.forEach((k, i) => {
-      if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
-      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
-      for (; pair && k.part.quantity - set.used[i] >= 2; set.used[i] += 2) set.nests.push(pair);
-    });
-    return set;
-  };
-  const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
-  const single = nestSet(1, stop);
-  // When nothing nests in one holder, two copies facing each other may still hold what is too tall for one.
-  const alone = single.nests.length === 0 && lids && !stop() ? nestSet(1, stop, true) : null;
-  const primary = alone && alone.nests.some((n) => n.lidded) ? alone : single;
-  const { nests, used } = primary;
-  const copies: number[] = [];
-  kinds.forEach((k, i) => {
-    if (k.fits) for (let c = used[i]; c < k.part.quantity; c++) copies.push(i);
-  });
-  nests.forEach((_, n) => copies.push(kinds.length + n));
-  const weight = [...kinds.map((k) => (k.fits ? k.profiles[0].cost : 0)), ...nests.map((n) => n.profile.cost)];
-  const firstOrder = [...copies].sort((a, b) => weight[b] - weight[a] || a - b);
   let bestHeight = Infinity;
   let bestPlacedCount = -1;
   let runs = 0;
@@ -454,11 +418,48 @@ function* solve(
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
-  if (boxShare > 0 && copies.length > 0) {
-    offer(yield* settledBoxes(0, instance.timeLimitMs));
-    // Timed, the search of the nests' boxes below starts from this layout anyway.
-    if (nests.length > 0 && !timed) offer(yield* settledBoxes(0, instance.timeLimitMs, primary), true);
-  }
+  // The first layout to show: the boxes', settled. It needs no nests, so it comes before they are built.
+  const anyCopies = kinds.some((k) => k.fits && k.part.quantity > 0);
+  if (boxShare > 0 && anyCopies) offer(yield* settledBoxes(0, instance.timeLimitMs));
+
+  // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
+  // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
+  // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
+  const plate = usableRegion(instance).extent;
+  /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
+  const nestKinds = (lids: boolean) => kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
+  const nestSet = (ways: number, halt: () => boolean, lids = false): NestSet => {
+    if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
+    const set: NestSet = buildNests(
+      nestKinds(lids),
+      cell,
+      instance.spacing,
+      undefined,
+      halt,
+      ways,
+    );
+    kinds.forEach((k, i) => {
+      if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
+      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
+      for (; pair && k.part.quantity - set.used[i] >= 2; set.used[i] += 2) set.nests.push(pair);
+    });
+    return set;
+  };
+  const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
+  const single = nestSet(1, stop);
+  // When nothing nests in one holder, two copies facing each other may still hold what is too tall for one.
+  const alone = single.nests.length === 0 && lids && !stop() ? nestSet(1, stop, true) : null;
+  const primary = alone && alone.nests.some((n) => n.lidded) ? alone : single;
+  const { nests, used } = primary;
+  const copies: number[] = [];
+  kinds.forEach((k, i) => {
+    if (k.fits) for (let c = used[i]; c < k.part.quantity; c++) copies.push(i);
+  });
+  nests.forEach((_, n) => copies.push(kinds.length + n));
+  const weight = [...kinds.map((k) => (k.fits ? k.profiles[0].cost : 0)), ...nests.map((n) => n.profile.cost)];
+  const firstOrder = [...copies].sort((a, b) => weight[b] - weight[a] || a - b);
+  // Timed, the search of the nests' boxes below starts from the first layout anyway.
+  if (boxShare > 0 && copies.length > 0 && nests.length > 0 && !timed) offer(yield* settledBoxes(0, instance.timeLimitMs, primary), true);
 
   const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
   // The drop packing in a fixed order (largest first, hollows filled before they are covered): the drop search
