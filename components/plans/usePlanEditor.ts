@@ -81,6 +81,8 @@ import { layoutCalibration } from '../../shared/estimate/calibration';
 const MOVE_STEP_MM = 5;
 /** Changes by hand that can be taken back. */
 const UNDO_STEPS = 50;
+/** No part marked at fault (one set, so a memo that returns it changes nothing). */
+const NO_FAULTS: ReadonlySet<number> = new Set();
 
 interface UndoStep {
   working: Working | null;
@@ -235,9 +237,11 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const shapeCheckState = checkResult && shapeCheck?.result === checkResult ? shapeCheck : null;
   // While a drag of a layout by shape moves, the moved parts' pairs are checked against the meshes too, one check at
   // a time: when an answer comes, the latest position is sent. The last answer stands (a few millimetres behind the
-  // pointer at most) until the next; before the first, the boxes' check.
+  // pointer at most) until the next. Before the first, no part is marked: the boxes' check would mark a part held
+  // over a hollow that the shapes clear, a flash of red the answer then takes back. If the check fails, the boxes'.
   const dragCheckable = shownByShape && editable && !running && !!shownInstance;
-  const [dragExact, setDragExact] = useState<{ dxMm: number; dyMm: number; faults: Set<number> } | null>(null);
+  /** The last answer for the drag: the moved parts' faults, and whether the meshes' check found them (not the boxes'). */
+  const [dragExact, setDragExact] = useState<{ dxMm: number; dyMm: number; faults: Set<number>; byShape: boolean } | null>(null);
   const dragSent = useRef<DragPreview | null>(null);
   const dragLatest = useRef<{ preview: DragPreview; at: [number, number] } | null>(null);
   dragLatest.current = drag && dragMm && dragCheckable ? { preview: drag, at: dragMm } : null;
@@ -249,10 +253,12 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
       dragSent.current = preview;
       checkShapes(instance, preview.lifted, { only: preview.liftedMoved })
         .then((outcome) => {
-          if (outcome.ok && dragLatest.current) setDragExact({ dxMm, dyMm, faults: new Set(outcome.faults.map(preview.shownIndex)) });
+          if (outcome.ok && dragLatest.current) setDragExact({ dxMm, dyMm, faults: new Set(outcome.faults.map(preview.shownIndex)), byShape: true });
         })
-        // The boxes' check stands; the released layout is checked again.
-        .catch(() => undefined)
+        // The boxes' check stands in for it; the released layout is checked again.
+        .catch(() => {
+          if (dragLatest.current) setDragExact({ dxMm, dyMm, faults: preview.faults, byShape: false });
+        })
         .finally(() => {
           dragSent.current = null;
           const next = dragLatest.current;
@@ -264,11 +270,11 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   // Released where it was last checked: those faults stand until the check of the released layout answers.
   const releasedFaults = useRef(new WeakMap<PackResult, Set<number>>());
   const faults = useMemo(() => {
-    if (drag) return dragExact?.faults ?? drag.faults;
+    if (drag) return dragExact?.faults ?? (dragCheckable ? NO_FAULTS : drag.faults);
     if (!(showingWorking && working.mode === 'edit' && working.result)) return new Set<number>();
     const exact = shapeCheckState?.state === 'checked' ? exactFaults.current.get(working.result) : undefined;
     return exact ?? releasedFaults.current.get(working.result) ?? editFaults(working.instance, working.result, handMoved);
-  }, [drag, dragExact, showingWorking, working, handMoved, shapeCheckState]);
+  }, [drag, dragExact, dragCheckable, showingWorking, working, handMoved, shapeCheckState]);
   const placements = useMemo(() => {
     if (!viewResult) return EMPTY_PLACEMENTS;
     const p = toChamberPlacements(viewResult, colourOrder);
@@ -541,7 +547,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     onRemoveMarked,
     onClearMarked: clearMarked,
     byShape: shownByShape,
-    shapeCheck: dropping ? 'dropping' : (shapeCheckState?.state ?? null),
+    // While a drag is held, what its own check found (the notice names the check that marked the parts).
+    shapeCheck: dropping ? 'dropping' : drag ? (dragExact?.byShape ? 'checked' : null) : (shapeCheckState?.state ?? null),
     shapeCheckMessage: shapeCheckState?.message ?? null,
     editable,
     caption: shownLabel,

@@ -144,15 +144,30 @@ test('wide (1440 x 900): a peg dragged, then moved with the keys, into a frame\'
   const start = boxes[peg];
   const holeAt = (b: Box) => Math.abs(b.position[0] - (frame.position[0] + 22)) < 2 && Math.abs(b.position[1] - (frame.position[1] + 22)) < 2;
 
-  // First with the mouse: while the button is still down over the hole, the dragged part's pairs are checked against
-  // the meshes in the worker, and the boxes' fault (the peg's box inside the frame's) goes away before the release.
+  // First with the mouse: while the button is still down, the dragged part's pairs are checked against the meshes in
+  // the worker. Held over the frame's solid wall, the peg is at fault; over the hole, the fault goes away (the boxes'
+  // check would keep it: the peg's box is inside the frame's) before the release.
   const z = start.position[2];
   const p0 = await probe<{ x: number; y: number }>(page, 'screenOf', [start.position[0], start.position[1], z]);
-  const p1 = await probe<{ x: number; y: number }>(page, 'screenOf', [frame.position[0] + 22, frame.position[1] + 22, z]);
-  const to = { x: grip.x + p1.x - p0.x, y: grip.y + p1.y - p0.y };
+  const screenAt = async (dx: number, dy: number) => {
+    const p = await probe<{ x: number; y: number }>(page, 'screenOf', [frame.position[0] + dx, frame.position[1] + dy, z]);
+    return { x: grip.x + p.x - p0.x, y: grip.y + p.y - p0.y };
+  };
+  const dragTo = async (from: { x: number; y: number }, to: { x: number; y: number }) => {
+    for (let k = 1; k <= 12; k++) await page.mouse.move(from.x + ((to.x - from.x) * k) / 12, from.y + ((to.y - from.y) * k) / 12);
+  };
+  const wallAt = (b: Box) => Math.abs(b.position[0] - (frame.position[0] + 2)) < 2 && Math.abs(b.position[1] - (frame.position[1] + 22)) < 2;
+  const [onWall, overHole] = [await screenAt(2, 22), await screenAt(22, 22)];
   await page.mouse.move(grip.x, grip.y);
   await page.mouse.down();
-  for (let k = 1; k <= 12; k++) await page.mouse.move(grip.x + ((to.x - grip.x) * k) / 12, grip.y + ((to.y - grip.y) * k) / 12);
+  await dragTo(grip, onWall);
+  for (const until = Date.now() + 10_000; !wallAt((await boxOf(page, peg))!) && Date.now() < until; ) await page.waitForTimeout(50);
+  expect(wallAt((await boxOf(page, peg))!)).toBe(true);
+  await page.getByTestId('plan-edit-faults').waitFor({ timeout: 20_000 });
+  // The notice names the check that marked them: the meshes', not the boxes'.
+  expect(await page.getByTestId('plan-edit-faults').textContent()).toMatch(/By the parts' shapes, 2 parts are closer than the 3 mm spacing/);
+  await screenshot(page, 'plan-editor-peg-held-on-wall-wide');
+  await dragTo(onWall, overHole);
   for (const until = Date.now() + 10_000; !holeAt((await boxOf(page, peg))!) && Date.now() < until; ) await page.waitForTimeout(50);
   expect(holeAt((await boxOf(page, peg))!)).toBe(true);
   await page.waitForFunction(() => !document.querySelector('[data-testid="plan-edit-faults"]'), undefined, { timeout: 20_000 });
