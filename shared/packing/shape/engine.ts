@@ -459,7 +459,7 @@ function* solve(
   const weight = [...kinds.map((k) => (k.fits ? k.profiles[0].cost : 0)), ...nests.map((n) => n.profile.cost)];
   const firstOrder = [...copies].sort((a, b) => weight[b] - weight[a] || a - b);
   // Timed, the search of the nests' boxes below starts from the first layout anyway.
-  if (boxShare > 0 && copies.length > 0 && nests.length > 0 && !timed) offer(yield* settledBoxes(0, instance.timeLimitMs, primary), true);
+  if (boxShare > 0 && nests.length > 0 && !timed) offer(yield* settledBoxes(0, instance.timeLimitMs, primary), true);
 
   const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
   // The drop packing in a fixed order (largest first, hollows filled before they are covered): the drop search
