@@ -129,20 +129,43 @@ export function defaultCell(instance: PackInstanceV2): number {
   return cell;
 }
 
-function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number, warnings: PackWarning[]): Kind[] {
+/** What drawing the profiles may spend, when the run is timed (see solve): null when it need not watch the clock. */
+interface ProfileBudget {
+  now: () => number;
+  /** The rotations' probes must be done by then, or the parts are packed by their boxes. */
+  probesBy: number;
+  /** Every turn of the best upright axes is drawn only until then; after it, one turn per axis. */
+  turnsBy: number;
+}
+
+/** Triangles of a part's mesh (its box's 12 when it has none). */
+function triangles(part: ShapePart): number {
+  return part.mesh.indices.length / 3;
+}
+
+/**
+ * Each part's candidate profiles: one turn per upright axis first (the probes, to rank the axes), then every turn
+ * about z of the best three. With a budget, the probes of all parts come first, and the parts are given up (null)
+ * when the clock passes `probesBy` before they are done (the rate of a light mesh says little of a heavy one's, so
+ * nothing is foretold); the further turns are drawn only while their time lasts (then one turn per axis).
+ */
+function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number, warnings: PackWarning[], budget: ProfileBudget | null = null): Kind[] | null {
   const { extent } = usableRegion(instance);
   const g = instance.spacing;
-  return parts.map((part) => {
-    const asBox = part.hasMesh && !part.watertight;
-    if (asBox && part.quantity > 0) {
-      warnings.push({
-        id: part.id,
-        code: 'not-watertight',
-        message: `"${part.id}": the mesh is not watertight (it has open or non-manifold edges), so it was packed by its bounding box`,
-      });
+  const fitsIn = (p: Profile) => p.extent[0] <= extent[0] + 1e-9 && p.extent[1] <= extent[1] + 1e-9 && p.extent[2] <= extent[2] + 1e-9;
+  const asBoxOf = (part: ShapePart) => part.hasMesh && !part.watertight;
+  const caches = parts.map(() => new Map<number, Profile>());
+  const profileOf = (part: ShapePart, r: number) => {
+    let p = caches[part.index].get(r);
+    if (!p) {
+      p = columnProfile(part, r, cell, g, asBoxOf(part));
+      caches[part.index].set(r, p);
     }
-    const fitsIn = (p: Profile) => p.extent[0] <= extent[0] + 1e-9 && p.extent[1] <= extent[1] + 1e-9 && p.extent[2] <= extent[2] + 1e-9;
-    // One profile per upright axis first, to rank them; then every allowed turn about z of the best ones.
+    return p;
+  };
+  // Per upright axis, one turn probes the cost (turns about z cost about the same).
+  const rankings: Array<Array<{ rots: number[]; probe: Profile }>> = [];
+  for (const part of parts) {
     const classes = new Map<number, number[]>();
     for (const r of part.rotations) {
       // Rotations whose box cannot fit are dropped before any profile is drawn.
@@ -152,31 +175,35 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
       if (!classes.has(k)) classes.set(k, []);
       classes.get(k)!.push(r);
     }
-    const cache = new Map<number, Profile>();
-    const profileOf = (r: number) => {
-      let p = cache.get(r);
-      if (!p) {
-        p = columnProfile(part, r, cell, g, asBox);
-        cache.set(r, p);
-      }
-      return p;
-    };
-    // Per upright axis, one turn probes the cost (turns about z cost about the same).
     const ranked: Array<{ rots: number[]; probe: Profile }> = [];
     for (const rots of classes.values()) {
       // The first turn may not fit where another does: the others only then.
-      const first = profileOf(rots[0]);
-      const probe = fitsIn(first) ? first : rots.slice(1).map(profileOf).find(fitsIn);
+      const first = profileOf(part, rots[0]);
+      const probe = fitsIn(first) ? first : rots.slice(1).map((r) => profileOf(part, r)).find(fitsIn);
       if (probe) ranked.push({ rots, probe });
     }
     ranked.sort((a, b) => a.probe.cost - b.probe.cost);
+    rankings.push(ranked);
+    // A part's probes are drawn whatever the clock; a heavy mesh's take the run at most that much past its share.
+    if (budget && part.quantity > 0 && budget.now() > budget.probesBy) return null;
+  }
+  return parts.map((part, index) => {
+    const asBox = asBoxOf(part);
+    if (asBox && part.quantity > 0) {
+      warnings.push({
+        id: part.id,
+        code: 'not-watertight',
+        message: `"${part.id}": the mesh is not watertight (it has open or non-manifold edges), so it was packed by its bounding box`,
+      });
+    }
+    const ranked = rankings[index];
     if (ranked.length === 0) return { part, profiles: [], allProfiles: [], fits: false };
     const chosen: Profile[] = [];
     const all: Profile[] = [];
     ranked.forEach(({ rots, probe }, i) => {
-      const full = i < 3;
+      const full = i < 3 && (!budget || budget.now() <= budget.turnsBy);
       for (const r of full ? rots : [probe.rotation]) {
-        const p = profileOf(r);
+        const p = profileOf(part, r);
         if (!fitsIn(p)) continue;
         all.push(p);
         if (i === 0 || (i <= 2 && ranked[i].probe.cost <= 1.6 * ranked[0].probe.cost)) chosen.push(p);
@@ -186,7 +213,7 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
     const flip = (p: Profile) => {
       const r = composeRotations(p.rotation, HALF_X);
       if (!part.rotations.includes(r)) return null;
-      const q = profileOf(r);
+      const q = profileOf(part, r);
       return fitsIn(q) ? q : null;
     };
     return { part, profiles: chosen, allProfiles: all, fits: true, flip };
@@ -291,6 +318,58 @@ function summarise(instance: PackInstanceV2, kinds: Kind[], placed: Placed[], el
   return finishResult(instance, kinds.map((k) => k.part), placements, forArea, count, top, volume, elapsedMs, warnings);
 }
 
+/**
+ * Builds the trees the exact check needs (./bvh.ts), lightest mesh first, each only while the clock is short of
+ * `by`. False when one is left unbuilt: the meshes are too heavy to check in time. (The rate of a light mesh
+ * says little of a heavy one's: on 8,000 triangles it is about four times a million's.)
+ */
+function* treesInTime(parts: ShapePart[], now: () => number, by: number): Generator<void, boolean, void> {
+  for (const part of parts.filter((p) => p.quantity > 0).sort((a, b) => triangles(a) - triangles(b))) {
+    if (now() > by) return false;
+    part.bvh();
+    yield;
+  }
+  return true;
+}
+
+/**
+ * The parts packed by their boxes, for a quarter of the time left (the area profile of the meshes comes after), and said
+ * so: what a run whose meshes are too heavy for its limit returns. Boxes kept the spacing apart keep the meshes in
+ * them as far apart, and listed bottom first they lift out (./boxfit.ts), so this layout needs no check.
+ */
+function* boxesInstead(
+  instance: PackInstanceV2,
+  parts: ShapePart[],
+  now: () => number,
+  deadline: number,
+  hooks: ShapeRunHooks,
+  stop: () => boolean,
+): Generator<void, PackResultV2, void> {
+  const ms = Math.max(0, Math.round((deadline - now()) / 4));
+  const search = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now }).steps({ shouldStop: stop });
+  let step = search.next();
+  while (!step.done) {
+    hooks.onProgress?.('greedy', 0, null);
+    yield;
+    step = search.next();
+  }
+  const result = fromBoxResult(instance, parts, step.value);
+  const used = parts.filter((p) => p.quantity > 0 && p.hasMesh);
+  const heaviest = used.reduce<ShapePart | null>((h, p) => (!h || triangles(p) > triangles(h) ? p : h), null);
+  const total = used.reduce((n, p) => n + triangles(p), 0);
+  if (heaviest) {
+    result.warnings = [
+      {
+        id: heaviest.id,
+        code: 'packed-by-box',
+        message: `Packed by the parts' boxes: their meshes (${total.toLocaleString('en-US')} triangles, "${heaviest.id}" the largest with ${triangles(heaviest).toLocaleString('en-US')}) take longer to prepare for packing by shape than the ${instance.timeLimitMs / 1000} s limit allows; give the packing more time to nest them`,
+      },
+    ];
+  }
+  hooks.onProgress?.('greedy', 1, result);
+  return result;
+}
+
 function* solve(
   instance: PackInstanceV2,
   options: ShapeOptions,
@@ -311,8 +390,20 @@ function* solve(
   const parts = shapeParts(instance);
   const cell = options.cellMm ?? defaultCell(instance);
   const warnings: PackWarning[] = [];
-  const kinds = prepareKinds(instance, parts, cell, warnings);
   let phase: ShapePhase = 'greedy';
+  // Timed, heavy meshes must not take the run past its limit: their profiles are drawn by half of it (at the rate
+  // measured so far) and their trees for the exact check built by three quarters, or the parts are packed by their
+  // boxes (which keep the spacing between any two meshes they hold) in what is left, saying so. Under a quarter of
+  // a second the clock tells more of a cold start than of the meshes, so the shares are never shorter than that.
+  // With a cap on the runs nothing here watches the clock.
+  const timed = options.maxRuns === undefined;
+  const by = (share: number, floorMs: number) => start + Math.max(share * instance.timeLimitMs, floorMs);
+  const prepared = prepareKinds(instance, parts, cell, warnings, timed ? { now, probesBy: by(0.5, 250), turnsBy: by(0.35, 150) } : null);
+  if (!prepared || (timed && !(yield* treesInTime(parts, now, by(0.75, 400))))) {
+    out.best = yield* boxesInstead(instance, parts, now, deadline, hooks, stop);
+    return;
+  }
+  const kinds = prepared;
   const random: Random = createRandom(instance.seed);
 
   let bestHeight = Infinity;
@@ -326,7 +417,6 @@ function* solve(
   // benchmark's mixes), so until one has been checked its check is reckoned at 8 times the other's. With a cap
   // on the runs (reproducible tests) the stages run as capped, whatever the clock. 3 % of the limit is kept in
   // hand for what the estimates miss.
-  const timed = options.maxRuns === undefined;
   const checkMs = { plain: 0, nested: 0 };
   let settleMs = 0;
   const checkCost = (nested: boolean) => (nested ? checkMs.nested || 8 * checkMs.plain : checkMs.plain);
