@@ -10,7 +10,7 @@ import { createPacking, decodeLayout, encodeLayout, layoutTransferables, parseIn
 import { createPackingV2, shapeParts, type ShapePart } from '../shared/packing/shape';
 import { droppedByShape, shapeLayoutFaults } from '../shared/packing/shape/handEdit';
 import { fetchSameOrigin, type FetchBytes } from './partMeshes';
-import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions, ShapeEditOutcome, ShapeEditRequest } from './protocol';
+import type { PackerApi, PackerOutcome, PackerProgress, PackerProgressCallback, PackerStartOptions, PackWarning, ShapeEditOutcome, ShapeEditRequest } from './protocol';
 import { shapeInstanceOf } from './shapeInstance';
 
 interface Run {
@@ -63,7 +63,8 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
           },
         });
         const layout = encodeLayout(result);
-        const outcome: PackerOutcome = { ok: true, runId, cancelled: cancelled.has(runId), layout };
+        const warnings = (result as { warnings?: PackWarning[] }).warnings;
+        const outcome: PackerOutcome = { ok: true, runId, cancelled: cancelled.has(runId), layout, ...(warnings && warnings.length > 0 ? { warnings } : {}) };
         return Comlink.transfer(outcome, layoutTransferables(layout));
       } finally {
         running.delete(runId);

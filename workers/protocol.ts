@@ -2,10 +2,10 @@
  * The packing worker's API as seen through comlink. Layouts cross the thread
  * boundary as typed arrays (EncodedLayout) sent as transferables.
  */
-import type { EncodedLayout, FieldProblem, PackPhase } from '../shared/packing';
+import type { EncodedLayout, FieldProblem, PackPhase, PackWarning } from '../shared/packing';
 import type { ShapeFiles } from './shapeInstance';
 
-export type { EncodedLayout, FieldProblem, PackPhase, ShapeFiles };
+export type { EncodedLayout, FieldProblem, PackPhase, PackWarning, ShapeFiles };
 
 export interface PackerProgress {
   phase: PackPhase;
@@ -19,7 +19,8 @@ export interface PackerProgress {
 export type PackerProgressCallback = (progress: PackerProgress) => void;
 
 export type PackerOutcome =
-  | { ok: true; runId: number; cancelled: boolean; layout: EncodedLayout }
+  /** `warnings`: what the engine said of the final layout (a mesh packed by its box, a run packed by boxes for want of time). */
+  | { ok: true; runId: number; cancelled: boolean; layout: EncodedLayout; warnings?: PackWarning[] }
   | { ok: false; runId: number; problems: FieldProblem[] };
 
 export interface PackerStartOptions {

@@ -13,6 +13,7 @@ import {
   type FieldProblem,
   type PackPhase,
   type PackResult,
+  type PackWarning,
 } from '../../shared/packing';
 import type { PackerApi, PackerOutcome, PackerProgressCallback, ShapeEditOutcome, ShapeEditRequest, ShapeFiles } from '../../workers/protocol';
 
@@ -29,6 +30,8 @@ export interface UsePacker {
   error: string | null;
   /** The fields that made the instance unusable, when that is why it failed. */
   problems: FieldProblem[];
+  /** What the engine said of the final layout (a mesh packed by its box; parts packed by boxes for want of time). */
+  warnings: PackWarning[];
   /**
    * Packs the instance; a run still going replaces the one before. A worker
    * silent for `lostAfterMs` (no progress, no answer) is taken as lost.
@@ -118,6 +121,7 @@ export function usePacker(): UsePacker {
   const [best, setBest] = useState<PackResult | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [problems, setProblems] = useState<FieldProblem[]>([]);
+  const [warnings, setWarnings] = useState<PackWarning[]>([]);
   const [lostAfterMs, setLostAfterMs] = useState<number | null>(null);
 
   // A worker that never answers is replaced: this one is stopped, and the next start makes a new one.
@@ -164,6 +168,7 @@ export function usePacker(): UsePacker {
     setBest(null);
     setError(null);
     setProblems([]);
+    setWarnings([]);
     setLostAfterMs(options.lostAfterMs ?? null);
     const onProgress: PackerProgressCallback = (message) => {
       if (runRef.current !== runId) return;
@@ -191,6 +196,7 @@ export function usePacker(): UsePacker {
           return;
         }
         setBest(decoded.result);
+        setWarnings(outcome.warnings ?? []);
         setProgress(1);
         setPhase('done');
         setStatus(outcome.cancelled ? 'cancelled' : 'done');
@@ -208,5 +214,5 @@ export function usePacker(): UsePacker {
 
   const checkByShape = useCallback((request: ShapeEditRequest) => clientOf().api.checkByShape(request), [clientOf]);
 
-  return { status, phase, progress, best, error, problems, start, cancel, checkByShape };
+  return { status, phase, progress, best, error, problems, warnings, start, cancel, checkByShape };
 }

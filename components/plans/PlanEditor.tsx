@@ -136,6 +136,13 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
           {e.retry ? <Button label="Try again" variant="secondary" size="sm" onPress={e.retry} testID="pack-retry" /> : null}
         </Notice>
       ) : null}
+      {e.packingNotes.length > 0 ? (
+        <Notice tone="caution" title="About this packing" testID="pack-notes">
+          {e.packingNotes.map((n) => (
+            <Text key={n}>{n}.</Text>
+          ))}
+        </Notice>
+      ) : null}
       {e.message ? (
         <Notice tone={e.message.tone === 'success' ? 'success' : e.message.tone === 'danger' ? 'danger' : 'info'} testID="plan-message">
           {e.message.text}

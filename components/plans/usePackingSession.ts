@@ -54,6 +54,8 @@ export interface PackingSession {
   fill(shown: readonly Placement[], candidates: readonly FillCandidate[]): void;
   /** What went wrong with the last run, if anything. */
   error: string | null;
+  /** What the engine said of the layout not kept yet (a mesh packed by its box, parts packed by boxes for want of time). */
+  notes: string[];
   /** Runs the last run again, when there was one. */
   retry: (() => void) | null;
 }
@@ -128,6 +130,8 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
       run({ mode: 'fill', instance: fullInstance, kept: [...shown], ...base }, engine, options.fit === 'shape');
     },
     error: packer.error ?? working?.problem ?? null,
+    // Only about the layout its run made, while it is the one not kept yet.
+    notes: working && !running && packer.status !== 'error' ? packer.warnings.map((w) => w.message) : [],
     retry: lastRun,
   };
 }

@@ -577,6 +577,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     hasDraft: !!draft,
     message,
     packingError: session.error,
+    packingNotes: session.notes,
     retry: session.retry,
     helpOpen,
     hasKeys,

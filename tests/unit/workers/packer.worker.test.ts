@@ -202,6 +202,24 @@ describe('packing by shape in the worker', () => {
     }
   });
 
+  test('what the engine says of its layout comes back with it: parts packed by their boxes for want of time', async () => {
+    const { remote, close } = connect(async (url) => files[url] ?? null);
+    const real = performance.now.bind(performance);
+    try {
+      const outcome = await remote.start(9, nestInstance, Comlink.proxy(() => undefined), { shapes });
+      expect(outcome.ok && outcome.warnings).toBeUndefined();
+      // A clock 10,000 times fast: drawing the meshes' profiles reads as seconds, past half the 1.5 s limit.
+      jest.spyOn(performance, 'now').mockImplementation(() => 10_000 * real());
+      const again = await remote.start(10, nestInstance, Comlink.proxy(() => undefined), { shapes });
+      expect(again.ok).toBe(true);
+      if (!again.ok) return;
+      expect(again.warnings).toEqual([expect.objectContaining({ code: 'packed-by-box', message: expect.stringMatching(/^Packed by the parts' boxes/) })]);
+    } finally {
+      jest.restoreAllMocks();
+      close();
+    }
+  });
+
   test('cancel gets through while the shape packing searches its box layout, and ends it with its best layout so far', async () => {
     const { remote, close } = connect(async (url) => files[url] ?? null);
     try {

@@ -12,7 +12,8 @@
  * rings in the cup, so the fallback is what the clock made, not the parts.
  */
 import { housing, torus } from '@/shared/geometry';
-import { createShapePacking, parseInstanceV2, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
+import { createShapePacking, validateShapeLayout, type PackInstanceV2 } from '@/shared/packing';
+import { shapeInstance } from './instance';
 
 // 80 x 50 x 30 mm outside, walls and floor 2.5 mm: inside 75 x 45 mm, 27.5 mm deep.
 const cup = housing({ lengthMm: 80, widthMm: 50, heightMm: 30, wallMm: 2.5, floorMm: 2.5, cornerRadiusMm: 5, cornerSegments: 6 });
@@ -21,21 +22,11 @@ const ring = torus(8, 2, 100, 50);
 
 /** The cup on a plate only 2 mm larger than it, and four rings that can only go inside it (by shape) or above it. */
 function instance(timeLimitMs: number): PackInstanceV2 {
-  const parsed = parseInstanceV2({
-    format: 'pack-instance/2',
-    chamber: [82, 52, 200],
-    margin: { xy: 0, bottom: 0, top: 0 },
-    spacing: 3,
-    layerHeight: 0.1,
-    timeLimitMs,
-    fit: 'shape',
-    parts: [
-      { id: 'cup', mesh: { positions: cup.positions, indices: cup.indices }, quantity: 1, orientations: ['upright'] },
-      { id: 'ring', mesh: { positions: ring.positions, indices: ring.indices }, quantity: 4 },
-    ],
-  });
-  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-  return parsed.instance;
+  const parts = [
+    { id: 'cup', mesh: cup, quantity: 1, orientations: ['upright'] },
+    { id: 'ring', mesh: ring, quantity: 4 },
+  ];
+  return shapeInstance(parts, 3, { chamber: [82, 52, 200], timeLimitMs });
 }
 
 test('meshes too heavy for the limit: packed by their boxes, said so, and valid by the exact check', () => {
