@@ -6,7 +6,7 @@
  * working layout as the worker sends it (editorModel.foldBest).
  */
 import { useCallback, useEffect, useEffectEvent, useState } from 'react';
-import type { PackInstanceInput, PackResult, Placement } from '../../shared/packing';
+import type { PackInstanceInput, PackResult, PackWarning, Placement } from '../../shared/packing';
 import { usePacker, type UsePacker } from '../packing/usePacker';
 import { editDraft, showLayout, type DraftLine, type DraftOptions, type PlanDraft } from '../stores/planEditor';
 import { fillInstanceOf, foldBest, repackOf, WORKING, type FillCandidate, type Working } from './editorModel';
@@ -55,7 +55,7 @@ export interface PackingSession {
   /** What went wrong with the last run, if anything. */
   error: string | null;
   /** What the engine said of the layout not kept yet (a mesh packed by its box, parts packed by boxes for want of time). */
-  notes: string[];
+  notes: PackWarning[];
   /** Runs the last run again, when there was one. */
   retry: (() => void) | null;
 }
@@ -131,7 +131,7 @@ export function usePackingSession({ planId, editable, fullInstance, lines, insta
     },
     error: packer.error ?? working?.problem ?? null,
     // Only about the layout its run made, while it is the one not kept yet.
-    notes: working && !running && packer.status !== 'error' ? packer.warnings.map((w) => w.message) : [],
+    notes: working && !running && packer.status !== 'error' ? packer.warnings : [],
     retry: lastRun,
   };
 }

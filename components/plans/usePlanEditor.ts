@@ -577,7 +577,8 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     hasDraft: !!draft,
     message,
     packingError: session.error,
-    packingNotes: session.notes,
+    // The engine names a part by its id in the instance (the request line's): the planner knows it by its name.
+    packingNotes: session.notes.map((w) => w.message.split(`"${w.id}"`).join(`"${partNames.get(w.id) ?? w.id}"`)),
     retry: session.retry,
     helpOpen,
     hasKeys,

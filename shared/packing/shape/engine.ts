@@ -358,11 +358,16 @@ function* boxesInstead(
   const heaviest = used.reduce<ShapePart | null>((h, p) => (!h || triangles(p) > triangles(h) ? p : h), null);
   const total = used.reduce((n, p) => n + triangles(p), 0);
   if (heaviest) {
+    const count = (n: number) => n.toLocaleString('en-US');
+    const what =
+      used.length === 1
+        ? `the mesh of "${heaviest.id}" (${count(total)} triangles) takes`
+        : `their meshes (${count(total)} triangles; "${heaviest.id}" the largest with ${count(triangles(heaviest))}) take`;
     result.warnings = [
       {
         id: heaviest.id,
         code: 'packed-by-box',
-        message: `Packed by the parts' boxes: their meshes (${total.toLocaleString('en-US')} triangles, "${heaviest.id}" the largest with ${triangles(heaviest).toLocaleString('en-US')}) take longer to prepare for packing by shape than the ${instance.timeLimitMs / 1000} s limit allows; give the packing more time to nest them`,
+        message: `Packed by the parts' boxes: ${what} longer to prepare for packing by shape than the ${instance.timeLimitMs / 1000} s limit allows; give the packing more time to nest them`,
       },
     ];
   }
