@@ -181,11 +181,11 @@ function prepareKinds(instance: PackInstanceV2, parts: ShapePart[], cell: number
       const first = profileOf(part, rots[0]);
       const probe = fitsIn(first) ? first : rots.slice(1).map((r) => profileOf(part, r)).find(fitsIn);
       if (probe) ranked.push({ rots, probe });
+      // The clock is read after each probe: a heavy mesh takes the run at most one profile past its share.
+      if (budget && part.quantity > 0 && budget.now() > budget.probesBy) return null;
     }
     ranked.sort((a, b) => a.probe.cost - b.probe.cost);
     rankings.push(ranked);
-    // A part's probes are drawn whatever the clock; a heavy mesh's take the run at most that much past its share.
-    if (budget && part.quantity > 0 && budget.now() > budget.probesBy) return null;
   }
   return parts.map((part, index) => {
     const asBox = asBoxOf(part);
@@ -671,8 +671,14 @@ function* solve(
 export function createShapePacking(instance: PackInstanceV2, options: ShapeOptions = {}): ShapePacking {
   const now = options.now ?? defaultClock();
   const finish = (out: { best: PackResultV2 | null }, start: number, hooks: ShapeRunHooks): PackResultV2 => {
-    // No layout passed the exact check (or the run was stopped before the first): the boxes, which always keep apart.
-    const best = out.best ?? fromBoxResult(instance, shapeParts(instance), packSync(boxInstance(instance, shapeParts(instance)), { now }));
+    // No layout passed the exact check (or the run was stopped before the first): the boxes, which always keep
+    // apart, packed in what is left of the limit (not a whole limit more).
+    const boxes = () => {
+      const parts = shapeParts(instance);
+      const left = Math.max(0, Math.round(instance.timeLimitMs - (now() - start)));
+      return fromBoxResult(instance, parts, packSync(boxInstance({ ...instance, timeLimitMs: left }, parts), { now }));
+    };
+    const best = out.best ?? boxes();
     const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
     hooks.onProgress?.('done', 1, result);
     return result;
