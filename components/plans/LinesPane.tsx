@@ -58,6 +58,8 @@ function NumberInput({ value, onCommit, label, testID, width = 80, min = 0, max,
 
 export interface LinesPaneProps {
   lines: EditorLine[];
+  /** Triangles of the distinct parts' meshes the lines hold (a packing by shape needs time to prepare heavy ones). */
+  meshTriangles: number;
   editable: boolean;
   onQuantity: (id: string, quantity: number) => void;
   onRule: (id: string, rule: PlanOrientationRule | null) => void;
@@ -80,7 +82,7 @@ export interface LinesPaneProps {
 export function LinesPane(p: LinesPaneProps) {
   const running = p.packer.status === 'running';
   const total = p.lines.reduce((s, l) => s + l.quantity, 0);
-  const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs) : null;
+  const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs, p.meshTriangles) : null;
   return (
     <View style={styles.pane} testID="plan-lines">
       <View style={styles.section}>

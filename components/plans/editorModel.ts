@@ -51,7 +51,7 @@ export interface Working {
 }
 
 /** Everything the editor knows about a request line, whether saved in the plan or offered from the open lines. */
-export type LineInfo = Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; watertight: boolean; partId: string };
+export type LineInfo = Omit<EditorLine, 'quantity' | 'rule' | 'ruleOverride' | 'placed' | 'colour' | 'added'> & { volumeMm3: number; watertight: boolean; triangles: number; partId: string };
 
 // ---- lines -----------------------------------------------------------------
 
@@ -114,6 +114,7 @@ export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readon
       partRule: o.part.orientation,
       volumeMm3: o.part.volumeMm3,
       watertight: o.part.watertight,
+      triangles: o.part.triangles,
       partId: o.part.id,
     });
   }
@@ -129,6 +130,7 @@ export function lineInfoOf(planLines: readonly PlanLineView[], openLines: readon
       partRule: l.part.orientation,
       volumeMm3: l.part.volumeMm3,
       watertight: l.part.watertight,
+      triangles: l.part.triangles,
       partId: l.part.id,
     });
   }
@@ -555,10 +557,39 @@ export function suggestedShapeSeconds(parts: number): number {
   return Math.max(4, Math.ceil(parts / 50));
 }
 
-/** A note when packing by shape is given less time than its parts are suggested (null when the limit will do). */
-export function shapeTimeNote(parts: number, timeLimitMs: number): string | null {
+/**
+ * The time limit heavy meshes need before a packing by shape can nest them, in seconds: 2.5 s per million
+ * triangles of the distinct parts' meshes, rounded up, from a quarter of a million on (0 below: lighter meshes are
+ * ready within the shortest limit the editor takes). Measured with the engine on a 2-CPU machine (the meshes of
+ * `npm run bench:pack -- --heavy`, docs/benchmarks.md): two rings of a million triangles each and a housing were
+ * packed by their boxes at 3 s and by shape from 4 s; one such ring by its box at 1 s and by shape at 2 s.
+ */
+export function meshShapeSeconds(triangles: number): number {
+  return triangles < 250_000 ? 0 : Math.ceil((2.5 * triangles) / 1e6);
+}
+
+/** Triangles of the distinct parts' meshes among the lines that hold copies (`info`: the lines' parts). */
+export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'triangles'>>): number {
+  const parts = new Map<string, number>();
+  for (const l of lines) {
+    const i = info.get(l.requestLineId);
+    if (i && l.quantity > 0) parts.set(i.partId, i.triangles);
+  }
+  return [...parts.values()].reduce((n, t) => n + t, 0);
+}
+
+/**
+ * A note when packing by shape is given less time than its parts are suggested (null when the limit will do):
+ * for heavy meshes (`triangles`: the distinct parts' meshes together), whatever the limit, since the packing
+ * then falls back to the parts' boxes; for many parts, from 200 on (below, a shorter limit was chosen on purpose).
+ */
+export function shapeTimeNote(parts: number, timeLimitMs: number, triangles = 0): string | null {
+  const heavy = meshShapeSeconds(triangles);
+  if (parts > 0 && timeLimitMs < heavy * 1000) {
+    const millions = (triangles / 1e6).toFixed(1);
+    return `These parts' meshes hold ${millions} million triangles: packing by shape needs about ${heavy} s to prepare them, and with less it packs the parts by their boxes. Give it ${Math.max(heavy, suggestedShapeSeconds(parts))} s or more.`;
+  }
   const s = suggestedShapeSeconds(parts);
-  // Up to 200 parts the default does; a shorter limit there was chosen on purpose.
   if (s <= 4 || timeLimitMs >= s * 1000) return null;
   const first = Math.max(1, Math.round((parts * 2) / 1000));
   return `With ${parts} parts, packing by shape spends about ${first} s on its first layout alone: give it ${s} s or more to nest them lower.`;

@@ -38,6 +38,7 @@ import {
   isStale,
   densityVolumeOf,
   lineInfoOf,
+  meshTrianglesOf,
   buildStackOf,
   dragPreview,
   type DragPreview,
@@ -508,6 +509,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
 
   const linesPane: LinesPaneProps = {
     lines: editorLines,
+    meshTriangles: meshTrianglesOf(lines, lineInfo),
     editable,
     onQuantity: (id: string, quantity: number) => changeLines((ls) => withQuantity(ls, id, quantity)),
     onRule: (id: string, rule: PlanOrientationRule | null) => changeLines((ls) => withRule(ls, id, rule)),

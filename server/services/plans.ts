@@ -131,6 +131,7 @@ export function plansService(db: Database, deps: PlansDeps) {
         sizeMm: [l.size_x_mm, l.size_y_mm, l.size_z_mm],
         volumeMm3: l.volume_mm3,
         watertight: l.watertight,
+        triangles: l.triangles,
         orientation: l.part_orientation,
       },
       request: { id: l.request_id, title: l.request_title, dueDate: l.due_date, priority: l.priority, status: l.request_status },
@@ -236,7 +237,7 @@ export function plansService(db: Database, deps: PlansDeps) {
       return rows
         .map((r) => ({
           requestLineId: r.id,
-          part: { id: r.part_id, name: r.part_name, sizeMm: [r.size_x_mm, r.size_y_mm, r.size_z_mm] as [number, number, number], volumeMm3: r.volume_mm3, watertight: r.watertight, orientation: r.orientation },
+          part: { id: r.part_id, name: r.part_name, sizeMm: [r.size_x_mm, r.size_y_mm, r.size_z_mm] as [number, number, number], volumeMm3: r.volume_mm3, watertight: r.watertight, triangles: r.triangles, orientation: r.orientation },
           request: { id: r.request_id, title: r.title, dueDate: r.due_date, priority: r.priority, materialId: r.material_id },
           quantity: r.quantity,
           plannedCount: Math.max(0, Number(r.held)),

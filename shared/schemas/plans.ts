@@ -203,6 +203,8 @@ const planPartView = z.object({
   volumeMm3: z.number(),
   /** Whether the part's mesh is closed: a layout by shape counts an open one as its box, for the density as for the gaps. */
   watertight: z.boolean(),
+  /** Triangles of the part's mesh: a packing by shape needs time to prepare heavy meshes (the editor says how much). */
+  triangles: z.number(),
   orientation: planOrientationRuleSchema,
 });
 

@@ -62,6 +62,11 @@ describe('creating a plan', () => {
     expect(again.lines.map((l: any) => l.part.watertight)).toEqual([false, true]);
     const open = (await planner.agent.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
     expect(open.find((l: any) => l.part.id === view.lines[0].part.id)?.part.watertight).toBe(false);
+    // So does its mesh's triangle count, as measured on upload (the editor suggests the time heavy meshes need).
+    const [[stored]] = (await running.db.sequelize.query('SELECT triangles FROM parts WHERE id = $1', { bind: [view.lines[0].part.id] })) as [Array<{ triangles: number }>, unknown];
+    expect(stored.triangles).toBeGreaterThan(0);
+    expect(again.lines[0].part.triangles).toBe(stored.triangles);
+    expect(open.find((l: any) => l.part.id === view.lines[0].part.id)?.part.triangles).toBe(stored.triangles);
     expect(view.events).toEqual([expect.objectContaining({ from: null, to: 'draft', by: { id: planner.userId, name: 'Test planner' } })]);
     expect(await plannedCount(req.lines[0].id)).toBe(12);
     expect(await plannedCount(req.lines[1].id)).toBe(50);

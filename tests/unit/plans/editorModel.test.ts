@@ -23,6 +23,7 @@ import {
   repackAvailability,
   repackOf,
   shapeTimeNote,
+  meshTrianglesOf,
   shownLayoutId,
   submitBlockOf,
   withRuleForAll,
@@ -37,7 +38,7 @@ const machine = { chamberMm: [300, 300, 300] as Vec3, layerHeightsMm: [0.1, 0.12
 const material = { spacingMm: 2, marginXyMm: 5, marginBottomMm: 5, marginTopMm: 5, defaultLayerHeightMm: 0.1 };
 const options = { seed: 3, spacingMm: 2, timeLimitMs: 1000, layerHeightMm: 0.1 };
 
-const part = (id: string, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any') => ({ id: `part-${id}`, name: `Part ${id}`, sizeMm, volumeMm3: sizeMm[0] * sizeMm[1] * sizeMm[2], watertight: true, orientation });
+const part = (id: string, sizeMm: Vec3, orientation: 'any' | 'keep_up' | 'fixed' = 'any') => ({ id: `part-${id}`, name: `Part ${id}`, sizeMm, volumeMm3: sizeMm[0] * sizeMm[1] * sizeMm[2], watertight: true, triangles: 12, orientation });
 const planLine = (id: string, quantity: number, sizeMm: Vec3, extra: Partial<PlanLineView> = {}): PlanLineView => ({
   id: `pl-${id}`,
   requestLineId: id,
@@ -393,6 +394,31 @@ describe('the time limit of a packing by shape', () => {
     expect(shapeTimeNote(2000, 40_000)).toBeNull();
     expect(shapeTimeNote(500, 10_000)).toBeNull();
     expect(shapeTimeNote(500, 4000)).toMatch(/about 1 s on its first layout alone: give it 10 s or more/);
+  });
+
+  // Measured with the engine (docs/benchmarks.md, heavy meshes): two 1,000,000-triangle rings and a housing were packed
+  // by their boxes at a 3 s limit and by shape from 4 s; one such ring by its box at 1 s and by shape at 2 s.
+  test('heavy meshes are told the time they need, whatever the number of parts; light ones are not', () => {
+    expect(shapeTimeNote(30, 2000, 2_008_028)).toBe(
+      "These parts' meshes hold 2.0 million triangles: packing by shape needs about 6 s to prepare them, and with less it packs the parts by their boxes. Give it 6 s or more.",
+    );
+    expect(shapeTimeNote(30, 10_000, 2_008_028)).toBeNull();
+    expect(shapeTimeNote(2, 500, 1_000_000)).toMatch(/about 3 s to prepare them/);
+    expect(shapeTimeNote(2, 3000, 1_000_000)).toBeNull();
+    expect(shapeTimeNote(2, 500, 200_000)).toBeNull();
+    // Many parts with heavy meshes: the larger of the two suggestions.
+    expect(shapeTimeNote(2000, 4000, 2_008_028)).toMatch(/needs about 6 s to prepare them.*Give it 40 s or more/);
+  });
+
+  test('the triangles counted are those of the distinct parts the lines hold', () => {
+    const info = lineInfoOf([planLine('a', 2, [10, 10, 10], { part: { ...part('a', [10, 10, 10]), id: 'same', triangles: 600_000 } })], [
+      { ...openLine('b', 3, [10, 10, 10]), part: { ...part('b', [10, 10, 10]), id: 'same', triangles: 600_000 } },
+      { ...openLine('c', 3, [10, 10, 10]), part: { ...part('c', [10, 10, 10]), triangles: 50_000 } },
+    ]);
+    // One part on two lines counts once; a line with no copies counts nothing.
+    expect(meshTrianglesOf([line('a', 2), line('b', 1)], info)).toBe(600_000);
+    expect(meshTrianglesOf([line('a', 2), line('c', 1)], info)).toBe(650_000);
+    expect(meshTrianglesOf([line('a', 0), line('c', 1)], info)).toBe(50_000);
   });
 
   test('up to 200 parts nothing is said, whatever the limit (the default 4 s does)', () => {
