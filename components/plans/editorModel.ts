@@ -21,6 +21,7 @@ import {
   type Placement,
 } from '../../shared/packing';
 import { layerCount } from '../../shared/estimate/layers';
+import { meshShapeSeconds } from '../../shared/packing/shape/prepTime';
 import type { LayoutSummaryView, OpenLineView, PlanLineView, PlanOrientationRule, PlanView } from '../../shared/schemas/plans';
 import type { DraftLine, DraftOptions, PlanDraft } from '../stores/planEditor';
 import { buildInstance, instanceAbove, mergeAbove, mergeLayouts, type InstanceLine, type MachineLike, type MaterialLike } from './instance';
@@ -555,17 +556,6 @@ export function submitBlockOf(layouts: readonly Pick<LayoutSummaryView, 'chosen'
  */
 export function suggestedShapeSeconds(parts: number): number {
   return Math.max(4, Math.ceil(parts / 50));
-}
-
-/**
- * The time limit heavy meshes need before a packing by shape can nest them, in seconds: 2.5 s per million
- * triangles of the distinct parts' meshes, rounded up, from a quarter of a million on (0 below: lighter meshes are
- * ready within the shortest limit the editor takes). Measured with the engine on a 2-CPU machine (the meshes of
- * `npm run bench:pack -- --heavy`, docs/benchmarks.md): two rings of a million triangles each and a housing were
- * packed by their boxes at 3 s and by shape from 4 s; one such ring by its box at 1 s and by shape at 2 s.
- */
-export function meshShapeSeconds(triangles: number): number {
-  return triangles < 250_000 ? 0 : Math.ceil((2.5 * triangles) / 1e6);
 }
 
 /** Triangles of the distinct parts' meshes among the lines that hold copies (`info`: the lines' parts). */

@@ -37,6 +37,7 @@ import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
 import { bestPair, buildNests, lidsMayHold, type Nest } from './nest';
+import { meshShapeSeconds } from './prepTime';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
@@ -359,6 +360,8 @@ function* boxesInstead(
   const total = used.reduce((n, p) => n + triangles(p), 0);
   if (heaviest) {
     const count = (n: number) => n.toLocaleString('en-US');
+    // What the meshes are measured to need, or on a slower machine than that measure, twice what was given.
+    const more = Math.max(meshShapeSeconds(total), Math.ceil((2 * instance.timeLimitMs) / 1000));
     const what =
       used.length === 1
         ? `the mesh of "${heaviest.id}" (${count(total)} triangles) takes`
@@ -367,7 +370,7 @@ function* boxesInstead(
       {
         id: heaviest.id,
         code: 'packed-by-box',
-        message: `Packed by the parts' boxes: ${what} longer to prepare for packing by shape than the ${instance.timeLimitMs / 1000} s limit allows; give the packing more time to nest them`,
+        message: `Packed by the parts' boxes: ${what} longer to prepare for packing by shape than the ${instance.timeLimitMs / 1000} s limit allows; give it ${more} s or more to nest them`,
       },
     ];
   }

@@ -5,6 +5,7 @@ export { shapeParts, boxMesh, type ShapePart } from './parts';
 export { areaProfile, type PlacedPart } from './area';
 export { buildBvh, PlacedBvh, surfaceDistance, blocksLift, containsPoint, type Bvh } from './bvh';
 export { columnProfile, type Profile } from './profile';
+export { meshShapeSeconds } from './prepTime';
 export { packV2Sync, packV2, createPackingV2 } from './run';
 export { generateShapeMix, type ShapeMixOptions } from './mix';
 export { summariseShapeLayout, finishResult } from './result';

@@ -35,7 +35,7 @@ test('meshes too heavy for the limit: packed by their boxes, said so, and valid 
   const inst = instance(1000);
   const result = createShapePacking(inst, { now: fast }).runSync();
   expect(result.warnings).toEqual([expect.objectContaining({ id: 'ring', code: 'packed-by-box' })]);
-  expect(result.warnings![0].message).toMatch(/^Packed by the parts' boxes: their meshes \(10,220 triangles; "ring" the largest with 10,000\) take longer .* than the 1 s limit allows/);
+  expect(result.warnings![0].message).toMatch(/^Packed by the parts' boxes: their meshes \(10,220 triangles; "ring" the largest with 10,000\) take longer .* than the 1 s limit allows; give it 2 s or more to nest them$/);
   expect(validateShapeLayout(inst, result)).toEqual([]);
   expect(result.unplaced).toEqual([]);
   // A box layout: any two placed boxes are the spacing apart along some axis (packing.md, version 1's rule).
