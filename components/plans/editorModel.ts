@@ -570,7 +570,7 @@ export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' 
 
 /**
  * A note when packing by shape is given less time than its parts are suggested (null when the limit will do):
- * for heavy meshes (`triangles`: the distinct parts' meshes together), whatever the limit, since the packing
+ * for heavy meshes (`triangles`: the distinct parts' meshes together) however few the parts, since the packing
  * then falls back to the parts' boxes; for many parts, from 200 on (below, a shorter limit was chosen on purpose).
  */
 export function shapeTimeNote(parts: number, timeLimitMs: number, triangles = 0): string | null {

@@ -26,12 +26,12 @@
 import { composeRotations, placementTransform, ROTATION_CODES, rotatedExtent, rotationMatrix } from '../../geometry/rotations';
 import { usableRegion } from '../geometry';
 import { createRandom, type Random } from '../prng';
-import type { PackInstanceV2, PackResultV2, PackWarning, PlacementV2, Vec3 } from '../types';
+import type { PackInstance, PackInstanceV2, PackResult, PackResultV2, PackWarning, PlacementV2, Vec3 } from '../types';
 import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
 import { boxInstance, fromBoxResult, rotationForBox } from './boxfit';
-import { createPacking, packSync } from '../engine';
+import { createPacking, packSync, type PackOptions } from '../engine';
 import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
@@ -333,10 +333,22 @@ function* treesInTime(parts: ShapePart[], now: () => number, by: number): Genera
   return true;
 }
 
+/** The box engine's search, its pauses this run's: `paused` (progress) is called at each, and a stop gets through. */
+function* boxSearch(boxes: PackInstance, options: PackOptions, stop: () => boolean, paused: () => void): Generator<void, PackResult, void> {
+  const search = createPacking(boxes, options).steps({ shouldStop: stop });
+  let step = search.next();
+  while (!step.done) {
+    paused();
+    yield;
+    step = search.next();
+  }
+  return step.value;
+}
+
 /**
- * The parts packed by their boxes, for a quarter of the time left (the area profile of the meshes comes after), and said
- * so: what a run whose meshes are too heavy for its limit returns. Boxes kept the spacing apart keep the meshes in
- * them as far apart, and listed bottom first they lift out (./boxfit.ts), so this layout needs no check.
+ * The parts packed by their boxes, for a quarter of the time left (the area profile of the meshes comes after),
+ * and said so: what a run whose meshes are too heavy for its limit returns. Boxes kept the spacing apart keep the
+ * meshes in them as far apart, and listed bottom first they lift out (./boxfit.ts), so this layout needs no check.
  */
 function* boxesInstead(
   instance: PackInstanceV2,
@@ -347,14 +359,8 @@ function* boxesInstead(
   stop: () => boolean,
 ): Generator<void, PackResultV2, void> {
   const ms = Math.max(0, Math.round((deadline - now()) / 4));
-  const search = createPacking(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now }).steps({ shouldStop: stop });
-  let step = search.next();
-  while (!step.done) {
-    hooks.onProgress?.('greedy', 0, null);
-    yield;
-    step = search.next();
-  }
-  const result = fromBoxResult(instance, parts, step.value);
+  const boxes = yield* boxSearch(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now }, stop, () => hooks.onProgress?.('greedy', 0, null));
+  const result = fromBoxResult(instance, parts, boxes);
   const used = parts.filter((p) => p.quantity > 0 && p.hasMesh);
   const heaviest = used.reduce<ShapePart | null>((h, p) => (!h || triangles(p) > triangles(h) ? p : h), null);
   const total = used.reduce((n, p) => n + triangles(p), 0);
@@ -399,11 +405,11 @@ function* solve(
   const cell = options.cellMm ?? defaultCell(instance);
   const warnings: PackWarning[] = [];
   let phase: ShapePhase = 'greedy';
-  // Timed, heavy meshes must not take the run past its limit: their profiles are drawn by half of it (at the rate
-  // measured so far) and their trees for the exact check built by three quarters, or the parts are packed by their
-  // boxes (which keep the spacing between any two meshes they hold) in what is left, saying so. Under a quarter of
-  // a second the clock tells more of a cold start than of the meshes, so the shares are never shorter than that.
-  // With a cap on the runs nothing here watches the clock.
+  // Timed, heavy meshes must not take the run past its limit: their probe profiles are drawn by half of it (the
+  // clock read after each) and their trees for the exact check built by three quarters, or the parts are packed by
+  // their boxes (which keep the spacing between any two meshes they hold) in what is left, saying so. Under a
+  // quarter of a second the clock tells more of a cold start than of the meshes, so the shares are never shorter
+  // than that. With a cap on the runs nothing here watches the clock.
   const timed = options.maxRuns === undefined;
   const by = (share: number, floorMs: number) => start + Math.max(share * instance.timeLimitMs, floorMs);
   const prepared = prepareKinds(instance, parts, cell, warnings, timed ? { now, probesBy: by(0.5, 250), turnsBy: by(0.35, 150) } : null);
@@ -477,14 +483,7 @@ function* solve(
           ],
         }
       : base;
-    const search = createPacking(boxed, { now, maxCompletions, yieldMs }).steps({ shouldStop: stop });
-    let step = search.next();
-    while (!step.done) {
-      hooks.onProgress?.(phase, share(), out.best);
-      yield;
-      step = search.next();
-    }
-    const boxes = step.value;
+    const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
     const items: SettleItem[] = [];
     // Bottom first, as the settling needs them; a nest's holder before what it holds.
     for (const pl of [...boxes.placements].sort((a, b) => a.position[2] - b.position[2])) {
