@@ -35,10 +35,13 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
       const clock = () => globalThis.performance.now();
       try {
         let packing: Run;
+        // Parts the worker sends to the engine as boxes (no closed mesh to be had): the outcome says so.
+        let boxed: PackWarning[] = [];
         if (options.shapes) {
           void onProgress({ phase: 'greedy', shareDone: 0 });
           const shaped = await shapeInstanceOf(parsed.instance, options.shapes, meshes, fetchBytes);
           if (!shaped.ok) return { ok: false, runId, problems: shaped.problems };
+          boxed = shaped.boxed;
           // A "pack-result/2" places parts as a "pack-result/1" does, each with its transform besides: the codec carries both.
           packing = createPackingV2(shaped.instance, { yieldMs }) as unknown as Run;
         } else {
@@ -63,8 +66,8 @@ export function createPackerApi(fetchBytes: FetchBytes = fetchSameOrigin): Packe
           },
         });
         const layout = encodeLayout(result);
-        const warnings = (result as { warnings?: PackWarning[] }).warnings;
-        const outcome: PackerOutcome = { ok: true, runId, cancelled: cancelled.has(runId), layout, ...(warnings && warnings.length > 0 ? { warnings } : {}) };
+        const warnings = [...boxed, ...((result as { warnings?: PackWarning[] }).warnings ?? [])];
+        const outcome: PackerOutcome = { ok: true, runId, cancelled: cancelled.has(runId), layout, ...(warnings.length > 0 ? { warnings } : {}) };
         return Comlink.transfer(outcome, layoutTransferables(layout));
       } finally {
         running.delete(runId);

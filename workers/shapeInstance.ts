@@ -3,11 +3,12 @@
  * worker: each line's part as its resting mesh (the stored file turned as the
  * part is stored, its box moved to the origin: the same mesh the server's
  * check and slices read), turned only as the line's rule allows. A part
- * without a closed mesh, or whose file cannot be had, is packed by its box.
+ * without a closed mesh, or whose file cannot be had, is packed by its box,
+ * and the outcome says so with the reason.
  */
 import { readPartMeshes, type RestingMeshCache } from '../shared/geometry/layoutSlices';
 import { ROTATION_COUNT } from '../shared/geometry/rotations';
-import { INSTANCE_FORMAT_V2, type FieldProblem, type PackInstance, type PackInstanceV2 } from '../shared/packing';
+import { INSTANCE_FORMAT_V2, type FieldProblem, type PackInstance, type PackInstanceV2, type PackWarning } from '../shared/packing';
 import type { LayoutProfilePart } from './mesh.protocol';
 import { partFiles, type FetchBytes } from './partMeshes';
 
@@ -16,7 +17,11 @@ export interface ShapeFiles {
   parts: Array<{ id: string; file: LayoutProfilePart; rotations: number[] }>;
 }
 
-export type ShapeInstanceOutcome = { ok: true; instance: PackInstanceV2 } | { ok: false; problems: FieldProblem[] };
+/**
+ * `boxed`: one warning per part of the instance that goes to the engine by its box because its file gave no
+ * closed mesh, with the reason (code "no-mesh"): the engine cannot tell such a part from one given by its size.
+ */
+export type ShapeInstanceOutcome = { ok: true; instance: PackInstanceV2; boxed: PackWarning[] } | { ok: false; problems: FieldProblem[] };
 
 function problemsOf(instance: PackInstance, shapes: ShapeFiles): FieldProblem[] {
   if (!shapes || !Array.isArray(shapes.parts)) return [{ field: 'shapes.parts', message: 'must list the parts with their files' }];
@@ -50,9 +55,15 @@ export async function shapeInstanceOf(instance: PackInstance, shapes: ShapeFiles
       files.push(f);
     }
   }
-  const { sources } = readPartMeshes(await partFiles(files, meshes, fetchBytes), meshes);
+  const { sources, boxReasons } = readPartMeshes(await partFiles(files, meshes, fetchBytes), meshes);
+  const boxed: PackWarning[] = [];
+  for (const part of instance.parts) {
+    const why = boxReasons.find((b) => b.part === keys.indexOf(byId.get(part.id)!.file.key));
+    if (why && part.quantity > 0) boxed.push({ id: part.id, code: 'no-mesh', message: `"${part.id}" was packed by its bounding box: ${why.reason}` });
+  }
   return {
     ok: true,
+    boxed,
     instance: {
       // The build as it is; only the parts change, to meshes and rotations.
       ...instance,

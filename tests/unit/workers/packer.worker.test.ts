@@ -220,6 +220,28 @@ describe('packing by shape in the worker', () => {
     }
   });
 
+  test('a part whose file gives no closed mesh is packed by its box, and the outcome names it with the reason', async () => {
+    // The peg's file cannot be downloaded; the frame's is stored as not closed.
+    const { remote, close } = connect(async (url) => (url === '/files/peg' ? null : files[url] ?? null));
+    try {
+      const open = { parts: [{ ...shapes.parts[0], file: { ...file('frame'), key: 'open-frame', watertight: false } }, shapes.parts[1]] };
+      const outcome = await remote.start(11, { ...nestInstance, timeLimitMs: 300 }, Comlink.proxy(() => undefined), { shapes: open });
+      expect(outcome.ok).toBe(true);
+      if (!outcome.ok) return;
+      expect(outcome.warnings).toEqual([
+        { id: 'frame', code: 'no-mesh', message: '"frame" was packed by its bounding box: "frame.stl" is not a closed, consistently oriented mesh, so its sections are not defined' },
+        { id: 'peg', code: 'no-mesh', message: '"peg" was packed by its bounding box: the stored file "peg.stl" could not be read' },
+      ]);
+      const decoded = decodeLayout(outcome.layout);
+      if (!decoded.ok) throw new Error('layout must decode');
+      // By their boxes the pegs cannot stand in the frames' holes: they lie beside or on the frames, and no placement carries a transform.
+      expect(decoded.result.placements).toHaveLength(4);
+      expect(decoded.result.height).toBeGreaterThan(25 + 1);
+    } finally {
+      close();
+    }
+  });
+
   test('cancel gets through while the shape packing searches its box layout, and ends it with its best layout so far', async () => {
     const { remote, close } = connect(async (url) => files[url] ?? null);
     try {
