@@ -397,7 +397,7 @@ describe('the time limit of a packing by shape', () => {
   });
 
   // Measured with the engine (docs/benchmarks.md, heavy meshes): two 1,000,000-triangle rings and a housing were packed
-  // by their boxes at a 3 s limit and by shape from 4 s; one such ring by its box at 1 s and by shape at 2 s.
+  // by their boxes at a 4 s limit and by shape from 5 s; one such ring by its box at 2.5 s and by shape at 3 s.
   test('heavy meshes are told the time they need, whatever the number of parts; light ones are not', () => {
     expect(shapeTimeNote(30, 2000, 2_008_028)).toBe(
       "These parts' meshes hold 2.0 million triangles: packing by shape needs about 6 s to prepare them, and with less it packs the parts by their boxes. Give it 6 s or more.",
