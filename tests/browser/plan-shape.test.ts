@@ -106,6 +106,35 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.context().close();
 });
 
+test('wide (1440 x 900): a part whose mesh is not closed is packed by its box, and the editor says which and why', async () => {
+  // The peg's mesh with one triangle taken out: it has an open edge, so it has no inside to nest by.
+  const open = { positions: peg.positions, indices: peg.indices.slice(0, peg.indices.length - 3) };
+  const n = ++requests;
+  await urgentDemoRequest(
+    served,
+    [
+      { name: `Shape frame ${n}`, sizeMm: [60, 60, 20], quantity: 2, orientation: 'keep_up', mesh: frame },
+      { name: `Open peg ${n}`, sizeMm: [16, 16, 10], quantity: 2, orientation: 'keep_up', mesh: open },
+    ],
+    `Open mesh ${n}`,
+  );
+  const page = await newPage(served, WIDE);
+  await signIn(page, 'planner@tinkerfin.example');
+  await page.goto('/plans');
+  await page.getByTestId('plans-new').click();
+  await page.getByTestId('new-plan-lines').waitFor();
+  await page.getByTestId('new-plan-create').click();
+  await page.getByTestId('screen-plan-editor').waitFor();
+  await packByShape(page);
+  const notes = page.getByTestId('pack-notes');
+  await notes.getByText(`"Open peg ${n}" was packed by its bounding box: "Open peg ${n}.stl" is not a closed, consistently oriented mesh`, { exact: false }).waitFor({ timeout: 30_000 });
+  // The closed frame is not named: it was packed by its shape.
+  expect(await notes.textContent()).not.toContain('Shape frame');
+  await notes.scrollIntoViewIfNeeded();
+  await screenshot(page, 'plan-editor-open-mesh-by-box-wide');
+  await page.context().close();
+});
+
 async function boxesShown(page: Page): Promise<Box[]> {
   await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
   const n = await probe<number>(page, 'count');

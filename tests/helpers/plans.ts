@@ -65,8 +65,8 @@ export async function makeRequest(
                           uploaded_size_mm, rotation_deg, size_x_mm, size_y_mm, size_z_mm, volume_mm3, area_mm2, triangles,
                           watertight, metrics, warnings, orientation, default_material_id, uploaded_by, created_at, updated_at)
        VALUES (gen_random_uuid(), $1, $2, '{}', $3, $4, 'stl', 'mm', false, 0, $5::double precision[], '{0,0,0}', $6, $7, $8, $9, $10, $11,
-               true, $12::jsonb, '[]'::jsonb, $13, $14, $15, now(), now()) RETURNING id`,
-      [labId, part.name, key, `${part.name}.stl`, [x, y, z], x, y, z, metrics.volumeMm3, metrics.areaMm2, metrics.triangles, JSON.stringify(metrics), part.orientation ?? 'any', materialId, userId],
+               $16, $12::jsonb, '[]'::jsonb, $13, $14, $15, now(), now()) RETURNING id`,
+      [labId, part.name, key, `${part.name}.stl`, [x, y, z], x, y, z, metrics.volumeMm3, metrics.areaMm2, metrics.triangles, JSON.stringify(metrics), part.orientation ?? 'any', materialId, userId, metrics.watertight],
     );
     const [[line]] = await q(
       `INSERT INTO request_lines (id, request_id, part_id, position, quantity, planned_count, printed_count, created_at, updated_at)
