@@ -20,20 +20,21 @@ const peg = prism([[0, 0], [16, 0], [16, 16], [0, 16]], 0, 10);
 
 /** An urgent request of frames and pegs in the demo lab, so the new plan form starts with them. */
 let requests = 0;
-async function framesAndPegs() {
+async function framesAndPegs(o: { quantity: number; pegName: string; pegMesh: typeof peg } = { quantity: 6, pegName: 'Shape peg', pegMesh: peg }) {
   const n = ++requests;
   await urgentDemoRequest(
     served,
     [
-      { name: `Shape frame ${n}`, sizeMm: [60, 60, 20], quantity: 6, orientation: 'keep_up', mesh: frame },
-      { name: `Shape peg ${n}`, sizeMm: [16, 16, 10], quantity: 6, orientation: 'keep_up', mesh: peg },
+      { name: `Shape frame ${n}`, sizeMm: [60, 60, 20], quantity: o.quantity, orientation: 'keep_up', mesh: frame },
+      { name: `${o.pegName} ${n}`, sizeMm: [16, 16, 10], quantity: o.quantity, orientation: 'keep_up', mesh: o.pegMesh },
     ],
     `Shape check ${n}`,
   );
+  return n;
 }
 
-async function newPlan(page: Page) {
-  await framesAndPegs();
+async function newPlan(page: Page, request: () => Promise<unknown> = framesAndPegs) {
+  await request();
   await signIn(page, 'planner@tinkerfin.example');
   await page.goto('/plans');
   await page.getByTestId('plans-new').click();
@@ -109,22 +110,9 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
 test('wide (1440 x 900): a part whose mesh is not closed is packed by its box, and the editor says which and why', async () => {
   // The peg's mesh with one triangle taken out: it has an open edge, so it has no inside to nest by.
   const open = { positions: peg.positions, indices: peg.indices.slice(0, peg.indices.length - 3) };
-  const n = ++requests;
-  await urgentDemoRequest(
-    served,
-    [
-      { name: `Shape frame ${n}`, sizeMm: [60, 60, 20], quantity: 2, orientation: 'keep_up', mesh: frame },
-      { name: `Open peg ${n}`, sizeMm: [16, 16, 10], quantity: 2, orientation: 'keep_up', mesh: open },
-    ],
-    `Open mesh ${n}`,
-  );
+  let n = 0;
   const page = await newPage(served, WIDE);
-  await signIn(page, 'planner@tinkerfin.example');
-  await page.goto('/plans');
-  await page.getByTestId('plans-new').click();
-  await page.getByTestId('new-plan-lines').waitFor();
-  await page.getByTestId('new-plan-create').click();
-  await page.getByTestId('screen-plan-editor').waitFor();
+  await newPlan(page, async () => (n = await framesAndPegs({ quantity: 2, pegName: 'Open peg', pegMesh: open })));
   await packByShape(page);
   const notes = page.getByTestId('pack-notes');
   await notes.getByText(`"Open peg ${n}" was packed by its bounding box: "Open peg ${n}.stl" is not a closed, consistently oriented mesh`, { exact: false }).waitFor({ timeout: 30_000 });
