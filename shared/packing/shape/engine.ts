@@ -419,11 +419,10 @@ function* solve(
   const warnings: PackWarning[] = [];
   let phase: ShapePhase = 'greedy';
   // Timed, heavy meshes must not take the run past its limit: their probe profiles are drawn by half of it (the
-  // clock read after each) and their trees for the exact check started by three quarters and foreseen done by
-  // nine tenths, or the parts are packed by
-  // their boxes (which keep the spacing between any two meshes they hold) in what is left, saying so. Under a
-  // quarter of a second the clock tells more of a cold start than of the meshes, so the shares are never shorter
-  // than that. With a cap on the runs nothing here watches the clock.
+  // clock read after each) and their trees for the exact check begun by three quarters and foreseen done by nine
+  // tenths, or the parts are packed by their boxes (which keep the spacing between any two meshes they hold) in
+  // what is left, saying so. Under a quarter of a second the clock tells more of a cold start than of the meshes,
+  // so the shares are never shorter than that. With a cap on the runs nothing here watches the clock.
   const timed = options.maxRuns === undefined;
   const by = (share: number, floorMs: number) => start + Math.max(share * instance.timeLimitMs, floorMs);
   const prepared = prepareKinds(instance, parts, cell, warnings, timed ? { now, probesBy: by(0.5, 250), turnsBy: by(0.35, 150) } : null);
