@@ -58,8 +58,12 @@ export async function shapeInstanceOf(instance: PackInstance, shapes: ShapeFiles
   const { sources, boxReasons } = readPartMeshes(await partFiles(files, meshes, fetchBytes), meshes);
   const boxed: PackWarning[] = [];
   for (const part of instance.parts) {
-    const why = boxReasons.find((b) => b.part === keys.indexOf(byId.get(part.id)!.file.key));
-    if (why && part.quantity > 0) boxed.push({ id: part.id, code: 'no-mesh', message: `"${part.id}" was packed by its bounding box: ${why.reason}` });
+    const file = byId.get(part.id)!.file;
+    const why = boxReasons.find((b) => b.part === keys.indexOf(file.key));
+    if (!why || part.quantity === 0) continue;
+    // A mesh that is not closed has no inside to nest by; a file that cannot be had or read, its reason as given.
+    const reason = file.watertight ? why.reason : `its mesh "${file.filename}" is not closed and consistently oriented, so it has no inside to nest by`;
+    boxed.push({ id: part.id, code: 'no-mesh', message: `"${part.id}" was packed by its bounding box: ${reason}` });
   }
   return {
     ok: true,

@@ -6,7 +6,7 @@ import type { DraftOptions } from '../stores/planEditor';
 import { colors, radius, spacing } from '../theme';
 import { Badge, Button, Choice, Text, TextInput } from '../ui';
 import { priorityLabel, priorityTone } from '../requests/labels';
-import { shapeTimeNote } from './editorModel';
+import { openMeshNote, shapeTimeNote } from './editorModel';
 import { RULE_LABELS, RULE_ORIENTATIONS } from './instance';
 
 export interface EditorLine {
@@ -60,6 +60,8 @@ export interface LinesPaneProps {
   lines: EditorLine[];
   /** Triangles of the distinct parts' meshes the lines hold (a packing by shape needs time to prepare heavy ones). */
   meshTriangles: number;
+  /** Names of the distinct parts the lines hold whose mesh is not closed (a packing by shape packs them by their boxes). */
+  openMeshParts: string[];
   editable: boolean;
   onQuantity: (id: string, quantity: number) => void;
   onRule: (id: string, rule: PlanOrientationRule | null) => void;
@@ -83,6 +85,7 @@ export function LinesPane(p: LinesPaneProps) {
   const running = p.packer.status === 'running';
   const total = p.lines.reduce((s, l) => s + l.quantity, 0);
   const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs, p.meshTriangles) : null;
+  const openNote = p.options.fit === 'shape' ? openMeshNote(p.openMeshParts) : null;
   return (
     <View style={styles.pane} testID="plan-lines">
       <View style={styles.section}>
@@ -172,6 +175,11 @@ export function LinesPane(p: LinesPaneProps) {
           {p.options.fit === 'shape' ? (
             <Text variant="caption" color="inkFaint" testID="pack-fit-note">
               Parts nest into each other's hollows, and every part can still be lifted straight out. The parts' files are downloaded first; a part without a closed mesh is packed by its box. The server checks the meshes again when you keep the layout.
+            </Text>
+          ) : null}
+          {openNote ? (
+            <Text variant="caption" color="ember" testID="pack-open-note">
+              {openNote}
             </Text>
           ) : null}
           {timeNote ? (

@@ -569,6 +569,27 @@ export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' 
 }
 
 /**
+ * The distinct parts among the lines that hold copies whose mesh is not closed, by name, in the lines' order:
+ * packing by shape packs them by their boxes (`info`: the lines' parts).
+ */
+export function openMeshPartsOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'partName' | 'watertight'>>): string[] {
+  const parts = new Map<string, string>();
+  for (const l of lines) {
+    const i = info.get(l.requestLineId);
+    if (i && l.quantity > 0 && !i.watertight) parts.set(i.partId, i.partName);
+  }
+  return [...parts.values()];
+}
+
+/** Before packing by shape: which parts it will pack by their boxes, their meshes not being closed (null when none). */
+export function openMeshNote(names: readonly string[]): string | null {
+  if (names.length === 0) return null;
+  const shown = names.length > 4 ? `${names.slice(0, 3).map((n) => `"${n}"`).join(', ')} and ${names.length - 3} more` : names.map((n) => `"${n}"`).join(names.length === 2 ? ' and ' : ', ');
+  const one = names.length === 1;
+  return `${shown} ${one ? 'has a mesh that is' : 'have meshes that are'} not closed: packing by shape packs ${one ? 'it by its box' : 'them by their boxes'}. Upload a closed mesh as a new revision of ${one ? 'the part' : 'each part'} to nest ${one ? 'it' : 'them'}.`;
+}
+
+/**
  * A note when packing by shape is given less time than its parts are suggested (null when the limit will do):
  * for heavy meshes (`triangles`: the distinct parts' meshes together) however few the parts, since the packing
  * then falls back to the parts' boxes; for many parts, from 200 on (below, a shorter limit was chosen on purpose).

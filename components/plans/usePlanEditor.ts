@@ -39,6 +39,7 @@ import {
   densityVolumeOf,
   lineInfoOf,
   meshTrianglesOf,
+  openMeshPartsOf,
   buildStackOf,
   dragPreview,
   type DragPreview,
@@ -510,6 +511,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const linesPane: LinesPaneProps = {
     lines: editorLines,
     meshTriangles: meshTrianglesOf(lines, lineInfo),
+    openMeshParts: openMeshPartsOf(lines, lineInfo),
     editable,
     onQuantity: (id: string, quantity: number) => changeLines((ls) => withQuantity(ls, id, quantity)),
     onRule: (id: string, rule: PlanOrientationRule | null) => changeLines((ls) => withRule(ls, id, rule)),

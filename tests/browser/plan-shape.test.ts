@@ -107,21 +107,27 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.context().close();
 });
 
-test('wide (1440 x 900): a part whose mesh is not closed is packed by its box, and the editor says which and why', async () => {
-  // The peg's mesh with one triangle taken out: it has an open edge, so it has no inside to nest by.
-  const open = { positions: peg.positions, indices: peg.indices.slice(0, peg.indices.length - 3) };
-  let n = 0;
-  const page = await newPage(served, WIDE);
-  await newPlan(page, async () => (n = await framesAndPegs({ quantity: 2, pegName: 'Open peg', pegMesh: open })));
-  await packByShape(page);
-  const notes = page.getByTestId('pack-notes');
-  await notes.getByText(`"Open peg ${n}" was packed by its bounding box: "Open peg ${n}.stl" is not a closed, consistently oriented mesh`, { exact: false }).waitFor({ timeout: 30_000 });
-  // The closed frame is not named: it was packed by its shape.
-  expect(await notes.textContent()).not.toContain('Shape frame');
-  await notes.scrollIntoViewIfNeeded();
-  await screenshot(page, 'plan-editor-open-mesh-by-box-wide');
-  await page.context().close();
-});
+for (const [size, viewport] of [['wide (1440 x 900)', WIDE], ['phone (390 x 844)', PHONE]] as const) {
+  test(`${size}: a part whose mesh is not closed is packed by its box, and the editor says which and why`, async () => {
+    // The peg's mesh with one triangle taken out: it has an open edge, so it has no inside to nest by.
+    const open = { positions: peg.positions, indices: peg.indices.slice(0, peg.indices.length - 3) };
+    let n = 0;
+    const page = await newPage(served, viewport);
+    await newPlan(page, async () => (n = await framesAndPegs({ quantity: 2, pegName: 'Open peg', pegMesh: open })));
+    if (viewport === PHONE) await page.getByTestId('plan-tab-lines').click();
+    // Before the run, the choice of shapes names it.
+    await page.getByTestId('pack-fit-shape').click();
+    await page.getByTestId('pack-open-note').getByText(`"Open peg ${n}" has a mesh that is not closed: packing by shape packs it by its box.`, { exact: false }).waitFor();
+    await packByShape(page);
+    const notes = page.getByTestId('pack-notes');
+    await notes.getByText(`"Open peg ${n}" was packed by its bounding box: its mesh "Open peg ${n}.stl" is not closed`, { exact: false }).waitFor({ timeout: 30_000 });
+    // The closed frame is not named: it was packed by its shape.
+    expect(await notes.textContent()).not.toContain('Shape frame');
+    await page.getByTestId('pack-open-note').scrollIntoViewIfNeeded();
+    await screenshot(page, `plan-editor-open-mesh-by-box-${viewport === PHONE ? 'phone' : 'wide'}`);
+    await page.context().close();
+  });
+}
 
 async function boxesShown(page: Page): Promise<Box[]> {
   await page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');

@@ -24,6 +24,8 @@ import {
   repackOf,
   shapeTimeNote,
   meshTrianglesOf,
+  openMeshNote,
+  openMeshPartsOf,
   shownLayoutId,
   submitBlockOf,
   withRuleForAll,
@@ -419,6 +421,21 @@ describe('the time limit of a packing by shape', () => {
     expect(meshTrianglesOf([line('a', 2), line('b', 1)], info)).toBe(600_000);
     expect(meshTrianglesOf([line('a', 2), line('c', 1)], info)).toBe(650_000);
     expect(meshTrianglesOf([line('a', 0), line('c', 1)], info)).toBe(50_000);
+  });
+
+  test('before packing by shape, the parts whose mesh is not closed are named: they will be packed by their boxes', () => {
+    const open = (id: string) => ({ ...part(id, [10, 10, 10]), id: `open-${id}`, name: `Open ${id}`, watertight: false });
+    const info = lineInfoOf([planLine('a', 2, [10, 10, 10], { part: open('a') }), planLine('b', 1, [10, 10, 10])], [
+      { ...openLine('c', 3, [10, 10, 10]), part: open('a') },
+      { ...openLine('d', 3, [10, 10, 10]), part: open('d') },
+    ]);
+    // One part on two lines is named once; a closed one and a line with no copies are not named.
+    expect(openMeshPartsOf([line('a', 2), line('b', 1), line('c', 1), line('d', 0)], info)).toEqual(['Open a']);
+    expect(openMeshPartsOf([line('b', 1)], info)).toEqual([]);
+    expect(openMeshNote([])).toBeNull();
+    expect(openMeshNote(['Open a'])).toBe('"Open a" has a mesh that is not closed: packing by shape packs it by its box. Upload a closed mesh as a new revision of the part to nest it.');
+    expect(openMeshNote(['A', 'B'])).toMatch(/^"A" and "B" have meshes that are not closed: packing by shape packs them by their boxes\. .* of each part to nest them\.$/);
+    expect(openMeshNote(['A', 'B', 'C', 'D', 'E', 'F'])).toMatch(/^"A", "B", "C" and 3 more have meshes/);
   });
 
   test('up to 200 parts nothing is said, whatever the limit (the default 4 s does)', () => {

@@ -229,7 +229,7 @@ describe('packing by shape in the worker', () => {
       expect(outcome.ok).toBe(true);
       if (!outcome.ok) return;
       expect(outcome.warnings).toEqual([
-        { id: 'frame', code: 'no-mesh', message: '"frame" was packed by its bounding box: "frame.stl" is not a closed, consistently oriented mesh, so its sections are not defined' },
+        { id: 'frame', code: 'no-mesh', message: '"frame" was packed by its bounding box: its mesh "frame.stl" is not closed and consistently oriented, so it has no inside to nest by' },
         { id: 'peg', code: 'no-mesh', message: '"peg" was packed by its bounding box: the stored file "peg.stl" could not be read' },
       ]);
       const decoded = decodeLayout(outcome.layout);
