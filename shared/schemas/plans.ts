@@ -201,7 +201,10 @@ const planPartView = z.object({
   name: z.string(),
   sizeMm: vec3View,
   volumeMm3: z.number(),
-  /** Whether the part's mesh is closed: a layout by shape counts an open one as its box, for the density as for the gaps. */
+  /**
+   * Whether the part's mesh is closed (watertight and consistently oriented, as the server's check and slices count
+   * it): a layout by shape counts an open one as its box, for the density as for the gaps.
+   */
   watertight: z.boolean(),
   /** Triangles of the part's mesh: a packing by shape needs time to prepare heavy meshes (the editor says how much). */
   triangles: z.number(),

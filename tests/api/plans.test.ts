@@ -62,6 +62,12 @@ describe('creating a plan', () => {
     expect(again.lines.map((l: any) => l.part.watertight)).toEqual([false, true]);
     const open = (await planner.agent.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
     expect(open.find((l: any) => l.part.id === view.lines[0].part.id)?.part.watertight).toBe(false);
+    // Closed means watertight and consistently oriented, as the server's check and slices count it.
+    await running.db.sequelize.query(`UPDATE parts SET watertight = true, metrics = jsonb_set(metrics, '{oriented}', 'false') WHERE id = $1`, { bind: [view.lines[0].part.id] });
+    const unoriented = (await planner.agent.get(`/api/labs/${labId}/plans/${res.body.id}`)).body;
+    expect(unoriented.lines.map((l: any) => l.part.watertight)).toEqual([false, true]);
+    const openAgain = (await planner.agent.get(`/api/labs/${labId}/plans/open-lines?materialId=${materialId}`)).body;
+    expect(openAgain.find((l: any) => l.part.id === view.lines[0].part.id)?.part.watertight).toBe(false);
     // So does its mesh's triangle count, as measured on upload (the editor suggests the time heavy meshes need).
     const [[stored]] = (await running.db.sequelize.query('SELECT triangles FROM parts WHERE id = $1', { bind: [view.lines[0].part.id] })) as [Array<{ triangles: number }>, unknown];
     expect(stored.triangles).toBeGreaterThan(0);

@@ -349,7 +349,7 @@ export function plansRepository(db: Database) {
             required: true,
             include: [
               { model: Request, as: 'request', required: true, attributes: ['id', 'title', 'dueDate', 'priority', 'status'] },
-              { model: Part, as: 'part', required: true, attributes: ['id', 'name', 'sizeXMm', 'sizeYMm', 'sizeZMm', 'volumeMm3', 'watertight', 'triangles', 'orientation'] },
+              { model: Part, as: 'part', required: true, attributes: ['id', 'name', 'sizeXMm', 'sizeYMm', 'sizeZMm', 'volumeMm3', 'watertight', 'metrics', 'triangles', 'orientation'] },
             ],
           },
         ],
@@ -374,7 +374,8 @@ export function plansRepository(db: Database) {
             size_y_mm: p.sizeYMm,
             size_z_mm: p.sizeZMm,
             volume_mm3: p.volumeMm3,
-            watertight: p.watertight,
+            // Closed as the check and the slices count it: watertight and consistently oriented.
+            watertight: p.watertight && p.metrics?.oriented === true,
             triangles: p.triangles,
             part_orientation: p.orientation as PlanOrientationRule,
             request_id: r.id,
@@ -469,8 +470,8 @@ export function plansRepository(db: Database) {
     async openLines(labId: string, q: { materialId?: string | null; exceptPlanId?: string | null }): Promise<OpenLineRow[]> {
       // A sum over the other plans' lines and an order by a rank of priority: typed SQL.
       return select<OpenLineRow>(
-        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3, p.watertight,
-                p.triangles, p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
+        `SELECT rl.id, rl.quantity, p.id AS part_id, p.name AS part_name, p.size_x_mm, p.size_y_mm, p.size_z_mm, p.volume_mm3,
+                (p.watertight AND COALESCE((p.metrics->>'oriented')::boolean, false)) AS watertight, p.triangles, p.orientation, r.id AS request_id, r.title, to_char(r.due_date, 'YYYY-MM-DD') AS due_date, r.priority, r.material_id,
                 rl.planned_count - COALESCE((SELECT SUM(pl.quantity) FROM plan_lines pl JOIN plans pp ON pp.id = pl.plan_id
                            WHERE pl.request_line_id = rl.id AND pp.id = $3::uuid AND pp.status NOT IN ${INACTIVE_SQL}), 0) AS held
            FROM request_lines rl JOIN requests r ON r.id = rl.request_id JOIN parts p ON p.id = rl.part_id
