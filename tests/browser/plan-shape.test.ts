@@ -108,7 +108,7 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
 });
 
 for (const [size, viewport] of [['wide (1440 x 900)', WIDE], ['phone (390 x 844)', PHONE]] as const) {
-  test(`${size}: a part whose mesh is not closed is packed by its box, and the editor says which and why`, async () => {
+  test(`${size}: a part whose mesh is not closed is packed by its box, the editor says which and why, and the layout is kept`, async () => {
     // The peg's mesh with one triangle taken out: it has an open edge, so it has no inside to nest by.
     const open = { positions: peg.positions, indices: peg.indices.slice(0, peg.indices.length - 3) };
     let n = 0;
@@ -125,6 +125,10 @@ for (const [size, viewport] of [['wide (1440 x 900)', WIDE], ['phone (390 x 844)
     expect(await notes.textContent()).not.toContain('Shape frame');
     await page.getByTestId('pack-open-note').scrollIntoViewIfNeeded();
     await screenshot(page, `plan-editor-open-mesh-by-box-${viewport === PHONE ? 'phone' : 'wide'}`);
+    // The server checks the layout against the meshes it has (the open peg by its box) and keeps it.
+    if (viewport === PHONE) await page.getByTestId('plan-tab-layouts').click();
+    await page.getByTestId('layout-keep').click();
+    await page.getByText(/^Kept as "Seed \d+ by shape/).waitFor({ timeout: 60_000 });
     await page.context().close();
   });
 }
