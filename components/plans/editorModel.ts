@@ -558,14 +558,19 @@ export function suggestedShapeSeconds(parts: number): number {
   return Math.max(4, Math.ceil(parts / 50));
 }
 
-/** Triangles of the distinct parts' meshes among the lines that hold copies (`info`: the lines' parts). */
-export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'triangles'>>): number {
-  const parts = new Map<string, number>();
+/** The parts among the lines that hold copies, each once (one part on several lines), in the lines' order. */
+function partsWithCopies<T extends Pick<LineInfo, 'partId'>>(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, T>): T[] {
+  const parts = new Map<string, T>();
   for (const l of lines) {
     const i = info.get(l.requestLineId);
-    if (i && l.quantity > 0) parts.set(i.partId, i.triangles);
+    if (i && l.quantity > 0) parts.set(i.partId, i);
   }
-  return [...parts.values()].reduce((n, t) => n + t, 0);
+  return [...parts.values()];
+}
+
+/** Triangles of the distinct parts' meshes among the lines that hold copies (`info`: the lines' parts). */
+export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'triangles'>>): number {
+  return partsWithCopies(lines, info).reduce((n, p) => n + p.triangles, 0);
 }
 
 /**
@@ -573,12 +578,9 @@ export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' 
  * packing by shape packs them by their boxes (`info`: the lines' parts).
  */
 export function openMeshPartsOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'partName' | 'watertight'>>): string[] {
-  const parts = new Map<string, string>();
-  for (const l of lines) {
-    const i = info.get(l.requestLineId);
-    if (i && l.quantity > 0 && !i.watertight) parts.set(i.partId, i.partName);
-  }
-  return [...parts.values()];
+  return partsWithCopies(lines, info)
+    .filter((p) => !p.watertight)
+    .map((p) => p.partName);
 }
 
 /** Before packing by shape: which parts it will pack by their boxes, their meshes not being closed (null when none). */
