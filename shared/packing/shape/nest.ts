@@ -149,17 +149,22 @@ export function buildNests(
     const bound = height + 1e-9;
     // A copy as large as the holder (its own kind among them) cannot go inside it.
     const fits = (p: Profile) => p.extent[0] <= holder.extent[0] && p.extent[1] <= holder.extent[1] && volume(p) < volume(holder);
+    // A kind that found no place once finds none later: the map only rises.
+    const full = new Set<number>();
     for (let placed = true; placed; ) {
       placed = false;
       for (const k of byCost) {
-        if (left[k] === 0) continue;
+        if (left[k] === 0 || full.has(k)) continue;
         let best: { u: number; v: number; z: number; score: number; p: Profile } | null = null;
         for (const p of kinds[k].inside ?? kinds[k].profiles) {
           if (!fits(p)) continue;
           const d = bestDrop(G, p, best ? best.score : bound, C);
           if (d) best = { ...d, p };
         }
-        if (!best) continue;
+        if (!best) {
+          full.add(k);
+          continue;
+        }
         drop(G, best.p, best.u, best.v, best.z);
         members.push({ kind: k, profile: best.p, du: best.u, dv: best.v, dz: best.z });
         left[k]--;
@@ -177,12 +182,30 @@ export function buildNests(
   const noLid = new Set<number>();
   for (const h of holders) {
     const up = ways > 1 ? kinds[h].profiles.filter((p) => hollowShare(p, cell) >= minHollow).slice(0, ways) : [kinds[h].profiles[0]];
+    /**
+     * The last copy worked out: the copies left before it, what each fill tried took, and the nest kept. Copies
+     * of one holder often come out alike, and filling one costs many drops. The next copy comes out the same, and
+     * is not worked out again, when each fill tried would find the same kinds with copies left at every step and
+     * after it (a fill is deterministic and sees only whether a kind has copies left; which kinds have copies
+     * left after the fill also decides whether a lid is tried).
+     */
+    let last: { before: number[]; tried: number[][]; nest: Nest; took: number[] } | null = null;
+    const sameAsLast = () =>
+      last !== null && last.tried.every((u) => u.every((n, k) => left[k] >= n && left[k] - n > 0 === last!.before[k] - n > 0));
     while (left[h] > 0 && !stop()) {
+      if (sameAsLast()) {
+        last!.took.forEach((n, k) => (left[k] -= n));
+        nests.push(last!.nest);
+        continue;
+      }
+      const tried: number[][] = [];
+      const took = (after: number[]) => left.map((n, k) => n - after[k]);
       // The way up that saves the most room: the boxes of what it holds, less what its own box grows.
       let best: { members: NestMember[]; left: number[]; saved: number; lidded?: boolean } | null = null;
       for (const holder of up) {
         const after = left.slice();
         const members = fill(h, holder, after);
+        tried.push(took(after));
         if (members.length === 1) continue;
         const saved = savedBy(members.slice(1), h, holder.extent, 1);
         if (!best || saved > best.saved) best = { members, left: after, saved };
@@ -196,14 +219,17 @@ export function buildNests(
       if (lid && Math.abs(lid.extent[0] - holder.extent[0]) < 1e-6 && Math.abs(lid.extent[1] - holder.extent[1]) < 1e-6) {
         const after = left.slice();
         const members = fill(h, holder, after, lid);
+        tried.push(took(after));
         const saved = savedBy(members.slice(1, -1), h, [holder.extent[0], holder.extent[1], holder.extent[2] + spacing + lid.extent[2]], 2);
         if (members.length > 2 && saved > (best ? 2 * Math.max(0, best.saved) : 0)) best = { members, left: after, saved, lidded: true };
         else noLid.add(h);
       }
       // Nothing fits in this kind's hollow: its copies pack on their own.
       if (!best) break;
+      const nest: Nest = { members: best.members, profile: nestProfile(best.members[0].profile, best.members, cell, spacing), ...(best.lidded ? { lidded: true } : {}) };
+      last = { before: left.slice(), tried, nest, took: took(best.left) };
       best.left.forEach((n, i) => (left[i] = n));
-      nests.push({ members: best.members, profile: nestProfile(best.members[0].profile, best.members, cell, spacing), ...(best.lidded ? { lidded: true } : {}) });
+      nests.push(nest);
     }
   }
   return { nests, used: kinds.map((k, i) => (k.profiles.length > 0 ? k.quantity : 0) - left[i]) };

@@ -237,3 +237,46 @@ test('packed by shape the two cups and the post are 63 mm tall (two cups and the
   expect(validateShapeLayout(inst, lidded)).toEqual([]);
   expect(lidded.height).toBeCloseTo(63, 6);
 });
+
+test('copies of a holder filled together hold what each would hold filled on its own, also where a kind runs out midway', () => {
+  // Five cups, blocks for three (as many as one cup holds with the small ones, three times), and 4 small blocks:
+  // the small ones go into the first cup with the blocks, so the second holds more blocks, and the blocks run out
+  // in the third. A copy that would come out as the one before it is not worked out again;
+  // this checks that it is taken only when it would come out the same.
+  const small = box(6, 6, 6);
+  const plate = (blocks: number, cups = 5) =>
+    onSmallPlate('shape', [
+      { id: 'cup', mesh: cup, quantity: cups, upright: true },
+      { id: 'block', mesh: block, quantity: blocks, upright: true },
+      { id: 'small', mesh: small, quantity: 4, upright: true },
+    ]);
+  const kindsOf = (inst: PackInstanceV2) => {
+    const cell = defaultCell(inst);
+    return { cell, kinds: shapeParts(inst).map((p) => ({ quantity: p.quantity, profiles: p.rotations.map((r) => columnProfile(p, r, cell, inst.spacing)).sort((a, b) => a.cost - b.cost) })) };
+  };
+  // How many blocks one cup holds.
+  const one = kindsOf(plate(100, 1));
+  const perCup = buildNests(one.kinds, one.cell, 3).used[1];
+  expect(perCup).toBeGreaterThan(6);
+  const inst = plate(3 * perCup);
+  const { cell, kinds } = kindsOf(inst);
+  const together = buildNests(kinds, cell, inst.spacing);
+  // One cup at a time, from the copies the ones before left.
+  const left = kinds.map((k) => k.quantity);
+  const alone = [];
+  while (left[0] > 0) {
+    const next = buildNests(kinds.map((k, i) => ({ ...k, quantity: i === 0 ? 1 : left[i] })), cell, inst.spacing);
+    if (next.nests.length === 0) break;
+    next.used.forEach((n, i) => (left[i] -= n));
+    alone.push(next.nests[0]);
+  }
+  const shape = (n: { members: Array<{ kind: number; du: number; dv: number; dz: number }> }) => n.members.map((m) => [m.kind, m.du, m.dv, m.dz]);
+  expect(together.nests.map(shape)).toEqual(alone.map(shape));
+  expect(together.used).toEqual(kinds.map((k, i) => k.quantity - left[i]));
+  // The supply runs out midway: every block and small block is held, the last cup with blocks holds fewer.
+  const blocks = together.nests.map((n) => n.members.filter((m) => m.kind === 1).length);
+  expect(blocks.reduce((a, b) => a + b, 0)).toBe(3 * perCup);
+  expect(blocks.length).toBeGreaterThanOrEqual(3);
+  expect(blocks[blocks.length - 1]).toBeLessThan(Math.max(...blocks));
+  expect(together.used[2]).toBe(4);
+});
