@@ -6,6 +6,7 @@
  * oriented so that the face's outward normal points to its right (Green's
  * theorem in the plane). No voxels, no sampling within a layer.
  */
+import type { PartMesh } from '../types';
 import type { ShapePart } from './parts';
 
 export interface PlacedPart {
@@ -14,14 +15,65 @@ export interface PlacedPart {
   transform: readonly number[];
 }
 
-/** Summed section area (mm^2) at z = (k + 0.5) x layerHeight for k = 0 .. layers - 1. */
+/**
+ * Each triangle's lowest and highest point along a direction of the part (before the placement's lift), in single
+ * precision, widened by `slack` (more than the rounding): a bound to skip a triangle by, never to slice it by.
+ */
+interface Spans {
+  zmin: Float32Array;
+  zmax: Float32Array;
+  slack: number;
+}
+
+/** Per mesh, per direction (the transform's z column): kept while the mesh is, so copies and later layouts reuse them. */
+const spansByMesh = new WeakMap<PartMesh, Map<string, Spans>>();
+
+function spansOf(mesh: PartMesh, t: readonly number[]): Spans {
+  let byDirection = spansByMesh.get(mesh);
+  if (!byDirection) spansByMesh.set(mesh, (byDirection = new Map()));
+  const key = `${t[2]},${t[5]},${t[8]}`;
+  let spans = byDirection.get(key);
+  if (!spans) {
+    const { positions: p, indices: ix } = mesh;
+    const n = ix.length / 3;
+    let far = 0;
+    for (let i = 0; i < p.length; i++) far = Math.max(far, Math.abs(p[i]));
+    // Single precision rounds to within 6e-8 of the value's size; the transform's direction has length 1.
+    spans = { zmin: new Float32Array(n), zmax: new Float32Array(n), slack: 1e-6 * (3 * far + 1) };
+    for (let f = 0; f < n; f++) {
+      let lo = Infinity, hi = -Infinity;
+      for (let k = 0; k < 3; k++) {
+        const o = 3 * ix[3 * f + k];
+        const z = p[o] * t[2] + p[o + 1] * t[5] + p[o + 2] * t[8];
+        lo = Math.min(lo, z);
+        hi = Math.max(hi, z);
+      }
+      spans.zmin[f] = lo;
+      spans.zmax[f] = hi;
+    }
+    byDirection.set(key, spans);
+  }
+  return spans;
+}
+
+/**
+ * Summed section area (mm^2) at z = (k + 0.5) x layerHeight for k = 0 .. layers - 1.
+ *
+ * Most triangles of a finely meshed part cross no layer's middle, or one. A triangle whose height span along the
+ * placement's up direction (worked out once per mesh and direction, shifted by the placement's lift and widened
+ * by more than its rounding) holds no layer's middle is skipped before it is moved; the others are moved and
+ * sliced as they are.
+ */
 export function areaProfile(placed: readonly PlacedPart[], layerHeight: number, layers: number): number[] {
   const out = new Float64Array(layers);
   const v = new Float64Array(9);
   for (const { part, transform: t } of placed) {
     const { positions: p, indices: ix } = part.sliceMesh;
     const sign = part.facing;
-    for (let f = 0; f < ix.length; f += 3) {
+    const { zmin: lo, zmax: hi, slack } = spansOf(part.sliceMesh, t);
+    const lift = t[11];
+    for (let f = 0, i = 0; f < ix.length; f += 3, i++) {
+      if (Math.ceil((hi[i] + slack + lift) / layerHeight - 0.5) - 1 < Math.max(0, Math.ceil((lo[i] - slack + lift) / layerHeight - 0.5))) continue;
       let zmin = Infinity, zmax = -Infinity;
       for (let k = 0; k < 3; k++) {
         const o = 3 * ix[f + k];
