@@ -64,7 +64,7 @@ export interface ShapeOptions {
   boxShare?: number;
   /** Fill the parts' hollows before packing (./nest.ts); true by default. */
   nest?: boolean;
-  /** Share of the box search given to the nests' boxes when there are nests (default 0.6; the parts' own boxes get the rest). */
+  /** Share of the box search given to the nests' boxes when there are nests (default 0.4; the parts' own boxes get the rest, or a set of nests on a finer cell). */
   nestShare?: number;
   /** Two copies pair up when their box is at most this share of two boxes apart (./nest.ts bestPair; default 0.85). */
   pairGain?: number;
@@ -72,6 +72,8 @@ export interface ShapeOptions {
   holderWays?: number;
   /** Let two copies of a holder face each other, the second upside down over what they hold (default true). */
   lids?: boolean;
+  /** When the nests pay well, one more set of them filled on a finer plan cell, in the time of the parts' own boxes' search (default true). */
+  fineNests?: boolean;
 }
 
 export interface ShapePacking {
@@ -94,6 +96,8 @@ interface Kind {
 interface NestSet {
   nests: Nest[];
   used: number[];
+  /** The plan cell the nests were filled on (the run's when not given): their members' offsets are in its cells. */
+  cell?: number;
 }
 
 interface Placed {
@@ -128,6 +132,13 @@ export function defaultCell(instance: PackInstanceV2): number {
     cell = g / k;
   }
   return cell;
+}
+
+/** A finer plan cell than `cell` for one more set of nests: a whole number of cells per spacing, one more; null when too fine to draw quickly. */
+function fineCell(instance: PackInstanceV2, cell: number): number | null {
+  const g = instance.spacing;
+  const fine = g > 0 ? g / (Math.round(g / cell) + 1) : (2 * cell) / 3;
+  return fine >= 0.5 ? fine : null;
 }
 
 /** What drawing the profiles may spend, when the run is timed (see solve): null when it need not watch the clock. */
@@ -425,7 +436,9 @@ function* solve(
   // so the shares are never shorter than that. With a cap on the runs nothing here watches the clock.
   const timed = options.maxRuns === undefined;
   const by = (share: number, floorMs: number) => start + Math.max(share * instance.timeLimitMs, floorMs);
+  const prepStart = now();
   const prepared = prepareKinds(instance, parts, cell, warnings, timed ? { now, probesBy: by(0.5, 250), turnsBy: by(0.35, 150) } : null);
+  const prepMs = now() - prepStart;
   if (!prepared || (timed && !(yield* treesInTime(parts, now, by(0.75, 400), by(0.9, 450))))) {
     out.best = yield* boxesInstead(instance, parts, now, deadline, hooks, stop);
     return;
@@ -481,6 +494,7 @@ function* solve(
     const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
     const nestId = (j: number) => `${NEST_ID}${j}`;
     const nests = set ? set.nests : [];
+    const nestCell = set?.cell ?? cell;
     const turnable = nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
     const boxed = set && !parts.some((p) => p.id.startsWith(NEST_ID))
       ? {
@@ -504,7 +518,7 @@ function* solve(
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
         const turned = pl.orientation === 'yxz';
         for (const m of n.members) {
-          const [mx, my] = [m.du * cell, m.dv * cell];
+          const [mx, my] = [m.du * nestCell, m.dv * nestCell];
           if (!turned) {
             items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + mx, pl.position[1] + my, pl.position[2] + m.dz] });
             continue;
@@ -531,29 +545,31 @@ function* solve(
   // The first layout to show: the boxes', settled. It needs no nests, so it comes before they are built.
   const anyCopies = kinds.some((k) => k.fits && k.part.quantity > 0);
   if (boxShare > 0 && anyCopies) offer(yield* settledBoxes(0, instance.timeLimitMs));
+  const firstHeight = out.best ? out.best.height : null;
 
   // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
   // Hollows filled first: holders and what they hold pack as units (./nest.ts), the rest copy by copy.
   // Then copies of one kind that reach into each other's empty columns (two L brackets corner to corner) pair up.
   const plate = usableRegion(instance).extent;
   /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
-  const nestKinds = (lids: boolean) => kinds.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
-  const nestSet = (ways: number, halt: () => boolean, lids = false): NestSet => {
+  const nestKinds = (lids: boolean, of: Kind[] = kinds) => of.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
+  /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
+  const nestSet = (ways: number, halt: () => boolean, lids = false, of: Kind[] = kinds, on = cell): NestSet => {
     if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
     const set: NestSet = buildNests(
-      nestKinds(lids),
-      cell,
+      nestKinds(lids, of),
+      on,
       instance.spacing,
       undefined,
       halt,
       ways,
     );
-    kinds.forEach((k, i) => {
+    of.forEach((k, i) => {
       if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
-      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, cell, instance.spacing, [plate[0], plate[1]], options.pairGain);
+      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, on, instance.spacing, [plate[0], plate[1]], options.pairGain);
       for (; pair && k.part.quantity - set.used[i] >= 2; set.used[i] += 2) set.nests.push(pair);
     });
-    return set;
+    return on === cell ? set : { ...set, cell: on };
   };
   const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
   const single = nestSet(1, stop);
@@ -573,10 +589,15 @@ function* solve(
 
   const choices = [...kinds.map((k) => k.profiles), ...nests.map((n) => [n.profile])];
   // The drop packing in a fixed order (largest first, hollows filled before they are covered): the drop search
-  // below starts from it; on a small plate it is often the lowest.
-  const first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => (timed && leftFor(nests.length > 0) <= 0) || stop());
-  runs++;
-  if (first) offer(first, nests.length > 0);
+  // below starts from it; on a small plate it is often the lowest. Timed, it is tried here for a tenth of the
+  // limit (a few hundred copies take longer: then it is dropped, and run again before the drop search with what
+  // is left), so that the nests' box searches keep their time.
+  const dropBy = now() + 0.1 * instance.timeLimitMs;
+  let first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => (timed && (leftFor(nests.length > 0) <= 0 || now() > dropBy)) || stop());
+  if (first) {
+    runs++;
+    offer(first, nests.length > 0);
+  }
   if (copies.length === 0) {
     if (!out.best) offer([]);
     return;
@@ -586,7 +607,7 @@ function* solve(
     // With nests, their boxes get most of the box search; the parts' own boxes the rest, so where nesting
     // does not pay (few parts, little to hold) the settled box layout is still there to keep.
     const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
-    const nestShare = nests.length > 0 ? (options.nestShare ?? 0.6) : 0;
+    const nestShare = nests.length > 0 ? (options.nestShare ?? 0.4) : 0;
     const better = (a: Placed[], b: Placed[]) => a.length > b.length || (a.length === b.length && heightOf(a) < heightOf(b));
     /** A stage's search time: its share, or timed, what is left for it (null: none left). */
     const budget = (shareMs: number, nested: boolean): number | null => {
@@ -596,6 +617,7 @@ function* solve(
     };
     let searched: Placed[] = [];
     let searchedNested = false;
+    let nestedWell = false;
     if (nestShare > 0) {
       // A second set of nests whose holders may stand other ways up (./nest.ts buildNests `ways`): the
       // box search of so few, large units is lumpy, and either set can come out lower. They share its time.
@@ -614,7 +636,21 @@ function* solve(
         return true;
       };
       const tooLate = () => stop() || (timed && leftFor(true) < perSet / 2);
-      if ((yield* searchSet(primary)) && ways > 1 && !tooLate()) {
+      const primaryDone = yield* searchSet(primary);
+      // When the nests have already brought the layout well under the first one (the boxes', settled), the search
+      // of the parts' own boxes cannot catch up (in the benchmark's mixes it brings the first layout down by about
+      // a tenth); its time goes to one more set of nests, filled on a finer plan cell: a part's column profile
+      // then takes less room beyond its surface, so more fits in a hollow (more blocks in a cup, for one). Its
+      // profiles take about twice the first ones' time (2.25 times the cells), so it is begun only when that, and
+      // two sets' searches, are left.
+      nestedWell = searchedNested && firstHeight !== null && heightOf(searched) < 0.85 * firstHeight;
+      const fine = fineCell(instance, cell);
+      if (options.fineNests !== false && primaryDone && fine !== null && nestedWell && !tooLate() && (!timed || leftFor(true) > 3 * prepMs + 2 * perSet)) {
+        const fineKinds = prepareKinds(instance, parts, fine, [], null);
+        const set = fineKinds ? nestSet(1, tooLate, false, fineKinds, fine) : null;
+        if (set && set.nests.length > 0 && !tooLate()) yield* searchSet(set);
+      }
+      if (primaryDone && ways > 1 && !tooLate()) {
         const other = nestSet(ways, tooLate);
         if (other.nests.length > 0) yield* searchSet(other);
       }
@@ -623,7 +659,7 @@ function* solve(
         if (lidded.nests.some((n) => n.lidded)) yield* searchSet(lidded);
       }
     }
-    const plainMs = nestShare < 1 && !stop() ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
+    const plainMs = nestShare < 1 && !stop() && !(options.fineNests !== false && nestedWell) ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
     if (plainMs !== null) {
       const plain = yield* settledBoxes(capped, plainMs);
       offer(plain);
@@ -638,6 +674,11 @@ function* solve(
   }
   // Then the drop search, from the fixed order, until the time left is what checking takes.
   phase = 'search';
+  if (!first) {
+    first = packOnce(instance, kinds, nests, firstOrder, choices, cell, () => (timed && leftFor(nests.length > 0) <= 0) || stop());
+    runs++;
+    if (first) offer(first, nests.length > 0);
+  }
   let order = firstOrder;
   let current = first ? heightOf(first) : Infinity;
   let currentCount = first ? first.length : -1;

@@ -280,3 +280,24 @@ test('copies of a holder filled together hold what each would hold filled on its
   expect(blocks[blocks.length - 1]).toBeLessThan(Math.max(...blocks));
   expect(together.used[2]).toBe(4);
 });
+
+test('when the nests pay, one more set is filled on a finer plan cell: four shallow cups hold eight 14 mm blocks each, as elementary geometry allows', () => {
+  // A cup 12 mm tall, inside 75 x 45 mm with 2.5 mm corners; blocks 14 x 14 x 4 mm. Kept 3 mm from the walls and
+  // from each other, 4 blocks fit along (4 x 14 + 3 x 3 = 65 of 69 mm) and 2 across (31 of 39 mm): 8 a cup. The
+  // column profiles on 1.5 mm cells (what a 300 mm chamber gets; this small plate would get finer ones, so the cell
+  // is set) take up to a cell more than a block on each side, and only 6 fit.
+  const shallow = housing({ lengthMm: 80, widthMm: 50, heightMm: 12, wallMm: 2.5, floorMm: 2.5, cornerRadiusMm: 5, cornerSegments: 6 });
+  const inst = onSmallPlate('shape', [
+    { id: 'cup', mesh: shallow, quantity: 4, upright: true },
+    { id: 'block', mesh: box(14, 14, 4), quantity: 32, upright: true },
+  ]);
+  const withFine = createShapePacking(inst, { maxRuns: 1, cellMm: 1.5 }).runSync();
+  expect(withFine.unplaced).toEqual([]);
+  expect(validateShapeLayout(inst, withFine)).toEqual([]);
+  // The four cups stacked, each holding its eight blocks: 4 x 12 mm and 3 spacings.
+  expect(withFine.height).toBeCloseTo(4 * 12 + 3 * 3, 6);
+  // On the run's cell alone, blocks are left over above the cups.
+  const coarse = createShapePacking(inst, { maxRuns: 1, cellMm: 1.5, fineNests: false }).runSync();
+  expect(validateShapeLayout(inst, coarse)).toEqual([]);
+  expect(coarse.height).toBeGreaterThan(withFine.height + 3);
+});
