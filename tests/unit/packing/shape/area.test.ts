@@ -3,28 +3,17 @@
  * slicer (shared/geometry sliceAlong, itself checked against the sphere, cylinder and cone formulas in
  * tests/unit/geometry/slice.test.ts): the same placed meshes, sliced at the same layer middles, give the same
  * areas, also for copies of one mesh at heights a fraction of a layer apart (the triangles' spans are worked out
- * once per mesh and direction and reused), far from the origin, and with layer middles through vertices.
+ * once per mesh and direction and reused), and far from the origin, where single precision rounds a triangle's
+ * span by more than its distance to a layer middle.
  */
-import { measureMesh, placementTransform, sliceAlong, type MeshData } from '@/shared/geometry';
+import { placementTransform, sliceAlong, type MeshData } from '@/shared/geometry';
 import { areaProfile, shapeParts } from '@/shared/packing/shape';
-import type { PackInstanceV2 } from '@/shared/packing';
 import { box, translate } from '../../geometry/helpers';
 import { cone, transformMesh, uvSphere } from '../../geometry/solids';
+import { shapeInstance } from './instance';
 
 function partsOf(meshes: MeshData[]) {
-  const instance: PackInstanceV2 = {
-    format: 'pack-instance/2',
-    chamber: [400, 400, 400],
-    margin: { xy: 0, bottom: 0, top: 0 },
-    spacing: 2,
-    layerHeight: 0.1,
-    objective: 'min-height',
-    timeLimitMs: 1000,
-    seed: 1,
-    fit: 'shape',
-    parts: meshes.map((mesh, i) => ({ id: `p${i}`, size: measureMesh(mesh).sizeMm as [number, number, number], quantity: 1, rotations: [0], meshPath: null, mesh: { positions: mesh.positions, indices: mesh.indices } })),
-  };
-  return shapeParts(instance);
+  return shapeParts(shapeInstance(meshes.map((mesh, i) => ({ id: `p${i}`, mesh, quantity: 1 })), 2, { chamber: [400, 400, 400] }));
 }
 
 test('copies in several turns at heights a fraction of a layer apart: the same areas as the geometry slicer, layer by layer', () => {
