@@ -617,6 +617,7 @@ function* solve(
     };
     let searched: Placed[] = [];
     let searchedNested = false;
+    /** The nests paid well enough that a finer set of them takes the time of the parts' own boxes' search. */
     let nestedWell = false;
     if (nestShare > 0) {
       // A second set of nests whose holders may stand other ways up (./nest.ts buildNests `ways`): the
@@ -643,9 +644,9 @@ function* solve(
       // then takes less room beyond its surface, so more fits in a hollow (more blocks in a cup, for one). Its
       // profiles take about twice the first ones' time (2.25 times the cells), so it is begun only when that, and
       // two sets' searches, are left.
-      nestedWell = searchedNested && firstHeight !== null && heightOf(searched) < 0.85 * firstHeight;
       const fine = fineCell(instance, cell);
-      if (options.fineNests !== false && primaryDone && fine !== null && nestedWell && !tooLate() && (!timed || leftFor(true) > 3 * prepMs + 2 * perSet)) {
+      nestedWell = options.fineNests !== false && fine !== null && searchedNested && firstHeight !== null && heightOf(searched) < 0.85 * firstHeight;
+      if (nestedWell && fine !== null && primaryDone && !tooLate() && (!timed || leftFor(true) > 3 * prepMs + 2 * perSet)) {
         const fineKinds = prepareKinds(instance, parts, fine, [], null);
         const set = fineKinds ? nestSet(1, tooLate, false, fineKinds, fine) : null;
         if (set && set.nests.length > 0 && !tooLate()) yield* searchSet(set);
@@ -659,7 +660,7 @@ function* solve(
         if (lidded.nests.some((n) => n.lidded)) yield* searchSet(lidded);
       }
     }
-    const plainMs = nestShare < 1 && !stop() && !(options.fineNests !== false && nestedWell) ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
+    const plainMs = nestShare < 1 && !stop() && !nestedWell ? budget(instance.timeLimitMs * boxShare * (1 - nestShare), false) : null;
     if (plainMs !== null) {
       const plain = yield* settledBoxes(capped, plainMs);
       offer(plain);

@@ -190,12 +190,11 @@ export function buildNests(
      * left after the fill also decides whether a lid is tried).
      */
     let last: { before: number[]; tried: number[][]; nest: Nest; took: number[] } | null = null;
-    const sameAsLast = () =>
-      last !== null && last.tried.every((u) => u.every((n, k) => left[k] >= n && left[k] - n > 0 === last!.before[k] - n > 0));
+    const repeats = (l: NonNullable<typeof last>) => l.tried.every((u) => u.every((n, k) => left[k] >= n && left[k] - n > 0 === l.before[k] - n > 0));
     while (left[h] > 0 && !stop()) {
-      if (sameAsLast()) {
-        last!.took.forEach((n, k) => (left[k] -= n));
-        nests.push(last!.nest);
+      if (last && repeats(last)) {
+        last.took.forEach((n, k) => (left[k] -= n));
+        nests.push(last.nest);
         continue;
       }
       const tried: number[][] = [];
