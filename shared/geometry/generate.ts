@@ -379,6 +379,32 @@ export function housing(p: HousingParams): MeshData {
   );
 }
 
+export interface TaperedCupParams {
+  /** Outside radius at the foot and at the rim. */
+  bottomRadiusMm: number;
+  topRadiusMm: number;
+  heightMm: number;
+  /** Wall thickness measured across (horizontally): inside and outside lean alike. */
+  wallMm: number;
+  floorMm: number;
+  segments: number;
+}
+
+/** A round cup wider at the rim than at the foot (a pot, a funnel's cone), its inside the outside moved in by the wall. */
+export function taperedCup(p: TaperedCupParams): MeshData {
+  const at = (z: number) => p.bottomRadiusMm + ((p.topRadiusMm - p.bottomRadiusMm) * z) / p.heightMm;
+  const circle = (r: number) => polar(() => r, p.segments);
+  return loft(
+    [
+      { loop: circle(at(0)), z: 0 },
+      { loop: circle(at(p.heightMm)), z: p.heightMm },
+      { loop: circle(at(p.heightMm) - p.wallMm), z: p.heightMm },
+      { loop: circle(at(p.floorMm) - p.wallMm), z: p.floorMm },
+    ],
+    false,
+  );
+}
+
 function roundedRect(l: number, w: number, r: number, segments: number): Loop {
   const hx = l / 2 - r;
   const hy = w / 2 - r;

@@ -38,6 +38,7 @@ import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
 import { bestPair, buildNests, lidsMayHold, type Nest } from './nest';
 import { meshShapeSeconds } from './prepTime';
+import { copiesPerStack, stacksOf, stackTurn, type StackTurn } from './stack';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
@@ -74,6 +75,8 @@ export interface ShapeOptions {
   lids?: boolean;
   /** When the nests pay well, one more set of them filled on a finer plan cell, in the time of the parts' own boxes' search (default true). */
   fineNests?: boolean;
+  /** Stack copies of a part that sink into each other (tapered cups, bowls, trays; ./stack.ts); true by default. */
+  stacks?: boolean;
 }
 
 export interface ShapePacking {
@@ -554,6 +557,9 @@ function* solve(
   /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
   const nestKinds = (lids: boolean, of: Kind[] = kinds) => of.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
   /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
+  /** Per plan cell and kind, the turn and pitch its copies stack at (null: they do not stack); the meshes are looked at once. */
+  const stackTurns = new Map<string, StackTurn | null>();
+  const g = instance.spacing;
   const nestSet = (ways: number, halt: () => boolean, lids = false, of: Kind[] = kinds, on = cell): NestSet => {
     if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
     const set: NestSet = buildNests(
@@ -564,6 +570,38 @@ function* solve(
       halt,
       ways,
     );
+    // Copies that sink into each other (tapered cups, bowls, trays) stack, from what the nests left (./stack.ts).
+    if (options.stacks !== false) {
+      const turns = of.map((k, i) => {
+        if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return null;
+        const key = `${on}:${i}`;
+        if (!stackTurns.has(key)) {
+          // Timed, the search of a kind's pitch on its mesh ends after 3 % of the limit with the lowest found so far.
+          const by = now() + Math.max(100, 0.03 * instance.timeLimitMs);
+          stackTurns.set(key, stackTurn(k.part, k.allProfiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
+        }
+        return stackTurns.get(key) ?? null;
+      });
+      if (turns.some((t) => t !== null)) {
+        // The build's foreseen height over the floor: the units' and the copies' boxes (grown), stacked ones by their pitch, over the plate.
+        const grown = (e: readonly number[], z = e[2] + g) => (e[0] + g) * (e[1] + g) * z;
+        let volume = set.nests.reduce((v, n) => v + grown(n.profile.extent), 0);
+        of.forEach((k, i) => {
+          const left = k.fits ? k.part.quantity - set.used[i] : 0;
+          const t = turns[i];
+          if (left > 0) volume += left * (t ? grown(t.profile.extent, t.pitch) : grown(k.profiles[0].extent));
+        });
+        const height = volume / ((plate[0] + g) * (plate[1] + g));
+        turns.forEach((t, i) => {
+          if (!t) return;
+          const left = of[i].part.quantity - set.used[i];
+          for (const stack of stacksOf(i, left, t, copiesPerStack(left, t, g, [plate[0], plate[1]], plate[2], height), on, g)) {
+            set.nests.push(stack);
+            set.used[i] += stack.members.length;
+          }
+        });
+      }
+    }
     of.forEach((k, i) => {
       if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
       const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, on, instance.spacing, [plate[0], plate[1]], options.pairGain);

@@ -76,7 +76,7 @@ export function lidsMayHold(kinds: readonly NestKind[], cell: number, minHollow 
 }
 
 /** The members' column profiles together, on the holder's grid (or on a grid of `size` from the same corner). */
-function nestProfile(holder: Profile, members: NestMember[], cell: number, spacing: number, size: [number, number] = [holder.extent[0], holder.extent[1]]): Profile {
+export function nestProfile(holder: Profile, members: NestMember[], cell: number, spacing: number, size: [number, number] = [holder.extent[0], holder.extent[1]]): Profile {
   const nx = Math.max(holder.nx, Math.ceil(size[0] / cell - 1e-9));
   const ny = Math.max(holder.ny, Math.ceil(size[1] / cell - 1e-9));
   const bot = new Float64Array(nx * ny).fill(Infinity);

@@ -1,0 +1,78 @@
+/**
+ * Stacks of one part: round cups wider at the rim than at the foot sink into
+ * each other. The pitch found on the meshes is checked against elementary
+ * geometry: two coaxial cups whose inside and outside lean by the same angle
+ * t from the vertical (tan t = rim radius less foot radius, over the height),
+ * wall w across, floor f, the upper one z higher. In a cut through the axis
+ * the upper cup's outside and the lower cup's inside are parallel lines z
+ * apart vertically, so z sin t apart square to them, less the wall's own
+ * thickness square to it, w cos t. They are the spacing g apart when
+ * z = (g + w cos t) / sin t; and the upper floor's underside is g over the
+ * lower floor's top when z = f + g. The pitch is the larger of the two.
+ * (The meshes are 64-sided: their faces lie a little inside the circle, by
+ * r (1 - cos(pi / 64)), under 0.04 mm here, on both cups alike.)
+ */
+import { taperedCup, type TaperedCupParams } from '@/shared/geometry';
+import { createShapePacking, validateShapeLayout } from '@/shared/packing';
+import { columnProfile, defaultCell, shapeParts } from '@/shared/packing/shape';
+import { stackPitch } from '@/shared/packing/shape/stack';
+import { shapeInstance } from './instance';
+
+const G = 3;
+
+function cup(bottomRadiusMm: number, topRadiusMm: number, heightMm: number, wallMm: number, floorMm: number): TaperedCupParams {
+  return { bottomRadiusMm, topRadiusMm, heightMm, wallMm, floorMm, segments: 64 };
+}
+
+/** The pitch of two such cups by the formulas above. */
+function geometricPitch(c: TaperedCupParams, g: number): number {
+  const lean = Math.atan((c.topRadiusMm - c.bottomRadiusMm) / c.heightMm);
+  return Math.max(c.floorMm + g, (g + c.wallMm * Math.cos(lean)) / Math.sin(lean));
+}
+
+function pitchOnMesh(c: TaperedCupParams): number | null {
+  const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 2, orientations: ['upright'] }], G);
+  const [part] = shapeParts(inst);
+  const cell = defaultCell(inst);
+  // Upright as built: the identity turn. A gain of 1 keeps any pitch under the copy's height plus the spacing.
+  return stackPitch(part, columnProfile(part, 0, cell, G), cell, G, 1);
+}
+
+describe('stacked copies of a cup (pitch against elementary geometry)', () => {
+  test.each([
+    ['walls leaning 21.8 degrees: the walls decide', cup(18, 30, 30, 2, 2), 13.078],
+    ['a wide bowl leaning 45 degrees: the walls decide', cup(20, 40, 20, 2, 2), 6.243],
+    ['a shallow tray with a 4 mm floor: the floors decide', cup(20, 40, 10, 2, 4), 7],
+  ])('%s', (_name, c, expected) => {
+    // The formula's value, written out, so a wrong formula cannot pass with a wrong engine.
+    expect(geometricPitch(c, G)).toBeCloseTo(expected, 3);
+    const pitch = pitchOnMesh(c);
+    expect(pitch).not.toBeNull();
+    expect(Math.abs(pitch! - expected)).toBeLessThan(0.05);
+  });
+
+  test('a cup whose walls barely lean gains too little to stack (the pitch is over 0.85 of its height plus the spacing)', () => {
+    const c = cup(25, 30, 40, 2, 3);
+    // 40.19 mm of 43: 0.93.
+    expect(geometricPitch(c, G) / (c.heightMm + G)).toBeGreaterThan(0.85);
+    const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 2, orientations: ['upright'] }], G);
+    const [part] = shapeParts(inst);
+    expect(stackPitch(part, columnProfile(part, 0, defaultCell(inst), G), defaultCell(inst), G)).toBeNull();
+  });
+
+  test('27 cups on a plate with room for 9 side by side pack as 9 stacks of 3: the build is one cup and two pitches tall', () => {
+    const c = cup(18, 30, 30, 2, 2);
+    const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 27 }], G);
+    // 200 mm plate, 60 mm cups 3 mm apart: 3 x 3 places.
+    const stacked = createShapePacking(inst, { maxRuns: 2 }).runSync();
+    expect(validateShapeLayout(inst, stacked)).toEqual([]);
+    expect(stacked.placements).toHaveLength(27);
+    const pitch = geometricPitch(c, G);
+    expect(stacked.height).toBeGreaterThan(c.heightMm + 2 * pitch - 0.05);
+    expect(stacked.height).toBeLessThan(c.heightMm + 2 * pitch + 0.1);
+    // Without stacks each cup rests where the plan grid lets it, higher up.
+    const apart = createShapePacking(inst, { maxRuns: 2, stacks: false }).runSync();
+    expect(validateShapeLayout(inst, apart)).toEqual([]);
+    expect(apart.height).toBeGreaterThan(stacked.height + 10);
+  });
+});
