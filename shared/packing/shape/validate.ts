@@ -175,9 +175,21 @@ function checkGapsAndLift(
   const inFocus = (k: number) => !focus || focus.has(placed[k].at);
   const seenBy = new Int32Array(n).fill(-1);
   let gapReports = 0, gapTotal = 0, liftReports = 0, liftTotal = 0;
+  // Two pairs of the same parts in the same turns, the second part moved from the first by the same vector (to the
+  // last bit), are the same question: copies stacked or nested alike ask it many times, and a pair of meshes
+  // nested within the spacing over their whole surfaces takes long to answer.
+  const relation = (a: Placed, b: Placed) => {
+    const ta = a.placed.t, tb = b.placed.t;
+    return `${a.part.index}:${a.rotation}:${b.part.index}:${b.rotation}:${tb[0] - ta[0]}:${tb[1] - ta[1]}:${tb[2] - ta[2]}`;
+  };
+  const lifts = new Map<string, boolean>();
+  const gaps = new Map<string, number | 'inside' | null>();
   // Lift-out: `earlier`, listed before `later`, must not block its way up.
   const liftCheck = (later: number, earlier: number) => {
-    if (!blocksLift(placed[later].placed, placed[earlier].placed, tol)) return;
+    const key = relation(placed[later], placed[earlier]);
+    let blocked = lifts.get(key);
+    if (blocked === undefined) lifts.set(key, (blocked = blocksLift(placed[later].placed, placed[earlier].placed, tol)));
+    if (!blocked) return;
     liftTotal++;
     if (liftReports++ < maxReports) {
       bad(`placements[${placed[later].at}]`, `cannot be lifted straight up: placements[${placed[earlier].at}], listed before it, is above it`);
@@ -194,7 +206,9 @@ function checkGapsAndLift(
     for (let a = 0; a < 3; a++) if (B.min[a] >= A.max[a] - tol || A.min[a] >= B.max[a] - tol) overlap = false;
     // With no spacing, parts whose boxes only touch are apart; otherwise their surfaces must not meet.
     if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) return;
-    const gap = pairGap(A, B, g, tol);
+    const key = relation(placed[i], placed[j]);
+    let gap = gaps.get(key);
+    if (gap === undefined) gaps.set(key, (gap = pairGap(A, B, g, tol)));
     let problem: string | null = null;
     if (gap === 'inside') problem = 'lies inside (or holds inside it)';
     else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;

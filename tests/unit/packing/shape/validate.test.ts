@@ -48,6 +48,19 @@ describe('shape validator against the meshes', () => {
     }
   });
 
+  test('pairs alike (the same parts, turns and offset) are each reported: a row of cubes 2 mm apart at spacing 2.5, and a stack listed top first', () => {
+    const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 4 }], 2.5);
+    const row = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [13, 10, 0]], ['cube', 0, [16, 10, 0]], ['cube', 0, [30, 10, 0]]]);
+    const close = validateShapeLayout(inst, row).map((p) => `${p.field} ${p.message}`);
+    expect(close).toHaveLength(2);
+    expect(close[0]).toMatch(/^placements\[1\] is only 2\.000000 mm from placements\[0\]/);
+    expect(close[1]).toMatch(/^placements\[2\] is only 2\.000000 mm from placements\[1\]/);
+    const stack = layout(inst, [['cube', 0, [10, 10, 12]], ['cube', 0, [10, 10, 8]], ['cube', 0, [10, 10, 4]], ['cube', 0, [10, 10, 0]]]);
+    // Each cube is blocked by every one listed before it (all are above it): 1 + 2 + 3 reports, two offsets repeating.
+    const blocked = validateShapeLayout(inst, stack).filter((p) => /cannot be lifted/.test(p.message)).map((p) => p.field);
+    expect(blocked.sort()).toEqual(['placements[1]', 'placements[2]', 'placements[2]', 'placements[3]', 'placements[3]', 'placements[3]']);
+  });
+
   test('lift-out order: a cube above another must be listed after it', () => {
     const inst = instance([{ id: 'cube', mesh: box(4, 4, 4), quantity: 2 }], 1);
     const up = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [11, 11, 6]]]);
