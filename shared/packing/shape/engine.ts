@@ -38,7 +38,7 @@ import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
 import { bestPair, buildNests, lidsMayHold, type Nest } from './nest';
 import { meshShapeSeconds } from './prepTime';
-import { copiesPerStack, stacksOf, stackTurn, type StackTurn } from './stack';
+import { copiesPerStack, foreseenHeight, stacksOf, stackTurn, type StackTurn } from './stack';
 
 export type ShapePhase = 'greedy' | 'search' | 'done';
 
@@ -583,15 +583,21 @@ function* solve(
         return stackTurns.get(key) ?? null;
       });
       if (turns.some((t) => t !== null)) {
-        // The build's foreseen height over the floor: the units' and the copies' boxes (grown), stacked ones by their pitch, over the plate.
-        const grown = (e: readonly number[], z = e[2] + g) => (e[0] + g) * (e[1] + g) * z;
+        // The build's foreseen height over the floor (./stack.ts foreseenHeight): the stacks and the rest (the units'
+        // and the copies' boxes, grown) on the plate.
+        const grown = (e: readonly number[]) => (e[0] + g) * (e[1] + g) * (e[2] + g);
         let volume = set.nests.reduce((v, n) => v + grown(n.profile.extent), 0);
+        const stackable: Array<{ quantity: number; turn: StackTurn }> = [];
         of.forEach((k, i) => {
           const left = k.fits ? k.part.quantity - set.used[i] : 0;
           const t = turns[i];
-          if (left > 0) volume += left * (t ? grown(t.profile.extent, t.pitch) : grown(k.profiles[0].extent));
+          if (left > 0 && t) stackable.push({ quantity: left, turn: t });
+          else if (left > 0) volume += left * grown(k.profiles[0].extent);
         });
-        const height = volume / ((plate[0] + g) * (plate[1] + g));
+        // The first sets' stacks stand as tall as their places on the plate need; the sets that try other holder
+        // turns take them only as tall as the build's volume over the plate: lower stacks beside more of the rest
+        // (which of the two is lower depends on how much else there is; the box search of each set tells).
+        const height = foreseenHeight(stackable, volume, g, [plate[0], plate[1]], plate[2], ways === 1);
         turns.forEach((t, i) => {
           if (!t) return;
           const left = of[i].part.quantity - set.used[i];

@@ -161,13 +161,52 @@ export function stacksOf(kind: number, quantity: number, turn: StackTurn, n: num
  * (the build's foreseen height over the floor), whichever is more (at least 2), and no more than the copies or the
  * usable height `tall` allow.
  */
-export function copiesPerStack(quantity: number, turn: StackTurn, spacing: number, plate: readonly [number, number], tall: number, height: number): number {
+export function copiesPerStack(quantity: number, turn: StackTurn, spacing: number, plate: readonly [number, number], tall: number, height: number, sideBySide = true): number {
   const g = spacing;
   const { extent } = turn.profile;
-  const across = (a: number, b: number) => Math.floor((plate[0] + g) / (a + g)) * Math.floor((plate[1] + g) / (b + g));
-  const places = Math.max(1, across(extent[0], extent[1]), across(extent[1], extent[0]));
-  const side = Math.ceil(quantity / places);
+  const side = sideBySide ? Math.ceil(quantity / placesOn(plate, extent, g)) : 1;
   const reach = 1 + Math.floor(Math.max(0, height - extent[2]) / turn.pitch);
   const most = 1 + Math.floor(Math.max(0, tall - extent[2]) / turn.pitch);
-  return Math.min(quantity, most, Math.max(2, side, reach));
+  return Math.max(1, Math.min(quantity, most, Math.max(sideBySide ? 2 : 1, side, reach)));
+}
+
+/** The share of a plate that boxes of several sizes are reckoned to cover (they rarely tile it wholly). */
+const EFFICIENCY = 0.85;
+
+/**
+ * The build's foreseen height over the floor when kinds are stacked: the lowest height (in steps of half a
+ * millimetre) at which the stacks, each as tall as that height allows (copiesPerStack), and the rest of the
+ * build's volume (`otherVolume`, boxes grown by the spacing, standing in columns as tall) cover no more than
+ * EFFICIENCY of the plate, or fill no more than the places each kind's stacks have on the plate alone. Taller
+ * stacks take fewer places on the plate, so where the stacks' places bound the build, this finds the height at
+ * which they fit. Without `byPlaces`, the whole volume over the plate.
+ */
+export function foreseenHeight(stacks: ReadonlyArray<{ quantity: number; turn: StackTurn }>, otherVolume: number, spacing: number, plate: readonly [number, number], tall: number, byPlaces = true): number {
+  const g = spacing;
+  const area = (plate[0] + g) * (plate[1] + g);
+  const stackVolume = stacks.reduce((v, s) => v + s.quantity * (s.turn.profile.extent[0] + g) * (s.turn.profile.extent[1] + g) * s.turn.pitch, 0);
+  // Without the places: the volume over the whole plate, as if it packed without loss.
+  if (!byPlaces) return (otherVolume + stackVolume) / area;
+  const room = EFFICIENCY * area;
+  let height = Math.max(...stacks.map((s) => s.turn.profile.extent[2]), (otherVolume + stackVolume) / room);
+  for (; height < tall; height += 0.5) {
+    const others = otherVolume / (height + g);
+    let used = others;
+    // Or by the places each kind's stacks have on the plate alone (a kind's own stacks tile it without loss).
+    let share = others / room;
+    for (const s of stacks) {
+      const { extent } = s.turn.profile;
+      const count = Math.ceil(s.quantity / copiesPerStack(s.quantity, s.turn, g, plate, tall, height, false));
+      used += count * (extent[0] + g) * (extent[1] + g);
+      share += count / placesOn(plate, extent, g);
+    }
+    if (used <= room || share <= 1) return height;
+  }
+  return tall;
+}
+
+/** How many plan boxes of `extent` (grown by the spacing) fit the plate side by side in rows, in the better of the two turns. */
+function placesOn(plate: readonly [number, number], extent: readonly number[], g: number): number {
+  const across = (a: number, b: number) => Math.floor((plate[0] + g) / (a + g)) * Math.floor((plate[1] + g) / (b + g));
+  return Math.max(1, across(extent[0], extent[1]), across(extent[1], extent[0]));
 }
