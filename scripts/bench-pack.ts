@@ -6,11 +6,13 @@
  *  - generated powder-bed builds (min-height, 3 mm spacing): height / lower bound;
  *  - the time of the first valid layout as builds grow, and peak memory;
  *  - concave mixes (brackets, channels, open housings, clips, rings, small solids) packed by box and by
- *    shape at the same spacing and time: heights, their ratio, packing density, the first shape layout.
+ *    shape at the same spacing and time: heights, their ratio, packing density, the first shape layout;
+ *  - parts that stack (tapered cups, alone and in a concave mix) by box, by shape and by shape without stacks.
  * Options: --problems N (per BR set, default 10), --ms T (our time per instance, default 2000),
  * --slow (also binpackingjs on 2,000 parts: one fill takes minutes), --shapes (only the concave mixes),
  * --shape-ms T (time per concave mix and fit, default 10000), --heavy (only the time limit with heavy meshes:
- * two rings of a million triangles each and a housing, by shape at 2 s and 10 s).
+ * two rings of a million triangles each and a housing, by shape at 2 s and 10 s), --stacks (only the parts that
+ * stack: tapered cups alone and in a mix, by box, by shape, by shape without stacks).
  */
 import { execSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
@@ -21,6 +23,7 @@ import { housing, measureMesh, torus } from '../shared/geometry';
 import {
   createPacking,
   createPackingV2,
+  createShapePacking,
   createRandom,
   generateShapeMix,
   shapeParts,
@@ -46,6 +49,7 @@ const MS = arg('ms', 2000);
 const SLOW = process.argv.includes('--slow');
 const SHAPES_ONLY = process.argv.includes('--shapes');
 const HEAVY_ONLY = process.argv.includes('--heavy');
+const STACKS_ONLY = process.argv.includes('--stacks');
 const SHAPE_MS = arg('shape-ms', 10_000);
 /** 2,000 parts by shape: the exact check of one layout alone takes seconds, so they get 4 times the time. */
 const SHAPE_MS_2000 = 4 * SHAPE_MS;
@@ -246,6 +250,38 @@ function shapeSection(): void {
 }
 
 /**
+ * Parts that stack: three round cups wider at the rim than at the foot (generateShapeMix's `cups`), alone and in a
+ * concave mix, packed by box, by shape, and by shape with stacks turned off (their copies then nest only as far as
+ * the plan grid lets them). Each shape layout is checked against the meshes.
+ */
+function stackSection(): void {
+  const rows: Array<Array<string | number>> = [];
+  const cases: Array<[string, { parts: number; seed: number; cups: number }]> = [
+    ['3 cups x 60 copies', { parts: 0, seed: 1, cups: 60 }],
+    ['200 parts (seed 3) and 3 cups x 40', { parts: 200, seed: 3, cups: 40 }],
+  ];
+  for (const [name, o] of cases) {
+    const instance = generateShapeMix({ ...o, fit: 'shape', timeLimitMs: SHAPE_MS });
+    const byBox = oursV2({ ...instance, fit: 'box' });
+    const byShape = oursV2(instance);
+    const noStacks = timed((hooks) => createShapePacking(instance, { stacks: false }).runSync(hooks));
+    const parts = shapeParts(instance);
+    const invalid = [byShape, noStacks].filter((r) => validateShapeLayout(instance, r.result, parts).length > 0).length;
+    rows.push([
+      name,
+      `${byBox.result.height.toFixed(1)} mm`,
+      `${byShape.result.height.toFixed(1)} mm`,
+      `${noStacks.result.height.toFixed(1)} mm`,
+      (byShape.result.height / byBox.result.height).toFixed(3),
+      `${(Math.max(byShape.wallMs, noStacks.wallMs) / SHAPE_MS).toFixed(2)}`,
+      invalid,
+    ]);
+  }
+  console.log(`\n## Parts that stack (tapered cups; 3 mm spacing, ${SHAPE_MS / 1000} s each; 300 x 300 x 380 chamber)\n`);
+  console.log(table(['mix', 'box height', 'shape height', 'shape, no stacks', 'shape / box', 'longest run / limit', 'invalid'], rows));
+}
+
+/**
  * The time limit with heavy meshes: ten copies each of two rings of 1,000,000 triangles and of a housing, by shape.
  * When the meshes cannot be made ready in time, the engine packs their boxes and says so ("packed-by-box").
  */
@@ -266,9 +302,10 @@ function heavySection(): void {
 
 function main(): void {
   const started = performance.now();
-  if (HEAVY_ONLY) {
+  if (HEAVY_ONLY || STACKS_ONLY) {
     console.log(`# Packing benchmark\n\nMachine: ${machine()}`);
-    heavySection();
+    if (HEAVY_ONLY) heavySection();
+    else stackSection();
     return;
   }
   console.log(`# Packing benchmark\n\nMachine: ${machine()}\nOur time limit: ${MS} ms per instance; BR sample: the first ${PROBLEMS} problems of each set.\n`);
@@ -389,6 +426,7 @@ function main(): void {
   console.log(table(['parts', 'mean', 'worst'], growth));
 
   shapeSection();
+  stackSection();
 
   sampleMemory();
   console.log(`\nPeak memory: rss ${(peakRss / 1048576).toFixed(0)} MB, heapUsed ${(peakHeap / 1048576).toFixed(0)} MB`);

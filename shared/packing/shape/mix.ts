@@ -1,9 +1,10 @@
 /**
  * Generated concave mixes for benchmarks and tests: brackets, channels, open
  * housings, clips, rings and small solids from the project's own parametric
- * builders, in random sizes (seeded), several copies of each design.
+ * builders, in random sizes (seeded), several copies of each design; on
+ * request also tapered cups, which stack.
  */
-import { bracket, cableGuide, clip, housing, prism, torus } from '../../geometry/generate';
+import { bracket, cableGuide, clip, housing, prism, taperedCup, torus } from '../../geometry/generate';
 import { createRandom } from '../prng';
 import { INSTANCE_FORMAT_V2, type Fit, type PackInstanceV2, type PackPartV2, type PartMesh, type Vec3 } from '../types';
 import { measureMesh } from '../../geometry/metrics';
@@ -18,6 +19,8 @@ export interface ShapeMixOptions {
   fit?: Fit;
   /** Distinct designs; about one per 12 parts by default. */
   designs?: number;
+  /** Also three round cups wider at the rim than at the foot (they stack), this many copies each; the rest is as without. */
+  cups?: number;
 }
 
 function design(kind: number, r: () => number): { name: string; mesh: PartMesh } {
@@ -60,6 +63,17 @@ export function generateShapeMix(o: ShapeMixOptions): PackInstanceV2 {
     left -= quantity;
     const m = measureMesh(mesh);
     parts.push({ id: `${name}-${d + 1}`, size: [m.sizeMm[0], m.sizeMm[1], m.sizeMm[2]], quantity, rotations: Array.from({ length: 24 }, (_, k) => k), meshPath: null, mesh });
+  }
+  if (o.cups) {
+    // Their own random stream: the rest of the mix comes out the same with or without them.
+    const rc = createRandom(o.seed * 7919 + 1);
+    const between = (a: number, b: number) => a + (b - a) * rc();
+    for (let c = 1; c <= 3; c++) {
+      const foot = between(12, 22);
+      const mesh = taperedCup({ bottomRadiusMm: foot, topRadiusMm: foot + between(6, 16), heightMm: between(12, 32), wallMm: between(1.5, 2.5), floorMm: between(2, 3), segments: 48 });
+      const m = measureMesh(mesh);
+      parts.push({ id: `cup-${c}`, size: [m.sizeMm[0], m.sizeMm[1], m.sizeMm[2]], quantity: o.cups, rotations: Array.from({ length: 24 }, (_, k) => k), meshPath: null, mesh });
+    }
   }
   return {
     format: INSTANCE_FORMAT_V2,

@@ -13,7 +13,7 @@
  * r (1 - cos(pi / 64)), under 0.04 mm here, on both cups alike.)
  */
 import { taperedCup, type TaperedCupParams } from '@/shared/geometry';
-import { createShapePacking, validateShapeLayout } from '@/shared/packing';
+import { createShapePacking, generateShapeMix, validateShapeLayout } from '@/shared/packing';
 import { columnProfile, defaultCell, shapeParts } from '@/shared/packing/shape';
 import { stackPitch } from '@/shared/packing/shape/stack';
 import { shapeInstance } from './instance';
@@ -74,5 +74,17 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     const apart = createShapePacking(inst, { maxRuns: 2, stacks: false }).runSync();
     expect(validateShapeLayout(inst, apart)).toEqual([]);
     expect(apart.height).toBeGreaterThan(stacked.height + 10);
+  });
+
+  test("the benchmark's mixes with cups added keep the rest of the mix as it was", () => {
+    const plain = generateShapeMix({ parts: 50, seed: 4 });
+    const withCups = generateShapeMix({ parts: 50, seed: 4, cups: 5 });
+    const summary = (parts: typeof plain.parts) => parts.map((p) => `${p.id} ${p.quantity} ${p.size?.map((v) => v.toFixed(6)).join(' ')}`);
+    expect(summary(withCups.parts.slice(0, plain.parts.length))).toEqual(summary(plain.parts));
+    expect(withCups.parts.slice(plain.parts.length).map((p) => [p.id, p.quantity])).toEqual([
+      ['cup-1', 5],
+      ['cup-2', 5],
+      ['cup-3', 5],
+    ]);
   });
 });
