@@ -559,6 +559,7 @@ function* solve(
   /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
   /** Per plan cell and kind, the turn and pitch its copies stack at (null: they do not stack); the meshes are looked at once. */
   const stackTurns = new Map<string, StackTurn | null>();
+  let stackSearchLeft = 0.1 * instance.timeLimitMs;
   const g = instance.spacing;
   const nestSet = (ways: number, halt: () => boolean, lids = false, of: Kind[] = kinds, on = cell): NestSet => {
     if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
@@ -576,9 +577,12 @@ function* solve(
         if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return null;
         const key = `${on}:${i}`;
         if (!stackTurns.has(key)) {
-          // Timed, the search of a kind's pitch on its mesh ends after 3 % of the limit with the lowest found so far.
-          const by = now() + Math.max(100, 0.03 * instance.timeLimitMs);
-          stackTurns.set(key, stackTurn(k.part, k.allProfiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
+          // Timed, the search of a kind's pitch on its mesh ends after 3 % of the limit (all kinds' after a tenth)
+          // with the lowest found so far; then the plan grid's pitch stands.
+          const t = now();
+          const by = t + Math.min(Math.max(100, 0.03 * instance.timeLimitMs), stackSearchLeft);
+          stackTurns.set(key, stackTurn(k.part, k.profiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
+          stackSearchLeft -= now() - t;
         }
         return stackTurns.get(key) ?? null;
       });

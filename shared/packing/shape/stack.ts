@@ -55,8 +55,9 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
   // Where even a lossless pitch would not pay, no mesh is looked at.
   if (hi0 >= full - 1e-9) return null;
   // A heavy mesh's nested copies take seconds a look (every triangle is near many of the other copy's): the grid's
-  // pitch stands, as it does for the drop (a copy at twice the pitch clears the first, since the map only rises).
-  if (part.mesh.indices.length / 3 > MAX_EXACT_TRIANGLES) return hi0 <= gain * full ? hi0 : null;
+  // pitch stands, as it does for the drop (a copy at twice the pitch clears the first, since the map only rises);
+  // so it does when there is no time to look.
+  if (part.mesh.indices.length / 3 > MAX_EXACT_TRIANGLES || halt()) return hi0 <= gain * full ? hi0 : null;
   const bvh = part.bvh();
   const at = (z: number) => new PlacedBvh(bvh, p.rotation, [-p.rotatedMin[0], -p.rotatedMin[1], z - p.rotatedMin[2]]);
   const low = at(0);
