@@ -581,7 +581,7 @@ function* solve(
           // with the lowest found so far; then the plan grid's pitch stands.
           const t = now();
           const by = t + Math.min(Math.max(100, 0.03 * instance.timeLimitMs), stackSearchLeft);
-          stackTurns.set(key, stackTurn(k.part, k.profiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
+          stackTurns.set(key, stackTurn(k.part, k.allProfiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
           stackSearchLeft -= now() - t;
         }
         return stackTurns.get(key) ?? null;
