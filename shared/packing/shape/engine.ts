@@ -515,15 +515,18 @@ function* solve(
       : base;
     const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
     const items: SettleItem[] = [];
+    let groups = 0;
     // Bottom first, as the settling needs them; a nest's holder before what it holds.
     for (const pl of [...boxes.placements].sort((a, b) => a.position[2] - b.position[2])) {
       if (pl.id.startsWith(NEST_ID)) {
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
         const turned = pl.orientation === 'yxz';
+        // A stack's copies settle together (their pitch is the meshes', finer than the settling's grid).
+        const group = n.stacked ? { group: groups++ } : {};
         for (const m of n.members) {
           const [mx, my] = [m.du * nestCell, m.dv * nestCell];
           if (!turned) {
-            items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + mx, pl.position[1] + my, pl.position[2] + m.dz] });
+            items.push({ part: m.kind, rotation: m.profile.rotation, position: [pl.position[0] + mx, pl.position[1] + my, pl.position[2] + m.dz], ...group });
             continue;
           }
           // The whole nest a quarter turn about +z ((x, y) -> (-y, x)), its box's corner kept at the placed one.
@@ -532,6 +535,7 @@ function* solve(
             part: m.kind,
             rotation: composeRotations(m.profile.rotation, QUARTER_Z),
             position: [pl.position[0] + n.profile.extent[1] - my - ey, pl.position[1] + mx, pl.position[2] + m.dz],
+            ...group,
           });
         }
         continue;

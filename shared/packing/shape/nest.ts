@@ -31,6 +31,8 @@ export interface Nest {
   profile: Profile;
   /** The last member is a second copy of the holder, upside down over it (see buildNests). */
   lidded?: boolean;
+  /** Copies of one kind, each over the one before at a pitch found on the meshes (./stack.ts). */
+  stacked?: boolean;
 }
 
 interface NestKind {

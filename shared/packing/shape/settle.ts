@@ -34,6 +34,12 @@ export interface SettleItem {
   rotation: number;
   /** Minimum corner of the placed bounding box (mm). */
   position: [number, number, number];
+  /**
+   * Items of one group (listed one after another, first the lowest) keep their heights over the first of them
+   * when it sinks, where nothing else stops them: their places relative to each other were found clear on the
+   * meshes (a stack, ./stack.ts), closer than this grid would put them.
+   */
+  group?: number;
 }
 
 /** A profile as dense maps over its own cells: bottom (+Infinity where empty) and top (-Infinity). */
@@ -123,27 +129,39 @@ export function settleLayout(
   const buckets = new Map<number, number[]>();
   const keyOf = (i: number, j: number) => i * 100_003 + j;
   const out: SettleItem[] = [];
+  /** How far the first item of each group sank. */
+  const sank = new Map<number, number>();
+  /** The lowest clear height of P at (x, y) under `z0` among the settled items (not those of group `skip`). */
+  const needOf = (P: Dense, x: number, y: number, z0: number, skip?: number): number => {
+    let need = floor;
+    const seen = new Set<number>();
+    const i0 = Math.floor((x - g) / bucket), i1 = Math.floor((x + P.extent[0] + g) / bucket);
+    const j0 = Math.floor((y - g) / bucket), j1 = Math.floor((y + P.extent[1] + g) / bucket);
+    for (let i = i0; i <= i1 && need < z0; i++) {
+      for (let j = j0; j <= j1 && need < z0; j++) {
+        for (const q of buckets.get(keyOf(i, j)) ?? []) {
+          if (seen.has(q)) continue;
+          seen.add(q);
+          const Q = out[q];
+          if (skip !== undefined && Q.group === skip) continue;
+          need = Math.max(need, clearAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, g, h));
+          if (need >= z0) break;
+        }
+      }
+    }
+    return need;
+  };
   for (const item of items) {
     const P = profileOf(item.part, item.rotation);
     const [x, y, z0] = item.position;
-    let need = floor;
-    if (!options.stopped?.()) {
-      const seen = new Set<number>();
-      const i0 = Math.floor((x - g) / bucket), i1 = Math.floor((x + P.extent[0] + g) / bucket);
-      const j0 = Math.floor((y - g) / bucket), j1 = Math.floor((y + P.extent[1] + g) / bucket);
-      for (let i = i0; i <= i1 && need < z0; i++) {
-        for (let j = j0; j <= j1 && need < z0; j++) {
-          for (const q of buckets.get(keyOf(i, j)) ?? []) {
-            if (seen.has(q)) continue;
-            seen.add(q);
-            const Q = out[q];
-            need = Math.max(need, clearAbove(P, x, y, profileOf(Q.part, Q.rotation), Q.position, g, h));
-            if (need >= z0) break;
-          }
-        }
-      }
-    } else need = z0;
-    const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, restingZ(need, z0)] };
+    const stopped = options.stopped?.() ?? false;
+    // A later item of a group whose first sank: as far down with it, if nothing else is in the way.
+    const by = item.group !== undefined ? sank.get(item.group) : undefined;
+    let z = z0;
+    if (!stopped && by !== undefined && by > 0 && needOf(P, x, y, z0 - by, item.group) + 1e-7 <= z0 - by) z = z0 - by;
+    else if (!stopped) z = restingZ(needOf(P, x, y, z0), z0);
+    if (item.group !== undefined && !sank.has(item.group)) sank.set(item.group, z0 - z);
+    const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, z], ...(item.group !== undefined ? { group: item.group } : {}) };
     const at = out.length;
     out.push(placed);
     const bi0 = Math.floor((x - g) / bucket), bi1 = Math.floor((x + P.extent[0] + g) / bucket);

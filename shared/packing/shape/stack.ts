@@ -143,7 +143,7 @@ export function stacksOf(kind: number, quantity: number, turn: StackTurn, n: num
   const large = quantity - small * stacks;
   const stackOf = (m: number): Nest => {
     const members = Array.from({ length: m }, (_, i) => ({ kind, profile: turn.profile, du: 0, dv: 0, dz: i * turn.pitch }));
-    return { members, profile: nestProfile(turn.profile, members, cell, spacing) };
+    return { members, profile: nestProfile(turn.profile, members, cell, spacing), stacked: true };
   };
   const out: Nest[] = [];
   if (large > 0) {

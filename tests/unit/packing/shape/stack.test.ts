@@ -14,7 +14,8 @@
  */
 import { taperedCup, type TaperedCupParams } from '@/shared/geometry';
 import { createShapePacking, generateShapeMix, validateShapeLayout } from '@/shared/packing';
-import { columnProfile, defaultCell, shapeParts } from '@/shared/packing/shape';
+import { columnProfile, defaultCell, shapeParts, summariseShapeLayout } from '@/shared/packing/shape';
+import { settleLayout } from '@/shared/packing/shape/settle';
 import { stackPitch } from '@/shared/packing/shape/stack';
 import { shapeInstance } from './instance';
 
@@ -86,5 +87,22 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
       ['cup-2', 5],
       ['cup-3', 5],
     ]);
+  });
+
+  test('a stack whose lowest cup sinks settles with it, its pitch kept (the settling grid alone would open it up)', () => {
+    const c = cup(18, 30, 30, 2, 2);
+    const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 3, orientations: ['upright'] }], G);
+    const parts = shapeParts(inst);
+    const pitch = pitchOnMesh(c)!;
+    // A stack of three 20 mm over the floor (nothing under it): the whole stack comes down to the floor.
+    const stack = [0, 1, 2].map((i) => ({ part: 0, rotation: 0, position: [50, 50, 20 + i * pitch] as [number, number, number] }));
+    const together = settleLayout(inst, parts, stack.map((it) => ({ ...it, group: 7 })));
+    expect(together.map((it) => it.position[2])).toEqual([0, pitch, 2 * pitch].map((z) => expect.closeTo(z, 5)));
+    const result = summariseShapeLayout(inst, together.map((it) => ({ id: 'cup', rotation: it.rotation, position: it.position })));
+    expect(validateShapeLayout(inst, result)).toEqual([]);
+    // One by one, the upper cups stop where the settling's grid puts them over the one below, higher up.
+    const apart = settleLayout(inst, parts, stack);
+    expect(apart[0].position[2]).toBeCloseTo(0, 5);
+    expect(apart[2].position[2]).toBeGreaterThan(2 * pitch + 2);
   });
 });
