@@ -560,11 +560,11 @@ function* solve(
   const plate = usableRegion(instance).extent;
   /** Nests and pairs, and how many copies of each kind they use; `ways`: holder turns tried (./nest.ts buildNests). */
   const nestKinds = (lids: boolean, of: Kind[] = kinds) => of.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
-  /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
   /** Per plan cell and kind, the turn and pitch its copies stack at (null: they do not stack); the meshes are looked at once. */
   const stackTurns = new Map<string, StackTurn | null>();
   let stackSearchLeft = 0.1 * instance.timeLimitMs;
   const g = instance.spacing;
+  /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
   const nestSet = (ways: number, halt: () => boolean, lids = false, of: Kind[] = kinds, on = cell): NestSet => {
     if (options.nest === false) return { nests: [], used: kinds.map(() => 0) };
     const set: NestSet = buildNests(

@@ -20,8 +20,7 @@
  * Where a stack pays: the per-copy pitch against the copy's own height plus
  * the spacing, as for pairs (./nest.ts bestPair). How many copies a stack
  * holds: enough that the stacks stand on the plate side by side, or as tall as
- * the whole build is foreseen to be (its units' boxes, grown by the spacing,
- * over the plate), whichever is more.
+ * the whole build is foreseen to be (foreseenHeight), whichever is more.
  */
 import { TOLERANCE_MM } from '../geometry';
 import { blocksLift, PlacedBvh, surfaceDistance } from './bvh';
