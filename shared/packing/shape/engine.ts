@@ -562,7 +562,7 @@ function* solve(
   const nestKinds = (lids: boolean, of: Kind[] = kinds) => of.map((k) => ({ quantity: k.fits ? k.part.quantity : 0, profiles: k.profiles, inside: k.allProfiles, flip: lids ? k.flip : undefined }));
   /** Per plan cell and kind, the turn and pitch its copies stack at (null: they do not stack); the meshes are looked at once. */
   const stackTurns = new Map<string, StackTurn | null>();
-  let stackSearchLeft = 0.1 * instance.timeLimitMs;
+  let stackSearchLeft = Math.max(300, 0.1 * instance.timeLimitMs);
   const g = instance.spacing;
   /** `of` and `on`: the kinds' profiles drawn on another plan cell, and that cell. */
   const nestSet = (ways: number, halt: () => boolean, lids = false, of: Kind[] = kinds, on = cell): NestSet => {
@@ -581,10 +581,11 @@ function* solve(
         if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return null;
         const key = `${on}:${i}`;
         if (!stackTurns.has(key)) {
-          // Timed, the search of a kind's pitch on its mesh ends after 3 % of the limit (all kinds' after a tenth)
+          // Timed, the search of a kind's pitch on its mesh ends after 3 % of the limit, at least 250 ms (all kinds'
+          // after a tenth, at least 300 ms: a first search on a cold start takes 150-200 ms for a 500-triangle cup)
           // with the lowest found so far; then the plan grid's pitch stands.
           const t = now();
-          const by = t + Math.min(Math.max(100, 0.03 * instance.timeLimitMs), stackSearchLeft);
+          const by = t + Math.min(Math.max(250, 0.03 * instance.timeLimitMs), stackSearchLeft);
           stackTurns.set(key, stackTurn(k.part, k.allProfiles, on, g, options.pairGain, () => halt() || (timed && now() > by)));
           stackSearchLeft -= now() - t;
         }

@@ -61,27 +61,33 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
   const at = (z: number) => new PlacedBvh(bvh, p.rotation, [-p.rotatedMin[0], -p.rotatedMin[1], z - p.rotatedMin[2]]);
   const low = at(0);
   const need = spacing + 2 * TOLERANCE_MM;
+  // The most material a plan cell's column spans: a copy z above another can only be held down by it (the lower
+  // one's material over the upper's, at one plan point) where the part spans more than z at that point.
+  let span = 0;
+  for (let k = 0; k < p.top.length; k++) span = Math.max(span, p.top[k] - p.bottom[k]);
   /**
    * How far the copies' surfaces are apart beyond what is needed, with the upper copy at z: negative when closer
    * (or when the upper copy cannot go straight up, or a copy k pitches up is too close).
    */
   const margin = (z: number): number => {
     const up = at(z);
-    // Capped a millimetre over what is needed: pairs further apart are not looked at closely.
+    // Capped a millimetre over what is needed (the grid pitch's margin is taken as this): pairs further apart are not
+    // looked at closely.
     const d = surfaceDistance(low, up, need + 1) - need;
     if (d < 0) return d;
     // Two copies of one shape, one shifted, cannot lie one in the other: no test for it.
-    if (blocksLift(up, low, TOLERANCE_MM)) return -TOLERANCE_MM;
+    if (span > z && blocksLift(up, low, TOLERANCE_MM)) return -TOLERANCE_MM;
     for (let k = 2; (k - 1) * z < full; k++) if (pairGap(low, at(k * z), need, TOLERANCE_MM) !== null) return -TOLERANCE_MM;
     return d;
   };
   // Regula falsi (the Illinois variant) on the margin, between z = 0 (a copy in itself) and the grid's pitch: on
   // the sloping walls of a nested pair the distance grows about linearly with the pitch, so a few steps do. It aims
   // a few microns over the root (TARGET), so that its guesses land on the clear side, and ends within twice that.
+  // The grid's pitch is clear by the drop argument, so it is not looked at again: its margin is taken as the cap
+  // (what the surfaces' distance, capped, mostly comes to there), and the first look is already below it. Where
+  // it is exact (a flat floor over a flat floor, the spacing apart), the looks below all fail and it stands.
   let lo = 0, flo = -need;
-  let hi = hi0, fhi = margin(hi0);
-  // The grid's pitch can be exact (a flat floor over a flat floor, the spacing apart): nothing lower to look for.
-  if (fhi < 0) return hi0 <= gain * full ? hi0 : null;
+  let hi = hi0, fhi = 1;
   let side = 0;
   for (let step = 0; step < 40 && hi - lo > 0.01 && fhi > 2 * TARGET && !halt(); step++) {
     let z = hi - ((fhi - TARGET) * (hi - lo)) / (fhi - flo);
