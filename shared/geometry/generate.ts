@@ -517,7 +517,7 @@ export function torus(majorRadiusMm: number, minorRadiusMm: number, majorSegment
   return { positions, indices };
 }
 
-export type DemoPartKind = 'bracket' | 'clip' | 'gear' | 'housing' | 'hinge' | 'cable-guide';
+export type DemoPartKind = 'bracket' | 'clip' | 'gear' | 'housing' | 'hinge' | 'cable-guide' | 'cup';
 
 export interface DemoPart {
   name: string;
@@ -544,5 +544,7 @@ export function demoLibrary(): DemoPart[] {
     { name: 'Arm hinge leaf', kind: 'hinge', throughHoles: 1, mesh: hingeLeaf({ knuckleRadiusMm: 6, pinRadiusMm: 2.5, leafLengthMm: 45, leafThicknessMm: 4, widthMm: 24, segments: 128 }) },
     { name: 'Cable guide 8', kind: 'cable-guide', throughHoles: 0, mesh: cableGuide({ channelWidthMm: 8, channelDepthMm: 6, wallMm: 2, flangeMm: 8, lengthMm: 30 }) },
     { name: 'Cable guide 16', kind: 'cable-guide', throughHoles: 0, mesh: cableGuide({ channelWidthMm: 16, channelDepthMm: 10, wallMm: 2.5, flangeMm: 10, lengthMm: 40 }) },
+    // Its walls lean 26.6 degrees: copies sink into each other, about 10.7 mm apart (packing by shape stacks them).
+    { name: 'Sorting cup 52', kind: 'cup', throughHoles: 0, mesh: taperedCup({ bottomRadiusMm: 16, topRadiusMm: 26, heightMm: 20, wallMm: 2, floorMm: 2.5, segments: 64 }) },
   ];
 }

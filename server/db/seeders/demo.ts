@@ -210,6 +210,14 @@ async function seedRequests(
       notes: 'Spares for the rover that came back from the field trial.',
       lines: [['Lid hinge leaf', 10], ['Arm hinge leaf', 10], ['Tube clip 20', 24]],
     },
+    {
+      title: 'Sorting cups for the assembly bench',
+      material: 0,
+      inDays: 16,
+      priority: 'low',
+      notes: 'Thin-walled cups: they sink into each other, so a build packed by shape holds many.',
+      lines: [['Sorting cup 52', 36]],
+    },
   ];
   for (const r of requests) {
     const row = await db.models.Request.create(

@@ -22,8 +22,8 @@ import {
 describe('demo library meshes', () => {
   const library = demoLibrary();
 
-  test('covers brackets, clips, gears, housings, hinges and cable guides', () => {
-    expect(new Set(library.map((p) => p.kind))).toEqual(new Set(['bracket', 'clip', 'gear', 'housing', 'hinge', 'cable-guide']));
+  test('covers brackets, clips, gears, housings, hinges, cable guides and a cup', () => {
+    expect(new Set(library.map((p) => p.kind))).toEqual(new Set(['bracket', 'clip', 'gear', 'housing', 'hinge', 'cable-guide', 'cup']));
     expect(new Set(library.map((p) => p.name)).size).toBe(library.length);
   });
 

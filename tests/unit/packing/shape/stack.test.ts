@@ -44,6 +44,8 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     ['walls leaning 21.8 degrees: the walls decide', cup(18, 30, 30, 2, 2), 13.078],
     ['a wide bowl leaning 45 degrees: the walls decide', cup(20, 40, 20, 2, 2), 6.243],
     ['a shallow tray with a 4 mm floor: the floors decide', cup(20, 40, 10, 2, 4), 7],
+    // The demo library's sorting cup (shared/geometry demoLibrary).
+    ['a cup leaning 26.6 degrees, as the demo lab\'s sorting cup: the walls decide', cup(16, 26, 20, 2, 2.5), 10.708],
   ])('%s', (_name, c, expected) => {
     // The formula's value, written out, so a wrong formula cannot pass with a wrong engine.
     expect(geometricPitch(c, G)).toBeCloseTo(expected, 3);
