@@ -49,10 +49,10 @@ interface NestKind {
 }
 
 /** A part holds others when at least this share of its box is room under its top. */
-const MIN_HOLLOW = 0.35;
+export const MIN_HOLLOW = 0.35;
 
 /** Room under a profile's top that the part does not take, as a share of its box. */
-function hollowShare(p: Profile, cell: number): number {
+export function hollowShare(p: Profile, cell: number): number {
   let room = 0;
   for (let k = 0; k < p.top.length; k++) room += p.extent[2] - p.top[k];
   // Columns the part does not cover at all are room too.

@@ -9,8 +9,10 @@
  * keeps the highest point of a sloping wall over the whole cell, and the
  * height map's square dilation takes the highest top within the spacing, so on
  * a wall of slope s the grid's pitch errs upwards by about s times a few cells
- * (for a cup whose walls lean 22 degrees, 23 mm against 13 mm). The grid's
- * pitch (valid by the drop argument of ./grid.ts) bounds it from above; a
+ * (for a cup whose walls lean 22 degrees, 23 mm against 13 mm; for a deep
+ * bin whose walls lean 10 degrees, more than its height). The grid's pitch
+ * (valid by the drop argument of ./grid.ts), or for a turn open upwards the
+ * copy's height and the spacing, bounds it from above; a
  * search below it (regula falsi on the surfaces' distance) keeps, at every
  * step, a pitch at which the copies' surfaces are the spacing apart
  * (./bvh.ts surfaceDistance, exact to the triangles) and the upper copy lifts
@@ -25,7 +27,7 @@
 import { TOLERANCE_MM } from '../geometry';
 import { blocksLift, PlacedBvh, surfaceDistance } from './bvh';
 import { drop, gridOf } from './grid';
-import { nestProfile, type Nest } from './nest';
+import { hollowShare, MIN_HOLLOW, nestProfile, type Nest } from './nest';
 import type { ShapePart } from './parts';
 import type { Profile } from './profile';
 import { pairGap } from './validate';
@@ -50,13 +52,17 @@ function gridPitch(p: Profile, cell: number, spacing: number): number {
 export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: number, gain = 0.85, halt: () => boolean = () => false): number | null {
   if (!part.watertight) return null;
   const full = p.extent[2] + spacing;
-  const hi0 = gridPitch(p, cell, spacing);
-  // Where even a lossless pitch would not pay, no mesh is looked at.
-  if (hi0 >= full - 1e-9) return null;
+  const grid = gridPitch(p, cell, spacing);
+  // Where the grid sees no copy sink into another, only a turn open upwards is looked at on the meshes: on a
+  // steep wall the grid errs upwards by about the wall's slope times a few cells, so a deep bin whose walls lean
+  // 10 degrees comes out at its full height there though its copies sink in by a sixth. Such a turn is searched
+  // from the full height down (a copy on top of another is the spacing clear of it).
+  if (grid >= full - 1e-9 && hollowShare(p, cell) < MIN_HOLLOW) return null;
+  const hi0 = Math.min(grid, full);
   // A heavy mesh's nested copies take seconds a look (every triangle is near many of the other copy's): the grid's
   // pitch stands, as it does for the drop (a copy at twice the pitch clears the first, since the map only rises);
   // so it does when there is no time to look.
-  if (part.mesh.indices.length / 3 > MAX_EXACT_TRIANGLES || halt()) return hi0 <= gain * full ? hi0 : null;
+  if (part.mesh.indices.length / 3 > MAX_EXACT_TRIANGLES || halt()) return grid <= gain * full ? grid : null;
   const bvh = part.bvh();
   const at = (z: number) => new PlacedBvh(bvh, p.rotation, [-p.rotatedMin[0], -p.rotatedMin[1], z - p.rotatedMin[2]]);
   const low = at(0);
@@ -72,8 +78,8 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
   const margin = (z: number): number => {
     const up = at(z);
     // Capped a millimetre over what is needed (the grid pitch's margin is taken as this): pairs further apart are not
-    // looked at closely.
-    const d = surfaceDistance(low, up, need + 1) - need;
+    // looked at closely. Copies far into each other end the look at the first pair under half the spacing.
+    const d = surfaceDistance(low, up, need + 1, need / 2) - need;
     if (d < 0) return d;
     // Two copies of one shape, one shifted, cannot lie one in the other: no test for it.
     if (span > z && blocksLift(up, low, TOLERANCE_MM)) return -TOLERANCE_MM;
@@ -83,9 +89,10 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
   // Regula falsi (the Illinois variant) on the margin, between z = 0 (a copy in itself) and the grid's pitch: on
   // the sloping walls of a nested pair the distance grows about linearly with the pitch, so a few steps do. It aims
   // a few microns over the root (TARGET), so that its guesses land on the clear side, and ends within twice that.
-  // The grid's pitch is clear by the drop argument, so it is not looked at again: its margin is taken as the cap
-  // (what the surfaces' distance, capped, mostly comes to there), and the first look is already below it. Where
-  // it is exact (a flat floor over a flat floor, the spacing apart), the looks below all fail and it stands.
+  // The grid's pitch is clear by the drop argument (and the full height trivially), so it is not looked at again:
+  // its margin is taken as the cap (what the surfaces' distance, capped, mostly comes to there), and the first look
+  // is already below it. Where it is exact (a flat floor over a flat floor, the spacing apart), the looks below all
+  // fail and it stands.
   let lo = 0, flo = -need;
   let hi = hi0, fhi = 1;
   let side = 0;
@@ -117,14 +124,16 @@ export interface StackTurn {
 
 /**
  * The turn of `part` whose copies take least room stacked (grown plan box times pitch) among `turns`: the grid's
- * pitches rank them, the meshes decide among the three best. Null when no turn stacks with a gain.
+ * pitches rank them (at most the copy's height and the spacing, for the turns open upwards), the meshes decide
+ * among the three best. Null when no turn stacks with a gain.
  */
 export function stackTurn(part: ShapePart, turns: readonly Profile[], cell: number, spacing: number, gain = 0.85, halt: () => boolean = () => false): StackTurn | null {
   if (!part.watertight) return null;
   const g = spacing;
   const ranked = turns
     .map((p) => ({ p, grid: gridPitch(p, cell, g) }))
-    .filter((c) => c.grid < c.p.extent[2] + g - 1e-9)
+    .filter((c) => c.grid < c.p.extent[2] + g - 1e-9 || hollowShare(c.p, cell) >= MIN_HOLLOW)
+    .map((c) => ({ p: c.p, grid: Math.min(c.grid, c.p.extent[2] + g) }))
     .sort((a, b) => (a.p.extent[0] + g) * (a.p.extent[1] + g) * a.grid - (b.p.extent[0] + g) * (b.p.extent[1] + g) * b.grid)
     .slice(0, 3);
   let best: (StackTurn & { room: number }) | null = null;

@@ -54,6 +54,43 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     expect(Math.abs(pitch! - expected)).toBeLessThan(0.05);
   });
 
+  // With four sides the same builder makes a square tray (its corners on the axes): flat walls, so the formula
+  // holds exactly, with the wall's lean and thickness taken square to a face, not along a corner. A face's distance
+  // from the axis is the corner's radius over sqrt 2, so tan t = (top - foot radius) / (sqrt 2 x height), and the
+  // wall, w across at a corner, is w / sqrt 2 thick square to the face. Where two faces meet, the upper tray's outer
+  // corner and the lower one's inner corner are further apart than the faces (the faces decide).
+  test.each([
+    ['a square tray leaning 35.3 degrees', cup(20, 40, 20, 3, 2), 8.196],
+    ['a deep square tray leaning 10.7 degrees', cup(20, 28, 30, 3, 2), 27.44],
+  ])('%s: flat faces, the walls decide', (_name, c, expected) => {
+    const sq = { ...c, segments: 4 };
+    const lean = Math.atan((c.topRadiusMm - c.bottomRadiusMm) / (Math.SQRT2 * c.heightMm));
+    const formula = Math.max(c.floorMm + G, (G + (c.wallMm / Math.SQRT2) * Math.cos(lean)) / Math.sin(lean));
+    expect(formula).toBeCloseTo(expected, 3);
+    const pitch = pitchOnMesh(sq);
+    expect(pitch).not.toBeNull();
+    expect(Math.abs(pitch! - formula)).toBeLessThan(0.02);
+  });
+
+  test('six deep square trays on a plate with room for two stand in two stacks of three, though the plan grid sees no tray sink into another', () => {
+    const c = { ...cup(20, 28, 30, 3, 2), segments: 4 };
+    // 56 mm corner to corner: two side by side on a 120 x 62 mm plate, not three, and not two across.
+    const inst = shapeInstance([{ id: 'tray', mesh: taperedCup(c), quantity: 6, orientations: ['upright'] }], G, { chamber: [120, 62, 300] });
+    const [part] = shapeParts(inst);
+    const cell = defaultCell(inst);
+    // On the plan grid alone (no stacks) a tray rests on the one under it where the grid puts it, far higher.
+    const p = columnProfile(part, 0, cell, G);
+    const onGrid = createShapePacking(inst, { maxRuns: 2, stacks: false }).runSync();
+    expect(validateShapeLayout(inst, onGrid)).toEqual([]);
+    expect(onGrid.height).toBeGreaterThan(p.extent[2] + 2 * (p.extent[2] + G) * 0.85);
+    const stacked = createShapePacking(inst, { maxRuns: 2 }).runSync();
+    expect(validateShapeLayout(inst, stacked)).toEqual([]);
+    expect(stacked.placements).toHaveLength(6);
+    // The formula's pitch (27.44 mm, above): 30 + 2 x 27.44 = 84.88 mm.
+    expect(stacked.height).toBeGreaterThan(30 + 2 * 27.44 - 0.05);
+    expect(stacked.height).toBeLessThan(30 + 2 * 27.44 + 0.1);
+  });
+
   test('a cup whose walls barely lean gains too little to stack (the pitch is over 0.85 of its height plus the spacing)', () => {
     const c = cup(25, 30, 40, 2, 3);
     // 40.19 mm of 43: 0.93.
