@@ -522,7 +522,8 @@ function* solve(
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
         const turned = pl.orientation === 'yxz';
         // A stack's copies settle together (their pitch is the meshes', finer than the settling's grid).
-        const group = n.stacked ? { group: groups++ } : {};
+        // (and sink onto a copy of a stack under them at the same pitch, where one stands straight under the first).
+        const group = n.stacked ? { group: groups++, pitch: n.members[1].dz - n.members[0].dz } : {};
         for (const m of n.members) {
           const [mx, my] = [m.du * nestCell, m.dv * nestCell];
           if (!turned) {

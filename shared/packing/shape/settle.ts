@@ -40,6 +40,12 @@ export interface SettleItem {
    * meshes (a stack, ./stack.ts), closer than this grid would put them.
    */
   group?: number;
+  /**
+   * The first item of a group may rest this high over a copy of its part in the same turn straight under it (same
+   * plan place): the pitch its group was found clear at on the meshes. Two stacks one on the other then close up
+   * into one, where the grid alone would leave them further apart.
+   */
+  pitch?: number;
 }
 
 /** A profile as dense maps over its own cells: bottom (+Infinity where empty) and top (-Infinity). */
@@ -131,8 +137,10 @@ export function settleLayout(
   const out: SettleItem[] = [];
   /** How far the first item of each group sank. */
   const sank = new Map<number, number>();
-  /** The lowest clear height of P at (x, y) under `z0` among the settled items (not those of group `skip`). */
-  const needOf = (P: Dense, x: number, y: number, z0: number, skip?: number): number => {
+  /** The copy a group's first item rests on at the group's pitch (./stack.ts): the rest of the group stands a whole number of pitches over it. */
+  const restsOn = new Map<number, number>();
+  /** The lowest clear height of P at (x, y) under `z0` among the settled items (not those of group `skip`, nor item `skipItem`). */
+  const needOf = (P: Dense, x: number, y: number, z0: number, skip?: number, skipItem?: number): number => {
     let need = floor;
     const seen = new Set<number>();
     const i0 = Math.floor((x - g) / bucket), i1 = Math.floor((x + P.extent[0] + g) / bucket);
@@ -140,7 +148,7 @@ export function settleLayout(
     for (let i = i0; i <= i1 && need < z0; i++) {
       for (let j = j0; j <= j1 && need < z0; j++) {
         for (const q of buckets.get(keyOf(i, j)) ?? []) {
-          if (seen.has(q)) continue;
+          if (seen.has(q) || q === skipItem) continue;
           seen.add(q);
           const Q = out[q];
           if (skip !== undefined && Q.group === skip) continue;
@@ -151,6 +159,17 @@ export function settleLayout(
     }
     return need;
   };
+  /** The highest settled copy of the item's part in its turn at its plan place, under `z` (-1: none). */
+  const copyUnder = (item: SettleItem, z: number): number => {
+    let best = -1;
+    const [x, y] = item.position;
+    for (const q of buckets.get(keyOf(Math.floor(x / bucket), Math.floor(y / bucket))) ?? []) {
+      const Q = out[q];
+      if (Q.part !== item.part || Q.rotation !== item.rotation || Math.abs(Q.position[0] - x) > 1e-6 || Math.abs(Q.position[1] - y) > 1e-6) continue;
+      if (Q.position[2] < z && (best < 0 || Q.position[2] > out[best].position[2])) best = q;
+    }
+    return best;
+  };
   for (const item of items) {
     const P = profileOf(item.part, item.rotation);
     const [x, y, z0] = item.position;
@@ -158,8 +177,22 @@ export function settleLayout(
     // A later item of a group whose first sank: as far down with it, if nothing else is in the way.
     const by = item.group !== undefined ? sank.get(item.group) : undefined;
     let z = z0;
-    if (!stopped && by !== undefined && by > 0 && needOf(P, x, y, z0 - by, item.group) + 1e-7 <= z0 - by) z = z0 - by;
-    else if (!stopped) z = restingZ(needOf(P, x, y, z0), z0);
+    if (!stopped && by !== undefined && by > 0 && needOf(P, x, y, z0 - by, item.group, restsOn.get(item.group!)) + 1e-7 <= z0 - by) z = z0 - by;
+    else if (!stopped) {
+      z = restingZ(needOf(P, x, y, z0), z0);
+      // A stack's copy over a copy of its part in the same turn, straight under it (the top of another stack, or
+      // of its own where it could not follow): the stack's pitch over that copy, clear on the meshes, if nothing
+      // else is in the way (the copies further down, a whole number of pitches away or further where the settling
+      // opened their stack up, the grid checks).
+      const under = item.pitch !== undefined ? copyUnder(item, z) : -1;
+      if (under >= 0) {
+        const over = out[under].position[2] + item.pitch!;
+        if (over < z - 1e-9 && needOf(P, x, y, z0, undefined, under) <= over + 1e-9) {
+          z = over;
+          if (!sank.has(item.group!)) restsOn.set(item.group!, under);
+        }
+      }
+    }
     if (item.group !== undefined && !sank.has(item.group)) sank.set(item.group, z0 - z);
     const placed: SettleItem = { part: item.part, rotation: item.rotation, position: [x, y, z], ...(item.group !== undefined ? { group: item.group } : {}) };
     const at = out.length;

@@ -144,4 +144,26 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     expect(apart[0].position[2]).toBeCloseTo(0, 5);
     expect(apart[2].position[2]).toBeGreaterThan(2 * pitch + 2);
   });
+
+  test('a stack set on another straight over it closes up into one at the pitch: the junction is a pitch, not the grid\'s', () => {
+    const c = cup(18, 30, 30, 2, 2);
+    const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 6, orientations: ['upright'] }], G);
+    const parts = shapeParts(inst);
+    const pitch = pitchOnMesh(c)!;
+    // Two stacks of three as their boxes stand one on the other (the upper's box the spacing over the lower's).
+    const lowerTop = 30 + 2 * pitch;
+    const stacks = [0, 1, 2, 3, 4, 5].map((i) => ({
+      part: 0,
+      rotation: 0,
+      position: [50, 50, i < 3 ? i * pitch : lowerTop + G + (i - 3) * pitch] as [number, number, number],
+      group: i < 3 ? 1 : 2,
+    }));
+    const closed = settleLayout(inst, parts, stacks.map((it) => ({ ...it, pitch })));
+    expect(closed.map((it) => it.position[2])).toEqual([0, 1, 2, 3, 4, 5].map((i) => expect.closeTo(i * pitch, 5)));
+    const result = summariseShapeLayout(inst, closed.map((it) => ({ id: 'cup', rotation: it.rotation, position: it.position })));
+    expect(validateShapeLayout(inst, result)).toEqual([]);
+    // Without the pitch the upper stack's first cup rests where the settling's grid puts it over the lower's top.
+    const apart = settleLayout(inst, parts, stacks);
+    expect(apart[3].position[2]).toBeGreaterThan(3 * pitch + 2);
+  });
 });
