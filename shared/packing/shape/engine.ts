@@ -101,6 +101,8 @@ interface NestSet {
   used: number[];
   /** The plan cell the nests were filled on (the run's when not given): their members' offsets are in its cells. */
   cell?: number;
+  /** The same with stacks of other heights, where the box engine's first layout of those units came out lower. */
+  otherStacks?: NestSet;
 }
 
 interface Placed {
@@ -493,26 +495,28 @@ function* solve(
   const byId = new Map(parts.map((p) => [p.id, p] as const));
   // The box engine's own pauses are this run's: progress and a stop get through while it searches.
   // With a nest set, each nest is one box, turned a quarter about z when all it holds may turn so, its members following it.
-  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null): Generator<void, Placed[], void> {
+  /** The boxes the box engine packs for a set of nests: each nest one box, the copies left each their own. */
+  const unitBoxes = (set: NestSet | null, ms: number): PackInstance => {
     const base = boxInstance({ ...instance, timeLimitMs: ms }, parts);
-    const nestId = (j: number) => `${NEST_ID}${j}`;
+    if (!set || parts.some((p) => p.id.startsWith(NEST_ID))) return base;
+    const turnable = set.nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
+    return {
+      ...base,
+      parts: [
+        ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - set.used[i] })).filter((p) => p.quantity > 0),
+        ...set.nests.map((n, j) => ({
+          id: `${NEST_ID}${j}`,
+          size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3,
+          quantity: 1,
+          orientations: turnable[j] ? ['xyz' as const, 'yxz' as const] : ['xyz' as const],
+        })),
+      ],
+    };
+  };
+  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null): Generator<void, Placed[], void> {
     const nests = set ? set.nests : [];
     const nestCell = set?.cell ?? cell;
-    const turnable = nests.map((n) => n.members.every((m) => parts[m.kind].rotations.includes(composeRotations(m.profile.rotation, QUARTER_Z))));
-    const boxed = set && !parts.some((p) => p.id.startsWith(NEST_ID))
-      ? {
-          ...base,
-          parts: [
-            ...base.parts.map((p, i) => ({ ...p, quantity: p.quantity - set.used[i] })).filter((p) => p.quantity > 0),
-            ...nests.map((n, j) => ({
-              id: nestId(j),
-              size: [n.profile.extent[0], n.profile.extent[1], n.profile.extent[2]] as Vec3,
-              quantity: 1,
-              orientations: turnable[j] ? ['xyz' as const, 'yxz' as const] : ['xyz' as const],
-            })),
-          ],
-        }
-      : base;
+    const boxed = unitBoxes(set, ms);
     const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
     const items: SettleItem[] = [];
     let groups = 0;
@@ -607,22 +611,57 @@ function* solve(
         // The first sets' stacks stand as tall as their places on the plate need; the sets that try other holder
         // turns take them only as tall as the build's volume over the plate: lower stacks beside more of the rest
         // (which of the two is lower depends on how much else there is; the box search of each set tells).
-        const height = foreseenHeight(stackable, volume, g, [plate[0], plate[1]], plate[2], ways === 1);
-        turns.forEach((t, i) => {
-          if (!t) return;
-          const left = of[i].part.quantity - set.used[i];
-          for (const stack of stacksOf(i, left, t, copiesPerStack(left, t, g, [plate[0], plate[1]], plate[2], height), on, g)) {
-            set.nests.push(stack);
-            set.used[i] += stack.members.length;
+        const foreseen = foreseenHeight(stackable, volume, g, [plate[0], plate[1]], plate[2], ways === 1);
+        const withStacks = (height: number): NestSet => {
+          const out: NestSet = { nests: [...set.nests], used: [...set.used], ...(on === cell ? {} : { cell: on }) };
+          turns.forEach((t, i) => {
+            if (!t) return;
+            const left = of[i].part.quantity - set.used[i];
+            for (const stack of stacksOf(i, left, t, copiesPerStack(left, t, g, [plate[0], plate[1]], plate[2], height), on, g)) {
+              out.nests.push(stack);
+              out.used[i] += stack.members.length;
+            }
+          });
+          return out;
+        };
+        const stacked = withStacks(foreseen);
+        // The foreseen height is a reckoning of the plate's room: where the stacks are few and tall, shorter ones,
+        // beside each other or on others, can stand lower (deep bins: 0.8 of the height). So the heights at which
+        // a kind's stacks take one copy fewer (the five nearest under it) are judged by the box engine's first
+        // layout of the set's units (a few milliseconds each); the lowest, where it beats the foreseen one's, is
+        // kept beside it as one more set for the box search. That first layout is a rough judge (with many tall
+        // units it can come out at three times the searched height), so it only proposes.
+        if (ways === 1 && on === cell && !halt()) {
+          const heights = new Set<number>();
+          for (const t of turns) {
+            if (t) for (let j = 1; t.profile.extent[2] + j * t.pitch < foreseen; j++) heights.add(t.profile.extent[2] + j * t.pitch + 1e-6);
           }
-        });
+          const firstHeight = (trial: NestSet) => packSync(unitBoxes(trial, instance.timeLimitMs), { maxCompletions: 0 }).height;
+          const foreseenFirst = firstHeight(stacked);
+          let other: { set: NestSet; height: number } | null = null;
+          for (const h of [...heights].sort((a, b) => b - a).slice(0, 5)) {
+            if (halt()) break;
+            const trial = withStacks(h);
+            if (trial.nests.length === stacked.nests.length) continue;
+            const height = firstHeight(trial);
+            if (height < foreseenFirst - 1e-9 && (!other || height < other.height - 1e-9)) other = { set: trial, height };
+          }
+          if (other) set.otherStacks = other.set;
+        }
+        set.nests = stacked.nests;
+        set.used = stacked.used;
       }
     }
-    of.forEach((k, i) => {
-      if (!k.fits || k.part.quantity - set.used[i] < 2 || halt()) return;
-      const pair = bestPair(i, k.profiles.slice(0, 3), k.allProfiles, on, instance.spacing, [plate[0], plate[1]], options.pairGain);
-      for (; pair && k.part.quantity - set.used[i] >= 2; set.used[i] += 2) set.nests.push(pair);
-    });
+    // Pairs of what is left (of the kinds that neither nest nor stack), in the other stacks' set too.
+    const pairs = new Map<number, Nest | null>();
+    for (const into of set.otherStacks ? [set, set.otherStacks] : [set]) {
+      of.forEach((k, i) => {
+        if (!k.fits || k.part.quantity - into.used[i] < 2 || halt()) return;
+        if (!pairs.has(i)) pairs.set(i, bestPair(i, k.profiles.slice(0, 3), k.allProfiles, on, instance.spacing, [plate[0], plate[1]], options.pairGain));
+        const pair = pairs.get(i);
+        for (; pair && k.part.quantity - into.used[i] >= 2; into.used[i] += 2) into.nests.push(pair);
+      });
+    }
     return on === cell ? set : { ...set, cell: on };
   };
   const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
@@ -680,7 +719,7 @@ function* solve(
       // A third set lets two copies of a holder face each other, the second upside down as a lid over both
       // hollows (./nest.ts buildNests `flip`): tall units, lower where they take what no single holder can.
       const lidSet = lids && primary !== alone;
-      const perSet = (instance.timeLimitMs * boxShare * nestShare) / ((ways > 1 ? 2 : 1) + (lidSet ? 1 : 0));
+      const perSet = (instance.timeLimitMs * boxShare * nestShare) / ((ways > 1 ? 2 : 1) + (lidSet ? 1 : 0) + (primary.otherStacks ? 1 : 0));
       /** The box search of one set's nests for its share of the time; false when no time was left for it. */
       const searchSet = function* (set: NestSet): Generator<void, boolean, void> {
         const ms = stop() ? null : budget(perSet, true);
@@ -692,6 +731,7 @@ function* solve(
       };
       const tooLate = () => stop() || (timed && leftFor(true) < perSet / 2);
       const primaryDone = yield* searchSet(primary);
+      if (primaryDone && primary.otherStacks && !tooLate()) yield* searchSet(primary.otherStacks);
       // When the nests have already brought the layout well under the first one (the boxes', settled), the search
       // of the parts' own boxes cannot catch up (in the benchmark's mixes it brings the first layout down by about
       // a tenth); its time goes to one more set of nests, filled on a finer plan cell: a part's column profile

@@ -4,7 +4,7 @@ import { parseInstanceV2, type PackInstanceV2, type PartMesh } from '@/shared/pa
 export function shapeInstance(
   parts: Array<{ id: string; mesh: PartMesh; quantity: number; orientations?: string[] }>,
   spacing: number,
-  more: { chamber?: [number, number, number]; timeLimitMs?: number } = {},
+  more: { chamber?: [number, number, number]; timeLimitMs?: number; margin?: { xy: number; bottom: number; top: number } } = {},
 ): PackInstanceV2 {
   const parsed = parseInstanceV2({
     format: 'pack-instance/2',

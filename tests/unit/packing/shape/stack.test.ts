@@ -91,6 +91,33 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     expect(stacked.height).toBeLessThan(30 + 2 * 27.44 + 0.1);
   });
 
+  test('deep bins of two shapes and cups kept upright: stacks of three stand side by side, the build one hexagonal bin stack tall', () => {
+    // 20 square bins (above: pitch 27.44 mm), 16 hexagonal bins 35 mm tall and 12 cups on a 234 mm plate. The
+    // plate's room reckoned for the stacks alone says stacks of four square bins (112.4 mm); as boxes of three
+    // (84.9 mm) beside hexagonal ones of three (35 + 2 x 26.39 = 87.8 mm, the hexagon's faces leaning 11.2 degrees:
+    // tan t = 8 cos 30 / 35, the wall 2.5 cos 30 thick square to a face) and two tall stacks of cups they fit in
+    // one tier, 5 mm over the floor margin.
+    const bins: Array<[string, TaperedCupParams, number]> = [
+      ['bin-sq', { ...cup(20, 28, 30, 3, 2), segments: 4 }, 20],
+      ['bin-hex', { ...cup(22, 30, 35, 2.5, 2.5), segments: 6 }, 16],
+      ['cup', cup(16, 26, 20, 2, 2.5), 12],
+    ];
+    const hex = bins[1][1];
+    const lean = Math.atan(((hex.topRadiusMm - hex.bottomRadiusMm) * Math.cos(Math.PI / 6)) / hex.heightMm);
+    const hexPitch = (G + hex.wallMm * Math.cos(Math.PI / 6) * Math.cos(lean)) / Math.sin(lean);
+    expect(hexPitch).toBeCloseTo(26.387, 3);
+    const inst = shapeInstance(
+      bins.map(([id, c, quantity]) => ({ id, mesh: taperedCup(c), quantity, orientations: ['upright'] })),
+      G,
+      { chamber: [250, 250, 300], margin: { xy: 8, bottom: 5, top: 5 } },
+    );
+    const result = createShapePacking(inst, { maxRuns: 2 }).runSync();
+    expect(validateShapeLayout(inst, result)).toEqual([]);
+    expect(result.placements).toHaveLength(48);
+    expect(result.height).toBeGreaterThan(5 + 35 + 2 * hexPitch - 0.05);
+    expect(result.height).toBeLessThan(5 + 35 + 2 * hexPitch + 0.1);
+  });
+
   test('a cup whose walls barely lean gains too little to stack (the pitch is over 0.85 of its height plus the spacing)', () => {
     const c = cup(25, 30, 40, 2, 3);
     // 40.19 mm of 43: 0.93.
