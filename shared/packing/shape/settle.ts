@@ -41,9 +41,9 @@ export interface SettleItem {
    */
   group?: number;
   /**
-   * The first item of a group may rest this high over a copy of its part in the same turn straight under it (same
-   * plan place): the pitch its group was found clear at on the meshes. Two stacks one on the other then close up
-   * into one, where the grid alone would leave them further apart.
+   * An item of a group may rest this high over a copy of its part in the same turn straight under it (same plan
+   * place): the pitch its group was found clear at on the meshes. Two stacks one on the other then close up into
+   * one, where the grid alone would leave them further apart.
    */
   pitch?: number;
 }
