@@ -525,8 +525,8 @@ function* solve(
       if (pl.id.startsWith(NEST_ID)) {
         const n = nests[Number(pl.id.slice(NEST_ID.length))];
         const turned = pl.orientation === 'yxz';
-        // A stack's copies settle together (their pitch is the meshes', finer than the settling's grid).
-        // (and sink onto a copy of a stack under them at the same pitch, where one stands straight under the first).
+        // A stack's copies settle together, and onto a copy of their part straight under them, at their pitch (the
+        // meshes', finer than the settling's grid).
         const group = n.stacked ? { group: groups++, pitch: n.members[1].dz - n.members[0].dz } : {};
         for (const m of n.members) {
           const [mx, my] = [m.du * nestCell, m.dv * nestCell];
@@ -613,7 +613,7 @@ function* solve(
         // (which of the two is lower depends on how much else there is; the box search of each set tells).
         const foreseen = foreseenHeight(stackable, volume, g, [plate[0], plate[1]], plate[2], ways === 1);
         const withStacks = (height: number): NestSet => {
-          const out: NestSet = { nests: [...set.nests], used: [...set.used], ...(on === cell ? {} : { cell: on }) };
+          const out: NestSet = { nests: [...set.nests], used: [...set.used] };
           turns.forEach((t, i) => {
             if (!t) return;
             const left = of[i].part.quantity - set.used[i];

@@ -44,6 +44,11 @@ function gridPitch(p: Profile, cell: number, spacing: number): number {
   return z;
 }
 
+/** Whether a turn may stack: the grid sinks a copy into another, or the turn is open upwards (stackPitch). */
+function worthALook(p: Profile, grid: number, cell: number, spacing: number): boolean {
+  return grid < p.extent[2] + spacing - 1e-9 || hollowShare(p, cell) >= MIN_HOLLOW;
+}
+
 /**
  * The pitch at which copies of `part` turned as `p` stack, checked on the meshes, when it is at most `gain` of the
  * copy's height plus the spacing (the height it takes stacked as a box); otherwise null. `halt` ends the search
@@ -57,7 +62,7 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
   // steep wall the grid errs upwards by about the wall's slope times a few cells, so a deep bin whose walls lean
   // 10 degrees comes out at its full height there though its copies sink in by a sixth. Such a turn is searched
   // from the full height down (a copy on top of another is the spacing clear of it).
-  if (grid >= full - 1e-9 && hollowShare(p, cell) < MIN_HOLLOW) return null;
+  if (!worthALook(p, grid, cell, spacing)) return null;
   const hi0 = Math.min(grid, full);
   // A heavy mesh's nested copies take seconds a look (every triangle is near many of the other copy's): the grid's
   // pitch stands, as it does for the drop (a copy at twice the pitch clears the first, since the map only rises);
@@ -132,7 +137,7 @@ export function stackTurn(part: ShapePart, turns: readonly Profile[], cell: numb
   const g = spacing;
   const ranked = turns
     .map((p) => ({ p, grid: gridPitch(p, cell, g) }))
-    .filter((c) => c.grid < c.p.extent[2] + g - 1e-9 || hollowShare(c.p, cell) >= MIN_HOLLOW)
+    .filter((c) => worthALook(c.p, c.grid, cell, g))
     .map((c) => ({ p: c.p, grid: Math.min(c.grid, c.p.extent[2] + g) }))
     .sort((a, b) => (a.p.extent[0] + g) * (a.p.extent[1] + g) * a.grid - (b.p.extent[0] + g) * (b.p.extent[1] + g) * b.grid)
     .slice(0, 3);
