@@ -31,12 +31,12 @@ function geometricPitch(c: TaperedCupParams, g: number): number {
   return Math.max(c.floorMm + g, (g + c.wallMm * Math.cos(lean)) / Math.sin(lean));
 }
 
-function pitchOnMesh(c: TaperedCupParams): number | null {
+function pitchOnMesh(c: TaperedCupParams, halt?: () => boolean): number | null {
   const inst = shapeInstance([{ id: 'cup', mesh: taperedCup(c), quantity: 2, orientations: ['upright'] }], G);
   const [part] = shapeParts(inst);
   const cell = defaultCell(inst);
   // Upright as built: the identity turn. A gain of 1 keeps any pitch under the copy's height plus the spacing.
-  return stackPitch(part, columnProfile(part, 0, cell, G), cell, G, 1);
+  return stackPitch(part, columnProfile(part, 0, cell, G), cell, G, 1, halt);
 }
 
 describe('stacked copies of a cup (pitch against elementary geometry)', () => {
@@ -70,6 +70,21 @@ describe('stacked copies of a cup (pitch against elementary geometry)', () => {
     const pitch = pitchOnMesh(sq);
     expect(pitch).not.toBeNull();
     expect(Math.abs(pitch! - formula)).toBeLessThan(0.02);
+  });
+
+  test('a look cut short by the time counts for nothing: the pitch stays where nothing was looked at', () => {
+    // Finely tessellated walls: a look takes thousands of pairs of leaves, so the halt, asked every 256, trips inside
+    // the first look (the search asks it twice before: on the way in and at its first step).
+    const c = { ...cup(18, 30, 30, 2, 2), segments: 256 };
+    const untouched = pitchOnMesh(c, () => true);
+    let asked = 0;
+    const cut = pitchOnMesh(c, () => ++asked > 2);
+    expect(asked).toBe(3);
+    expect(cut).toBe(untouched);
+    // Looked at whole, the walls' pitch (13.078 mm above), well under where the search starts.
+    const whole = pitchOnMesh(c);
+    expect(Math.abs(whole! - 13.078)).toBeLessThan(0.05);
+    expect(untouched! - whole!).toBeGreaterThan(1);
   });
 
   test('six deep square trays on a plate with room for two stand in two stacks of three, though the plan grid sees no tray sink into another', () => {
