@@ -138,8 +138,8 @@ export async function portToStartOn(log: (s: string) => void, file = PORT_FILE):
   if (process.env.SINTERSTACK_PG_PORT) return wanted;
   for (let port = wanted; port < Math.min(65536, wanted + 100); port++) {
     if (!(await portFree(port))) continue;
-    if (port !== wanted) log(`Port ${wanted} is taken (another checkout's PostgreSQL?): this checkout's cluster uses ${port} from now on (${file}).`);
-    if (port !== DEFAULT_PORT || existsSync(file)) {
+    if (port !== wanted) {
+      log(`Port ${wanted} is taken (another checkout's PostgreSQL?): this checkout's cluster uses ${port} from now on (${file}).`);
       mkdirSync(dirname(file), { recursive: true });
       writeFileSync(file, `${port}\n`);
     }
