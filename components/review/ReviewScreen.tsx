@@ -8,7 +8,9 @@ import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { PlanHistory } from '../plans/PlanHistory';
 import { numbersFromEstimate } from '../plans/estimate';
 import { STATUS_TONES } from '../plans/format';
+import { buildStackOf, stackNote } from '../plans/editorModel';
 import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
+import { useChamberMeshes } from '../plans/useChamberMeshes';
 import { useLayoutQuery, usePlanQuery } from '../queries/plans';
 import { useReviewMutation, useUndoApprovalMutation, type ReviewDecision } from '../queries/review';
 import { colors, radius, spacing, useIsWide } from '../theme';
@@ -59,13 +61,23 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const lineIds = useMemo(() => plan.lines.map((l) => l.requestLineId), [plan.lines]);
   const partNames = useMemo(() => new Map(plan.lines.map((l) => [l.requestLineId, l.part.name] as const)), [plan.lines]);
   const placements = useMemo(() => (layout.data ? toChamberPlacements(layout.data.result, lineIds) : EMPTY_PLACEMENTS), [layout.data, lineIds]);
+  // The parts drawn by their own meshes, as in the plan editor (each a box until its mesh is read).
+  const partIdsInOrder = useMemo(() => plan.lines.map((l) => l.part.id), [plan.lines]);
+  const copiesByIndex = useMemo(() => {
+    const c = new Uint32Array(lineIds.length);
+    for (const k of placements.partIndex) if (k < c.length) c[k]++;
+    return c;
+  }, [placements, lineIds.length]);
+  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, copiesByIndex);
   const numbers = useMemo(() => (layout.data ? numbersFromEstimate(layout.data.estimate, layout.data.result) : null), [layout.data]);
   const [cutMm, setCutMm] = useState<number | null>(null);
   const calibration = (layout.data?.estimate as { calibration?: { runs: number; calibrated: boolean } } | undefined)?.calibration;
   const margin = layout.data?.instance.margin ?? { xy: 0, bottom: 0, top: 0 };
   const heightMm = layout.data?.result.height ?? 0;
   const layerHeightMm = numbers?.layerHeightMm ?? (plan.material.defaultLayerHeightMm as number) ?? 0.1;
-  const top = Math.max(heightMm, layerHeightMm);
+  // Layers as printed, from the chamber floor to over the top margin, as the editor and the numbers count them.
+  const stack = buildStackOf(heightMm, { bottom: margin.bottom ?? 0, top: margin.top ?? 0 }, layerHeightMm);
+  const top = Math.max(stack.topMm, layerHeightMm);
   const chosen = plan.layouts.find((l) => l.chosen);
 
   const view3d = (
@@ -85,6 +97,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
               chamberMm={chamberMm}
               margin={{ xy: margin.xy ?? 0, bottom: margin.bottom ?? 0, top: margin.top ?? 0 }}
               placements={placements}
+              meshesByPart={chamberMeshes.meshes}
               lineColours={lineIds.map((_, i) => lineColour(i))}
               cutHeightMm={cutMm}
               describePlacement={(i) => {
@@ -129,6 +142,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
         title={chosen ? `Chosen layout: ${chosen.label}` : 'No chosen layout'}
         bedAreaMm2={chamberMm[0] * chamberMm[1]}
         cutLayer={cutMm == null ? null : Math.round(cutMm / layerHeightMm)}
+        stackNote={layout.data ? stackNote(stack) : undefined}
         note={calibrationNote(calibration)}
         partNames={partNames}
       />
@@ -163,6 +177,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
           {lines}
         </View>
       )}
+      {chamberMeshes.loaders}
     </Screen>
   );
 }

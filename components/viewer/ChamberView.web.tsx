@@ -77,6 +77,8 @@ interface ChamberProbe {
   placementAt(clientX: number, clientY: number): number | null;
   boxOf(index: number): { position: Vec3; size: Vec3 } | null;
   count: number;
+  /** Placements drawn with their part's mesh (the rest as their boxes). */
+  meshed: number;
 }
 
 const HIGHLIGHT = new THREE.Color(colors.ember);
@@ -262,8 +264,11 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
   useEffect(() => {
     const v = new THREE.Vector3();
     const caster = new THREE.Raycaster();
+    let meshed = 0;
+    for (let k = 0; k < groups.parts.length; k++) if (meshesByPart?.has(groups.parts[k])) meshed += lists[k].length;
     window.__chamberProbe = {
       count: placements.partIndex.length,
+      meshed,
       screenOf(point) {
         v.set(...point).project(camera);
         const r = gl.domElement.getBoundingClientRect();
@@ -290,7 +295,7 @@ function ChamberScene({ chamberMm, margin, placements, meshesByPart, lineColours
     return () => {
       delete window.__chamberProbe;
     };
-  }, [camera, gl, scene, placements, cutRef]);
+  }, [camera, gl, scene, placements, cutRef, groups, lists, meshesByPart]);
 
   const parts: React.ReactNode[] = [];
   for (let k = 0; k < groups.parts.length; k++) {

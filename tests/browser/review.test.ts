@@ -1,4 +1,4 @@
-import { newPage, PHONE, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
+import { newPage, PHONE, probe, screenshot, serveAndLaunch, WIDE, type Served, signIn } from '../helpers/browser';
 import { PASSWORD, startTestApp } from '../helpers/app';
 import type { Running } from '../../server/boot';
 import { sentForReview } from '../helpers/plans';
@@ -77,6 +77,26 @@ test("on a wide screen a lead lowers the lab's minimum density under Rules and t
   await strip.getByTestId('flag-not_watertight').waitFor();
   expect(await strip.getByTestId('flag-late_due_date').count()).toBe(1);
   await screenshot(page, 'review-flags-plan-wide');
+  await page.context().close();
+});
+
+test('on a wide screen the review draws the chosen layout with the parts\' own meshes and counts its layers as printed, as its numbers do', async () => {
+  const lab = await sentForReview(fixtures, 'review-meshes');
+  const page = await newPage(served, WIDE);
+  await signIn(page, lab.email, PASSWORD);
+  await page.goto(`/review/${lab.ids[0]}`);
+  await page.locator('[data-testid="review-build"] canvas').waitFor();
+  // Every placement drawn by its part's mesh once the part's file is read (before: all as boxes).
+  await page.waitForFunction('(() => { const p = window.__chamberProbe; return !!p && p.count > 0 && p.meshed === p.count; })()', undefined, { timeout: 30_000 });
+  expect(await probe<number>(page, 'count')).toBe(10);
+  // The slider's layer count is the build's as printed (floor margin, parts, top margin), the one the numbers give.
+  const slider = /^(\d+) \/ (\d+)$/.exec(((await page.getByTestId('review-layer-slider-layer').textContent()) ?? '').trim());
+  expect(slider).not.toBeNull();
+  const layers = Number(((await page.getByTestId('num-layers').textContent()) ?? '').trim());
+  expect(Number(slider![2])).toBe(layers);
+  expect(Number(slider![1])).toBe(layers);
+  await expect(page.getByTestId('num-layers-note').innerText()).resolves.toMatch(new RegExp(`^${layers} layers of [\\d.]+ mm as printed: `));
+  await screenshot(page, 'review-meshes-wide');
   await page.context().close();
 });
 
