@@ -7,8 +7,12 @@ import { colors, radius, spacing } from '../theme';
 import { Button, Field, Figure, Notice, Text } from '../ui';
 import { checkLoad, type LoadCheck } from '../../shared/powder';
 import type { PlanPowderView } from '../../shared/schemas/powder';
+import { roundUpKg } from '../../shared/floor/checklist';
+import { kgText } from './stageKit';
 
 const kg = (v: number) => `${v.toFixed(1)} kg`;
+/** A lot's share of a load: to 10 g, so that small draws do not read 0.0 kg and the draws add up to the load. */
+const drawKg = (v: number) => `${v.toFixed(2)} kg`;
 const parse = (t: string) => (t.trim() === '' ? Number.NaN : Number(t.trim().replace(',', '.')));
 const todayText = () => new Date().toISOString().slice(0, 10);
 
@@ -42,9 +46,9 @@ export function usePowderLoad(planId: string, freshKg: number, reusedKg: number)
       policy: view.policy,
       lastCheck: view.lastCheck,
     };
-    // Before the operator enters amounts, the card shows the plan's own.
-    const fresh = Number.isFinite(freshKg) ? freshKg : (view.planned?.freshKg ?? 0);
-    const reused = Number.isFinite(reusedKg) ? reusedKg : (view.planned?.reusedKg ?? 0);
+    // Before the operator enters amounts, the card shows the plan's own, rounded up as the floor shows and loads them.
+    const fresh = Number.isFinite(freshKg) ? freshKg : roundUpKg(view.planned?.freshKg ?? 0);
+    const reused = Number.isFinite(reusedKg) ? reusedKg : roundUpKg(view.planned?.reusedKg ?? 0);
     const picked = picks ? Object.entries(picks).map(([lotId, t]) => ({ lotId, kg: parse(t) })).filter((x) => Number.isFinite(x.kg) && x.kg > 0) : null;
     return checkLoad(stock, fresh, reused, picked, todayText());
   }, [view, freshKg, reusedKg, picks]);
@@ -83,7 +87,7 @@ export function PowderBeforeStart({ load, onUse, canAct }: { load: PowderLoad; o
       </Text>
       {p.planned ? (
         <Text variant="body" testID="floor-powder-plan">
-          {`The plan loads ${kg(p.planned.freshKg)} fresh and ${kg(p.planned.reusedKg)} reused (mean age ${p.stock.reusedMeanAgeBuilds.toFixed(1)} builds).`}
+          {`The plan loads ${kgText(p.planned.freshKg)} fresh and ${kgText(p.planned.reusedKg)} reused (mean age ${p.stock.reusedMeanAgeBuilds.toFixed(1)} builds).`}
         </Text>
       ) : null}
       <Figure variant="figure" color="inkMuted">{`On hand: ${kg(p.stock.freshKg)} fresh, ${kg(p.stock.reusedKg)} reused`}</Figure>
@@ -92,7 +96,7 @@ export function PowderBeforeStart({ load, onUse, canAct }: { load: PowderLoad; o
           label="Load the plan's amounts"
           variant="secondary"
           size="sm"
-          onPress={() => onUse(Math.ceil(p.planned!.freshKg * 10) / 10, Math.ceil(p.planned!.reusedKg * 10) / 10)}
+          onPress={() => onUse(roundUpKg(p.planned!.freshKg), roundUpKg(p.planned!.reusedKg))}
           testID="floor-powder-use"
         />
       ) : null}
@@ -115,7 +119,7 @@ export function PowderBeforeStart({ load, onUse, canAct }: { load: PowderLoad; o
           : check.draws.length > 0
             ? check.draws.map((d) => (
                 <Text key={d.lotId} variant="body" testID={`floor-powder-draw-${d.code}`}>
-                  {`Lot ${d.code}: ${kg(d.kg)}`}
+                  {`Lot ${d.code}: ${drawKg(d.kg)}`}
                 </Text>
               ))
             : (

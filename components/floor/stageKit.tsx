@@ -14,7 +14,7 @@ import type { RunView } from '../../shared/schemas/runs';
 import { Cautions } from './Cautions';
 import { FloorButton } from './controls';
 
-export const kgText = (kg: number) => `${(Math.ceil(kg * 10) / 10).toFixed(1)} kg`;
+export { kgUpText as kgText } from '../../shared/floor/checklist';
 export const parseNumber = (t: string) => (t.trim() === '' ? Number.NaN : Number(t.replace(',', '.')));
 
 export type StepError = { message: string; field?: string; conflict: boolean } | null;

@@ -18,7 +18,8 @@ export interface ChecklistContext {
   lines?: ReadonlyArray<{ requestLineId: string; partName: string; requestTitle: string; plannedCount: number }>;
 }
 
-const kgText = (kg: number) => `${(Math.ceil(kg * 10) / 10).toFixed(1)} kg`;
+/** A need in kilograms as the floor shows it: rounded up to the tenth (roundUpKg). */
+export const kgUpText = (kg: number) => `${roundUpKg(kg).toFixed(1)} kg`;
 
 /**
  * What the stage asks before its button moves the run on: the pre-print checks
@@ -33,8 +34,8 @@ export function stageChecklist(status: PlanStatus, context: ChecklistContext = {
       return [
         { id: 'chamberInPlace', kind: 'confirm', field: 'checklist.chamberInPlace', label: 'The build chamber is in place' },
         { id: 'opticalWindowClean', kind: 'confirm', field: 'checklist.opticalWindowClean', label: 'The optical window is clean' },
-        { id: 'freshPowderKg', kind: 'kg', field: 'freshPowderKg', label: `Fresh powder loaded (needs at least ${kgText(fresh)})`, minimumKg: fresh },
-        { id: 'reusedPowderKg', kind: 'kg', field: 'reusedPowderKg', label: `Reused powder loaded (needs at least ${kgText(reused)})`, minimumKg: reused },
+        { id: 'freshPowderKg', kind: 'kg', field: 'freshPowderKg', label: `Fresh powder loaded (needs at least ${kgUpText(fresh)})`, minimumKg: fresh },
+        { id: 'reusedPowderKg', kind: 'kg', field: 'reusedPowderKg', label: `Reused powder loaded (needs at least ${kgUpText(reused)})`, minimumKg: reused },
       ];
     }
     case 'breakout':
@@ -65,6 +66,11 @@ export function stageChecklist(status: PlanStatus, context: ChecklistContext = {
     default:
       return [];
   }
+}
+
+/** Kilograms rounded up to the tenth the floor shows, so that loading what is shown always covers the need (0.3 stays 0.3). */
+export function roundUpKg(kg: number): number {
+  return Math.ceil(kg * 10 - 1e-6) / 10;
 }
 
 /** Whether the powder entered covers what the build needs (a small rounding allowance: scales show tenths). */

@@ -101,8 +101,11 @@ describe('an operator on a phone (390 x 844)', () => {
     await card.getByTestId('floor-powder').waitFor();
     // Oldest lot first: what is left of OLD-01 after build B, then NEW-02.
     const oldLeft = Math.round((oldKg - loadB.freshPowderKg) * 10) / 10;
-    expect(await card.getByTestId('floor-powder-draw-OLD-01').textContent()).toBe(`Lot OLD-01: ${oldLeft.toFixed(1)} kg`);
+    expect(await card.getByTestId('floor-powder-draw-OLD-01').textContent()).toBe(`Lot OLD-01: ${oldLeft.toFixed(2)} kg`);
     await card.getByTestId('floor-powder-draw-NEW-02').waitFor();
+    // The stock's line says the same amounts as the card's figures above it (both rounded up to the tenth).
+    const plan = (await card.getByTestId('floor-powder-plan').textContent()) ?? '';
+    expect(plan).toContain(`loads ${await card.getByTestId('need-fresh').textContent()} fresh and ${await card.getByTestId('need-reused').textContent()} reused`);
     // One tap loads the plan's amounts into the fields.
     await card.getByTestId('floor-powder-use').click();
     expect(await card.getByTestId('load-fresh').inputValue()).toBe(String(loadA.freshPowderKg));

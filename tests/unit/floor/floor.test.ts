@@ -3,7 +3,9 @@ import {
   coolingTimer,
   enoughPowder,
   floorOrder,
+  kgUpText,
   printTimer,
+  roundUpKg,
   stageCard,
   stageCautions,
   stageChecklist,
@@ -153,6 +155,21 @@ describe('stage cards', () => {
     expect(items[2].label).toContain('3.3 kg');
     expect(enoughPowder(3.2, 3.21)).toBe(true);
     expect(enoughPowder(3.1, 3.21)).toBe(false);
+  });
+
+  test('a powder need is shown rounded up to the tenth, so that loading what is shown covers it; a need already in tenths is shown as it is', () => {
+    expect(kgUpText(0.4434)).toBe('0.5 kg');
+    expect(kgUpText(1.0348)).toBe('1.1 kg');
+    // 0.3 * 10 is 3.0000000000000004 in floating point: a plain ceil would show 0.4 kg.
+    expect(kgUpText(0.3)).toBe('0.3 kg');
+    expect(roundUpKg(0.7)).toBe(0.7);
+    expect(roundUpKg(2.3)).toBe(2.3);
+    for (let need = 0.01; need < 20; need += 0.137) {
+      const shown = roundUpKg(need);
+      expect(shown).toBeGreaterThanOrEqual(need - 1e-9);
+      expect(shown - need).toBeLessThan(0.1 + 1e-9);
+      expect(enoughPowder(shown, need)).toBe(true);
+    }
   });
 
   test('breakout asks for good and failed counts of each line; finishing for powder removed, blasted, inspected', () => {
