@@ -7,6 +7,7 @@ import { Badge, EmptyState, ErrorState, Figure, LinkPressable, LoadingState, Scr
 import { formatDate } from '../ui/format';
 import { PowderCautions } from './PowderCautions';
 import { ageText, kgText } from './format';
+import { kgUpText } from '../../shared/floor/checklist';
 
 /** Stock per material at a glance; a material opens its chart, lots, movements and checks. */
 export function PowderScreen() {
@@ -58,7 +59,7 @@ function MaterialCard({ m, wide }: { m: MaterialStockView; wide: boolean }) {
       </View>
       <Text variant="caption" color={f.shortage ? 'danger' : 'inkMuted'}>
         {f.neededKg > 0
-          ? `The queue needs ${kgText(f.neededKg)} fresh${f.belowReorderAt ? `; below the reorder level of ${kgText(m.policy.reorderLevelKg)} on ${formatDate(f.belowReorderAt)}` : ''}.`
+          ? `The queue needs ${kgUpText(f.neededKg)} fresh${f.belowReorderAt ? `; below the reorder level of ${kgText(m.policy.reorderLevelKg)} on ${formatDate(f.belowReorderAt)}` : ''}.`
           : 'Nothing queued needs this powder.'}
       </Text>
     </LinkPressable>

@@ -41,11 +41,13 @@ export async function seedPowderHistory(db: Database, labId: string, userIds: { 
         lotIds.set(d.code, id);
         await repo.addMovement({ labId, materialId: material.id, lotId: id, kind: 'received', deltaKg: d.kg, at: day(d.ago), byUser: userIds.lead }, t);
       }
-      // Twelve builds, one every four to five days: about a third fresh.
+      // Twelve builds of the first powder, one every four to five days, nine larger ones of the second, one every six
+      // days: about a third fresh.
       let pool: ReusedPool = { massKg: 0, meanAgeBuilds: 0 };
-      for (let b = 0; b < 12; b++) {
-        const ago = 58 - b * 4.5;
-        const cake = 16 + ((b * 7) % 5);
+      const builds = index === 0 ? 12 : 9;
+      for (let b = 0; b < builds; b++) {
+        const ago = 58 - b * (index === 0 ? 4.5 : 6);
+        const cake = 16 + ((b * 7 + 3 * index) % 5) + 2 * index;
         const reused = b === 0 ? 0 : Math.min(pool.massKg, Math.round(cake * 0.65 * 10) / 10);
         const fresh = Math.round((cake - reused) * 10) / 10;
         const lots = (await repo.lots(material.id, t)).filter((l) => l.receivedOn <= isoDay(ago));
@@ -68,10 +70,8 @@ export async function seedPowderHistory(db: Database, labId: string, userIds: { 
       const discard = Math.min(2, pool.massKg);
       pool = takeFromPool(pool, discard);
       await repo.addMovement({ labId, materialId: material.id, lotId: null, kind: 'discarded', deltaKg: -discard, at: day(20), byUser: userIds.operator, poolAgeAfter: pool.meanAgeBuilds, reason: 'yellowed powder from the chamber walls' }, t);
-      for (const [ago, mvr] of [
-        [40, 24.5],
-        [12, 21.8],
-      ] as const) {
+      const checks: ReadonlyArray<readonly [number, number]> = index === 0 ? [[40, 24.5], [12, 21.8]] : [[44, 25.9], [15, 23.2]];
+      for (const [ago, mvr] of checks) {
         await repo.addCheck(
           { labId, materialId: material.id, mvrCm3Per10Min: mvr, testTempC: 235, testLoadKg: 5, thresholdCm3Per10Min: 18, passed: true, note: '', measuredAt: day(ago), measuredBy: userIds.lead },
           t,
