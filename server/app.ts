@@ -111,7 +111,7 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const takeBack = takeBackService(db, { plans, appUrl: config.appUrl });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
-  const sheet = sheetService(db, { layouts });
+  const sheet = sheetService(db, { layouts, storage });
   const export3mf = export3mfService(db, { storage, layouts });
   const thumbnails = thumbnailsService(db, { storage, parts, draw: partThumbnail });
   return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, reviewFlags, takeBack, partRevisions, calibration, queue, runs, sheet, export3mf, powder, thumbnails };

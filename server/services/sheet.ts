@@ -5,7 +5,10 @@ import { labsRepository } from '../db/repositories/labs';
 import { conflict, notFound } from '../errors';
 import type { LayoutsService } from './layouts';
 import { checkPlanId, planLines, profileRow } from './planCommon';
-import { checkExportable } from './export3mf';
+import { checkExportable, placedTransform, readPlanMeshes, type PlanPartMesh } from './export3mf';
+import type { FileStorage } from '../storage';
+import { projectionGrid, projectMesh, shadeRuns } from '../../shared/geometry/projection';
+import { AppError } from '../errors';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
 import { STATUS_LABELS } from '../../shared/plans/status';
 import type { Placement } from '../../shared/packing';
@@ -14,6 +17,14 @@ import type { CostEstimate } from '../../shared/estimate/cost';
 const INK = '#222222';
 const MUTED = '#666666';
 const BOX_FILL = '#9bb7d4';
+/** The shapes' shades, farthest to nearest. */
+const SHADE_FAR = [0x34, 0x50, 0x6e];
+const SHADE_NEAR = [0xa8, 0xc2, 0xdc];
+const SHADES = 8;
+/** The views' cells, in PDF points (1/72 in): finer than a printer's dot gain makes visible. */
+const CELL_PT = 0.8;
+/** More placed triangles than this, and the views draw boxes (drawing them would hold the request too long). */
+export const SHEET_TRIANGLE_LIMIT = 4_000_000;
 
 const fmt = (n: number | undefined, digits = 1) => (typeof n === 'number' && Number.isFinite(n) ? n.toFixed(digits) : '-');
 const hours = (seconds: number | undefined) => (typeof seconds === 'number' ? `${fmt(seconds / 3600, 1)} h` : '-');
@@ -25,27 +36,15 @@ const hours = (seconds: number | undefined) => (typeof seconds === 'number' ? `$
  *   |  [] [ ]  [] |                 | [] [] []    |
  *   +-------------+                 +-------------+
  * The chamber's outline and every placed box projected on the view's plane;
- * boxes drawn back to front so the nearer ones stay visible.
+ * boxes drawn far to near so the nearer ones stay visible (the top view is
+ * seen from above, the side view from the front, y = 0).
  */
-function drawView(
-  doc: PDFKit.PDFDocument,
-  title: string,
-  chamber: readonly number[],
-  placements: readonly Placement[],
-  axes: [number, number],
-  depthAxis: number,
-  x: number,
-  y: number,
-  width: number,
-  height: number,
-) {
+function drawView(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, placements: readonly Placement[]) {
+  const { axes, depthAxis, nearer } = at.view;
   const [a, b] = axes;
-  const scale = Math.min(width / chamber[a], height / chamber[b]);
-  const w = chamber[a] * scale;
-  const h = chamber[b] * scale;
-  doc.fillColor(INK).fontSize(9).text(title, x, y - 12, { width, lineBreak: false });
-  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, w, h).stroke();
-  const sorted = [...placements].sort((p, q) => p.position[depthAxis] - q.position[depthAxis]);
+  const { x, y } = at;
+  const { scale, h } = frame(doc, chamber, at);
+  const sorted = [...placements].sort((p, q) => nearer * (p.position[depthAxis] - q.position[depthAxis]));
   doc.lineWidth(0.3);
   for (const p of sorted) {
     const px = x + p.position[a] * scale;
@@ -53,8 +52,98 @@ function drawView(
     const py = y + h - (p.position[b] + p.size[b]) * scale;
     doc.rect(px, py, Math.max(0.3, p.size[a] * scale), Math.max(0.3, p.size[b] * scale)).fillAndStroke(BOX_FILL, '#34506e');
   }
-  doc.fillColor(MUTED).fontSize(7).text(`${fmt(chamber[a], 0)} x ${fmt(chamber[b], 0)} mm`, x, y + h + 3, { width, lineBreak: false });
   return h;
+}
+
+/** The parts' own shapes projected on the view's plane (../../shared/geometry/projection.ts), shaded by depth: lighter is nearer. */
+function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, placed: ReadonlyArray<{ mesh: PlanPartMesh; transform: number[] }>) {
+  const { axes, depthAxis, nearer } = at.view;
+  const { x, y } = at;
+  const { scale, h } = frame(doc, chamber, at);
+  const cellMm = CELL_PT / scale;
+  const grid = projectionGrid(axes, depthAxis, [chamber[axes[0]], chamber[axes[1]]], cellMm, nearer);
+  for (const p of placed) projectMesh(grid, p.mesh.positions, p.mesh.indices, p.transform);
+  let far = Infinity, near = -Infinity;
+  for (const z of grid.depth) {
+    if (z === -Infinity) continue;
+    if (z < far) far = z;
+    if (z > near) near = z;
+  }
+  const colours = Array.from({ length: SHADES }, (_, k) => {
+    const t = SHADES > 1 ? k / (SHADES - 1) : 1;
+    return '#' + SHADE_FAR.map((c, i) => Math.round(c + (SHADE_NEAR[i] - c) * t).toString(16).padStart(2, '0')).join('');
+  });
+  const cellPt = cellMm * scale;
+  for (const r of shadeRuns(grid, SHADES, far, near)) {
+    // A hair wider than the run, so that no seam shows between runs.
+    doc.rect(x + r.start * cellPt, y + h - (r.row + 1) * cellPt, r.length * cellPt + 0.05, cellPt + 0.05).fill(colours[r.level]);
+  }
+  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, chamber[axes[0]] * scale, h).stroke();
+  return h;
+}
+
+interface SheetView {
+  axes: [number, number];
+  depthAxis: number;
+  /** 1: a larger coordinate on the depth axis is nearer the viewer; -1: a smaller one. */
+  nearer: 1 | -1;
+}
+const TOP: SheetView = { axes: [0, 1], depthAxis: 2, nearer: 1 };
+const FRONT: SheetView = { axes: [0, 2], depthAxis: 1, nearer: -1 };
+
+/** Where a view goes on the page (points), under which title. */
+interface ViewAt {
+  title: string;
+  view: SheetView;
+  x: number;
+  y: number;
+  width: number;
+  height: number;
+}
+
+/** A view's title, the chamber's outline and size; returns its scale (points per mm) and height in points. */
+function frame(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt) {
+  const { title, x, y, width, height } = at;
+  const [a, b] = at.view.axes;
+  const scale = Math.min(width / chamber[a], height / chamber[b]);
+  const w = chamber[a] * scale;
+  const h = chamber[b] * scale;
+  doc.fillColor(INK).fontSize(9).text(title, x, y - 12, { width, lineBreak: false });
+  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, w, h).stroke();
+  doc.fillColor(MUTED).fontSize(7).text(`${fmt(chamber[a], 0)} x ${fmt(chamber[b], 0)} mm`, x, y + h + 3, { width, lineBreak: false });
+  return { scale, h };
+}
+
+/**
+ * The placements' meshes and transforms for the views, or why the views draw boxes instead: a part's file that
+ * cannot be read, or more triangles than a sheet draws in its time.
+ */
+async function shapesOf(
+  plans: ReturnType<typeof plansRepository>,
+  storage: FileStorage,
+  planId: string,
+  placements: readonly Placement[],
+): Promise<{ placed: Array<{ mesh: PlanPartMesh; transform: number[] }> } | { reason: string }> {
+  let read;
+  try {
+    read = await readPlanMeshes(plans, storage, planId, 'the views draw bounding boxes');
+  } catch (e) {
+    if (e instanceof AppError && e.status === 409) return { reason: e.message };
+    throw e;
+  }
+  const placed: Array<{ mesh: PlanPartMesh; transform: number[] }> = [];
+  let triangles = 0;
+  for (const p of placements) {
+    const partId = read.partOfLine.get(p.id);
+    const mesh = partId === undefined ? undefined : read.meshes.get(partId);
+    if (!mesh) return { reason: 'a placement names a line that is not in the plan, so the views draw bounding boxes.' };
+    triangles += mesh.indices.length / 3;
+    placed.push({ mesh, transform: placedTransform(p, mesh) });
+  }
+  if (triangles > SHEET_TRIANGLE_LIMIT) {
+    return { reason: `The placed parts have ${Math.round(triangles).toLocaleString('en-US')} triangles, more than the ${SHEET_TRIANGLE_LIMIT.toLocaleString('en-US')} a sheet draws, so the views draw bounding boxes.` };
+  }
+  return { placed };
 }
 
 /** The estimate's cost, as stored with the layout (the sheet reads only these fields). */
@@ -112,7 +201,7 @@ export function costLines(cost: SheetCost | undefined, lines: ReadonlyArray<{ re
 }
 
 /** The operator's clipboard copy of an approved plan: views, part list, estimates, checklists and cautions, as a PDF. */
-export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
+export function sheetService(db: Database, deps: { layouts: LayoutsService; storage: FileStorage }) {
   const plans = plansRepository(db);
   const labs = labsRepository(db);
 
@@ -157,16 +246,27 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService }) {
 
       const viewTop = doc.y + 14;
       const half = (usable - 20) / 2;
-      const hTop = drawView(doc, 'Top view (x, y)', chamber, placements, [0, 1], 2, left, viewTop, half, 210);
-      const hSide = drawView(doc, 'Side view (x, z)', chamber, placements, [0, 2], 1, left + half + 20, viewTop, half, 210);
+      const shapes = await shapesOf(plans, deps.storage, plan.id, placements);
+      const top: ViewAt = { title: 'Top view (x, y), from above', view: TOP, x: left, y: viewTop, width: half, height: 210 };
+      const side: ViewAt = { title: 'Side view (x, z), from the front', view: FRONT, x: left + half + 20, y: viewTop, width: half, height: 210 };
+      const [hTop, hSide] =
+        'placed' in shapes
+          ? [drawShapes(doc, chamber, top, shapes.placed), drawShapes(doc, chamber, side, shapes.placed)]
+          : [drawView(doc, chamber, top, placements), drawView(doc, chamber, side, placements)];
       doc.x = left;
       doc.y = viewTop + Math.max(hTop, hSide) + 20;
-      if (layout.resultFormat === 'pack-result/2') {
-        doc.font('Helvetica').fontSize(8).fillColor(MUTED);
-        doc.text("Packed by the parts' shapes: the views draw each part's bounding box, so the boxes of parts nested in each other overlap. The build file (3MF) holds each part's exact placement.");
-        doc.moveDown(0.8);
-        doc.fillColor(INK);
+      doc.font('Helvetica').fontSize(8).fillColor(MUTED);
+      if ('placed' in shapes) {
+        doc.text("The views draw the parts' own shapes, shaded by depth: lighter is higher in the top view and nearer the front in the side view.");
+      } else {
+        doc.text(
+          layout.resultFormat === 'pack-result/2'
+            ? `${shapes.reason} The boxes of parts nested in each other overlap; the build file (3MF) holds each part's exact placement.`
+            : shapes.reason,
+        );
       }
+      doc.moveDown(0.8);
+      doc.fillColor(INK);
 
       doc.fillColor(INK).font('Helvetica-Bold').fontSize(11).text('Parts by request line');
       doc.font('Helvetica').fontSize(9);
