@@ -7,8 +7,7 @@ import { colors, radius, spacing } from '../theme';
 import { Button, Field, Figure, Notice, Text } from '../ui';
 import { checkLoad, type LoadCheck } from '../../shared/powder';
 import type { PlanPowderView } from '../../shared/schemas/powder';
-import { roundUpKg } from '../../shared/floor/checklist';
-import { kgText } from './stageKit';
+import { kgUpText, roundUpKg } from '../../shared/floor';
 
 const kg = (v: number) => `${v.toFixed(1)} kg`;
 /** A lot's share of a load: to 10 g, so that small draws do not read 0.0 kg and the draws add up to the load. */
@@ -87,7 +86,7 @@ export function PowderBeforeStart({ load, onUse, canAct }: { load: PowderLoad; o
       </Text>
       {p.planned ? (
         <Text variant="body" testID="floor-powder-plan">
-          {`The plan loads ${kgText(p.planned.freshKg)} fresh and ${kgText(p.planned.reusedKg)} reused (mean age ${p.stock.reusedMeanAgeBuilds.toFixed(1)} builds).`}
+          {`The plan loads ${kgUpText(p.planned.freshKg)} fresh and ${kgUpText(p.planned.reusedKg)} reused (mean age ${p.stock.reusedMeanAgeBuilds.toFixed(1)} builds).`}
         </Text>
       ) : null}
       <Figure variant="figure" color="inkMuted">{`On hand: ${kg(p.stock.freshKg)} fresh, ${kg(p.stock.reusedKg)} reused`}</Figure>

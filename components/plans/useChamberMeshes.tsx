@@ -1,7 +1,7 @@
 import type { PartMesh } from '../viewer';
 
 /** Off the web the chamber is a summary without a 3D canvas: no meshes to load. */
-export function useChamberMeshes(_labId: string, _partIds: readonly (string | undefined)[], _copies: ArrayLike<number>): { meshes: ReadonlyMap<number, PartMesh>; loaders: React.ReactNode } {
+export function useChamberMeshes(_labId: string, _partIds: readonly (string | undefined)[], _partIndex: ArrayLike<number>): { meshes: ReadonlyMap<number, PartMesh>; loaders: React.ReactNode } {
   return { meshes: EMPTY, loaders: null };
 }
 

@@ -48,9 +48,15 @@ function PartMeshLoader({ labId, partId, index, onMesh }: { labId: string; partI
 export function useChamberMeshes(
   labId: string,
   partIdsInOrder: readonly (string | undefined)[],
-  copiesByIndex: ArrayLike<number>,
+  partIndex: ArrayLike<number>,
 ): { meshes: ReadonlyMap<number, PartMesh>; loaders: React.ReactNode } {
   const [loaded, setMeshes] = useState<ReadonlyMap<number, PartMesh>>(new Map());
+  // Copies of each part in the view (placements of a part not in the list are not counted: they load no mesh).
+  const copiesByIndex = useMemo(() => {
+    const c = new Uint32Array(partIdsInOrder.length);
+    for (let i = 0; i < partIndex.length; i++) if (partIndex[i] < c.length) c[partIndex[i]]++;
+    return c;
+  }, [partIndex, partIdsInOrder.length]);
   const meshes = useMemo(() => {
     const cost = (i: number, m: PartMesh) => (m.indices.length / 3) * (copiesByIndex[i] ?? 0);
     const order = [...loaded].sort((a, b) => cost(a[0], a[1]) - cost(b[0], b[1]));

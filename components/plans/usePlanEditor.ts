@@ -287,12 +287,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     for (const i of faults) if (i < lineIndex.length) lineIndex[i] = colourOrder.length + 1;
     return { ...p, lineIndex };
   }, [viewResult, colourOrder, faults, marked]);
-  const copiesByIndex = useMemo(() => {
-    const c = new Uint32Array(colourOrder.length + 1);
-    for (const k of placements.partIndex) c[k]++;
-    return c;
-  }, [placements, colourOrder.length]);
-  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, copiesByIndex);
+  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, placements.partIndex);
   const partIds = useMemo(() => shownResult?.placements.map((p) => p.id) ?? [], [shownResult]);
   const describe = useCallback(
     (i: number) => {

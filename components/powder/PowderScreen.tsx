@@ -7,7 +7,7 @@ import { Badge, EmptyState, ErrorState, Figure, LinkPressable, LoadingState, Scr
 import { formatDate } from '../ui/format';
 import { PowderCautions } from './PowderCautions';
 import { ageText, kgText } from './format';
-import { kgUpText } from '../../shared/floor/checklist';
+import { kgUpText } from '../../shared/floor';
 
 /** Stock per material at a glance; a material opens its chart, lots, movements and checks. */
 export function PowderScreen() {

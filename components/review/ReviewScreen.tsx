@@ -63,12 +63,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const placements = useMemo(() => (layout.data ? toChamberPlacements(layout.data.result, lineIds) : EMPTY_PLACEMENTS), [layout.data, lineIds]);
   // The parts drawn by their own meshes, as in the plan editor (each a box until its mesh is read).
   const partIdsInOrder = useMemo(() => plan.lines.map((l) => l.part.id), [plan.lines]);
-  const copiesByIndex = useMemo(() => {
-    const c = new Uint32Array(lineIds.length);
-    for (const k of placements.partIndex) if (k < c.length) c[k]++;
-    return c;
-  }, [placements, lineIds.length]);
-  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, copiesByIndex);
+  const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, placements.partIndex);
   const numbers = useMemo(() => (layout.data ? numbersFromEstimate(layout.data.estimate, layout.data.result) : null), [layout.data]);
   const [cutMm, setCutMm] = useState<number | null>(null);
   const calibration = (layout.data?.estimate as { calibration?: { runs: number; calibrated: boolean } } | undefined)?.calibration;

@@ -2,13 +2,12 @@ import PDFDocument from 'pdfkit';
 import type { Database } from '../db';
 import { plansRepository } from '../db/repositories/plans';
 import { labsRepository } from '../db/repositories/labs';
-import { conflict, notFound } from '../errors';
+import { AppError, conflict, notFound } from '../errors';
 import type { LayoutsService } from './layouts';
 import { checkPlanId, planLines, profileRow } from './planCommon';
 import { checkExportable, placedTransform, readPlanMeshes, type PlanPartMesh } from './export3mf';
 import type { FileStorage } from '../storage';
 import { projectionGrid, projectMesh, shadeRuns } from '../../shared/geometry/projection';
-import { AppError } from '../errors';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
 import { STATUS_LABELS } from '../../shared/plans/status';
 import type { Placement } from '../../shared/packing';
@@ -17,10 +16,11 @@ import type { CostEstimate } from '../../shared/estimate/cost';
 const INK = '#222222';
 const MUTED = '#666666';
 const BOX_FILL = '#9bb7d4';
-/** The shapes' shades, farthest to nearest. */
+/** The shapes' shades, farthest to nearest: eight steps from #34506e to #a8c2dc. */
 const SHADE_FAR = [0x34, 0x50, 0x6e];
 const SHADE_NEAR = [0xa8, 0xc2, 0xdc];
 const SHADES = 8;
+const SHADE_COLOURS = Array.from({ length: SHADES }, (_, k) => '#' + SHADE_FAR.map((c, i) => Math.round(c + ((SHADE_NEAR[i] - c) * k) / (SHADES - 1)).toString(16).padStart(2, '0')).join(''));
 /** The views' cells, in PDF points (1/72 in): finer than a printer's dot gain makes visible. */
 const CELL_PT = 0.8;
 /** More placed triangles than this, and the views draw boxes (drawing them would hold the request too long). */
@@ -69,14 +69,10 @@ function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: Vie
     if (z < far) far = z;
     if (z > near) near = z;
   }
-  const colours = Array.from({ length: SHADES }, (_, k) => {
-    const t = SHADES > 1 ? k / (SHADES - 1) : 1;
-    return '#' + SHADE_FAR.map((c, i) => Math.round(c + (SHADE_NEAR[i] - c) * t).toString(16).padStart(2, '0')).join('');
-  });
   const cellPt = cellMm * scale;
   for (const r of shadeRuns(grid, SHADES, far, near)) {
     // A hair wider than the run, so that no seam shows between runs.
-    doc.rect(x + r.start * cellPt, y + h - (r.row + 1) * cellPt, r.length * cellPt + 0.05, cellPt + 0.05).fill(colours[r.level]);
+    doc.rect(x + r.start * cellPt, y + h - (r.row + 1) * cellPt, r.length * cellPt + 0.05, cellPt + 0.05).fill(SHADE_COLOURS[r.level]);
   }
   doc.lineWidth(0.8).strokeColor(INK).rect(x, y, chamber[axes[0]] * scale, h).stroke();
   return h;
@@ -136,7 +132,7 @@ async function shapesOf(
   for (const p of placements) {
     const partId = read.partOfLine.get(p.id);
     const mesh = partId === undefined ? undefined : read.meshes.get(partId);
-    if (!mesh) return { reason: 'a placement names a line that is not in the plan, so the views draw bounding boxes.' };
+    if (!mesh) return { reason: 'A placement names a line that is not in the plan, so the views draw bounding boxes.' };
     triangles += mesh.indices.length / 3;
     placed.push({ mesh, transform: placedTransform(p, mesh) });
   }

@@ -3,9 +3,9 @@
  * build sheet's top and side views): a grid of square cells over the view,
  * each holding the nearest depth of any triangle that covers the cell's
  * centre (-Infinity where none does; depths are signed so that larger is
- * nearer). A part with a hole shows the hole; a
- * part nested in another's hollow is hidden under the rim in the top view
- * and shows through where nothing is nearer.
+ * nearer). A part with a hole shows the hole; a part standing in an open
+ * housing shows inside its walls from above, and wherever nothing nearer
+ * covers it.
  *
  *     view plane (axes a, b)            depth: the third axis, nearer = larger
  *     +---------------------+ nb cells
@@ -37,11 +37,8 @@ export function projectionGrid(axes: [number, number], depthAxis: number, sizeMm
   return { axes, depthAxis, nearer, cellMm, na, nb, depth: new Float32Array(na * nb).fill(-Infinity) };
 }
 
-/**
- * Draws the triangles of a mesh placed by a 3MF transform (row vectors, p' = [x y z 1] M) into the grid. Returns
- * the number of cells written.
- */
-export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, indices: ArrayLike<number>, transform: readonly number[]): number {
+/** Draws the triangles of a mesh placed by a 3MF transform (row vectors, p' = [x y z 1] M) into the grid. */
+export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, indices: ArrayLike<number>, transform: readonly number[]): void {
   const { axes, depthAxis, nearer, cellMm, na, nb, depth } = grid;
   const vertices = positions.length / 3;
   // Every vertex placed once: view coordinates in cells, and depth.
@@ -58,7 +55,6 @@ export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, 
     v[k] = q[axes[1]] / cellMm;
     d[k] = nearer * q[depthAxis];
   }
-  let written = 0;
   for (let t = 0; t + 2 < indices.length; t += 3) {
     const i0 = indices[t], i1 = indices[t + 1], i2 = indices[t + 2];
     const ax = u[i0], ay = v[i0], bx = u[i1], by = v[i1], cx = u[i2], cy = v[i2];
@@ -83,14 +79,10 @@ export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, 
         if (w0 < -1e-9 || w1 < -1e-9 || w2 < -1e-9) continue;
         const z = w0 * da + w1 * db + w2 * dc;
         const id = i + na * j;
-        if (z > depth[id]) {
-          depth[id] = z;
-          written++;
-        }
+        if (z > depth[id]) depth[id] = z;
       }
     }
   }
-  return written;
 }
 
 export interface ShadeRun {
