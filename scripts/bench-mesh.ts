@@ -6,20 +6,42 @@
  * against the adjacency-list count the metrics use, and reads the same mesh
  * as a 3MF package.
  *
+ * Then a plan of ten copies of it: its build file (3MF) and its build
+ * sheet's views made in the worker pool, as the server makes them, with the
+ * calling thread's longest stall meanwhile (what every other request would
+ * wait), and the build file written on the calling thread for comparison.
+ *
  *   npm run bench:mesh            (target: under 3 s for the file)
  */
 import { mkdtempSync, readFileSync, rmSync, writeFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { performance } from 'node:perf_hooks';
+import { monitorEventLoopDelay, performance } from 'node:perf_hooks';
 import { measureMeshFile, measureMesh, parseStl, torus, translation, write3mf, writeBinaryStl } from '../shared/geometry';
 import { closeMeshPool, measureFile } from '../server/mesh';
+import { drawSheetViews, writeBuildFile } from '../server/mesh/pool';
+import { buildFile, type PlanMeshFile, type PlanMeshItem } from '../server/mesh/planFiles';
 
 const MAJOR = 1000;
 const MINOR = 500; // 2 x 1000 x 500 = 1,000,000 triangles
 
 function peakRssMb(): number {
   return process.resourceUsage().maxRSS / 1024;
+}
+
+/** Runs `work` while sampling the event loop: its wall time and the loop's longest stall (ms). */
+async function stalls<T>(work: () => Promise<T> | T): Promise<{ value: T; ms: number; stallMs: number }> {
+  const loop = monitorEventLoopDelay({ resolution: 5 });
+  loop.enable();
+  // The monitor records the time between its ticks; the first tick has none before it.
+  await new Promise((resolve) => setTimeout(resolve, 20));
+  const t0 = performance.now();
+  const value = await work();
+  const ms = performance.now() - t0;
+  // One more turn of the loop, so a stall that ended the work is recorded.
+  await new Promise((resolve) => setTimeout(resolve, 10));
+  loop.disable();
+  return { value, ms, stallMs: loop.max / 1e6 };
 }
 
 function mapEdgeCount(indices: Uint32Array, vertexCount: number): number {
@@ -93,6 +115,21 @@ async function main(): Promise<void> {
       `3MF of the same mesh (${(threeMf.length / 1e6).toFixed(1)} MB zipped): measureMeshFile ${(performance.now() - t0).toFixed(0)} ms ` +
         `(${fromThreeMf.ok ? `${fromThreeMf.parts[0].metrics.triangles} triangles` : fromThreeMf.problems[0].code})`,
     );
+
+    // A plan of ten copies side by side, as the server makes its build file and sheet (../server/services/export3mf.ts).
+    const files: PlanMeshFile[] = [{ name: 'torus', bytes: stl, filename: 'torus-1m.stl', unit: 'mm', split: false, partIndex: 0, rotationDeg: [0, 0, 0] }];
+    const items: PlanMeshItem[] = Array.from({ length: 10 }, (_, i) => ({ file: 0, orientation: 'xyz', position: [(i % 2) * 165, Math.floor(i / 2) * 165, 0] }));
+    const pooled = await stalls(() => writeBuildFile({ files, items }));
+    console.log(
+      `build file of 10 placed copies (${(pooled.value.length / 1e6).toFixed(1)} MB) in the worker pool: ${pooled.ms.toFixed(0)} ms, ` +
+        `the calling thread's longest stall ${pooled.stallMs.toFixed(0)} ms`,
+    );
+    const views = await stalls(() =>
+      drawSheetViews({ files, items, chamber: [340, 840, 50], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], levels: 8, triangleLimit: 20_000_000 }),
+    );
+    console.log(`sheet's top view of them (1 mm cells) in the worker pool: ${views.ms.toFixed(0)} ms, the calling thread's longest stall ${views.stallMs.toFixed(0)} ms`);
+    const inline = await stalls(() => buildFile({ files, items }));
+    console.log(`the same build file written on the calling thread: ${inline.ms.toFixed(0)} ms, its longest stall ${inline.stallMs.toFixed(0)} ms`);
   } finally {
     await closeMeshPool();
     rmSync(dir, { recursive: true, force: true });

@@ -45,7 +45,7 @@ import { powderService } from './services/powder';
 import { sheetService } from './services/sheet';
 import { export3mfService } from './services/export3mf';
 import { thumbnailsService } from './services/thumbnails';
-import { partThumbnail } from './mesh/pool';
+import { drawSheetViews, partThumbnail, writeBuildFile } from './mesh/pool';
 import { createStorage } from './storage';
 import { meshJobsService, type MeshQueueSettings } from './jobs/meshJobs';
 import type PgBoss from 'pg-boss';
@@ -111,8 +111,8 @@ export function createServices(db: Database, mailer: Mailer, config: Config, job
   const takeBack = takeBackService(db, { plans, appUrl: config.appUrl });
   const powder = powderService(db, { labs, queue, mailer, appUrl: config.appUrl, log: jobs.log });
   const runs = runsService(db, { drawPowder: powder.drawForRun, mailer, appUrl: config.appUrl });
-  const sheet = sheetService(db, { layouts, storage });
-  const export3mf = export3mfService(db, { storage, layouts });
+  const sheet = sheetService(db, { layouts, storage, draw: drawSheetViews });
+  const export3mf = export3mfService(db, { storage, layouts, write: writeBuildFile });
   const thumbnails = thumbnailsService(db, { storage, parts, draw: partThumbnail });
   return { labs, audit, auth, invites, machines, materials, storage, parts, meshJobs, requests, plans, layouts, review, reviewFlags, takeBack, partRevisions, calibration, queue, runs, sheet, export3mf, powder, thumbnails };
 }

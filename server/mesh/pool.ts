@@ -1,10 +1,11 @@
 /**
- * The worker threads that measure mesh files and slice layouts: piscina
- * pools speaking the messages of ./protocol.ts, in two lanes. Small files
- * (up to `quickBytes`) and the pictures of small parts go to one thread of
- * their own at the process's priority, so a lab's 12-triangle clip is never
- * stuck behind another lab's 20 MB housing; large files and layouts go to
- * the bulk threads, which run at a lower CPU priority (`bulkNice`, a
+ * The worker threads that measure mesh files, slice layouts, write build
+ * files and draw build sheets' views: piscina pools speaking the messages
+ * of ./protocol.ts, in two lanes. Small files (up to `quickBytes`) and the
+ * pictures of small parts go to one thread of their own at the process's
+ * priority, so a lab's 12-triangle clip is never stuck behind another lab's
+ * 20 MB housing; large files, layouts, build files and sheets go to the
+ * bulk threads, which run at a lower CPU priority (`bulkNice`, a
  * per-thread nice value on Linux) so that big work gives way to the web
  * server and to the small files when the machine is busy. Tasks queue when
  * every thread of their lane is busy; a task that runs past its time limit (a crafted file can make
@@ -18,6 +19,10 @@ import path from 'node:path';
 import { Piscina } from 'piscina';
 import { quoteName, type MeasureOptions } from '../../shared/geometry';
 import type { FileMeasureResult, LayoutSliceJob, LayoutSliceResult, MeasureReply, MeasureRequest, ServerProblem, ThumbnailJob } from './protocol';
+import { UnreadablePartFile, type BuildFileJob, type SheetViewsJob, type SheetViewsResult } from './planFiles';
+
+/** A plan's build file or sheet views that a worker could not finish: it ran out of time or its thread stopped. */
+export class MeshWorkFailed extends Error {}
 
 export interface MeshPoolOptions {
   /** Bulk worker threads (default: half the cores, at least 1, at most 4). */
@@ -99,10 +104,42 @@ export class MeshPool {
     return reply.png;
   }
 
+  /** Writes a plan's build file (3MF) from its parts' files in a bulk worker. */
+  async buildFile(job: BuildFileJob): Promise<Uint8Array> {
+    const reply = await this.planJob({ buildFile: job }, 'the build file');
+    if (!('file' in reply)) throw new Error('a build file job got another answer back');
+    return reply.file;
+  }
+
+  /** Draws the build sheet's views from the parts' files in a bulk worker. */
+  async sheetViews(job: SheetViewsJob): Promise<SheetViewsResult> {
+    const reply = await this.planJob({ sheetViews: job }, "the build sheet's views");
+    if (!('views' in reply)) throw new Error('a sheet views job got another answer back');
+    return reply.views;
+  }
+
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
     await Promise.all([this.bulk.destroy(), this.quick?.destroy()]);
+  }
+
+  /**
+   * A plan's job on the bulk threads. A part's file that holds no mesh rejects with UnreadablePartFile, a job out
+   * of time or whose thread stopped with MeshWorkFailed.
+   */
+  private async planJob(request: Pick<MeasureRequest, 'buildFile' | 'sheetViews'>, what: string): Promise<MeasureReply> {
+    const reply = await this.run({ ...request, options: { filename: what } }, what, this.bulk);
+    if ('problem' in reply) {
+      throw new MeshWorkFailed(
+        reply.problem.code === 'measure-timeout'
+          ? `Making ${what} took longer than ${Math.round(this.timeoutMs / 1000)} s and was stopped.`
+          : `Making ${what} failed: its worker thread stopped.`,
+      );
+    }
+    if ('unreadable' in reply) throw new UnreadablePartFile(reply.unreadable.part, reply.unreadable.filename);
+    if ('error' in reply) throw new Error(`making ${what} failed: ${reply.error}`);
+    return reply;
   }
 
   private laneFor(bytes: number): Lane {
@@ -161,6 +198,16 @@ export function measureFile(input: string | Uint8Array, options: MeasureOptions)
 /** Slices a layout's parts from their files in a worker thread of the process-wide pool. */
 export function profileLayout(job: LayoutSliceJob): Promise<LayoutSliceResult> {
   return meshPool().profile(job);
+}
+
+/** Writes a plan's build file (3MF) in a worker thread of the process-wide pool. */
+export function writeBuildFile(job: BuildFileJob): Promise<Uint8Array> {
+  return meshPool().buildFile(job);
+}
+
+/** Draws the build sheet's views in a worker thread of the process-wide pool. */
+export function drawSheetViews(job: SheetViewsJob): Promise<SheetViewsResult> {
+  return meshPool().sheetViews(job);
 }
 
 /** Draws a stored part's picture in a worker thread of the process-wide pool. */

@@ -1,7 +1,8 @@
-import type { LengthUnit, MeasureOptions, MeasureResult, Problem } from '../../shared/geometry';
+import type { MeasureOptions, MeasureResult, Problem } from '../../shared/geometry';
 import type { ProfileLayoutJob, ProfileLayoutResult } from '../../shared/geometry/layoutSlices';
 import type { FieldProblem } from '../../shared/packing/types';
 import type { ShapeCheck } from '../../shared/packing/shape/check';
+import type { BuildFileJob, SheetViewsJob, SheetViewsResult, StoredPartFile } from './planFiles';
 
 /** A layout to slice; with `check`, a layout packed by shape to check against the same meshes too. */
 export type LayoutSliceJob = ProfileLayoutJob & { check?: ShapeCheck };
@@ -9,13 +10,7 @@ export type LayoutSliceJob = ProfileLayoutJob & { check?: ShapeCheck };
 export type LayoutSliceResult = ProfileLayoutResult & { problems?: FieldProblem[] };
 
 /** A part's picture for the library: one part of a stored file, turned as stored, drawn `sizePx` square. */
-export interface ThumbnailJob {
-  bytes: Uint8Array;
-  filename: string;
-  unit: LengthUnit;
-  split: boolean;
-  partIndex: number;
-  rotationDeg: readonly number[];
+export interface ThumbnailJob extends StoredPartFile {
   sizePx: number;
 }
 
@@ -31,6 +26,10 @@ export interface MeasureRequest {
   options: MeasureOptions;
   profile?: LayoutSliceJob;
   thumbnail?: ThumbnailJob;
+  /** A plan's build file (3MF) to write from its parts' files. */
+  buildFile?: BuildFileJob;
+  /** The build sheet's views to draw from the parts' files. */
+  sheetViews?: SheetViewsJob;
 }
 
 export type MeasureReply =
@@ -38,6 +37,11 @@ export type MeasureReply =
   | { id: number; profile: LayoutSliceResult }
   /** A PNG, or null when the file holds no such part. */
   | { id: number; png: Uint8Array | null }
+  /** The 3MF package's bytes. */
+  | { id: number; file: Uint8Array }
+  | { id: number; views: SheetViewsResult }
+  /** A part's stored file does not hold the mesh the plan needs. */
+  | { id: number; unreadable: { part: string; filename: string } }
   | { id: number; error: string };
 
 /** Problems the server adds to the file's own: measuring took too long or the worker died. */

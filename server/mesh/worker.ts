@@ -1,7 +1,8 @@
 /**
  * Worker thread task (run by the piscina pool in server/mesh/pool.ts): reads
- * an uploaded file and measures it, or slices a layout's parts, so a large
- * mesh never blocks the event loop of the process that asked.
+ * an uploaded file and measures it, slices a layout's parts, or writes a
+ * plan's build file or draws its sheet's views, so a large mesh never
+ * blocks the event loop of the process that asked.
  */
 import { readFile } from 'node:fs/promises';
 import { setPriority } from 'node:os';
@@ -12,6 +13,7 @@ import { profileLayoutFromFiles, readPartMeshes, restingMesh, RestingMeshCache }
 import { checkShapeLayout } from '../../shared/packing/shape/check';
 import { renderThumbnail } from '../../shared/geometry/thumbnail';
 import type { MeasureReply, MeasureRequest, ThumbnailJob } from './protocol';
+import { buildFile, sheetViews, UnreadablePartFile } from './planFiles';
 
 // A bulk thread yields the CPU to the web server and the quick lane (on Linux a nice value is per thread).
 const nice = Number((workerData as { nice?: number } | undefined)?.nice ?? 0);
@@ -29,6 +31,8 @@ const caches = { meshes: new RestingMeshCache(), slices: new SliceCache() };
 export default async function handle(request: MeasureRequest): Promise<MeasureReply> {
   try {
     if (request.thumbnail) return { id: request.id, png: thumbnailPng(request.thumbnail) };
+    if (request.buildFile) return { id: request.id, file: buildFile(request.buildFile) };
+    if (request.sheetViews) return { id: request.id, views: sheetViews(request.sheetViews) };
     if (request.profile) {
       // Copied back by structured clone: a profile is a few numbers a layer.
       const { check, ...job } = request.profile;
@@ -45,6 +49,7 @@ export default async function handle(request: MeasureRequest): Promise<MeasureRe
     if (!bytes) throw new Error('a measure request needs a path or bytes');
     return { id: request.id, result: measureMeshFile(bytes, request.options) };
   } catch (error) {
+    if (error instanceof UnreadablePartFile) return { id: request.id, unreadable: { part: error.part, filename: error.filename } };
     return { id: request.id, error: error instanceof Error ? error.message : String(error) };
   }
 }

@@ -4,8 +4,8 @@ import { AppError, conflict, notFound } from '../errors';
 import type { FileStorage } from '../storage';
 import type { LayoutsService } from './layouts';
 import { checkPlanId } from './planCommon';
-import { parseMeshFile, placementTransform, rotationIndex, write3mf, type ThreeMfItemInput, type ThreeMfObjectInput } from '../../shared/geometry';
-import { restingMesh } from '../../shared/geometry/layoutSlices';
+import { MeshWorkFailed } from '../mesh/pool';
+import { UnreadablePartFile, type BuildFileJob, type PlanMeshFile, type PlanMeshItem } from '../mesh/planFiles';
 import type { Placement } from '../../shared/packing';
 import type { PlanStatus } from '../../shared/plans/status';
 
@@ -18,51 +18,62 @@ export function checkExportable(status: PlanStatus, what: string) {
   }
 }
 
-/** A plan's part, read once from its stored file and turned by its stored rotation: the mesh its placements place. */
-export interface PlanPartMesh {
-  name: string;
-  positions: Float64Array;
-  indices: Uint32Array;
-  extentMm: number[];
-}
+/** What the build file and the sheet's views are made with in a mesh worker (../mesh/planFiles.ts). */
+export type WriteBuildFile = (job: BuildFileJob) => Promise<Uint8Array>;
 
 /**
- * The meshes of a plan's parts, by part id, and each request line's part id. A file that is missing or cannot be
- * read is a 409 naming the part and what it is needed for (`what`).
+ * A plan's placements as items of its parts' stored files (each file read from the store once), for a mesh worker.
+ * A file that is missing is a 409 naming the part and what it is needed for (`what`); so is a placement of a line
+ * that is not in the plan.
  */
-export async function readPlanMeshes(plans: ReturnType<typeof plansRepository>, storage: FileStorage, planId: string, what: string): Promise<{ meshes: Map<string, PlanPartMesh>; partOfLine: Map<string, string> }> {
+export async function planMeshJob(
+  plans: ReturnType<typeof plansRepository>,
+  storage: FileStorage,
+  planId: string,
+  placements: readonly Placement[],
+  what: string,
+): Promise<{ files: PlanMeshFile[]; items: PlanMeshItem[] }> {
   const parts = await plans.partFiles(planId);
-  const meshes = new Map<string, PlanPartMesh>();
+  const files: PlanMeshFile[] = [];
+  const fileOfPart = new Map<string, number>();
   for (const part of parts) {
-    if (meshes.has(part.partId)) continue;
+    if (fileOfPart.has(part.partId)) continue;
     const bytes = await storage.get(part.fileKey);
     if (!bytes) throw conflict('part_file_missing', `The stored file of "${part.partName}" is missing, so ${what}.`);
-    const parsed = parseMeshFile(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), {
+    fileOfPart.set(part.partId, files.length);
+    files.push({
+      name: part.partName,
+      bytes: new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength),
       filename: part.fileName,
       unit: part.fileUnit,
-      splitObjects: part.fileSplit,
+      split: part.fileSplit,
+      partIndex: part.filePartIndex,
+      rotationDeg: part.rotationDeg,
     });
-    const mesh = parsed.ok ? parsed.parts[part.filePartIndex] : undefined;
-    if (!mesh) throw conflict('part_file_unreadable', `The stored file of "${part.partName}" (${part.fileName}) cannot be read as a mesh, so ${what}.`);
-    const resting = restingMesh(mesh, part.rotationDeg);
-    meshes.set(part.partId, { name: part.partName, positions: resting.positions, indices: mesh.indices, extentMm: resting.extentMm });
   }
-  return { meshes, partOfLine: new Map(parts.map((p) => [p.requestLineId, p.partId])) };
+  const fileOfLine = new Map(parts.map((p) => [p.requestLineId, fileOfPart.get(p.partId)!]));
+  const items = placements.map((p, i): PlanMeshItem => {
+    const file = fileOfLine.get(p.id);
+    if (file === undefined) throw conflict('corrupt_layout', `Placement ${i + 1} names a line that is not in the plan, so ${what}.`);
+    return { file, orientation: p.orientation, position: p.position, transform: p.transform ?? null };
+  });
+  return { files, items };
 }
 
-/** A placement's 3MF transform from its part's resting mesh: its own (a layout by shape), or from its box orientation and corner. */
-export function placedTransform(p: Placement, mesh: PlanPartMesh): number[] {
-  // The resting mesh fills [0, extent]; a layout packed by shape carries the transform itself (its rotation may be
-  // any of the 24, not only a box orientation).
-  return p.transform ?? placementTransform(rotationIndex(p.orientation), [0, 0, 0], mesh.extentMm, p.position);
+/** A mesh worker's failure to make a plan's file as an answer: a part's unreadable file (409) or a worker out of time (503). */
+export function planFilesError(e: unknown, what: string): unknown {
+  if (e instanceof UnreadablePartFile) return conflict('part_file_unreadable', `${e.message}, so ${what}.`);
+  if (e instanceof MeshWorkFailed) return new AppError(503, 'mesh_work_failed', `${e.message} Try again in a while; if it keeps failing, a part's file may be damaged.`);
+  return e;
 }
 
 /**
  * The packed build as one 3MF package: each part's mesh once (read from its
  * stored file, turned by its stored rotation) and one build item per placement
- * with the placement's orientation and position as its transform.
+ * with the placement's orientation and position as its transform, written in
+ * a mesh worker (large meshes take seconds to write and compress).
  */
-export function export3mfService(db: Database, deps: { storage: FileStorage; layouts: LayoutsService }) {
+export function export3mfService(db: Database, deps: { storage: FileStorage; layouts: LayoutsService; write: WriteBuildFile }) {
   const plans = plansRepository(db);
 
   return {
@@ -72,19 +83,13 @@ export function export3mfService(db: Database, deps: { storage: FileStorage; lay
       checkExportable(plan.status, 'build file');
       if (!plan.chosenLayoutId) throw conflict('no_chosen_layout', 'This plan has no chosen layout to export.');
       const layout = await deps.layouts.get(labId, plan.id, plan.chosenLayoutId);
-      const { meshes, partOfLine } = await readPlanMeshes(plans, deps.storage, plan.id, 'the build cannot be exported');
-      const objects: ThreeMfObjectInput[] = [];
-      const objectOf = new Map<string, number>();
-      for (const [partId, mesh] of meshes) {
-        objectOf.set(partId, objects.length);
-        objects.push({ name: mesh.name, positions: mesh.positions, indices: mesh.indices });
+      const what = 'the build cannot be exported';
+      const job = await planMeshJob(plans, deps.storage, plan.id, layout.result.placements as Placement[], what);
+      try {
+        return { name: plan.name, bytes: await deps.write(job) };
+      } catch (e) {
+        throw planFilesError(e, what);
       }
-      const items: ThreeMfItemInput[] = layout.result.placements.map((p: Placement, i: number) => {
-        const partId = partOfLine.get(p.id);
-        if (partId === undefined) throw new AppError(500, 'corrupt_layout', `Placement ${i} names a line that is not in the plan.`);
-        return { objectIndex: objectOf.get(partId)!, transform: placedTransform(p, meshes.get(partId)!), partNumber: `${i + 1}` };
-      });
-      return { name: plan.name, bytes: write3mf(objects, items, 'millimeter') };
     },
   };
 }

@@ -5,9 +5,10 @@ import { labsRepository } from '../db/repositories/labs';
 import { AppError, conflict, notFound } from '../errors';
 import type { LayoutsService } from './layouts';
 import { checkPlanId, planLines, profileRow } from './planCommon';
-import { checkExportable, placedTransform, readPlanMeshes, type PlanPartMesh } from './export3mf';
+import { checkExportable, planFilesError, planMeshJob } from './export3mf';
 import type { FileStorage } from '../storage';
-import { projectionGrid, projectMesh, shadeRuns } from '../../shared/geometry/projection';
+import type { SheetViewsJob, SheetViewsResult } from '../mesh/planFiles';
+import { MeshWorkFailed } from '../mesh/pool';
 import { CAUTIONS, CAUTION_DEFERRAL, stageChecklist } from '../../shared/floor';
 import { STATUS_LABELS } from '../../shared/plans/status';
 import type { Placement } from '../../shared/packing';
@@ -55,24 +56,16 @@ function drawView(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewA
   return h;
 }
 
-/** The parts' own shapes projected on the view's plane (../../shared/geometry/projection.ts), shaded by depth: lighter is nearer. */
-function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, placed: ReadonlyArray<{ mesh: PlanPartMesh; transform: number[] }>) {
-  const { axes, depthAxis, nearer } = at.view;
+/** The parts' own shapes as a mesh worker drew them for the view (../mesh/planFiles.ts): runs of one shade, lighter is nearer. */
+function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, runs: Int32Array) {
+  const { axes } = at.view;
   const { x, y } = at;
   const { scale, h } = frame(doc, chamber, at);
-  const cellMm = CELL_PT / scale;
-  const grid = projectionGrid(axes, depthAxis, [chamber[axes[0]], chamber[axes[1]]], cellMm, nearer);
-  for (const p of placed) projectMesh(grid, p.mesh.positions, p.mesh.indices, p.transform);
-  let far = Infinity, near = -Infinity;
-  for (const z of grid.depth) {
-    if (z === -Infinity) continue;
-    if (z < far) far = z;
-    if (z > near) near = z;
-  }
-  const cellPt = cellMm * scale;
-  for (const r of shadeRuns(grid, SHADES, far, near)) {
+  const cellPt = cellMmOf(chamber, at) * scale;
+  for (let k = 0; k + 3 < runs.length; k += 4) {
+    const [row, start, length, level] = [runs[k], runs[k + 1], runs[k + 2], runs[k + 3]];
     // A hair wider than the run, so that no seam shows between runs.
-    doc.rect(x + r.start * cellPt, y + h - (r.row + 1) * cellPt, r.length * cellPt + 0.05, cellPt + 0.05).fill(SHADE_COLOURS[r.level]);
+    doc.rect(x + start * cellPt, y + h - (row + 1) * cellPt, length * cellPt + 0.05, cellPt + 0.05).fill(SHADE_COLOURS[level]);
   }
   doc.lineWidth(0.8).strokeColor(INK).rect(x, y, chamber[axes[0]] * scale, h).stroke();
   return h;
@@ -97,11 +90,16 @@ interface ViewAt {
   height: number;
 }
 
+/** Points per mm of a view: the chamber's side fitted into the view's room. */
+const scaleOf = (chamber: readonly number[], at: ViewAt) => Math.min(at.width / chamber[at.view.axes[0]], at.height / chamber[at.view.axes[1]]);
+/** The millimetres of a view's cell, CELL_PT on the page. */
+const cellMmOf = (chamber: readonly number[], at: ViewAt) => CELL_PT / scaleOf(chamber, at);
+
 /** A view's title, the chamber's outline and size; returns its scale (points per mm) and height in points. */
 function frame(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt) {
-  const { title, x, y, width, height } = at;
+  const { title, x, y, width } = at;
   const [a, b] = at.view.axes;
-  const scale = Math.min(width / chamber[a], height / chamber[b]);
+  const scale = scaleOf(chamber, at);
   const w = chamber[a] * scale;
   const h = chamber[b] * scale;
   doc.fillColor(INK).fontSize(9).text(title, x, y - 12, { width, lineBreak: false });
@@ -111,36 +109,39 @@ function frame(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt) 
 }
 
 /**
- * The placements' meshes and transforms for the views, or why the views draw boxes instead: a part's file that
- * cannot be read, or more triangles than a sheet draws in its time.
+ * The views' runs of shade, drawn from the parts' meshes in a mesh worker, or why the views draw boxes instead: a
+ * part's file that is missing or cannot be read, more triangles than a sheet draws, or a worker that could not
+ * finish.
  */
 async function shapesOf(
   plans: ReturnType<typeof plansRepository>,
-  storage: FileStorage,
+  deps: SheetDeps,
   planId: string,
+  chamber: readonly number[],
   placements: readonly Placement[],
-): Promise<{ placed: Array<{ mesh: PlanPartMesh; transform: number[] }> } | { reason: string }> {
-  let read;
+  views: readonly ViewAt[],
+): Promise<{ runs: Int32Array[] } | { reason: string }> {
+  const what = 'the views draw bounding boxes';
   try {
-    read = await readPlanMeshes(plans, storage, planId, 'the views draw bounding boxes');
+    const job = await planMeshJob(plans, deps.storage, planId, placements, what);
+    const drawn = await deps.draw({
+      ...job,
+      chamber,
+      views: views.map((at) => ({ ...at.view, cellMm: cellMmOf(chamber, at) })),
+      levels: SHADES,
+      triangleLimit: SHEET_TRIANGLE_LIMIT,
+    });
+    return 'reason' in drawn ? drawn : { runs: drawn.views };
   } catch (e) {
-    if (e instanceof AppError && e.status === 409) return { reason: e.message };
-    throw e;
+    if (e instanceof MeshWorkFailed) return { reason: `${e.message} The views draw bounding boxes.` };
+    const answer = planFilesError(e, what);
+    if (answer instanceof AppError && answer.status === 409) return { reason: answer.message };
+    throw answer;
   }
-  const placed: Array<{ mesh: PlanPartMesh; transform: number[] }> = [];
-  let triangles = 0;
-  for (const p of placements) {
-    const partId = read.partOfLine.get(p.id);
-    const mesh = partId === undefined ? undefined : read.meshes.get(partId);
-    if (!mesh) return { reason: 'A placement names a line that is not in the plan, so the views draw bounding boxes.' };
-    triangles += mesh.indices.length / 3;
-    placed.push({ mesh, transform: placedTransform(p, mesh) });
-  }
-  if (triangles > SHEET_TRIANGLE_LIMIT) {
-    return { reason: `The placed parts have ${Math.round(triangles).toLocaleString('en-US')} triangles, more than the ${SHEET_TRIANGLE_LIMIT.toLocaleString('en-US')} a sheet draws, so the views draw bounding boxes.` };
-  }
-  return { placed };
 }
+
+/** What the sheet is made with: the layouts, the file store, and a mesh worker that draws the views. */
+export type SheetDeps = { layouts: LayoutsService; storage: FileStorage; draw: (job: SheetViewsJob) => Promise<SheetViewsResult> };
 
 /** The estimate's cost, as stored with the layout (the sheet reads only these fields). */
 type SheetCost = Omit<CostEstimate, 'costPerPart' | 'perPart'> & { perPart: Array<Pick<CostEstimate['perPart'][number], 'id' | 'count' | 'each' | 'total'>> };
@@ -197,7 +198,7 @@ export function costLines(cost: SheetCost | undefined, lines: ReadonlyArray<{ re
 }
 
 /** The operator's clipboard copy of an approved plan: views, part list, estimates, checklists and cautions, as a PDF. */
-export function sheetService(db: Database, deps: { layouts: LayoutsService; storage: FileStorage }) {
+export function sheetService(db: Database, deps: SheetDeps) {
   const plans = plansRepository(db);
   const labs = labsRepository(db);
 
@@ -242,17 +243,17 @@ export function sheetService(db: Database, deps: { layouts: LayoutsService; stor
 
       const viewTop = doc.y + 14;
       const half = (usable - 20) / 2;
-      const shapes = await shapesOf(plans, deps.storage, plan.id, placements);
       const top: ViewAt = { title: 'Top view (x, y), from above', view: TOP, x: left, y: viewTop, width: half, height: 210 };
       const side: ViewAt = { title: 'Side view (x, z), from the front', view: FRONT, x: left + half + 20, y: viewTop, width: half, height: 210 };
+      const shapes = await shapesOf(plans, deps, plan.id, chamber, placements, [top, side]);
       const [hTop, hSide] =
-        'placed' in shapes
-          ? [drawShapes(doc, chamber, top, shapes.placed), drawShapes(doc, chamber, side, shapes.placed)]
+        'runs' in shapes
+          ? [drawShapes(doc, chamber, top, shapes.runs[0]), drawShapes(doc, chamber, side, shapes.runs[1])]
           : [drawView(doc, chamber, top, placements), drawView(doc, chamber, side, placements)];
       doc.x = left;
       doc.y = viewTop + Math.max(hTop, hSide) + 20;
       doc.font('Helvetica').fontSize(8).fillColor(MUTED);
-      if ('placed' in shapes) {
+      if ('runs' in shapes) {
         doc.text("The views draw the parts' own shapes, shaded by depth: lighter is higher in the top view and nearer the front in the side view.");
       } else {
         doc.text(

@@ -1,0 +1,139 @@
+/**
+ * A plan's build file (3MF) and the build sheet's drawn views, made from the
+ * parts' stored files in a mesh worker thread (./worker.ts): parsing a large
+ * mesh, writing it out as 3MF text and compressing it, or drawing millions of
+ * placed triangles takes seconds, and on the web server's own thread it would
+ * hold every other request of every lab that long. The web server only reads
+ * the files from the store and draws the finished runs of shade.
+ */
+import { parseMeshFile, placementTransform, rotationIndex, write3mf, type LengthUnit, type ThreeMfItemInput } from '../../shared/geometry';
+import { restingMesh } from '../../shared/geometry/layoutSlices';
+import { projectionGrid, projectMesh, shadeRuns } from '../../shared/geometry/projection';
+
+/** A part's stored file, how it is read (unit, one part per 3MF build item or not), which part of it, and the turn the part is stored with. */
+export interface StoredPartFile {
+  bytes: Uint8Array;
+  filename: string;
+  unit: LengthUnit;
+  split: boolean;
+  partIndex: number;
+  rotationDeg: readonly number[];
+}
+
+/** One distinct part of a plan and its stored file. */
+export interface PlanMeshFile extends StoredPartFile {
+  /** The part's name, for the build file's object and for messages. */
+  name: string;
+}
+
+/** A placement of one of the files' parts: its own 3MF transform (a layout by shape) or its box orientation and corner. */
+export interface PlanMeshItem {
+  file: number;
+  orientation: string;
+  position: readonly number[];
+  transform?: readonly number[] | null;
+}
+
+export interface BuildFileJob {
+  files: PlanMeshFile[];
+  items: PlanMeshItem[];
+}
+
+/** A view of the chamber: the axes drawn across and up, the axis looked along, which way is nearer, the cell. */
+export interface ViewSpec {
+  axes: [number, number];
+  depthAxis: number;
+  nearer: 1 | -1;
+  cellMm: number;
+}
+
+export interface SheetViewsJob {
+  files: PlanMeshFile[];
+  items: PlanMeshItem[];
+  chamber: readonly number[];
+  views: ViewSpec[];
+  /** Shades from far to near. */
+  levels: number;
+  /** More placed triangles than this and the views are not drawn (the reason says so). */
+  triangleLimit: number;
+}
+
+/** Each view's runs of one shade, four numbers a run: row, first cell, cells, shade (0 farthest). */
+export type SheetViewsResult = { views: Int32Array[] } | { reason: string };
+
+/** A part's file that does not hold the mesh its plan needs; `part` is its name. */
+export class UnreadablePartFile extends Error {
+  constructor(
+    readonly part: string,
+    readonly filename: string,
+  ) {
+    super(`The stored file of "${part}" (${filename}) cannot be read as a mesh`);
+  }
+}
+
+interface RestingPart {
+  name: string;
+  positions: Float64Array;
+  indices: Uint32Array;
+  extentMm: number[];
+}
+
+function readFiles(files: readonly PlanMeshFile[]): RestingPart[] {
+  return files.map((f) => {
+    const parsed = parseMeshFile(f.bytes, { filename: f.filename, unit: f.unit, splitObjects: f.split });
+    const mesh = parsed.ok ? parsed.parts[f.partIndex] : undefined;
+    if (!mesh) throw new UnreadablePartFile(f.name, f.filename);
+    const resting = restingMesh(mesh, f.rotationDeg);
+    return { name: f.name, positions: resting.positions, indices: mesh.indices, extentMm: resting.extentMm };
+  });
+}
+
+/** A placement's 3MF transform from its part's resting mesh: its own (a layout by shape), or from its box orientation and corner. */
+export function itemTransform(item: PlanMeshItem, extentMm: readonly number[]): number[] {
+  // The resting mesh fills [0, extent]; a layout packed by shape carries the transform itself (its rotation may be
+  // any of the 24, not only a box orientation).
+  return item.transform ? [...item.transform] : placementTransform(rotationIndex(item.orientation), [0, 0, 0], extentMm, item.position);
+}
+
+/** The packed build as one 3MF package: each part's mesh once, one build item per placement, numbered from 1. */
+export function buildFile(job: BuildFileJob): Uint8Array {
+  const parts = readFiles(job.files);
+  const items: ThreeMfItemInput[] = job.items.map((item, i) => ({
+    objectIndex: item.file,
+    transform: itemTransform(item, parts[item.file].extentMm),
+    partNumber: `${i + 1}`,
+  }));
+  return write3mf(
+    parts.map((p) => ({ name: p.name, positions: p.positions, indices: p.indices })),
+    items,
+    'millimeter',
+  );
+}
+
+/** The placed meshes projected on each view's plane (../../shared/geometry/projection.ts) and cut into runs of one shade. */
+export function sheetViews(job: SheetViewsJob): SheetViewsResult {
+  const parts = readFiles(job.files);
+  const triangles = job.items.reduce((n, item) => n + parts[item.file].indices.length / 3, 0);
+  if (triangles > job.triangleLimit) {
+    return {
+      reason: `The placed parts have ${Math.round(triangles).toLocaleString('en-US')} triangles, more than the ${job.triangleLimit.toLocaleString('en-US')} a sheet draws, so the views draw bounding boxes.`,
+    };
+  }
+  const transforms = job.items.map((item) => itemTransform(item, parts[item.file].extentMm));
+  return {
+    views: job.views.map((view) => {
+      const grid = projectionGrid(view.axes, view.depthAxis, [job.chamber[view.axes[0]], job.chamber[view.axes[1]]], view.cellMm, view.nearer);
+      job.items.forEach((item, i) => projectMesh(grid, parts[item.file].positions, parts[item.file].indices, transforms[i]));
+      let far = Infinity, near = -Infinity;
+      for (const z of grid.depth) {
+        if (z === -Infinity) continue;
+        if (z < far) far = z;
+        if (z > near) near = z;
+      }
+      const runs = shadeRuns(grid, job.levels, far, near);
+      const out = new Int32Array(4 * runs.length);
+      runs.forEach((r, k) => out.set([r.row, r.start, r.length, r.level], 4 * k));
+      return out;
+    }),
+  };
+}
