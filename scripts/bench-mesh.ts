@@ -125,7 +125,7 @@ async function main(): Promise<void> {
         `the calling thread's longest stall ${pooled.stallMs.toFixed(0)} ms`,
     );
     const views = await stalls(() =>
-      drawSheetViews({ files, items, chamber: [340, 840, 50], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], levels: 8, triangleLimit: 20_000_000 }),
+      drawSheetViews({ files, items, chamber: [340, 840, 50], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], palette: [[52, 80, 110], [168, 194, 220]], background: [255, 255, 255], triangleLimit: 20_000_000 }),
     );
     console.log(`sheet's top view of them (1 mm cells) in the worker pool: ${views.ms.toFixed(0)} ms, the calling thread's longest stall ${views.stallMs.toFixed(0)} ms`);
     const inline = await stalls(() => buildFile({ files, items }));

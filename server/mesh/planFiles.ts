@@ -8,7 +8,8 @@
  */
 import { parseMeshFile, placementTransform, rotationIndex, write3mf, type LengthUnit, type ThreeMfItemInput } from '../../shared/geometry';
 import { restingMesh } from '../../shared/geometry/layoutSlices';
-import { projectionGrid, projectMesh, shadeRuns } from '../../shared/geometry/projection';
+import { PNG } from 'pngjs';
+import { projectionGrid, projectMesh, shadeImage } from '../../shared/geometry/projection';
 
 /** A part's stored file, how it is read (unit, one part per 3MF build item or not), which part of it, and the turn the part is stored with. */
 export interface StoredPartFile {
@@ -52,14 +53,16 @@ export interface SheetViewsJob {
   items: PlanMeshItem[];
   chamber: readonly number[];
   views: ViewSpec[];
-  /** Shades from far to near. */
-  levels: number;
+  /** The shades, far to near (RGB, 0-255). */
+  palette: Array<[number, number, number]>;
+  /** Where no part is. */
+  background: [number, number, number];
   /** More placed triangles than this and the views are not drawn (the reason says so). */
   triangleLimit: number;
 }
 
-/** Each view's runs of one shade, four numbers a run: row, first cell, cells, shade (0 farthest). */
-export type SheetViewsResult = { views: Int32Array[] } | { reason: string };
+/** Each view as a PNG picture (RGB), one pixel a cell, `width` x `height` cells. */
+export type SheetViewsResult = { views: Array<{ png: Uint8Array; width: number; height: number }> } | { reason: string };
 
 /** A part's file that does not hold the mesh its plan needs; `part` is its name. */
 export class UnreadablePartFile extends Error {
@@ -110,7 +113,7 @@ export function buildFile(job: BuildFileJob): Uint8Array {
   );
 }
 
-/** The placed meshes projected on each view's plane (../../shared/geometry/projection.ts) and cut into runs of one shade. */
+/** The placed meshes projected on each view's plane (../../shared/geometry/projection.ts), shaded by depth, as pictures. */
 export function sheetViews(job: SheetViewsJob): SheetViewsResult {
   const parts = readFiles(job.files);
   const triangles = job.items.reduce((n, item) => n + parts[item.file].indices.length / 3, 0);
@@ -124,16 +127,10 @@ export function sheetViews(job: SheetViewsJob): SheetViewsResult {
     views: job.views.map((view) => {
       const grid = projectionGrid(view.axes, view.depthAxis, [job.chamber[view.axes[0]], job.chamber[view.axes[1]]], view.cellMm, view.nearer);
       job.items.forEach((item, i) => projectMesh(grid, parts[item.file].positions, parts[item.file].indices, transforms[i]));
-      let far = Infinity, near = -Infinity;
-      for (const z of grid.depth) {
-        if (z === -Infinity) continue;
-        if (z < far) far = z;
-        if (z > near) near = z;
-      }
-      const runs = shadeRuns(grid, job.levels, far, near);
-      const out = new Int32Array(4 * runs.length);
-      runs.forEach((r, k) => out.set([r.row, r.start, r.length, r.level], 4 * k));
-      return out;
+      const png = new PNG({ width: grid.na, height: grid.nb, colorType: 2, inputColorType: 2, inputHasAlpha: false });
+      png.data = Buffer.from(shadeImage(grid, job.palette, job.background).buffer);
+      const out = PNG.sync.write(png, { colorType: 2, inputColorType: 2, inputHasAlpha: false });
+      return { png: new Uint8Array(out.buffer, out.byteOffset, out.byteLength), width: grid.na, height: grid.nb };
     }),
   };
 }

@@ -21,7 +21,8 @@ const BOX_FILL = '#9bb7d4';
 const SHADE_FAR = [0x34, 0x50, 0x6e];
 const SHADE_NEAR = [0xa8, 0xc2, 0xdc];
 const SHADES = 8;
-const SHADE_COLOURS = Array.from({ length: SHADES }, (_, k) => '#' + SHADE_FAR.map((c, i) => Math.round(c + ((SHADE_NEAR[i] - c) * k) / (SHADES - 1)).toString(16).padStart(2, '0')).join(''));
+const SHADE_RGB = Array.from({ length: SHADES }, (_, k) => SHADE_FAR.map((c, i) => Math.round(c + ((SHADE_NEAR[i] - c) * k) / (SHADES - 1))) as [number, number, number]);
+const PAPER: [number, number, number] = [255, 255, 255];
 /** The views' cells, in PDF points (1/72 in): finer than a printer's dot gain makes visible. */
 const CELL_PT = 0.8;
 /** More placed triangles than this, and the views draw boxes (drawing them would hold the request too long). */
@@ -56,18 +57,21 @@ function drawView(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewA
   return h;
 }
 
-/** The parts' own shapes as a mesh worker drew them for the view (../mesh/planFiles.ts): runs of one shade, lighter is nearer. */
-function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, runs: Int32Array) {
+/**
+ * The parts' own shapes as a mesh worker drew them for the view (../mesh/planFiles.ts): a picture of one pixel a
+ * cell, lighter is nearer, laid over the view's frame from its lower left corner (its top row may reach less than
+ * a cell past the frame, which clips it).
+ */
+function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt, view: { png: Uint8Array; width: number; height: number }) {
   const { axes } = at.view;
   const { x, y } = at;
   const { scale, h } = frame(doc, chamber, at);
+  const w = chamber[axes[0]] * scale;
   const cellPt = cellMmOf(chamber, at) * scale;
-  for (let k = 0; k + 3 < runs.length; k += 4) {
-    const [row, start, length, level] = [runs[k], runs[k + 1], runs[k + 2], runs[k + 3]];
-    // A hair wider than the run, so that no seam shows between runs.
-    doc.rect(x + start * cellPt, y + h - (row + 1) * cellPt, length * cellPt + 0.05, cellPt + 0.05).fill(SHADE_COLOURS[level]);
-  }
-  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, chamber[axes[0]] * scale, h).stroke();
+  doc.save().rect(x, y, w, h).clip();
+  doc.image(Buffer.from(view.png.buffer, view.png.byteOffset, view.png.byteLength), x, y + h - view.height * cellPt, { width: view.width * cellPt, height: view.height * cellPt });
+  doc.restore();
+  doc.lineWidth(0.8).strokeColor(INK).rect(x, y, w, h).stroke();
   return h;
 }
 
@@ -109,7 +113,7 @@ function frame(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt) 
 }
 
 /**
- * The views' runs of shade, drawn from the parts' meshes in a mesh worker, or why the views draw boxes instead: a
+ * The views' pictures, drawn from the parts' meshes in a mesh worker, or why the views draw boxes instead: a
  * part's file that is missing or cannot be read, more triangles than a sheet draws, or a worker that could not
  * finish.
  */
@@ -120,7 +124,7 @@ async function shapesOf(
   chamber: readonly number[],
   placements: readonly Placement[],
   views: readonly ViewAt[],
-): Promise<{ runs: Int32Array[] } | { reason: string }> {
+): Promise<{ views: Array<{ png: Uint8Array; width: number; height: number }> } | { reason: string }> {
   const what = 'the views draw bounding boxes';
   try {
     const job = await planMeshJob(plans, deps.storage, planId, placements, what);
@@ -128,10 +132,11 @@ async function shapesOf(
       ...job,
       chamber,
       views: views.map((at) => ({ ...at.view, cellMm: cellMmOf(chamber, at) })),
-      levels: SHADES,
+      palette: SHADE_RGB,
+      background: PAPER,
       triangleLimit: SHEET_TRIANGLE_LIMIT,
     });
-    return 'reason' in drawn ? drawn : { runs: drawn.views };
+    return drawn;
   } catch (e) {
     if (e instanceof MeshWorkFailed) return { reason: `${e.message} The views draw bounding boxes.` };
     const answer = planFilesError(e, what);
@@ -247,13 +252,13 @@ export function sheetService(db: Database, deps: SheetDeps) {
       const side: ViewAt = { title: 'Side view (x, z), from the front', view: FRONT, x: left + half + 20, y: viewTop, width: half, height: 210 };
       const shapes = await shapesOf(plans, deps, plan.id, chamber, placements, [top, side]);
       const [hTop, hSide] =
-        'runs' in shapes
-          ? [drawShapes(doc, chamber, top, shapes.runs[0]), drawShapes(doc, chamber, side, shapes.runs[1])]
+        'views' in shapes
+          ? [drawShapes(doc, chamber, top, shapes.views[0]), drawShapes(doc, chamber, side, shapes.views[1])]
           : [drawView(doc, chamber, top, placements), drawView(doc, chamber, side, placements)];
       doc.x = left;
       doc.y = viewTop + Math.max(hTop, hSide) + 20;
       doc.font('Helvetica').fontSize(8).fillColor(MUTED);
-      if ('runs' in shapes) {
+      if ('views' in shapes) {
         doc.text("The views draw the parts' own shapes, shaded by depth: lighter is higher in the top view and nearer the front in the side view.");
       } else {
         doc.text(

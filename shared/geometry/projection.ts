@@ -85,38 +85,29 @@ export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, 
   }
 }
 
-export interface ShadeRun {
-  /** Row (b) and first column (a) of the run, in cells. */
-  row: number;
-  start: number;
-  length: number;
-  /** 0 (farthest) .. levels - 1 (nearest). */
-  level: number;
-}
-
 /**
- * The covered cells as runs along each row of one shade each: the depth between `near` and `far` cut into
- * `levels` bands. Few runs for a drawing of many parts (one rectangle per run).
+ * The view as a picture, one RGB pixel a cell, the top row first (row b = nb - 1): the nearest depth of each
+ * covered cell cut into `palette.length` bands between the farthest and the nearest covered depth (the first
+ * colour farthest), `background` where nothing covers a cell.
  */
-export function shadeRuns(grid: ProjectionGrid, levels: number, far: number, near: number): ShadeRun[] {
+export function shadeImage(grid: ProjectionGrid, palette: ReadonlyArray<readonly [number, number, number]>, background: readonly [number, number, number]): Uint8Array {
   const { na, nb, depth } = grid;
+  let far = Infinity, near = -Infinity;
+  for (const z of depth) {
+    if (z === -Infinity) continue;
+    if (z < far) far = z;
+    if (z > near) near = z;
+  }
+  const levels = palette.length;
   const span = Math.max(1e-9, near - far);
-  const levelOf = (z: number) => Math.max(0, Math.min(levels - 1, Math.floor(((z - far) / span) * levels)));
-  const runs: ShadeRun[] = [];
+  const rgb = new Uint8Array(3 * na * nb);
   for (let j = 0; j < nb; j++) {
-    let i = 0;
-    while (i < na) {
+    const row = (nb - 1 - j) * na;
+    for (let i = 0; i < na; i++) {
       const z = depth[i + na * j];
-      if (z === -Infinity) {
-        i++;
-        continue;
-      }
-      const level = levelOf(z);
-      let e = i + 1;
-      while (e < na && depth[e + na * j] !== -Infinity && levelOf(depth[e + na * j]) === level) e++;
-      runs.push({ row: j, start: i, length: e - i, level });
-      i = e;
+      const c = z === -Infinity ? background : palette[Math.max(0, Math.min(levels - 1, Math.floor(((z - far) / span) * levels)))];
+      rgb.set(c, 3 * (row + i));
     }
   }
-  return runs;
+  return rgb;
 }

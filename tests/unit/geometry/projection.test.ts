@@ -3,7 +3,7 @@
 // depth, and the hole of a frame left empty. A cell counts when its centre is covered, so a projected outline of
 // length L can gain or lose at most about L x (cell / 2) x sqrt(2) of area (the half-diagonal band along it).
 import { prismWithHoles, translation } from '../../../shared/geometry';
-import { projectionGrid, projectMesh, shadeRuns } from '../../../shared/geometry/projection';
+import { projectionGrid, projectMesh, shadeImage } from '../../../shared/geometry/projection';
 import { cylinder } from './solids';
 
 const covered = (g: ReturnType<typeof projectionGrid>) => g.depth.reduce((n, z) => n + (z === -Infinity ? 0 : 1), 0);
@@ -46,17 +46,25 @@ describe('projecting placed meshes onto the sheet views', () => {
     expect(back.depth[Math.floor(35 / cell) + back.na * Math.floor(10 / cell)]).toBeCloseTo(100, 5);
   });
 
-  test('the shading runs cover each covered cell once and tell a near part from a far one', () => {
+  test('the picture shades each covered cell by its depth, far to near, and leaves the rest as background, top row first', () => {
     const cell = 1;
     const g = projectionGrid([0, 1], 2, [100, 40], cell);
     const block = prismWithHoles([[0, 0], [20, 0], [20, 20], [0, 20]], [], 0, 10);
     projectMesh(g, block.positions, block.indices, translation(10, 10, 0));
     projectMesh(g, block.positions, block.indices, translation(60, 10, 30));
-    const runs = shadeRuns(g, 8, 10, 40);
-    expect(runs.reduce((n, r) => n + r.length, 0)).toBe(covered(g));
-    // One run per row and block: 20 rows of two.
-    expect(runs).toHaveLength(40);
-    expect(new Set(runs.filter((r) => r.start < 50).map((r) => r.level))).toEqual(new Set([0]));
-    expect(new Set(runs.filter((r) => r.start >= 50).map((r) => r.level))).toEqual(new Set([7]));
+    const palette = [[1, 1, 1], [2, 2, 2], [3, 3, 3], [4, 4, 4]] as const;
+    const rgb = shadeImage(g, palette, [255, 255, 255]);
+    expect(rgb).toHaveLength(3 * 100 * 40);
+    const at = (i: number, j: number) => rgb[3 * ((g.nb - 1 - j) * g.na + i)];
+    const counts = new Map<number, number>();
+    for (let k = 0; k < rgb.length; k += 3) counts.set(rgb[k], (counts.get(rgb[k]) ?? 0) + 1);
+    // The lower block's top (z = 10) is the farthest covered depth, the upper one's (z = 40) the nearest.
+    expect(counts).toEqual(new Map([[255, 4000 - 800], [1, 400], [4, 400]]));
+    expect(at(15, 15)).toBe(1);
+    expect(at(65, 15)).toBe(4);
+    expect(at(15, 35)).toBe(255);
+    // Row j = 10 is the blocks' first: 29 rows from the picture's top.
+    expect(rgb[3 * (29 * 100 + 15)]).toBe(1);
+    expect(rgb[3 * (30 * 100 + 15)]).toBe(255);
   });
 });

@@ -5,6 +5,7 @@
  */
 import { MeshPool } from '../../../server/mesh';
 import { UnreadablePartFile, buildFile, sheetViews, type PlanMeshFile, type PlanMeshItem } from '../../../server/mesh/planFiles';
+import { PNG } from 'pngjs';
 import { measureMesh, parse3mf, prism, read3mfModel, writeBinaryStl } from '../../../shared/geometry';
 
 jest.setTimeout(60_000);
@@ -25,42 +26,56 @@ const items: PlanMeshItem[] = [
   { file: 0, orientation: 'yxz', position: [50, 10, 5] },
 ];
 
-/** The cells a view's runs cover, and the runs' rows. */
-function covered(runs: Int32Array): { cells: number; rows: Set<number> } {
+const PALETTE: Array<[number, number, number]> = [[10, 20, 30], [40, 50, 60], [70, 80, 90]];
+const PAPER: [number, number, number] = [255, 255, 255];
+const TOP = { axes: [0, 1] as [number, number], depthAxis: 2, nearer: 1 as const, cellMm: 1 };
+const FRONT = { axes: [0, 2] as [number, number], depthAxis: 1, nearer: -1 as const, cellMm: 1 };
+
+/** A view's picture decoded (PNG, ISO/IEC 15948, by pngjs): its size, the cells not paper, and the rows (from the floor) they are in. */
+function covered(view: { png: Uint8Array; width: number; height: number }) {
+  const png = PNG.sync.read(Buffer.from(view.png));
   let cells = 0;
   const rows = new Set<number>();
-  for (let k = 0; k < runs.length; k += 4) {
-    cells += runs[k + 2];
-    rows.add(runs[k]);
+  const colours = new Set<string>();
+  for (let r = 0; r < png.height; r++) {
+    for (let i = 0; i < png.width; i++) {
+      const k = 4 * (r * png.width + i);
+      const rgb = [png.data[k], png.data[k + 1], png.data[k + 2]];
+      if (rgb.every((c, a) => c === PAPER[a])) continue;
+      cells++;
+      rows.add(png.height - 1 - r);
+      colours.add(rgb.join(','));
+    }
   }
-  return { cells, rows };
+  return { width: png.width, height: png.height, cells, rows, colours };
 }
 
 describe("a plan's views for the build sheet", () => {
   test('the top view at 1 mm cells covers each block\'s footprint, 30 x 20 cells each (a rectangle\'s area, counted by cell centres)', () => {
-    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], levels: 8, triangleLimit: 1000 });
+    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [TOP], palette: PALETTE, background: PAPER, triangleLimit: 1000 });
     if ('reason' in drawn) throw new Error(drawn.reason);
-    const { cells, rows } = covered(drawn.views[0]);
+    const { width, height, cells, rows, colours } = covered(drawn.views[0]);
+    expect([width, height]).toEqual([100, 100]);
     expect(cells).toBe(2 * 30 * 20);
     // Rows 10..39: the turned block reaches y = 40, the other y = 30.
     expect(Math.min(...rows)).toBe(10);
     expect(Math.max(...rows)).toBe(39);
     // Both tops are at the same height: one shade.
-    const levels = new Set<number>();
-    for (let k = 3; k < drawn.views[0].length; k += 4) levels.add(drawn.views[0][k]);
-    expect(levels.size).toBe(1);
+    expect(colours.size).toBe(1);
   });
 
   test('the front view sees the blocks 10 mm tall, from z = 5', () => {
-    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [{ axes: [0, 2], depthAxis: 1, nearer: -1, cellMm: 1 }], levels: 8, triangleLimit: 1000 });
+    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [FRONT], palette: PALETTE, background: PAPER, triangleLimit: 1000 });
     if ('reason' in drawn) throw new Error(drawn.reason);
     const { cells, rows } = covered(drawn.views[0]);
     expect(cells).toBe((30 + 20) * 10);
+    // Seen from the front, both blocks' front faces are at y = 10: one depth, one shade.
     expect([...rows].sort((a, b) => a - b)).toEqual([5, 6, 7, 8, 9, 10, 11, 12, 13, 14]);
+    expect(covered(drawn.views[0]).colours.size).toBe(1);
   });
 
   test('more placed triangles than the limit: no views, and the reason counts them', () => {
-    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], levels: 8, triangleLimit: 20 });
+    const drawn = sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [TOP], palette: PALETTE, background: PAPER, triangleLimit: 20 });
     expect(drawn).toEqual({ reason: expect.stringContaining('The placed parts have 24 triangles, more than the 20 a sheet draws') });
   });
 
@@ -98,7 +113,7 @@ describe("a plan's build file", () => {
       expect(model.ok && model.model.items.length).toBe(2);
       const broken = { ...block, name: 'Gear', filename: 'gear.stl', bytes: new TextEncoder().encode('not a mesh at all') };
       await expect(pool.buildFile({ files: [broken], items })).rejects.toBeInstanceOf(UnreadablePartFile);
-      const drawn = await pool.sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [{ axes: [0, 1], depthAxis: 2, nearer: 1, cellMm: 1 }], levels: 8, triangleLimit: 1000 });
+      const drawn = await pool.sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [TOP], palette: PALETTE, background: PAPER, triangleLimit: 1000 });
       if ('reason' in drawn) throw new Error(drawn.reason);
       expect(covered(drawn.views[0]).cells).toBe(1200);
     } finally {
