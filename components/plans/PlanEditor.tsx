@@ -126,7 +126,7 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
         </Notice>
       ) : null}
       {plan.editable && !e.canPlan ? <Notice tone="info">Only planners and leads change plans.</Notice> : null}
-      {plan.chosenLayoutId ? <PlanFlags planId={plan.id} compact /> : null}
+      {plan.chosenLayoutId ? <PlanFlags planId={plan.id} compact folded={!wide} /> : null}
       {plan.status === 'changes_requested' ? (
         <Notice tone="caution" title="Sent back" testID="plan-sent-back">{[...plan.events].reverse().find((ev) => ev.to === 'changes_requested')?.comment ?? ''}</Notice>
       ) : null}

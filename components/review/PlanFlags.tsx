@@ -2,7 +2,7 @@ import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { usePlanFlagsQuery } from '../queries/review';
 import { colors, radius, spacing } from '../theme';
-import { Badge, Card, ErrorState, LoadingState, Text } from '../ui';
+import { Badge, Card, ErrorState, LoadingState, Notice, Text } from '../ui';
 import type { PlanFlag } from '../../shared/schemas/review';
 import type { PlanStatus } from '../../shared/plans/status';
 
@@ -34,9 +34,22 @@ export function flagsHeading(status: PlanStatus | undefined): { title: string; c
  * What to look at before approving (or before sending, or printing, by the
  * plan's `status`): each flag the server found, its title and the sentence
  * saying what and why. `compact` is the plan editor's strip: only shown when
- * there is something to say.
+ * there is something to say; `folded` (on a phone) shows each flag's title,
+ * its reason a tap away, so the layout is not pushed below the fold.
  */
-export function PlanFlags({ planId, status, compact = false, testID = 'plan-flags' }: { planId: string; status?: PlanStatus; compact?: boolean; testID?: string }) {
+export function PlanFlags({
+  planId,
+  status,
+  compact = false,
+  folded = false,
+  testID = 'plan-flags',
+}: {
+  planId: string;
+  status?: PlanStatus;
+  compact?: boolean;
+  folded?: boolean;
+  testID?: string;
+}) {
   const lab = useLab();
   const flags = usePlanFlagsQuery(lab.id, planId);
   if (compact) {
@@ -44,7 +57,9 @@ export function PlanFlags({ planId, status, compact = false, testID = 'plan-flag
     return (
       <View style={styles.strip} testID={testID}>
         {flags.data.flags.map((f, i) => (
-          <FlagRow key={`${f.kind}:${i}`} flag={f} />
+          <Notice key={`${f.kind}:${i}`} tone="caution" title={f.title} folded={folded} testID={`flag-${f.kind}`}>
+            {f.message}
+          </Notice>
         ))}
       </View>
     );

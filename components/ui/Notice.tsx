@@ -1,3 +1,4 @@
+import { useState } from 'react';
 import { ActivityIndicator, StyleSheet, View } from 'react-native';
 import { colors, radius, spacing, type ColorName } from '../theme';
 import { Text } from './Text';
@@ -11,21 +12,42 @@ const tones: Record<Tone, { bg: ColorName; bar: ColorName; fg: ColorName }> = {
   success: { bg: 'tealSoft', bar: 'teal', fg: 'ink' },
 };
 
-/** A message block with a coloured edge: errors, cautions, confirmations. */
-export function Notice({ tone = 'info', title, children, testID }: { tone?: Tone; title?: string; children?: React.ReactNode; testID?: string }) {
+/**
+ * A message block with a coloured edge: errors, cautions, confirmations.
+ * `folded` (a notice with a title, where room is short: the phone's plan
+ * editor) shows the title and a button that opens the rest.
+ */
+export function Notice({ tone = 'info', title, children, testID, folded = false }: { tone?: Tone; title?: string; children?: React.ReactNode; testID?: string; folded?: boolean }) {
   const t = tones[tone];
+  const [open, setOpen] = useState(false);
+  const foldable = folded && !!title;
+  const titleText = title ? (
+    <Text variant="bodyStrong" color={t.fg} style={foldable ? styles.foldTitle : undefined}>
+      {title}
+    </Text>
+  ) : null;
   return (
     <View
       testID={testID}
       accessibilityRole={tone === 'danger' ? 'alert' : undefined}
       style={[styles.notice, { backgroundColor: colors[t.bg], borderLeftColor: colors[t.bar] }]}
     >
-      {title ? (
-        <Text variant="bodyStrong" color={t.fg}>
-          {title}
-        </Text>
-      ) : null}
-      {typeof children === 'string' ? <Text variant="body">{children}</Text> : children}
+      {foldable ? (
+        <View style={styles.foldHead}>
+          {titleText}
+          <Button
+            label={open ? 'Hide' : 'Details'}
+            variant="ghost"
+            size="sm"
+            onPress={() => setOpen(!open)}
+            aria-expanded={open}
+            testID={testID ? `${testID}-toggle` : undefined}
+          />
+        </View>
+      ) : (
+        titleText
+      )}
+      {foldable && !open ? null : typeof children === 'string' ? <Text variant="body">{children}</Text> : children}
     </View>
   );
 }
@@ -52,5 +74,7 @@ export function ErrorState({ error, onRetry }: { error: { message: string }; onR
 
 const styles = StyleSheet.create({
   notice: { borderLeftWidth: 4, borderRadius: radius.md, padding: spacing.md, gap: spacing.sm },
+  foldHead: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm },
+  foldTitle: { flex: 1 },
   loading: { flexDirection: 'row', alignItems: 'center', gap: spacing.sm, padding: spacing.lg },
 });

@@ -45,6 +45,22 @@ test('on a phone the lead sees each flag of a plan with its reason before the de
   expect(box!.x + box!.width).toBeLessThanOrEqual(PHONE.width);
   await flags.scrollIntoViewIfNeeded();
   await screenshot(page, 'review-flags-phone');
+
+  // The plan's own page on a phone folds each flag to its title, so the tabs and the layout stay near the top;
+  // the reason is a tap away.
+  await page.goto(`/plans/${lab.ids[0]}`);
+  const strip = page.getByTestId('plan-flags');
+  const density = strip.getByTestId('flag-low_density');
+  await density.waitFor();
+  await expect(density.innerText()).resolves.toMatch(/^Low packing density/);
+  await expect(density.innerText()).resolves.not.toMatch(/below this lab's minimum/);
+  expect(await strip.getByTestId('flag-late_due_date').count()).toBe(1);
+  await density.getByTestId('flag-low_density-toggle').click();
+  await expect(density.innerText()).resolves.toMatch(/below this lab's minimum of 8\.0 %/);
+  await expect(strip.getByTestId('flag-late_due_date').innerText()).resolves.not.toMatch(/is due 2026-01-05/);
+  const tabs = await page.getByTestId('plan-tabs').boundingBox();
+  expect(tabs!.y).toBeLessThan(PHONE.height);
+  await screenshot(page, 'plan-flags-folded-phone');
   await page.context().close();
 });
 
