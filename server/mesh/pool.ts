@@ -133,13 +133,18 @@ export class MeshPool {
     if ('problem' in reply) {
       throw new MeshWorkFailed(
         reply.problem.code === 'measure-timeout'
-          ? `Making ${what} took longer than ${Math.round(this.timeoutMs / 1000)} s and was stopped.`
+          ? `Making ${what} took longer than ${this.limitText()} and was stopped.`
           : `Making ${what} failed: its worker thread stopped.`,
       );
     }
     if ('unreadable' in reply) throw new UnreadablePartFile(reply.unreadable.part, reply.unreadable.filename);
     if ('error' in reply) throw new Error(`making ${what} failed: ${reply.error}`);
     return reply;
+  }
+
+  /** The time limit as a person reads it: seconds, or milliseconds under one. */
+  private limitText(): string {
+    return this.timeoutMs >= 1000 ? `${Math.round(this.timeoutMs / 1000)} s` : `${this.timeoutMs} ms`;
   }
 
   private laneFor(bytes: number): Lane {
@@ -157,7 +162,7 @@ export class MeshPool {
         return {
           problem: {
             code: 'measure-timeout',
-            message: `${quoteName(filename)} took longer than ${Math.round(this.timeoutMs / 1000)} s to measure and was stopped. The file may be damaged or far larger than it looks.`,
+            message: `${quoteName(filename)} took longer than ${this.limitText()} to measure and was stopped. The file may be damaged or far larger than it looks.`,
           },
         };
       }

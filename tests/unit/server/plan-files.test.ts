@@ -4,6 +4,9 @@
  * the worker pool.
  */
 import { MeshPool } from '../../../server/mesh';
+import { MeshWorkFailed } from '../../../server/mesh/pool';
+import { planFilesError } from '../../../server/services/export3mf';
+import type { AppError } from '../../../server/errors';
 import { UnreadablePartFile, buildFile, sheetViews, type PlanMeshFile, type PlanMeshItem } from '../../../server/mesh/planFiles';
 import { PNG } from 'pngjs';
 import { measureMesh, parse3mf, prism, read3mfModel, writeBinaryStl } from '../../../shared/geometry';
@@ -116,6 +119,26 @@ describe("a plan's build file", () => {
       const drawn = await pool.sheetViews({ files: [block], items, chamber: [100, 100, 60], views: [TOP], palette: PALETTE, background: PAPER, triangleLimit: 1000 });
       if ('reason' in drawn) throw new Error(drawn.reason);
       expect(covered(drawn.views[0]).cells).toBe(1200);
+    } finally {
+      await pool.close();
+    }
+  });
+
+  test('a worker out of time: the export answers 503 saying so, and the sheet falls back to boxes (MeshWorkFailed)', async () => {
+    // 50 ms is less than a thread takes to start and load the sources, so the first job runs out of time.
+    const pool = new MeshPool({ size: 1, quickBytes: 0, timeoutMs: 50 });
+    try {
+      const failed = await pool.buildFile({ files: [block], items }).then(
+        () => null,
+        (e: unknown) => e,
+      );
+      expect(failed).toBeInstanceOf(MeshWorkFailed);
+      expect((failed as Error).message).toBe('Making the build file took longer than 50 ms and was stopped.');
+      const answer = planFilesError(failed, 'the build cannot be exported') as AppError;
+      expect(answer.status).toBe(503);
+      expect(answer.code).toBe('mesh_work_failed');
+      const unreadable = planFilesError(new UnreadablePartFile('Gear', 'gear.stl'), 'the build cannot be exported') as AppError;
+      expect([unreadable.status, unreadable.message]).toEqual([409, 'The stored file of "Gear" (gear.stl) cannot be read as a mesh, so the build cannot be exported.']);
     } finally {
       await pool.close();
     }
