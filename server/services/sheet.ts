@@ -25,7 +25,7 @@ const SHADE_RGB = Array.from({ length: SHADES }, (_, k) => SHADE_FAR.map((c, i) 
 const PAPER: [number, number, number] = [255, 255, 255];
 /** The views' cells, in PDF points (1/72 in): finer than a printer's dot gain makes visible. */
 const CELL_PT = 0.8;
-/** More placed triangles than this, and the views draw boxes (drawing them would hold the request too long). */
+/** More placed triangles than this, and the views draw boxes (drawing them would hold a mesh thread, and the request, too long). */
 export const SHEET_TRIANGLE_LIMIT = 4_000_000;
 
 const fmt = (n: number | undefined, digits = 1) => (typeof n === 'number' && Number.isFinite(n) ? n.toFixed(digits) : '-');
@@ -124,11 +124,11 @@ async function shapesOf(
   chamber: readonly number[],
   placements: readonly Placement[],
   views: readonly ViewAt[],
-): Promise<{ views: Array<{ png: Uint8Array; width: number; height: number }> } | { reason: string }> {
+): Promise<SheetViewsResult> {
   const what = 'the views draw bounding boxes';
   try {
     const job = await planMeshJob(plans, deps.storage, planId, placements, what);
-    const drawn = await deps.draw({
+    return await deps.draw({
       ...job,
       chamber,
       views: views.map((at) => ({ ...at.view, cellMm: cellMmOf(chamber, at) })),
@@ -136,7 +136,6 @@ async function shapesOf(
       background: PAPER,
       triangleLimit: SHEET_TRIANGLE_LIMIT,
     });
-    return drawn;
   } catch (e) {
     if (e instanceof MeshWorkFailed) return { reason: `${e.message} The views draw bounding boxes.` };
     const answer = planFilesError(e, what);
