@@ -11,7 +11,7 @@ import { MovementForm } from './MovementForm';
 import { PolicyForm } from './PolicyForm';
 import { PowderCautions } from './PowderCautions';
 import { StockChart } from './StockChart';
-import { MOVEMENT_LABELS, ageText, kgText, signedKg } from './format';
+import { MOVEMENT_LABELS, ageText, kgText, signedKg, untrackedText } from './format';
 
 /** One powder: its stock over time and ahead, lots, movements, age, melt-flow checks and rules. */
 export function MaterialPowderScreen({ materialId }: { materialId: string }) {
@@ -32,9 +32,11 @@ export function MaterialPowderScreen({ materialId }: { materialId: string }) {
   const main = (
     <>
       <Summary d={d} />
-      <Card title="Stock over time and ahead" subtitle="From the ledger up to now; after now, the fresh stock the queued builds will leave.">
-        <ChartFor d={d} />
-      </Card>
+      {d.tracked ? (
+        <Card title="Stock over time and ahead" subtitle="From the ledger up to now; after now, the fresh stock the queued builds will leave.">
+          <ChartFor d={d} />
+        </Card>
+      ) : null}
       <Card title="Fresh lots" subtitle="Oldest first: the order the floor draws them in.">
         {d.lots.length === 0 ? <Text color="inkMuted">No lots received yet.</Text> : null}
         {d.lots.map((l) => (
@@ -105,10 +107,15 @@ function Summary({ d }: { d: MaterialDetailView }) {
           The reused powder failed its last melt-flow check. Builds load fresh powder only until a lead releases it.
         </Notice>
       ) : null}
+      {d.tracked ? null : (
+        <Notice tone="info" title="Not tracked yet" testID="powder-untracked">
+          {untrackedText(d.material.name)}
+        </Notice>
+      )}
       <View style={styles.figures} testID="powder-summary">
-        <Big label="Fresh on hand" value={kgText(d.freshKg)} testID="powder-fresh" />
-        <Big label="Reused on hand" value={kgText(d.reusedKg)} testID="powder-reused" />
-        <Big label="Reused powder's mean age" value={ageText(d.reusedMeanAgeBuilds)} testID="powder-age" />
+        <Big label="Fresh on hand" value={d.tracked ? kgText(d.freshKg) : '–'} testID="powder-fresh" />
+        <Big label="Reused on hand" value={d.tracked ? kgText(d.reusedKg) : '–'} testID="powder-reused" />
+        <Big label="Reused powder's mean age" value={d.tracked ? ageText(d.reusedMeanAgeBuilds) : '–'} testID="powder-age" />
         <Big label="Last melt-flow" value={d.lastCheck ? `${d.lastCheck.mvrCm3Per10Min}` : '–'} unit={d.lastCheck ? 'cm³/10 min' : undefined} tone={d.lastCheck && !d.lastCheck.passed ? 'danger' : undefined} />
         <Big label="Queue needs (fresh)" value={kgText(f.neededKg)} />
       </View>

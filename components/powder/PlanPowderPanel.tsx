@@ -4,7 +4,7 @@ import { usePlanPowderQuery } from '../queries/powder';
 import { colors, radius, spacing } from '../theme';
 import { Figure, LinkPressable, Notice, Text } from '../ui';
 import { buildWarnings, clean, fillMeanAge, refreshRatioOf } from '../../shared/powder';
-import { ageText, kgText } from './format';
+import { ageText, kgText, untrackedText } from './format';
 
 function Cell({ label, value, testID, danger }: { label: string; value: string; testID?: string; danger?: boolean }) {
   return (
@@ -35,7 +35,7 @@ export function PlanPowderPanel({ planId, freshKg, reusedKg, layoutLabel }: { pl
     return (
       <View style={styles.box} testID="plan-powder-untracked">
         {head}
-        <Text color="inkMuted">{`The lab keeps no stock of ${p.material.name} in Sinterstack yet: builds start without a stock check. It is kept from the first lot received or count recorded.`}</Text>
+        <Text color="inkMuted">{untrackedText(p.material.name)}</Text>
       </View>
     );
   }

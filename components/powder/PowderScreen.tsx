@@ -6,7 +6,7 @@ import { colors, radius, spacing, useIsWide } from '../theme';
 import { Badge, EmptyState, ErrorState, Figure, LinkPressable, LoadingState, Screen, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import { PowderCautions } from './PowderCautions';
-import { ageText, kgText } from './format';
+import { ageText, kgText, untrackedText } from './format';
 import { kgUpText } from '../../shared/floor';
 
 /** Stock per material at a glance; a material opens its chart, lots, movements and checks. */
@@ -40,7 +40,7 @@ function MaterialCard({ m, wide }: { m: MaterialStockView; wide: boolean }) {
     <LinkPressable
       href={`/powder/${m.material.id}`}
       testID={`powder-material-${m.material.id}`}
-      accessibilityLabel={`${m.material.name}: ${kgText(m.freshKg)} fresh, ${kgText(m.reusedKg)} reused`}
+      accessibilityLabel={m.tracked ? `${m.material.name}: ${kgText(m.freshKg)} fresh, ${kgText(m.reusedKg)} reused` : `${m.material.name}: no stock kept yet`}
       style={({ pressed }) => [styles.card, wide && styles.cardWide, pressed && { backgroundColor: colors.powderDeep }]}
     >
       <View style={styles.titleLine}>
@@ -51,12 +51,19 @@ function MaterialCard({ m, wide }: { m: MaterialStockView; wide: boolean }) {
         {m.reuseBlocked ? <Badge tone="danger" label="Reuse blocked" /> : null}
         {!m.tracked ? <Badge label="Not tracked yet" /> : null}
       </View>
-      <View style={styles.figures}>
-        <Fig label="Fresh" value={kgText(m.freshKg)} />
-        <Fig label="Reused" value={kgText(m.reusedKg)} />
-        <Fig label="Reused age" value={ageText(m.reusedMeanAgeBuilds)} />
-        <Fig label="Melt-flow" value={m.lastCheck ? `${m.lastCheck.mvrCm3Per10Min} cm³/10 min` : '–'} tone={m.lastCheck && !m.lastCheck.passed ? 'danger' : undefined} />
-      </View>
+      {m.tracked ? (
+        <View style={styles.figures}>
+          <Fig label="Fresh" value={kgText(m.freshKg)} />
+          <Fig label="Reused" value={kgText(m.reusedKg)} />
+          <Fig label="Reused age" value={ageText(m.reusedMeanAgeBuilds)} />
+          <Fig label="Melt-flow" value={m.lastCheck ? `${m.lastCheck.mvrCm3Per10Min} cm³/10 min` : '–'} tone={m.lastCheck && !m.lastCheck.passed ? 'danger' : undefined} />
+        </View>
+      ) : (
+        // No movement recorded: the stock is unknown, not empty.
+        <Text color="inkMuted" testID="powder-untracked">
+          {untrackedText(m.material.name)}
+        </Text>
+      )}
       <Text variant="caption" color={f.shortage ? 'danger' : 'inkMuted'}>
         {f.neededKg > 0
           ? `The queue needs ${kgUpText(f.neededKg)} fresh${f.belowReorderAt ? `; below the reorder level of ${kgText(m.policy.reorderLevelKg)} on ${formatDate(f.belowReorderAt)}` : ''}.`

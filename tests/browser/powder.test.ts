@@ -4,6 +4,7 @@ import { ARTIFACTS, newPage, openSection, PHONE, screenshot, serveAndLaunch, sig
 import { PASSWORD, startTestApp } from '../helpers/app';
 import { labWithCrew, queuedPlan, startBody } from '../api/runs-fixtures';
 import { materialDetailView, planPowderView } from '../../shared/schemas/powder';
+import { demoMaterials } from '../../shared/demo/profiles';
 
 jest.setTimeout(300_000);
 
@@ -213,6 +214,39 @@ describe('a lead on a wide screen (1440 x 900)', () => {
     await page.getByTestId('plan-powder-fresh-left').waitFor();
     await scrollTo(page, 'plan-powder');
     await screenshot(page, 'powder-plan-editor-wide');
+    await page.context().close();
+  });
+
+});
+
+describe('a lead on a phone (390 x 844)', () => {
+  test('a powder with no stock recorded yet reads as not kept (dashes and why), not as 0.0 kg on hand', async () => {
+    const added = request.agent(served.running.app);
+    const signedIn = await added.post('/api/auth/sign-in').send({ email: lab.email, password: PASSWORD }).set('Origin', served.baseUrl);
+    expect(signedIn.status).toBe(200);
+    const made = await added
+      .post(`/api/labs/${lab.labId}/materials`)
+      .set('Origin', served.baseUrl)
+      .send({ ...demoMaterials[0], name: 'Untracked powder' });
+    expect(made.status).toBe(201);
+    const page = await newPage(served, PHONE);
+    await signIn(page, lab.email, PASSWORD);
+    await page.goto('/powder');
+    const card = page.getByTestId(`powder-material-${made.body.id}`);
+    await card.waitFor();
+    const text = (await card.innerText()).replace(/\s+/g, ' ');
+    expect(text).toContain('Not tracked yet');
+    expect(text).toContain('The lab keeps no stock of Untracked powder in Sinterstack yet');
+    expect(text).not.toContain('0.0 kg');
+    // The tracked powder beside it keeps its figures.
+    await expect(page.getByTestId(`powder-material-${lab.materialId}`).innerText()).resolves.toMatch(/\d+\.\d kg/);
+    await card.click();
+    await page.getByTestId('powder-untracked').waitFor();
+    await expect(page.getByTestId('powder-fresh').innerText()).resolves.toMatch(/–/);
+    await expect(page.getByTestId('powder-reused').innerText()).resolves.toMatch(/–/);
+    // No ledger, no chart of it.
+    expect(await page.getByTestId('stock-chart').count()).toBe(0);
+    await screenshot(page, 'powder-untracked-phone');
     await page.context().close();
   });
 });
