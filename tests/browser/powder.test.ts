@@ -216,7 +216,6 @@ describe('a lead on a wide screen (1440 x 900)', () => {
     await screenshot(page, 'powder-plan-editor-wide');
     await page.context().close();
   });
-
 });
 
 describe('a lead on a phone (390 x 844)', () => {
