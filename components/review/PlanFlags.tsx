@@ -1,8 +1,8 @@
 import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { usePlanFlagsQuery } from '../queries/review';
-import { colors, radius, spacing } from '../theme';
-import { Badge, Card, ErrorState, LoadingState, Notice, Text } from '../ui';
+import { spacing } from '../theme';
+import { Badge, Card, ErrorState, LoadingState, Notice } from '../ui';
 import type { PlanFlag } from '../../shared/schemas/review';
 import type { PlanStatus } from '../../shared/plans/status';
 
@@ -57,9 +57,7 @@ export function PlanFlags({
     return (
       <View style={styles.strip} testID={testID}>
         {flags.data.flags.map((f, i) => (
-          <Notice key={`${f.kind}:${i}`} tone="caution" title={f.title} folded={folded} testID={`flag-${f.kind}`}>
-            {f.message}
-          </Notice>
+          <FlagRow key={`${f.kind}:${i}`} flag={f} folded={folded} />
         ))}
       </View>
     );
@@ -84,23 +82,15 @@ export function PlanFlags({
   );
 }
 
-function FlagRow({ flag }: { flag: PlanFlag }) {
+/** One flag: its title, and the sentence saying what and why (a tap away when `folded`). */
+function FlagRow({ flag, folded = false }: { flag: PlanFlag; folded?: boolean }) {
   return (
-    <View style={styles.flag} testID={`flag-${flag.kind}`}>
-      <Text variant="bodyStrong">{flag.title}</Text>
-      <Text variant="body">{flag.message}</Text>
-    </View>
+    <Notice tone="caution" title={flag.title} folded={folded} testID={`flag-${flag.kind}`}>
+      {flag.message}
+    </Notice>
   );
 }
 
 const styles = StyleSheet.create({
   strip: { gap: spacing.sm },
-  flag: {
-    borderLeftWidth: 4,
-    borderLeftColor: colors.amber,
-    backgroundColor: colors.amberSoft,
-    borderRadius: radius.md,
-    padding: spacing.md,
-    gap: spacing.xxs,
-  },
 });

@@ -4,10 +4,10 @@
  * mesh, writing it out as 3MF text and compressing it, or drawing millions of
  * placed triangles takes seconds, and on the web server's own thread it would
  * hold every other request of every lab that long. The web server only reads
- * the files from the store and draws the finished runs of shade.
+ * the files from the store and lays the finished pictures on the sheet.
  */
-import { parseMeshFile, placementTransform, rotationIndex, write3mf, type LengthUnit, type ThreeMfItemInput } from '../../shared/geometry';
-import { restingMesh } from '../../shared/geometry/layoutSlices';
+import { write3mf, type LengthUnit, type ThreeMfItemInput } from '../../shared/geometry';
+import { restingMesh, restingTransform, storedPart } from '../../shared/geometry/layoutSlices';
 import { PNG } from 'pngjs';
 import { projectionGrid, projectMesh, shadeImage } from '../../shared/geometry/projection';
 
@@ -83,19 +83,18 @@ interface RestingPart {
 
 function readFiles(files: readonly PlanMeshFile[]): RestingPart[] {
   return files.map((f) => {
-    const parsed = parseMeshFile(f.bytes, { filename: f.filename, unit: f.unit, splitObjects: f.split });
-    const mesh = parsed.ok ? parsed.parts[f.partIndex] : undefined;
+    const mesh = storedPart(f);
     if (!mesh) throw new UnreadablePartFile(f.name, f.filename);
     const resting = restingMesh(mesh, f.rotationDeg);
     return { name: f.name, positions: resting.positions, indices: mesh.indices, extentMm: resting.extentMm };
   });
 }
 
-/** A placement's 3MF transform from its part's resting mesh: its own (a layout by shape), or from its box orientation and corner. */
-export function itemTransform(item: PlanMeshItem, extentMm: readonly number[]): number[] {
-  // The resting mesh fills [0, extent]; a layout packed by shape carries the transform itself (its rotation may be
-  // any of the 24, not only a box orientation).
-  return item.transform ? [...item.transform] : placementTransform(rotationIndex(item.orientation), [0, 0, 0], extentMm, item.position);
+/** A placement's 3MF transform (../../shared/geometry/layoutSlices.ts restingTransform); a stored layout's orientation is always one. */
+function itemTransform(item: PlanMeshItem, extentMm: readonly number[]): number[] {
+  const transform = restingTransform(item, extentMm);
+  if (!transform) throw new Error(`a placement's orientation "${item.orientation}" is not one`);
+  return transform;
 }
 
 /** The packed build as one 3MF package: each part's mesh once, one build item per placement, numbered from 1. */

@@ -8,8 +8,8 @@ import { readFile } from 'node:fs/promises';
 import { setPriority } from 'node:os';
 import { workerData } from 'piscina';
 import { PNG } from 'pngjs';
-import { measureMeshFile, parseMeshFile, SliceCache } from '../../shared/geometry';
-import { profileLayoutFromFiles, readPartMeshes, restingMesh, RestingMeshCache } from '../../shared/geometry/layoutSlices';
+import { measureMeshFile, SliceCache } from '../../shared/geometry';
+import { profileLayoutFromFiles, readPartMeshes, restingMesh, RestingMeshCache, storedPart } from '../../shared/geometry/layoutSlices';
 import { checkShapeLayout } from '../../shared/packing/shape/check';
 import { renderThumbnail } from '../../shared/geometry/thumbnail';
 import type { MeasureReply, MeasureRequest, ThumbnailJob } from './protocol';
@@ -55,8 +55,7 @@ export default async function handle(request: MeasureRequest): Promise<MeasureRe
 }
 
 function thumbnailPng(job: ThumbnailJob): Uint8Array | null {
-  const parsed = parseMeshFile(job.bytes, { filename: job.filename, unit: job.unit, splitObjects: job.split });
-  const part = parsed.ok ? parsed.parts[job.partIndex] : undefined;
+  const part = storedPart(job);
   if (!part) return null;
   const picture = renderThumbnail(restingMesh(part, job.rotationDeg), job.sizePx);
   const png = new PNG({ width: picture.width, height: picture.height });

@@ -48,6 +48,23 @@ export function restingMesh(mesh: MeshData, rotationDeg: readonly number[]): Mes
   return { positions: out, indices: mesh.indices, extentMm: [max[0] - min[0], max[1] - min[1], max[2] - min[2]] };
 }
 
+/** A stored file's part, read as it was stored (its unit; a 3MF one part per build item or not): null when the file holds no such part. */
+export function storedPart(f: { bytes: Uint8Array; filename: string; unit: LengthUnit; split: boolean; partIndex: number }): MeshData | null {
+  const parsed = parseMeshFile(f.bytes, { filename: f.filename, unit: f.unit, splitObjects: f.split });
+  return (parsed.ok ? parsed.parts[f.partIndex] : undefined) ?? null;
+}
+
+/**
+ * A placement's 3MF transform from its part's resting mesh (which fills [0, extent]): its own (a layout packed by
+ * shape, whose rotation may be any of the 24), or from its box orientation and corner; null for an orientation
+ * that is not one.
+ */
+export function restingTransform(p: { orientation?: string; position: readonly number[]; transform?: readonly number[] | null }, extentMm: readonly number[]): number[] | null {
+  if (p.transform) return [...p.transform];
+  const r = p.orientation === undefined ? -1 : rotationIndex(p.orientation);
+  return r >= 0 ? placementTransform(r, [0, 0, 0], extentMm, p.position) : null;
+}
+
 /** The same mesh with its triangles turned outward when they all face in (negative volume), so its sections count positive. */
 export function outwardFacing<M extends MeshData>(mesh: M): M {
   const p = mesh.positions;
@@ -141,11 +158,7 @@ export function profileLayoutFromFiles(
   const { sources, boxReasons } = read;
   const placements: ProfilePlacement[] = job.placements.map((p) => {
     const mesh = sources[p.part]?.mesh as (MeshData & { extentMm: number[] }) | null | undefined;
-    let transform: readonly number[] | null = p.transform ?? null;
-    if (!transform && mesh && p.orientation !== undefined) {
-      const r = rotationIndex(p.orientation);
-      if (r >= 0) transform = placementTransform(r, [0, 0, 0], mesh.extentMm, p.position);
-    }
+    const transform = p.transform ?? (mesh ? restingTransform(p, mesh.extentMm) : null);
     return { part: p.part, transform, position: p.position, size: p.size };
   });
   const profiles = layoutProfiles({ parts: sources, placements, layerHeightMm: job.layerHeightMm, layers: job.layers, cache: caches.slices });
@@ -172,8 +185,7 @@ export function readPartMeshes(files: readonly ProfilePartFile[], meshes: Restin
         boxReasons.push({ part: i, reason: `the stored file "${f.filename}" could not be read` });
         return { key: f.key, mesh: null };
       }
-      const parsed = parseMeshFile(f.bytes, { filename: f.filename, unit: f.unit, splitObjects: f.split });
-      const part = parsed.ok ? parsed.parts[f.partIndex] : undefined;
+      const part = storedPart({ ...f, bytes: f.bytes });
       mesh = part ? outwardFacing(restingMesh(part, f.rotationDeg)) : null;
       meshes.set(f.key, mesh);
     }
