@@ -46,6 +46,8 @@ export interface ViewSpec {
   depthAxis: number;
   nearer: 1 | -1;
   cellMm: number;
+  /** The room drawn along `axes` from the chamber's corner (mm): the chamber's sides when left out. */
+  sizeMm?: [number, number];
 }
 
 export interface SheetViewsJob {
@@ -124,7 +126,7 @@ export function sheetViews(job: SheetViewsJob): SheetViewsResult {
   const transforms = job.items.map((item) => itemTransform(item, parts[item.file].extentMm));
   return {
     views: job.views.map((view) => {
-      const grid = projectionGrid(view.axes, view.depthAxis, [job.chamber[view.axes[0]], job.chamber[view.axes[1]]], view.cellMm, view.nearer);
+      const grid = projectionGrid(view.axes, view.depthAxis, view.sizeMm ?? [job.chamber[view.axes[0]], job.chamber[view.axes[1]]], view.cellMm, view.nearer);
       job.items.forEach((item, i) => projectMesh(grid, parts[item.file].positions, parts[item.file].indices, transforms[i]));
       const png = new PNG({ width: grid.na, height: grid.nb, colorType: 2, inputColorType: 2, inputHasAlpha: false });
       png.data = Buffer.from(shadeImage(grid, job.palette, job.background).buffer);

@@ -66,8 +66,8 @@ function drawShapes(doc: PDFKit.PDFDocument, chamber: readonly number[], at: Vie
   const { axes } = at.view;
   const { x, y } = at;
   const { scale, h } = frame(doc, chamber, at);
-  const w = chamber[axes[0]] * scale;
-  const cellPt = cellMmOf(chamber, at) * scale;
+  const w = at.room[axes[0]] * scale;
+  const cellPt = cellMmOf(at) * scale;
   doc.save().rect(x, y, w, h).clip();
   doc.image(Buffer.from(view.png.buffer, view.png.byteOffset, view.png.byteLength), x, y + h - view.height * cellPt, { width: view.width * cellPt, height: view.height * cellPt });
   doc.restore();
@@ -84,31 +84,46 @@ interface SheetView {
 const TOP: SheetView = { axes: [0, 1], depthAxis: 2, nearer: 1 };
 const FRONT: SheetView = { axes: [0, 2], depthAxis: 1, nearer: -1 };
 
-/** Where a view goes on the page (points), under which title. */
+/** Where a view goes on the page (points), under which title, and the room of the chamber it draws. */
 interface ViewAt {
   title: string;
   view: SheetView;
+  /** The chamber, or in the side view of a shallow build the chamber up to a little over the build's top (mm). */
+  room: readonly number[];
   x: number;
   y: number;
   width: number;
   height: number;
 }
 
-/** Points per mm of a view: the chamber's side fitted into the view's room. */
-const scaleOf = (chamber: readonly number[], at: ViewAt) => Math.min(at.width / chamber[at.view.axes[0]], at.height / chamber[at.view.axes[1]]);
+/** Points per mm of a view: its room fitted into its place on the page. */
+const scaleOf = (at: ViewAt) => Math.min(at.width / at.room[at.view.axes[0]], at.height / at.room[at.view.axes[1]]);
 /** The millimetres of a view's cell, CELL_PT on the page. */
-const cellMmOf = (chamber: readonly number[], at: ViewAt) => CELL_PT / scaleOf(chamber, at);
+const cellMmOf = (at: ViewAt) => CELL_PT / scaleOf(at);
 
-/** A view's title, the chamber's outline and size; returns its scale (points per mm) and height in points. */
+/**
+ * How much of the chamber's height the side view draws: a little over the build's top (its highest part and 5 mm,
+ * rounded up to 10 mm), so that a shallow build in a tall chamber is drawn large enough to read rather than as a
+ * strip along the floor; all of it when the build reaches that high.
+ */
+export function sideRoom(chamber: readonly number[], placements: ReadonlyArray<Pick<Placement, 'position' | 'size'>>): number[] {
+  const top = placements.reduce((t, p) => Math.max(t, p.position[2] + p.size[2]), 0);
+  const shown = Math.max(20, Math.ceil((top + 5) / 10) * 10);
+  return [chamber[0], chamber[1], Math.min(chamber[2], shown)];
+}
+
+/** A view's title, the outline and size of its room; returns its scale (points per mm) and height in points. */
 function frame(doc: PDFKit.PDFDocument, chamber: readonly number[], at: ViewAt) {
-  const { title, x, y, width } = at;
+  const { title, x, y, width, room } = at;
   const [a, b] = at.view.axes;
-  const scale = scaleOf(chamber, at);
-  const w = chamber[a] * scale;
-  const h = chamber[b] * scale;
+  const scale = scaleOf(at);
+  const w = room[a] * scale;
+  const h = room[b] * scale;
   doc.fillColor(INK).fontSize(9).text(title, x, y - 12, { width, lineBreak: false });
   doc.lineWidth(0.8).strokeColor(INK).rect(x, y, w, h).stroke();
-  doc.fillColor(MUTED).fontSize(7).text(`${fmt(chamber[a], 0)} x ${fmt(chamber[b], 0)} mm`, x, y + h + 3, { width, lineBreak: false });
+  const size = `${fmt(room[a], 0)} x ${fmt(room[b], 0)} mm`;
+  const cut = room[b] < chamber[b] - 1e-9 ? `, the lowest ${fmt(room[b], 0)} mm of the chamber's ${fmt(chamber[b], 0)} mm` : '';
+  doc.fillColor(MUTED).fontSize(7).text(`${size}${cut}`, x, y + h + 3, { width, lineBreak: false });
   return { scale, h };
 }
 
@@ -131,7 +146,7 @@ async function shapesOf(
     return await deps.draw({
       ...job,
       chamber,
-      views: views.map((at) => ({ ...at.view, cellMm: cellMmOf(chamber, at) })),
+      views: views.map((at) => ({ ...at.view, cellMm: cellMmOf(at), sizeMm: [at.room[at.view.axes[0]], at.room[at.view.axes[1]]] as [number, number] })),
       palette: SHADE_RGB,
       background: PAPER,
       triangleLimit: SHEET_TRIANGLE_LIMIT,
@@ -247,8 +262,8 @@ export function sheetService(db: Database, deps: SheetDeps) {
 
       const viewTop = doc.y + 14;
       const half = (usable - 20) / 2;
-      const top: ViewAt = { title: 'Top view (x, y), from above', view: TOP, x: left, y: viewTop, width: half, height: 210 };
-      const side: ViewAt = { title: 'Side view (x, z), from the front', view: FRONT, x: left + half + 20, y: viewTop, width: half, height: 210 };
+      const top: ViewAt = { title: 'Top view (x, y), from above', view: TOP, room: chamber, x: left, y: viewTop, width: half, height: 210 };
+      const side: ViewAt = { title: 'Side view (x, z), from the front', view: FRONT, room: sideRoom(chamber, placements), x: left + half + 20, y: viewTop, width: half, height: 210 };
       const shapes = await shapesOf(plans, deps, plan.id, chamber, placements, [top, side]);
       const [hTop, hSide] =
         'views' in shapes

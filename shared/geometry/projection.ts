@@ -88,7 +88,8 @@ export function projectMesh(grid: ProjectionGrid, positions: ArrayLike<number>, 
 /**
  * The view as a picture, one RGB pixel a cell, the top row first (row b = nb - 1): the nearest depth of each
  * covered cell cut into `palette.length` bands between the farthest and the nearest covered depth (the first
- * colour farthest), `background` where nothing covers a cell.
+ * colour farthest), `background` where nothing covers a cell. Where every covered cell lies within a cell's size
+ * of the same depth (plates laid flat, seen from above), all of them are the nearest there is: the last colour.
  */
 export function shadeImage(grid: ProjectionGrid, palette: ReadonlyArray<readonly [number, number, number]>, background: readonly [number, number, number]): Uint8Array {
   const { na, nb, depth } = grid;
@@ -99,13 +100,14 @@ export function shadeImage(grid: ProjectionGrid, palette: ReadonlyArray<readonly
     if (z > near) near = z;
   }
   const levels = palette.length;
+  const flat = near - far < grid.cellMm;
   const span = Math.max(1e-9, near - far);
   const rgb = new Uint8Array(3 * na * nb);
   for (let j = 0; j < nb; j++) {
     const row = (nb - 1 - j) * na;
     for (let i = 0; i < na; i++) {
       const z = depth[i + na * j];
-      const c = z === -Infinity ? background : palette[Math.max(0, Math.min(levels - 1, Math.floor(((z - far) / span) * levels)))];
+      const c = z === -Infinity ? background : palette[flat ? levels - 1 : Math.max(0, Math.min(levels - 1, Math.floor(((z - far) / span) * levels)))];
       rgb.set(c, 3 * (row + i));
     }
   }

@@ -92,6 +92,13 @@ describe('the build sheet\'s views', () => {
     const shapes = await get();
     expect(shapes).toContain('Top view (x, y), from above');
     expect(shapes).toContain("The views draw the parts' own shapes, shaded by depth");
+    // The top view draws the whole plate; the side view of this one layer of 8 mm gears (on the 5 mm floor) draws
+    // the chamber up to 20 mm, so they are not a strip along the bottom of its full height.
+    const captions = [...shapes.matchAll(/^(\d+) x (\d+) mm(.*)$/gm)];
+    expect(captions).toHaveLength(2);
+    expect(captions[0][3]).toBe('');
+    expect(captions[1][2]).toBe('20');
+    expect(captions[1][3]).toMatch(/^, the lowest 20 mm of the chamber's \d+ mm$/);
     // The part's stored file spoilt: the sheet is still made, with boxes, and says which part and why.
     await running.db.sequelize.query(
       `UPDATE files SET data = convert_to('not a mesh', 'UTF8'), size_bytes = 10 WHERE key IN (SELECT p.file_key FROM parts p JOIN request_lines rl ON rl.part_id = p.id WHERE rl.id = $1)`,

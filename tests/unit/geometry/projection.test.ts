@@ -67,4 +67,15 @@ describe('projecting placed meshes onto the sheet views', () => {
     expect(rgb[3 * (29 * 100 + 15)]).toBe(1);
     expect(rgb[3 * (30 * 100 + 15)]).toBe(255);
   });
+
+  test('parts whose tops all lie at one height are drawn in the nearest shade, not the farthest', () => {
+    const g = projectionGrid([0, 1], 2, [100, 40], 1);
+    const plate = prismWithHoles([[0, 0], [20, 0], [20, 20], [0, 20]], [], 0, 4);
+    projectMesh(g, plate.positions, plate.indices, translation(10, 10, 0));
+    projectMesh(g, plate.positions, plate.indices, translation(60, 10, 0));
+    const rgb = shadeImage(g, [[1, 1, 1], [2, 2, 2], [3, 3, 3]], [255, 255, 255]);
+    const counts = new Map<number, number>();
+    for (let k = 0; k < rgb.length; k += 3) counts.set(rgb[k], (counts.get(rgb[k]) ?? 0) + 1);
+    expect(counts).toEqual(new Map([[255, 4000 - 800], [3, 800]]));
+  });
 });
