@@ -111,16 +111,18 @@ export function LayoutsTable({
               const v = r.numbers ? m.get(r.numbers) : null;
               const isBest = v != null && best.get(m.key) === v;
               return (
-                <View key={m.key} style={styles.metric}>
+                <View key={m.key} style={[styles.metric, m.beside && styles.metricTwoLines]}>
                   <Text variant="caption" color="inkMuted">{m.title}</Text>
-                  <Text variant="figure" style={isBest ? styles.best : undefined} testID={`layout-${m.key}-${r.working ? 'working' : r.id}`}>
-                    {r.numbers ? m.show(r.numbers, currency) : '–'}
-                  </Text>
-                  {r.numbers && m.beside?.(r.numbers) ? (
-                    <Text variant="caption" color="inkFaint" testID={`layout-${m.key}-boxes-${r.working ? 'working' : r.id}`}>
-                      {m.beside(r.numbers)}
+                  <View style={styles.figures}>
+                    <Text variant="figure" style={isBest ? styles.best : undefined} testID={`layout-${m.key}-${r.working ? 'working' : r.id}`}>
+                      {r.numbers ? m.show(r.numbers, currency) : '–'}
                     </Text>
-                  ) : null}
+                    {r.numbers && m.beside?.(r.numbers) ? (
+                      <Text variant="caption" color="inkFaint" testID={`layout-${m.key}-boxes-${r.working ? 'working' : r.id}`}>
+                        {m.beside(r.numbers)}
+                      </Text>
+                    ) : null}
+                  </View>
                 </View>
               );
             })}
@@ -167,6 +169,9 @@ const styles = StyleSheet.create({
   head: { minHeight: 44, gap: 2 },
   badges: { flexDirection: 'row', flexWrap: 'wrap', gap: 4 },
   metric: { height: ROW, flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: spacing.sm },
+  // A metric that may show a second figure keeps room for it in every column, so the rows stay level side by side.
+  metricTwoLines: { height: ROW + 16, alignItems: 'flex-start', paddingTop: 2 },
+  figures: { alignItems: 'flex-end' },
   best: { fontWeight: '700', color: colors.teal },
   legend: { flexDirection: 'row', alignItems: 'center', gap: spacing.xs },
   legendSwatch: { width: 10, height: 10, borderRadius: 2, backgroundColor: colors.teal },
