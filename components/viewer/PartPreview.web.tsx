@@ -19,7 +19,7 @@ import { useEffect, useMemo } from 'react';
 import { StyleSheet, View, type StyleProp, type ViewStyle } from 'react-native';
 import * as THREE from 'three';
 import { colors } from '../theme';
-import { boundsOf, formatMm, sizeOf, type Bounds, type Vec3 } from './math';
+import { boundsOf, formatMm, separateLabels, sizeOf, type Bounds, type Vec3 } from './math';
 import { BoxOutline, BuildArrow, FitOnLoad, FloorGrid, Lights, VIEW_FOV_DEG, labelStyle, sceneColours, useMounted } from './scene';
 
 export interface PartPreviewProps {
@@ -86,20 +86,43 @@ export function PartPreview({ mesh, sizeMm, style, accessibilityLabel }: PartPre
   );
 }
 
-/** The x, y and z extents, each at the middle of a bottom or upright edge of the box. */
+/** The label's width on screen: 12 px Roboto Mono advances 0.6 em a character, with 6 px padding and a border a side. */
+const labelWidth = (text: string) => text.length * 7.2 + 14;
+
+/**
+ * The x, y and z extents, each at the middle of a bottom or upright edge of the box. The y edge and the upright
+ * edge meet at the corner nearest the camera, and on a flat or short part their middles come close on screen, so
+ * the labels are pushed apart where they would cover each other (./math.ts separateLabels).
+ */
 function DimensionLabels({ box, labelSize }: { box: Bounds; labelSize: Vec3 }) {
+  const texts = [`x ${formatMm(labelSize[0])}`, `y ${formatMm(labelSize[1])}`, `z ${formatMm(labelSize[2])}`];
+  const anchors: Vec3[] = [
+    [0, box.min[1], 0],
+    [box.max[0], 0, 0],
+    [box.max[0], box.min[1], box.max[2] / 2],
+  ];
+  const key = `${anchors.flat().join(',')}|${texts.join(',')}`;
+  // Every label's place is worked out from all three anchors as the camera sees them.
+  const placeOf = useMemo(() => {
+    const points = anchors.map((a) => new THREE.Vector3(...a));
+    const p = new THREE.Vector3();
+    return (k: number) => (_el: THREE.Object3D, camera: THREE.Camera, size: { width: number; height: number }) => {
+      const boxes = points.map((a, i) => {
+        p.copy(a).project(camera);
+        return { x: ((p.x + 1) * size.width) / 2, y: ((1 - p.y) * size.height) / 2, w: labelWidth(texts[i]), h: 18 };
+      });
+      return separateLabels(boxes)[k];
+    };
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [key]);
   if (!useMounted()) return null;
   return (
     <>
-      <Html position={[0, box.min[1], 0]} center zIndexRange={[10, 0]}>
-        <div style={labelStyle}>x {formatMm(labelSize[0])}</div>
-      </Html>
-      <Html position={[box.max[0], 0, 0]} center zIndexRange={[10, 0]}>
-        <div style={labelStyle}>y {formatMm(labelSize[1])}</div>
-      </Html>
-      <Html position={[box.max[0], box.min[1], box.max[2] / 2]} center zIndexRange={[10, 0]}>
-        <div style={labelStyle}>z {formatMm(labelSize[2])}</div>
-      </Html>
+      {texts.map((text, k) => (
+        <Html key={k} position={anchors[k]} center zIndexRange={[10, 0]} calculatePosition={placeOf(k)}>
+          <div style={labelStyle}>{text}</div>
+        </Html>
+      ))}
     </>
   );
 }

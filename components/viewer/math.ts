@@ -356,3 +356,45 @@ export function formatMm(valueMm: number): string {
   if (!Number.isFinite(valueMm)) return '–';
   return Math.abs(valueMm) < 100 ? `${valueMm.toFixed(1)} mm` : `${Math.round(valueMm)} mm`;
 }
+
+// ---------------------------------------------------------------------------
+// Labels over a view
+
+/** A label on screen: its centre and its size, in pixels. */
+export interface LabelBox {
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+}
+
+/**
+ * Label centres pushed apart until no two boxes come closer than `gap` pixels: each overlapping pair is moved
+ * apart along the axis where it overlaps least (the first label stays put and the other takes the whole move;
+ * otherwise each moves half). Labels anchored on edges that meet near one corner of a flat part would otherwise
+ * cover each other.
+ */
+export function separateLabels(boxes: readonly LabelBox[], gap = 4, rounds = 20): Array<[number, number]> {
+  const at = boxes.map((b) => [b.x, b.y] as [number, number]);
+  for (let round = 0; round < rounds; round++) {
+    let moved = false;
+    for (let i = 0; i < boxes.length; i++) {
+      for (let j = i + 1; j < boxes.length; j++) {
+        const dx = at[j][0] - at[i][0];
+        const dy = at[j][1] - at[i][1];
+        const overX = (boxes[i].w + boxes[j].w) / 2 + gap - Math.abs(dx);
+        const overY = (boxes[i].h + boxes[j].h) / 2 + gap - Math.abs(dy);
+        if (overX <= 1e-9 || overY <= 1e-9) continue;
+        moved = true;
+        const axis = overY <= overX ? 1 : 0;
+        const over = axis === 1 ? overY : overX;
+        const sign = (axis === 1 ? dy : dx) >= 0 ? 1 : -1;
+        const mine = i === 0 ? 0 : over / 2;
+        at[i][axis] -= sign * mine;
+        at[j][axis] += sign * (over - mine);
+      }
+    }
+    if (!moved) break;
+  }
+  return at;
+}

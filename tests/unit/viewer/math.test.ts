@@ -3,6 +3,8 @@ import {
   LINE_PALETTE,
   UNIT_CUBE,
   boundsOf,
+  separateLabels,
+  type LabelBox,
   fitCamera,
   framedBounds,
   footprintAreaMm2,
@@ -338,5 +340,33 @@ describe('what the views frame', () => {
     // the chamber's 384 mm: the camera comes more than two and a half times closer.
     expect(parts.distance * 2.5).toBeLessThan(whole.distance);
     expect(parts.target).toEqual([125, 100, 17]);
+  });
+});
+
+describe('labels over a view kept apart', () => {
+  const overlap = (a: LabelBox, b: LabelBox, gap: number) => Math.abs(a.x - b.x) < (a.w + b.w) / 2 + gap - 1e-6 && Math.abs(a.y - b.y) < (a.h + b.h) / 2 + gap - 1e-6;
+
+  test('labels that do not touch stay where they are', () => {
+    const boxes: LabelBox[] = [
+      { x: 100, y: 100, w: 80, h: 18 },
+      { x: 300, y: 100, w: 80, h: 18 },
+      { x: 200, y: 200, w: 80, h: 18 },
+    ];
+    expect(separateLabels(boxes)).toEqual(boxes.map((b) => [b.x, b.y]));
+  });
+
+  test('three labels anchored near one corner (a flat part seen from above a corner) end apart, the first where it was', () => {
+    // The y and z labels' anchors 10 px apart, the x label's overlapping the z one: as on a 90 x 60 x 30 mm housing.
+    const boxes: LabelBox[] = [
+      { x: 180, y: 466, w: 79, h: 18 },
+      { x: 258, y: 470, w: 79, h: 18 },
+      { x: 250, y: 475, w: 79, h: 18 },
+    ];
+    const at = separateLabels(boxes);
+    expect(at[0]).toEqual([180, 466]);
+    const moved = boxes.map((b, i) => ({ ...b, x: at[i][0], y: at[i][1] }));
+    for (let i = 0; i < 3; i++) for (let j = i + 1; j < 3; j++) expect(overlap(moved[i], moved[j], 4)).toBe(false);
+    // Pushed apart by no more than the labels' own size: they stay beside their edges.
+    moved.forEach((m, i) => expect(Math.hypot(m.x - boxes[i].x, m.y - boxes[i].y)).toBeLessThan(2 * (m.w + m.h)));
   });
 });
