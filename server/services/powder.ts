@@ -161,6 +161,14 @@ export function powderService(db: Database, deps: PowderDeps) {
     };
   }
 
+  /**
+   * A material whose stock the lab does not keep yet: what the queue needs is known, but there is no shelf to hold
+   * it against, so no stock line, reorder date, running out or shortage (0 kg recorded is not 0 kg on the shelf).
+   */
+  function untrackedForecast(policy: PowderPolicy, list: Demand[], nowMs: number): ForecastView {
+    return { points: [], neededKg: forecastView(0, policy, list, nowMs).neededKg, belowReorderAt: null, runsOutAt: null, runsOutPlan: null, shortage: false };
+  }
+
   async function stockViews(labId: string, nowMs: number, only?: string): Promise<MaterialStockView[]> {
     const materials = (await repo.materials(labId)).filter((m) => !only || m.id === only);
     const [totals, policies, need] = await Promise.all([repo.totals(labId), repo.policies(materials.map((m) => m.id)), demands(labId, nowMs)]);
@@ -180,7 +188,7 @@ export function powderService(db: Database, deps: PowderDeps) {
         lotCount: t.lotCount,
         lastCheck: last ? checkView(last) : null,
         reuseBlocked: reuseBlocked(meltState(last)),
-        forecast: forecastView(t.freshKg, policy, need.get(m.id) ?? [], nowMs),
+        forecast: t.tracked ? forecastView(t.freshKg, policy, need.get(m.id) ?? [], nowMs) : untrackedForecast(policy, need.get(m.id) ?? [], nowMs),
       });
     }
     return out;

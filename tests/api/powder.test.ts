@@ -121,7 +121,12 @@ describe('powder at the machine', () => {
     const first = await queuedPlan(running, lab, [GEAR], { name: 'Before the ledger' });
     const view = planPowderView.parse((await lab.designer.agent.get(url(lab, `/plans/${first.planId}`))).body);
     expect(view).toMatchObject({ tracked: false, stock: { freshKg: 0, reusedKg: 0 }, lots: [] });
-    expect(powderOverview.parse((await lab.agent.get(url(lab))).body).materials[0]).toMatchObject({ tracked: false, freshKg: 0 });
+    const untracked = powderOverview.parse((await lab.agent.get(url(lab))).body).materials[0];
+    expect(untracked).toMatchObject({ tracked: false, freshKg: 0 });
+    // What the queue needs is known, but no stock is kept to hold it against: no reorder date, no running out, no
+    // shortage (a shelf nobody counted is not an empty one).
+    expect(untracked.forecast.neededKg).toBeGreaterThan(0);
+    expect(untracked.forecast).toMatchObject({ points: [], belowReorderAt: null, runsOutAt: null, runsOutPlan: null, shortage: false });
     const started = await lab.operator.agent.post(`${first.base}/run/advance`).send(startBody(first.estimate));
     expect(started.status).toBe(200);
     expect((await stock(lab)).movements).toEqual([]);
