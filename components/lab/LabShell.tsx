@@ -5,7 +5,7 @@ import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useMeQuery, useSignOutMutation } from '../queries/me';
 import { usePlansQuery } from '../queries/plans';
 import { useLabLiveUpdates } from '../queries/live';
-import { colors, radius, spacing, useIsWide } from '../theme';
+import { colors, radius, railWidth, spacing, useIsWide } from '../theme';
 import { Icon, LinkPressable, Text } from '../ui';
 import { LabSwitcher } from './LabSwitcher';
 import { isActive, phoneTabs, visibleNavItems, type NavItem } from './navItems';
@@ -211,7 +211,7 @@ function TabButton({ item, active, count }: { item: NavItem; active: boolean; co
 const styles = StyleSheet.create({
   wideRoot: { flex: 1, flexDirection: 'row', backgroundColor: colors.powder },
   rail: {
-    width: 248,
+    width: railWidth,
     backgroundColor: colors.graphite,
     paddingVertical: spacing.xl,
     paddingHorizontal: spacing.md,

@@ -1,9 +1,9 @@
 import { useEffect, useState } from 'react';
-import { StyleSheet, View, useWindowDimensions } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import { useLab } from '../lab/useCurrentLab';
 import { useMaterialsQuery } from '../queries/materials';
 import { usePartsQuery, type PartListParams } from '../queries/parts';
-import { spacing } from '../theme';
+import { spacing, useContentWidth } from '../theme';
 import { Button, EmptyState, ErrorState, Field, LoadingState, Notice, Screen, Text } from '../ui';
 import { UploadPanel } from '../upload/UploadPanel';
 import { Choice } from '../ui/Choice';
@@ -28,7 +28,7 @@ function useDebounced<T>(value: T, ms: number): T {
 
 export function PartLibrary() {
   const lab = useLab();
-  const { width } = useWindowDimensions();
+  const width = useContentWidth();
   const canUpload = canUploadParts(lab.has);
   const materials = useMaterialsQuery(lab.id);
   const [searchText, setSearchText] = useState('');

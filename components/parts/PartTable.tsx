@@ -1,6 +1,6 @@
-import { Pressable, StyleSheet, View, useWindowDimensions } from 'react-native';
+import { Pressable, StyleSheet, View } from 'react-native';
 import type { Part } from '../queries/parts';
-import { colors, radius, spacing, touchTarget } from '../theme';
+import { colors, radius, spacing, touchTarget, useContentWidth } from '../theme';
 import { Badge, LinkPressable, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import { formatCount, formatVolume } from './format';
@@ -8,8 +8,11 @@ import { warningLabel } from './warnings';
 import { PartThumb } from './PartThumb';
 import { formatNumber } from '../ui/format';
 
-/** Below this width the rows become cards. */
-export const PART_CARDS_BELOW = 760;
+/**
+ * Below this width of the page's content the rows become cards: the table's fixed columns take 500 px, and under
+ * 880 the name (with its picture and tags) is left too little to read.
+ */
+export const PART_CARDS_BELOW = 880;
 
 type SortKey = 'name' | 'sizeX' | 'sizeY' | 'sizeZ' | 'volume' | 'material' | 'timesUsed' | 'uploadedBy' | 'createdAt';
 
@@ -26,8 +29,7 @@ export function nextSort(current: string, key: SortKey): string {
 }
 
 export function PartTable({ parts, sort, onSort }: { parts: Part[]; sort: string; onSort: (sort: string) => void }) {
-  const { width } = useWindowDimensions();
-  if (width < PART_CARDS_BELOW) {
+  if (useContentWidth() < PART_CARDS_BELOW) {
     return (
       <View style={styles.cards} accessibilityRole="list" testID="parts-table">
         {parts.map((p) => (
@@ -80,7 +82,7 @@ export function PartTable({ parts, sort, onSort }: { parts: Part[]; sort: string
 
   return (
     <View style={styles.table} accessibilityRole="list" testID="parts-table">
-      <View style={[styles.row, styles.headRow]}>
+      <View style={[styles.row, styles.headRow]} testID="parts-table-head">
         <View style={[styles.cell, { flex: 2.4 }]}>{head('name', 'Name')}</View>
         <View style={[styles.cell, styles.sizeHead, { width: 210 }]}>
           <Text variant="overline" color="inkFaint">

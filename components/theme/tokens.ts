@@ -77,6 +77,10 @@ export const touchTarget = 48;
 
 /** Width at which the app switches from a bottom tab bar to a side rail. */
 export const wideBreakpoint = 1024;
+/** The side rail of the wide layout (components/lab/LabShell.tsx). */
+export const railWidth = 248;
+/** The widest a page's column grows (components/ui/Screen.tsx). */
+export const pageMaxWidth = 1180;
 
 export const theme = { colors, spacing, radius, fonts, type, touchTarget, wideBreakpoint } as const;
 export type Theme = typeof theme;

@@ -1,5 +1,5 @@
 import { ScrollView, StyleSheet, View } from 'react-native';
-import { colors, spacing, useIsWide } from '../theme';
+import { colors, pageMaxWidth, spacing, useIsWide } from '../theme';
 import { Text } from './Text';
 
 export type ScreenProps = {
@@ -16,7 +16,7 @@ export type ScreenProps = {
 };
 
 /** A scrolling screen with its title block; wide screens get more air and a width cap. */
-export function Screen({ title, subtitle, actions, above, children, testID, maxWidth = 1180 }: ScreenProps) {
+export function Screen({ title, subtitle, actions, above, children, testID, maxWidth = pageMaxWidth }: ScreenProps) {
   const wide = useIsWide();
   return (
     <ScrollView

@@ -1,5 +1,5 @@
-import { Pressable, StyleSheet, View, useWindowDimensions } from 'react-native';
-import { colors, radius, spacing, touchTarget } from '../theme';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { colors, radius, spacing, touchTarget, useContentWidth } from '../theme';
 import { Text } from './Text';
 
 export type Column<Row> = {
@@ -25,7 +25,7 @@ export type TableProps<Row> = {
   /** testID of each row, e.g. (r) => `machine-row-${r.id}`. */
   rowTestID?: (row: Row) => string;
   testID?: string;
-  /** Below this window width rows become stacked cards (label above value). */
+  /** Below this width of the page's content (useContentWidth) rows become stacked cards (label above value). */
   stackBelow?: number;
   empty?: React.ReactNode;
 };
@@ -35,8 +35,7 @@ export type TableProps<Row> = {
  * labels, so nothing scrolls sideways.
  */
 export function Table<Row>({ columns, rows, rowKey, onRowPress, rowTestID, testID, stackBelow = 760, empty }: TableProps<Row>) {
-  const { width } = useWindowDimensions();
-  const stacked = width < stackBelow;
+  const stacked = useContentWidth() < stackBelow;
   if (rows.length === 0 && empty) return <View testID={testID}>{empty}</View>;
 
   const cell = (col: Column<Row>, row: Row) =>
@@ -95,7 +94,7 @@ export function Table<Row>({ columns, rows, rowKey, onRowPress, rowTestID, testI
 
   return (
     <View testID={testID} style={styles.table} accessibilityRole="list">
-      <View style={[styles.row, styles.headRow]}>
+      <View style={[styles.row, styles.headRow]} testID={testID ? `${testID}-head` : undefined}>
         {columns.map((col) => (
           <View key={col.key} style={[styles.cell, colStyle(col)]}>
             <Text variant="overline" color="inkMuted" align={col.align}>

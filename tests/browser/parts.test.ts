@@ -188,7 +188,7 @@ test('on a wide screen, a click on a column header sorts the library by it, larg
   const page = await newPage(served, WIDE);
   await signIn(page, 'designer@tinkerfin.example');
   await page.goto('/parts');
-  await page.getByTestId('parts-table').waitFor();
+  await page.getByTestId('parts-table-head').waitFor();
   await page.getByTestId('parts-sort-volume').click();
   await page.getByTestId('parts-sort-volume').getByText('↓').waitFor();
   const lab = ((await page.evaluate("fetch('/api/me').then((r) => r.json())")) as { labs: { id: string }[] }).labs[0].id;
@@ -197,6 +197,23 @@ test('on a wide screen, a click on a column header sorts the library by it, larg
   await page.getByTestId('parts-filters-toggle').click();
   await page.getByTestId('parts-filters').waitFor();
   await screenshot(page, 'parts-sorted-filters-wide');
+  await page.context().close();
+});
+
+test('on a 1,024 px window, where the side rail leaves the page 680 px, the library lists cards rather than a cramped table, and the requests too', async () => {
+  const page = await newPage(served, { width: 1024, height: 768 });
+  await signIn(page, 'designer@tinkerfin.example');
+  await page.goto('/parts');
+  await page.getByTestId('parts-table').waitFor();
+  await page.locator('[data-testid^="part-row-"]').first().waitFor();
+  // The rail is there (the wide layout), the table's header row is not: each part is a card with its labels.
+  await page.getByTestId('nav-rail').waitFor();
+  expect(await page.getByTestId('parts-table-head').count()).toBe(0);
+  await screenshot(page, 'parts-cards-1024');
+  await page.goto('/requests');
+  await page.getByTestId('requests-table').waitFor();
+  expect(await page.getByTestId('requests-table-head').count()).toBe(0);
+  await screenshot(page, 'requests-cards-1024');
   await page.context().close();
 });
 
