@@ -13,7 +13,7 @@ import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
 import { useChamberMeshes } from '../plans/useChamberMeshes';
 import { useLayoutQuery, usePlanQuery } from '../queries/plans';
 import { useReviewMutation, useUndoApprovalMutation, type ReviewDecision } from '../queries/review';
-import { colors, radius, spacing, useIsWide } from '../theme';
+import { colors, radius, spacing, useContentWidth, useIsWide } from '../theme';
 import { Badge, Button, Card, ErrorState, Field, LinkPressable, LoadingState, Notice, Screen, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import { ChamberView, LayerSlider, lineColour, type Vec3 } from '../viewer';
@@ -56,6 +56,9 @@ export function ReviewScreen({ planId }: { planId: string }) {
 function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const lab = useLab();
   const wide = useIsWide();
+  // Side by side only where the 3D view keeps a useful width beside the 360 px column (a 1,024 px window leaves the
+  // page 680 px: the view would be 300 px with its toolbar over half of it).
+  const twoColumns = useContentWidth() >= 900;
   const layout = useLayoutQuery(lab.id, plan.id, plan.chosenLayoutId);
   const chamberMm = plan.machine.chamberMm as Vec3;
   const lineIds = useMemo(() => plan.lines.map((l) => l.requestLineId), [plan.lines]);
@@ -157,7 +160,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
       testID="screen-review"
       maxWidth={1320}
     >
-      {wide ? (
+      {twoColumns ? (
         <View style={styles.columns}>
           <View style={{ flex: 3, gap: spacing.lg, minWidth: 0 }}>
             {view3d}

@@ -113,6 +113,14 @@ test('on a wide screen the review draws the chosen layout with the parts\' own m
   expect(Number(slider![1])).toBe(layers);
   await expect(page.getByTestId('num-layers-note').innerText()).resolves.toMatch(new RegExp(`^${layers} layers of [\\d.]+ mm as printed: `));
   await screenshot(page, 'review-meshes-wide');
+  // On a 1,024 px window the rail leaves the page 680 px: the view takes the page's width, with the flags and the
+  // decision under it, rather than 300 px beside them.
+  await page.setViewportSize({ width: 1024, height: 768 });
+  await page.getByTestId('nav-rail').waitFor();
+  await page.waitForFunction(() => (document.querySelector('[data-testid="review-build"]')?.getBoundingClientRect().width ?? 0) > 600);
+  const [build, decision] = await Promise.all([page.getByTestId('review-build').boundingBox(), page.getByTestId('review-decision').boundingBox()]);
+  expect(decision!.y).toBeGreaterThan(build!.y + build!.height);
+  await screenshot(page, 'review-meshes-1024');
   await page.context().close();
 });
 
