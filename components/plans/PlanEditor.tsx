@@ -120,7 +120,7 @@ function Editor({ plan, refetch }: { plan: PlanView; refetch: () => Promise<Plan
   const banner = (
     <>
       {!plan.editable ? (
-        <Notice tone="info" title={`${STATUS_LABELS[plan.status]}: read-only`} testID="plan-readonly">
+        <Notice tone="info" title={`${STATUS_LABELS[plan.status]}: read-only`} testID="plan-readonly" folded={!wide}>
           <Text>{plan.status === 'in_review' ? 'A lead reviews the chosen layout; it can be changed again if they send it back.' : 'This plan can no longer be changed here.'}</Text>
           <ReturnToDraft plan={plan} />
         </Notice>
