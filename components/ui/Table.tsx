@@ -25,17 +25,32 @@ export type TableProps<Row> = {
   /** testID of each row, e.g. (r) => `machine-row-${r.id}`. */
   rowTestID?: (row: Row) => string;
   testID?: string;
-  /** Below this width of the page's content (useContentWidth) rows become stacked cards (label above value). */
+  /**
+   * Below this width of the page's content (useContentWidth) rows become stacked cards (label above value); also
+   * below the width the columns need (tableWidthNeeded).
+   */
   stackBelow?: number;
   empty?: React.ReactNode;
 };
 
+/** Room a flex column needs per unit of its flex share, so that a name or a date still reads in it. */
+const PX_PER_FLEX = 70;
+
 /**
- * Dense rows on a wide screen; on a phone each row becomes a card with its
- * labels, so nothing scrolls sideways.
+ * The width a table's columns need: the fixed ones' widths, PX_PER_FLEX per unit of the others' flex shares, and the
+ * rows' padding and border. Under it the fixed columns would squeeze the flexible ones to nothing (a requests table
+ * of 826 px of fixed columns on a 788 px tablet page showed its request and material columns a letter wide).
+ */
+export function tableWidthNeeded(columns: ReadonlyArray<Pick<Column<unknown>, 'width' | 'flex'>>): number {
+  return 2 * spacing.sm + 2 + columns.reduce((sum, c) => sum + (c.width ?? (c.flex ?? 1) * PX_PER_FLEX), 0);
+}
+
+/**
+ * Dense rows on a wide screen; on a phone, or wherever the columns do not fit, each row becomes a card with its
+ * labels, so nothing scrolls sideways or is squeezed.
  */
 export function Table<Row>({ columns, rows, rowKey, onRowPress, rowTestID, testID, stackBelow = 760, empty }: TableProps<Row>) {
-  const stacked = useContentWidth() < stackBelow;
+  const stacked = useContentWidth() < Math.max(stackBelow, tableWidthNeeded(columns));
   if (rows.length === 0 && empty) return <View testID={testID}>{empty}</View>;
 
   const cell = (col: Column<Row>, row: Row) =>

@@ -200,7 +200,7 @@ test('on a wide screen, a click on a column header sorts the library by it, larg
   await page.context().close();
 });
 
-test('on a 1,024 px window, where the side rail leaves the page 680 px, the library lists cards rather than a cramped table, and the requests too', async () => {
+test('on a 1,024 px window, where the side rail leaves the page 680 px, the library lists cards rather than a cramped table, and the requests too (on a tablet too; a table on a wide screen)', async () => {
   const page = await newPage(served, { width: 1024, height: 768 });
   await signIn(page, 'designer@tinkerfin.example');
   await page.goto('/parts');
@@ -214,6 +214,15 @@ test('on a 1,024 px window, where the side rail leaves the page 680 px, the libr
   await page.getByTestId('requests-table').waitFor();
   expect(await page.getByTestId('requests-table-head').count()).toBe(0);
   await screenshot(page, 'requests-cards-1024');
+  // A tablet (820 px, no rail) leaves the page 788 px: less than the requests table's fixed columns and a readable
+  // request and material column need, so cards there too (the table squeezed those two columns to a letter).
+  await page.setViewportSize({ width: 820, height: 1180 });
+  await page.locator('[data-testid^="request-row-"]').first().waitFor();
+  expect(await page.getByTestId('requests-table-head').count()).toBe(0);
+  await screenshot(page, 'requests-cards-820');
+  // On a wide screen the table stands.
+  await page.setViewportSize({ width: 1440, height: 900 });
+  await page.getByTestId('requests-table-head').waitFor();
   await page.context().close();
 });
 
