@@ -154,7 +154,7 @@ export function PartLibrary() {
             {pages > 1 ? ` · page ${page} of ${pages}` : ''}
             {parts.isFetching ? ' · updating…' : ''}
           </Text>
-          <PartTable parts={parts.data.items} sort={sort} onSort={setSort} />
+          <PartTable parts={parts.data.items} cards={cards} sort={sort} onSort={setSort} />
           {pages > 1 ? (
             <View style={styles.pager}>
               <Button label="Previous" variant="secondary" size="sm" disabled={page <= 1} onPress={() => setPage((p) => Math.max(1, p - 1))} testID="parts-prev" />

@@ -1,6 +1,6 @@
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { Part } from '../queries/parts';
-import { colors, radius, spacing, touchTarget, useContentWidth } from '../theme';
+import { colors, radius, spacing, touchTarget } from '../theme';
 import { Badge, LinkPressable, Text } from '../ui';
 import { formatDate } from '../ui/format';
 import { formatCount, formatVolume } from './format';
@@ -28,8 +28,9 @@ export function nextSort(current: string, key: SortKey): string {
   return key === 'name' || key === 'material' || key === 'uploadedBy' ? key : `-${key}`;
 }
 
-export function PartTable({ parts, sort, onSort }: { parts: Part[]; sort: string; onSort: (sort: string) => void }) {
-  if (useContentWidth() < PART_CARDS_BELOW) {
+/** The library's rows; `cards`: the page is narrower than PART_CARDS_BELOW (the library chooses, with its sort control). */
+export function PartTable({ parts, cards, sort, onSort }: { parts: Part[]; cards: boolean; sort: string; onSort: (sort: string) => void }) {
+  if (cards) {
     return (
       <View style={styles.cards} accessibilityRole="list" testID="parts-table">
         {parts.map((p) => (

@@ -148,8 +148,14 @@ export function powderService(db: Database, deps: PowderDeps) {
     return byMaterial;
   }
 
-  function forecastView(stockKg: number, policy: PowderPolicy, list: Demand[], nowMs: number): ForecastView {
+  /**
+   * The forecast of a material's fresh stock against what the queue needs. A material whose stock the lab does not
+   * keep yet (`tracked` false) has what the queue needs, but no shelf to hold it against: no stock line, reorder
+   * date, running out or shortage (0 kg recorded is not 0 kg on the shelf).
+   */
+  function forecastView(stockKg: number, policy: PowderPolicy, list: Demand[], nowMs: number, tracked = true): ForecastView {
     const f = forecastStock({ stockKg, nowMs, demands: list, reorderLevelKg: policy.reorderLevelKg, leadTimeDays: policy.leadTimeDays });
+    if (!tracked) return { points: [], neededKg: f.neededKg, belowReorderAt: null, runsOutAt: null, runsOutPlan: null, shortage: false };
     const names = new Map(list.map((d) => [d.planId, d.planName]));
     return {
       points: f.points.map((p) => ({ at: iso(p.atMs), stockKg: p.stockKg, planId: p.planId, planName: p.planId ? (names.get(p.planId) ?? null) : null })),
@@ -159,14 +165,6 @@ export function powderService(db: Database, deps: PowderDeps) {
       runsOutPlan: f.runsOutPlanId ? { id: f.runsOutPlanId, name: names.get(f.runsOutPlanId) ?? '' } : null,
       shortage: f.shortage,
     };
-  }
-
-  /**
-   * A material whose stock the lab does not keep yet: what the queue needs is known, but there is no shelf to hold
-   * it against, so no stock line, reorder date, running out or shortage (0 kg recorded is not 0 kg on the shelf).
-   */
-  function untrackedForecast(policy: PowderPolicy, list: Demand[], nowMs: number): ForecastView {
-    return { points: [], neededKg: forecastView(0, policy, list, nowMs).neededKg, belowReorderAt: null, runsOutAt: null, runsOutPlan: null, shortage: false };
   }
 
   async function stockViews(labId: string, nowMs: number, only?: string): Promise<MaterialStockView[]> {
@@ -188,7 +186,7 @@ export function powderService(db: Database, deps: PowderDeps) {
         lotCount: t.lotCount,
         lastCheck: last ? checkView(last) : null,
         reuseBlocked: reuseBlocked(meltState(last)),
-        forecast: t.tracked ? forecastView(t.freshKg, policy, need.get(m.id) ?? [], nowMs) : untrackedForecast(policy, need.get(m.id) ?? [], nowMs),
+        forecast: forecastView(t.freshKg, policy, need.get(m.id) ?? [], nowMs, t.tracked),
       });
     }
     return out;

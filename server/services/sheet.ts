@@ -106,7 +106,7 @@ const cellMmOf = (at: ViewAt) => CELL_PT / scaleOf(at);
  * rounded up to 10 mm), so that a shallow build in a tall chamber is drawn large enough to read rather than as a
  * strip along the floor; all of it when the build reaches that high.
  */
-export function sideRoom(chamber: readonly number[], placements: ReadonlyArray<Pick<Placement, 'position' | 'size'>>): number[] {
+function sideRoom(chamber: readonly number[], placements: ReadonlyArray<Pick<Placement, 'position' | 'size'>>): number[] {
   const top = placements.reduce((t, p) => Math.max(t, p.position[2] + p.size[2]), 0);
   const shown = Math.max(20, Math.ceil((top + 5) / 10) * 10);
   return [chamber[0], chamber[1], Math.min(chamber[2], shown)];
