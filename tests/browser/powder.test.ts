@@ -11,6 +11,9 @@ jest.setTimeout(300_000);
 let served: Served;
 type Lab = Awaited<ReturnType<typeof labWithCrew>>;
 let lab: Lab;
+/** A lab that queued a build before it recorded any powder: its material is needed but not tracked. */
+let fresh: Lab;
+let freshNeedKg = 0;
 let twinId = '';
 let planA = '';
 let planB = '';
@@ -52,6 +55,8 @@ beforeAll(async () => {
 
 async function fixtures(running: Awaited<ReturnType<typeof startTestApp>>) {
   lab = await labWithCrew(running, 'powder-b');
+  fresh = await labWithCrew(running, 'powder-u');
+  freshNeedKg = (await queuedPlan(running, fresh, PARTS, { name: 'First build' })).estimate.powder.freshPowderKg;
   const twin = await lab.agent.post(`/api/labs/${lab.labId}/machines`).send({ ...lab.machine, name: 'Second chamber' });
   if (twin.status !== 201) throw new Error(`machine failed: ${JSON.stringify(twin.body)}`);
   twinId = twin.body.id;
@@ -246,6 +251,22 @@ describe('a lead on a phone (390 x 844)', () => {
     // No ledger, no chart of it.
     expect(await page.getByTestId('stock-chart').count()).toBe(0);
     await screenshot(page, 'powder-untracked-phone');
+    await page.context().close();
+  });
+
+  test('home lists a powder the queue needs that the lab keeps no stock of, and leads to it', async () => {
+    const page = await newPage(served, PHONE);
+    await signIn(page, fresh.email, PASSWORD);
+    const row = page.getByTestId(`home-powder-${fresh.materialId}`);
+    await row.waitFor();
+    const text = (await row.innerText()).replace(/\s+/g, ' ');
+    expect(text).toContain('Not tracked');
+    expect(text).toContain(`The queue needs ${freshNeedKg.toFixed(1)} kg fresh, and no stock of it is kept yet`);
+    // Neither a reorder date nor 0.0 kg on hand: the stock is unknown, not empty.
+    expect(text).not.toMatch(/Reorder|0\.0 kg fresh on hand/);
+    await row.screenshot({ path: `${ARTIFACTS}/powder-home-untracked-phone.png` });
+    await row.click();
+    await page.getByTestId('powder-untracked').waitFor();
     await page.context().close();
   });
 });
