@@ -109,7 +109,8 @@ function DimensionLabels({ box, labelSize }: { box: Bounds; labelSize: Vec3 }) {
     return (k: number) => (_el: THREE.Object3D, camera: THREE.Camera, size: { width: number; height: number }) => {
       const boxes = points.map((a, i) => {
         p.copy(a).project(camera);
-        return { x: ((p.x + 1) * size.width) / 2, y: ((1 - p.y) * size.height) / 2, w: labelWidth(texts[i]), h: 18 };
+        // The z label is on the upright edge: cleared upwards, it stays beside that edge.
+        return { x: ((p.x + 1) * size.width) / 2, y: ((1 - p.y) * size.height) / 2, w: labelWidth(texts[i]), h: 18, up: i === 2 };
       });
       return separateLabels(boxes)[k];
     };

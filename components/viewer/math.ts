@@ -366,13 +366,15 @@ export interface LabelBox {
   y: number;
   w: number;
   h: number;
+  /** Where it must move up or down to clear another, it moves up (a label on an upright edge, whose edge goes up from there). */
+  up?: boolean;
 }
 
 /**
  * Label centres pushed apart until no two boxes come closer than `gap` pixels: each overlapping pair is moved
  * apart along the axis where it overlaps least (the first label stays put and the other takes the whole move;
  * otherwise each moves half). Labels anchored on edges that meet near one corner of a flat part would otherwise
- * cover each other.
+ * cover each other. A label marked `up` that must move up or down goes up, the other down.
  */
 export function separateLabels(boxes: readonly LabelBox[], gap = 4, rounds = 20): Array<[number, number]> {
   const at = boxes.map((b) => [b.x, b.y] as [number, number]);
@@ -388,7 +390,10 @@ export function separateLabels(boxes: readonly LabelBox[], gap = 4, rounds = 20)
         moved = true;
         const axis = overY <= overX ? 1 : 0;
         const over = axis === 1 ? overY : overX;
-        const sign = (axis === 1 ? dy : dx) >= 0 ? 1 : -1;
+        // +1: j goes right or down, i left or up.
+        let sign = (axis === 1 ? dy : dx) >= 0 ? 1 : -1;
+        if (axis === 1 && boxes[j].up && !boxes[i].up) sign = -1;
+        else if (axis === 1 && boxes[i].up && !boxes[j].up) sign = 1;
         const mine = i === 0 ? 0 : over / 2;
         at[i][axis] -= sign * mine;
         at[j][axis] += sign * (over - mine);

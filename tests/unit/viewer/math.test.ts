@@ -369,4 +369,20 @@ describe('labels over a view kept apart', () => {
     // Pushed apart by no more than the labels' own size: they stay beside their edges.
     moved.forEach((m, i) => expect(Math.hypot(m.x - boxes[i].x, m.y - boxes[i].y)).toBeLessThan(2 * (m.w + m.h)));
   });
+
+  test('a label on the upright edge clears the others upwards, along its edge, even when its anchor is below theirs', () => {
+    // The same corner: the z label's anchor 4 px under the y label's. Unmarked it is pushed down, under the corner.
+    const boxes: LabelBox[] = [
+      { x: 180, y: 466, w: 79, h: 18 },
+      { x: 250, y: 470, w: 79, h: 18 },
+      { x: 252, y: 474, w: 79, h: 18 },
+    ];
+    expect(separateLabels(boxes)[2][1]).toBeGreaterThan(474);
+    const at = separateLabels(boxes.map((b, i) => ({ ...b, up: i === 2 })));
+    expect(at[2][1]).toBeLessThan(474);
+    expect(at[2][1]).toBeLessThan(at[1][1]);
+    const moved = boxes.map((b, i) => ({ ...b, x: at[i][0], y: at[i][1] }));
+    for (let i = 0; i < 3; i++) for (let j = i + 1; j < 3; j++) expect(overlap(moved[i], moved[j], 4)).toBe(false);
+    expect(at[0]).toEqual([180, 466]);
+  });
 });
