@@ -128,6 +128,22 @@ describe('with a mesh worker', () => {
     expect(res.body.error.field).toBe('result.placements[1].id');
   });
 
+  test('a transform that scales the part is refused with 400 naming it, before any worker is asked, and nothing is kept', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapescaled');
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [30, 30, 5] },
+    ]);
+    // The frame twice its size: a 3MF transform may scale, a placement may not (before, the slicing failed on it: 503).
+    const scaled = { ...result.placements[0], transform: [2, 0, 0, 0, 2, 0, 0, 0, 2, 8, 8, 5] };
+    const res = await lab.agent.post(url).send({ instance, result: { ...result, placements: [scaled, result.placements[1]] } });
+    expect(res.status).toBe(400);
+    expect(res.body.error.field).toBe('result.placements[0].transform');
+    expect(res.body.error.message).toContain('one of the 24 quarter-turn rotations (no mirror images, no scaling)');
+    const plan = await lab.agent.get(url.replace(/\/layouts$/, ''));
+    expect(plan.body.layouts).toHaveLength(0);
+  });
+
   test("a peg laid on its side, which its line's rule (keep up) forbids, is refused naming its rotation", async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shaperule');
     // Allowed by the frame's rule; the check against the peg's line is the server's own.
