@@ -14,6 +14,10 @@ import { machineFieldDefaults, materialFieldDefaults } from '../shared/types/pro
 
 const JOB_FORMAT = 'estimate-job/1';
 const RESULT_FORMAT = 'estimate/1';
+/** Layer heights a machine profile may list (shared/types/profiles.ts), and the packing contract's tolerance. */
+const MIN_LAYER_MM = 0.01;
+const MAX_LAYER_MM = 1;
+const TOLERANCE_MM = 1e-6;
 
 type Json = Record<string, unknown>;
 const isObject = (v: unknown): v is Json => typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -69,6 +73,20 @@ function main(): void {
   if (!isNumber(instanceLayer) || instanceLayer <= 0) fail('instance.layerHeight must be a positive number');
   const layerHeight = job.layerHeight ?? instanceLayer;
   if (!isNumber(layerHeight) || layerHeight <= 0) fail('layerHeight must be a positive number');
+  // The machines' range (shared/types/profiles.ts): the job's layer height joins the machine's list below.
+  if (layerHeight < MIN_LAYER_MM || layerHeight > MAX_LAYER_MM) fail(`layerHeight must be from ${MIN_LAYER_MM} to ${MAX_LAYER_MM} mm, not ${layerHeight}`);
+
+  // Every part inside the chamber: a box beyond it (or a height above it) is not a build of this chamber.
+  placements.forEach((p, i) => {
+    for (let a = 0; a < 3; a++) {
+      const end = p.position[a] + p.size[a];
+      if (end > chamber[a] + TOLERANCE_MM) fail(`layout.placements[${i}] reaches ${'xyz'[a]} = ${end} mm, outside the chamber's ${chamber[a]} mm`);
+    }
+  });
+  if (layout.height !== undefined) {
+    if (!isNumber(layout.height) || layout.height < 0) fail('layout.height must be a non-negative number');
+    if (layout.height > chamber[2] + TOLERANCE_MM) fail(`layout.height must be at most the chamber's height (${chamber[2]} mm), not ${layout.height}`);
+  }
 
   // Each part's own volume, for the parts' mass, the packing density and the cost per part.
   const volumeById: Record<string, number> = {};
@@ -79,6 +97,15 @@ function main(): void {
       if (!isNumber(p.volumeMm3) || p.volumeMm3 <= 0) fail(`parts[${i}].volumeMm3 must be a positive number`);
       if (p.areaMm2 !== undefined && (!isNumber(p.areaMm2) || p.areaMm2 < 0)) fail(`parts[${i}].areaMm2 must be a non-negative number`);
       volumeById[p.id] = p.volumeMm3;
+    });
+    // A part's own volume fits in its box: more would be mass from nowhere (and a packing density over 1).
+    placements.forEach((p) => {
+      const volume = volumeById[p.id];
+      const box = p.size[0] * p.size[1] * p.size[2];
+      if (volume !== undefined && volume > box * (1 + 1e-6) + 1e-6) {
+        const i = (job.parts as Json[]).findIndex((q) => q.id === p.id);
+        fail(`parts[${i}].volumeMm3 (${volume}) is more than the box of its placements in the layout (${box} mm^3)`);
+      }
     });
   }
   const partsVolumeMm3 = placements.reduce((s, p) => s + (volumeById[p.id] ?? p.size[0] * p.size[1] * p.size[2]), 0);
@@ -95,6 +122,24 @@ function main(): void {
   const areaProfile = profileArray(layout.areaProfile, 'layout.areaProfile');
   const contourProfile = profileArray(layout.contourProfile, 'layout.contourProfile');
   const height = isNumber(layout.height) ? layout.height : undefined;
+  // One number per layer of the instance's layer height, from the floor to the top of the highest part (the
+  // packing contract): a shorter profile would leave the layers above it unscanned.
+  const top = height ?? placements.reduce((h, p) => Math.max(h, p.position[2] + p.size[2]), 0);
+  const perLayer = Math.ceil(top / instanceLayer - 1e-9);
+  for (const [field, profile] of [['layout.areaProfile', areaProfile], ['layout.contourProfile', contourProfile]] as const) {
+    if (profile && Math.abs(profile.length - perLayer) > 1) {
+      fail(`${field} must hold one number per layer, ${perLayer} (the layout's ${top} mm over the instance's layer height of ${instanceLayer} mm), not ${profile.length}`);
+    }
+  }
+  // No layer's cross-section is larger than the chamber's floor.
+  const floorMm2 = chamber[0] * chamber[1];
+  const tooLarge = areaProfile ? areaProfile.findIndex((a) => a > floorMm2 * (1 + 1e-9)) : -1;
+  if (tooLarge >= 0) fail(`layout.areaProfile[${tooLarge}] (${areaProfile![tooLarge]} mm^2) is more than the chamber's floor (${floorMm2} mm^2)`);
+  // Nor longer in outline than walls 0.1 mm thick filling that floor (2 x floor / 0.1 mm): no printed wall is that
+  // thin, the laser's spot alone is a few tenths of a millimetre wide (common practice).
+  const outlineMm = (2 * floorMm2) / 0.1;
+  const tooLong = contourProfile ? contourProfile.findIndex((c) => c > outlineMm) : -1;
+  if (tooLong >= 0) fail(`layout.contourProfile[${tooLong}] (${contourProfile![tooLong]} mm) is longer than any section of the chamber's floor could be (${outlineMm} mm, walls 0.1 mm thick)`);
 
   let estimate;
   try {
@@ -124,6 +169,10 @@ function main(): void {
     throw e;
   }
 
+  // Boxes that overlap can hold more than the cake: no layout of this chamber does.
+  if (estimate.partsVolumeMm3 > estimate.cakeVolumeMm3 * (1 + 1e-9)) {
+    fail(`layout.placements hold more than the cake (${estimate.partsVolumeMm3} mm^3 of parts in ${estimate.cakeVolumeMm3} mm^3): the parts overlap`);
+  }
   const result = {
     format: RESULT_FORMAT,
     layers: estimate.layerCount,

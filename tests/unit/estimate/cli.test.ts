@@ -95,4 +95,46 @@ describe('npm run estimate', () => {
     expect(badMachine.status).toBe(2);
     expect(badMachine.stderr).toMatch(/laserPowerW/);
   });
+
+  /** Exits 2 with one line that matches `message`. */
+  const refused = (j: unknown, message: RegExp) => {
+    const r = run(j);
+    expect(r.status).toBe(2);
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr.trim()).toMatch(message);
+  };
+  // 35 mm of layout at the instance's 0.1 mm layers: 350 numbers a profile.
+  const v2 = (extra: Record<string, unknown>) => {
+    const j = job();
+    return { ...j, layout: { ...j.layout, format: 'pack-result/2', ...extra } };
+  };
+
+  test('a layout that no chamber holds is refused naming what is wrong, not estimated into numbers that cannot be', () => {
+    // A height of 10^9 mm made the command crash (exit 1) allocating its layers.
+    refused({ ...job(), layout: { ...job().layout, height: 1e9 } }, /^layout\.height must be at most the chamber's height \(380 mm\)/);
+    refused(
+      { ...job(), layout: { ...job().layout, placements: [{ id: 'housing', position: [250, 10, 5], size: [60, 40, 30], orientation: 'xyz' }] } },
+      /^layout\.placements\[0\] reaches x = 310 mm, outside the chamber's 300 mm/,
+    );
+    // 2,000 copies of one housing in one place: a packing density of about 20 came out.
+    const piled = job();
+    refused({ ...piled, layout: { ...piled.layout, placements: Array(2000).fill(piled.layout.placements[0]) } }, /^layout\.placements hold more than the cake .*: the parts overlap$/);
+    // A part heavier than its box: mass from nowhere.
+    refused({ ...job(), parts: [{ id: 'housing', volumeMm3: 1e12 }, { id: 'clip', volumeMm3: 800 }] }, /^parts\[0\]\.volumeMm3 \(1000000000000\) is more than the box of its placements in the layout \(72000 mm\^3\)$/);
+    // The job's layer height joins the machine's list: out of a machine's range it is named as the job's.
+    refused({ ...job(), layerHeight: 1e-9 }, /^layerHeight must be from 0\.01 to 1 mm/);
+  });
+
+  test("a layout's section profiles hold one number a layer, each no larger than the chamber's floor could hold", () => {
+    // Three numbers for 350 layers left the other 347 unscanned (scan time 0).
+    refused(v2({ areaProfile: [1, 2, 3] }), /^layout\.areaProfile must hold one number per layer, 350 \(.*\), not 3$/);
+    refused(v2({ contourProfile: Array(10).fill(5) }), /^layout\.contourProfile must hold one number per layer, 350/);
+    // 10^300 mm^2 a layer came out as a print time of null.
+    refused(v2({ areaProfile: Array(350).fill(1e300) }), /^layout\.areaProfile\[0\] \(1e\+300 mm\^2\) is more than the chamber's floor \(45000 mm\^2\)$/);
+    refused(v2({ contourProfile: Array(350).fill(1e12) }), /^layout\.contourProfile\[0\] .* is longer than any section of the chamber's floor could be/);
+    // The real numbers of a layer: the same layout's own profile is estimated by it.
+    const r = run(v2({ areaProfile: Array(350).fill(2000) }));
+    expect(r.status).toBe(0);
+    expect(JSON.parse(r.stdout).profileSource).not.toBe('boxes');
+  });
 });
