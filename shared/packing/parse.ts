@@ -20,6 +20,12 @@ import {
 
 /** Above this many boxes in total an instance is refused: the layout alone would not fit in memory comfortably. */
 export const MAX_TOTAL_QUANTITY = 200_000;
+/**
+ * Above this many layers in the chamber's height an instance is refused: a layout by shape carries one number a
+ * layer (`areaProfile`), and 10^7 of them took 450 MB. Machines print layers of 0.01 mm or more: 100,000 of
+ * those are a metre.
+ */
+export const MAX_LAYERS = 100_000;
 
 export type ParseResult = { ok: true; instance: PackInstance } | { ok: false; problems: FieldProblem[] };
 
@@ -70,6 +76,9 @@ export function parseInstance(input: unknown): ParseResult {
   if (chamber) {
     if (2 * margin.xy >= chamber[0] || 2 * margin.xy >= chamber[1]) {
       bad('margin.xy', 'must leave a usable width: twice it must be less than chamber[0] and chamber[1]');
+    }
+    if (chamber[2] / layerHeight > MAX_LAYERS) {
+      bad('layerHeight', `must leave at most ${MAX_LAYERS} layers in the chamber's ${chamber[2]} mm (a layer of ${chamber[2] / MAX_LAYERS} mm or more), not ${layerHeight}`);
     }
     if (margin.bottom + margin.top >= chamber[2]) {
       bad('margin.top', 'must leave a usable height: margin.bottom + margin.top must be less than chamber[2]');

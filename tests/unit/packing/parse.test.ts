@@ -44,6 +44,16 @@ describe('reading an instance', () => {
     expect(parsed.problems.map((p) => p.field)).toContain(field);
   });
 
+  test('a layer height that would make more than 100,000 layers of the chamber is refused before any packing', () => {
+    // 10^-6 mm: 380 million layers, and a layout by shape carries a number a layer (10^7 of them took 450 MB).
+    const parsed = parseInstance({ ...minimal, layerHeight: 1e-6 });
+    expect(parsed.ok).toBe(false);
+    if (parsed.ok) return;
+    expect(parsed.problems).toEqual([{ field: 'layerHeight', message: "must leave at most 100000 layers in the chamber's 380 mm (a layer of 0.0038 mm or more), not 0.000001" }]);
+    // Machines' layers (0.01 mm and up) stay well within it.
+    expect(parseInstance({ ...minimal, layerHeight: 0.01 }).ok).toBe(true);
+  });
+
   test('a part larger than the chamber is not bad input (it will be reported unplaced)', () => {
     expect(parseInstance({ ...minimal, parts: [{ id: 'big', size: [900, 900, 900], quantity: 1 }] }).ok).toBe(true);
   });
