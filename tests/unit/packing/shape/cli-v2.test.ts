@@ -102,6 +102,19 @@ describe('pack command line, version 2 (meshes)', () => {
     expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
   }, 120_000);
 
+  test("a size given beside a mesh that is not the mesh's box is named in the warnings, and the mesh's box is packed", () => {
+    // An 8 mm cube said to be 8 cm: the kind of unit mix-up a size typed by hand next to a file shows.
+    const body = { ...base, parts: [{ id: 'cube', mesh: 'cube.stl', size: [80, 80, 80], quantity: 2 }, { id: 'same', mesh: 'cube.stl', size: [8, 8, 8.00001], quantity: 1 }] };
+    const r = run([write('sized.json', JSON.stringify(body))]);
+    expect(r.status).toBe(0);
+    expect(r.stderr).toMatch(/parts\[0\]\.size \(80 x 80 x 80 mm\) is not the bounding box of its mesh "cube\.stl" \(8 x 8 x 8 mm\)/);
+    const result = JSON.parse(r.stdout);
+    // Only the first: a size that agrees to rounding is no news.
+    expect(result.warnings).toEqual([expect.objectContaining({ id: 'cube', code: 'size-not-mesh' })]);
+    expect(result.placements).toHaveLength(3);
+    for (const p of result.placements) expect(p.size.map((v: number) => Math.round(v * 1000) / 1000)).toEqual([8, 8, 8]);
+  }, 120_000);
+
   test('from standard input, mesh paths are relative to the current directory', () => {
     const rel = relative(root, join(dir, 'cube.stl'));
     const body = { ...base, parts: [{ id: 'cube', mesh: rel, quantity: 2 }] };
