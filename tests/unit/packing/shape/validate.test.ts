@@ -28,6 +28,15 @@ describe('shape validator against the meshes', () => {
     }
   });
 
+  test("the utilization may differ from the meshes' by rounding (1 in 10^7), not by a figure of its own (1 in 10^4)", () => {
+    // Two 10 mm cubes in a 23 x 10 x 10 mm chamber: a utilization of 0.87 (where 1 in 10^9 was all it might be off).
+    const inst = instance([{ id: 'cube', mesh: box(10, 10, 10), quantity: 2 }], 3, { chamber: [23, 10, 10] });
+    const r = layout(inst, [['cube', 0, [0, 0, 0]], ['cube', 0, [13, 0, 0]]]);
+    expect(r.utilization).toBeCloseTo(2000 / 2300, 9);
+    expect(validateShapeLayout(inst, { ...r, utilization: r.utilization * (1 + 1e-7) })).toEqual([]);
+    expect(validateShapeLayout(inst, { ...r, utilization: r.utilization * (1 + 1e-4) }).map((p) => p.field)).toEqual(['utilization']);
+  });
+
   test('two unit cubes offset along x and y: their nearest edges are sqrt(2) apart (Pythagoras)', () => {
     const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 2 }], 1.41);
     const r = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [12, 12, 0]]]);
