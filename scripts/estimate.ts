@@ -9,15 +9,11 @@
  * docs/estimate.md.
  */
 import { fail, readJsonInput } from './lib/cli';
-import { estimateLayout, InvalidInputError, type EstimateInput, type PlacedBox } from '../shared/estimate';
-import { machineFieldDefaults, materialFieldDefaults } from '../shared/types/profiles';
+import { estimateLayout, InvalidInputError, LENGTH_TOLERANCE_MM, type EstimateInput, type PlacedBox } from '../shared/estimate';
+import { LAYER_HEIGHT_MAX_MM, LAYER_HEIGHT_MIN_MM, machineFieldDefaults, materialFieldDefaults } from '../shared/types/profiles';
 
 const JOB_FORMAT = 'estimate-job/1';
 const RESULT_FORMAT = 'estimate/1';
-/** Layer heights a machine profile may list (shared/types/profiles.ts), and the packing contract's tolerance. */
-const MIN_LAYER_MM = 0.01;
-const MAX_LAYER_MM = 1;
-const TOLERANCE_MM = 1e-6;
 
 type Json = Record<string, unknown>;
 const isObject = (v: unknown): v is Json => typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -73,19 +69,19 @@ function main(): void {
   if (!isNumber(instanceLayer) || instanceLayer <= 0) fail('instance.layerHeight must be a positive number');
   const layerHeight = job.layerHeight ?? instanceLayer;
   if (!isNumber(layerHeight) || layerHeight <= 0) fail('layerHeight must be a positive number');
-  // The machines' range (shared/types/profiles.ts): the job's layer height joins the machine's list below.
-  if (layerHeight < MIN_LAYER_MM || layerHeight > MAX_LAYER_MM) fail(`layerHeight must be from ${MIN_LAYER_MM} to ${MAX_LAYER_MM} mm, not ${layerHeight}`);
+  // The machines' range: the job's layer height joins the machine's list below.
+  if (layerHeight < LAYER_HEIGHT_MIN_MM || layerHeight > LAYER_HEIGHT_MAX_MM) fail(`layerHeight must be from ${LAYER_HEIGHT_MIN_MM} to ${LAYER_HEIGHT_MAX_MM} mm, not ${layerHeight}`);
 
   // Every part inside the chamber: a box beyond it (or a height above it) is not a build of this chamber.
   placements.forEach((p, i) => {
     for (let a = 0; a < 3; a++) {
       const end = p.position[a] + p.size[a];
-      if (end > chamber[a] + TOLERANCE_MM) fail(`layout.placements[${i}] reaches ${'xyz'[a]} = ${end} mm, outside the chamber's ${chamber[a]} mm`);
+      if (end > chamber[a] + LENGTH_TOLERANCE_MM) fail(`layout.placements[${i}] reaches ${'xyz'[a]} = ${end} mm, outside the chamber's ${chamber[a]} mm`);
     }
   });
   if (layout.height !== undefined) {
     if (!isNumber(layout.height) || layout.height < 0) fail('layout.height must be a non-negative number');
-    if (layout.height > chamber[2] + TOLERANCE_MM) fail(`layout.height must be at most the chamber's height (${chamber[2]} mm), not ${layout.height}`);
+    if (layout.height > chamber[2] + LENGTH_TOLERANCE_MM) fail(`layout.height must be at most the chamber's height (${chamber[2]} mm), not ${layout.height}`);
   }
 
   // Each part's own volume, for the parts' mass, the packing density and the cost per part.

@@ -17,7 +17,6 @@ import {
   type LineRow,
 } from './planCommon';
 import { isEditable } from '../../shared/plans/status';
-import { rotationOfTransform } from '../../shared/geometry/rotations';
 import {
   decodePlacementBytes,
   encodePlacementBytes,
@@ -27,6 +26,7 @@ import {
   PLACEMENTS_FORMAT,
   RESULT_FORMAT_V2,
   toPlacementArrays,
+  transformTurn,
   validateLayout,
   type FieldProblem,
   type LayoutProfiles,
@@ -196,14 +196,13 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
           const ids = new Set(instance.parts.map((p) => p.id));
           const unknown = result.placements.findIndex((p) => !ids.has(p.id));
           if (unknown >= 0) refuse([{ field: `placements[${unknown}].id`, message: `must name a part of the instance ("${result.placements[unknown].id}" is unknown)` }], 'result');
-          // So is a transform that is not one of the 24 quarter turns: the slicing of the layout could not take it.
-          const turned = result.placements.findIndex((p) => {
+          // So is a transform that is not one of the 24 quarter turns (the meshes' check's own rule): the slicing of
+          // the layout could not take it.
+          result.placements.forEach((p, i) => {
             const t = (p as { transform?: unknown }).transform;
-            return t !== undefined && !(Array.isArray(t) && t.length === 12 && t.every((v) => typeof v === 'number' && Number.isFinite(v)) && rotationOfTransform(t) >= 0);
+            const turn = t === undefined ? null : transformTurn(t);
+            if (turn && 'problem' in turn) refuse([{ field: `placements[${i}].transform`, message: turn.problem }], 'result');
           });
-          if (turned >= 0) {
-            refuse([{ field: `placements[${turned}].transform`, message: 'must be the 12 numbers of a 3MF transform that turns the part by one of the 24 quarter-turn rotations (no mirror images, no scaling)' }], 'result');
-          }
         }
 
         const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, plan.machine_id) : undefined;

@@ -1,5 +1,9 @@
 import { z } from 'zod';
 
+/** The layer heights a machine may print and a material may default to (mm). */
+export const LAYER_HEIGHT_MIN_MM = 0.01;
+export const LAYER_HEIGHT_MAX_MM = 1;
+
 /**
  * A machine's profile: what the estimates and the packing instance need.
  * Temperatures in degrees Celsius, times in seconds, lengths in millimetres.
@@ -10,7 +14,7 @@ export const machineProfileSchema = z.strictObject({
   /** Usable build volume x, y, z (mm). */
   chamberMm: z.tuple([z.number().positive().max(5000), z.number().positive().max(5000), z.number().positive().max(5000)]),
   /** Layer heights the machine can print (mm). */
-  layerHeightsMm: z.array(z.number().min(0.01).max(1)).min(1).max(20),
+  layerHeightsMm: z.array(z.number().min(LAYER_HEIGHT_MIN_MM).max(LAYER_HEIGHT_MAX_MM)).min(1).max(20),
   laserPowerW: z.number().positive().max(10000),
   /** The scanner's top speed (mm/s): the scan speed never exceeds it. */
   scannerMaxSpeedMmPerS: z.number().positive().max(100000),
@@ -51,7 +55,7 @@ export const materialProfileSchema = z.strictObject({
   bulkDensityGPerCm3: z.number().positive().max(25),
   /** Share of fresh powder in each fill, 0..1. */
   refreshRatio: z.number().min(0).max(1),
-  defaultLayerHeightMm: z.number().min(0.01).max(1),
+  defaultLayerHeightMm: z.number().min(LAYER_HEIGHT_MIN_MM).max(LAYER_HEIGHT_MAX_MM),
   pricePerKg: z.number().min(0).max(100000),
   /** Minimum gap between parts (mm). */
   spacingMm: z.number().min(0).max(100),

@@ -1,4 +1,4 @@
-export { validateShapeLayout } from './validate';
+export { transformTurn, validateShapeLayout } from './validate';
 export { createShapePacking, defaultCell, type ShapeOptions, type ShapePacking, type ShapePhase, type ShapeRunHooks } from './engine';
 export { createBoxFitPacking, boxInstance, fromBoxResult } from './boxfit';
 export { shapeParts, boxMesh, type ShapePart } from './parts';

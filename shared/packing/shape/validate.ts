@@ -33,6 +33,16 @@ export interface ShapeCheckOptions {
   maxReports?: number;
 }
 
+/**
+ * The quarter turn (0-23) a placement's 3MF transform makes, or what is wrong with it: not 12 finite numbers, or a
+ * rotation that is not one of the 24 (a mirror image, a scaling, a tilt).
+ */
+export function transformTurn(t: unknown): { rotation: number } | { problem: string } {
+  if (!(Array.isArray(t) && t.length === 12 && t.every((v) => typeof v === 'number' && Number.isFinite(v)))) return { problem: 'must be the 12 numbers of a 3MF transform' };
+  const rotation = rotationOfTransform(t);
+  return rotation < 0 ? { problem: 'must turn the part by one of the 24 quarter-turn rotations (no mirror images, no scaling)' } : { rotation };
+}
+
 /** How far a result's `utilization` may be from the one worked out from the meshes, as a share of it. */
 const UTILIZATION_SHARE = 1e-6;
 
@@ -67,10 +77,11 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     let rotation: number;
     let translation: number[];
     if (part.hasMesh) {
-      if (!finite(p.transform, 12)) return bad(`${at}.transform`, 'must be the 12 numbers of a 3MF transform');
-      rotation = rotationOfTransform(p.transform);
-      if (rotation < 0) return bad(`${at}.transform`, 'must turn the part by one of the 24 quarter-turn rotations (no mirror images, no scaling)');
-      translation = [p.transform[9], p.transform[10], p.transform[11]];
+      const turn = transformTurn(p.transform);
+      if ('problem' in turn) return bad(`${at}.transform`, turn.problem);
+      rotation = turn.rotation;
+      const t = p.transform as number[];
+      translation = [t[9], t[10], t[11]];
       if (p.orientation !== undefined) {
         const k = typeof p.orientation === 'string' ? rotationIndex(p.orientation) : -1;
         const agrees = k === rotation || (k >= 0 && k < 6 && p.orientation === extentCode(rotation));
