@@ -38,6 +38,7 @@ import {
   type PackResult,
   type PackResultV2,
 } from '../shared/packing';
+import { reference, referenceFaults } from './lib/manifold-check';
 
 const arg = (name: string, fallback: number) => {
   const i = process.argv.indexOf(`--${name}`);
@@ -188,7 +189,8 @@ function oursV2(instance: PackInstanceV2): { result: PackResultV2; firstLayoutMs
 
 /**
  * Concave mixes packed by box and by shape, same instance, spacing and time. Every shape layout is checked
- * against the meshes (surface gaps, containment, lift-out order) by the validator, apart from the engine's run.
+ * against the meshes (surface gaps, containment, lift-out order) by the validator, apart from the engine's run, and
+ * again by manifold-3d (./lib/manifold-check.ts), which shares no code with it.
  * Density: the parts' mesh volume over the cake (usable base x height above the floor margin).
  */
 function shapeSection(): void {
@@ -207,6 +209,8 @@ function shapeSection(): void {
     const boxH: number[] = [];
     const shapeH: number[] = [];
     let invalid = 0;
+    let invalidByReference = 0;
+    let referenceMs = 0;
     let unplaced = 0;
     const ms = count > 500 ? SHAPE_MS_2000 : SHAPE_MS;
     let longest = 0;
@@ -217,6 +221,14 @@ function shapeSection(): void {
       const byShape = oursV2(instance);
       longest = Math.max(longest, byShape.wallMs / ms);
       if (validateShapeLayout(instance, byShape.result, shapeParts(instance)).length > 0) invalid++;
+      // The same layout measured by a second implementation (manifold-3d), which shares no code with the validator.
+      const t = performance.now();
+      const faults = referenceFaults(instance, reference(instance, byShape.result));
+      referenceMs += performance.now() - t;
+      if (faults.length > 0) {
+        invalidByReference++;
+        console.error(`${count} parts, mix ${seed}: manifold-3d finds ${faults.length} faults, such as ${faults[0]}`);
+      }
       unplaced += byShape.result.unplaced.reduce((n, u) => n + u.count, 0) + byBox.result.unplaced.reduce((n, u) => n + u.count, 0);
       boxH.push(byBox.result.height);
       shapeH.push(byShape.result.height);
@@ -237,13 +249,13 @@ function shapeSection(): void {
       `${(ms / 1000).toFixed(0)} s`,
       longest.toFixed(2),
       unplaced,
-      invalid,
+      `${invalid} / ${invalidByReference} (${(referenceMs / 1000).toFixed(0)} s)`,
     ]);
   }
   console.log(`\n## Concave mixes by box and by shape (3 mm spacing, the same time for both; 300 x 300 x 380 chamber, 400 x 400 x 700 for 2,000 parts)\n`);
   console.log(
     table(
-      ['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'density box / shape', 'first shape layout mean / worst', 'time limit', 'longest run / limit', 'unplaced', 'invalid'],
+      ['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'density box / shape', 'first shape layout mean / worst', 'time limit', 'longest run / limit', 'unplaced', 'invalid: validator / manifold-3d (its time)'],
       rows,
     ),
   );
