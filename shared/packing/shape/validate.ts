@@ -31,6 +31,8 @@ export interface ShapeCheckOptions {
   focus?: ReadonlySet<number>;
   /** Problems listed of each kind before one line gives the rest's count (default 20; the editor names them all). */
   maxReports?: number;
+  /** Polled as the check goes (a run out of time): true ends it, and a problem says the layout was not checked. */
+  stopped?: () => boolean;
 }
 
 /**
@@ -64,7 +66,10 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
   const placed: Placed[] = [];
   let top = -Infinity;
   let volume = 0;
+  const stopped = options.stopped ?? (() => false);
+  let halted = false;
   list.forEach((p, i) => {
+    if (halted || (i % 1024 === 1023 && (halted = stopped()))) return;
     const at = `placements[${i}]`;
     const part = byId.get(p.id);
     if (!part) {
@@ -111,7 +116,10 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
     placed.push({ at: i, part, rotation, placed: new PlacedBvh(part.bvh(), rotation, translation) });
   });
 
-  checkGapsAndLift(placed, g, tol, U.min, U.extent, bad, options.focus, options.maxReports ?? MAX_REPORTS);
+  if (halted || !checkGapsAndLift(placed, g, tol, U.min, U.extent, bad, options.focus, options.maxReports ?? MAX_REPORTS, stopped)) {
+    bad('placements', 'were not all checked: the check was stopped');
+    return problems;
+  }
 
   const unplacedCount = new Array<number>(parts.length).fill(0);
   const unplaced = Array.isArray(result.unplaced) ? result.unplaced : [];
@@ -171,23 +179,21 @@ function checkGapsAndLift(
   bad: (field: string, message: string) => void,
   focus: ReadonlySet<number> | undefined,
   maxReports: number,
-): void {
+  stopped: () => boolean,
+): boolean {
   const n = placed.length;
-  if (n < 2) return;
-  // Broad phase: a plan-view grid; every pair sharing a cell (boxes grown by the spacing) is looked at.
+  if (n < 2) return true;
+  // Broad phase: a plan-view grid of cells (boxes grown by the spacing). The placements are taken in list order, each
+  // against the ones before it that share a cell and reach above its bottom less the spacing: only they can be too
+  // close to it or in its way up. Each cell keeps those before, highest top first, so the look stops at the first
+  // wholly below: a column of parts stacked high (listed bottom first) is not looked through again for each part
+  // (185,556 cubes of 5 mm: 136 million pairs looked at before, 11 s).
   const G = Math.max(1, Math.min(128, Math.ceil(Math.sqrt(n))));
   const cell = [Math.max(extent[0] / G, 1e-9), Math.max(extent[1] / G, 1e-9)];
   const cellOf = (v: number, a: number) => Math.min(G - 1, Math.max(0, Math.floor((v - origin[a]) / cell[a])));
-  const buckets: number[][] = Array.from({ length: G * G }, () => []);
-  const range = new Int32Array(4 * n);
-  for (let i = 0; i < n; i++) {
-    const P = placed[i].placed;
-    range[4 * i] = cellOf(P.min[0] - g, 0);
-    range[4 * i + 1] = cellOf(P.min[1] - g, 1);
-    range[4 * i + 2] = cellOf(P.max[0] + g, 0);
-    range[4 * i + 3] = cellOf(P.max[1] + g, 1);
-    for (let x = range[4 * i]; x <= range[4 * i + 2]; x++) for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) buckets[x * G + y].push(i);
-  }
+  const byTop: number[][] = Array.from({ length: G * G }, () => []);
+  const topOf = (k: number) => placed[k].placed.max[2];
+  const range = new Int32Array(4);
   const inFocus = (k: number) => !focus || focus.has(placed[k].at);
   const seenBy = new Int32Array(n).fill(-1);
   let gapReports = 0, gapTotal = 0, liftReports = 0, liftTotal = 0;
@@ -202,6 +208,10 @@ function checkGapsAndLift(
   const gaps = new Map<string, number | 'inside' | null>();
   // Lift-out: `earlier`, listed before `later`, must not block its way up.
   const liftCheck = (later: number, earlier: number) => {
+    // Nothing of a part wholly below the other's bottom, or beside it in plan, is in its way up (blocksLift's own
+    // first test, before the pair's key is made: a column of parts stacked high shares its plan cells with each).
+    const A = placed[later].placed, B = placed[earlier].placed;
+    if (B.max[2] <= A.min[2] + tol || B.min[0] >= A.max[0] - tol || A.min[0] >= B.max[0] - tol || B.min[1] >= A.max[1] - tol || A.min[1] >= B.max[1] - tol) return;
     const key = relation(placed[later], placed[earlier]);
     let blocked = lifts.get(key);
     if (blocked === undefined) lifts.set(key, (blocked = blocksLift(placed[later].placed, placed[earlier].placed, tol)));
@@ -234,21 +244,43 @@ function checkGapsAndLift(
     }
   };
   for (let i = 0; i < n; i++) {
-    if (!inFocus(i)) continue;
-    for (let x = range[4 * i]; x <= range[4 * i + 2]; x++)
-      for (let y = range[4 * i + 1]; y <= range[4 * i + 3]; y++) {
-        for (const j of buckets[x * G + y]) {
-          if (j === i || seenBy[j] === i) continue;
+    if (i % 256 === 255 && stopped()) return false;
+    const A = placed[i].placed;
+    range[0] = cellOf(A.min[0] - g, 0);
+    range[1] = cellOf(A.min[1] - g, 1);
+    range[2] = cellOf(A.max[0] + g, 0);
+    range[3] = cellOf(A.max[1] + g, 1);
+    const floor = A.min[2] - g - tol;
+    for (let x = range[0]; x <= range[2]; x++)
+      for (let y = range[1]; y <= range[3]; y++) {
+        const before = byTop[x * G + y];
+        for (let k = 0; k < before.length && topOf(before[k]) > floor; k++) {
+          const j = before[k];
+          if (seenBy[j] === i) continue;
           seenBy[j] = i;
-          // A pair of two placements in focus is looked at once, from the later one's side for the lift.
-          if (j < i) liftCheck(i, j);
-          else if (!inFocus(j)) liftCheck(j, i);
-          if (j > i || !inFocus(j)) gapCheck(Math.min(i, j), Math.max(i, j));
+          // Each pair once, from the later one's side; with a focus, only pairs holding a placement in it.
+          if (!inFocus(i) && !inFocus(j)) continue;
+          liftCheck(i, j);
+          gapCheck(j, i);
         }
+      }
+    // Then it joins its cells, after every one with a higher top.
+    const top = A.max[2];
+    for (let x = range[0]; x <= range[2]; x++)
+      for (let y = range[1]; y <= range[3]; y++) {
+        const before = byTop[x * G + y];
+        let lo = 0, hi = before.length;
+        while (lo < hi) {
+          const mid = (lo + hi) >> 1;
+          if (topOf(before[mid]) >= top) lo = mid + 1;
+          else hi = mid;
+        }
+        before.splice(lo, 0, i);
       }
   }
   if (gapTotal > maxReports) bad('placements', `${gapTotal - maxReports} more pairs are closer than the spacing`);
   if (liftTotal > maxReports) bad('placements', `${liftTotal - maxReports} more parts are blocked on their way up`);
+  return true;
 }
 
 /**

@@ -70,6 +70,25 @@ describe('shape validator against the meshes', () => {
     expect(blocked.sort()).toEqual(['placements[1]', 'placements[2]', 'placements[2]', 'placements[3]', 'placements[3]', 'placements[3]']);
   });
 
+  test('a tall column listed bottom first passes, and every pair of it is still looked at when listed top first', () => {
+    // 30 cubes of 1 mm, 2 mm apart one above another (a column of parts stacked high): bottom first, valid; top
+    // first, each is blocked by all 29 listed before it or above it: 435 pairs, all counted.
+    const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 30 }], 2);
+    const column = Array.from({ length: 30 }, (_, k) => ['cube', 0, [10, 10, 3 * k]] as [string, number, [number, number, number]]);
+    expect(validateShapeLayout(inst, layout(inst, column))).toEqual([]);
+    const down = validateShapeLayout(inst, layout(inst, [...column].reverse()), undefined, { maxReports: 1000 });
+    expect(down.filter((p) => /cannot be lifted/.test(p.message))).toHaveLength((30 * 29) / 2);
+  });
+
+  test('a check told to stop says the layout was not all checked', () => {
+    // 300 cubes in a valid grid; the check polls between placements.
+    const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 300 }], 2);
+    const grid = Array.from({ length: 300 }, (_, k) => ['cube', 0, [3 * (k % 20), 3 * Math.floor(k / 20), 0]] as [string, number, [number, number, number]]);
+    const r = layout(inst, grid);
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => false })).toEqual([]);
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => true })).toEqual([{ field: 'placements', message: 'were not all checked: the check was stopped' }]);
+  });
+
   test('lift-out order: a cube above another must be listed after it', () => {
     const inst = instance([{ id: 'cube', mesh: box(4, 4, 4), quantity: 2 }], 1);
     const up = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [11, 11, 6]]]);
