@@ -283,6 +283,8 @@ function packOnce(instance: PackInstanceV2, kinds: Kind[], nests: readonly Nest[
     if (placed.length > 0) {
       for (const k of fillOrder) {
         while (left[k] > 0 && failedAt[k] < top) {
+          // Many copies of one kind can fill below the top here: the clock is read between them too.
+          if ((steps++ & 7) === 0 && abort()) return null;
           if (!place(k, top + 1e-9)) failedAt[k] = top;
         }
       }
@@ -413,12 +415,20 @@ function* boxesInstead(
   return result;
 }
 
+/** What a run hands out: its best layout, and the box engine's first layout while that is it (not yet settled). */
+interface RunOut {
+  best: PackResultV2 | null;
+  unsettled?: PackResultV2;
+  /** The clock stopped a settling or a check. */
+  outOfTime?: boolean;
+}
+
 function* solve(
   instance: PackInstanceV2,
   options: ShapeOptions,
   hooks: ShapeRunHooks,
   now: () => number,
-  out: { best: PackResultV2 | null },
+  out: RunOut,
 ): Generator<void, void, void> {
   const start = now();
   const deadline = start + instance.timeLimitMs;
@@ -470,14 +480,18 @@ function* solve(
   /** A search's stop: timed, when only checking its layout would fit in what is left; capped, at the deadline. */
   const outOfTime = (nested: boolean) => (timed ? leftFor(nested) <= 0 : now() >= deadline) || stop();
   const offer = (placed: Placed[], nested = false) => {
-    const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && heightOf(placed) < bestHeight - 1e-9);
+    const height = heightOf(placed);
+    // The boxes' layout as it stands gives way to the same parts settled and checked, even where none came lower.
+    const asLow = out.best !== null && out.best === out.unsettled && height <= bestHeight + 1e-9;
+    const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && (height < bestHeight - 1e-9 || asLow));
     if (!better) return;
     // No time left to check it: the layout checked before stands.
     if (timed && out.best && now() + checkCost(nested) > deadline) return;
     const t = now();
     const result = summarise(instance, kinds, placed, now() - start, warnings);
     // Never hand out a layout that fails the exact check (it would be a bug of the drop, so it is dropped too).
-    const failed = validateShapeLayout(instance, result, parts).length > 0;
+    // Timed, a check still going at the time limit is stopped, and its layout is not taken.
+    const failed = validateShapeLayout(instance, result, parts, timed ? { stopped: () => now() > deadline && (out.outOfTime = true) } : {}).length > 0;
     const took = now() - t;
     if (nested) checkMs.nested = Math.max(checkMs.nested, took);
     else checkMs.plain = Math.max(checkMs.plain, took);
@@ -513,11 +527,23 @@ function* solve(
       ],
     };
   };
-  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null): Generator<void, Placed[], void> {
+  const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null, first = false): Generator<void, Placed[], void> {
     const nests = set ? set.nests : [];
     const nestCell = set?.cell ?? cell;
     const boxed = unitBoxes(set, ms);
     const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
+    if (first && timed) {
+      // Timed, the box engine's first layout is handed out as it stands until the same parts come settled and
+      // checked: boxes kept the spacing apart keep their meshes as far apart, and listed bottom first they lift out
+      // (./boxfit.ts), so it needs no check. With many thousands of parts, settling and checking them can take
+      // longer than the limit (185,556 cubes: 9 s and 3 s), and then it is the layout (said so at the end).
+      const unsettled = fromBoxResult(instance, parts, boxes);
+      if (warnings.length > 0) unsettled.warnings = [...warnings];
+      out.best = out.unsettled = unsettled;
+      bestHeight = unsettled.height;
+      bestPlacedCount = unsettled.placements.length;
+      hooks.onProgress?.(phase, share(), unsettled);
+    }
     const items: SettleItem[] = [];
     let groups = 0;
     // Bottom first, as the settling needs them; a nest's holder before what it holds.
@@ -549,14 +575,15 @@ function* solve(
       items.push({ part: part.index, rotation: rotationForBox(part, pl.orientation), position: [pl.position[0], pl.position[1], pl.position[2]] });
     }
     const t = now();
-    const settled = settleLayout(instance, parts, items, { stopped: stop });
+    // Timed, settling still going at the time limit stops; what it left is then not checked, so not taken.
+    const settled = settleLayout(instance, parts, items, { stopped: () => stop() || (timed && now() > deadline && (out.outOfTime = true)) });
     settleMs = Math.max(settleMs, now() - t);
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
   // The first layout to show: the boxes', settled. It needs no nests, so it comes before they are built.
   const anyCopies = kinds.some((k) => k.fits && k.part.quantity > 0);
-  if (boxShare > 0 && anyCopies) offer(yield* settledBoxes(0, instance.timeLimitMs));
+  if (boxShare > 0 && anyCopies) offer(yield* settledBoxes(0, instance.timeLimitMs, null, true));
   const firstHeight = out.best ? out.best.height : null;
 
   // Copies, largest first (by the room they cost), so the small ones fill the gaps and hollows left.
@@ -665,9 +692,12 @@ function* solve(
     return on === cell ? set : { ...set, cell: on };
   };
   const lids = options.lids !== false && options.nest !== false && lidsMayHold(nestKinds(true), cell);
-  const single = nestSet(1, stop);
+  // Timed, the first nests are filled only while a layout with nests could still be checked in time: past that no
+  // stage could take them (5,000 parts: filling them took 2.5 s after the first layout, with a 2 s limit).
+  const nestsInTime = () => stop() || (timed && leftFor(true) <= 0);
+  const single = nestSet(1, nestsInTime);
   // When nothing nests in one holder, two copies facing each other may still hold what is too tall for one.
-  const alone = single.nests.length === 0 && lids && !stop() ? nestSet(1, stop, true) : null;
+  const alone = single.nests.length === 0 && lids && !nestsInTime() ? nestSet(1, nestsInTime, true) : null;
   const primary = alone && alone.nests.some((n) => n.lidded) ? alone : single;
   const { nests, used } = primary;
   const copies: number[] = [];
@@ -821,7 +851,7 @@ function* solve(
 /** Prepares a packing by shape of a version 2 instance whose meshes are attached. */
 export function createShapePacking(instance: PackInstanceV2, options: ShapeOptions = {}): ShapePacking {
   const now = options.now ?? defaultClock();
-  const finish = (out: { best: PackResultV2 | null }, start: number, hooks: ShapeRunHooks): PackResultV2 => {
+  const finish = (out: RunOut, start: number, hooks: ShapeRunHooks): PackResultV2 => {
     // No layout passed the exact check (or the run was stopped before the first): the boxes, which always keep
     // apart, packed in what is left of the limit (not a whole limit more).
     const boxes = () => {
@@ -831,19 +861,30 @@ export function createShapePacking(instance: PackInstanceV2, options: ShapeOptio
     };
     const best = out.best ?? boxes();
     const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
+    if (best === out.unsettled && out.outOfTime) {
+      const placed = best.placements.length.toLocaleString('en-US');
+      result.warnings = [
+        ...(best.warnings ?? []),
+        {
+          id: best.placements[0]?.id ?? instance.parts[0].id,
+          code: 'packed-by-box',
+          message: `Packed by the parts' boxes: settling the ${placed} placements by shape and checking them against the meshes takes longer than the ${instance.timeLimitMs / 1000} s limit allows; give it more time to nest them`,
+        },
+      ];
+    }
     hooks.onProgress?.('done', 1, result);
     return result;
   };
   return {
     runSync(hooks = {}) {
-      const out = { best: null as PackResultV2 | null };
+      const out: RunOut = { best: null };
       const start = now();
       const it = solve(instance, options, hooks, now, out);
       while (!it.next().done);
       return finish(out, start, hooks);
     },
     async run(hooks = {}) {
-      const out = { best: null as PackResultV2 | null };
+      const out: RunOut = { best: null };
       const start = now();
       const it = solve(instance, options, hooks, now, out);
       while (!it.next().done) await new Promise((resolve) => setTimeout(resolve, 0));
