@@ -69,7 +69,7 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
   const stopped = options.stopped ?? (() => false);
   let halted = false;
   list.forEach((p, i) => {
-    if (halted || (i % 1024 === 1023 && (halted = stopped()))) return;
+    if (halted || (i % 64 === 63 && (halted = stopped()))) return;
     const at = `placements[${i}]`;
     const part = byId.get(p.id);
     if (!part) {
@@ -244,7 +244,7 @@ function checkGapsAndLift(
     }
   };
   for (let i = 0; i < n; i++) {
-    if (i % 256 === 255 && stopped()) return false;
+    if (i % 32 === 31 && stopped()) return false;
     const A = placed[i].placed;
     range[0] = cellOf(A.min[0] - g, 0);
     range[1] = cellOf(A.min[1] - g, 1);

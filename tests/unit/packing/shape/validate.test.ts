@@ -81,7 +81,7 @@ describe('shape validator against the meshes', () => {
   });
 
   test('a check told to stop says the layout was not all checked', () => {
-    // 300 cubes in a valid grid; the check polls between placements.
+    // 300 cubes in a valid grid; the check polls between placements (every 64 while reading them, 32 while pairing).
     const inst = instance([{ id: 'cube', mesh: box(1, 1, 1), quantity: 300 }], 2);
     const grid = Array.from({ length: 300 }, (_, k) => ['cube', 0, [3 * (k % 20), 3 * Math.floor(k / 20), 0]] as [string, number, [number, number, number]]);
     const r = layout(inst, grid);
