@@ -3,7 +3,8 @@
  * modelling library, with its own geometry. Manifold.minGap(other, searchLength) gives the smallest distance
  * between two solids' surfaces (capped at searchLength), intersect(other).volume() the volume they share (a part
  * inside another shares all of its own), boundingBox() the extent. None of it goes through the project's
- * validator, slicer or trees. Used by the tests and by `npm run bench:pack -- --shapes`.
+ * validator, slicer or trees. Used by the tests and by `npm run bench:pack -- --shapes`; `runManifold` runs the
+ * geometry tests' own measures with the same library.
  *
  * The lift-out order (in reverse, each part rises straight up clear of the parts listed before it) is sampled
  * every 0.5 mm of the rise; a sample closer than 0.25 mm to another part counts as touching it. A wall thicker
@@ -19,20 +20,37 @@ import { shapeParts, usableRegion, type PackInstanceV2, type PackResultV2 } from
 const ROOT = path.join(__dirname, '../..');
 export const LIFT_STEP_MM = 0.5;
 
-const SCRIPT = `
+/**
+ * Runs `body` in a Node child process with manifold-3d loaded: it finds the JSON of `input` as `job`, the library
+ * as `wasm` (set up), `solidOf({ positions, indices })` making a Manifold of a mesh (32-bit coordinates, as the
+ * library stores them), and must leave its answer in `out`, which comes back parsed.
+ */
+export function runManifold<T>(body: string, input: unknown): T {
+  const script = `
 import Module from 'manifold-3d';
-let input = '';
-for await (const chunk of process.stdin) input += chunk;
-const job = JSON.parse(input);
+let text = '';
+for await (const chunk of process.stdin) text += chunk;
+const job = JSON.parse(text);
 const wasm = await Module();
 wasm.setup();
-const parts = job.parts.map((m) => new wasm.Manifold(new wasm.Mesh({ numProp: 3, vertProperties: new Float32Array(m.positions), triVerts: new Uint32Array(m.indices) })));
+const solidOf = (m) => new wasm.Manifold(new wasm.Mesh({ numProp: 3, vertProperties: new Float32Array(m.positions), triVerts: new Uint32Array(m.indices) }));
+let out;
+${body}
+process.stdout.write(JSON.stringify(out));
+`;
+  const run = spawnSync(process.execPath, ['--input-type=module', '-e', script], { cwd: ROOT, input: JSON.stringify(input), encoding: 'utf8', maxBuffer: 256 * 1024 * 1024 });
+  if (run.status !== 0) throw new Error(`manifold-3d reference failed: ${run.stderr}`);
+  return JSON.parse(run.stdout) as T;
+}
+
+const LAYOUT_SCRIPT = `
+const parts = job.parts.map(solidOf);
 // A 3MF transform (row vectors, p' = [x y z 1] M) as the library's column-major 4 x 4 matrix.
 const solids = job.placements.map(({ part, m }) => parts[part].transform([m[0], m[1], m[2], 0, m[3], m[4], m[5], 0, m[6], m[7], m[8], 0, m[9], m[10], m[11], 1]));
 const boxes = solids.map((s) => s.boundingBox());
 const reach = job.spacing + 1e-3;
 const near = (a, b) => [0, 1, 2].every((k) => a.min[k] < b.max[k] + reach && b.min[k] < a.max[k] + reach);
-const out = { status: solids.map((s) => String(s.status())), boxes: boxes.map((b) => [...b.min, ...b.max]), pairs: [], touches: [], liftPairs: 0 };
+out = { status: solids.map((s) => String(s.status())), boxes: boxes.map((b) => [...b.min, ...b.max]), pairs: [], touches: [], liftPairs: 0 };
 for (let i = 0; i < solids.length; i++) {
   for (let j = i + 1; j < solids.length; j++) {
     if (!near(boxes[i], boxes[j])) continue;
@@ -60,7 +78,6 @@ for (let j = solids.length - 1; j >= 0; j--) {
     }
   }
 }
-process.stdout.write(JSON.stringify(out));
 `;
 
 export interface Reference {
@@ -79,15 +96,12 @@ export function reference(instance: PackInstanceV2, result: PackResultV2): Refer
   // library applies itself.
   const parts = shapeParts(instance);
   const index = new Map(parts.map((p, i) => [p.id, i]));
-  const input = JSON.stringify({
+  return runManifold<Reference>(LAYOUT_SCRIPT, {
     spacing: instance.spacing,
     liftStep: LIFT_STEP_MM,
     parts: parts.map((p) => ({ positions: Array.from(p.mesh.positions), indices: Array.from(p.mesh.indices) })),
     placements: result.placements.map((pl) => ({ part: index.get(pl.id), m: pl.transform })),
   });
-  const run = spawnSync(process.execPath, ['--input-type=module', '-e', SCRIPT], { cwd: ROOT, input, encoding: 'utf8', maxBuffer: 256 * 1024 * 1024 });
-  if (run.status !== 0) throw new Error(`manifold-3d reference failed: ${run.stderr}`);
-  return JSON.parse(run.stdout);
 }
 
 /** The stored coordinates are 32-bit floats in the reference: about 2e-5 mm at 200 mm. */

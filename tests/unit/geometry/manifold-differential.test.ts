@@ -1,31 +1,20 @@
 /**
  * Differential check of volume and area against manifold-3d (npm), the
  * reference library named for this: its Manifold.volume() and surfaceArea()
- * on the same triangles. manifold-3d ships as an ES module with WebAssembly,
- * so it runs in a plain Node child process fed the meshes as JSON.
+ * on the same triangles, run in a child process (scripts/lib/manifold-check.ts
+ * runManifold: manifold-3d is an ES module with WebAssembly).
  */
-import { spawnSync } from 'node:child_process';
-import path from 'node:path';
 import { demoLibrary, measureMesh, torus, type MeshData } from '../../../shared/geometry';
+import { runManifold } from '../../../scripts/lib/manifold-check';
 import { box, tetrahedron } from './helpers';
 
-const ROOT = path.join(__dirname, '../../..');
-
 const SCRIPT = `
-import Module from 'manifold-3d';
-let input = '';
-for await (const chunk of process.stdin) input += chunk;
-const meshes = JSON.parse(input);
-const wasm = await Module();
-wasm.setup();
 const cube = wasm.Manifold.cube([10, 20, 30]);
-const out = { cube: [cube.volume(), cube.surfaceArea()], meshes: [] };
-for (const m of meshes) {
-  const mesh = new wasm.Mesh({ numProp: 3, vertProperties: new Float32Array(m.positions), triVerts: new Uint32Array(m.indices) });
-  const solid = new wasm.Manifold(mesh);
+out = { cube: [cube.volume(), cube.surfaceArea()], meshes: [] };
+for (const m of job) {
+  const solid = solidOf(m);
   out.meshes.push({ status: String(solid.status()), volume: solid.volume(), area: solid.surfaceArea(), genus: solid.genus() });
 }
-process.stdout.write(JSON.stringify(out));
 `;
 
 interface Reference {
@@ -48,10 +37,10 @@ const subjects: { name: string; mesh: MeshData }[] = [
 let reference: Reference;
 
 beforeAll(() => {
-  const input = JSON.stringify(subjects.map((s) => ({ positions: Array.from(s.mesh.positions), indices: Array.from(s.mesh.indices) })));
-  const run = spawnSync(process.execPath, ['--input-type=module', '-e', SCRIPT], { cwd: ROOT, input, encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
-  if (run.status !== 0) throw new Error(`manifold-3d reference failed: ${run.stderr}`);
-  reference = JSON.parse(run.stdout);
+  reference = runManifold<Reference>(
+    SCRIPT,
+    subjects.map((s) => ({ positions: Array.from(s.mesh.positions), indices: Array.from(s.mesh.indices) })),
+  );
 }, 60_000);
 
 test('the reference library gives 6000 and 2200 for Manifold.cube([10, 20, 30]) (manifold-3d documentation)', () => {

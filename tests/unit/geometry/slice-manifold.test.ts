@@ -2,35 +2,23 @@
  * Cavalieri's principle against an outside measure: the sections at the middle
  * of every layer, times the layer height, add up to the solid's volume as
  * manifold-3d (npm, the reference library for mesh volume) measures it, within
- * the slicing error. manifold-3d is an ES module with WebAssembly, so it runs
- * in a plain Node child process fed the meshes as JSON.
+ * the slicing error, run in a child process (scripts/lib/manifold-check.ts
+ * runManifold: manifold-3d is an ES module with WebAssembly).
  *
  * The slicing error bound (see slicingErrorBoundMm3): within one layer the
  * section area changes by at most the horizontal projection of the surface in
  * that layer (divergence theorem on the slab), so the layer sum is off by at
  * most h x the summed |projected area| of the triangles.
  */
-import { spawnSync } from 'node:child_process';
-import path from 'node:path';
 import { demoLibrary, slicePart, slicingErrorBoundMm3, torus, upAxisOfRotation, rotationIndex, type MeshData } from '../../../shared/geometry';
+import { runManifold } from '../../../scripts/lib/manifold-check';
 import { uvSphere } from './solids';
 
-const ROOT = path.join(__dirname, '../../..');
-
 const SCRIPT = `
-import Module from 'manifold-3d';
-let input = '';
-for await (const chunk of process.stdin) input += chunk;
-const meshes = JSON.parse(input);
-const wasm = await Module();
-wasm.setup();
-const out = [];
-for (const m of meshes) {
-  const mesh = new wasm.Mesh({ numProp: 3, vertProperties: new Float32Array(m.positions), triVerts: new Uint32Array(m.indices) });
-  const solid = new wasm.Manifold(mesh);
-  out.push({ status: String(solid.status()), volume: solid.volume() });
-}
-process.stdout.write(JSON.stringify(out));
+out = job.map((m) => {
+  const solid = solidOf(m);
+  return { status: String(solid.status()), volume: solid.volume() };
+});
 `;
 
 /** Rounds positions to float32, as the reference library stores them, so both measure the same solid. */
@@ -50,10 +38,10 @@ const UPS = ['+x+y+z', '+x-y-z', '+x-z+y', '+x+z-y', '+y+z+x', '-y+z-x'].map(rot
 let reference: { status: string; volume: number }[];
 
 beforeAll(() => {
-  const input = JSON.stringify(subjects.map((s) => ({ positions: Array.from(s.mesh.positions), indices: Array.from(s.mesh.indices) })));
-  const run = spawnSync(process.execPath, ['--input-type=module', '-e', SCRIPT], { cwd: ROOT, input, encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
-  if (run.status !== 0) throw new Error(`manifold-3d reference failed: ${run.stderr}`);
-  reference = JSON.parse(run.stdout);
+  reference = runManifold<{ status: string; volume: number }[]>(
+    SCRIPT,
+    subjects.map((s) => ({ positions: Array.from(s.mesh.positions), indices: Array.from(s.mesh.indices) })),
+  );
 }, 60_000);
 
 test('the six up axes are six different ones', () => {
