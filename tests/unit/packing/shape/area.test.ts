@@ -6,7 +6,7 @@
  * once per mesh and direction and reused), and far from the origin, where single precision rounds a triangle's
  * span by more than its distance to a layer middle.
  */
-import { placementTransform, sliceAlong, type MeshData } from '@/shared/geometry';
+import { bracket, placementTransform, sliceAlong, type MeshData } from '@/shared/geometry';
 import { areaProfile, shapeParts } from '@/shared/packing/shape';
 import { box, translate } from '../../geometry/helpers';
 import { cone, transformMesh, uvSphere } from '../../geometry/solids';
@@ -57,4 +57,21 @@ test('far from the origin in its own coordinates, a plate thinner than a layer w
       got.forEach((a, L) => expect(a).toBeCloseTo(L === m ? 200 : 0, 6));
     }
   }
+});
+
+test('a part whose face lies on a layer middle has the same sections wherever it stands in plan; copies at one height share them', () => {
+  // An L bracket (30 x 20 x 15 mm, legs 3 mm thick) turned so that a leg's 3 mm face lies at z = 10.28 mm, the
+  // middle of layer 128 of 0.08 mm. That plane holds the face itself: before, the sections there came out as the
+  // part's plan position times the gap the face left in the crossings (1,050 mm^2 apart for parts 140 mm apart).
+  const part = partsOf([bracket({ legAMm: 30, legBMm: 20, thicknessMm: 3, widthMm: 15, gussetMm: 3 })])[0];
+  const h = 0.08;
+  const at = (y: number) => ({ part, transform: placementTransform(20, part.min, part.max, [40, y, 7.28]) });
+  const one = areaProfile([at(10)], h, 600);
+  for (const y of [60, 150]) expect(areaProfile([at(y)], h, 600)).toEqual(one);
+  // Three copies in a row at the same height: three times one's sections (up to the sum's rounding).
+  const three = areaProfile([at(10), at(60), at(150)], h, 600);
+  three.forEach((a, k) => expect(a).toBeCloseTo(3 * one[k], 9));
+  // Off the degenerate layer, the sections are the bracket's: 15 x 30 mm (a leg lying flat) or 15 x 3 plus the
+  // gusset, never negative.
+  expect(Math.max(...one)).toBeLessThanOrEqual(15 * 30 + 1e-9);
 });
