@@ -21,6 +21,7 @@ import { join } from 'node:path';
 import { pack3D, RotationType } from 'binpackingjs/3d';
 import { housing, measureMesh, torus } from '../shared/geometry';
 import {
+  boxMesh,
   createPacking,
   createPackingV2,
   createShapePacking,
@@ -320,7 +321,7 @@ function heavySection(): void {
  * those do not fit in the limit, instead of running past it.
  */
 function manySection(): void {
-  const cube = { positions: [0, 0, 0, 5, 0, 0, 5, 5, 0, 0, 5, 0, 0, 0, 5, 5, 0, 5, 5, 5, 5, 0, 5, 5], indices: [0, 3, 2, 0, 2, 1, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 1, 2, 6, 1, 6, 5, 2, 3, 7, 2, 7, 6, 3, 0, 4, 3, 4, 7] };
+  const cube = boxMesh([5, 5, 5]);
   const cubes = (quantity: number): PackInstanceV2 => {
     const parsed = parseInstanceV2({ format: 'pack-instance/2', chamber: [340, 340, 600], margin: { xy: 5, bottom: 5, top: 5 }, spacing: 2, layerHeight: 0.1, timeLimitMs: 2000, fit: 'shape', parts: [{ id: 'cube', mesh: cube, quantity }] });
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
