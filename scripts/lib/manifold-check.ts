@@ -99,7 +99,12 @@ export function reference(instance: PackInstanceV2, result: PackResultV2): Refer
   return runManifold<Reference>(LAYOUT_SCRIPT, {
     spacing: instance.spacing,
     liftStep: LIFT_STEP_MM,
-    parts: parts.map((p) => ({ positions: Array.from(p.mesh.positions), indices: Array.from(p.mesh.indices) })),
+    // A mesh that is not closed counts as its box (as the contract's check takes it); one wound inside out is turned.
+    parts: parts.map((p) => {
+      const indices = Array.from(p.sliceMesh.indices);
+      if (p.facing < 0) for (let t = 0; t < indices.length; t += 3) [indices[t + 1], indices[t + 2]] = [indices[t + 2], indices[t + 1]];
+      return { positions: Array.from(p.sliceMesh.positions), indices };
+    }),
     placements: result.placements.map((pl) => ({ part: index.get(pl.id), m: pl.transform })),
   });
 }
