@@ -544,6 +544,13 @@ function* solve(
       bestPlacedCount = unsettled.placements.length;
       hooks.onProgress?.(phase, share(), unsettled);
     }
+    // Timed and already past the limit (many thousands of parts: the box engine's first layout and turning it over
+    // took it all), nothing is settled: the settling would be stopped at once, after its parts were listed (185,556
+    // cubes: 0.3 s past the limit for nothing).
+    if (timed && now() > deadline) {
+      out.outOfTime = true;
+      return [];
+    }
     const items: SettleItem[] = [];
     let groups = 0;
     // Bottom first, as the settling needs them; a nest's holder before what it holds.
@@ -578,6 +585,11 @@ function* solve(
     // Timed, settling still going at the time limit stops; what it left is then not checked, so not taken.
     const settled = settleLayout(instance, parts, items, { stopped: () => stop() || (timed && now() > deadline && (out.outOfTime = true)) });
     settleMs = Math.max(settleMs, now() - t);
+    // Stopped at the limit: what it left would not be checked, so it is not taken (nor turned over).
+    if (timed && now() > deadline) {
+      out.outOfTime = true;
+      return [];
+    }
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };

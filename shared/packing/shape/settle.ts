@@ -171,14 +171,21 @@ export function settleLayout(
     return best;
   };
   for (const item of items) {
+    // Stopped: the rest keep their heights, and need no buckets (nothing after them is settled).
+    if (options.stopped?.()) {
+      for (let k = out.length; k < items.length; k++) {
+        const it = items[k];
+        out.push({ part: it.part, rotation: it.rotation, position: [it.position[0], it.position[1], it.position[2]], ...(it.group !== undefined ? { group: it.group } : {}) });
+      }
+      break;
+    }
     const P = profileOf(item.part, item.rotation);
     const [x, y, z0] = item.position;
-    const stopped = options.stopped?.() ?? false;
     // A later item of a group whose first sank: as far down with it, if nothing else is in the way.
     const by = item.group !== undefined ? sank.get(item.group) : undefined;
     let z = z0;
-    if (!stopped && by !== undefined && by > 0 && needOf(P, x, y, z0 - by, item.group, restsOn.get(item.group!)) + 1e-7 <= z0 - by) z = z0 - by;
-    else if (!stopped) {
+    if (by !== undefined && by > 0 && needOf(P, x, y, z0 - by, item.group, restsOn.get(item.group!)) + 1e-7 <= z0 - by) z = z0 - by;
+    else {
       z = restingZ(needOf(P, x, y, z0), z0);
       // A stack's copy over a copy of its part in the same turn, straight under it (the top of another stack, or
       // of its own where it could not follow): the stack's pitch over that copy, clear on the meshes, if nothing
