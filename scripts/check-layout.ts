@@ -13,10 +13,11 @@
  * 1 when it is not; input that cannot be read or is not an instance exits 2 with one line naming the field.
  */
 import { dirname, resolve } from 'node:path';
+import { placementTransform, rotationIndex } from '../shared/geometry/rotations';
 import { fail, failProblems, readJsonInput } from './lib/cli';
 import { reference, referenceFaults } from './lib/manifold-check';
 import { loadMeshes } from './lib/meshFiles';
-import { parseInstance, parseInstanceV2, shapeParts, validateLayout, validateShapeLayout, INSTANCE_FORMAT_V2, type FieldProblem, type PackResult, type PackResultV2 } from '../shared/packing';
+import { parseInstance, parseInstanceV2, shapeParts, validateLayout, validateShapeLayout, INSTANCE_FORMAT_V2, type FieldProblem, type PackResult, type PackResultV2, type PlacementV2 } from '../shared/packing';
 
 interface ManifoldReport {
   faults: string[];
@@ -46,13 +47,22 @@ function main(): void {
     const parts = shapeParts(instance);
     const layout = result as PackResultV2;
     problems = validateShapeLayout(instance, layout, parts);
-    // The second check needs every placement to name a part and carry a transform; the first names what does not.
-    const ids = new Set(parts.map((p) => p.id));
-    const readable =
-      Array.isArray(layout.placements) &&
-      layout.placements.every((p) => p && ids.has(p.id) && Array.isArray(p.transform) && p.transform.length === 12 && p.transform.every((v) => typeof v === 'number' && Number.isFinite(v)));
-    if (withManifold && readable) {
-      const ref = reference(instance, layout);
+    // The second check places each part by its 3MF transform; a part given by its size alone (no mesh) carries none,
+    // so its transform is made from its orientation and position, as the contract's check places it. A placement
+    // that names no part, or cannot be placed, is named by the first check, and the second is not run.
+    const byId = new Map(parts.map((p) => [p.id, p] as const));
+    const numbers = (v: unknown, n: number): v is number[] => Array.isArray(v) && v.length === n && v.every((x) => typeof x === 'number' && Number.isFinite(x));
+    const placed = Array.isArray(layout.placements)
+      ? layout.placements.map((p) => {
+          const part = p ? byId.get(p.id) : undefined;
+          if (!part) return null;
+          if (part.hasMesh) return numbers(p.transform, 12) ? p : null;
+          const turn = typeof p.orientation === 'string' ? rotationIndex(p.orientation) : -1;
+          return turn >= 0 && numbers(p.position, 3) ? { ...p, transform: placementTransform(turn, part.min, part.max, p.position) } : null;
+        })
+      : [null];
+    if (withManifold && placed.every((p) => p !== null)) {
+      const ref = reference(instance, { ...layout, placements: placed as PlacementV2[] });
       const gaps = ref.pairs.map((p) => p.gap);
       manifold = { faults: referenceFaults(instance, ref), pairs: ref.pairs.length, smallestGapMm: gaps.length > 0 ? Math.min(...gaps) : null, liftPairs: ref.liftPairs };
     }

@@ -95,6 +95,23 @@ describe('check:layout command line', () => {
     expect(r.out.manifold).toBeNull();
   }, 120_000);
 
+  test('a part given by its size alone (no mesh) is placed by its orientation and position for the second check', () => {
+    const mixed = { ...body, parts: [body.parts[0], { id: 'block', size: [10, 10, 10], quantity: 1 }] };
+    const file = write('mixed.json', JSON.stringify(mixed));
+    const inMemory = shapeInstance([{ id: 'housing', mesh: holder, quantity: 1, orientations: ['upright'] }], 3);
+    inMemory.parts.push({ id: 'block', size: [10, 10, 10], quantity: 1, rotations: [0, 1, 2, 3, 4, 5], meshPath: null, mesh: null });
+    const layout = (name: string, at: [number, number, number]) =>
+      write(name, JSON.stringify(summariseShapeLayout(inMemory, [{ id: 'housing', rotation: 0, position: H }, { id: 'block', rotation: 0, position: at }])));
+    const inside = spawnSync('npx', ['tsx', 'scripts/check-layout.ts', file, layout('mixed-good.json', [20 + 2 + 3, 20 + 15, 2 + 3])], { cwd: root, encoding: 'utf8', timeout: 120_000 });
+    expect(inside.status).toBe(0);
+    const good = JSON.parse(inside.stdout);
+    expect(good.manifold.faults).toEqual([]);
+    expect(good.manifold.smallestGapMm).toBeCloseTo(3, 4);
+    const through = spawnSync('npx', ['tsx', 'scripts/check-layout.ts', file, layout('mixed-wall.json', [20 - 5, 20 + 15, 5])], { cwd: root, encoding: 'utf8', timeout: 120_000 });
+    expect(through.status).toBe(1);
+    expect(JSON.parse(through.stdout).manifold.faults.join()).toMatch(/placements 0 and 1 share 200\.0\d\d mm\^3/);
+  }, 120_000);
+
   test('a box instance (pack-instance/1) is checked by the box rules: 2 mm apart passes, 1 mm apart fails', () => {
     const v1 = write('v1.json', JSON.stringify({ format: 'pack-instance/1', chamber: [100, 100, 100], spacing: 2, layerHeight: 0.1, parts: [{ id: 'a', size: [10, 10, 10], quantity: 2 }] }));
     const at = (x: number) => write(`v1-${x}.json`, JSON.stringify({ format: 'pack-result/1', placements: [{ id: 'a', position: [0, 0, 0], size: [10, 10, 10], orientation: 'xyz' }, { id: 'a', position: [x, 0, 0], size: [10, 10, 10], orientation: 'xyz' }], unplaced: [], height: 10, layers: 100, utilization: 0.02 }));
