@@ -11,7 +11,7 @@
  * Options: --problems N (per BR set, default 10), --ms T (our time per instance, default 2000),
  * --slow (also binpackingjs on 2,000 parts: one fill takes minutes), --shapes (only the concave mixes),
  * --shape-ms T (time per concave mix and fit, default 10000), --heavy (only the time limit with heavy meshes:
- * two rings of a million triangles each and a housing, by shape at 2 s and 10 s; then many light parts by shape at 2 s), --stacks (only the parts that
+ * two rings of a million triangles each and a housing, by shape at 2 s and 10 s; then many light parts at 2 s, by shape and by box), --stacks (only the parts that
  * stack: tapered cups alone and in a mix, by box, by shape, by shape without stacks).
  */
 import { execSync } from 'node:child_process';

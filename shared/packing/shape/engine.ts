@@ -479,6 +479,8 @@ function* solve(
   const leftFor = (nested: boolean) => deadline - now() - settleMs - checkCost(nested) - 0.03 * instance.timeLimitMs;
   /** A search's stop: timed, when only checking its layout would fit in what is left; capped, at the deadline. */
   const outOfTime = (nested: boolean) => (timed ? leftFor(nested) <= 0 : now() >= deadline) || stop();
+  /** Timed and past the limit (noted: a settling or a check it stops leaves the boxes' layout standing, said so). */
+  const pastLimit = () => timed && now() > deadline && (out.outOfTime = true);
   const offer = (placed: Placed[], nested = false) => {
     const height = heightOf(placed);
     // The boxes' layout as it stands gives way to the same parts settled and checked, even where none came lower.
@@ -491,7 +493,7 @@ function* solve(
     const result = summarise(instance, kinds, placed, now() - start, warnings);
     // Never hand out a layout that fails the exact check (it would be a bug of the drop, so it is dropped too).
     // Timed, a check still going at the time limit is stopped, and its layout is not taken.
-    const failed = validateShapeLayout(instance, result, parts, timed ? { stopped: () => now() > deadline && (out.outOfTime = true) } : {}).length > 0;
+    const failed = validateShapeLayout(instance, result, parts, { stopped: pastLimit }).length > 0;
     const took = now() - t;
     if (nested) checkMs.nested = Math.max(checkMs.nested, took);
     else checkMs.plain = Math.max(checkMs.plain, took);
@@ -547,10 +549,7 @@ function* solve(
     // Timed and already past the limit (many thousands of parts: the box engine's first layout and turning it over
     // took it all), nothing is settled: the settling would be stopped at once, after its parts were listed (185,556
     // cubes: 0.3 s past the limit for nothing).
-    if (timed && now() > deadline) {
-      out.outOfTime = true;
-      return [];
-    }
+    if (pastLimit()) return [];
     const items: SettleItem[] = [];
     let groups = 0;
     // Bottom first, as the settling needs them; a nest's holder before what it holds.
@@ -583,13 +582,10 @@ function* solve(
     }
     const t = now();
     // Timed, settling still going at the time limit stops; what it left is then not checked, so not taken.
-    const settled = settleLayout(instance, parts, items, { stopped: () => stop() || (timed && now() > deadline && (out.outOfTime = true)) });
+    const settled = settleLayout(instance, parts, items, { stopped: () => stop() || pastLimit() });
     settleMs = Math.max(settleMs, now() - t);
     // Stopped at the limit: what it left would not be checked, so it is not taken (nor turned over).
-    if (timed && now() > deadline) {
-      out.outOfTime = true;
-      return [];
-    }
+    if (pastLimit()) return [];
     // In the drop's own terms, so the search below can be compared with it.
     return settled.map((it) => ({ kind: it.part, profile: profileFor(kinds, it.part, it.rotation, cell, instance.spacing), position: it.position }));
   };
