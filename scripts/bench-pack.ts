@@ -27,6 +27,7 @@ import {
   createShapePacking,
   createRandom,
   generateShapeMix,
+  shapeLowerBound,
   shapeParts,
   validateShapeLayout,
   generatePowderBed,
@@ -194,6 +195,8 @@ function oursV2(instance: PackInstanceV2): { result: PackResultV2; firstLayoutMs
  * against the meshes (surface gaps, containment, lift-out order) by the validator, apart from the engine's run, and
  * again by manifold-3d (./lib/manifold-check.ts), which shares no code with it.
  * Density: the parts' mesh volume over the cake (usable base x height above the floor margin).
+ * Floor: the height under which no packing of the parts can end (the tallest part in its lowest turn, or their
+ * volume spread over the base; shapeLowerBound) over the box height: the least shape / box ratio reachable at all.
  */
 function shapeSection(): void {
   const rows: Array<Array<string | number>> = [];
@@ -210,6 +213,7 @@ function shapeSection(): void {
     const first: number[] = [];
     const boxH: number[] = [];
     const shapeH: number[] = [];
+    const floor: number[] = [];
     let invalid = 0;
     let invalidByReference = 0;
     let referenceMs = 0;
@@ -222,7 +226,10 @@ function shapeSection(): void {
       const instance = generateShapeMix({ parts: count, seed, chamber, fit: 'shape', timeLimitMs: ms });
       const byShape = oursV2(instance);
       longest = Math.max(longest, byShape.wallMs / ms);
-      if (validateShapeLayout(instance, byShape.result, shapeParts(instance)).length > 0) invalid++;
+      const parts = shapeParts(instance);
+      if (validateShapeLayout(instance, byShape.result, parts).length > 0) invalid++;
+      // No packing of these parts can end lower (../shared/packing/shape/bound.ts): over the box height, the least ratio any could reach.
+      floor.push(shapeLowerBound(instance, parts).height / byBox.result.height);
       // The same layout measured by a second implementation (manifold-3d), which shares no code with the validator.
       const t = performance.now();
       const faults = referenceFaults(instance, reference(instance, byShape.result));
@@ -246,6 +253,7 @@ function shapeSection(): void {
       `${mean(shapeH).toFixed(1)} mm`,
       mean(ratio).toFixed(3),
       Math.max(...ratio).toFixed(3),
+      `${mean(floor).toFixed(3)} / ${Math.max(...floor).toFixed(3)}`,
       `${pct(mean(boxDensity))} / ${pct(mean(shapeDensity))}`,
       `${(mean(first) / 1000).toFixed(1)} s / ${(Math.max(...first) / 1000).toFixed(1)} s`,
       `${(ms / 1000).toFixed(0)} s`,
@@ -257,7 +265,7 @@ function shapeSection(): void {
   console.log(`\n## Concave mixes by box and by shape (3 mm spacing, the same time for both; 300 x 300 x 380 chamber, 400 x 400 x 700 for 2,000 parts)\n`);
   console.log(
     table(
-      ['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'density box / shape', 'first shape layout mean / worst', 'time limit', 'longest run / limit', 'unplaced', 'invalid: validator / manifold-3d (its time)'],
+      ['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'floor / box mean / most', 'density box / shape', 'first shape layout mean / worst', 'time limit', 'longest run / limit', 'unplaced', 'invalid: validator / manifold-3d (its time)'],
       rows,
     ),
   );

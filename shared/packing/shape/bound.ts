@@ -1,0 +1,42 @@
+/**
+ * A floor under every packing by shape of a "pack-instance/2", measured like a
+ * result's height (from the chamber floor):
+ *
+ *   bottom + max( max_i min_{r allowed for i} z-extent of part i turned by r,
+ *                 sum_i q_i V_i / (Ux * Uy) )
+ *
+ * The first term: each part stands whole above the floor margin, in one of its
+ * allowed quarter turns, and a quarter turn's z-extent is one side of the
+ * part's bounding box. The second: placed meshes share no volume, so their
+ * enclosed volume fits in the usable base (Ux by Uy) times the height above
+ * the floor margin; the spacing only adds room. Both hold for any layout,
+ * whatever the packing, which the box bound (../bounds.ts lowerBound, on
+ * boxes grown by the spacing) does not.
+ */
+import { rotatedExtent } from '../../geometry/rotations';
+import { usableRegion } from '../geometry';
+import type { PackInstanceV2 } from '../types';
+import type { ShapePart } from './parts';
+
+export interface ShapeBound {
+  /** The floor, from the chamber floor (mm). */
+  height: number;
+  /** The part that stands tallest in its lowest allowed turn, and that height (mm, over the floor margin). */
+  tallest: { id: string; heightMm: number } | null;
+  /** The parts' volume spread over the usable base (mm, over the floor margin). */
+  byVolumeMm: number;
+}
+
+export function shapeLowerBound(instance: Pick<PackInstanceV2, 'chamber' | 'margin'>, parts: readonly ShapePart[]): ShapeBound {
+  const { extent } = usableRegion(instance);
+  let tallest: ShapeBound['tallest'] = null;
+  let volume = 0;
+  for (const part of parts) {
+    if (part.quantity <= 0 || part.rotations.length === 0) continue;
+    const lowest = Math.min(...part.rotations.map((r) => rotatedExtent(r, part.size)[2]));
+    if (!tallest || lowest > tallest.heightMm) tallest = { id: part.id, heightMm: lowest };
+    volume += part.quantity * part.volume;
+  }
+  const byVolumeMm = volume / (extent[0] * extent[1]);
+  return { height: instance.margin.bottom + Math.max(tallest?.heightMm ?? 0, byVolumeMm), tallest, byVolumeMm };
+}
