@@ -23,6 +23,7 @@ export function NumbersPane({
   bedAreaMm2,
   cutLayer,
   stackNote,
+  floorNote,
   note,
   partNames,
 }: {
@@ -32,6 +33,8 @@ export function NumbersPane({
   cutLayer: number | null;
   /** What the layer count is made of (floor margin, parts, top margin). */
   stackNote?: string;
+  /** The height no layout of the same parts can stand under, and what sets it. */
+  floorNote?: string;
   note?: string;
   /** A placement's part name by its id (the request line), for the cost per part. */
   partNames?: ReadonlyMap<string, string>;
@@ -67,6 +70,7 @@ export function NumbersPane({
         <Cell label="Not placed" value={String(n.unplaced)} testID="num-unplaced" tone={n.unplaced > 0 ? 'danger' : undefined} />
       </View>
       {stackNote ? <Text variant="caption" color="inkMuted" testID="num-layers-note">{stackNote}</Text> : null}
+      {floorNote ? <Text variant="caption" color="inkMuted" testID="num-floor">{floorNote}</Text> : null}
       {note ? <Text variant="caption" color="inkFaint">{note}</Text> : null}
       {n.cost ? <CostBreakdown cost={n.cost} total={n.totalCost} partNames={partNames} /> : null}
       <View style={{ gap: spacing.xs }}>

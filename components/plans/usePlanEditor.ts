@@ -77,6 +77,7 @@ import { useWorkingProfile } from './useWorkingProfile';
 import { useCalibrationQuery } from '../queries/runs';
 import { partQueryOptions } from '../queries/parts';
 import { shapeFilesOf } from './byShape';
+import { floorNote, layoutFloor } from './floor';
 import { layoutCalibration } from '../../shared/estimate/calibration';
 
 /** One arrow key press moves the marked parts this far (with Shift, 1 mm). */
@@ -554,12 +555,15 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
     live: running && showingWorking && !!working?.result,
     loading: !showingWorking && !!storedId && !stored.data,
   };
+  // What no layout of the shown parts can stand under (the instance's parts, as the layout was packed).
+  const floor = useMemo(() => (shownInstance ? layoutFloor(shownInstance, shownByShape, volumeOf) : null), [shownInstance, shownByShape, volumeOf]);
   const numbersPane = {
     numbers: shownNumbers,
     title: shownLabel,
     bedAreaMm2: (machine.chamberMm[0] - 2 * material.marginXyMm) * (machine.chamberMm[1] - 2 * material.marginXyMm),
     cutLayer: cutMm === null ? null : Math.round(cutMm / layerHeightMm),
     stackNote: shownResult ? stackNote(stack) : undefined,
+    floorNote: shownResult ? (floorNote(floor, shownResult, (id) => partNames.get(id), shownByShape) ?? undefined) : undefined,
     note: showingWorking ? 'Estimated here; the server estimates it again when the layout is kept.' : undefined,
     partNames,
   };

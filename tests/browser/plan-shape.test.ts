@@ -76,6 +76,13 @@ test('wide (1440 x 900): packed by shape, kept after the server checks the meshe
   await page.getByTestId('num-profile-source').getByText(/^From the parts' shapes/).waitFor({ timeout: 30_000 });
   // Beside them, what the same layout counted as boxes would read.
   await page.getByTestId('num-by-boxes').getByText(/^Counted as boxes, the same layout would (also )?read [\d.]+ h to print/).waitFor();
+  // Under them, the height no layout of these parts can stand under, what sets it, and how far this one stands over it.
+  const floorText = (await page.getByTestId('num-floor').textContent())!;
+  const floor = /^No layout of these parts can be lower than ([\d.]+) mm: .+ over the [\d.]+ mm floor margin\. This layout (stands ([\d.]+) mm over it|is as low as any can be)\.$/.exec(floorText);
+  expect(floor).not.toBeNull();
+  const used = Number(/^([\d.]+) mm$/.exec((await page.getByTestId('num-height').textContent())!)![1]);
+  expect(Number(floor![1])).toBeLessThanOrEqual(used + 0.05);
+  if (floor![3]) expect(Number(floor![1]) + Number(floor![3])).toBeCloseTo(used, 0);
   await screenshot(page, 'plan-editor-packed-by-shape-wide');
 
   await page.getByTestId('layout-keep').click();

@@ -27,16 +27,35 @@ export interface ShapeBound {
   byVolumeMm: number;
 }
 
-export function shapeLowerBound(instance: Pick<PackInstanceV2, 'chamber' | 'margin'>, parts: readonly ShapePart[]): ShapeBound {
+/** A part as the floor sees it: how tall it stands at its lowest allowed turn, and the room it fills. */
+export interface FloorPart {
+  id: string;
+  quantity: number;
+  /** Its height in the lowest turn it may take (mm). */
+  lowestMm: number;
+  /** The volume one copy fills for certain (mm^3): its mesh's, or for a part packed as its box, the box's. */
+  volumeMm3: number;
+}
+
+/** The floor of parts given by their lowest height and volume (see above). */
+export function packingFloor(instance: Pick<PackInstanceV2, 'chamber' | 'margin'>, parts: readonly FloorPart[]): ShapeBound {
   const { extent } = usableRegion(instance);
   let tallest: ShapeBound['tallest'] = null;
   let volume = 0;
   for (const part of parts) {
-    if (part.quantity <= 0 || part.rotations.length === 0) continue;
-    const lowest = Math.min(...part.rotations.map((r) => rotatedExtent(r, part.size)[2]));
-    if (!tallest || lowest > tallest.heightMm) tallest = { id: part.id, heightMm: lowest };
-    volume += part.quantity * part.volume;
+    if (part.quantity <= 0) continue;
+    if (!tallest || part.lowestMm > tallest.heightMm) tallest = { id: part.id, heightMm: part.lowestMm };
+    volume += part.quantity * part.volumeMm3;
   }
   const byVolumeMm = volume / (extent[0] * extent[1]);
   return { height: instance.margin.bottom + Math.max(tallest?.heightMm ?? 0, byVolumeMm), tallest, byVolumeMm };
+}
+
+export function shapeLowerBound(instance: Pick<PackInstanceV2, 'chamber' | 'margin'>, parts: readonly ShapePart[]): ShapeBound {
+  return packingFloor(
+    instance,
+    parts
+      .filter((p) => p.rotations.length > 0)
+      .map((p) => ({ id: p.id, quantity: p.quantity, lowestMm: Math.min(...p.rotations.map((r) => rotatedExtent(r, p.size)[2])), volumeMm3: p.volume })),
+  );
 }

@@ -2,7 +2,7 @@ export { transformTurn, validateShapeLayout } from './validate';
 export { createShapePacking, defaultCell, type ShapeOptions, type ShapePacking, type ShapePhase, type ShapeRunHooks } from './engine';
 export { createBoxFitPacking, boxInstance, fromBoxResult } from './boxfit';
 export { shapeParts, boxMesh, type ShapePart } from './parts';
-export { shapeLowerBound, type ShapeBound } from './bound';
+export { shapeLowerBound, packingFloor, type ShapeBound, type FloorPart } from './bound';
 export { areaProfile, type PlacedPart } from './area';
 export { buildBvh, PlacedBvh, surfaceDistance, blocksLift, containsPoint, type Bvh } from './bvh';
 export { columnProfile, type Profile } from './profile';
