@@ -8,7 +8,8 @@ import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { PlanHistory } from '../plans/PlanHistory';
 import { numbersFromEstimate } from '../plans/estimate';
 import { STATUS_TONES } from '../plans/format';
-import { buildStackOf, stackNote } from '../plans/editorModel';
+import { buildStackOf, isByShape, stackNote } from '../plans/editorModel';
+import { floorNote, layoutFloor } from '../plans/floor';
 import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
 import { useChamberMeshes } from '../plans/useChamberMeshes';
 import { useLayoutQuery, usePlanQuery } from '../queries/plans';
@@ -68,6 +69,13 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const partIdsInOrder = useMemo(() => plan.lines.map((l) => l.part.id), [plan.lines]);
   const chamberMeshes = useChamberMeshes(lab.id, partIdsInOrder, placements.partIndex);
   const numbers = useMemo(() => (layout.data ? numbersFromEstimate(layout.data.estimate, layout.data.result) : null), [layout.data]);
+  // The height no layout of the same parts can stand under, as the editor shows it (by shape: the parts' own volumes).
+  const floor = useMemo(() => {
+    if (!layout.data) return null;
+    const byShape = isByShape(layout.data.result);
+    const volumes = new Map(plan.lines.map((l) => [l.requestLineId, l.part.watertight ? l.part.volumeMm3 : undefined] as const));
+    return floorNote(layoutFloor(layout.data.instance, byShape, (id) => volumes.get(id)), layout.data.result, (id) => partNames.get(id), byShape);
+  }, [layout.data, plan.lines, partNames]);
   const [cutMm, setCutMm] = useState<number | null>(null);
   const calibration = (layout.data?.estimate as { calibration?: { runs: number; calibrated: boolean } } | undefined)?.calibration;
   const margin = layout.data?.instance.margin ?? { xy: 0, bottom: 0, top: 0 };
@@ -141,6 +149,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
         bedAreaMm2={chamberMm[0] * chamberMm[1]}
         cutLayer={cutMm == null ? null : Math.round(cutMm / layerHeightMm)}
         stackNote={layout.data ? stackNote(stack) : undefined}
+        floorNote={floor ?? undefined}
         note={calibrationNote(calibration)}
         partNames={partNames}
       />
