@@ -45,7 +45,10 @@ export function layoutFloor(input: PackInstanceInput, byShape: boolean, volumeOf
   return { heightMm, bottomMm, tallest: floor.tallest, byVolumeMm, byVolume: byVolumeMm > (floor.tallest?.heightMm ?? 0) + 1e-9 };
 }
 
-/** One line for the numbers: the floor, what sets it, and how far the shown layout stands over it (null with parts left out). */
+/**
+ * One line for the numbers: the floor, what sets it, and how far the shown layout stands over it (null with parts
+ * left out). By box it says so: by shape the same parts may nest lower than their boxes' floor.
+ */
 export function floorNote(floor: LayoutFloor | null, result: Pick<PackResult, 'height' | 'unplaced'>, nameOf: (id: string) => string | undefined, byShape: boolean): string | null {
   if (!floor || result.unplaced.some((u) => u.count > 0)) return null;
   const f = (v: number) => `${v.toFixed(1)} mm`;
@@ -56,5 +59,7 @@ export function floorNote(floor: LayoutFloor | null, result: Pick<PackResult, 'h
     : `${nameOf(floor.tallest!.id) ?? floor.tallest!.id} stands ${f(floor.tallest!.heightMm)} at its lowest that its orientation rule allows`;
   const over = result.height - floor.heightMm;
   const where = over < 0.05 ? 'This layout is as low as any can be.' : `This layout stands ${f(over)} over it.`;
-  return `No layout of these parts can be lower than ${f(floor.heightMm)}: ${why}, over the ${f(floor.bottomMm)} floor margin. ${where}`;
+  // By box the floor is the boxes' (a layout by shape of the same parts may nest under it).
+  const which = byShape ? 'No layout of these parts' : 'No layout of these parts by their boxes';
+  return `${which} can be lower than ${f(floor.heightMm)}: ${why}, over the ${f(floor.bottomMm)} floor margin. ${where}`;
 }

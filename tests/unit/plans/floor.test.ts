@@ -31,7 +31,7 @@ describe('layoutFloor and floorNote', () => {
     expect(floor.tallest).toEqual({ id: 'pin', heightMm: 50 });
     expect(floor.heightMm).toBeCloseTo(55, 9);
     expect(floorNote(floor, { height: 60, unplaced: [] }, nameOf, false)).toBe(
-      'No layout of these parts can be lower than 55.0 mm: Locating pin stands 50.0 mm at its lowest that its orientation rule allows, over the 5.0 mm floor margin. This layout stands 5.0 mm over it.',
+      'No layout of these parts by their boxes can be lower than 55.0 mm: Locating pin stands 50.0 mm at its lowest that its orientation rule allows, over the 5.0 mm floor margin. This layout stands 5.0 mm over it.',
     );
     expect(floorNote(floor, { height: 55.02, unplaced: [] }, nameOf, false)).toMatch(/This layout is as low as any can be\.$/);
     // With parts left out the floor says nothing about the layout.
@@ -52,7 +52,9 @@ describe('layoutFloor and floorNote', () => {
     const ball = (4 / 3) * Math.PI * 125;
     const byShape = layoutFloor(input, true, () => ball)!;
     expect(byShape.heightMm).toBeCloseTo(5 + (400 * ball) / 1e4, 9);
-    expect(floorNote(byShape, { height: 90, unplaced: [] }, nameOf, true)).toContain("the parts' own volume alone, spread over the bed, fills 20.9 mm");
+    expect(floorNote(byShape, { height: 90, unplaced: [] }, nameOf, true)).toBe(
+      "No layout of these parts can be lower than 25.9 mm: the parts' own volume alone, spread over the bed, fills 20.9 mm, over the 5.0 mm floor margin. This layout stands 64.1 mm over it.",
+    );
     // A part whose volume is not known (an open mesh, packed as its box) counts as its box.
     expect(layoutFloor(input, true, () => undefined)!.heightMm).toBeCloseTo(5 + 40, 9);
 
