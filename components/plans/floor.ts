@@ -58,7 +58,7 @@ export function floorNote(floor: LayoutFloor | null, result: Pick<PackResult, 'h
       : `the parts' boxes with the spacing, spread over the bed, fill ${f(floor.byVolumeMm)}`
     : `${nameOf(floor.tallest!.id) ?? floor.tallest!.id} stands ${f(floor.tallest!.heightMm)} at its lowest that its orientation rule allows`;
   const over = result.height - floor.heightMm;
-  const where = over < 0.05 ? 'This layout is as low as any can be.' : `This layout stands ${f(over)} over it.`;
+  const where = over < 0.05 ? `This layout is as low as any${byShape ? '' : ' by boxes'} can be.` : `This layout stands ${f(over)} over it.`;
   // By box the floor is the boxes' (a layout by shape of the same parts may nest under it).
   const which = byShape ? 'No layout of these parts' : 'No layout of these parts by their boxes';
   return `${which} can be lower than ${f(floor.heightMm)}: ${why}, over the ${f(floor.bottomMm)} floor margin. ${where}`;

@@ -51,6 +51,7 @@ export function packingFloor(instance: Pick<PackInstanceV2, 'chamber' | 'margin'
   return { height: instance.margin.bottom + Math.max(tallest?.heightMm ?? 0, byVolumeMm), tallest, byVolumeMm };
 }
 
+/** The floor of a version 2 instance's parts, their meshes measured (./parts.ts shapeParts). */
 export function shapeLowerBound(instance: Pick<PackInstanceV2, 'chamber' | 'margin'>, parts: readonly ShapePart[]): ShapeBound {
   return packingFloor(
     instance,

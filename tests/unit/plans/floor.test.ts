@@ -33,7 +33,8 @@ describe('layoutFloor and floorNote', () => {
     expect(floorNote(floor, { height: 60, unplaced: [] }, nameOf, false)).toBe(
       'No layout of these parts by their boxes can be lower than 55.0 mm: Locating pin stands 50.0 mm at its lowest that its orientation rule allows, over the 5.0 mm floor margin. This layout stands 5.0 mm over it.',
     );
-    expect(floorNote(floor, { height: 55.02, unplaced: [] }, nameOf, false)).toMatch(/This layout is as low as any can be\.$/);
+    expect(floorNote(floor, { height: 55.02, unplaced: [] }, nameOf, false)).toMatch(/This layout is as low as any by boxes can be\.$/);
+    expect(floorNote(floor, { height: 55.02, unplaced: [] }, nameOf, true)).toMatch(/^No layout of these parts can be lower .* This layout is as low as any can be\.$/);
     // With parts left out the floor says nothing about the layout.
     expect(floorNote(floor, { height: 30, unplaced: [{ id: 'pin', count: 1 }] }, nameOf, false)).toBeNull();
     // Allowed to lie down, the pin stands 10 mm: the floor is the 10 mm parts over the margin.
