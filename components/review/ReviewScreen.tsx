@@ -8,7 +8,7 @@ import { PlanPowderPanel } from '../powder/PlanPowderPanel';
 import { PlanHistory } from '../plans/PlanHistory';
 import { numbersFromEstimate } from '../plans/estimate';
 import { STATUS_TONES } from '../plans/format';
-import { buildStackOf, isByShape, stackNote } from '../plans/editorModel';
+import { buildStackOf, densityVolumeOf, isByShape, lineInfoOf, stackNote } from '../plans/editorModel';
 import { floorNote, layoutFloor } from '../plans/floor';
 import { EMPTY_PLACEMENTS, toChamberPlacements } from '../plans/instance';
 import { useChamberMeshes } from '../plans/useChamberMeshes';
@@ -73,8 +73,7 @@ function ReviewBody({ plan, back }: { plan: PlanView; back: React.ReactNode }) {
   const floor = useMemo(() => {
     if (!layout.data) return null;
     const byShape = isByShape(layout.data.result);
-    const volumes = new Map(plan.lines.map((l) => [l.requestLineId, l.part.watertight ? l.part.volumeMm3 : undefined] as const));
-    return floorNote(layoutFloor(layout.data.instance, byShape, (id) => volumes.get(id)), layout.data.result, (id) => partNames.get(id), byShape);
+    return floorNote(layoutFloor(layout.data.instance, byShape, densityVolumeOf(lineInfoOf(plan.lines, []))), layout.data.result, (id) => partNames.get(id), byShape);
   }, [layout.data, plan.lines, partNames]);
   const [cutMm, setCutMm] = useState<number | null>(null);
   const calibration = (layout.data?.estimate as { calibration?: { runs: number; calibrated: boolean } } | undefined)?.calibration;
