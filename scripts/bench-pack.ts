@@ -10,7 +10,7 @@
  *  - parts that stack (tapered cups, alone and in a concave mix) by box, by shape and by shape without stacks.
  * Options: --problems N (per BR set, default 10), --ms T (our time per instance, default 2000),
  * --slow (also binpackingjs on 2,000 parts: one fill takes minutes), --shapes (only the concave mixes),
- * --shape-ms T (time per concave mix and fit, default 10000), --seeds 4,5,6 (other concave mixes than seeds 1-3), --heavy (only the time limit with heavy meshes:
+ * --shape-ms T (time per concave mix and fit, default 10000), --seeds 4,5,6 (other concave mixes than seeds 1-3), --sizes 300,1000 (their part counts), --limit-ms T (one limit for every size), --heavy (only the time limit with heavy meshes:
  * two rings of a million triangles each and a housing, by shape at 2 s and 10 s; then many light parts at 2 s, by shape and by box), --stacks (only the parts that
  * stack: tapered cups alone and in a mix, by box, by shape, by shape without stacks).
  */
@@ -57,14 +57,20 @@ const STACKS_ONLY = process.argv.includes('--stacks');
 const SHAPE_MS = arg('shape-ms', 10_000);
 /** 2,000 parts by shape: the exact check of one layout alone takes seconds, so they get 4 times the time. */
 const SHAPE_MS_2000 = 4 * SHAPE_MS;
-/** --seeds 4,5,6: other concave mixes than the usual ones (seeds 1-3, and 1 for 2,000 parts), to see the figures hold on mixes the packing was not shaped on. */
-const SEEDS = (() => {
-  const i = process.argv.indexOf('--seeds');
+/** --limit-ms T: one time limit for every concave mix, whatever its size (the contract's default is 2,000 ms). */
+const LIMIT_MS = arg('limit-ms', NaN);
+/** A comma-separated list of whole numbers from 1 given as --name (null when not given). */
+const wholeList = (name: string, example: string): number[] | null => {
+  const i = process.argv.indexOf(`--${name}`);
   if (i < 0) return null;
-  const seeds = String(process.argv[i + 1] ?? '').split(',').map(Number);
-  if (seeds.length === 0 || seeds.some((x) => !Number.isInteger(x) || x < 1)) throw new Error('--seeds: whole numbers from 1, comma-separated (4,5,6)');
-  return seeds;
-})();
+  const list = String(process.argv[i + 1] ?? '').split(',').map(Number);
+  if (list.length === 0 || list.some((x) => !Number.isInteger(x) || x < 1)) throw new Error(`--${name}: whole numbers from 1, comma-separated (${example})`);
+  return list;
+};
+/** --sizes 300,1000: the concave mixes' part counts (default 100, 300, 500 and 2,000); above 500 parts, the larger chamber. */
+const SIZES = wholeList('sizes', '300,1000');
+/** --seeds 4,5,6: other concave mixes than the usual ones (seeds 1-3, and 1 for 2,000 parts), to see the figures hold on mixes the packing was not shaped on. */
+const SEEDS = wholeList('seeds', '4,5,6');
 
 let peakRss = 0;
 let peakHeap = 0;
@@ -208,12 +214,8 @@ function oursV2(instance: PackInstanceV2): { result: PackResultV2; firstLayoutMs
  */
 function shapeSection(): void {
   const rows: Array<Array<string | number>> = [];
-  const runs: Array<[number, number[]]> = [
-    [100, SEEDS ?? [1, 2, 3]],
-    [300, SEEDS ?? [1, 2, 3]],
-    [500, SEEDS ?? [1, 2, 3]],
-    [2000, SEEDS ? [SEEDS[0]] : [1]],
-  ];
+  // 2,000 parts and more: one mix (the first seed).
+  const runs: Array<[number, number[]]> = (SIZES ?? [100, 300, 500, 2000]).map((n) => [n, n >= 2000 ? [SEEDS?.[0] ?? 1] : (SEEDS ?? [1, 2, 3])]);
   for (const [count, seeds] of runs) {
     const ratio: number[] = [];
     const boxDensity: number[] = [];
@@ -226,7 +228,7 @@ function shapeSection(): void {
     let invalidByReference = 0;
     let referenceMs = 0;
     let unplaced = 0;
-    const ms = count > 500 ? SHAPE_MS_2000 : SHAPE_MS;
+    const ms = Number.isFinite(LIMIT_MS) ? LIMIT_MS : count > 500 ? SHAPE_MS_2000 : SHAPE_MS;
     let longest = 0;
     for (const seed of seeds) {
       const chamber: [number, number, number] = count > 500 ? [400, 400, 700] : [300, 300, 380];
@@ -264,13 +266,13 @@ function shapeSection(): void {
       `${mean(floor).toFixed(3)} / ${Math.max(...floor).toFixed(3)}`,
       `${pct(mean(boxDensity))} / ${pct(mean(shapeDensity))}`,
       `${(mean(first) / 1000).toFixed(1)} s / ${(Math.max(...first) / 1000).toFixed(1)} s`,
-      `${(ms / 1000).toFixed(0)} s`,
+      `${+(ms / 1000).toFixed(1)} s`,
       longest.toFixed(2),
       unplaced,
       `${invalid} / ${invalidByReference} (${(referenceMs / 1000).toFixed(0)} s)`,
     ]);
   }
-  console.log(`\n## Concave mixes by box and by shape (3 mm spacing, the same time for both; 300 x 300 x 380 chamber, 400 x 400 x 700 for 2,000 parts${SEEDS ? `; mixes of seeds ${SEEDS.join(', ')}` : ''})\n`);
+  console.log(`\n## Concave mixes by box and by shape (3 mm spacing, the same time for both; 300 x 300 x 380 chamber, 400 x 400 x 700 for more than 500 parts${SEEDS ? `; mixes of seeds ${SEEDS.join(', ')}` : ''})\n`);
   console.log(
     table(
       ['parts', 'seeds', 'box height', 'shape height', 'shape / box mean', 'worst', 'floor / box mean / most', 'density box / shape', 'first shape layout mean / worst', 'time limit', 'longest run / limit', 'unplaced', 'invalid: validator / manifold-3d (its time)'],
