@@ -221,7 +221,10 @@ function checkGapsAndLift(
       bad(`placements[${placed[later].at}]`, `cannot be lifted straight up: placements[${placed[earlier].at}], listed before it, is above it`);
     }
   };
+  /** A pair's distance search was stopped (see gapCheck): the layout is not all checked. */
+  let halted = false;
   const gapCheck = (i: number, j: number) => {
+    if (halted) return;
     const A = placed[i].placed, B = placed[j].placed;
     let boxGap2 = 0;
     for (let a = 0; a < 3; a++) {
@@ -234,7 +237,15 @@ function checkGapsAndLift(
     if (g > tol ? Math.sqrt(boxGap2) >= g - tol : !overlap) return;
     const key = relation(placed[i], placed[j]);
     let gap = gaps.get(key);
-    if (gap === undefined) gaps.set(key, (gap = pairGap(A, B, g, tol)));
+    if (gap === undefined) {
+      // Two finely tessellated meshes nested within the spacing can take seconds: the stop is asked on the way too.
+      gap = pairGap(A, B, g, tol, stopped);
+      if (typeof gap === 'number' && Number.isNaN(gap)) {
+        halted = true;
+        return;
+      }
+      gaps.set(key, gap);
+    }
     let problem: string | null = null;
     if (gap === 'inside') problem = 'lies inside (or holds inside it)';
     else if (gap !== null) problem = `is only ${gap.toFixed(6)} mm from`;
@@ -244,7 +255,7 @@ function checkGapsAndLift(
     }
   };
   for (let i = 0; i < n; i++) {
-    if (i % 32 === 31 && stopped()) return false;
+    if (halted || (i % 32 === 31 && stopped())) return false;
     const A = placed[i].placed;
     range[0] = cellOf(A.min[0] - g, 0);
     range[1] = cellOf(A.min[1] - g, 1);
@@ -278,6 +289,7 @@ function checkGapsAndLift(
         before.splice(lo, 0, i);
       }
   }
+  if (halted) return false;
   if (gapTotal > maxReports) bad('placements', `${gapTotal - maxReports} more pairs are closer than the spacing`);
   if (liftTotal > maxReports) bad('placements', `${liftTotal - maxReports} more parts are blocked on their way up`);
   return true;
@@ -287,9 +299,13 @@ function checkGapsAndLift(
  * What keeps two placed meshes from being the spacing `g` apart: their surface distance when it is less, "inside"
  * when one lies inside the other, null when they are apart (with no spacing, surfaces that only touch are apart).
  */
-export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number): number | 'inside' | null {
+export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number): number | 'inside' | null;
+/** With `halt` (asked as surfaceDistance asks it): NaN when it stopped the search, the answer unknown. */
+export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number, halt: () => boolean): number | 'inside' | null;
+export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number, halt?: () => boolean): number | 'inside' | null {
   const need = g > tol ? g : 2 * tol;
-  const d = surfaceDistance(A, B, need, need - tol);
+  const d = surfaceDistance(A, B, need, need - tol, halt);
+  if (Number.isNaN(d)) return d;
   if (d < need - tol) return d;
   return inside(A, B) || inside(B, A) ? 'inside' : null;
 }

@@ -89,6 +89,27 @@ describe('shape validator against the meshes', () => {
     expect(validateShapeLayout(inst, r, undefined, { stopped: () => true })).toEqual([{ field: 'placements', message: 'were not all checked: the check was stopped' }]);
   });
 
+  test('a stop asked while one pair of finely tessellated meshes is measured ends the check there', () => {
+    // A ring of 10,000 triangles lying in the hole of a larger one, about 3.2 mm from it all round (spacing 3): the
+    // facing circles are within the spacing's reach everywhere, so measuring that one pair visits thousands of pairs
+    // of tree leaves (the stop is asked every 256). Two placements never reach the polls between placements: only
+    // the measuring itself can stop the check.
+    const inst = instance(
+      [
+        { id: 'large', mesh: torus(20, 5, 100, 50), quantity: 1 },
+        { id: 'small', mesh: torus(8.8, 3, 100, 50), quantity: 1 },
+      ],
+      3,
+    );
+    const r = layout(inst, [['large', 0, [10, 10, 0]], ['small', 0, [23.2, 23.2, 2]]]);
+    let asked = 0;
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => (asked++, false) })).toEqual([]);
+    expect(asked).toBeGreaterThan(10);
+    asked = 0;
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => (asked++, true) })).toEqual([{ field: 'placements', message: 'were not all checked: the check was stopped' }]);
+    expect(asked).toBe(1);
+  });
+
   test('lift-out order: a cube above another must be listed after it', () => {
     const inst = instance([{ id: 'cube', mesh: box(4, 4, 4), quantity: 2 }], 1);
     const up = layout(inst, [['cube', 0, [10, 10, 0]], ['cube', 0, [11, 11, 6]]]);
