@@ -155,6 +155,9 @@ interface ProfileBudget {
   turnsBy: number;
 }
 
+/** Parts of at most this many triangles are light: nested within the spacing of each other, they check about as fast as apart (see solve). */
+const LIGHT_MESH = 20_000;
+
 /** Triangles of a part's mesh (its box's 12 when it has none). */
 function triangles(part: ShapePart): number {
   return part.mesh.indices.length / 3;
@@ -469,13 +472,17 @@ function* solve(
   // Time: each stage after the first layout gets what is left of the limit less what finishing it costs (settling
   // its layout and the exact check), as measured on the way; a layout with nests, whose parts lie within the
   // spacing of many others, takes longer to check than one without, so until one has been checked its check is
-  // reckoned at twice the other's (the check of repeated pairs done once, nested layouts of the benchmark's
-  // mixes took 0.4 to 1.5 times as long as the plain one's at 300 to 2,000 parts; before it, 6 to 9 times). With a
-  // cap on the runs (reproducible tests) the stages run as capped, whatever the clock. 3 % of the limit is kept
-  // in hand for what the estimates miss.
+  // reckoned at a multiple of the other's: twice for light meshes (the check of repeated pairs done once, nested
+  // layouts of the benchmark's mixes took 0.4 to 1.5 times as long as the plain one's at 300 to 2,000 parts),
+  // else 8 times. The exact distances between two meshes nested within the spacing grow with their triangles:
+  // 30 parts (rings of 10,000 triangles in an open housing) took 0.13 s to check nested; with rings of 40,000,
+  // 160,000 and 1,000,000 triangles, 0.44, 1.6 and 9.7 s, against 0.06 s for the last kept apart. With a cap on
+  // the runs (reproducible tests) the stages run as capped, whatever the clock. 3 % of the limit is kept in hand
+  // for what the estimates miss.
+  const light = parts.every((p) => p.quantity === 0 || triangles(p) <= LIGHT_MESH);
   const checkMs = { plain: 0, nested: 0 };
   let settleMs = 0;
-  const checkCost = (nested: boolean) => (nested ? checkMs.nested || 2 * checkMs.plain : checkMs.plain);
+  const checkCost = (nested: boolean) => (nested ? checkMs.nested || (light ? 2 : 8) * checkMs.plain : checkMs.plain);
   /** The nests' layout before the boxes' first layout is settled and checked (see settledBoxes). */
   let nestsFirst = false;
   /** Time left for a stage whose layout (with nests or not) still has to be settled and checked. */
@@ -556,7 +563,9 @@ function* solve(
       // where the parts' own boxes are searched (few parts, little to hold); where time was too short for anything
       // more, it is handed out as it stands, said so (finish, below). Until measured, settling and checking are
       // each reckoned to take what this layout took (they took 1 to 4 times as long in the benchmark's mixes).
-      if (kinds.some((k) => k.fits && k.part.quantity > 0 && hollowShare(k.profiles[0], cell) >= MIN_HOLLOW)) {
+      // Heavier meshes keep the other order: their nests can take seconds to check (above), this layout's settled
+      // copy far less.
+      if (light && kinds.some((k) => k.fits && k.part.quantity > 0 && hollowShare(k.profiles[0], cell) >= MIN_HOLLOW)) {
         nestsFirst = out.outOfTime = true;
         settleMs = checkMs.plain = now() - boxStart;
         return [];
