@@ -298,10 +298,8 @@ function checkGapsAndLift(
 /**
  * What keeps two placed meshes from being the spacing `g` apart: their surface distance when it is less, "inside"
  * when one lies inside the other, null when they are apart (with no spacing, surfaces that only touch are apart).
+ * With `halt` (asked as surfaceDistance asks it): NaN when it stopped the search, the answer unknown.
  */
-export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number): number | 'inside' | null;
-/** With `halt` (asked as surfaceDistance asks it): NaN when it stopped the search, the answer unknown. */
-export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number, halt: () => boolean): number | 'inside' | null;
 export function pairGap(A: PlacedBvh, B: PlacedBvh, g: number, tol: number, halt?: () => boolean): number | 'inside' | null {
   const need = g > tol ? g : 2 * tol;
   const d = surfaceDistance(A, B, need, need - tol, halt);
