@@ -895,7 +895,8 @@ export function createShapePacking(instance: PackInstanceV2, options: ShapeOptio
     };
     const best = out.best ?? boxes();
     const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
-    if (best === out.unsettled && out.outOfTime) {
+    // Stopped by the caller (the planner's stop), the limit is not why the boxes' layout stands: nothing is said.
+    if (best === out.unsettled && out.outOfTime && !hooks.shouldStop?.()) {
       const placed = best.placements.length.toLocaleString('en-US');
       result.warnings = [
         ...(best.warnings ?? []),
