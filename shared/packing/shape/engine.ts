@@ -36,7 +36,7 @@ import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
 import { columnProfile, type Profile } from './profile';
 import { validateShapeLayout } from './validate';
-import { bestPair, buildNests, hollowShare, lidsMayHold, MIN_HOLLOW, type Nest } from './nest';
+import { bestPair, buildNests, isHolder, lidsMayHold, type Nest } from './nest';
 import { meshShapeSeconds } from './prepTime';
 import { copiesPerStack, foreseenHeight, stacksOf, stackTurn, type StackTurn } from './stack';
 
@@ -565,7 +565,7 @@ function* solve(
       // each reckoned to take what this layout took (they took 1 to 4 times as long in the benchmark's mixes).
       // Heavier meshes keep the other order: their nests can take seconds to check (above), this layout's settled
       // copy far less.
-      if (light && kinds.some((k) => k.fits && k.part.quantity > 0 && hollowShare(k.profiles[0], cell) >= MIN_HOLLOW)) {
+      if (light && kinds.some((k) => k.fits && k.part.quantity > 0 && isHolder(k.profiles[0], cell))) {
         nestsFirst = out.outOfTime = true;
         settleMs = checkMs.plain = now() - boxStart;
         return [];

@@ -60,6 +60,11 @@ export function hollowShare(p: Profile, cell: number): number {
   return (room * cell * cell) / Math.max(1e-9, p.extent[0] * p.extent[1] * p.extent[2]);
 }
 
+/** Whether a part in this turn holds others (buildNests fills it): at least `minHollow` of its box is room under its top. */
+export function isHolder(p: Profile, cell: number, minHollow = MIN_HOLLOW): boolean {
+  return hollowShare(p, cell) >= minHollow;
+}
+
 /** A kind whose copies fit the holder's plan in some turn, but in none under its rim. */
 function tooTallFor(holder: Profile, kind: NestKind): boolean {
   const turns = kind.inside ?? kind.profiles;
@@ -73,7 +78,7 @@ function tooTallFor(holder: Profile, kind: NestKind): boolean {
  */
 export function lidsMayHold(kinds: readonly NestKind[], cell: number, minHollow = MIN_HOLLOW): boolean {
   return kinds.some(
-    (k, h) => k.quantity >= 2 && !!k.flip && k.profiles.length > 0 && hollowShare(k.profiles[0], cell) >= minHollow && kinds.some((o, j) => j !== h && o.quantity > 0 && o.profiles.length > 0 && tooTallFor(k.profiles[0], o)),
+    (k, h) => k.quantity >= 2 && !!k.flip && k.profiles.length > 0 && isHolder(k.profiles[0], cell, minHollow) && kinds.some((o, j) => j !== h && o.quantity > 0 && o.profiles.length > 0 && tooTallFor(k.profiles[0], o)),
   );
 }
 
@@ -125,7 +130,7 @@ export function buildNests(
   const volume = (p: Profile) => p.extent[0] * p.extent[1] * p.extent[2];
   const holders = kinds
     .map((k, i) => i)
-    .filter((i) => left[i] > 0 && hollowShare(kinds[i].profiles[0], cell) >= minHollow)
+    .filter((i) => left[i] > 0 && isHolder(kinds[i].profiles[0], cell, minHollow))
     .sort((a, b) => volume(kinds[b].profiles[0]) - volume(kinds[a].profiles[0]) || a - b);
   // Contents largest first: the small ones then fill what the large leave.
   const byCost = kinds
@@ -183,7 +188,7 @@ export function buildNests(
   // Holder kinds a lid did not pay for once are not tried with one again.
   const noLid = new Set<number>();
   for (const h of holders) {
-    const up = ways > 1 ? kinds[h].profiles.filter((p) => hollowShare(p, cell) >= minHollow).slice(0, ways) : [kinds[h].profiles[0]];
+    const up = ways > 1 ? kinds[h].profiles.filter((p) => isHolder(p, cell, minHollow)).slice(0, ways) : [kinds[h].profiles[0]];
     /**
      * The last copy worked out: the copies left before it, what each fill tried took, and the nest kept. Copies
      * of one holder often come out alike, and filling one costs many drops. The next copy comes out the same, and

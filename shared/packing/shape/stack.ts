@@ -27,7 +27,7 @@
 import { TOLERANCE_MM } from '../geometry';
 import { blocksLift, PlacedBvh, surfaceDistance } from './bvh';
 import { drop, gridOf } from './grid';
-import { hollowShare, MIN_HOLLOW, nestProfile, type Nest } from './nest';
+import { isHolder, nestProfile, type Nest } from './nest';
 import type { ShapePart } from './parts';
 import type { Profile } from './profile';
 import { pairGap } from './validate';
@@ -46,7 +46,7 @@ function gridPitch(p: Profile, cell: number, spacing: number): number {
 
 /** Whether a turn may stack: the grid sinks a copy into another, or the turn is open upwards (stackPitch). */
 function worthALook(p: Profile, grid: number, cell: number, spacing: number): boolean {
-  return grid < p.extent[2] + spacing - 1e-9 || hollowShare(p, cell) >= MIN_HOLLOW;
+  return grid < p.extent[2] + spacing - 1e-9 || isHolder(p, cell);
 }
 
 /**
