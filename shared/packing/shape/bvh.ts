@@ -311,12 +311,18 @@ export function surfaceDistance(A: PlacedBvh, B: PlacedBvh, cap: number, stopBel
  * Would lifting A straight up (+z) run into B? True when somewhere B's
  * material lies above A's over a patch of positive area in plan view (more
  * than `tol` higher). Parts that only slide past each other's sides do not block.
+ * With `halt` (asked every 1,024 pairs of tree nodes): null when it stopped the
+ * search, the answer unknown. Two finely tessellated cones nested in each other
+ * (a stack of cups) keep most pairs of leaves overlapping in plan: 80,000
+ * triangles a cup took 31 s.
  */
-export function blocksLift(A: PlacedBvh, B: PlacedBvh, tol: number): boolean {
+export function blocksLift(A: PlacedBvh, B: PlacedBvh, tol: number, halt?: () => boolean): boolean | null {
+  let visits = 0;
   const amn = new Float64Array(3), amx = new Float64Array(3), bmn = new Float64Array(3), bmx = new Float64Array(3);
   const ta = new Float64Array(9), tb = new Float64Array(9);
   const stack: number[] = [0, 0];
   while (stack.length > 0) {
+    if (halt && (++visits & 1023) === 0 && halt()) return null;
     const nb = stack.pop()!;
     const na = stack.pop()!;
     A.nodeBox(na, amn, amx);

@@ -88,8 +88,16 @@ export function stackPitch(part: ShapePart, p: Profile, cell: number, spacing: n
     const d = surfaceDistance(low, up, need + 1, need / 2, halt) - need;
     if (!(d >= 0)) return d;
     // Two copies of one shape, one shifted, cannot lie one in the other: no test for it.
-    if (span > z && blocksLift(up, low, TOLERANCE_MM)) return -TOLERANCE_MM;
-    for (let k = 2; (k - 1) * z < full; k++) if (pairGap(low, at(k * z), need, TOLERANCE_MM) !== null) return -TOLERANCE_MM;
+    if (span > z) {
+      const blocked = blocksLift(up, low, TOLERANCE_MM, halt);
+      if (blocked === null) return NaN;
+      if (blocked) return -TOLERANCE_MM;
+    }
+    for (let k = 2; (k - 1) * z < full; k++) {
+      const gap = pairGap(low, at(k * z), need, TOLERANCE_MM, halt);
+      if (typeof gap === 'number' && Number.isNaN(gap)) return NaN;
+      if (gap !== null) return -TOLERANCE_MM;
+    }
     return d;
   };
   // Regula falsi (the Illinois variant) on the margin, between z = 0 (a copy in itself) and the grid's pitch: on

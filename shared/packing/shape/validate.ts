@@ -204,25 +204,34 @@ function checkGapsAndLift(
     const ta = a.placed.t, tb = b.placed.t;
     return `${a.part.index}:${a.rotation}:${b.part.index}:${b.rotation}:${tb[0] - ta[0]}:${tb[1] - ta[1]}:${tb[2] - ta[2]}`;
   };
+  /** A pair's lift or distance search was stopped (see liftCheck, gapCheck): the layout is not all checked. */
+  let halted = false;
   const lifts = new Map<string, boolean>();
   const gaps = new Map<string, number | 'inside' | null>();
   // Lift-out: `earlier`, listed before `later`, must not block its way up.
   const liftCheck = (later: number, earlier: number) => {
+    if (halted) return;
     // Nothing of a part wholly below the other's bottom, or beside it in plan, is in its way up (blocksLift's own
     // first test, before the pair's key is made: a column of parts stacked high shares its plan cells with each).
     const A = placed[later].placed, B = placed[earlier].placed;
     if (B.max[2] <= A.min[2] + tol || B.min[0] >= A.max[0] - tol || A.min[0] >= B.max[0] - tol || B.min[1] >= A.max[1] - tol || A.min[1] >= B.max[1] - tol) return;
     const key = relation(placed[later], placed[earlier]);
     let blocked = lifts.get(key);
-    if (blocked === undefined) lifts.set(key, (blocked = blocksLift(placed[later].placed, placed[earlier].placed, tol)));
+    if (blocked === undefined) {
+      // As slow as the distances for finely tessellated meshes nested in each other: the stop is asked on the way.
+      const answer = blocksLift(placed[later].placed, placed[earlier].placed, tol, stopped);
+      if (answer === null) {
+        halted = true;
+        return;
+      }
+      lifts.set(key, (blocked = answer));
+    }
     if (!blocked) return;
     liftTotal++;
     if (liftReports++ < maxReports) {
       bad(`placements[${placed[later].at}]`, `cannot be lifted straight up: placements[${placed[earlier].at}], listed before it, is above it`);
     }
   };
-  /** A pair's distance search was stopped (see gapCheck): the layout is not all checked. */
-  let halted = false;
   const gapCheck = (i: number, j: number) => {
     if (halted) return;
     const A = placed[i].placed, B = placed[j].placed;

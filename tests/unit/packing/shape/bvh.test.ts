@@ -1,5 +1,5 @@
 import { taperedCup } from '@/shared/geometry/generate';
-import { buildBvh, PlacedBvh, surfaceDistance } from '@/shared/packing/shape/bvh';
+import { blocksLift, buildBvh, PlacedBvh, surfaceDistance } from '@/shared/packing/shape/bvh';
 
 /**
  * Two copies of a tapered cup, one straight over the other, are closest between the lower cup's inner wall and
@@ -31,6 +31,32 @@ describe('surface distance of copies nested in each other', () => {
     let asked = 0;
     const d = surfaceDistance(low, new PlacedBvh(cup, 0, [0, 0, 12]), 10, -Infinity, () => ++asked >= 2);
     expect(d).toBeNaN();
+    expect(asked).toBe(2);
+  });
+});
+
+/**
+ * The straight lift of the same nested copies: the upper cup, 12 mm over the lower (clear of it by the walls'
+ * distance above), comes straight up out of it; the lower cannot come up through the upper. A cone tessellated into
+ * long thin triangles keeps most pairs of tree leaves overlapping in plan (each triangle's box spans its whole run
+ * from foot to rim), so the search is long for fine cups and must stop when told to.
+ */
+describe('lift-out of copies nested in each other', () => {
+  const cup = buildBvh(taperedCup({ bottomRadiusMm: 16, topRadiusMm: 26, heightMm: 20, wallMm: 2, floorMm: 2.5, segments: 512 }));
+  const low = new PlacedBvh(cup, 0, [0, 0, 0]);
+  const up = new PlacedBvh(cup, 0, [0, 0, 12]);
+
+  it('lets the upper copy out and keeps the lower one under it', () => {
+    expect(blocksLift(up, low, 1e-6)).toBe(false);
+    expect(blocksLift(low, up, 1e-6)).toBe(true);
+  });
+
+  it('asks on the way whether to stop, and when told to, gives up and says so (null)', () => {
+    let asked = 0;
+    expect(blocksLift(up, low, 1e-6, () => (asked++, false))).toBe(false);
+    expect(asked).toBeGreaterThan(2);
+    asked = 0;
+    expect(blocksLift(up, low, 1e-6, () => ++asked >= 2)).toBeNull();
     expect(asked).toBe(2);
   });
 });

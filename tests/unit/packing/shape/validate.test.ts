@@ -1,4 +1,8 @@
 import { readModelXml, mergeMeshes, torus } from '@/shared/geometry';
+import { taperedCup } from '@/shared/geometry/generate';
+import { TOLERANCE_MM } from '@/shared/packing/geometry';
+import { buildBvh, PlacedBvh } from '@/shared/packing/shape/bvh';
+import { pairGap } from '@/shared/packing/shape/validate';
 import { decodeText } from '@/shared/geometry/text';
 import {
   summariseShapeLayout,
@@ -87,6 +91,26 @@ describe('shape validator against the meshes', () => {
     const r = layout(inst, grid);
     expect(validateShapeLayout(inst, r, undefined, { stopped: () => false })).toEqual([]);
     expect(validateShapeLayout(inst, r, undefined, { stopped: () => true })).toEqual([{ field: 'placements', message: 'were not all checked: the check was stopped' }]);
+  });
+
+  test('the lift-out of one pair of finely tessellated meshes asks the stop too, and told to stop, the check ends there', () => {
+    // A cup of 512 sides (4,096 triangles) stacked in a copy of itself, 12 mm over it: its outer wall 3.58 mm from
+    // the lower one's inner wall (spacing 3), so the pair is valid. Whether the lower one is in the upper one's way
+    // up is a long search (the walls' long thin triangles overlap in plan); the stop is asked in it as well as in
+    // the distance's: more often than the distance alone asks it.
+    const mesh = taperedCup({ bottomRadiusMm: 16, topRadiusMm: 26, heightMm: 20, wallMm: 2, floorMm: 2.5, segments: 512 });
+    const inst = instance([{ id: 'cup', mesh, quantity: 2 }], 3);
+    const r = layout(inst, [['cup', 0, [10, 10, 0]], ['cup', 0, [10, 10, 12]]]);
+    let asked = 0;
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => (asked++, false) })).toEqual([]);
+    // The distance alone, on the same two placements (the cup's own box starts at (-26, -26, 0)).
+    const tree = buildBvh(mesh);
+    let gapAsked = 0;
+    expect(pairGap(new PlacedBvh(tree, 0, [36, 36, 0]), new PlacedBvh(tree, 0, [36, 36, 12]), 3, TOLERANCE_MM, () => (gapAsked++, false))).toBeNull();
+    expect(asked).toBeGreaterThan(gapAsked + 2);
+    asked = 0;
+    expect(validateShapeLayout(inst, r, undefined, { stopped: () => (asked++, true) })).toEqual([{ field: 'placements', message: 'were not all checked: the check was stopped' }]);
+    expect(asked).toBe(1);
   });
 
   test('a stop asked while one pair of finely tessellated meshes is measured ends the check there', () => {
