@@ -157,6 +157,12 @@ interface ProfileBudget {
 
 /** Parts of at most this many triangles are light: nested within the spacing of each other, they check about as fast as apart (see solve). */
 const LIGHT_MESH = 20_000;
+/**
+ * With at least this many placements, the box engine's first layout stands for settling's and the check's cost
+ * well enough to give up their stages for a longer box search (see solve). With a few, what that layout took is
+ * mostly the clock's noise (a busy machine: 0.1 s for five parts, whose settling and check take milliseconds).
+ */
+const MANY_PLACEMENTS = 1000;
 
 /** Triangles of a part's mesh (its box's 12 when it has none). */
 function triangles(part: ShapePart): number {
@@ -787,7 +793,7 @@ function* solve(
     // layout 636.1 mm; its boxes searched 0.27 s and settled, 635.7 mm; the nests' layout, 630.1 mm once and
     // otherwise not checked in time; the parts' boxes searched 0.6 s (the packing by box's own), 625.6 mm.
     let rest: number | null = null;
-    if (timed && out.unsettled && out.best === out.unsettled && !stop()) {
+    if (timed && out.unsettled && out.best === out.unsettled && bestPlacedCount >= MANY_PLACEMENTS && !stop()) {
       const left = deadline - now() - turnMs - 0.03 * instance.timeLimitMs;
       if (left > 0 && leftFor(nests.length > 0) < left / 2) rest = Math.round(left);
     }
