@@ -523,6 +523,19 @@ function* solve(
     hooks.onProgress?.(phase, share(), result);
   };
   const heightOf = (placed: Placed[]) => placed.reduce((h, p) => Math.max(h, p.position[2] + p.profile.extent[2]), 0);
+  /** A box engine's layout as version 2 placements, as it stands (unsettled; boxes the spacing apart need no check). */
+  const unsettledOf = (boxes: PackResult): PackResultV2 => {
+    const result = fromBoxResult(instance, parts, boxes);
+    if (warnings.length > 0) result.warnings = [...warnings];
+    return result;
+  };
+  /** Hands out a layout as it stands: the answer until one settled and checked comes (or, at the end, said so). */
+  const handOutUnsettled = (result: PackResultV2) => {
+    out.best = out.unsettled = result;
+    bestHeight = result.height;
+    bestPlacedCount = result.placements.length;
+    hooks.onProgress?.(phase, share(), result);
+  };
 
   // The boxes' layout, settled by shape: never taller than the boxes'. First the box engine's first layout
   // (a layout to show at once), later its search for a share of the time, with the top brought down after.
@@ -560,13 +573,9 @@ function* solve(
       // (./boxfit.ts), so it needs no check. With many thousands of parts, settling and checking them can take
       // longer than the limit (185,556 cubes: 9 s and 3 s), and then it is the layout (said so at the end).
       const turning = now();
-      const unsettled = fromBoxResult(instance, parts, boxes);
+      const unsettled = unsettledOf(boxes);
       turnMs = now() - turning;
-      if (warnings.length > 0) unsettled.warnings = [...warnings];
-      out.best = out.unsettled = unsettled;
-      bestHeight = unsettled.height;
-      bestPlacedCount = unsettled.placements.length;
-      hooks.onProgress?.(phase, share(), unsettled);
+      handOutUnsettled(unsettled);
       // Where some part has a hollow, the nests' layout comes next, before this one is settled and checked: the
       // nests bring such a mix far lower (1,000 parts at 2 s: 211 to 237 mm against 281 to 316 mm), and settling
       // the boxes' layout rarely does (2,000 parts: 636.1 mm, settled 635.7 mm) but takes as long as settling and
@@ -800,14 +809,8 @@ function* solve(
     }
     if (rest !== null) {
       const boxes = yield* boxSearch(unitBoxes(null, rest), { now, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
-      const searchedBoxes = fromBoxResult(instance, parts, boxes);
-      if (searchedBoxes.placements.length >= bestPlacedCount && searchedBoxes.height < bestHeight - 1e-9) {
-        if (warnings.length > 0) searchedBoxes.warnings = [...warnings];
-        out.best = out.unsettled = searchedBoxes;
-        bestHeight = searchedBoxes.height;
-        bestPlacedCount = searchedBoxes.placements.length;
-        hooks.onProgress?.(phase, share(), searchedBoxes);
-      }
+      const searchedBoxes = unsettledOf(boxes);
+      if (searchedBoxes.placements.length >= bestPlacedCount && searchedBoxes.height < bestHeight - 1e-9) handOutUnsettled(searchedBoxes);
       // Handed out as it stands: the limit is why (finish says so).
       out.outOfTime = true;
     }
