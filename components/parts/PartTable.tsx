@@ -168,7 +168,7 @@ function NameAndBadges({ part }: { part: Part }) {
       {part.tags.length > 0 || part.warnings.length > 0 ? (
         <View style={styles.badges}>
           {part.warnings.map((w) => (
-            <Badge key={w.code} label={warningLabel(w.code)} tone={w.code === 'thin' || w.code === 'maybe-wrong-unit-small' ? 'amber' : 'danger'} />
+            <Badge key={w.code} label={warningLabel(w.code)} tone={w.code === 'empty-facets' ? 'neutral' : w.code === 'thin' || w.code === 'maybe-wrong-unit-small' ? 'amber' : 'danger'} />
           ))}
           {part.tags.map((t) => (
             <Badge key={t} label={t} />

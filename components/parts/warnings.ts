@@ -10,6 +10,7 @@ export const WARNING_LABELS: Record<string, string> = {
   'maybe-wrong-unit-small': 'Wrong unit?',
   'too-large-for-machines': 'Too big for every machine',
   thin: 'Thin walls',
+  'empty-facets': 'Empty facets left out',
 };
 
 export const WARNING_EXPLANATIONS: Record<string, string> = {
@@ -23,6 +24,8 @@ export const WARNING_EXPLANATIONS: Record<string, string> = {
     'Every side is under 2 mm, which usually means the file was drawn in centimetres or inches and read as millimetres. Upload it again with the right unit if so.',
   'too-large-for-machines':
     'The part does not fit the largest chamber of the lab’s machines in any upright or side-on orientation. Check the unit first; otherwise it has to be split into pieces.',
+  'empty-facets':
+    'Some facets of the file have no area (two corners at the same point) or repeat another facet. They are not part of the surface, so Sinterstack leaves them out; the solid is the same. Many design tools write them on export; nothing needs doing unless the part is also flagged as not watertight.',
   thin: 'Walls this thin may not sinter into a solid skin, may warp or break at breakout and blasting. Thicken them, or check the material’s minimum wall thickness.',
 };
 

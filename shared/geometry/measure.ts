@@ -7,6 +7,7 @@ import { parseObj } from './obj';
 import { parse3mf, DEFAULT_MAX_3MF_BYTES, DEFAULT_MAX_TRIANGLES } from './threemf';
 import { measureMesh, meshWarnings, type MeshMetrics, type MeshWarning, type WarningOptions } from './metrics';
 import { MM_PER_UNIT, quoteName, refuse, type LengthUnit, type ParseResult, type ParsedPart, type Problem } from './types';
+import { dropEmptyFacets } from './weld';
 
 export type MeshFormat = 'stl' | 'obj' | '3mf';
 
@@ -74,7 +75,19 @@ export function parseMeshFile(bytes: Uint8Array, options: MeasureOptions): Parse
       };
     }
   }
-  return { ...result, format };
+  if (!result.ok) return { ...result, format };
+  // Facets without area or written twice are left out here, so that every reader of a file (the upload's
+  // measurement, slicing, packing, the server's re-check) sees the same solid.
+  const parts: ParsedPart[] = [];
+  for (const part of result.parts) {
+    const { indices, collapsed, repeated } = dropEmptyFacets(part.indices);
+    if (indices.length === 0) {
+      const label = `${quoteName(options.filename)}${result.parts.length > 1 ? `, part "${part.name}"` : ''}`;
+      return { ...refuse('no-triangles', `${label} holds no triangles with area: every facet has two corners at one point.`), format };
+    }
+    parts.push(indices === part.indices ? part : { ...part, indices, emptyFacets: { collapsed, repeated } });
+  }
+  return { ok: true, parts, format };
 }
 
 /**
@@ -108,10 +121,19 @@ export function measureParsedParts(parts: ParsedPart[], format: MeshFormat, opti
       });
       continue;
     }
-    measured.push({ name: part.name, metrics, warnings: meshWarnings(metrics, options) });
+    const warnings = meshWarnings(metrics, options);
+    if (part.emptyFacets) warnings.push(emptyFacetsWarning(part.emptyFacets));
+    measured.push({ name: part.name, metrics, warnings });
   }
   if (problems.length > 0) return { ok: false, problems };
   return { ok: true, format, parts: measured };
+}
+
+function emptyFacetsWarning(e: { collapsed: number; repeated: number }): MeshWarning {
+  const what: string[] = [];
+  if (e.collapsed > 0) what.push(`${e.collapsed.toLocaleString('en-US')} facet${e.collapsed === 1 ? '' : 's'} with two corners at one point`);
+  if (e.repeated > 0) what.push(`${e.repeated.toLocaleString('en-US')} facet${e.repeated === 1 ? '' : 's'} written twice`);
+  return { code: 'empty-facets', message: `The file has ${what.join(' and ')}; they add nothing to the surface and were left out of the measurements, slices and packing.` };
 }
 
 /** Zero when flat in some axis, or when the enclosed volume is a vanishing share of the bounding box. */

@@ -182,7 +182,8 @@ export type MeshWarningCode =
   | 'inside-out'
   | 'maybe-wrong-unit-small'
   | 'too-large-for-machines'
-  | 'thin';
+  | 'thin'
+  | 'empty-facets';
 
 export interface MeshWarning {
   code: MeshWarningCode;

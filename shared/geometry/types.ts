@@ -12,6 +12,8 @@ export interface MeshData {
 /** One measurable part found in a file (a 3MF may hold several). */
 export interface ParsedPart extends MeshData {
   name: string;
+  /** Facets the reader left out (see dropEmptyFacets), when there were any. */
+  emptyFacets?: { collapsed: number; repeated: number };
 }
 
 /** Units a user may pick for formats that carry none (STL, OBJ). */

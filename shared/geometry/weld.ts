@@ -137,3 +137,75 @@ export function weldExact(positions: Float64Array, indices: Uint32Array): { posi
   for (let i = 0; i < indices.length; i++) out[i] = remap[indices[i]];
   return { positions: kept.slice(0, keptCount * 3), indices: out };
 }
+
+/**
+ * Leaves out the facets that add nothing to a solid's surface: a facet whose
+ * corners, once welded, are not three distinct vertices (it has no area: two
+ * corners round to one float32 position, as tiny facets of exported fillets
+ * do), and a facet that repeats another with the same corners in the same
+ * turn (the same patch of surface written twice). Each makes the edges it
+ * touches read as shared by more than two facets, so a closed solid reads as
+ * open; each also counts the same patch twice in a sum over facets. Removing
+ * them is the usual first repair of a triangle soup (common practice); a facet
+ * whose three distinct corners lie on one line is kept, because its edges are
+ * shared with its neighbours. Returns the indices unchanged (the same array)
+ * when nothing is left out.
+ */
+export function dropEmptyFacets(indices: Uint32Array): { indices: Uint32Array; collapsed: number; repeated: number } {
+  const n = indices.length / 3;
+  const tableSize = nextPow2(Math.max(16, n * 2));
+  const mask = tableSize - 1;
+  const table = new Int32Array(tableSize).fill(-1);
+  // Each kept facet in the table as its corners turned so the smallest comes first (the turn, and so the facing, kept).
+  const key = new Uint32Array(3 * n);
+  const keep = new Uint8Array(n);
+  let collapsed = 0, repeated = 0;
+  for (let f = 0; f < n; f++) {
+    let a = indices[3 * f], b = indices[3 * f + 1], c = indices[3 * f + 2];
+    if (a === b || b === c || a === c) {
+      collapsed++;
+      continue;
+    }
+    if (b < a && b < c) {
+      const t = a;
+      a = b;
+      b = c;
+      c = t;
+    } else if (c < a && c < b) {
+      const t = c;
+      c = b;
+      b = a;
+      a = t;
+    }
+    let slot = hash3(a, b, c) & mask;
+    let seen = false;
+    for (;;) {
+      const g = table[slot];
+      if (g < 0) break;
+      if (key[3 * g] === a && key[3 * g + 1] === b && key[3 * g + 2] === c) {
+        seen = true;
+        break;
+      }
+      slot = (slot + 1) & mask;
+    }
+    if (seen) {
+      repeated++;
+      continue;
+    }
+    table[slot] = f;
+    key[3 * f] = a;
+    key[3 * f + 1] = b;
+    key[3 * f + 2] = c;
+    keep[f] = 1;
+  }
+  if (collapsed + repeated === 0) return { indices, collapsed, repeated };
+  const out = new Uint32Array(3 * (n - collapsed - repeated));
+  let o = 0;
+  for (let f = 0; f < n; f++) {
+    if (!keep[f]) continue;
+    out[o++] = indices[3 * f];
+    out[o++] = indices[3 * f + 1];
+    out[o++] = indices[3 * f + 2];
+  }
+  return { indices: out, collapsed, repeated };
+}

@@ -20,6 +20,11 @@ const housingMesh = housing({ lengthMm: 60, widthMm: 40, heightMm: 25, wallMm: 2
 write('housing.stl', writeBinaryStl(housingMesh));
 write('cube.stl', writeAsciiStl(box(8, 8, 8)));
 write('huge.stl', writeBinaryStl(box(500, 500, 500)));
+// The same housing with a facet written twice and one whose corners are one point: closed all the same.
+{
+  const ix = housingMesh.indices;
+  write('housing-dirty.stl', writeBinaryStl({ positions: housingMesh.positions, indices: Uint32Array.from([...ix, ix[0], ix[1], ix[2], ix[3], ix[4], ix[3]]) }));
+}
 // A cube with one triangle missing: not watertight.
 const open = box(10, 10, 10);
 write('open.stl', writeBinaryStl({ positions: open.positions, indices: open.indices.slice(0, 33) }));
@@ -100,6 +105,18 @@ describe('pack command line, version 2 (meshes)', () => {
     const result = JSON.parse(r.stdout);
     expect(result.warnings).toEqual([expect.objectContaining({ id: 'open', code: 'not-watertight' })]);
     expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
+  }, 120_000);
+
+  test('facets without area or written twice are left out: the housing is closed and the cubes still nest inside it', () => {
+    const body = { ...base, timeLimitMs: 2000, parts: [{ id: 'housing', mesh: 'housing-dirty.stl', quantity: 1, orientations: ['upright'] }, { id: 'cube', mesh: 'cube.stl', quantity: 6 }] };
+    const r = run([write('dirty.json', JSON.stringify(body))]);
+    expect(r.status).toBe(0);
+    expect(r.stderr).not.toMatch(/not watertight/);
+    const result = JSON.parse(r.stdout);
+    expect(result.warnings ?? []).toEqual([]);
+    expect(validateShapeLayout(withMeshes(body), result)).toEqual([]);
+    expect(result.placements).toHaveLength(7);
+    expect(result.height).toBeLessThanOrEqual(2 + 25 + 1e-6);
   }, 120_000);
 
   test("a size given beside a mesh that is not the mesh's box is named in the warnings, and the mesh's box is packed", () => {
