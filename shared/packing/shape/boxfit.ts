@@ -104,13 +104,22 @@ export function createBoxFitPacking(instance: PackInstanceV2, options: PackOptio
       return lastV2;
     };
     // So that the last layout found is also turned over within the time limit, the search ends that much earlier (as
-    // long as it took to turn one over); a run capped by its completions (tests) is not timed.
+    // long as it took to turn one over); a run capped by its completions (tests) is not timed. Timed, the first
+    // layout is turned over even when no one asks for progress (the command line), so that the time is known: its
+    // area profile is sliced from the meshes, and without it the run went past its limit by what turning the last
+    // layout over took (248 parts of 1,000 to 49,000 triangles: 0.34 s past 2 s, 0.47 s past 10 s). A searched
+    // layout's parts stand at more different heights than the first one's, and each height of a part is sliced
+    // anew: turning it over took up to 1.5 times as long (0.44 s against 0.30 s), so that much is kept for it.
     const deadline = now() + instance.timeLimitMs;
     const timed = options.maxCompletions === undefined;
     return {
       hooks: {
-        shouldStop: () => !!hooks.shouldStop?.() || (timed && toV2Ms > 0 && now() > deadline - toV2Ms),
-        onProgress: (phase: PackPhase, share: number, best: PackResult | null) => hooks.onProgress?.(phase, share, best && best !== last ? toV2(best) : lastV2),
+        shouldStop: () => !!hooks.shouldStop?.() || (timed && toV2Ms > 0 && now() > deadline - 1.5 * toV2Ms),
+        onProgress: (phase: PackPhase, share: number, best: PackResult | null) => {
+          const fresh = best !== null && best !== last;
+          if (fresh && (hooks.onProgress || (timed && lastV2 === null))) toV2(best);
+          hooks.onProgress?.(phase, share, lastV2);
+        },
       },
       toV2,
     };
