@@ -21,9 +21,15 @@ export interface ShapeMixOptions {
   designs?: number;
   /** Also three round cups wider at the rim than at the foot (they stack), this many copies each; the rest is as without. */
   cups?: number;
+  /**
+   * The same parts finely tessellated, as a design tool exports curved faces at a tight chord tolerance: clips of
+   * about 6,000 triangles, rings of about 37,000, housings' rounded corners of 96 facets (about 3,000 triangles); the
+   * flat-faced parts are the same. The sizes and the copies are the same as without.
+   */
+  fine?: boolean;
 }
 
-function design(kind: number, r: () => number): { name: string; mesh: PartMesh } {
+function design(kind: number, r: () => number, fine = false): { name: string; mesh: PartMesh } {
   const between = (a: number, b: number) => a + (b - a) * r();
   switch (kind) {
     case 0:
@@ -32,13 +38,13 @@ function design(kind: number, r: () => number): { name: string; mesh: PartMesh }
       return { name: 'channel', mesh: cableGuide({ channelWidthMm: between(8, 20), channelDepthMm: between(6, 14), wallMm: between(2, 3), flangeMm: between(5, 10), lengthMm: between(25, 60) }) };
     case 2: {
       const l = between(50, 110);
-      return { name: 'housing', mesh: housing({ lengthMm: l, widthMm: between(35, Math.min(l, 70)), heightMm: between(20, 40), wallMm: between(2, 3), floorMm: between(2, 3), cornerRadiusMm: 5, cornerSegments: 6 }) };
+      return { name: 'housing', mesh: housing({ lengthMm: l, widthMm: between(35, Math.min(l, 70)), heightMm: between(20, 40), wallMm: between(2, 3), floorMm: between(2, 3), cornerRadiusMm: 5, cornerSegments: fine ? 96 : 6 }) };
     }
     case 3:
-      return { name: 'clip', mesh: clip({ innerRadiusMm: between(5, 12), wallMm: between(1.5, 3), gapDeg: between(50, 90), widthMm: between(6, 14), segments: 32 }) };
+      return { name: 'clip', mesh: clip({ innerRadiusMm: between(5, 12), wallMm: between(1.5, 3), gapDeg: between(50, 90), widthMm: between(6, 14), segments: fine ? 768 : 32 }) };
     case 4: {
       const major = between(10, 20);
-      return { name: 'ring', mesh: torus(major, between(2, Math.min(5, major / 3)), 32, 12) };
+      return { name: 'ring', mesh: torus(major, between(2, Math.min(5, major / 3)), fine ? 384 : 32, fine ? 48 : 12) };
     }
     default: {
       const a = between(6, 16), b = between(6, 16);
@@ -58,7 +64,7 @@ export function generateShapeMix(o: ShapeMixOptions): PackInstanceV2 {
   let left = o.parts;
   for (let d = 0; d < designs; d++) {
     const kind = d % 6;
-    const { name, mesh } = design(kind, r);
+    const { name, mesh } = design(kind, r, o.fine);
     const quantity = d === designs - 1 ? left : Math.min(left, Math.max(1, Math.round((o.parts * weights[d]) / total)));
     left -= quantity;
     const m = measureMesh(mesh);
