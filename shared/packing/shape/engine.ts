@@ -480,16 +480,22 @@ function* solve(
   // its layout and the exact check), as measured on the way; a layout with nests, whose parts lie within the
   // spacing of many others, takes longer to check than one without, so until one has been checked its check is
   // reckoned at a multiple of the other's: twice for light meshes (the check of repeated pairs done once, nested
-  // layouts of the benchmark's mixes took 0.4 to 1.5 times as long as the plain one's at 300 to 2,000 parts),
-  // else 8 times. The exact distances between two meshes nested within the spacing grow with their triangles:
-  // 30 parts (rings of 10,000 triangles in an open housing) took 0.13 s to check nested; with rings of 40,000,
-  // 160,000 and 1,000,000 triangles, 0.44, 1.6 and 9.7 s, against 0.06 s for the last kept apart. With a cap on
-  // the runs (reproducible tests) the stages run as capped, whatever the clock. 3 % of the limit is kept in hand
-  // for what the estimates miss.
+  // layouts of the benchmark's mixes took 0.4 to 1.5 times as long as the plain one's at 300 to 2,000 parts).
+  // The exact distances between two meshes nested within the spacing grow with their triangles: 30 parts (rings
+  // of 10,000 triangles in an open housing) took 0.13 s to check nested; with rings of 40,000, 160,000 and
+  // 1,000,000 triangles, 0.44, 1.6 and 9.7 s, against 0.06 s for the last kept apart. So for heavier meshes the
+  // multiple grows with the square root of the heaviest one's triangles over LIGHT_MESH, up to 8 times (from
+  // 320,000 triangles). It was 8 times for any mesh past LIGHT_MESH: then 248 parts of 1,000 to 49,000 triangles
+  // never nested at 10 s and came out higher than by box (bench:pack --heavy: 152.9 against 141.1 mm; now 118.2),
+  // where a nested layout's check took 2.3 times the plain one's (2.3 against 1.0 s); in the benchmark's finely
+  // tessellated mixes (rings of 37,000 triangles) 2.2 to 3 times. With a cap on the runs (reproducible tests) the
+  // stages run as capped, whatever the clock. 3 % of the limit is kept in hand for what the estimates miss.
   const light = parts.every((p) => p.quantity === 0 || triangles(p) <= LIGHT_MESH);
+  const heaviest = parts.reduce((n, p) => (p.quantity > 0 ? Math.max(n, triangles(p)) : n), 0);
+  const nestedTimes = light ? 2 : Math.min(8, 2 * Math.sqrt(heaviest / LIGHT_MESH));
   const checkMs = { plain: 0, nested: 0 };
   let settleMs = 0;
-  const checkCost = (nested: boolean) => (nested ? checkMs.nested || (light ? 2 : 8) * checkMs.plain : checkMs.plain);
+  const checkCost = (nested: boolean) => (nested ? checkMs.nested || nestedTimes * checkMs.plain : checkMs.plain);
   /** The nests' layout before the boxes' first layout is settled and checked (see settledBoxes). */
   let nestsFirst = false;
   /** What turning the box engine's first layout into placements took (fromBoxResult). */
