@@ -60,6 +60,8 @@ export interface LinesPaneProps {
   lines: EditorLine[];
   /** Triangles of the distinct parts' meshes the lines hold (a packing by shape needs time to prepare heavy ones). */
   meshTriangles: number;
+  /** Triangles of all the copies the lines hold (a packing by shape checks every layout against them). */
+  placedTriangles: number;
   /** Names of the distinct parts the lines hold whose mesh is not closed (a packing by shape packs them by their boxes). */
   openMeshParts: string[];
   editable: boolean;
@@ -84,7 +86,7 @@ export interface LinesPaneProps {
 export function LinesPane(p: LinesPaneProps) {
   const running = p.packer.status === 'running';
   const total = p.lines.reduce((s, l) => s + l.quantity, 0);
-  const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs, p.meshTriangles) : null;
+  const timeNote = p.options.fit === 'shape' ? shapeTimeNote(total, p.options.timeLimitMs, p.meshTriangles, p.placedTriangles) : null;
   const openNote = p.options.fit === 'shape' ? openMeshNote(p.openMeshParts) : null;
   return (
     <View style={styles.pane} testID="plan-lines">

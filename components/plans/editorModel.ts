@@ -552,10 +552,13 @@ export function submitBlockOf(layouts: readonly Pick<LayoutSummaryView, 'chosen'
  * The time limit a packing by shape of `parts` parts is suggested, in seconds: 1 s per 50 parts, at least 4 s
  * (the editor's default). Measured with the packing benchmark (docs/benchmarks.md): the first layout by shape
  * takes about 1.5 ms a part and its check about 0.5 ms more, so 2,000 parts at 10 s get no further than it, while
- * 40 s leaves room for the search that nests them (and 10 s does for 500).
+ * 40 s leaves room for the search that nests them (and 10 s does for 500). And 3 s per million triangles of all the
+ * copies (`placedTriangles`): every layout is settled, sliced and checked against them; 248 parts of 1,000 to
+ * 49,000 triangles (3.1 million placed) got no further than the first layout at 5 and 6 s and nested at 8 and 10 s
+ * (the packing command on STL files, docs/benchmarks.md).
  */
-export function suggestedShapeSeconds(parts: number): number {
-  return Math.max(4, Math.ceil(parts / 50));
+export function suggestedShapeSeconds(parts: number, placedTriangles = 0): number {
+  return Math.max(4, Math.ceil(parts / 50), Math.ceil((3 * placedTriangles) / 1e6));
 }
 
 /** The parts among the lines that hold copies, each once (one part on several lines), in the lines' order. */
@@ -571,6 +574,11 @@ function partsWithCopies<T extends Pick<LineInfo, 'partId'>>(lines: readonly Pic
 /** Triangles of the distinct parts' meshes among the lines that hold copies (`info`: the lines' parts). */
 export function meshTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'partId' | 'triangles'>>): number {
   return partsWithCopies(lines, info).reduce((n, p) => n + p.triangles, 0);
+}
+
+/** Triangles of all the copies the lines hold (`info`: the lines' parts). */
+export function placedTrianglesOf(lines: readonly Pick<DraftLine, 'requestLineId' | 'quantity'>[], info: ReadonlyMap<string, Pick<LineInfo, 'triangles'>>): number {
+  return lines.reduce((n, l) => n + Math.max(0, l.quantity) * (info.get(l.requestLineId)?.triangles ?? 0), 0);
 }
 
 /**
@@ -594,16 +602,21 @@ export function openMeshNote(names: readonly string[]): string | null {
 /**
  * A note when packing by shape is given less time than its parts are suggested (null when the limit will do):
  * for heavy meshes (`triangles`: the distinct parts' meshes together) however few the parts, since the packing
- * then falls back to the parts' boxes; for many parts, from 200 on (below, a shorter limit was chosen on purpose).
+ * then falls back to the parts' boxes; for many parts, from 200 on (below, a shorter limit was chosen on purpose);
+ * for many triangles in all (`placedTriangles`: all the copies'), which every layout is checked against.
  */
-export function shapeTimeNote(parts: number, timeLimitMs: number, triangles = 0): string | null {
+export function shapeTimeNote(parts: number, timeLimitMs: number, triangles = 0, placedTriangles = 0): string | null {
   const heavy = meshShapeSeconds(triangles);
   if (parts > 0 && timeLimitMs < heavy * 1000) {
     const millions = (triangles / 1e6).toFixed(1);
-    return `These parts' meshes hold ${millions} million triangles: packing by shape needs about ${heavy} s to prepare them, and with less it packs the parts by their boxes. Give it ${Math.max(heavy, suggestedShapeSeconds(parts))} s or more.`;
+    return `These parts' meshes hold ${millions} million triangles: packing by shape needs about ${heavy} s to prepare them, and with less it packs the parts by their boxes. Give it ${Math.max(heavy, suggestedShapeSeconds(parts, placedTriangles))} s or more.`;
   }
-  const s = suggestedShapeSeconds(parts);
+  const s = suggestedShapeSeconds(parts, placedTriangles);
   if (s <= 4 || timeLimitMs >= s * 1000) return null;
+  if (s > suggestedShapeSeconds(parts)) {
+    const millions = (placedTriangles / 1e6).toFixed(1);
+    return `The ${parts} parts hold ${millions} million triangles in all: packing by shape settles and checks each layout against them, which takes seconds. Give it ${s} s or more to nest them lower.`;
+  }
   const first = Math.max(1, Math.round((parts * 2) / 1000));
   return `With ${parts} parts, packing by shape spends about ${first} s on its first layout alone: give it ${s} s or more to nest them lower.`;
 }

@@ -39,6 +39,7 @@ import {
   densityVolumeOf,
   lineInfoOf,
   meshTrianglesOf,
+  placedTrianglesOf,
   openMeshPartsOf,
   buildStackOf,
   dragPreview,
@@ -507,6 +508,7 @@ export function usePlanEditor(plan: PlanView, refetch: () => Promise<PlanView | 
   const linesPane: LinesPaneProps = {
     lines: editorLines,
     meshTriangles: meshTrianglesOf(lines, lineInfo),
+    placedTriangles: placedTrianglesOf(lines, lineInfo),
     openMeshParts: openMeshPartsOf(lines, lineInfo),
     editable,
     onQuantity: (id: string, quantity: number) => changeLines((ls) => withQuantity(ls, id, quantity)),

@@ -24,6 +24,7 @@ import {
   repackOf,
   shapeTimeNote,
   meshTrianglesOf,
+  placedTrianglesOf,
   openMeshNote,
   openMeshPartsOf,
   shownLayoutId,
@@ -412,6 +413,19 @@ describe('the time limit of a packing by shape', () => {
     expect(shapeTimeNote(2000, 4000, 2_008_028)).toMatch(/needs about 6 s to prepare them.*Give it 40 s or more/);
   });
 
+  // Measured with the packing command (docs/benchmarks.md, next to `--heavy`'s table of the same kinds of parts): 248
+  // parts of 1,000 to 49,000 triangles, 3.1 million placed, got no further than the first layout by shape at 5 and 6 s
+  // and nested at 8 and 10 s.
+  test('many triangles in all are told the time that checking each layout against them needs', () => {
+    expect(shapeTimeNote(248, 5000, 290_000, 3_090_928)).toBe(
+      'The 248 parts hold 3.1 million triangles in all: packing by shape settles and checks each layout against them, which takes seconds. Give it 10 s or more to nest them lower.',
+    );
+    expect(shapeTimeNote(248, 10_000, 290_000, 3_090_928)).toBeNull();
+    // Light meshes: the parts' count decides, as before.
+    expect(shapeTimeNote(248, 5000, 20_000, 120_000)).toBeNull();
+    expect(shapeTimeNote(2000, 10_000, 20_000, 1_000_000)).toMatch(/first layout alone: give it 40 s or more/);
+  });
+
   test('the triangles counted are those of the distinct parts the lines hold', () => {
     const info = lineInfoOf([planLine('a', 2, [10, 10, 10], { part: { ...part('a', [10, 10, 10]), id: 'same', triangles: 600_000 } })], [
       { ...openLine('b', 3, [10, 10, 10]), part: { ...part('b', [10, 10, 10]), id: 'same', triangles: 600_000 } },
@@ -421,6 +435,9 @@ describe('the time limit of a packing by shape', () => {
     expect(meshTrianglesOf([line('a', 2), line('b', 1)], info)).toBe(600_000);
     expect(meshTrianglesOf([line('a', 2), line('c', 1)], info)).toBe(650_000);
     expect(meshTrianglesOf([line('a', 0), line('c', 1)], info)).toBe(50_000);
+    // All the copies, for the time every layout's check takes.
+    expect(placedTrianglesOf([line('a', 2), line('b', 1)], info)).toBe(1_800_000);
+    expect(placedTrianglesOf([line('a', 0), line('c', 3)], info)).toBe(150_000);
   });
 
   test('before packing by shape, the parts whose mesh is not closed are named: they will be packed by their boxes', () => {
