@@ -155,34 +155,34 @@ export function dropEmptyFacets(indices: Uint32Array): { indices: Uint32Array; c
   const n = indices.length / 3;
   const tableSize = nextPow2(Math.max(16, n * 2));
   const mask = tableSize - 1;
+  // Kept facets by their corners turned so the smallest comes first (the turn, and so the facing, kept); the table
+  // holds facet numbers, and a facet's turned corners are worked out again from the indices when compared.
   const table = new Int32Array(tableSize).fill(-1);
-  // Each kept facet in the table as its corners turned so the smallest comes first (the turn, and so the facing, kept).
-  const key = new Uint32Array(3 * n);
   const keep = new Uint8Array(n);
+  const turned = new Uint32Array(3);
+  const turn = (f: number) => {
+    const a = indices[3 * f], b = indices[3 * f + 1], c = indices[3 * f + 2];
+    const first = b < a && b < c ? 1 : c < a && c < b ? 2 : 0;
+    turned[0] = indices[3 * f + first];
+    turned[1] = indices[3 * f + ((first + 1) % 3)];
+    turned[2] = indices[3 * f + ((first + 2) % 3)];
+  };
   let collapsed = 0, repeated = 0;
   for (let f = 0; f < n; f++) {
-    let a = indices[3 * f], b = indices[3 * f + 1], c = indices[3 * f + 2];
+    const a = indices[3 * f], b = indices[3 * f + 1], c = indices[3 * f + 2];
     if (a === b || b === c || a === c) {
       collapsed++;
       continue;
     }
-    if (b < a && b < c) {
-      const t = a;
-      a = b;
-      b = c;
-      c = t;
-    } else if (c < a && c < b) {
-      const t = c;
-      c = b;
-      b = a;
-      a = t;
-    }
-    let slot = hash3(a, b, c) & mask;
+    turn(f);
+    const t0 = turned[0], t1 = turned[1], t2 = turned[2];
+    let slot = hash3(t0, t1, t2) & mask;
     let seen = false;
     for (;;) {
       const g = table[slot];
       if (g < 0) break;
-      if (key[3 * g] === a && key[3 * g + 1] === b && key[3 * g + 2] === c) {
+      turn(g);
+      if (turned[0] === t0 && turned[1] === t1 && turned[2] === t2) {
         seen = true;
         break;
       }
@@ -193,9 +193,6 @@ export function dropEmptyFacets(indices: Uint32Array): { indices: Uint32Array; c
       continue;
     }
     table[slot] = f;
-    key[3 * f] = a;
-    key[3 * f + 1] = b;
-    key[3 * f + 2] = c;
     keep[f] = 1;
   }
   if (collapsed + repeated === 0) return { indices, collapsed, repeated };
