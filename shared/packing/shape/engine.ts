@@ -490,8 +490,8 @@ function* solve(
   // where a nested layout's check took 2.3 times the plain one's (2.3 against 1.0 s); in the benchmark's finely
   // tessellated mixes (rings of 37,000 triangles) 2.2 to 3 times. With a cap on the runs (reproducible tests) the
   // stages run as capped, whatever the clock. 3 % of the limit is kept in hand for what the estimates miss.
-  const light = parts.every((p) => p.quantity === 0 || triangles(p) <= LIGHT_MESH);
   const heaviest = parts.reduce((n, p) => (p.quantity > 0 ? Math.max(n, triangles(p)) : n), 0);
+  const light = heaviest <= LIGHT_MESH;
   const nestedTimes = light ? 2 : Math.min(8, 2 * Math.sqrt(heaviest / LIGHT_MESH));
   const checkMs = { plain: 0, nested: 0 };
   let settleMs = 0;
