@@ -12,9 +12,8 @@
  * Prints one JSON object, `{ valid, problems, manifold }`, and exits 0 when the layout is valid by every check run,
  * 1 when it is not; input that cannot be read or is not an instance exits 2 with one line naming the field.
  */
-import { dirname, resolve } from 'node:path';
 import { placementTransform, rotationIndex } from '../shared/geometry/rotations';
-import { fail, failProblems, readJsonInput } from './lib/cli';
+import { fail, failProblems, inputDir, readJsonInput } from './lib/cli';
 import { reference, referenceFaults } from './lib/manifold-check';
 import { loadMeshes } from './lib/meshFiles';
 import { parseInstance, parseInstanceV2, shapeParts, validateLayout, validateShapeLayout, INSTANCE_FORMAT_V2, type FieldProblem, type PackResult, type PackResultV2, type PlacementV2 } from '../shared/packing';
@@ -34,8 +33,8 @@ function main(): void {
   const files = args.filter((a) => a !== '--no-manifold');
   if (files.length !== 2 || (files[0] === '-' && files[1] === '-')) fail('usage: check:layout INSTANCE.json RESULT.json [--no-manifold] (one of them may be - for standard input)');
   const [instanceFile, resultFile] = files;
-  const json = readJsonInput(instanceFile, 'instance');
-  const result = readJsonInput(resultFile, 'result');
+  const json = readJsonInput(instanceFile, 'instance', 'check:layout');
+  const result = readJsonInput(resultFile, 'result', 'check:layout');
   if (typeof result !== 'object' || result === null || Array.isArray(result)) fail('result: must be a JSON object (a pack-result)');
   let problems: FieldProblem[];
   let manifold: ManifoldReport | null = null;
@@ -43,7 +42,7 @@ function main(): void {
     const parsed = parseInstanceV2(json);
     if (!parsed.ok) failProblems(parsed.problems);
     const instance = parsed.instance;
-    loadMeshes(instance, instanceFile === '-' ? process.cwd() : dirname(resolve(instanceFile)));
+    loadMeshes(instance, inputDir(instanceFile, 'check:layout'));
     const parts = shapeParts(instance);
     const layout = result as PackResultV2;
     problems = validateShapeLayout(instance, layout, parts);

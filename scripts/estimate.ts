@@ -37,7 +37,7 @@ function profileArray(v: unknown, field: string): number[] | undefined {
 }
 
 function readJob(file: string): Json {
-  const json = readJsonInput(file, 'the job');
+  const json = readJsonInput(file, 'the job', 'estimate');
   if (!isObject(json)) fail('the job must be a JSON object');
   if (json.format !== JOB_FORMAT) fail(`format must be "${JOB_FORMAT}"`);
   return json;

@@ -5,10 +5,9 @@
  *
  * "pack-instance/1" packs boxes; "pack-instance/2" may name a mesh file per
  * part (relative to the instance file, or to the current directory for
- * standard input), read here and handed to the engine as plain arrays.
+ * standard input: the folder the command was called from), read here and handed to the engine as plain arrays.
  */
-import { dirname, resolve } from 'node:path';
-import { fail, failProblems, readJsonInput } from './lib/cli';
+import { fail, failProblems, inputDir, readJsonInput } from './lib/cli';
 import { loadMeshes } from './lib/meshFiles';
 import { packSync, packV2Sync, parseInstance, parseInstanceV2, INSTANCE_FORMAT_V2 } from '../shared/packing';
 
@@ -16,11 +15,11 @@ function main(): void {
   const args = process.argv.slice(2).filter((a) => a !== '--');
   if (args.length !== 1) fail('usage: pack INSTANCE.json (or - for standard input)');
   const file = args[0];
-  const json = readJsonInput(file, 'instance');
+  const json = readJsonInput(file, 'instance', 'pack');
   if (typeof json === 'object' && json !== null && (json as { format?: unknown }).format === INSTANCE_FORMAT_V2) {
     const parsed = parseInstanceV2(json);
     if (!parsed.ok) failProblems(parsed.problems);
-    const sizeWarnings = loadMeshes(parsed.instance, file === '-' ? process.cwd() : dirname(resolve(file)));
+    const sizeWarnings = loadMeshes(parsed.instance, inputDir(file, 'pack'));
     const packed = packV2Sync(parsed.instance);
     const warnings = [...sizeWarnings, ...(packed.warnings ?? [])];
     const result = warnings.length > 0 ? { ...packed, warnings } : packed;

@@ -139,4 +139,20 @@ describe('pack command line, version 2 (meshes)', () => {
     expect(r.status).toBe(0);
     expect(JSON.parse(r.stdout).placements).toHaveLength(2);
   }, 120_000);
+
+  test('through npm run from another folder: the instance file and, from standard input, the mesh paths are read from that folder', () => {
+    // npm runs a package script in the package's root; the caller's folder is the one a user means.
+    const npm = (args: string[], input?: string) =>
+      spawnSync('npm', ['--prefix', root, 'run', '--silent', 'pack', '--', ...args], { cwd: dir, input, encoding: 'utf8', timeout: 120_000 });
+    const body = { ...base, parts: [{ id: 'cube', mesh: 'cube.stl', quantity: 2 }] };
+    write('here.json', JSON.stringify(body));
+    const fromFile = npm(['here.json']);
+    expect(fromFile.stderr).toBe('');
+    expect(fromFile.status).toBe(0);
+    expect(JSON.parse(fromFile.stdout).placements).toHaveLength(2);
+    const fromInput = npm(['-'], JSON.stringify(body));
+    expect(fromInput.stderr).toBe('');
+    expect(fromInput.status).toBe(0);
+    expect(JSON.parse(fromInput.stdout).placements).toHaveLength(2);
+  }, 120_000);
 });
