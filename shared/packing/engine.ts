@@ -264,7 +264,7 @@ function summarise(model: Model, placements: Placement[], elapsedMs: number): Pa
     placements,
     unplaced,
     height,
-    layers: layerCount(height, inst.margin.top, inst.layerHeight, any),
+    layers: layerCount(height, inst.margin.top, inst.layerHeight),
     utilization: any && denominator > 0 ? volume / denominator : 0,
     elapsedMs: Math.round(elapsedMs * 10) / 10,
   };

@@ -103,7 +103,7 @@ export function validateLayout(instance: PackInstance, result: PackResult): Fiel
   if (typeof result.height !== 'number' || Math.abs(result.height - height) > tol) {
     bad('height', `must be the top of the highest placed part, ${height}, not ${result.height}`);
   }
-  const layers = layerCount(height, instance.margin.top, instance.layerHeight, anyPlaced);
+  const layers = layerCount(height, instance.margin.top, instance.layerHeight);
   if (result.layers !== layers) bad('layers', `must be ${layers}, not ${result.layers}`);
   const denominator =
     instance.objective === 'min-height'

@@ -42,7 +42,7 @@ export function finishResult(
     placements,
     unplaced,
     height,
-    layers: layerCount(height, instance.margin.top, instance.layerHeight, any),
+    layers: layerCount(height, instance.margin.top, instance.layerHeight),
     utilization: any && denominator > 0 ? volume / denominator : 0,
     elapsedMs: Math.round(elapsedMs * 10) / 10,
     areaProfile: areaProfile(forArea, instance.layerHeight, layers),

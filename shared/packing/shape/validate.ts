@@ -142,7 +142,7 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
   const any = placed.length > 0;
   const height = any ? top : 0;
   if (typeof result.height !== 'number' || Math.abs(result.height - height) > tol) bad('height', `must be the top of the highest placed part, ${height}, not ${result.height}`);
-  const layers = layerCount(height, instance.margin.top, instance.layerHeight, any);
+  const layers = layerCount(height, instance.margin.top, instance.layerHeight);
   if (result.layers !== layers) bad('layers', `must be ${layers}, not ${result.layers}`);
   const denominator =
     instance.objective === 'min-height' ? U.extent[0] * U.extent[1] * (height - instance.margin.bottom) : U.extent[0] * U.extent[1] * U.extent[2];

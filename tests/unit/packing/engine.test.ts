@@ -5,6 +5,8 @@ import {
   generatePowderBed,
   lowerBound,
   packSync,
+  packV2Sync,
+  parseInstanceV2,
   validateLayout,
   type PackResult,
 } from '@/shared/packing';
@@ -25,6 +27,22 @@ describe('odd but valid input never throws and gives a valid layout', () => {
       const inst = instanceOf({ ...chamber, objective, parts });
       const result = packSync(inst);
       expect(validateLayout(inst, result)).toEqual([]);
+    }
+  });
+
+  test("a layout with nothing placed counts its top margin's layers, by the contract's ceil((height + margin.top) / layerHeight)", () => {
+    // 5 mm of top margin at 0.11 mm: ceil(45.45) = 46 layers, whatever the version or fit (the estimate command counts the same).
+    for (const parts of [[], [{ id: 'none', size: [10, 10, 10], quantity: 0 }]]) {
+      const inst = instanceOf({ ...chamber, layerHeight: 0.11, parts });
+      const result = packSync(inst);
+      expect([result.height, result.layers]).toEqual([0, 46]);
+      expect(validateLayout(inst, result)).toEqual([]);
+      for (const fit of ['box', 'shape'] as const) {
+        const v2 = parseInstanceV2({ ...chamber, format: 'pack-instance/2', layerHeight: 0.11, fit, parts });
+        if (!v2.ok) throw new Error(JSON.stringify(v2.problems));
+        const r2 = packV2Sync(v2.instance);
+        expect([r2.height, r2.layers, r2.areaProfile]).toEqual([0, 46, []]);
+      }
     }
   });
 
