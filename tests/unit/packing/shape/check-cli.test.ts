@@ -112,6 +112,27 @@ describe('check:layout command line', () => {
     expect(JSON.parse(through.stdout).manifold.faults.join()).toMatch(/placements 0 and 1 share 200\.0\d\d mm\^3/);
   }, 120_000);
 
+  test('no spacing asked: a cube resting on the housing rim and one touching its side are valid by both checks (surfaces may touch); one sunk 0.1 mm into the rim is not', () => {
+    const touching = write('touching.json', JSON.stringify({ ...body, spacing: 0, parts: [body.parts[0], { ...body.parts[1], quantity: 2 }] }));
+    const inMemory = shapeInstance(
+      [
+        { id: 'housing', mesh: holder, quantity: 1, orientations: ['upright'] },
+        { id: 'cube', mesh: cube, quantity: 2 },
+      ],
+      0,
+    );
+    const layout = (name: string, onRim: number) =>
+      write(name, JSON.stringify(summariseShapeLayout(inMemory, [{ id: 'housing', rotation: 0, position: H }, { id: 'cube', rotation: 0, position: [20 + 60, 20 + 15, 0] }, { id: 'cube', rotation: 0, position: [20 - 8, 20 + 15, onRim] }])));
+    // The rim is 25 mm over the floor: the second cube stands on the wall at x 20 to 22, and over the plate beside it.
+    const good = run([touching, layout('rim.json', 25)]);
+    expect(good.stderr).toBe('');
+    expect(good.status).toBe(0);
+    expect(JSON.parse(good.stdout).manifold.faults).toEqual([]);
+    const sunk = run([touching, layout('sunk.json', 24.9)]);
+    expect(sunk.status).toBe(1);
+    expect(JSON.parse(sunk.stdout).manifold.faults.join()).toMatch(/placements 0 and 2 share 2\.0\d\d mm\^3/);
+  }, 120_000);
+
   test('a box instance (pack-instance/1) is checked by the box rules: 2 mm apart passes, 1 mm apart fails', () => {
     const v1 = write('v1.json', JSON.stringify({ format: 'pack-instance/1', chamber: [100, 100, 100], spacing: 2, layerHeight: 0.1, parts: [{ id: 'a', size: [10, 10, 10], quantity: 2 }] }));
     const at = (x: number) => write(`v1-${x}.json`, JSON.stringify({ format: 'pack-result/1', placements: [{ id: 'a', position: [0, 0, 0], size: [10, 10, 10], orientation: 'xyz' }, { id: 'a', position: [x, 0, 0], size: [10, 10, 10], orientation: 'xyz' }], unplaced: [], height: 10, layers: 100, utilization: 0.02 }));
