@@ -21,10 +21,13 @@ import {
   decodePlacementBytes,
   encodePlacementBytes,
   fromPlacementArrays,
+  excessProblems,
   parseInstance,
   PlacementBytesError,
   PLACEMENTS_FORMAT,
+  RESULT_FORMAT,
   RESULT_FORMAT_V2,
+  TOLERANCE_MM,
   toPlacementArrays,
   transformTurn,
   validateLayout,
@@ -178,72 +181,90 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
       // Both formats place parts the same way for the codec and the estimate (a v2 placement adds its transform).
       const result = input.result as unknown as PackResult;
 
+      // Read and checked before the plan is locked: the check against the meshes waits for a mesh worker (up to the
+      // slicing's wait), and a transaction held meanwhile kept a pooled connection and the plan's lock (a dozen saves
+      // at once ran the pool dry, and other users' reads failed). What was read is made sure of under the lock below.
+      const head = await plans.head(labId, checkPlanId(planId));
+      if (!head) throw notFound('That plan');
+      if (!isEditable(head.status)) throw readOnly(head.status);
+      const machine = await profileRow(db, 'machines', labId, head.machineId);
+      const material = await profileRow(db, 'materials', labId, head.materialId);
+      if (!machine || !material) throw notFound("That plan's machine or material");
+      const lines = await planLines(db, head.id);
+
+      const mismatch = instanceProblems(instance, machine as unknown as MachineProfile, material as unknown as MaterialProfile, lines);
+      if (mismatch.length > 0) refuse(mismatch);
+      // Counts and the height first, in one pass: copies too many, or a top beyond the chamber, are refused before
+      // any pair of placements is looked at or any layer counted from the height given.
+      const excess = excessProblems(instance.parts, result.placements);
+      if (excess.length > 0) refuse(excess, 'result');
+      if (!(typeof result.height === 'number' && result.height >= 0 && result.height <= instance.chamber[2] + TOLERANCE_MM)) {
+        refuse([{ field: 'height', message: `must be the top of the highest placed part, from 0 to the chamber's ${instance.chamber[2]} mm, not ${result.height}` }], 'result');
+      }
+      if (!byShape) {
+        const invalid = validateLayout(instance, result);
+        if (invalid.length > 0) refuse(invalid, 'result');
+      } else {
+        // What needs no mesh is refused here, before any worker is asked.
+        // So is a transform that is not one of the 24 quarter turns (the meshes' check's own rule): the slicing of
+        // the layout could not take it.
+        result.placements.forEach((p, i) => {
+          const t = (p as { transform?: unknown }).transform;
+          const turn = t === undefined ? null : transformTurn(t);
+          if (turn && 'problem' in turn) refuse([{ field: `placements[${i}].transform`, message: turn.problem }], 'result');
+        });
+      }
+
+      const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, head.machineId) : undefined;
+      const volumeOf = new Map(lines.map((l) => [l.request_line_id, l.volume_mm3]));
+      let partsVolumeMm3 = 0;
+      for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
+      // Sections of the real meshes, sliced in the mesh workers; the boxes when they cannot be had.
+      const layers = layerCount(result.height, instance.margin.top, instance.layerHeight);
+      const check = byShape ? shapeCheckOf(instance, result as unknown as PackResultV2, lines) : undefined;
+      const profiles = deps.profilesFor ? await deps.profilesFor(head.id, instance, result, layers, undefined, user.id, check) : null;
+      if (byShape) {
+        if (result.placements.length === 0) {
+          // Nothing placed: no mesh to check it against, the same rules as any layout (no top, its margin's layers).
+          const invalid = validateLayout(instance, { ...result, format: RESULT_FORMAT } as PackResult);
+          if (invalid.length > 0) refuse(invalid, 'result');
+        } else if (!profiles?.problems) {
+          throw new AppError(
+            503,
+            'shape_check_unavailable',
+            "This layout packed by shape could not be checked against the parts' meshes just now (no mesh worker finished in time); nothing was kept. Try keeping it again in a moment.",
+          );
+        } else if (profiles.problems.length > 0) refuse(profiles.problems, 'result');
+      }
+      let estimate: LayoutEstimate;
+      try {
+        const { id: _m, ...machineProfile } = machine;
+        const { id: _t, ...materialProfile } = material;
+        estimate = estimateLayout({
+          layout: { placements: result.placements, heightMm: result.height, margin: instance.margin },
+          machine: machineProfile as MachineProfile,
+          material: materialProfile as MaterialProfile,
+          layerHeightMm: instance.layerHeight,
+          calibration,
+          partsVolumeMm3,
+          // Each part's own volume, for the cost per part (by volume and height, docs/estimate.md).
+          volumeById: new Map([...volumeOf].filter((e): e is [string, number] => typeof e[1] === 'number')),
+          partCount: result.placements.length,
+          ...(profiles && profiles.meshPlacements > 0 ? { areaPerLayerMm2: profiles.areaPerLayerMm2 } : {}),
+        });
+      } catch (err) {
+        if (err instanceof InvalidInputError) refuse(err.problems);
+        throw err;
+      }
+
       return sequelize.transaction(async (transaction) => {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);
-        const machine = await profileRow(db, 'machines', labId, plan.machine_id, transaction);
-        const material = await profileRow(db, 'materials', labId, plan.material_id, transaction);
-        if (!machine || !material) throw notFound("That plan's machine or material");
-        const lines = await planLines(db, plan.id, transaction);
-
-        const mismatch = instanceProblems(instance, machine as unknown as MachineProfile, material as unknown as MaterialProfile, lines);
-        if (mismatch.length > 0) refuse(mismatch);
-        if (!byShape) {
-          const invalid = validateLayout(instance, result);
-          if (invalid.length > 0) refuse(invalid, 'result');
-        } else {
-          // What needs no mesh is refused here, before any worker is asked.
-          const ids = new Set(instance.parts.map((p) => p.id));
-          const unknown = result.placements.findIndex((p) => !ids.has(p.id));
-          if (unknown >= 0) refuse([{ field: `placements[${unknown}].id`, message: `must name a part of the instance ("${result.placements[unknown].id}" is unknown)` }], 'result');
-          // So is a transform that is not one of the 24 quarter turns (the meshes' check's own rule): the slicing of
-          // the layout could not take it.
-          result.placements.forEach((p, i) => {
-            const t = (p as { transform?: unknown }).transform;
-            const turn = t === undefined ? null : transformTurn(t);
-            if (turn && 'problem' in turn) refuse([{ field: `placements[${i}].transform`, message: turn.problem }], 'result');
-          });
+        // Checked against the plan as it was read: its machine, material and lines must still be those.
+        const now = await planLines(db, plan.id, transaction);
+        if (plan.machine_id !== head.machineId || plan.material_id !== head.materialId || linesKey(now) !== linesKey(lines)) {
+          throw conflict('plan_changed', 'The plan changed while this layout was being checked (its machine, material or lines); nothing was kept. Pack it again for the plan as it is now.');
         }
-
-        const calibration = deps.calibrationFor ? await deps.calibrationFor(labId, plan.machine_id) : undefined;
-        const volumeOf = new Map(lines.map((l) => [l.request_line_id, l.volume_mm3]));
-        let partsVolumeMm3 = 0;
-        for (const p of result.placements) partsVolumeMm3 += volumeOf.get(p.id) ?? 0;
-        // Sections of the real meshes, sliced in the mesh workers; the boxes when they cannot be had.
-        const layers = layerCount(result.height, instance.margin.top, instance.layerHeight);
-        const check = byShape ? shapeCheckOf(instance, result as unknown as PackResultV2, lines) : undefined;
-        const profiles = deps.profilesFor ? await deps.profilesFor(plan.id, instance, result, layers, transaction, user.id, check) : null;
-        if (byShape) {
-          if (!profiles?.problems) {
-            throw new AppError(
-              503,
-              'shape_check_unavailable',
-              "This layout packed by shape could not be checked against the parts' meshes just now (no mesh worker finished in time); nothing was kept. Try keeping it again in a moment.",
-            );
-          }
-          if (profiles.problems.length > 0) refuse(profiles.problems, 'result');
-        }
-        let estimate: LayoutEstimate;
-        try {
-          const { id: _m, ...machineProfile } = machine;
-          const { id: _t, ...materialProfile } = material;
-          estimate = estimateLayout({
-            layout: { placements: result.placements, heightMm: result.height, margin: instance.margin },
-            machine: machineProfile as MachineProfile,
-            material: materialProfile as MaterialProfile,
-            layerHeightMm: instance.layerHeight,
-            calibration,
-            partsVolumeMm3,
-            // Each part's own volume, for the cost per part (by volume and height, docs/estimate.md).
-            volumeById: new Map([...volumeOf].filter((e): e is [string, number] => typeof e[1] === 'number')),
-            partCount: result.placements.length,
-            ...(profiles && profiles.meshPlacements > 0 ? { areaPerLayerMm2: profiles.areaPerLayerMm2 } : {}),
-          });
-        } catch (err) {
-          if (err instanceof InvalidInputError) refuse(err.problems);
-          throw err;
-        }
-
         const partIds = instance.parts.map((p) => p.id);
         const settings = {
           seed: instance.seed,

@@ -1,7 +1,7 @@
 export * from './types';
 export { parseInstance, parseInstanceV2, parseAnyInstance, MAX_TOTAL_QUANTITY, type ParseResult, type ParseResultV2 } from './parse';
 export { lowerBound, buildCountLowerBound, inflatedPartVolume } from './bounds';
-export { validateLayout } from './validate';
+export { excessProblems, validateLayout } from './validate';
 export { orientedSize, usableRegion, layerCount, TOLERANCE_MM } from './geometry';
 export { createPacking, pack, packSync, type PackOptions, type PackPhase, type PackRunHooks, type Packing } from './engine';
 export { createRandom, type Random } from './prng';

@@ -13,7 +13,7 @@ import { createPlan, labWithProfiles, makeRequest, planInstance } from '../helpe
 import { prism, prismWithHoles } from '../../shared/geometry';
 import { ROTATION_CODES } from '../../shared/geometry/rotations';
 import { RULE_ROTATIONS } from '../../shared/plans/instance';
-import { INSTANCE_FORMAT_V2, parseInstance, type PackInstanceV2 } from '../../shared/packing';
+import { INSTANCE_FORMAT_V2, packSync, parseInstance, type PackInstanceV2 } from '../../shared/packing';
 import { createShapePacking, summariseShapeLayout } from '../../shared/packing/shape';
 
 jest.setTimeout(240_000);
@@ -158,6 +158,52 @@ describe('with a mesh worker', () => {
     expect(res.body.error.message).toContain('+x+z-y is not a rotation');
   });
 
+  test('copies far too many (20,000 pegs where the line asks for 1, heaped in one spot) are refused at once naming the quantity, by shape and by box; nothing is kept', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeflood');
+    const one = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [120, 8, 5] },
+    ]);
+    // Before, every pair of them was checked first: by box 40 s on the request thread (every request of the server
+    // waited), by shape a mesh worker's two minutes and then 503.
+    const flood = [one.placements[0], ...Array.from({ length: 20_000 }, () => one.placements[1])];
+    const byShapeRes = await lab.agent.post(url).send({ instance, result: { ...one, placements: flood } });
+    expect(byShapeRes.status).toBe(400);
+    expect(byShapeRes.body.error.field).toBe('result.parts[1].quantity');
+    expect(byShapeRes.body.error.message).toContain('has 20000 placed');
+    const boxes = flood.map(({ transform: _t, ...p }) => ({ ...p, orientation: 'xyz' }));
+    const byBoxRes = await lab.agent.post(url).send({ instance, result: { ...one, format: 'pack-result/1', placements: boxes, areaProfile: undefined } });
+    expect(byBoxRes.status).toBe(400);
+    expect(byBoxRes.body.error.field).toBe('result.parts[1].quantity');
+    const plan = await lab.agent.get(url.replace(/\/layouts$/, ''));
+    expect(plan.body.layouts).toHaveLength(0);
+  });
+
+  test('a top below the floor or beyond the chamber is refused naming the height, before any layer is counted from it', async () => {
+    const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeheight');
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [30, 30, 5] },
+    ]);
+    // 10 km of build would have been sliced into 100 million layers on a mesh worker (7 GB, then 503).
+    for (const height of [-100, 1e7]) {
+      const res = await lab.agent.post(url).send({ instance, result: { ...result, height } });
+      expect(res.status).toBe(400);
+      expect(res.body.error.field).toBe('result.height');
+      expect(res.body.error.message).toMatch(/^result\.height must be the top of the highest placed part, from 0 to the chamber's \d+ mm/);
+    }
+  });
+
+  test('a layout by shape with nothing placed (every copy left for another build) is kept, with no layers of parts', async () => {
+    const { lab, byShape, instance, url } = await framePlan(app, 'shapeempty');
+    const result = summariseShapeLayout(byShape, []);
+    expect(result.unplaced).toHaveLength(2);
+    // Before: no mesh to check it against read as no worker finishing, 503 however often it was tried.
+    const res = await lab.agent.post(url).send({ instance, result });
+    expect(res.status).toBe(201);
+    expect(res.body.estimate.profileSource).toBe('box');
+  });
+
   test("the shape engine's own layout of the plan is kept as it is", async () => {
     const { lab, byShape, instance, url } = await framePlan(app, 'shapeengine');
     const result = createShapePacking({ ...byShape, timeLimitMs: 500 }, { maxRuns: 3 }).runSync();
@@ -168,7 +214,7 @@ describe('with a mesh worker', () => {
   });
 });
 
-test('with no mesh worker to check it in time, a layout by shape is not kept: 503, and the plan has no layout', async () => {
+test('with no mesh worker to check it in time, a layout by shape is not kept: 503; the plan is not held while it waits', async () => {
   const app = await startTestApp({ meshWorker: false, layoutSliceWaitMs: 1500 });
   apps.push(app);
   const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapenoworker');
@@ -176,9 +222,26 @@ test('with no mesh worker to check it in time, a layout by shape is not kept: 50
     { id: frameId, rotation: 0, position: [8, 8, 5] },
     { id: pegId, rotation: 0, position: [30, 30, 5] },
   ]);
-  const res = await lab.agent.post(url).send({ instance, result });
+  // While it waits for a worker, the plan is not held: a layout of the same plan is relabelled meanwhile (before, the
+  // relabelling waited for the plan's lock until the 503, and a dozen such waits ran the database's connections dry).
+  const parsed = parseInstance(instance);
+  if (!parsed.ok) throw new Error('fixture instance');
+  const box = await lab.agent.post(url).send({ instance, result: packSync(parsed.instance) });
+  expect(box.status).toBe(201);
+  const order: string[] = [];
+  const [res, relabelled] = await Promise.all([
+    lab.agent
+      .post(url)
+      .send({ instance, result })
+      .then((r) => (order.push('shape'), r)),
+    new Promise((resolve) => setTimeout(resolve, 300))
+      .then(() => lab.agent.patch(`${url}/${box.body.id}`).send({ label: 'By box' }))
+      .then((r) => (order.push('relabel'), r)),
+  ]);
+  expect(relabelled.status).toBe(200);
   expect(res.status).toBe(503);
   expect(res.body.error.code).toBe('shape_check_unavailable');
+  expect(order).toEqual(['relabel', 'shape']);
   const plan = await lab.agent.get(url.replace(/\/layouts$/, ''));
-  expect(plan.body.layouts).toHaveLength(0);
+  expect(plan.body.layouts.map((l: { label: string }) => l.label)).toEqual(['By box']);
 });

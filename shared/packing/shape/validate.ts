@@ -10,6 +10,7 @@
 import { extentCode, rotationIndex, rotationOfTransform, rotatedBox, ROTATION_CODES } from '../../geometry/rotations';
 import { layerCount, TOLERANCE_MM, usableRegion } from '../geometry';
 import { RESULT_FORMAT_V2, type FieldProblem, type PackInstanceV2, type PackResultV2 } from '../types';
+import { excessProblems } from '../validate';
 import { blocksLift, containsPoint, PlacedBvh, surfaceDistance } from './bvh';
 import { shapeParts, type ShapePart } from './parts';
 
@@ -45,6 +46,9 @@ export function transformTurn(t: unknown): { rotation: number } | { problem: str
   return rotation < 0 ? { problem: 'must turn the part by one of the 24 quarter-turn rotations (no mirror images, no scaling)' } : { rotation };
 }
 
+/** The check stops once this many pairs are found too close or in each other's way up. */
+const MAX_FAULT_PAIRS = 10_000;
+
 /** How far a result's `utilization` may be from the one worked out from the meshes, as a share of it. */
 const UTILIZATION_SHARE = 1e-6;
 
@@ -59,6 +63,9 @@ export function validateShapeLayout(instance: PackInstanceV2, result: PackResult
   const placedCount = new Array<number>(parts.length).fill(0);
 
   if (result.format !== RESULT_FORMAT_V2) bad('format', `must be "${RESULT_FORMAT_V2}"`);
+  // Copies too many are refused before any mesh is placed (./validate.ts excessProblems).
+  const excess = excessProblems(parts, result.placements);
+  if (excess.length > 0) return [...problems, ...excess];
   const list = Array.isArray(result.placements) ? result.placements : [];
   if (!Array.isArray(result.placements)) bad('placements', 'must be an array');
   const finite = (v: unknown, n: number): v is number[] => Array.isArray(v) && v.length === n && v.every((c) => typeof c === 'number' && Number.isFinite(c));
@@ -263,8 +270,15 @@ function checkGapsAndLift(
       if (gapReports++ < maxReports) bad(`placements[${placed[j].at}]`, `${problem} placements[${placed[i].at}]: the surfaces must be at least ${g} mm apart`);
     }
   };
+  let enough = false;
   for (let i = 0; i < n; i++) {
     if (halted || (i % 32 === 31 && stopped())) return false;
+    // A layout with this many faults is wrong; how wrong no longer matters (20,000 copies heaped in one spot took a
+    // mesh worker two minutes pair by pair).
+    if (gapTotal + liftTotal >= MAX_FAULT_PAIRS) {
+      enough = true;
+      break;
+    }
     const A = placed[i].placed;
     range[0] = cellOf(A.min[0] - g, 0);
     range[1] = cellOf(A.min[1] - g, 1);
@@ -299,8 +313,9 @@ function checkGapsAndLift(
       }
   }
   if (halted) return false;
-  if (gapTotal > maxReports) bad('placements', `${gapTotal - maxReports} more pairs are closer than the spacing`);
-  if (liftTotal > maxReports) bad('placements', `${liftTotal - maxReports} more parts are blocked on their way up`);
+  const atLeast = enough ? 'at least ' : '';
+  if (gapTotal > maxReports) bad('placements', `${atLeast}${gapTotal - maxReports} more pairs are closer than the spacing`);
+  if (liftTotal > maxReports) bad('placements', `${atLeast}${liftTotal - maxReports} more parts are blocked on their way up`);
   return true;
 }
 

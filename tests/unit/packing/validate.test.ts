@@ -62,3 +62,31 @@ describe('layout validator', () => {
     expect(validateLayout(inst, { ...result, layers: result.layers + 1 }).map((p) => p.field)).toContain('layers');
   });
 });
+
+describe('layout validator on layouts made to cost it', () => {
+  const big = (quantity: number, size: number, spacing: number) =>
+    instanceOf({ format: 'pack-instance/1', chamber: [300, 300, 380], spacing, parts: [{ id: 's', size: [size, size, size], quantity }] });
+  const at = (n: number, size: number, where: (i: number) => [number, number, number]): Placement[] =>
+    Array.from({ length: n }, (_, i) => ({ id: 's', position: where(i), size: [size, size, size], orientation: 'xyz' }));
+
+  test('copies more than the quantity: only the count is named, and no pair of them is looked at', () => {
+    const inst2 = big(2, 10, 1);
+    const heap = at(20_000, 10, () => [0, 0, 0]);
+    expect(validateLayout(inst2, summariseLayout(inst2, heap))).toEqual([{ field: 'parts[0].quantity', message: 'is 2 but "s" has 20000 placed' }]);
+  });
+
+  test('20,000 copies heaped in one spot (the right count): the first 20 pairs named, then "at least" the rest up to 10,000', () => {
+    const inst2 = big(20_000, 10, 1);
+    const problems = validateLayout(inst2, summariseLayout(inst2, at(20_000, 10, () => [0, 0, 0])));
+    expect(problems.filter((p) => /overlapping/.test(p.message))).toHaveLength(20);
+    expect(problems).toContainEqual({ field: 'placements', message: 'at least 9980 more pairs are closer than the spacing' });
+  });
+
+  test('tens of thousands of specks crowded into a few cells, each clear of the others: refused as too crowded to check', () => {
+    // 0.01 mm cubes 0.05 mm apart in a 5 mm square: all in one cell of the grid, 200 million pairs.
+    const inst2 = big(20_000, 0.01, 0.01);
+    const specks = at(20_000, 0.01, (i) => [(i % 100) * 0.05, Math.floor(i / 100) * 0.05, 0]);
+    const problems = validateLayout(inst2, summariseLayout(inst2, specks));
+    expect(problems).toEqual([{ field: 'placements', message: expect.stringMatching(/^crowd too many boxes together to be checked \(more than 20,000,000 pairs/) }]);
+  });
+});

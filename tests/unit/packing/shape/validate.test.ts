@@ -184,3 +184,24 @@ describe('shape validator against the meshes', () => {
     expect(validateShapeLayout(inst, { ...ok, areaProfile: ok.areaProfile.slice(1) }).map((p) => p.field)).toContain('areaProfile');
   });
 });
+
+describe('shape validator on layouts made to cost it', () => {
+  test('copies more than the quantity: only the count is named, before any mesh is placed', () => {
+    const inst = instance([{ id: 'cube', mesh: box(10, 10, 10), quantity: 2 }], 1);
+    const one = layout(inst, [['cube', 0, [0, 0, 0]]]);
+    const heap = { ...one, placements: Array.from({ length: 20_000 }, () => one.placements[0]) };
+    expect(validateShapeLayout(inst, heap)).toEqual([{ field: 'parts[0].quantity', message: 'is 2 but "cube" has 20000 placed' }]);
+  });
+
+  test('20,000 copies heaped in one spot (the right count): the check stops at 10,000 faults, "at least" the rest', () => {
+    const inst = instance([{ id: 'cube', mesh: box(10, 10, 10), quantity: 20_000 }], 1);
+    const one = layout(inst, [['cube', 0, [0, 0, 0]]]);
+    const heap = { ...one, placements: Array.from({ length: 20_000 }, () => one.placements[0]) };
+    const problems = validateShapeLayout(inst, heap, undefined, { maxReports: 5 });
+    const more = problems.filter((p) => p.field === 'placements').map((p) => p.message);
+    expect(more).toEqual([expect.stringMatching(/^at least \d+ more pairs are closer than the spacing$/), expect.stringMatching(/^at least \d+ more parts are blocked on their way up$/)]);
+    const counted = more.map((m) => Number(/\d+/.exec(m)![0]) + 5).reduce((a, b) => a + b, 0);
+    expect(counted).toBeGreaterThanOrEqual(10_000);
+    expect(counted).toBeLessThan(10_000 + 2 * 20_000);
+  });
+});
