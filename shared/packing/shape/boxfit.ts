@@ -81,10 +81,23 @@ export interface BoxFitHooks {
   shouldStop?: () => boolean;
 }
 
+/**
+ * What each part's box is worth when the chamber is filled (`max-volume`): its mesh's share of the box, so the
+ * placed volume the box engine weighs is the meshes' (the result's `utilization`), not the boxes'. A channel whose
+ * box is three times its volume no longer wins over four solid cubes of more volume in all.
+ */
+export function meshVolumeWeights(parts: ReadonlyArray<Pick<ShapePart, 'size' | 'volume'>>): number[] {
+  return parts.map((p) => {
+    const box = p.size[0] * p.size[1] * p.size[2];
+    return box > 0 && p.volume > 0 ? Math.min(1, p.volume / box) : 1;
+  });
+}
+
 /** Packs a version 2 instance by boxes. */
 export function createBoxFitPacking(instance: PackInstanceV2, options: PackOptions = {}) {
   const parts = shapeParts(instance);
-  const inner = createPacking(boxInstance(instance, parts), options);
+  const weighed = instance.objective === 'max-volume' && !options.partWeights ? { ...options, partWeights: meshVolumeWeights(parts) } : options;
+  const inner = createPacking(boxInstance(instance, parts), weighed);
   const now = options.now ?? (() => performance.now());
   const run = (hooks: BoxFitHooks) => {
     let last: PackResult | null = null;

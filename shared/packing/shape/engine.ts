@@ -30,7 +30,7 @@ import type { PackInstance, PackInstanceV2, PackResult, PackResultV2, PackWarnin
 import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
-import { boxInstance, fromBoxResult, rotationForBox } from './boxfit';
+import { boxInstance, fromBoxResult, meshVolumeWeights, rotationForBox } from './boxfit';
 import { createPacking, packSync, type PackOptions } from '../engine';
 import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
@@ -399,7 +399,8 @@ function* boxesInstead(
   stop: () => boolean,
 ): Generator<void, PackResultV2, void> {
   const ms = Math.max(0, Math.round((deadline - now()) / 4));
-  const boxes = yield* boxSearch(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now }, stop, () => hooks.onProgress?.('greedy', 0, null));
+  const partWeights = instance.objective === 'max-volume' ? meshVolumeWeights(parts) : undefined;
+  const boxes = yield* boxSearch(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, partWeights }, stop, () => hooks.onProgress?.('greedy', 0, null));
   const result = fromBoxResult(instance, parts, boxes);
   const used = parts.filter((p) => p.quantity > 0 && p.hasMesh);
   const heaviest = used.reduce<ShapePart | null>((h, p) => (!h || triangles(p) > triangles(h) ? p : h), null);
@@ -471,7 +472,15 @@ function* solve(
   const random: Random = createRandom(instance.seed);
 
   let bestHeight = Infinity;
-  let bestPlacedCount = -1;
+  // What a layout is worth before its height: its copies placed; filling the chamber (max-volume), its parts' volume
+  // (the result's utilization), so four solid cubes beat one channel whose box is larger but whose mesh holds less.
+  const fill = instance.objective === 'max-volume';
+  const volumeById = new Map(parts.map((p) => [p.id, p.volume] as const));
+  const worth = (placed: Placed[]) => (fill ? placed.reduce((v, p) => v + parts[p.kind].volume, 0) : placed.length);
+  const worthOf = (result: PackResultV2) => (fill ? result.placements.reduce((v, p) => v + (volumeById.get(p.id) ?? 0), 0) : result.placements.length);
+  /** -1: a worth less than b; 1: more; 0: the same (to a part in 10^9 of the volume). */
+  const compareWorth = (a: number, b: number) => (a > b + 1e-9 * Math.max(1, Math.abs(b)) ? 1 : a < b - 1e-9 * Math.max(1, Math.abs(b)) ? -1 : 0);
+  let bestWorth = -1;
   let runs = 0;
   const maxRuns = options.maxRuns ?? Infinity;
 
@@ -509,7 +518,8 @@ function* solve(
     const height = heightOf(placed);
     // The boxes' layout as it stands gives way to the same parts settled and checked, even where none came lower.
     const asLow = out.best !== null && out.best === out.unsettled && height <= bestHeight + 1e-9;
-    const better = placed.length > bestPlacedCount || (placed.length === bestPlacedCount && (height < bestHeight - 1e-9 || asLow));
+    const w = compareWorth(worth(placed), bestWorth);
+    const better = w > 0 || (w === 0 && (height < bestHeight - 1e-9 || asLow));
     if (!better) return;
     // No time left to check it: the layout checked before stands.
     if (timed && out.best && now() + checkCost(nested) > deadline) return;
@@ -523,7 +533,7 @@ function* solve(
     else checkMs.plain = Math.max(checkMs.plain, took);
     if (failed) return;
     bestHeight = result.height;
-    bestPlacedCount = placed.length;
+    bestWorth = worth(placed);
     out.best = result;
     hooks.onProgress?.(phase, share(), result);
   };
@@ -538,7 +548,7 @@ function* solve(
   const handOutUnsettled = (result: PackResultV2) => {
     out.best = out.unsettled = result;
     bestHeight = result.height;
-    bestPlacedCount = result.placements.length;
+    bestWorth = worthOf(result);
     hooks.onProgress?.(phase, share(), result);
   };
 
@@ -566,12 +576,22 @@ function* solve(
       ],
     };
   };
+  /** Filling the chamber, what each unit box is worth to the box engine: the meshes' share of it (./boxfit.ts meshVolumeWeights). */
+  const weightsOf = (boxes: PackInstance, set: NestSet | null): number[] | undefined => {
+    if (!fill) return undefined;
+    return boxes.parts.map((bp) => {
+      const box = bp.size[0] * bp.size[1] * bp.size[2];
+      const own = volumeById.get(bp.id);
+      const volume = own ?? (set ? set.nests[Number(bp.id.slice(NEST_ID.length))].members.reduce((v, m) => v + parts[m.kind].volume, 0) : box);
+      return box > 0 && volume > 0 ? Math.min(1, volume / box) : 1;
+    });
+  };
   const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null, first = false): Generator<void, Placed[], void> {
     const nests = set ? set.nests : [];
     const nestCell = set?.cell ?? cell;
     const boxStart = now();
     const boxed = unitBoxes(set, ms);
-    const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
+    const boxes = yield* boxSearch(boxed, { now, maxCompletions, yieldMs, partWeights: weightsOf(boxed, set) }, stop, () => hooks.onProgress?.(phase, share(), out.best));
     if (first && timed) {
       // Timed, the box engine's first layout is handed out as it stands until the same parts come settled and
       // checked: boxes kept the spacing apart keep their meshes as far apart, and listed bottom first they lift out
@@ -790,7 +810,10 @@ function* solve(
     // does not pay (few parts, little to hold) the settled box layout is still there to keep.
     const capped = options.maxRuns !== undefined ? Math.max(1, options.maxRuns) : undefined;
     const nestShare = nests.length > 0 ? (options.nestShare ?? 0.4) : 0;
-    const better = (a: Placed[], b: Placed[]) => a.length > b.length || (a.length === b.length && heightOf(a) < heightOf(b));
+    const better = (a: Placed[], b: Placed[]) => {
+      const w = compareWorth(worth(a), worth(b));
+      return w > 0 || (w === 0 && heightOf(a) < heightOf(b));
+    };
     /** A stage's search time: its share, or timed, what is left for it (null: none left). */
     const budget = (shareMs: number, nested: boolean): number | null => {
       if (!timed) return Math.round(shareMs);
@@ -812,7 +835,7 @@ function* solve(
     // that stage runs as before, as it brings such parts far lower. 248 parts of 1,000 to 49,000 triangles: at 10 s
     // nested, 112.4 mm; at 5 s no stage had time and the first layout stood, 141.1 mm; now the box search of the
     // rest of the limit, 130.8 mm (the packing by box's own at 5 s: 127.8 mm).
-    const manyFirst = out.unsettled !== undefined && out.best === out.unsettled && bestPlacedCount >= MANY_PLACEMENTS;
+    const manyFirst = out.unsettled !== undefined && out.best === out.unsettled && out.best.placements.length >= MANY_PLACEMENTS;
     const heavyFirst = out.best !== null && out.best !== out.unsettled && !light && firstHeight !== null && bestHeight >= firstHeight - 1e-9;
     let rest: number | null = null;
     if (timed && (manyFirst || heavyFirst) && !stop()) {
@@ -821,9 +844,11 @@ function* solve(
       if (left > 0 && stageLeft < left / 2) rest = Math.round(left);
     }
     if (rest !== null) {
-      const boxes = yield* boxSearch(unitBoxes(null, rest), { now, yieldMs }, stop, () => hooks.onProgress?.(phase, share(), out.best));
+      const restBoxes = unitBoxes(null, rest);
+      const boxes = yield* boxSearch(restBoxes, { now, yieldMs, partWeights: weightsOf(restBoxes, null) }, stop, () => hooks.onProgress?.(phase, share(), out.best));
       const searchedBoxes = unsettledOf(boxes);
-      if (searchedBoxes.placements.length >= bestPlacedCount && searchedBoxes.height < bestHeight - 1e-9) handOutUnsettled(searchedBoxes);
+      const w = compareWorth(worthOf(searchedBoxes), bestWorth);
+      if (w > 0 || (w === 0 && searchedBoxes.height < bestHeight - 1e-9)) handOutUnsettled(searchedBoxes);
       // Handed out as it stands: the limit is why (finish says so).
       out.outOfTime = true;
     }
@@ -891,7 +916,7 @@ function* solve(
   }
   let order = firstOrder;
   let current = first ? heightOf(first) : Infinity;
-  let currentCount = first ? first.length : -1;
+  let currentWorth = first ? worth(first) : -1;
   let currentChoices = choices;
   while (runs < maxRuns && !outOfTime(nests.length > 0)) {
     // A neighbour: a few copies moved in the order, and now and then another set of rotations for one part.
@@ -917,11 +942,12 @@ function* solve(
     runs++;
     if (placed) {
       const h = heightOf(placed);
-      if (placed.length > currentCount || (placed.length === currentCount && h <= current + 1e-9)) {
+      const w = compareWorth(worth(placed), currentWorth);
+      if (w > 0 || (w === 0 && h <= current + 1e-9)) {
         order = nextOrder;
         currentChoices = nextChoices;
         current = h;
-        currentCount = placed.length;
+        currentWorth = worth(placed);
         offer(placed, nests.length > 0);
       }
     }
@@ -957,7 +983,8 @@ export function createShapePacking(instance: PackInstanceV2, options: ShapeOptio
     const boxes = () => {
       const parts = shapeParts(instance);
       const left = Math.max(0, Math.round(instance.timeLimitMs - (now() - start)));
-      return fromBoxResult(instance, parts, packSync(boxInstance({ ...instance, timeLimitMs: left }, parts), { now }));
+      const partWeights = instance.objective === 'max-volume' ? meshVolumeWeights(parts) : undefined;
+      return fromBoxResult(instance, parts, packSync(boxInstance({ ...instance, timeLimitMs: left }, parts), { now, partWeights }));
     };
     const best = out.best ?? boxes();
     const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
