@@ -38,10 +38,17 @@ export type ImportResult = { ok: true; parts: PartView[] } | { ok: false; reject
 
 const FILE_CONTENT_TYPES = { stl: 'model/stl', obj: 'model/obj', '3mf': 'model/3mf' } as const;
 
-/** The file name without any folders a browser or tool may have sent along. */
+/**
+ * The file name without any folders a browser or tool may have sent along, at most 255 characters. A longer name is
+ * cut in its stem, so its extension (which says how to read the file) stays: cut at its end, a 5,000-character name
+ * ending in .stl was refused as not a mesh file.
+ */
 export function plainFileName(name: string): string {
-  const last = name.split(/[\\/]/).pop() ?? '';
-  return last.replace(/[\u0000-\u001f\u007f]/g, '').slice(0, 255) || 'unnamed';
+  const last = (name.split(/[\\/]/).pop() ?? '').replace(/[\u0000-\u001f\u007f]/g, '');
+  if (last.length <= 255) return last || 'unnamed';
+  const dot = last.lastIndexOf('.');
+  const extension = dot > 0 && last.length - dot <= 10 ? last.slice(dot) : '';
+  return last.slice(0, 255 - extension.length) + extension;
 }
 
 type Vec3 = [number, number, number];
