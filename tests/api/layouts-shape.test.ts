@@ -9,6 +9,7 @@
  */
 import type { Running } from '../../server/boot';
 import { startTestApp } from '../helpers/app';
+import { layoutsService } from '../../server/services/layouts';
 import { createPlan, labWithProfiles, makeRequest, planInstance } from '../helpers/plans';
 import { prism, prismWithHoles } from '../../shared/geometry';
 import { ROTATION_CODES } from '../../shared/geometry/rotations';
@@ -202,6 +203,27 @@ describe('with a mesh worker', () => {
     const res = await lab.agent.post(url).send({ instance, result });
     expect(res.status).toBe(201);
     expect(res.body.estimate.profileSource).toBe('box');
+  });
+
+  test('a plan whose lines change while its layout is being checked keeps nothing: 409 plan_changed', async () => {
+    const { lab, plan, byShape, instance, frameId, pegId } = await framePlan(app, 'shapechanged');
+    const result = summariseShapeLayout(byShape, [
+      { id: frameId, rotation: 0, position: [8, 8, 5] },
+      { id: pegId, rotation: 0, position: [30, 30, 5] },
+    ]);
+    // The check itself is not held under the plan's lock: a planner may change the lines while a worker checks.
+    // Here the check's answer comes after a line's quantity was changed (as a second planner's save would).
+    const service = layoutsService(app.db, {
+      profilesFor: async () => {
+        await app.db.sequelize.query('UPDATE plan_lines SET quantity = quantity + 1 WHERE plan_id = :plan AND request_line_id = :line', {
+          replacements: { plan: plan.id, line: pegId },
+        });
+        return { areaPerLayerMm2: new Float64Array(0), contourPerLayerMm: new Float64Array(0), meshPlacements: 2, boxPlacements: 0, boxParts: [], problems: [] };
+      },
+    });
+    await expect(service.add(lab.labId, plan.id, { id: lab.userId, role: 'planner' } as never, { instance, result } as never)).rejects.toMatchObject({ status: 409, code: 'plan_changed' });
+    const after = await lab.agent.get(`/api/labs/${lab.labId}/plans/${plan.id}`);
+    expect(after.body.layouts).toHaveLength(0);
   });
 
   test("the shape engine's own layout of the plan is kept as it is", async () => {
