@@ -101,13 +101,18 @@ export function measureMeshFile(bytes: Uint8Array, options: MeasureOptions): Mea
   return measureParsedParts(parsed.parts, parsed.format!, options);
 }
 
+/** No part is larger than this along any axis (1 km): beyond it a file holds a stray coordinate, not a part. */
+export const MAX_PART_SIZE_MM = 1e6;
+
 export function measureParsedParts(parts: ParsedPart[], format: MeshFormat, options: MeasureOptions): MeasureResult {
   const measured: MeasuredPart[] = [];
   const problems: Problem[] = [];
   for (const part of parts) {
     const metrics = measureMesh(part);
     const label = `${quoteName(options.filename)}${parts.length > 1 ? `, part "${part.name}"` : ''}`;
-    if (![...metrics.sizeMm, metrics.volumeMm3, metrics.areaMm2].every(Number.isFinite)) {
+    // Past a kilometre no unit makes it a part: a coordinate near float32's largest (3e38) read as flat before, its
+    // volume lost to rounding against the size.
+    if (![...metrics.sizeMm, metrics.volumeMm3, metrics.areaMm2].every(Number.isFinite) || metrics.sizeMm.some((v) => v > MAX_PART_SIZE_MM)) {
       problems.push({
         code: 'out-of-range',
         message: `${label} is so large that its size, volume or area cannot be computed (a coordinate far past any build chamber, or a wrong unit).`,

@@ -116,4 +116,12 @@ describe('numbers too large to compute with', () => {
     expect(problem.code).toBe('out-of-range');
     expect(problem.message).toContain('size, volume or area cannot be computed');
   });
+
+  test('a binary STL cube with one corner moved to 3e38 (near float32\'s largest) is refused as too large, not as flat', () => {
+    const cube = box(10, 10, 10);
+    const positions = Float64Array.from(cube.positions);
+    positions[0] = 3e38;
+    const problem = refusal(writeBinaryStl({ positions, indices: cube.indices }), 'stray.stl');
+    expect(problem.code).toBe('out-of-range');
+  });
 });
