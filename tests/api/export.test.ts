@@ -3,6 +3,7 @@ import { startTestApp } from '../helpers/app';
 import { labWithProfiles } from '../helpers/plans';
 import type { Running } from '../../server/boot';
 import { labWithCrew, queuedPlan } from './runs-fixtures';
+import { export3mfService } from '../../server/services/export3mf';
 import { parse3mf, prism, read3mfModel, writeBinaryStl } from '../../shared/geometry';
 import { ROTATION_CODES } from '../../shared/geometry/rotations';
 import { INSTANCE_FORMAT_V2, parseInstance, summariseLayout, type PackInstanceInput, type PackResult, type Placement } from '../../shared/packing';
@@ -110,6 +111,32 @@ describe('the packed build as a 3MF package', () => {
         expect(box.size[k]).toBeCloseTo(expected[i].size[k], 9);
       }
     });
+  });
+
+  test('a build file asked for again is made once, also when asked for twice at once; a part given another stored file makes it anew', async () => {
+    const lab = await labWithCrew(running, 'exportcache');
+    const plan = await queuedPlan(running, lab, [BAR], { name: 'Bars', layout: threeOrientations });
+    await storeRealMesh(plan.request.lines[0].partId);
+    let made = 0;
+    const service = export3mfService(running.db, {
+      storage: running.services.storage,
+      layouts: running.services.layouts,
+      write: async (job) => {
+        made++;
+        return new Uint8Array([made, job.items.length]);
+      },
+    });
+    const [a, b] = await Promise.all([service.build(lab.labId, plan.planId), service.build(lab.labId, plan.planId)]);
+    const c = await service.build(lab.labId, plan.planId);
+    expect(made).toBe(1);
+    expect([...a.bytes]).toEqual([1, 3]);
+    expect([...b.bytes]).toEqual([1, 3]);
+    expect([...c.bytes]).toEqual([1, 3]);
+    // The part's file stored turned another way: another build file.
+    await running.db.sequelize.query(`UPDATE parts SET rotation_deg = '{0,0,0}' WHERE id = $1`, { bind: [plan.request.lines[0].partId] });
+    const d = await service.build(lab.labId, plan.planId);
+    expect(made).toBe(2);
+    expect([...d.bytes]).toEqual([2, 3]);
   });
 
   test('a plan that is not approved has no build file, and another lab\'s plan is not found', async () => {
