@@ -109,7 +109,9 @@ function main(): void {
   if (!isObject(job.machine)) fail('machine must be an object of the machine profile fields (docs/estimate.md)');
   if (!isObject(job.material)) fail('material must be an object of the material profile fields (docs/estimate.md)');
   // The newer fields take the values a new profile starts with when the job leaves them out.
-  const machine: Json = { name: 'machine', ...machineFieldDefaults, ...job.machine };
+  // The cake stands on the instance's chamber and is spread at the job's layer height: a machine given without its
+  // chamber or its layer heights is taken to be that chamber's, printing that layer.
+  const machine: Json = { name: 'machine', ...machineFieldDefaults, chamberMm: chamber, layerHeightsMm: [layerHeight], ...job.machine };
   const material: Json = { name: 'material', ...materialFieldDefaults, ...job.material };
   // The layer height is the job's choice; the machine need not list it.
   const heights = machine.layerHeightsMm;

@@ -82,6 +82,13 @@ describe('npm run estimate', () => {
     expect(byId.housing).toBeGreaterThan(byId.clip);
   });
 
+  test("a machine given without its chamber or layer heights is the instance's chamber at the job's layer height: the same estimate", () => {
+    const full = job();
+    const { chamberMm: _c, layerHeightsMm: _l, ...bare } = full.machine as Record<string, unknown>;
+    // The demo machine's chamber is not this instance's; the cake stood on the instance's chamber either way.
+    expect(estimate({ ...full, machine: bare })).toEqual(base);
+  });
+
   test('bad input exits 2 with one line naming the field', () => {
     const bad = job();
     (bad.layout.placements[2] as { size: number[] }).size[1] = -1;
