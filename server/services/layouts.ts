@@ -261,8 +261,8 @@ export function layoutsService(db: Database, deps: LayoutsDeps = {}) {
         const plan = await lockPlan(db, labId, planId, transaction);
         if (!isEditable(plan.status)) throw readOnly(plan.status);
         // Checked against the plan as it was read: its machine, material and lines must still be those.
-        const now = await planLines(db, plan.id, transaction);
-        if (plan.machine_id !== head.machineId || plan.material_id !== head.materialId || linesKey(now) !== linesKey(lines)) {
+        const current = await planLines(db, plan.id, transaction);
+        if (plan.machine_id !== head.machineId || plan.material_id !== head.materialId || linesKey(current) !== linesKey(lines)) {
           throw conflict('plan_changed', 'The plan changed while this layout was being checked (its machine, material or lines); nothing was kept. Pack it again for the plan as it is now.');
         }
         const partIds = instance.parts.map((p) => p.id);

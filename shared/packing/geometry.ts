@@ -26,17 +26,14 @@ export function usableRegion(inst: Pick<PackInstance, 'chamber' | 'margin'>): { 
   return { min, max, extent: [max[0] - min[0], max[1] - min[1], max[2] - min[2]] };
 }
 
-/** Lengths closer than this are equal (the packing contract's tolerance). */
-export const LENGTH_TOLERANCE_MM = 1e-6;
-
 /**
  * Layers of a build whose highest part tops out at `heightMm` over the chamber floor, with `topMarginMm` of powder
  * over it: ceil((height + margin.top) / layer height), as the packing contract defines it (an empty layout too: its
- * top margin). Lengths within LENGTH_TOLERANCE_MM are equal: 11 mm at 0.11 mm is 100 layers, though 11 / 0.11 =
+ * top margin). Lengths within TOLERANCE_MM are equal: 11 mm at 0.11 mm is 100 layers, though 11 / 0.11 =
  * 100.00000000000001 in floating point. The packing's results, their validators and the estimates all count so.
  */
 export function layerCount(heightMm: number, topMarginMm: number, layerHeightMm: number): number {
   const stackMm = heightMm + topMarginMm;
-  if (stackMm <= LENGTH_TOLERANCE_MM) return 0;
-  return Math.ceil((stackMm - LENGTH_TOLERANCE_MM) / layerHeightMm);
+  if (stackMm <= TOLERANCE_MM) return 0;
+  return Math.ceil((stackMm - TOLERANCE_MM) / layerHeightMm);
 }

@@ -93,10 +93,15 @@ export function meshVolumeWeights(parts: ReadonlyArray<Pick<ShapePart, 'size' | 
   });
 }
 
+/** The box engine's part weights for an instance: the meshes' shares when it fills the chamber, none otherwise. */
+export function fillWeights(instance: Pick<PackInstanceV2, 'objective'>, parts: ReadonlyArray<Pick<ShapePart, 'size' | 'volume'>>): number[] | undefined {
+  return instance.objective === 'max-volume' ? meshVolumeWeights(parts) : undefined;
+}
+
 /** Packs a version 2 instance by boxes. */
 export function createBoxFitPacking(instance: PackInstanceV2, options: PackOptions = {}) {
   const parts = shapeParts(instance);
-  const weighed = instance.objective === 'max-volume' && !options.partWeights ? { ...options, partWeights: meshVolumeWeights(parts) } : options;
+  const weighed = options.partWeights ? options : { ...options, partWeights: fillWeights(instance, parts) };
   const inner = createPacking(boxInstance(instance, parts), weighed);
   const now = options.now ?? (() => performance.now());
   const run = (hooks: BoxFitHooks) => {

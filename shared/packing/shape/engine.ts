@@ -30,7 +30,7 @@ import type { PackInstance, PackInstanceV2, PackResult, PackResultV2, PackWarnin
 import type { PlacedPart } from './area';
 import { codeFor, finishResult } from './result';
 import { shapeParts, type ShapePart } from './parts';
-import { boxInstance, fromBoxResult, meshVolumeWeights, rotationForBox } from './boxfit';
+import { boxInstance, fillWeights, fromBoxResult, meshVolumeWeights, rotationForBox } from './boxfit';
 import { createPacking, packSync, type PackOptions } from '../engine';
 import { settleLayout, lowerTheTop, type SettleItem } from './settle';
 import { bestDrop, drop, newGrid } from './grid';
@@ -399,8 +399,7 @@ function* boxesInstead(
   stop: () => boolean,
 ): Generator<void, PackResultV2, void> {
   const ms = Math.max(0, Math.round((deadline - now()) / 4));
-  const partWeights = instance.objective === 'max-volume' ? meshVolumeWeights(parts) : undefined;
-  const boxes = yield* boxSearch(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, partWeights }, stop, () => hooks.onProgress?.('greedy', 0, null));
+  const boxes = yield* boxSearch(boxInstance({ ...instance, timeLimitMs: ms }, parts), { now, partWeights: fillWeights(instance, parts) }, stop, () => hooks.onProgress?.('greedy', 0, null));
   const result = fromBoxResult(instance, parts, boxes);
   const used = parts.filter((p) => p.quantity > 0 && p.hasMesh);
   const heaviest = used.reduce<ShapePart | null>((h, p) => (!h || triangles(p) > triangles(h) ? p : h), null);
@@ -479,7 +478,10 @@ function* solve(
   const worth = (placed: Placed[]) => (fill ? placed.reduce((v, p) => v + parts[p.kind].volume, 0) : placed.length);
   const worthOf = (result: PackResultV2) => (fill ? result.placements.reduce((v, p) => v + (volumeById.get(p.id) ?? 0), 0) : result.placements.length);
   /** -1: a worth less than b; 1: more; 0: the same (to a part in 10^9 of the volume). */
-  const compareWorth = (a: number, b: number) => (a > b + 1e-9 * Math.max(1, Math.abs(b)) ? 1 : a < b - 1e-9 * Math.max(1, Math.abs(b)) ? -1 : 0);
+  const compareWorth = (a: number, b: number) => {
+    const eps = 1e-9 * Math.max(1, Math.abs(b));
+    return a > b + eps ? 1 : a < b - eps ? -1 : 0;
+  };
   let bestWorth = -1;
   let runs = 0;
   const maxRuns = options.maxRuns ?? Infinity;
@@ -579,12 +581,9 @@ function* solve(
   /** Filling the chamber, what each unit box is worth to the box engine: the meshes' share of it (./boxfit.ts meshVolumeWeights). */
   const weightsOf = (boxes: PackInstance, set: NestSet | null): number[] | undefined => {
     if (!fill) return undefined;
-    return boxes.parts.map((bp) => {
-      const box = bp.size[0] * bp.size[1] * bp.size[2];
-      const own = volumeById.get(bp.id);
-      const volume = own ?? (set ? set.nests[Number(bp.id.slice(NEST_ID.length))].members.reduce((v, m) => v + parts[m.kind].volume, 0) : box);
-      return box > 0 && volume > 0 ? Math.min(1, volume / box) : 1;
-    });
+    // A nest's unit holds its members' meshes.
+    const volumeOf = (id: string) => volumeById.get(id) ?? set?.nests[Number(id.slice(NEST_ID.length))].members.reduce((v, m) => v + parts[m.kind].volume, 0) ?? 0;
+    return meshVolumeWeights(boxes.parts.map((bp) => ({ size: bp.size, volume: volumeOf(bp.id) })));
   };
   const settledBoxes = function* (maxCompletions: number | undefined, ms: number, set: NestSet | null = null, first = false): Generator<void, Placed[], void> {
     const nests = set ? set.nests : [];
@@ -983,8 +982,7 @@ export function createShapePacking(instance: PackInstanceV2, options: ShapeOptio
     const boxes = () => {
       const parts = shapeParts(instance);
       const left = Math.max(0, Math.round(instance.timeLimitMs - (now() - start)));
-      const partWeights = instance.objective === 'max-volume' ? meshVolumeWeights(parts) : undefined;
-      return fromBoxResult(instance, parts, packSync(boxInstance({ ...instance, timeLimitMs: left }, parts), { now, partWeights }));
+      return fromBoxResult(instance, parts, packSync(boxInstance({ ...instance, timeLimitMs: left }, parts), { now, partWeights: fillWeights(instance, parts) }));
     };
     const best = out.best ?? boxes();
     const result = { ...best, elapsedMs: Math.round((now() - start) * 10) / 10 };
