@@ -65,6 +65,13 @@ async function framePlan(app: Running, tag: string) {
   return { lab, plan, instance, byShape, frameId, pegId, url: `/api/labs/${lab.labId}/plans/${plan.id}/layouts` };
 }
 
+/** The frame at the usable region's corner (the material's margins), the peg centred in its hole: 7 mm from each wall. */
+const pegInHole = (byShape: PackInstanceV2, frameId: string, pegId: string) =>
+  summariseShapeLayout(byShape, [
+    { id: frameId, rotation: 0, position: [8, 8, 5] },
+    { id: pegId, rotation: 0, position: [30, 30, 5] },
+  ]);
+
 describe('with a mesh worker', () => {
   let app: Running;
   beforeAll(async () => {
@@ -75,10 +82,7 @@ describe('with a mesh worker', () => {
   test('a peg standing in the hole of a frame is kept by shape, with its transforms, and estimated from the meshes', async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapekeep');
     // Usable region from (8, 8, 5) (the material's margins); the peg centred in the hole: 7 mm from each wall.
-    const result = summariseShapeLayout(byShape, [
-      { id: frameId, rotation: 0, position: [8, 8, 5] },
-      { id: pegId, rotation: 0, position: [30, 30, 5] },
-    ]);
+    const result = pegInHole(byShape, frameId, pegId);
 
     // As boxes the two overlap, so the box rules refuse the same placements.
     const asBoxes = await lab.agent.post(url).send({
@@ -120,10 +124,7 @@ describe('with a mesh worker', () => {
 
   test('a placement naming no line of the plan is refused with 400 naming it, before any worker is asked', async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeunknown');
-    const result = summariseShapeLayout(byShape, [
-      { id: frameId, rotation: 0, position: [8, 8, 5] },
-      { id: pegId, rotation: 0, position: [30, 30, 5] },
-    ]);
+    const result = pegInHole(byShape, frameId, pegId);
     const res = await lab.agent.post(url).send({ instance, result: { ...result, placements: [result.placements[0], { ...result.placements[1], id: 'not-a-line' }] } });
     expect(res.status).toBe(400);
     expect(res.body.error.field).toBe('result.placements[1].id');
@@ -131,10 +132,7 @@ describe('with a mesh worker', () => {
 
   test('a transform that scales the part is refused with 400 naming it, before any worker is asked, and nothing is kept', async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapescaled');
-    const result = summariseShapeLayout(byShape, [
-      { id: frameId, rotation: 0, position: [8, 8, 5] },
-      { id: pegId, rotation: 0, position: [30, 30, 5] },
-    ]);
+    const result = pegInHole(byShape, frameId, pegId);
     // The frame twice its size: a 3MF transform may scale, a placement may not (before, the slicing failed on it: 503).
     const scaled = { ...result.placements[0], transform: [2, 0, 0, 0, 2, 0, 0, 0, 2, 8, 8, 5] };
     const res = await lab.agent.post(url).send({ instance, result: { ...result, placements: [scaled, result.placements[1]] } });
@@ -182,10 +180,7 @@ describe('with a mesh worker', () => {
 
   test('a top below the floor or beyond the chamber is refused naming the height, before any layer is counted from it', async () => {
     const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapeheight');
-    const result = summariseShapeLayout(byShape, [
-      { id: frameId, rotation: 0, position: [8, 8, 5] },
-      { id: pegId, rotation: 0, position: [30, 30, 5] },
-    ]);
+    const result = pegInHole(byShape, frameId, pegId);
     // 10 km of build would have been sliced into 100 million layers on a mesh worker (7 GB, then 503).
     for (const height of [-100, 1e7]) {
       const res = await lab.agent.post(url).send({ instance, result: { ...result, height } });
@@ -207,10 +202,7 @@ describe('with a mesh worker', () => {
 
   test('a plan whose lines change while its layout is being checked keeps nothing: 409 plan_changed', async () => {
     const { lab, plan, byShape, instance, frameId, pegId } = await framePlan(app, 'shapechanged');
-    const result = summariseShapeLayout(byShape, [
-      { id: frameId, rotation: 0, position: [8, 8, 5] },
-      { id: pegId, rotation: 0, position: [30, 30, 5] },
-    ]);
+    const result = pegInHole(byShape, frameId, pegId);
     // The check itself is not held under the plan's lock: a planner may change the lines while a worker checks.
     // Here the check's answer comes after a line's quantity was changed (as a second planner's save would).
     const service = layoutsService(app.db, {
@@ -240,10 +232,7 @@ test('with no mesh worker to check it in time, a layout by shape is not kept: 50
   const app = await startTestApp({ meshWorker: false, layoutSliceWaitMs: 1500 });
   apps.push(app);
   const { lab, byShape, instance, frameId, pegId, url } = await framePlan(app, 'shapenoworker');
-  const result = summariseShapeLayout(byShape, [
-    { id: frameId, rotation: 0, position: [8, 8, 5] },
-    { id: pegId, rotation: 0, position: [30, 30, 5] },
-  ]);
+  const result = pegInHole(byShape, frameId, pegId);
   // While it waits for a worker, the plan is not held: a layout of the same plan is relabelled meanwhile (before, the
   // relabelling waited for the plan's lock until the 503, and a dozen such waits ran the database's connections dry).
   const parsed = parseInstance(instance);
